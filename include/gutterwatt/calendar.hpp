@@ -1,0 +1,57 @@
+#pragma once
+/// Civil time for gutterwatt: ISO 8601 stamps, UTC offsets, durations with units, months.
+/// Instants are whole seconds since 1970-01-01T00:00Z (UTC), held as `Instant`.
+
+#include <cstdint>
+#include <optional>
+#include <string>
+#include <string_view>
+
+namespace gutterwatt {
+
+/// Seconds since 1970-01-01T00:00:00Z.
+using Instant = std::int64_t;
+
+/// A parsed ISO 8601 date-time. `has_offset` is false for a naive stamp (no `Z`, no `+hh:mm`).
+struct ParsedTime {
+  Instant instant = 0;  ///< UTC, using the stamp's own offset or the default one for naive stamps
+  bool has_offset = false;
+  int offset_s = 0;  ///< the offset that was applied (own or default)
+};
+
+/// Parses `YYYY-MM-DD`, `YYYY-MM-DDThh:mm`, `YYYY-MM-DDThh:mm:ss` (a space may stand for `T`,
+/// fractional seconds are rounded to the nearest second), optionally followed by `Z`, `+hh:mm`,
+/// `-hh:mm`, `+hhmm` or `+hh`. A naive stamp is taken as local time at `default_offset_s`.
+/// Returns nullopt on anything else, including impossible dates (2025-02-30) and times (24:01).
+std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offset_s = 0);
+
+/// Formats an instant as local time at `offset_s`: `YYYY-MM-DDThh:mm`, with `:ss` when the seconds
+/// are not zero, and the offset appended (`+hh:mm`) when `offset_s` is not zero.
+std::string format_iso8601(Instant instant, int offset_s = 0);
+
+/// Parses a UTC offset: `Z`, `+hh:mm`, `-hh:mm`, `+hhmm`, `+hh`, or `UTC+hh:mm`. Seconds east of UTC.
+std::optional<int> parse_utc_offset(std::string_view text);
+
+/// Parses a duration with its unit: `30s`, `5min`, `1.5h`, `1d` (also `sec`, `m` for minutes,
+/// `hr`, `day`, `days`). Returns seconds; nullopt for a bare number, a negative value or an
+/// unknown unit.
+std::optional<double> parse_duration_s(std::string_view text);
+
+/// Civil date parts of an instant as seen at `offset_s`.
+struct CivilTime {
+  int year;
+  int month;  ///< 1..12
+  int day;    ///< 1..31
+  int hour;
+  int minute;
+  int second;
+};
+CivilTime to_civil(Instant instant, int offset_s = 0);
+
+/// The instant of local midnight starting `year`-`month`-01 at `offset_s`.
+Instant month_start(int year, int month, int offset_s = 0);
+
+/// `YYYY-MM` for an instant at `offset_s`.
+std::string month_label(Instant instant, int offset_s = 0);
+
+}  // namespace gutterwatt

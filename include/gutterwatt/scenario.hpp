@@ -1,0 +1,134 @@
+#pragma once
+/// The scenario: one site's system and run settings, loaded from YAML, checked, and converted to
+/// SI once. Every key, its unit and its default is listed in README.md ("Scenario keys").
+
+#include <filesystem>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "gutterwatt/calendar.hpp"
+#include "gutterwatt/hydraulics.hpp"
+#include "gutterwatt/rain_input.hpp"
+
+namespace gutterwatt {
+
+struct SiteConfig {
+  std::string name;
+  double temperature_C = 15.0;
+  int utc_offset_s = 0;  ///< local time for months, seasons and output stamps
+};
+
+enum class RainFormat { series, tips, daily };
+
+struct RainConfig {
+  std::vector<std::filesystem::path> files;  ///< resolved against the scenario file's folder
+  RainFormat format = RainFormat::series;
+  SeriesFormat series;  ///< columns, value kind, unit, step, gaps, offset
+};
+
+struct RoofConfig {
+  double area_m2 = 0.0;  ///< plan (horizontal) area
+  double runoff_coefficient = 0.9;
+  double initial_loss_m = 0.5e-3;
+  double drying_m_per_s = 3e-3 / 86400.0;
+  double lag_s = 60.0;  ///< linear-reservoir constant; 0 passes runoff straight through
+};
+
+struct FirstFlushConfig {
+  double volume_m3 = 0.0;  ///< 0: no diverter
+  double reset_after_dry_s = 12.0 * 3600.0;
+};
+
+enum class ReservoirShape { half_round, rectangular, table };
+
+struct ReservoirConfig {
+  ReservoirShape shape = ReservoirShape::half_round;
+  double width_m = 0.0;   ///< half_round: diameter; rectangular: inside width
+  double length_m = 0.0;  ///< half_round and rectangular
+  double rim_m = 0.0;     ///< overflow rim above the floor
+  double overflow_coefficient = 1.7;  ///< weir C in Q = C L h^1.5, m^0.5/s
+  double overflow_length_m = 0.0;     ///< weir length; defaults to length_m (0 for table: required)
+  std::vector<double> table_level_m;  ///< table: levels above the floor, increasing from 0
+  std::vector<double> table_area_m2;  ///< table: plan (water-surface) area at each level
+  double initial_level_m = 0.0;
+};
+
+enum class ReleaseKind { bell, float_valve, orifice, none };
+
+struct ReleaseConfig {
+  ReleaseKind kind = ReleaseKind::bell;
+  double trigger_level_m = 0.0;  ///< bell: standpipe lip; float_valve: opening level
+  double break_level_m = 0.0;    ///< bell: bell rim; float_valve: closing level
+  double standpipe_diameter_m = 0.0;
+  double priming_flow_m3_per_s = 0.0;
+  double lip_coefficient = 1.77;  ///< weir C over the standpipe lip, m^0.5/s
+  double orifice_diameter_m = 0.0;  ///< float_valve and orifice
+  double orifice_coefficient = 0.61;
+};
+
+struct HeadColumnConfig {
+  double diameter_m = 0.0;
+  double height_m = 0.0;  ///< from the nozzle up to the column's top, where the drop pipe enters
+};
+
+struct TurbineConfig {
+  double runner_diameter_m = 0.0;
+  std::optional<double> speed_rpm;  ///< nullopt: the runner turns at the best speed
+  double peak_efficiency = 0.7;
+};
+
+struct GeneratorConfig {
+  double efficiency = 0.65;
+  double cut_in_W = 0.0;
+};
+
+struct BatteryConfig {
+  double capacity_J = 0.0;
+  double initial_soc = 0.5;
+  double charge_efficiency = 0.9;
+  double max_charge_W = 1e9;
+  double load_W = 0.0;
+  /// Optional 24 hourly loads (local time), replacing load_W when given.
+  std::vector<double> load_profile_W;
+};
+
+struct SimulationConfig {
+  std::optional<Instant> start;  ///< nullopt: the start of the rain record
+  std::optional<Instant> end;    ///< nullopt: the end of the rain record
+  double output_interval_s = 3600.0;
+  double rtol = 1e-6;
+};
+
+struct Scenario {
+  std::filesystem::path file;  ///< where it was loaded from (for messages)
+  SiteConfig site;
+  RainConfig rain;
+  RoofConfig roof;
+  FirstFlushConfig first_flush;
+  ReservoirConfig reservoir;
+  ReleaseConfig release;
+  Pipe drop_pipe{0.0, 0.0, 0.0, 0.0};
+  double drop_m = 0.0;  ///< vertical fall from the reservoir floor to the nozzle
+  std::optional<HeadColumnConfig> head_column;
+  Nozzle nozzle{0.0, 0.95, 0.97};
+  TurbineConfig turbine;
+  GeneratorConfig generator;
+  BatteryConfig battery;
+  SimulationConfig simulation;
+};
+
+/// Loads `file`, applies `overrides` (each `key.path=value`, in order), checks and converts.
+/// Throws InputError naming the file, the line and the key (and the nearest valid key for an
+/// unknown one); an override's error names `--set` instead of a file.
+Scenario load_scenario(const std::filesystem::path& file,
+                       const std::vector<std::string>& overrides = {});
+
+/// As load_scenario, from text already read: `file_label` is used in messages and relative rain
+/// paths resolve against `base_dir`. A sweep parses the text once per combination.
+Scenario parse_scenario(std::string_view yaml_text, const std::string& file_label,
+                        const std::filesystem::path& base_dir,
+                        const std::vector<std::string>& overrides = {});
+
+}  // namespace gutterwatt
