@@ -44,7 +44,8 @@ struct Nozzle {
 double circle_area_m2(double diameter_m);
 
 /// Friction plus minor head loss for `flow` through `pipe`, m: (f L/D + K) V^2 / (2 g).
-double pipe_head_loss_m(const Pipe& pipe, double flow_m3_per_s, double kinematic_viscosity_m2_per_s);
+double pipe_head_loss_m(const Pipe& pipe, double flow_m3_per_s,
+                        double kinematic_viscosity_m2_per_s);
 
 /// Flow through a full pipe that ends in the nozzle, with `total_head_m` from the supply surface
 /// to the nozzle; the nozzle controls: H = h_loss(Q) + (Q / (Cd A_n))^2 / (2 g). 0 for H <= 0.
@@ -81,5 +82,26 @@ double impulse_efficiency(double speed_ratio, double peak_efficiency);
 /// Bucket-to-jet speed ratio of a runner of pitch diameter `runner_diameter_m` turning at
 /// `speed_rpm` under a jet of velocity `jet_velocity_m_per_s`; 0 when the jet velocity is 0.
 double speed_ratio(double runner_diameter_m, double speed_rpm, double jet_velocity_m_per_s);
+
+namespace detail {
+
+/// IAPWS 2008 viscosity of ordinary water without the critical enhancement (mu0 * mu1), Pa s, at
+/// `density_kg_per_m3` and `temperature_K`. Exposed so tests can check the release's own values.
+double iapws2008_viscosity_Pa_s(double density_kg_per_m3, double temperature_K);
+
+/// Result of the full-pipe energy equation: the flow and how many times the fixed-point map
+/// (one friction-factor evaluation each) was evaluated to reach it.
+struct FullPipeFlow {
+  double flow_m3_per_s;
+  int evaluations;
+};
+
+/// Solves H = (f(Q) L/D + K) Q^2 / (2 g A^2) + outlet_term Q^2 / (2 g) for Q, where f depends on
+/// Q through Re. `outlet_term_per_m4` is 1/(Cd A_n)^2 for a nozzle, 1/A^2 for a free outfall.
+/// Flow 0 (with 0 evaluations) for H <= 0.
+FullPipeFlow solve_full_pipe_flow(const Pipe& pipe, double head_m, double outlet_term_per_m4,
+                                  double kinematic_viscosity_m2_per_s);
+
+}  // namespace detail
 
 }  // namespace gutterwatt
