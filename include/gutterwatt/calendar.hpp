@@ -22,20 +22,27 @@ struct ParsedTime {
 /// Parses `YYYY-MM-DD`, `YYYY-MM-DDThh:mm`, `YYYY-MM-DDThh:mm:ss` (a space may stand for `T`,
 /// fractional seconds are rounded to the nearest second), optionally followed by `Z`, `+hh:mm`,
 /// `-hh:mm`, `+hhmm` or `+hh`. A naive stamp is taken as local time at `default_offset_s`.
-/// Returns nullopt on anything else, including impossible dates (2025-02-30) and times (24:01).
+/// `24:00` is the midnight that ends the day. The text must hold the stamp alone (no blanks), and
+/// an offset needs a time of day. Returns nullopt on anything else, including impossible dates
+/// (2025-02-30), times (24:01, 23:59:60) and offsets (+24:00).
 std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offset_s = 0);
 
 /// Formats an instant as local time at `offset_s`: `YYYY-MM-DDThh:mm`, with `:ss` when the seconds
 /// are not zero, and the offset appended (`+hh:mm`) when `offset_s` is not zero.
 std::string format_iso8601(Instant instant, int offset_s = 0);
 
-/// Parses a UTC offset: `Z`, `+hh:mm`, `-hh:mm`, `+hhmm`, `+hh`, or `UTC+hh:mm`. Seconds east of UTC.
+/// Parses a UTC offset: `Z`, `+hh:mm`, `-hh:mm`, `+hhmm`, `+hh`, `UTC+hh:mm` or a bare `UTC`.
+/// Seconds east of UTC; hours up to 23.
 std::optional<int> parse_utc_offset(std::string_view text);
 
 /// Parses a duration with its unit: `30s`, `5min`, `1.5h`, `1d` (also `sec`, `m` for minutes,
 /// `hr`, `day`, `days`). Returns seconds; nullopt for a bare number, a negative value or an
 /// unknown unit.
 std::optional<double> parse_duration_s(std::string_view text);
+
+/// Formats a whole number of seconds for people: `2h 55min`, `1d 6h`, `30s`, `0s`; the parts that
+/// are zero are left out. A negative duration gets a leading `-`.
+std::string format_duration(std::int64_t seconds);
 
 /// Civil date parts of an instant as seen at `offset_s`.
 struct CivilTime {
@@ -48,7 +55,9 @@ struct CivilTime {
 };
 CivilTime to_civil(Instant instant, int offset_s = 0);
 
-/// The instant of local midnight starting `year`-`month`-01 at `offset_s`.
+/// The instant of local midnight starting `year`-`month`-01 at `offset_s`. A month outside 1..12
+/// rolls over into the neighbouring years (month 13 is January of the next year, 0 is December of
+/// the year before), so `month_start(y, m + 1)` is the end of month `m`.
 Instant month_start(int year, int month, int offset_s = 0);
 
 /// `YYYY-MM` for an instant at `offset_s`.

@@ -1,0 +1,254 @@
+#include "gutterwatt/calendar.hpp"
+
+#include <date/date.h>
+
+#include <charconv>
+#include <cmath>
+#include <cstdio>
+
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+namespace {
+
+constexpr std::int64_t kSecondsPerDayInt = 86400;
+constexpr int kMaxOffsetHours = 23;
+
+// Reads `count` decimal digits at `pos`; false if any is not a digit or the text is too short.
+// Written out by hand: this runs once per row of multi-million-row rain records.
+bool read_digits(std::string_view text, std::size_t pos, std::size_t count, int& out) {
+  if (pos + count > text.size()) return false;
+  int value = 0;
+  for (std::size_t i = pos; i < pos + count; ++i) {
+    const unsigned digit = static_cast<unsigned char>(text[i]) - '0';
+    if (digit > 9) return false;
+    value = value * 10 + static_cast<int>(digit);
+  }
+  out = value;
+  return true;
+}
+
+// Parses an offset that must fill `text` exactly: `Z`, `+hh`, `+hhmm`, `+hh:mm` (or `-`).
+std::optional<int> parse_offset_exact(std::string_view text) {
+  if (text == "Z" || text == "z") return 0;
+  if (text.size() < 3 || (text[0] != '+' && text[0] != '-')) return std::nullopt;
+  int hours = 0;
+  int minutes = 0;
+  if (!read_digits(text, 1, 2, hours)) return std::nullopt;
+  if (text.size() == 3) {
+    minutes = 0;
+  } else if (text.size() == 5) {
+    if (!read_digits(text, 3, 2, minutes)) return std::nullopt;
+  } else if (text.size() == 6 && text[3] == ':') {
+    if (!read_digits(text, 4, 2, minutes)) return std::nullopt;
+  } else {
+    return std::nullopt;
+  }
+  if (hours > kMaxOffsetHours || minutes > 59) return std::nullopt;
+  const int magnitude = hours * 3600 + minutes * 60;
+  return text[0] == '-' ? -magnitude : magnitude;
+}
+
+std::int64_t floor_div(std::int64_t a, std::int64_t b) {
+  std::int64_t q = a / b;
+  if ((a % b != 0) && ((a < 0) != (b < 0))) --q;
+  return q;
+}
+
+std::int64_t days_from_civil(const date::year_month_day& ymd) {
+  return date::sys_days{ymd}.time_since_epoch().count();
+}
+
+std::string_view trim(std::string_view text) {
+  while (!text.empty() && (text.front() == ' ' || text.front() == '\t')) text.remove_prefix(1);
+  while (!text.empty() && (text.back() == ' ' || text.back() == '\t')) text.remove_suffix(1);
+  return text;
+}
+
+// Appends a zero-padded number of at least `width` digits (a leading `-` for negatives).
+void append_padded(std::string& out, long long value, int width) {
+  char buffer[32];
+  const int n = std::snprintf(buffer, sizeof buffer, "%0*lld", width, value);
+  out.append(buffer, static_cast<std::size_t>(n));
+}
+
+void append_offset(std::string& out, int offset_s) {
+  out += offset_s < 0 ? '-' : '+';
+  const int magnitude = offset_s < 0 ? -offset_s : offset_s;
+  append_padded(out, magnitude / 3600, 2);
+  out += ':';
+  append_padded(out, magnitude / 60 % 60, 2);
+  if (magnitude % 60 != 0) {
+    out += ':';
+    append_padded(out, magnitude % 60, 2);
+  }
+}
+
+}  // namespace
+
+std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offset_s) {
+  int year = 0;
+  int month = 0;
+  int day = 0;
+  if (text.size() < 10 || !read_digits(text, 0, 4, year) || text[4] != '-' ||
+      !read_digits(text, 5, 2, month) || text[7] != '-' || !read_digits(text, 8, 2, day)) {
+    return std::nullopt;
+  }
+  const date::year_month_day ymd{date::year{year}, date::month{static_cast<unsigned>(month)},
+                                 date::day{static_cast<unsigned>(day)}};
+  if (!ymd.ok()) return std::nullopt;
+
+  int hour = 0;
+  int minute = 0;
+  int second = 0;
+  int round_up = 0;
+  std::size_t pos = 10;
+  if (pos < text.size() && (text[pos] == 'T' || text[pos] == 't' || text[pos] == ' ')) {
+    if (!read_digits(text, pos + 1, 2, hour) || pos + 3 >= text.size() || text[pos + 3] != ':' ||
+        !read_digits(text, pos + 4, 2, minute)) {
+      return std::nullopt;
+    }
+    pos += 6;
+    if (pos < text.size() && text[pos] == ':') {
+      if (!read_digits(text, pos + 1, 2, second)) return std::nullopt;
+      pos += 3;
+      if (pos < text.size() && (text[pos] == '.' || text[pos] == ',')) {
+        const std::size_t first = ++pos;
+        bool any_nonzero = false;
+        while (pos < text.size() && text[pos] >= '0' && text[pos] <= '9') {
+          any_nonzero = any_nonzero || text[pos] != '0';
+          ++pos;
+        }
+        if (pos == first) return std::nullopt;
+        // Nearest second, halves rounded up.
+        round_up = text[first] >= '5' ? 1 : 0;
+        if (hour == 24 && any_nonzero) return std::nullopt;
+      }
+    }
+    // ISO 8601 allows 24:00 for the midnight that ends a day; leap seconds are not representable.
+    if (minute > 59 || second > 59 || hour > 24 || (hour == 24 && (minute != 0 || second != 0))) {
+      return std::nullopt;
+    }
+  }
+
+  ParsedTime parsed;
+  if (pos == text.size()) {
+    parsed.offset_s = default_offset_s;
+  } else {
+    if (pos == 10) return std::nullopt;  // an offset on a bare date says nothing
+    const std::optional<int> offset = parse_offset_exact(text.substr(pos));
+    if (!offset) return std::nullopt;
+    parsed.has_offset = true;
+    parsed.offset_s = *offset;
+  }
+  const std::int64_t local =
+      days_from_civil(ymd) * kSecondsPerDayInt + hour * 3600 + minute * 60 + second + round_up;
+  parsed.instant = local - parsed.offset_s;
+  return parsed;
+}
+
+std::string format_iso8601(Instant instant, int offset_s) {
+  const CivilTime t = to_civil(instant, offset_s);
+  std::string out;
+  out.reserve(25);
+  append_padded(out, t.year, 4);
+  out += '-';
+  append_padded(out, t.month, 2);
+  out += '-';
+  append_padded(out, t.day, 2);
+  out += 'T';
+  append_padded(out, t.hour, 2);
+  out += ':';
+  append_padded(out, t.minute, 2);
+  if (t.second != 0) {
+    out += ':';
+    append_padded(out, t.second, 2);
+  }
+  if (offset_s != 0) append_offset(out, offset_s);
+  return out;
+}
+
+std::optional<int> parse_utc_offset(std::string_view text) {
+  text = trim(text);
+  if (text.size() >= 3 && (text.substr(0, 3) == "UTC" || text.substr(0, 3) == "utc")) {
+    text.remove_prefix(3);
+    if (text.empty()) return 0;
+    if (text.front() != '+' && text.front() != '-') return std::nullopt;
+  }
+  return parse_offset_exact(text);
+}
+
+std::optional<double> parse_duration_s(std::string_view text) {
+  text = trim(text);
+  if (!text.empty() && text.front() == '-') return std::nullopt;
+  double value = 0.0;
+  const char* const end = text.data() + text.size();
+  const auto [rest, ec] = std::from_chars(text.data(), end, value);
+  if (ec != std::errc{} || !std::isfinite(value) || value < 0.0) return std::nullopt;
+  const std::string_view unit = trim(std::string_view(rest, static_cast<std::size_t>(end - rest)));
+  double factor = 0.0;
+  if (unit == "s" || unit == "sec" || unit == "secs" || unit == "second" || unit == "seconds") {
+    factor = 1.0;
+  } else if (unit == "min" || unit == "m" || unit == "mins" || unit == "minute" ||
+             unit == "minutes") {
+    factor = kSecondsPerMinute;
+  } else if (unit == "h" || unit == "hr" || unit == "hrs" || unit == "hour" || unit == "hours") {
+    factor = kSecondsPerHour;
+  } else if (unit == "d" || unit == "day" || unit == "days") {
+    factor = kSecondsPerDay;
+  } else {
+    return std::nullopt;
+  }
+  return value * factor;
+}
+
+std::string format_duration(std::int64_t seconds) {
+  if (seconds == 0) return "0s";
+  std::string out;
+  // Built from the magnitude as unsigned so the most negative value does not overflow.
+  std::uint64_t rest =
+      seconds < 0 ? 0 - static_cast<std::uint64_t>(seconds) : static_cast<std::uint64_t>(seconds);
+  if (seconds < 0) out += '-';
+  const struct {
+    std::uint64_t size;
+    const char* name;
+  } parts[] = {{86400, "d"}, {3600, "h"}, {60, "min"}, {1, "s"}};
+  for (const auto& part : parts) {
+    const std::uint64_t count = rest / part.size;
+    rest %= part.size;
+    if (count == 0) continue;
+    if (out.size() > (seconds < 0 ? 1u : 0u)) out += ' ';
+    out += std::to_string(count);
+    out += part.name;
+  }
+  return out;
+}
+
+CivilTime to_civil(Instant instant, int offset_s) {
+  const std::int64_t local = instant + offset_s;
+  const std::int64_t days = floor_div(local, kSecondsPerDayInt);
+  const std::int64_t second_of_day = local - days * kSecondsPerDayInt;
+  const date::year_month_day ymd{date::sys_days{date::days{static_cast<int>(days)}}};
+  return CivilTime{static_cast<int>(ymd.year()),
+                   static_cast<int>(static_cast<unsigned>(ymd.month())),
+                   static_cast<int>(static_cast<unsigned>(ymd.day())),
+                   static_cast<int>(second_of_day / 3600),
+                   static_cast<int>(second_of_day / 60 % 60),
+                   static_cast<int>(second_of_day % 60)};
+}
+
+Instant month_start(int year, int month, int offset_s) {
+  const date::year_month ym = date::year{year} / date::January + date::months{month - 1};
+  return days_from_civil(ym / date::day{1}) * kSecondsPerDayInt - offset_s;
+}
+
+std::string month_label(Instant instant, int offset_s) {
+  const CivilTime t = to_civil(instant, offset_s);
+  std::string out;
+  append_padded(out, t.year, 4);
+  out += '-';
+  append_padded(out, t.month, 2);
+  return out;
+}
+
+}  // namespace gutterwatt
