@@ -45,9 +45,9 @@ enum class ReservoirShape { half_round, rectangular, table };
 
 struct ReservoirConfig {
   ReservoirShape shape = ReservoirShape::half_round;
-  double width_m = 0.0;   ///< half_round: diameter; rectangular: inside width
-  double length_m = 0.0;  ///< half_round and rectangular
-  double rim_m = 0.0;     ///< overflow rim above the floor
+  double width_m = 0.0;               ///< half_round: diameter; rectangular: inside width
+  double length_m = 0.0;              ///< half_round and rectangular
+  double rim_m = 0.0;                 ///< overflow rim above the floor
   double overflow_coefficient = 1.7;  ///< weir C in Q = C L h^1.5, m^0.5/s
   double overflow_length_m = 0.0;     ///< weir length; defaults to length_m (0 for table: required)
   std::vector<double> table_level_m;  ///< table: levels above the floor, increasing from 0
@@ -63,7 +63,7 @@ struct ReleaseConfig {
   double break_level_m = 0.0;    ///< bell: bell rim; float_valve: closing level
   double standpipe_diameter_m = 0.0;
   double priming_flow_m3_per_s = 0.0;
-  double lip_coefficient = 1.77;  ///< weir C over the standpipe lip, m^0.5/s
+  double lip_coefficient = 1.77;    ///< weir C over the standpipe lip, m^0.5/s
   double orifice_diameter_m = 0.0;  ///< float_valve and orifice
   double orifice_coefficient = 0.61;
 };
@@ -73,10 +73,13 @@ struct HeadColumnConfig {
   double height_m = 0.0;  ///< from the nozzle up to the column's top, where the drop pipe enters
 };
 
+enum class TurbineKind { impulse };
+
 struct TurbineConfig {
   double runner_diameter_m = 0.0;
   std::optional<double> speed_rpm;  ///< nullopt: the runner turns at the best speed
   double peak_efficiency = 0.7;
+  TurbineKind kind = TurbineKind::impulse;
 };
 
 struct GeneratorConfig {

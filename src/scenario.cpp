@@ -1,0 +1,813 @@
+#include "gutterwatt/scenario.hpp"
+
+#include <yaml-cpp/yaml.h>
+
+#include <algorithm>
+#include <charconv>
+#include <cmath>
+#include <fstream>
+#include <initializer_list>
+#include <map>
+#include <set>
+#include <sstream>
+#include <utility>
+
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+namespace {
+
+/// The file name in messages about a `--set` override.
+const std::string kOverrideLabel = "--set";
+
+/// Shortest text that reads back as `x` (40, 62.5, 1e-10).
+std::string show(double x) {
+  char buf[32];
+  const auto result = std::to_chars(buf, buf + sizeof buf, x);
+  return std::string(buf, result.ptr);
+}
+
+/// A finite decimal number, or nullopt.
+std::optional<double> to_number(std::string_view text) {
+  if (text.size() > 1 && text.front() == '+' && text[1] != '-') text.remove_prefix(1);
+  double x = 0.0;
+  const char* end = text.data() + text.size();
+  const auto result = std::from_chars(text.data(), end, x);
+  if (text.empty() || result.ec != std::errc() || result.ptr != end || !std::isfinite(x)) {
+    return std::nullopt;
+  }
+  return x;
+}
+
+/// The interval a number must fall in; each end may be open, closed or absent.
+struct Limits {
+  std::optional<double> lo;
+  std::optional<double> hi;
+  bool lo_open = false;
+  bool hi_open = false;
+
+  bool contains(double x) const {
+    return (!lo || (lo_open ? x > *lo : x >= *lo)) && (!hi || (hi_open ? x < *hi : x <= *hi));
+  }
+
+  std::string describe() const {
+    if (lo && hi && !lo_open && !hi_open) {
+      return "must be between " + show(*lo) + " and " + show(*hi);
+    }
+    std::string out = "must be";
+    if (lo) out += (lo_open ? " > " : " >= ") + show(*lo);
+    if (lo && hi) out += " and";
+    if (hi) out += (hi_open ? " < " : " <= ") + show(*hi);
+    return out;
+  }
+};
+
+constexpr Limits kAny{};
+constexpr Limits kPositive{0.0, std::nullopt, true, false};
+constexpr Limits kNonNegative{0.0, std::nullopt, false, false};
+constexpr Limits kShare{0.0, 1.0, false, false};    // [0, 1]: state of charge
+constexpr Limits kFraction{0.0, 1.0, true, false};  // (0, 1]: efficiencies and coefficients
+constexpr Limits between(double lo, double hi) { return {lo, hi, false, false}; }
+
+/// One node of the scenario tree with its dotted path and where it was written, so that every
+/// conversion reports its errors the same way.
+class Value {
+ public:
+  Value(YAML::Node node, std::string path, std::string label, int line)
+      : node_(std::move(node)), path_(std::move(path)), label_(std::move(label)), line_(line) {}
+
+  const YAML::Node& node() const { return node_; }
+  const std::string& path() const { return path_; }
+  const std::string& label() const { return label_; }
+  int line() const { return line_; }
+  /// The text as written; empty unless the node is a scalar.
+  const std::string& raw() const { return node_.IsScalar() ? node_.Scalar() : kEmpty; }
+
+  [[noreturn]] void fail(const std::string& message) const {
+    throw InputError(label_, line_, path_, message);
+  }
+
+  /// Fails with `rule (got <the value as written>)` unless `ok`.
+  void expect(bool ok, const std::string& rule) const {
+    if (!ok) fail(rule + " (got " + raw() + ")");
+  }
+
+  /// The node as a message shows it: `"abc"`, `a list`, `a section`, `nothing`.
+  std::string got() const {
+    if (node_.IsScalar()) return "\"" + node_.Scalar() + "\"";
+    if (node_.IsSequence()) return "a list";
+    if (node_.IsMap()) return "a section";
+    return "nothing";
+  }
+
+  double number(const Limits& limits = kAny) const {
+    const auto x = to_number(scalar("a number"));
+    if (!x) fail("expected a number, got " + got());
+    check(*x, limits);
+    return *x;
+  }
+
+  /// A number, or nullopt when the text is `word`.
+  std::optional<double> number_or(const std::string& word, const Limits& limits) const {
+    if (raw() == word) return std::nullopt;
+    const auto x = to_number(scalar("a number or " + word));
+    if (!x) fail("expected a number or " + word + ", got " + got());
+    check(*x, limits);
+    return *x;
+  }
+
+  std::string text() const {
+    const std::string& s = scalar("a text");
+    if (s.empty()) fail("must not be empty");
+    return s;
+  }
+
+  double duration_s(const Limits& limits) const {
+    const auto d = parse_duration_s(scalar("a duration"));
+    if (!d) fail("expected a duration with a unit such as 30s, 5min, 1h or 1d, got " + got());
+    check(*d, limits);
+    return *d;
+  }
+
+  int utc_offset_s() const {
+    const auto offset = parse_utc_offset(scalar("a UTC offset"));
+    if (!offset) fail("expected a UTC offset such as +02:00, got " + got());
+    return *offset;
+  }
+
+  /// An ISO 8601 date-time; a naive stamp is local time at `default_offset_s`.
+  Instant time(int default_offset_s) const {
+    const auto t = parse_iso8601(scalar("a date-time"), default_offset_s);
+    if (!t) fail("expected an ISO 8601 date-time such as 2025-03-01T00:00, got " + got());
+    return t->instant;
+  }
+
+  template <class T>
+  T choice(std::initializer_list<std::pair<std::string_view, T>> options) const {
+    for (const auto& [name, option] : options) {
+      if (node_.IsScalar() && node_.Scalar() == name) return option;
+    }
+    std::string names;
+    std::size_t i = 0;
+    for (const auto& option : options) {
+      if (i > 0) names += i + 1 == options.size() ? " or " : ", ";
+      names += option.first;
+      ++i;
+    }
+    fail((options.size() > 1 ? "expected one of " : "expected ") + names + ", got " + got());
+  }
+
+  /// The elements of a list, each with its own path (`key[2]`) and line.
+  std::vector<Value> items() const {
+    if (!node_.IsSequence()) fail("expected a list, got " + got());
+    std::vector<Value> out;
+    for (std::size_t i = 0; i < node_.size(); ++i) {
+      const YAML::Node item = node_[i];
+      // A value from an override has no line; its elements have none either.
+      const int line = line_ > 0 && !item.Mark().is_null() ? item.Mark().line + 1 : line_;
+      out.emplace_back(item, path_ + "[" + std::to_string(i) + "]", label_, line);
+    }
+    return out;
+  }
+
+  std::vector<double> numbers(const Limits& limits) const {
+    std::vector<double> out;
+    for (const Value& item : items()) out.push_back(item.number(limits));
+    return out;
+  }
+
+  std::vector<std::string> texts() const {
+    std::vector<std::string> out;
+    for (const Value& item : items()) out.push_back(item.text());
+    return out;
+  }
+
+ private:
+  static inline const std::string kEmpty;
+
+  const std::string& scalar(const std::string& expected) const {
+    if (!node_.IsScalar()) fail("expected " + expected + ", got " + got());
+    return node_.Scalar();
+  }
+
+  void check(double x, const Limits& limits) const {
+    expect(limits.contains(x), limits.describe());
+  }
+
+  YAML::Node node_;
+  std::string path_;
+  std::string label_;
+  int line_;
+};
+
+/// Converts one key's value into the scenario; checks that need only this value happen here.
+using Apply = void (*)(const Value&, Scenario&);
+
+struct Key {
+  std::string_view name;
+  bool required;
+  Apply apply;
+};
+
+struct Section {
+  std::string_view name;
+  bool required;
+  std::vector<Key> keys;
+};
+
+constexpr bool kRequired = true;
+constexpr bool kOptional = false;
+
+HeadColumnConfig& head_column(Scenario& s) {
+  if (!s.head_column) s.head_column.emplace();
+  return *s.head_column;
+}
+
+// The one list of sections and keys: names, whether they are required, and their conversion to SI.
+// Sections are converted in this order (simulation times need the site's offset). Checks that
+// involve more than one key are in check_combinations().
+const std::vector<Section>& schema() {
+  using V = const Value&;
+  using S = Scenario&;
+  static const std::vector<Section> kSchema = {
+      {"site",
+       kRequired,
+       {
+           {"name", kRequired, [](V v, S s) { s.site.name = v.text(); }},
+           {"temperature_C", kOptional,
+            [](V v, S s) { s.site.temperature_C = v.number(between(0.0, 40.0)); }},
+           {"utc_offset", kOptional, [](V v, S s) { s.site.utc_offset_s = v.utc_offset_s(); }},
+       }},
+      {"rain",
+       kRequired,
+       {
+           {"file", kOptional, [](V v, S s) { s.rain.files = {v.text()}; }},
+           {"files", kOptional,
+            [](V v, S s) {
+              const auto files = v.texts();
+              if (files.empty()) v.fail("must list at least one file");
+              s.rain.files.assign(files.begin(), files.end());
+            }},
+           {"format", kOptional,
+            [](V v, S s) {
+              s.rain.format = v.choice<RainFormat>({{"series", RainFormat::series},
+                                                    {"tips", RainFormat::tips},
+                                                    {"daily", RainFormat::daily}});
+            }},
+           {"time_column", kOptional, [](V v, S s) { s.rain.series.time_column = v.text(); }},
+           {"value_column", kOptional, [](V v, S s) { s.rain.series.value_column = v.text(); }},
+           {"value", kOptional,
+            [](V v, S s) {
+              s.rain.series.value = v.choice<RainValue>(
+                  {{"depth", RainValue::depth}, {"intensity", RainValue::intensity}});
+            }},
+           {"unit", kOptional,
+            [](V v, S s) {
+              s.rain.series.unit_m = v.choice<double>({{"mm", kMetresPerMm},
+                                                       {"in", kMetresPerInch},
+                                                       {"mm/h", kMetresPerMm},
+                                                       {"in/h", kMetresPerInch}});
+              s.rain.series.unit_name = v.raw();
+            }},
+           {"gaps", kOptional,
+            [](V v, S s) {
+              s.rain.series.gaps = v.choice<GapPolicy>({{"error", GapPolicy::error},
+                                                        {"zero", GapPolicy::zero},
+                                                        {"skip", GapPolicy::skip}});
+            }},
+           {"step", kOptional, [](V v, S s) { s.rain.series.step_s = v.duration_s(kPositive); }},
+           {"utc_offset", kOptional,
+            [](V v, S s) { s.rain.series.utc_offset_s = v.utc_offset_s(); }},
+       }},
+      {"roof",
+       kRequired,
+       {
+           {"area_m2", kRequired, [](V v, S s) { s.roof.area_m2 = v.number(kPositive); }},
+           {"runoff_coefficient", kOptional,
+            [](V v, S s) { s.roof.runoff_coefficient = v.number(kFraction); }},
+           {"initial_loss_mm", kOptional,
+            [](V v, S s) { s.roof.initial_loss_m = v.number(kNonNegative) * kMetresPerMm; }},
+           {"drying_mm_per_day", kOptional,
+            [](V v, S s) {
+              s.roof.drying_m_per_s = v.number(kNonNegative) * kMetresPerMm / kSecondsPerDay;
+            }},
+           {"lag_s", kOptional, [](V v, S s) { s.roof.lag_s = v.number(kNonNegative); }},
+           {"lag", kOptional, [](V v, S s) { s.roof.lag_s = v.duration_s(kNonNegative); }},
+       }},
+      {"first_flush",
+       kOptional,
+       {
+           {"volume_L", kOptional,
+            [](V v, S s) {
+              s.first_flush.volume_m3 = v.number(kNonNegative) * kCubicMetresPerLitre;
+            }},
+           {"reset_after_dry_h", kOptional,
+            [](V v, S s) {
+              s.first_flush.reset_after_dry_s = v.number(kNonNegative) * kSecondsPerHour;
+            }},
+       }},
+      {"reservoir",
+       kRequired,
+       {
+           {"shape", kOptional,
+            [](V v, S s) {
+              s.reservoir.shape =
+                  v.choice<ReservoirShape>({{"half_round", ReservoirShape::half_round},
+                                            {"rectangular", ReservoirShape::rectangular},
+                                            {"table", ReservoirShape::table}});
+            }},
+           {"width_mm", kOptional,
+            [](V v, S s) { s.reservoir.width_m = v.number(kPositive) * kMetresPerMm; }},
+           {"length_m", kOptional, [](V v, S s) { s.reservoir.length_m = v.number(kPositive); }},
+           {"rim_mm", kRequired,
+            [](V v, S s) { s.reservoir.rim_m = v.number(kPositive) * kMetresPerMm; }},
+           {"overflow_coefficient", kOptional,
+            [](V v, S s) { s.reservoir.overflow_coefficient = v.number(kPositive); }},
+           {"overflow_length_m", kOptional,
+            [](V v, S s) { s.reservoir.overflow_length_m = v.number(kPositive); }},
+           {"initial_level_mm", kOptional,
+            [](V v, S s) { s.reservoir.initial_level_m = v.number(kNonNegative) * kMetresPerMm; }},
+           {"levels_mm", kOptional,
+            [](V v, S s) {
+              s.reservoir.table_level_m.clear();
+              for (double level : v.numbers(kNonNegative)) {
+                s.reservoir.table_level_m.push_back(level * kMetresPerMm);
+              }
+            }},
+           {"areas_m2", kOptional,
+            [](V v, S s) { s.reservoir.table_area_m2 = v.numbers(kPositive); }},
+       }},
+      {"release",
+       kRequired,
+       {
+           {"kind", kOptional,
+            [](V v, S s) {
+              s.release.kind = v.choice<ReleaseKind>({{"bell", ReleaseKind::bell},
+                                                      {"float_valve", ReleaseKind::float_valve},
+                                                      {"orifice", ReleaseKind::orifice},
+                                                      {"none", ReleaseKind::none}});
+            }},
+           {"trigger_level_mm", kOptional,
+            [](V v, S s) { s.release.trigger_level_m = v.number(kPositive) * kMetresPerMm; }},
+           {"break_level_mm", kOptional,
+            [](V v, S s) { s.release.break_level_m = v.number(kNonNegative) * kMetresPerMm; }},
+           {"standpipe_diameter_mm", kOptional,
+            [](V v, S s) { s.release.standpipe_diameter_m = v.number(kPositive) * kMetresPerMm; }},
+           {"priming_flow_L_per_min", kOptional,
+            [](V v, S s) {
+              s.release.priming_flow_m3_per_s =
+                  v.number(kPositive) * kCubicMetresPerLitre / kSecondsPerMinute;
+            }},
+           {"lip_coefficient", kOptional,
+            [](V v, S s) { s.release.lip_coefficient = v.number(kPositive); }},
+           {"orifice_diameter_mm", kOptional,
+            [](V v, S s) { s.release.orifice_diameter_m = v.number(kPositive) * kMetresPerMm; }},
+           {"orifice_coefficient", kOptional,
+            [](V v, S s) { s.release.orifice_coefficient = v.number(kFraction); }},
+       }},
+      {"drop_pipe",
+       kRequired,
+       {
+           {"diameter_mm", kRequired,
+            [](V v, S s) { s.drop_pipe.diameter_m = v.number(kPositive) * kMetresPerMm; }},
+           {"length_m", kRequired, [](V v, S s) { s.drop_pipe.length_m = v.number(kPositive); }},
+           {"roughness_mm", kOptional,
+            [](V v, S s) { s.drop_pipe.roughness_m = v.number(kNonNegative) * kMetresPerMm; }},
+           {"minor_loss_k", kOptional,
+            [](V v, S s) { s.drop_pipe.minor_loss_k = v.number(kNonNegative); }},
+           {"drop_m", kRequired, [](V v, S s) { s.drop_m = v.number(kPositive); }},
+           {"friction", kOptional,
+            [](V v, S s) {
+              s.drop_pipe.friction =
+                  v.choice<FrictionLaw>({{"colebrook", FrictionLaw::colebrook},
+                                         {"swamee_jain", FrictionLaw::swamee_jain}});
+            }},
+       }},
+      {"head_column",
+       kOptional,
+       {
+           {"diameter_mm", kRequired,
+            [](V v, S s) { head_column(s).diameter_m = v.number(kPositive) * kMetresPerMm; }},
+           {"height_m", kRequired, [](V v, S s) { head_column(s).height_m = v.number(kPositive); }},
+       }},
+      {"nozzle",
+       kRequired,
+       {
+           {"diameter_mm", kRequired,
+            [](V v, S s) { s.nozzle.diameter_m = v.number(kPositive) * kMetresPerMm; }},
+           {"discharge_coefficient", kOptional,
+            [](V v, S s) { s.nozzle.discharge_coefficient = v.number(kFraction); }},
+           {"velocity_coefficient", kOptional,
+            [](V v, S s) { s.nozzle.velocity_coefficient = v.number(kFraction); }},
+       }},
+      {"turbine",
+       kRequired,
+       {
+           {"kind", kOptional,
+            [](V v, S s) {
+              s.turbine.kind = v.choice<TurbineKind>({{"impulse", TurbineKind::impulse}});
+            }},
+           {"runner_diameter_mm", kRequired,
+            [](V v, S s) { s.turbine.runner_diameter_m = v.number(kPositive) * kMetresPerMm; }},
+           {"speed_rpm", kOptional,
+            [](V v, S s) { s.turbine.speed_rpm = v.number_or("best", kPositive); }},
+           {"peak_efficiency", kOptional,
+            [](V v, S s) { s.turbine.peak_efficiency = v.number(kFraction); }},
+       }},
+      {"generator",
+       kOptional,
+       {
+           {"efficiency", kOptional,
+            [](V v, S s) { s.generator.efficiency = v.number(kFraction); }},
+           {"cut_in_W", kOptional, [](V v, S s) { s.generator.cut_in_W = v.number(kNonNegative); }},
+       }},
+      {"battery",
+       kRequired,
+       {
+           {"capacity_Wh", kRequired,
+            [](V v, S s) { s.battery.capacity_J = v.number(kPositive) * kJoulesPerWh; }},
+           {"initial_soc", kOptional, [](V v, S s) { s.battery.initial_soc = v.number(kShare); }},
+           {"charge_efficiency", kOptional,
+            [](V v, S s) { s.battery.charge_efficiency = v.number(kFraction); }},
+           {"max_charge_W", kOptional,
+            [](V v, S s) { s.battery.max_charge_W = v.number(kPositive); }},
+           {"load_W", kOptional, [](V v, S s) { s.battery.load_W = v.number(kNonNegative); }},
+           {"load_profile_W", kOptional,
+            [](V v, S s) {
+              s.battery.load_profile_W = v.numbers(kNonNegative);
+              const std::size_t n = s.battery.load_profile_W.size();
+              if (n != 24) {
+                v.fail("must have exactly 24 values, one per hour (got " + std::to_string(n) + ")");
+              }
+            }},
+       }},
+      {"simulation",
+       kOptional,
+       {
+           {"start", kOptional, [](V v, S s) { s.simulation.start = v.time(s.site.utc_offset_s); }},
+           {"end", kOptional, [](V v, S s) { s.simulation.end = v.time(s.site.utc_offset_s); }},
+           {"output_interval", kOptional,
+            [](V v, S s) { s.simulation.output_interval_s = v.duration_s(kPositive); }},
+           {"rtol", kOptional,
+            [](V v, S s) { s.simulation.rtol = v.number(between(1e-10, 1e-3)); }},
+       }},
+  };
+  return kSchema;
+}
+
+/// Levenshtein edit distance.
+std::size_t edit_distance(std::string_view a, std::string_view b) {
+  std::vector<std::size_t> row(b.size() + 1);
+  for (std::size_t j = 0; j <= b.size(); ++j) row[j] = j;
+  for (std::size_t i = 1; i <= a.size(); ++i) {
+    std::size_t diagonal = row[0];
+    row[0] = i;
+    for (std::size_t j = 1; j <= b.size(); ++j) {
+      const std::size_t above = row[j];
+      row[j] = std::min({row[j] + 1, row[j - 1] + 1, diagonal + (a[i - 1] == b[j - 1] ? 0 : 1)});
+      diagonal = above;
+    }
+  }
+  return row[b.size()];
+}
+
+/// The valid name nearest to `name`; the first one listed wins a tie.
+std::string_view nearest(std::string_view name, const std::vector<std::string_view>& valid) {
+  std::string_view best;
+  std::size_t best_distance = std::string_view::npos;
+  for (std::string_view candidate : valid) {
+    const std::size_t d = edit_distance(name, candidate);
+    if (d < best_distance) {
+      best = candidate;
+      best_distance = d;
+    }
+  }
+  return best;
+}
+
+/// Every key and section present in the tree, by dotted path, for the checks across keys.
+class Seen {
+ public:
+  void add(const Value& v) { values_.emplace(v.path(), v); }
+  bool has(const std::string& path) const { return values_.count(path) > 0; }
+  const Value& at(const std::string& path) const { return values_.at(path); }
+  double number(const std::string& path) const { return at(path).number(); }
+  /// The text as written, or `fallback` when the key is absent (for choices with a default).
+  std::string text_or(const std::string& path, const std::string& fallback) const {
+    return has(path) ? at(path).raw() : fallback;
+  }
+
+  /// Throws when `path` is absent; the line is that of its section.
+  void require(const std::string& path, const std::string& why) const {
+    if (has(path)) return;
+    const Value& section = at(path.substr(0, path.find('.')));
+    throw InputError(section.label(), section.line(), path, "missing required key (" + why + ")");
+  }
+
+  void exclusive(const std::string& a, const std::string& b) const {
+    if (has(a) && has(b)) at(b).fail("give either " + a + " or " + b + ", not both");
+  }
+
+ private:
+  std::map<std::string, Value> values_;
+};
+
+void check_rain(const Seen& seen, Scenario& s) {
+  seen.exclusive("rain.file", "rain.files");
+  if (!seen.has("rain.files")) seen.require("rain.file", "or give rain.files");
+  SeriesFormat& series = s.rain.series;
+  const bool per_hour = series.unit_name.ends_with("/h");
+  if (seen.has("rain.unit")) {
+    seen.at("rain.unit")
+        .expect(series.value == RainValue::intensity || !per_hour,
+                "must be mm or in with value: depth");
+  }
+  if (series.value == RainValue::intensity && !per_hour) series.unit_name += "/h";
+  if (!seen.has("rain.utc_offset")) series.utc_offset_s = s.site.utc_offset_s;
+}
+
+void check_level_table(const Seen& seen) {
+  const Value& levels_key = seen.at("reservoir.levels_mm");
+  const std::vector<Value> levels = levels_key.items();
+  if (levels.size() < 2) {
+    levels_key.fail("must have at least 2 levels (got " + std::to_string(levels.size()) + ")");
+  }
+  levels.front().expect(levels.front().number() == 0.0, "must be 0, the reservoir floor");
+  for (std::size_t i = 1; i < levels.size(); ++i) {
+    levels[i].expect(levels[i].number() > levels[i - 1].number(),
+                     "must be above the level before it, " + levels[i - 1].raw());
+  }
+  const Value& areas = seen.at("reservoir.areas_m2");
+  const std::size_t n_areas = areas.items().size();
+  if (n_areas != levels.size()) {
+    areas.fail("must have one value per level in reservoir.levels_mm, " +
+               std::to_string(levels.size()) + " (got " + std::to_string(n_areas) + ")");
+  }
+  const Value& rim = seen.at("reservoir.rim_mm");
+  rim.expect(rim.number() <= levels.back().number(),
+             "must not be above the top of reservoir.levels_mm, " + levels.back().raw());
+}
+
+void check_reservoir(const Seen& seen, Scenario& s) {
+  ReservoirConfig& r = s.reservoir;
+  const std::string why = "needed by shape: " + seen.text_or("reservoir.shape", "half_round");
+  if (r.shape == ReservoirShape::table) {
+    seen.require("reservoir.levels_mm", why);
+    seen.require("reservoir.areas_m2", why);
+    if (!seen.has("reservoir.length_m")) seen.require("reservoir.overflow_length_m", why);
+    check_level_table(seen);
+  } else {
+    seen.require("reservoir.width_mm", why);
+    seen.require("reservoir.length_m", why);
+  }
+  const Value& rim = seen.at("reservoir.rim_mm");
+  if (r.shape == ReservoirShape::half_round) {
+    const double half_width_mm = seen.number("reservoir.width_mm") / 2.0;
+    rim.expect(rim.number() <= half_width_mm, "must be <= reservoir.width_mm / 2 = " +
+                                                  show(half_width_mm) + " for shape: half_round");
+  }
+  if (seen.has("reservoir.initial_level_mm")) {
+    const Value& initial = seen.at("reservoir.initial_level_mm");
+    initial.expect(initial.number() <= rim.number(),
+                   "must not be above reservoir.rim_mm = " + rim.raw());
+  }
+  if (!seen.has("reservoir.overflow_length_m")) r.overflow_length_m = r.length_m;
+}
+
+void check_release(const Seen& seen, const Scenario& s) {
+  const ReleaseKind kind = s.release.kind;
+  std::vector<std::string> needs;
+  if (kind == ReleaseKind::bell) {
+    needs = {"trigger_level_mm", "break_level_mm", "standpipe_diameter_mm",
+             "priming_flow_L_per_min"};
+  } else if (kind == ReleaseKind::float_valve) {
+    needs = {"trigger_level_mm", "break_level_mm", "orifice_diameter_mm"};
+  } else if (kind == ReleaseKind::orifice) {
+    needs = {"orifice_diameter_mm"};
+  }
+  const std::string why = "needed by kind: " + seen.text_or("release.kind", "bell");
+  for (const std::string& key : needs) seen.require("release." + key, why);
+  if (kind != ReleaseKind::bell && kind != ReleaseKind::float_valve) return;
+  const Value& trigger = seen.at("release.trigger_level_mm");
+  const Value& brk = seen.at("release.break_level_mm");
+  brk.expect(brk.number() < trigger.number(),
+             "must be below release.trigger_level_mm = " + trigger.raw());
+  const Value& rim = seen.at("reservoir.rim_mm");
+  trigger.expect(trigger.number() <= rim.number(),
+                 "must not be above reservoir.rim_mm = " + rim.raw());
+}
+
+void check_conveyance(const Seen& seen) {
+  const Value& drop = seen.at("drop_pipe.drop_m");
+  const Value& length = seen.at("drop_pipe.length_m");
+  length.expect(length.number() >= drop.number(), "must be >= drop_pipe.drop_m = " + drop.raw());
+  if (seen.has("head_column.height_m")) {
+    const Value& height = seen.at("head_column.height_m");
+    height.expect(height.number() < drop.number(),
+                  "must be below drop_pipe.drop_m = " + drop.raw());
+  }
+  const Value& pipe = seen.at("drop_pipe.diameter_mm");
+  const Value& nozzle = seen.at("nozzle.diameter_mm");
+  nozzle.expect(nozzle.number() < pipe.number(),
+                "must be smaller than drop_pipe.diameter_mm = " + pipe.raw());
+}
+
+void check_simulation(const Seen& seen, const Scenario& s) {
+  const auto& sim = s.simulation;
+  if (sim.start && sim.end) {
+    seen.at("simulation.end")
+        .expect(*sim.end > *sim.start,
+                "must be after simulation.start = " + seen.at("simulation.start").raw());
+  }
+}
+
+/// Checks that involve several keys, and defaults that depend on other keys.
+void check_combinations(const Seen& seen, Scenario& s) {
+  check_rain(seen, s);
+  seen.exclusive("roof.lag_s", "roof.lag");
+  check_reservoir(seen, s);
+  check_release(seen, s);
+  check_conveyance(seen);
+  check_simulation(seen, s);
+}
+
+/// Walks the tree against the schema and fills a scenario.
+class Loader {
+ public:
+  Loader(std::string label, std::set<std::string> overridden)
+      : label_(std::move(label)), overridden_(std::move(overridden)) {}
+
+  Scenario build(const YAML::Node& root) const {
+    const Value top(root, "", label_, root.Mark().is_null() ? 0 : root.Mark().line + 1);
+    if (root.IsNull()) top.fail("the scenario is empty");
+    if (!root.IsMap()) top.fail("expected a section of keys at the top level, got " + top.got());
+    std::vector<std::string_view> section_names;
+    for (const Section& section : schema()) section_names.push_back(section.name);
+    const auto sections = entries(top, section_names);
+
+    Scenario s;
+    s.drop_pipe.roughness_m = 0.0015 * kMetresPerMm;
+    s.drop_pipe.minor_loss_k = 1.5;
+    Seen seen;
+    for (const Section& section : schema()) {
+      const auto found = sections.find(std::string(section.name));
+      if (found == sections.end()) {
+        if (section.required) {
+          throw InputError(label_, 0, std::string(section.name), "missing required section");
+        }
+        continue;
+      }
+      const Value& sec = found->second;
+      if (!sec.node().IsMap() && !sec.node().IsNull()) {
+        sec.fail("expected a section of keys, got " + sec.got());
+      }
+      seen.add(sec);
+      std::vector<std::string_view> key_names;
+      for (const Key& key : section.keys) key_names.push_back(key.name);
+      const auto values = entries(sec, key_names);
+      for (const Key& key : section.keys) {
+        const auto value = values.find(std::string(key.name));
+        if (value != values.end()) {
+          key.apply(value->second, s);
+          seen.add(value->second);
+        } else if (key.required) {
+          throw InputError(sec.label(), sec.line(), sec.path() + "." + std::string(key.name),
+                           "missing required key");
+        }
+      }
+    }
+    check_combinations(seen, s);
+    return s;
+  }
+
+ private:
+  /// The entries of a section by name, after rejecting unknown and repeated keys in file order.
+  std::map<std::string, Value> entries(const Value& section,
+                                       const std::vector<std::string_view>& valid) const {
+    std::map<std::string, Value> out;
+    if (!section.node().IsMap()) return out;
+    for (auto it = section.node().begin(); it != section.node().end(); ++it) {
+      const Value item = child(section, it->first, it->second);
+      const std::string name = it->first.Scalar();
+      if (std::find(valid.begin(), valid.end(), name) == valid.end()) {
+        item.fail("unknown key; did you mean " + std::string(nearest(name, valid)) + "?");
+      }
+      const auto [first, inserted] = out.emplace(name, item);
+      if (!inserted) {
+        item.fail("duplicate key (first given on line " + std::to_string(first->second.line()) +
+                  ")");
+      }
+    }
+    return out;
+  }
+
+  Value child(const Value& parent, const YAML::Node& key, const YAML::Node& value) const {
+    const int key_line = key.Mark().is_null() ? 0 : key.Mark().line + 1;
+    if (!key.IsScalar()) {
+      Value(key, parent.path(), parent.label(), key_line)
+          .fail("expected a key name, got a " + std::string(key.IsMap() ? "section" : "list"));
+    }
+    const std::string path =
+        parent.path().empty() ? key.Scalar() : parent.path() + "." + key.Scalar();
+    if (parent.label() == kOverrideLabel || overridden_.count(path) > 0) {
+      return Value(value, path, kOverrideLabel, 0);
+    }
+    return Value(value, path, label_, key_line);
+  }
+
+  std::string label_;
+  std::set<std::string> overridden_;
+};
+
+/// Splits `key.path=value`; throws for anything else.
+std::pair<std::vector<std::string>, std::string> split_override(const std::string& text) {
+  const std::size_t eq = text.find('=');
+  std::vector<std::string> parts;
+  if (eq != std::string::npos) {
+    std::string_view key(text.data(), eq);
+    while (true) {
+      const std::size_t dot = key.find('.');
+      parts.emplace_back(key.substr(0, dot));
+      if (dot == std::string_view::npos) break;
+      key.remove_prefix(dot + 1);
+    }
+  }
+  const auto empty = [](const std::string& part) { return part.empty(); };
+  if (parts.empty() || std::any_of(parts.begin(), parts.end(), empty)) {
+    throw InputError(kOverrideLabel, 0, "", "expected key.path=value, got \"" + text + "\"");
+  }
+  return {parts, text.substr(eq + 1)};
+}
+
+/// Applies each `key.path=value` to the tree, creating missing sections; returns the paths of
+/// every key and section an override wrote or created.
+std::set<std::string> apply_overrides(YAML::Node& root, const std::vector<std::string>& overrides) {
+  std::set<std::string> written;
+  if (!overrides.empty() && root.IsNull()) root.reset(YAML::Node(YAML::NodeType::Map));
+  for (const std::string& text : overrides) {
+    const auto [parts, value_text] = split_override(text);
+    const std::string key = text.substr(0, text.find('='));
+    YAML::Node value;
+    try {
+      value = YAML::Load(value_text);
+    } catch (const YAML::ParserException& e) {
+      throw InputError(kOverrideLabel, 0, key, "cannot read the value: " + e.msg);
+    }
+    if (value.IsMap()) {
+      throw InputError(kOverrideLabel, 0, key,
+                       "expected a single value or a list such as [1, 2], got a section");
+    }
+    if (!root.IsMap()) return written;  // the loader reports a top level that is not a section
+    YAML::Node node = root;
+    std::string path;
+    for (std::size_t i = 0; i + 1 < parts.size(); ++i) {
+      path += (i > 0 ? "." : "") + parts[i];
+      YAML::Node next = node[parts[i]];
+      if (!next.IsDefined() || next.IsNull()) {
+        next = YAML::Node(YAML::NodeType::Map);
+        written.insert(path);
+      } else if (!next.IsMap()) {
+        throw InputError(kOverrideLabel, 0, key, path + " is a single value, not a section");
+      }
+      node.reset(next);
+    }
+    node[parts.back()] = value;
+    written.insert(key);
+  }
+  return written;
+}
+
+}  // namespace
+
+Scenario parse_scenario(std::string_view yaml_text, const std::string& file_label,
+                        const std::filesystem::path& base_dir,
+                        const std::vector<std::string>& overrides) {
+  YAML::Node root;
+  try {
+    root = YAML::Load(std::string(yaml_text));
+  } catch (const YAML::ParserException& e) {
+    throw InputError(file_label, e.mark.is_null() ? 0 : e.mark.line + 1, "",
+                     "YAML syntax error: " + e.msg);
+  }
+  const std::set<std::string> overridden = apply_overrides(root, overrides);
+  Scenario s = Loader(file_label, overridden).build(root);
+  s.file = file_label;
+  for (std::filesystem::path& rain_file : s.rain.files) {
+    rain_file = (base_dir / rain_file).lexically_normal();
+  }
+  return s;
+}
+
+Scenario load_scenario(const std::filesystem::path& file,
+                       const std::vector<std::string>& overrides) {
+  std::ifstream in(file, std::ios::binary);
+  if (!in || std::filesystem::is_directory(file)) {
+    throw InputError(file.string(), 0, "", "cannot read the scenario file");
+  }
+  std::ostringstream text;
+  text << in.rdbuf();
+  return parse_scenario(text.str(), file.string(), file.parent_path(), overrides);
+}
+
+}  // namespace gutterwatt

@@ -1,0 +1,492 @@
+#include "gutterwatt/scenario.hpp"
+
+#include <gtest/gtest.h>
+
+#include <fstream>
+#include <sstream>
+
+#include "gutterwatt/error.hpp"
+
+namespace gutterwatt {
+namespace {
+
+const std::filesystem::path kFixtures =
+    std::filesystem::path(GUTTERWATT_SOURCE_DIR) / "tests/data/scenario";
+
+std::string read_file(const std::filesystem::path& path) {
+  std::ifstream in(path);
+  std::ostringstream text;
+  text << in.rdbuf();
+  return text.str();
+}
+
+/// tests/data/scenario/minimal.yaml with the first `from` replaced by `to`.
+std::string minimal_with(std::string_view from, std::string_view to) {
+  std::string text = read_file(kFixtures / "minimal.yaml");
+  const std::size_t at = text.find(from);
+  EXPECT_NE(at, std::string::npos) << from;
+  if (at != std::string::npos) text.replace(at, from.size(), to);
+  return text;
+}
+
+Scenario parse(const std::string& text, const std::vector<std::string>& overrides = {}) {
+  return parse_scenario(text, "demo.yaml", "base", overrides);
+}
+
+/// The message of the InputError that loading `text` throws.
+std::string error_of(const std::string& text, const std::vector<std::string>& overrides = {}) {
+  try {
+    parse(text, overrides);
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "no error";
+}
+
+std::string minimal() { return minimal_with("", ""); }
+
+TEST(Scenario, LoadsEveryKeyOfACompleteFileInSiUnits) {
+  const Scenario s = load_scenario(kFixtures / "complete.yaml");
+  EXPECT_EQ(s.file, kFixtures / "complete.yaml");
+  EXPECT_EQ(s.site.name, "Test shed");
+  EXPECT_DOUBLE_EQ(s.site.temperature_C, 20.0);
+  EXPECT_EQ(s.site.utc_offset_s, 7200);
+
+  EXPECT_EQ(s.rain.format, RainFormat::series);
+  EXPECT_EQ(s.rain.series.time_column, "stamp");
+  EXPECT_EQ(s.rain.series.value_column, "intensity_in_h");
+  EXPECT_EQ(s.rain.series.value, RainValue::intensity);
+  EXPECT_DOUBLE_EQ(s.rain.series.unit_m, 0.0254);
+  EXPECT_EQ(s.rain.series.unit_name, "in/h");
+  EXPECT_EQ(s.rain.series.gaps, GapPolicy::zero);
+  EXPECT_EQ(s.rain.series.step_s, 300.0);
+  EXPECT_EQ(s.rain.series.utc_offset_s, -18000);
+
+  EXPECT_DOUBLE_EQ(s.roof.area_m2, 40.0);
+  EXPECT_DOUBLE_EQ(s.roof.runoff_coefficient, 0.8);
+  EXPECT_DOUBLE_EQ(s.roof.initial_loss_m, 1.5e-3);
+  EXPECT_DOUBLE_EQ(s.roof.drying_m_per_s, 5e-8);  // 4.32 mm a day
+  EXPECT_DOUBLE_EQ(s.roof.lag_s, 120.0);
+
+  EXPECT_DOUBLE_EQ(s.first_flush.volume_m3, 0.01);
+  EXPECT_DOUBLE_EQ(s.first_flush.reset_after_dry_s, 6 * 3600.0);
+
+  EXPECT_EQ(s.reservoir.shape, ReservoirShape::half_round);
+  EXPECT_DOUBLE_EQ(s.reservoir.width_m, 0.125);
+  EXPECT_DOUBLE_EQ(s.reservoir.length_m, 8.0);
+  EXPECT_DOUBLE_EQ(s.reservoir.rim_m, 0.062);
+  EXPECT_DOUBLE_EQ(s.reservoir.overflow_coefficient, 1.6);
+  EXPECT_DOUBLE_EQ(s.reservoir.overflow_length_m, 0.5);
+  EXPECT_DOUBLE_EQ(s.reservoir.initial_level_m, 0.010);
+
+  EXPECT_EQ(s.release.kind, ReleaseKind::bell);
+  EXPECT_DOUBLE_EQ(s.release.trigger_level_m, 0.050);
+  EXPECT_DOUBLE_EQ(s.release.break_level_m, 0.008);
+  EXPECT_DOUBLE_EQ(s.release.standpipe_diameter_m, 0.019);
+  EXPECT_DOUBLE_EQ(s.release.priming_flow_m3_per_s, 5e-5);  // 3 L/min
+  EXPECT_DOUBLE_EQ(s.release.lip_coefficient, 1.8);
+  EXPECT_DOUBLE_EQ(s.release.orifice_diameter_m, 0.012);
+  EXPECT_DOUBLE_EQ(s.release.orifice_coefficient, 0.6);
+
+  EXPECT_DOUBLE_EQ(s.drop_pipe.diameter_m, 0.019);
+  EXPECT_DOUBLE_EQ(s.drop_pipe.length_m, 4.5);
+  EXPECT_DOUBLE_EQ(s.drop_pipe.roughness_m, 2e-6);
+  EXPECT_DOUBLE_EQ(s.drop_pipe.minor_loss_k, 2.0);
+  EXPECT_EQ(s.drop_pipe.friction, FrictionLaw::swamee_jain);
+  EXPECT_DOUBLE_EQ(s.drop_m, 4.0);
+
+  ASSERT_TRUE(s.head_column.has_value());
+  EXPECT_DOUBLE_EQ(s.head_column->diameter_m, 0.040);
+  EXPECT_DOUBLE_EQ(s.head_column->height_m, 3.5);
+
+  EXPECT_DOUBLE_EQ(s.nozzle.diameter_m, 0.005);
+  EXPECT_DOUBLE_EQ(s.nozzle.discharge_coefficient, 0.9);
+  EXPECT_DOUBLE_EQ(s.nozzle.velocity_coefficient, 0.96);
+
+  EXPECT_EQ(s.turbine.kind, TurbineKind::impulse);
+  EXPECT_DOUBLE_EQ(s.turbine.runner_diameter_m, 0.070);
+  ASSERT_TRUE(s.turbine.speed_rpm.has_value());
+  EXPECT_DOUBLE_EQ(*s.turbine.speed_rpm, 1500.0);
+  EXPECT_DOUBLE_EQ(s.turbine.peak_efficiency, 0.75);
+
+  EXPECT_DOUBLE_EQ(s.generator.efficiency, 0.6);
+  EXPECT_DOUBLE_EQ(s.generator.cut_in_W, 0.3);
+
+  EXPECT_DOUBLE_EQ(s.battery.capacity_J, 60 * 3600.0);
+  EXPECT_DOUBLE_EQ(s.battery.initial_soc, 0.25);
+  EXPECT_DOUBLE_EQ(s.battery.charge_efficiency, 0.85);
+  EXPECT_DOUBLE_EQ(s.battery.max_charge_W, 30.0);
+  EXPECT_DOUBLE_EQ(s.battery.load_W, 0.1);
+  ASSERT_EQ(s.battery.load_profile_W.size(), 24u);
+  EXPECT_DOUBLE_EQ(s.battery.load_profile_W[18], 0.5);
+
+  // Naive stamps are local time at the site's +02:00.
+  EXPECT_EQ(s.simulation.start, Instant{1740780000});  // 2025-02-28T22:00Z
+  EXPECT_EQ(s.simulation.end, Instant{1764539940});    // 2025-11-30T21:59Z
+  EXPECT_DOUBLE_EQ(s.simulation.output_interval_s, 1800.0);
+  EXPECT_DOUBLE_EQ(s.simulation.rtol, 1e-8);
+}
+
+TEST(Scenario, ResolvesRainPathsAgainstTheScenarioFolder) {
+  const Scenario s = load_scenario(kFixtures / "complete.yaml");
+  ASSERT_EQ(s.rain.files.size(), 2u);
+  EXPECT_EQ(s.rain.files[0], kFixtures / "rain-2024.csv");
+  EXPECT_EQ(s.rain.files[1], (kFixtures / "../shared/rain-2025.csv").lexically_normal());
+}
+
+TEST(Scenario, KeepsAnAbsoluteRainPath) {
+  const Scenario s = parse(minimal_with("file: rain.csv", "file: /data/rain.csv"));
+  ASSERT_EQ(s.rain.files.size(), 1u);
+  EXPECT_EQ(s.rain.files[0], std::filesystem::path("/data/rain.csv"));
+}
+
+TEST(Scenario, FillsDefaultsForEveryOptionalKey) {
+  const Scenario s = load_scenario(kFixtures / "minimal.yaml");
+  EXPECT_DOUBLE_EQ(s.site.temperature_C, 15.0);
+  EXPECT_EQ(s.site.utc_offset_s, 0);
+  ASSERT_EQ(s.rain.files.size(), 1u);
+  EXPECT_EQ(s.rain.files[0], kFixtures / "rain.csv");
+  EXPECT_EQ(s.rain.format, RainFormat::series);
+  EXPECT_EQ(s.rain.series.time_column, "time");
+  EXPECT_EQ(s.rain.series.value_column, "rain_mm");
+  EXPECT_EQ(s.rain.series.value, RainValue::depth);
+  EXPECT_DOUBLE_EQ(s.rain.series.unit_m, 1e-3);
+  EXPECT_EQ(s.rain.series.unit_name, "mm");
+  EXPECT_EQ(s.rain.series.gaps, GapPolicy::error);
+  EXPECT_FALSE(s.rain.series.step_s.has_value());
+  EXPECT_DOUBLE_EQ(s.roof.runoff_coefficient, 0.9);
+  EXPECT_DOUBLE_EQ(s.roof.initial_loss_m, 0.5e-3);
+  EXPECT_DOUBLE_EQ(s.roof.drying_m_per_s, 3e-3 / 86400.0);
+  EXPECT_DOUBLE_EQ(s.roof.lag_s, 60.0);
+  EXPECT_DOUBLE_EQ(s.first_flush.volume_m3, 0.0);
+  EXPECT_DOUBLE_EQ(s.first_flush.reset_after_dry_s, 12 * 3600.0);
+  EXPECT_EQ(s.reservoir.shape, ReservoirShape::half_round);
+  EXPECT_DOUBLE_EQ(s.reservoir.overflow_coefficient, 1.7);
+  EXPECT_DOUBLE_EQ(s.reservoir.overflow_length_m, 4.0);  // the reservoir's length
+  EXPECT_DOUBLE_EQ(s.reservoir.initial_level_m, 0.0);
+  EXPECT_EQ(s.release.kind, ReleaseKind::bell);
+  EXPECT_DOUBLE_EQ(s.release.lip_coefficient, 1.77);
+  EXPECT_DOUBLE_EQ(s.release.orifice_coefficient, 0.61);
+  EXPECT_DOUBLE_EQ(s.drop_pipe.roughness_m, 0.0015e-3);
+  EXPECT_DOUBLE_EQ(s.drop_pipe.minor_loss_k, 1.5);
+  EXPECT_EQ(s.drop_pipe.friction, FrictionLaw::colebrook);
+  EXPECT_FALSE(s.head_column.has_value());
+  EXPECT_DOUBLE_EQ(s.nozzle.discharge_coefficient, 0.95);
+  EXPECT_DOUBLE_EQ(s.nozzle.velocity_coefficient, 0.97);
+  EXPECT_FALSE(s.turbine.speed_rpm.has_value());
+  EXPECT_DOUBLE_EQ(s.turbine.peak_efficiency, 0.7);
+  EXPECT_DOUBLE_EQ(s.generator.efficiency, 0.65);
+  EXPECT_DOUBLE_EQ(s.generator.cut_in_W, 0.0);
+  EXPECT_DOUBLE_EQ(s.battery.initial_soc, 0.5);
+  EXPECT_DOUBLE_EQ(s.battery.charge_efficiency, 0.9);
+  EXPECT_DOUBLE_EQ(s.battery.max_charge_W, 1e9);
+  EXPECT_DOUBLE_EQ(s.battery.load_W, 0.0);
+  EXPECT_TRUE(s.battery.load_profile_W.empty());
+  EXPECT_FALSE(s.simulation.start.has_value());
+  EXPECT_FALSE(s.simulation.end.has_value());
+  EXPECT_DOUBLE_EQ(s.simulation.output_interval_s, 3600.0);
+  EXPECT_DOUBLE_EQ(s.simulation.rtol, 1e-6);
+}
+
+TEST(Scenario, ReadsBestAsTheBestRunnerSpeed) {
+  const Scenario s = parse(
+      minimal_with("  runner_diameter_mm: 60", "  runner_diameter_mm: 60\n  speed_rpm: best"));
+  EXPECT_FALSE(s.turbine.speed_rpm.has_value());
+}
+
+TEST(Scenario, RejectsARunnerSpeedThatIsNeitherANumberNorBest) {
+  EXPECT_EQ(error_of(minimal_with("  runner_diameter_mm: 60",
+                                  "  runner_diameter_mm: 60\n  speed_rpm: fast")),
+            "demo.yaml:25: turbine.speed_rpm: expected a number or best, got \"fast\"");
+}
+
+TEST(Scenario, ReadsLagInSecondsOrAsADuration) {
+  EXPECT_DOUBLE_EQ(parse(minimal(), {"roof.lag_s=90"}).roof.lag_s, 90.0);
+  EXPECT_DOUBLE_EQ(parse(minimal(), {"roof.lag=1.5min"}).roof.lag_s, 90.0);
+}
+
+TEST(Scenario, RejectsLagGivenTwice) {
+  EXPECT_EQ(error_of(minimal_with("  area_m2: 12", "  area_m2: 12\n  lag_s: 60\n  lag: 1min")),
+            "demo.yaml:9: roof.lag: give either roof.lag_s or roof.lag, not both");
+}
+
+TEST(Scenario, TakesMillimetresWithIntensityAsPerHour) {
+  const Scenario s = parse(minimal(), {"rain.value=intensity", "rain.unit=mm"});
+  EXPECT_EQ(s.rain.series.value, RainValue::intensity);
+  EXPECT_DOUBLE_EQ(s.rain.series.unit_m, 1e-3);
+  EXPECT_EQ(s.rain.series.unit_name, "mm/h");
+}
+
+TEST(Scenario, RejectsAnIntensityUnitForDepths) {
+  EXPECT_EQ(error_of(minimal_with("  file: rain.csv", "  file: rain.csv\n  unit: mm/h")),
+            "demo.yaml:6: rain.unit: must be mm or in with value: depth (got mm/h)");
+}
+
+TEST(Scenario, RainOffsetDefaultsToTheSiteOffset) {
+  const Scenario s = parse(minimal(), {"site.utc_offset=+05:30"});
+  EXPECT_EQ(s.site.utc_offset_s, 19800);
+  EXPECT_EQ(s.rain.series.utc_offset_s, 19800);
+}
+
+TEST(Scenario, KeepsAnOffsetWrittenInASimulationStamp) {
+  const Scenario s =
+      parse(minimal(), {"site.utc_offset=+02:00", "simulation.start=2025-06-01T00:00Z"});
+  EXPECT_EQ(s.simulation.start, Instant{1748736000});
+}
+
+TEST(Scenario, ReadsALevelAreaTable) {
+  const Scenario s =
+      parse(minimal_with("  width_mm: 100\n  length_m: 4\n",
+                         "  shape: table\n  levels_mm: [0, 100, 300]\n  areas_m2: [0.2, 0.5, 0.5]\n"
+                         "  overflow_length_m: 0.3\n"));
+  EXPECT_EQ(s.reservoir.shape, ReservoirShape::table);
+  EXPECT_EQ(s.reservoir.table_level_m, (std::vector<double>{0.0, 0.1, 0.3}));
+  EXPECT_EQ(s.reservoir.table_area_m2, (std::vector<double>{0.2, 0.5, 0.5}));
+  EXPECT_DOUBLE_EQ(s.reservoir.overflow_length_m, 0.3);
+}
+
+TEST(Scenario, NeedsOnlyAnOrificeForAnOrificeRelease) {
+  const Scenario s = parse(
+      minimal_with("  trigger_level_mm: 40\n  break_level_mm: 5\n  standpipe_diameter_mm: 15\n"
+                   "  priming_flow_L_per_min: 2\n",
+                   "  kind: orifice\n  orifice_diameter_mm: 6\n"));
+  EXPECT_EQ(s.release.kind, ReleaseKind::orifice);
+  EXPECT_DOUBLE_EQ(s.release.orifice_diameter_m, 0.006);
+}
+
+TEST(Scenario, NeedsNothingForNoRelease) {
+  const Scenario s = parse(
+      minimal_with("  trigger_level_mm: 40\n  break_level_mm: 5\n  standpipe_diameter_mm: 15\n"
+                   "  priming_flow_L_per_min: 2\n",
+                   "  kind: none\n"));
+  EXPECT_EQ(s.release.kind, ReleaseKind::none);
+}
+
+// Errors: syntax, keys, types, ranges, choices and combinations.
+
+TEST(Scenario, ReportsAYamlSyntaxErrorWithItsLine) {
+  EXPECT_EQ(error_of(minimal_with("  area_m2: 12", "  area_m2: [12, 13")),
+            "demo.yaml:8: YAML syntax error: end of sequence flow not found");
+}
+
+TEST(Scenario, SuggestsTheNearestKeyForAnUnknownOne) {
+  EXPECT_EQ(error_of(minimal_with("  area_m2: 12", "  runof_coefficient: 0.9\n  area_m2: 12")),
+            "demo.yaml:7: roof.runof_coefficient: unknown key; did you mean runoff_coefficient?");
+}
+
+TEST(Scenario, SuggestsTheNearestSectionForAnUnknownOne) {
+  EXPECT_EQ(error_of(minimal_with("battery:", "batery:")),
+            "demo.yaml:25: batery: unknown key; did you mean battery?");
+}
+
+TEST(Scenario, RejectsARepeatedKey) {
+  EXPECT_EQ(error_of(minimal_with("  area_m2: 12", "  area_m2: 12\n  area_m2: 13")),
+            "demo.yaml:8: roof.area_m2: duplicate key (first given on line 7)");
+}
+
+TEST(Scenario, ReportsAMissingKeyAtItsSection) {
+  EXPECT_EQ(error_of(minimal_with("  area_m2: 12\n", "  runoff_coefficient: 0.8\n")),
+            "demo.yaml:6: roof.area_m2: missing required key");
+}
+
+TEST(Scenario, ReportsAMissingSection) {
+  EXPECT_EQ(error_of(minimal_with("battery:\n  capacity_Wh: 20\n", "")),
+            "demo.yaml: battery: missing required section");
+}
+
+TEST(Scenario, ReportsAnEmptyFile) {
+  EXPECT_EQ(error_of("# nothing here\n"), "demo.yaml: the scenario is empty");
+}
+
+TEST(Scenario, RejectsTextWhereANumberBelongs) {
+  EXPECT_EQ(error_of(minimal_with("area_m2: 12", "area_m2: abc")),
+            "demo.yaml:7: roof.area_m2: expected a number, got \"abc\"");
+}
+
+TEST(Scenario, RejectsAListWhereANumberBelongs) {
+  EXPECT_EQ(error_of(minimal_with("area_m2: 12", "area_m2: [1, 2]")),
+            "demo.yaml:7: roof.area_m2: expected a number, got a list");
+}
+
+TEST(Scenario, RejectsAValueWhereASectionBelongs) {
+  EXPECT_EQ(error_of(minimal_with("roof:\n  area_m2: 12\n", "roof: 12\n")),
+            "demo.yaml:6: roof: expected a section of keys, got \"12\"");
+}
+
+TEST(Scenario, RejectsANumberOutOfRange) {
+  EXPECT_EQ(error_of(minimal_with("area_m2: 12", "area_m2: -2")),
+            "demo.yaml:7: roof.area_m2: must be > 0 (got -2)");
+  EXPECT_EQ(error_of(minimal(), {"site.temperature_C=55"}),
+            "--set: site.temperature_C: must be between 0 and 40 (got 55)");
+  EXPECT_EQ(error_of(minimal(), {"nozzle.discharge_coefficient=1.2"}),
+            "--set: nozzle.discharge_coefficient: must be > 0 and <= 1 (got 1.2)");
+  EXPECT_EQ(error_of(minimal(), {"simulation.rtol=0.1"}),
+            "--set: simulation.rtol: must be between 1e-10 and 0.001 (got 0.1)");
+}
+
+TEST(Scenario, ListsTheAllowedValuesOfAChoice) {
+  EXPECT_EQ(error_of(minimal_with("  width_mm: 100", "  shape: round\n  width_mm: 100")),
+            "demo.yaml:9: reservoir.shape: expected one of half_round, rectangular or table, got "
+            "\"round\"");
+  EXPECT_EQ(error_of(minimal(), {"turbine.kind=crossflow"}),
+            "--set: turbine.kind: expected impulse, got \"crossflow\"");
+}
+
+TEST(Scenario, RejectsADurationWithoutAUnit) {
+  EXPECT_EQ(error_of(minimal(), {"simulation.output_interval=60"}),
+            "--set: simulation.output_interval: expected a duration with a unit such as 30s, 5min, "
+            "1h or 1d, got \"60\"");
+}
+
+TEST(Scenario, RejectsABadStampAndABadOffset) {
+  EXPECT_EQ(error_of(minimal(), {"simulation.start=2025-02-30"}),
+            "--set: simulation.start: expected an ISO 8601 date-time such as 2025-03-01T00:00, got "
+            "\"2025-02-30\"");
+  EXPECT_EQ(error_of(minimal(), {"site.utc_offset=east"}),
+            "--set: site.utc_offset: expected a UTC offset such as +02:00, got \"east\"");
+}
+
+TEST(Scenario, RejectsAnEndBeforeTheStart) {
+  EXPECT_EQ(error_of(minimal() + "simulation:\n  start: 2025-03-01\n  end: 2025-02-01\n"),
+            "demo.yaml:29: simulation.end: must be after simulation.start = 2025-03-01 (got "
+            "2025-02-01)");
+}
+
+TEST(Scenario, RejectsABreakLevelAtOrAboveTheTrigger) {
+  EXPECT_EQ(error_of(minimal_with("break_level_mm: 5", "break_level_mm: 40")),
+            "demo.yaml:14: release.break_level_mm: must be below release.trigger_level_mm = 40 "
+            "(got 40)");
+}
+
+TEST(Scenario, RejectsATriggerAboveTheRim) {
+  EXPECT_EQ(error_of(minimal_with("trigger_level_mm: 40", "trigger_level_mm: 55")),
+            "demo.yaml:13: release.trigger_level_mm: must not be above reservoir.rim_mm = 50 (got "
+            "55)");
+}
+
+TEST(Scenario, RejectsARimAboveHalfTheWidthOfAHalfRound) {
+  EXPECT_EQ(error_of(minimal_with("rim_mm: 50", "rim_mm: 60")),
+            "demo.yaml:11: reservoir.rim_mm: must be <= reservoir.width_mm / 2 = 50 for shape: "
+            "half_round (got 60)");
+  EXPECT_NO_THROW(parse(minimal_with("rim_mm: 50", "rim_mm: 60"), {"reservoir.shape=rectangular"}));
+}
+
+TEST(Scenario, RejectsAnInitialLevelAboveTheRim) {
+  EXPECT_EQ(error_of(minimal(), {"reservoir.initial_level_mm=51"}),
+            "--set: reservoir.initial_level_mm: must not be above reservoir.rim_mm = 50 (got 51)");
+}
+
+TEST(Scenario, RejectsALevelTableThatDoesNotRise) {
+  const std::string table = minimal_with("  width_mm: 100\n  length_m: 4\n",
+                                         "  shape: table\n  overflow_length_m: 0.3\n  levels_mm: "
+                                         "[0, 30,\n    20]\n  areas_m2: [1, 1, 1]\n");
+  EXPECT_EQ(error_of(table),
+            "demo.yaml:12: reservoir.levels_mm[2]: must be above the level before it, 30 (got 20)");
+  EXPECT_EQ(error_of(table, {"reservoir.levels_mm=[5, 30, 60]"}),
+            "--set: reservoir.levels_mm[0]: must be 0, the reservoir floor (got 5)");
+  EXPECT_EQ(error_of(table, {"reservoir.levels_mm=[0, 30, 60]", "reservoir.areas_m2=[1, 1]"}),
+            "--set: reservoir.areas_m2: must have one value per level in reservoir.levels_mm, 3 "
+            "(got 2)");
+  EXPECT_EQ(error_of(table, {"reservoir.levels_mm=[0, 30, 40]"}),
+            "demo.yaml:14: reservoir.rim_mm: must not be above the top of reservoir.levels_mm, 40 "
+            "(got 50)");
+}
+
+TEST(Scenario, NamesTheKeysAReleaseKindNeeds) {
+  EXPECT_EQ(error_of(minimal_with("  priming_flow_L_per_min: 2\n", "")),
+            "demo.yaml:12: release.priming_flow_L_per_min: missing required key (needed by kind: "
+            "bell)");
+  EXPECT_EQ(error_of(minimal(), {"release.kind=float_valve"}),
+            "demo.yaml:12: release.orifice_diameter_mm: missing required key (needed by kind: "
+            "float_valve)");
+}
+
+TEST(Scenario, RejectsANozzleAsWideAsTheDropPipe) {
+  EXPECT_EQ(error_of(minimal(), {"nozzle.diameter_mm=15"}),
+            "--set: nozzle.diameter_mm: must be smaller than drop_pipe.diameter_mm = 15 (got 15)");
+}
+
+TEST(Scenario, RejectsAHeadColumnTallerThanTheDrop) {
+  EXPECT_EQ(error_of(minimal(), {"head_column.diameter_mm=40", "head_column.height_m=2.5"}),
+            "--set: head_column.height_m: must be below drop_pipe.drop_m = 2.5 (got 2.5)");
+}
+
+TEST(Scenario, RejectsADropPipeShorterThanItsDrop) {
+  EXPECT_EQ(error_of(minimal_with("length_m: 3", "length_m: 2")),
+            "demo.yaml:19: drop_pipe.length_m: must be >= drop_pipe.drop_m = 2.5 (got 2)");
+}
+
+TEST(Scenario, NeedsTwentyFourHourlyLoads) {
+  EXPECT_EQ(error_of(minimal(), {"battery.load_profile_W=[1, 2, 3]"}),
+            "--set: battery.load_profile_W: must have exactly 24 values, one per hour (got 3)");
+}
+
+TEST(Scenario, RejectsBothRainFileAndFiles) {
+  EXPECT_EQ(error_of(minimal_with("  file: rain.csv", "  file: rain.csv\n  files: [a.csv]")),
+            "demo.yaml:6: rain.files: give either rain.file or rain.files, not both");
+  EXPECT_EQ(error_of(minimal_with("  file: rain.csv", "  format: series")),
+            "demo.yaml:4: rain.file: missing required key (or give rain.files)");
+}
+
+// Overrides.
+
+TEST(Scenario, OverrideReplacesAValue) {
+  const Scenario s = parse(minimal(), {"roof.area_m2=25", "site.name=Shed two"});
+  EXPECT_DOUBLE_EQ(s.roof.area_m2, 25.0);
+  EXPECT_EQ(s.site.name, "Shed two");
+}
+
+TEST(Scenario, LaterOverrideWins) {
+  EXPECT_DOUBLE_EQ(parse(minimal(), {"roof.area_m2=25", "roof.area_m2=30"}).roof.area_m2, 30.0);
+}
+
+TEST(Scenario, OverrideCreatesAMissingSection) {
+  const Scenario s = parse(minimal(), {"head_column.diameter_mm=40", "head_column.height_m=2"});
+  ASSERT_TRUE(s.head_column.has_value());
+  EXPECT_DOUBLE_EQ(s.head_column->height_m, 2.0);
+}
+
+TEST(Scenario, OverrideSetsAList) {
+  const Scenario s =
+      parse(minimal_with("file: rain.csv", "files: [x.csv]"), {"rain.files=[a.csv, b.csv]"});
+  ASSERT_EQ(s.rain.files.size(), 2u);
+  EXPECT_EQ(s.rain.files[1], std::filesystem::path("base/b.csv"));
+}
+
+TEST(Scenario, OverrideErrorsNameSet) {
+  EXPECT_EQ(error_of(minimal(), {"roof.area_m2=big"}),
+            "--set: roof.area_m2: expected a number, got \"big\"");
+  EXPECT_EQ(error_of(minimal(), {"roof.area=5"}),
+            "--set: roof.area: unknown key; did you mean area_m2?");
+  EXPECT_EQ(error_of(minimal(), {"rooff.area_m2=5"}),
+            "--set: rooff: unknown key; did you mean roof?");
+  EXPECT_EQ(error_of(minimal(), {"head_column.diameter_mm=40"}),
+            "--set: head_column.height_m: missing required key");
+  EXPECT_EQ(error_of(minimal(), {"roof=5"}), "--set: roof: expected a section of keys, got \"5\"");
+  EXPECT_EQ(error_of(minimal(), {"battery.load_profile_W=[1, x]"}),
+            "--set: battery.load_profile_W[1]: expected a number, got \"x\"");
+}
+
+TEST(Scenario, RejectsAMalformedOverride) {
+  EXPECT_EQ(error_of(minimal(), {"roof.area_m2"}),
+            "--set: expected key.path=value, got \"roof.area_m2\"");
+  EXPECT_EQ(error_of(minimal(), {"roof..area_m2=3"}),
+            "--set: expected key.path=value, got \"roof..area_m2=3\"");
+  EXPECT_EQ(error_of(minimal(), {"roof.area_m2.x=3"}),
+            "--set: roof.area_m2.x: roof.area_m2 is a single value, not a section");
+  EXPECT_EQ(error_of(minimal(), {"roof.area_m2={a: 1}"}),
+            "--set: roof.area_m2: expected a single value or a list such as [1, 2], got a section");
+}
+
+TEST(Scenario, ReportsAScenarioFileThatCannotBeRead) {
+  const std::filesystem::path missing = kFixtures / "no-such-file.yaml";
+  try {
+    load_scenario(missing);
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_EQ(std::string(e.what()), missing.string() + ": cannot read the scenario file");
+  }
+}
+
+}  // namespace
+}  // namespace gutterwatt
