@@ -125,6 +125,11 @@ struct Scenario {
 /// Loads `file`, applies `overrides` (each `key.path=value`, in order), checks and converts.
 /// Throws InputError naming the file, the line and the key (and the nearest valid key for an
 /// unknown one); an override's error names `--set` instead of a file.
+///
+/// After a successful load `rain.files` holds at least one path (not checked for existence),
+/// `reservoir.overflow_length_m` is set, and every key the release kind and reservoir shape need
+/// is present. Keys that the chosen kind or shape does not use are accepted and left unused, so
+/// `--set release.kind=none` works on a file written for a bell siphon.
 Scenario load_scenario(const std::filesystem::path& file,
                        const std::vector<std::string>& overrides = {});
 
