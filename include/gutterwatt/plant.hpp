@@ -1,0 +1,67 @@
+#pragma once
+/// The water-to-wire chain below the release: drop pipe, optional head column, nozzle, impulse
+/// turbine and generator, as seen from the simulation at one instant.
+
+#include <optional>
+
+#include "gutterwatt/scenario.hpp"
+
+namespace gutterwatt {
+
+/// Power figures for one flow through the nozzle at one head.
+struct PlantPower {
+  double head_m = 0.0;  ///< head at the nozzle
+  double jet_velocity_m_per_s = 0.0;
+  double jet_W = 0.0;         ///< rho Q V^2 / 2
+  double shaft_W = 0.0;       ///< after the runner's hydraulic efficiency
+  double electrical_W = 0.0;  ///< after the generator, before the cut-in test
+};
+
+/// Column head below which the nozzle's flow is taken in proportion to head rather than to its
+/// square root (no jet forms at such heads; see Plant::column_nozzle_flow_m3_per_s).
+inline constexpr double kNozzleLinearHead_m = 0.01;
+
+class Plant {
+ public:
+  explicit Plant(const Scenario& scenario);
+
+  /// Flow the conveyance carries with the release running full and the reservoir at `level_m`:
+  /// nozzle-controlled without a head column, free outfall into the column top with one.
+  double full_flow_m3_per_s(double level_m) const;
+
+  bool has_column() const { return column_.has_value(); }
+  double column_area_m2() const;
+  /// Volume of a brim-full head column (0 without one).
+  double column_capacity_m3() const;
+  /// Nozzle flow with the column holding `volume_m3` (head = volume / area); orifice flow above
+  /// kNozzleLinearHead_m, linear in head below it.
+  double column_nozzle_flow_m3_per_s(double volume_m3) const;
+  double column_head_m(double volume_m3) const;
+
+  /// Head upstream of the nozzle while it passes `flow` with no column: the drop pipe backs up
+  /// until the nozzle passes what arrives (quasi-steady; the pipe's own storage is neglected).
+  double nozzle_head_for_flow_m(double flow_m3_per_s) const;
+
+  /// Jet, shaft and electrical power for `flow` at nozzle head `head_m`.
+  PlantPower power(double flow_m3_per_s, double head_m) const;
+
+  /// Generator output below this is not delivered.
+  double cut_in_W() const { return cut_in_W_; }
+  double density_kg_per_m3() const { return density_kg_per_m3_; }
+  double kinematic_viscosity_m2_per_s() const { return kinematic_viscosity_m2_per_s_; }
+
+ private:
+  Pipe pipe_;
+  Nozzle nozzle_;
+  double drop_m_;
+  std::optional<HeadColumnConfig> column_;
+  double runner_diameter_m_;
+  std::optional<double> speed_rpm_;
+  double peak_efficiency_;
+  double generator_efficiency_;
+  double cut_in_W_;
+  double density_kg_per_m3_;
+  double kinematic_viscosity_m2_per_s_;
+};
+
+}  // namespace gutterwatt

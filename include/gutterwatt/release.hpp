@@ -1,0 +1,52 @@
+#pragma once
+/// The release: what lets water out of the reservoir into the drop pipe. Each kind is a small
+/// state machine over the reservoir level; the simulation locates its switches as events.
+
+#include <memory>
+#include <string_view>
+
+#include "gutterwatt/scenario.hpp"
+
+namespace gutterwatt {
+
+enum class ReleaseState { idle, dribble, running, closed, open };
+
+/// The name written to outputs: `idle`, `dribble`, `running`, `closed`, `open`.
+std::string_view release_state_name(ReleaseState state);
+
+/// A way out of the current state: the switch happens when `value` falls below zero.
+struct Guard {
+  double value;
+  ReleaseState next;
+};
+
+/// Head over a lip or rim below which no water passes: surface tension holds it. Flow over a weir
+/// decays towards its crest without ever reaching it, so some such threshold is needed for
+/// a dribble or an overflow to end; at 0.01 mm the flow it cuts off is below 1e-8 m3/s per metre.
+inline constexpr double kHoldHead_m = 1e-5;
+
+class Release {
+ public:
+  static constexpr int kMaxGuards = 2;
+  virtual ~Release() = default;
+
+  /// State at the start of a run with the reservoir at `level_m`.
+  virtual ReleaseState initial_state(double level_m) const = 0;
+  /// Outflow into the drop pipe in `state` at `level_m`; `full_flow_m3_per_s` is what the
+  /// conveyance carries running full at that level.
+  virtual double outflow_m3_per_s(ReleaseState state, double level_m,
+                                  double full_flow_m3_per_s) const = 0;
+  /// Writes the guards active in `state` into `out` and returns how many (0..kMaxGuards).
+  virtual int guards(ReleaseState state, double level_m, double full_flow_m3_per_s,
+                     Guard* out) const = 0;
+  /// True when outflow in `state` is a deliberate release rather than dribble.
+  virtual bool is_running(ReleaseState state) const = 0;
+  /// The level below which `state` passes no water and does not change by itself; negative when
+  /// `state` always passes water. A dry reservoir that cannot rise above it is at rest.
+  virtual double rest_ceiling_m(ReleaseState state) const = 0;
+};
+
+/// The release of the kind the configuration names.
+std::unique_ptr<Release> make_release(const ReleaseConfig& config);
+
+}  // namespace gutterwatt

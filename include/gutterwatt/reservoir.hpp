@@ -1,0 +1,49 @@
+#pragma once
+/// The reservoir (a gutter or small tank): level-volume relation and overflow over the rim, under
+/// the level-pool assumption (a flat water surface along the whole length).
+
+#include <vector>
+
+#include "gutterwatt/scenario.hpp"
+
+namespace gutterwatt {
+
+/// Level-volume geometry of a half-round or rectangular gutter, or of a level-area table. Above
+/// the rim the walls are taken as vertical with the rim's surface area, so an overflowing
+/// reservoir has a level. All functions accept any level >= 0 and any volume >= 0.
+class ReservoirGeometry {
+ public:
+  explicit ReservoirGeometry(const ReservoirConfig& config);
+
+  double volume_m3(double level_m) const;
+  /// Inverse of volume_m3 (Newton with a bisection guard for the half-round section).
+  double level_m(double volume_m3) const;
+  /// Plan area of the water surface at `level_m`.
+  double surface_area_m2(double level_m) const;
+  double rim_m() const { return rim_m_; }
+  /// Weir flow over the rim, Q = C L (h - h_rim)^1.5; 0 at or below the rim.
+  double overflow_m3_per_s(double level_m) const;
+
+ private:
+  /// The section's own geometry at level h in [0, rim], ignoring the vertical walls above the rim.
+  double section_area_m2(double h) const;
+  double section_volume_m3(double h) const;
+
+  ReservoirShape shape_;
+  double width_m_;
+  double length_m_;
+  double rim_m_;
+  double weir_coefficient_;
+  double weir_length_m_;
+  std::vector<double> levels_m_;
+  std::vector<double> areas_m2_;
+  std::vector<double> volumes_m3_;  ///< table: volume at each tabulated level
+  double rim_volume_m3_;
+  double rim_area_m2_;
+};
+
+/// Wetted cross-section of a circle of radius `radius_m` filled to depth `depth_m` (0..2r):
+/// r^2 acos((r - h)/r) - (r - h) sqrt(2 r h - h^2) (circular-segment area).
+double circular_segment_area_m2(double radius_m, double depth_m);
+
+}  // namespace gutterwatt

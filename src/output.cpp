@@ -1,0 +1,338 @@
+#include "gutterwatt/output.hpp"
+
+#include <unistd.h>
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <iomanip>
+#include <nlohmann/json.hpp>
+#include <sstream>
+
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+namespace {
+
+constexpr double kLitresPerM3 = 1e3;
+constexpr double kMmPerM = 1e3;
+
+// Fixed-point text with trailing zeros trimmed, so CSV cells stay short and exact enough.
+std::string num(double v, int decimals) {
+  if (!std::isfinite(v)) return "nan";
+  if (std::abs(v) < 0.5 * std::pow(10.0, -decimals)) return "0";
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  std::string s(buf);
+  if (s.find('.') != std::string::npos) {
+    while (!s.empty() && s.back() == '0') s.pop_back();
+    if (!s.empty() && s.back() == '.') s.pop_back();
+  }
+  return s;
+}
+
+double round_to(double v, int decimals) {
+  const double f = std::pow(10.0, decimals);
+  return std::round(v * f) / f;
+}
+
+Instant floor_instant(double t) { return static_cast<Instant>(std::floor(t + 1e-9)); }
+
+}  // namespace
+
+TimeseriesWriter::TimeseriesWriter(std::ostream& out, const Scenario& scenario)
+    : out_(out), area_m2_(scenario.roof.area_m2), offset_s_(scenario.site.utc_offset_s) {
+  out_ << "time,rain_mm,roof_runoff_L,reservoir_level_mm,release_state,release_L,"
+          "reservoir_overflow_L,column_overflow_L,nozzle_L,head_m,power_W,energy_Wh,battery_soc,"
+          "cum_energy_Wh,cum_overflow_L\n";
+}
+
+void TimeseriesWriter::on_start(const Sample& s) { last_ = s; }
+
+void TimeseriesWriter::on_sample(const Sample& s) {
+  if (!s.output) return;
+  const Accounts& a = s.totals;
+  const Accounts& b = last_.totals;
+  const double dt = static_cast<double>(s.time - last_.time);
+  const double energy_J = a.electrical_J - b.electrical_J;
+  out_ << format_iso8601(s.time, offset_s_) << ','
+       << num((a.rain_m3 - b.rain_m3) / area_m2_ * kMmPerM, 3) << ','
+       << num((a.roof_runoff_m3 - b.roof_runoff_m3) * kLitresPerM3, 3) << ','
+       << num(s.level_m * kMmPerM, 3) << ',' << release_state_name(s.release) << ','
+       << num((a.release_m3 - b.release_m3) * kLitresPerM3, 3) << ','
+       << num((a.reservoir_overflow_m3 - b.reservoir_overflow_m3) * kLitresPerM3, 3) << ','
+       << num((a.column_overflow_m3 - b.column_overflow_m3) * kLitresPerM3, 3) << ','
+       << num((a.nozzle_m3 - b.nozzle_m3) * kLitresPerM3, 3) << ',' << num(s.head_m, 4) << ','
+       << num(dt > 0.0 ? energy_J / dt : 0.0, 4) << ',' << num(energy_J / kJoulesPerWh, 5) << ','
+       << num(s.soc, 5) << ',' << num(a.electrical_J / kJoulesPerWh, 4) << ','
+       << num((a.reservoir_overflow_m3 + a.column_overflow_m3) * kLitresPerM3, 3) << '\n';
+  last_ = s;
+}
+
+EventsWriter::EventsWriter(std::ostream& out, const Scenario& scenario)
+    : out_(out), offset_s_(scenario.site.utc_offset_s) {
+  out_ << "kind,start,end,duration_s,volume_L,peak_flow_L_per_s,energy_Wh\n";
+}
+
+void EventsWriter::on_episode(const Episode& e) {
+  out_ << episode_kind_name(e.kind) << ',' << format_iso8601(floor_instant(e.start_s), offset_s_)
+       << ',' << format_iso8601(floor_instant(e.end_s), offset_s_) << ','
+       << num(e.end_s - e.start_s, 1) << ',' << num(e.volume_m3 * kLitresPerM3, 3) << ','
+       << num(e.peak_flow_m3_per_s * kLitresPerM3, 4) << ',' << num(e.energy_J / kJoulesPerWh, 5)
+       << '\n';
+}
+
+SummaryBuilder::SummaryBuilder(const Scenario& scenario) : scenario_(scenario) {}
+
+void SummaryBuilder::on_start(const Sample& s) {
+  month_start_ = s;
+  min_soc_ = s.soc;
+}
+
+MonthSummary& SummaryBuilder::month_of(double time_s) {
+  const std::string label = month_label(floor_instant(time_s), scenario_.site.utc_offset_s);
+  for (MonthSummary& m : months_) {
+    if (m.month == label) return m;
+  }
+  months_.push_back(MonthSummary{label});
+  std::sort(months_.begin(), months_.end(),
+            [](const MonthSummary& a, const MonthSummary& b) { return a.month < b.month; });
+  for (MonthSummary& m : months_) {
+    if (m.month == label) return m;
+  }
+  return months_.back();
+}
+
+void SummaryBuilder::on_sample(const Sample& s) {
+  min_soc_ = std::min(min_soc_, s.soc);
+  if (!s.month_end) return;
+  // The month is the one the interval ending at s.time lies in.
+  MonthSummary& m = month_of(static_cast<double>(s.time) - 1.0);
+  const Accounts& a = s.totals;
+  const Accounts& b = month_start_.totals;
+  m.rain_m3 += a.rain_m3 - b.rain_m3;
+  m.rain_depth_m += (a.rain_m3 - b.rain_m3) / scenario_.roof.area_m2;
+  m.electrical_J += a.electrical_J - b.electrical_J;
+  m.overflow_m3 += a.reservoir_overflow_m3 - b.reservoir_overflow_m3 + a.column_overflow_m3 -
+                   b.column_overflow_m3;
+  m.dribble_m3 += a.dribble_m3 - b.dribble_m3;
+  m.nozzle_m3 += a.nozzle_m3 - b.nozzle_m3;
+  month_start_ = s;
+}
+
+void SummaryBuilder::on_episode(const Episode& e) {
+  if (e.kind == EpisodeKind::cycle) {
+    ++month_of(e.start_s).cycles;
+    cycle_energy_J_ += e.energy_J;
+    ++cycle_count_;
+  } else if (e.kind == EpisodeKind::overflow) {
+    ++month_of(e.start_s).overflow_events;
+    largest_overflow_m3_ = std::max(largest_overflow_m3_, e.volume_m3);
+    const int off = scenario_.site.utc_offset_s;
+    for (Instant day = floor_instant(e.start_s); day <= floor_instant(e.end_s); day += 86400) {
+      const std::string label = format_iso8601(day, off).substr(0, 10);
+      if (std::find(overflow_days_.begin(), overflow_days_.end(), label) == overflow_days_.end()) {
+        overflow_days_.push_back(label);
+      }
+    }
+    const std::string last = format_iso8601(floor_instant(e.end_s), off).substr(0, 10);
+    if (std::find(overflow_days_.begin(), overflow_days_.end(), last) == overflow_days_.end()) {
+      overflow_days_.push_back(last);
+    }
+  }
+}
+
+double SummaryBuilder::energy_per_cycle_J() const {
+  return cycle_count_ > 0 ? cycle_energy_J_ / static_cast<double>(cycle_count_) : 0.0;
+}
+
+void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries& rain,
+                        const RunResult& r, const SummaryBuilder& summary) {
+  using nlohmann::json;
+  const Accounts& a = r.totals;
+  const int off = sc.site.utc_offset_s;
+  const auto L = [](double m3) { return round_to(m3 * kLitresPerM3, 6); };
+  const auto Wh = [](double J) { return round_to(J / kJoulesPerWh, 6); };
+  json j;
+  j["scenario"] = sc.file.filename().string();
+  j["site"] = sc.site.name;
+  j["start"] = format_iso8601(r.start, off);
+  j["end"] = format_iso8601(r.end, off);
+  j["roof_area_m2"] = sc.roof.area_m2;
+  const double stored = r.final.water_m3() - r.initial.water_m3();
+  j["water_L"] = {{"rain", L(a.rain_m3)},
+                  {"roof_loss", L(a.roof_loss_m3)},
+                  {"roof_runoff", L(a.roof_runoff_m3)},
+                  {"first_flush", L(a.first_flush_m3)},
+                  {"reservoir_overflow", L(a.reservoir_overflow_m3)},
+                  {"column_overflow", L(a.column_overflow_m3)},
+                  {"dribble", L(a.dribble_m3)},
+                  {"through_nozzle", L(a.nozzle_m3)},
+                  {"storage_change", L(stored)},
+                  {"balance_error", r.balance_error_m3 * kLitresPerM3},
+                  {"balance_relative_error", r.balance_relative_error}};
+  j["energy_Wh"] = {{"jet", Wh(a.jet_J)},
+                    {"shaft", Wh(a.shaft_J)},
+                    {"electrical", Wh(a.electrical_J)},
+                    {"accepted", Wh(a.accepted_J)},
+                    {"stored", Wh(a.stored_J)},
+                    {"curtailed", Wh(a.curtailed_J)},
+                    {"load_served", Wh(a.served_J)},
+                    {"unmet_load", Wh(a.unmet_J)}};
+  j["siphon"] = {{"cycles", r.cycles},
+                 {"energy_per_cycle_Wh", Wh(summary.energy_per_cycle_J())},
+                 {"dribble_episodes", r.dribble_episodes},
+                 {"dribble_hours", round_to(r.dribble_s / kSecondsPerHour, 4)}};
+  const double runoff = a.roof_runoff_m3 > 0.0 ? a.roof_runoff_m3 : 1.0;
+  j["overflow"] = {{"events", r.overflow_events},
+                   {"hours", round_to(r.overflow_s / kSecondsPerHour, 4)},
+                   {"days", summary.overflow_days()},
+                   {"largest_L", L(summary.largest_overflow_m3())},
+                   {"share_of_runoff", round_to(a.reservoir_overflow_m3 / runoff, 6)},
+                   {"dribble_share_of_runoff", round_to(a.dribble_m3 / runoff, 6)}};
+  const bool has_set_points =
+      sc.release.kind == ReleaseKind::bell || sc.release.kind == ReleaseKind::float_valve;
+  j["levels_mm"] = {
+      {"trigger", has_set_points ? json(sc.release.trigger_level_m * kMmPerM) : json()},
+      {"break", has_set_points ? json(sc.release.break_level_m * kMmPerM) : json()},
+      {"rim", sc.reservoir.rim_m * kMmPerM}};
+  const double cap = sc.battery.capacity_J;
+  j["battery"] = {{"capacity_Wh", Wh(cap)},
+                  {"initial_soc", round_to(cap > 0 ? r.initial.battery_J / cap : 0.0, 6)},
+                  {"final_soc", round_to(cap > 0 ? r.final.battery_J / cap : 0.0, 6)},
+                  {"min_soc", round_to(summary.min_soc(), 6)}};
+  j["rain"] = {{"depth_mm", round_to(a.rain_m3 / sc.roof.area_m2 * kMmPerM, 6)},
+               {"record_depth_mm", round_to(rain.total_depth_m * kMmPerM, 6)},
+               {"gaps", rain.gaps.size()},
+               {"warnings", rain.warnings}};
+  j["solver"] = {{"steps", r.stats.steps},
+                 {"switches", r.stats.switches},
+                 {"segments", r.stats.segments},
+                 {"coasted_hours", round_to(r.stats.coasted_s / kSecondsPerHour, 4)},
+                 {"skipped_hours", round_to(r.stats.skipped_s / kSecondsPerHour, 4)},
+                 {"rtol", sc.simulation.rtol}};
+  json months = json::array();
+  for (const MonthSummary& m : summary.months()) {
+    months.push_back({{"month", m.month},
+                      {"rain_mm", round_to(m.rain_depth_m * kMmPerM, 4)},
+                      {"energy_Wh", Wh(m.electrical_J)},
+                      {"overflow_L", L(m.overflow_m3)},
+                      {"dribble_L", L(m.dribble_m3)},
+                      {"through_nozzle_L", L(m.nozzle_m3)},
+                      {"cycles", m.cycles},
+                      {"overflow_events", m.overflow_events}});
+  }
+  j["months"] = months;
+  out << j.dump(2) << '\n';
+}
+
+void print_summary_table(std::ostream& out, const Scenario& sc, const RunResult& r,
+                         const SummaryBuilder& summary) {
+  const Accounts& a = r.totals;
+  const int off = sc.site.utc_offset_s;
+  const auto row = [&](const std::string& label, const std::string& value,
+                       const std::string& unit) {
+    out << "  " << std::left << std::setw(34) << label << std::right << std::setw(14) << value
+        << "  " << unit << '\n';
+  };
+  const auto L = [](double m3) { return num(m3 * kLitresPerM3, 1); };
+  out << sc.site.name << ": " << format_iso8601(r.start, off) << " to "
+      << format_iso8601(r.end, off) << '\n';
+  out << " water\n";
+  row("rain on the roof", L(a.rain_m3), "L");
+  row("roof losses", L(a.roof_loss_m3), "L");
+  row("first flush diverted", L(a.first_flush_m3), "L");
+  row("reservoir overflow", L(a.reservoir_overflow_m3), "L");
+  if (sc.head_column) row("head column overflow", L(a.column_overflow_m3), "L");
+  row("through the nozzle", L(a.nozzle_m3), "L");
+  row("  of which dribble", L(a.dribble_m3), "L");
+  row("storage change", L(r.final.water_m3() - r.initial.water_m3()), "L");
+  row("balance error (relative)", num(r.balance_relative_error * 1e9, 3) + "e-9", "");
+  out << " energy\n";
+  row("jet", num(a.jet_J / kJoulesPerWh, 2), "Wh");
+  row("electrical (generator out)", num(a.electrical_J / kJoulesPerWh, 2), "Wh");
+  row("stored in the battery", num(a.stored_J / kJoulesPerWh, 2), "Wh");
+  row("curtailed (battery full)", num(a.curtailed_J / kJoulesPerWh, 2), "Wh");
+  row("load served", num(a.served_J / kJoulesPerWh, 2), "Wh");
+  row("load unmet", num(a.unmet_J / kJoulesPerWh, 2), "Wh");
+  out << " release and overflow\n";
+  row("siphon cycles", std::to_string(r.cycles), "");
+  row("energy per cycle", num(summary.energy_per_cycle_J() / kJoulesPerWh, 3), "Wh");
+  row("dribble episodes", std::to_string(r.dribble_episodes), "");
+  row("dribble time", num(r.dribble_s / kSecondsPerHour, 1), "h");
+  row("overflow episodes", std::to_string(r.overflow_events), "");
+  row("overflow time", num(r.overflow_s / kSecondsPerHour, 2), "h");
+  row("days with overflow", std::to_string(summary.overflow_days()), "");
+  row("battery state of charge, lowest", num(summary.min_soc() * 100.0, 1), "%");
+  out << " by month\n";
+  out << "  month      rain mm   energy Wh   cycles   overflow L   dribble L\n";
+  for (const MonthSummary& m : summary.months()) {
+    out << "  " << std::left << std::setw(8) << m.month << std::right << std::setw(10)
+        << num(m.rain_depth_m * kMmPerM, 1) << std::setw(12)
+        << num(m.electrical_J / kJoulesPerWh, 2) << std::setw(9) << m.cycles << std::setw(13)
+        << num(m.overflow_m3 * kLitresPerM3, 1) << std::setw(12)
+        << num(m.dribble_m3 * kLitresPerM3, 1) << '\n';
+  }
+}
+
+OutputFolder::OutputFolder(std::filesystem::path dir) : dir_(std::move(dir)) {
+  std::error_code ec;
+  std::filesystem::create_directories(dir_, ec);
+  if (ec || !std::filesystem::is_directory(dir_)) {
+    throw InputError(
+        dir_.string(), 0, "--out",
+        "cannot create the output folder (" + (ec ? ec.message() : "not a folder") + ")");
+  }
+  if (::access(dir_.c_str(), W_OK) != 0) {
+    throw InputError(dir_.string(), 0, "--out", "the output folder is not writable");
+  }
+}
+
+OutputFolder::~OutputFolder() {
+  if (!committed_) discard();
+}
+
+std::ostream& OutputFolder::open(const std::string& name) {
+  File f;
+  f.name = name;
+  f.temp = dir_ / ("." + name + ".tmp-" + std::to_string(::getpid()));
+  f.stream = std::make_unique<std::ofstream>(f.temp, std::ios::binary | std::ios::trunc);
+  if (!*f.stream) {
+    throw InputError((dir_ / name).string(), 0, "--out", "cannot write this file");
+  }
+  files_.push_back(std::move(f));
+  return *files_.back().stream;
+}
+
+void OutputFolder::commit() {
+  for (File& f : files_) {
+    f.stream->flush();
+    const bool ok = static_cast<bool>(*f.stream);
+    f.stream->close();
+    if (!ok || f.stream->fail()) {
+      discard();
+      throw Error((dir_ / f.name).string() + ": write failed (disk full?); earlier results kept");
+    }
+  }
+  for (File& f : files_) {
+    std::error_code ec;
+    std::filesystem::rename(f.temp, dir_ / f.name, ec);
+    if (ec) {
+      discard();
+      throw Error((dir_ / f.name).string() + ": cannot rename into place (" + ec.message() + ")");
+    }
+  }
+  committed_ = true;
+}
+
+void OutputFolder::discard() {
+  for (File& f : files_) {
+    if (f.stream && f.stream->is_open()) f.stream->close();
+    std::error_code ec;
+    std::filesystem::remove(f.temp, ec);
+  }
+  files_.clear();
+}
+
+}  // namespace gutterwatt

@@ -1,0 +1,84 @@
+#include "gutterwatt/rain_files.hpp"
+
+#include <algorithm>
+#include <fstream>
+#include <numeric>
+
+#include "gutterwatt/error.hpp"
+
+namespace gutterwatt {
+
+RainSeries join_rain(std::vector<RainSeries> parts, const std::vector<std::string>& labels) {
+  if (parts.size() == 1) return std::move(parts.front());
+  std::vector<std::size_t> order(parts.size());
+  std::iota(order.begin(), order.end(), 0);
+  const auto first = [&](std::size_t k) {
+    return parts[k].covered.empty() ? Instant{0} : parts[k].covered.front().start;
+  };
+  std::sort(order.begin(), order.end(),
+            [&](std::size_t a, std::size_t b) { return first(a) < first(b); });
+  RainSeries out;
+  out.policy = parts.front().policy;
+  std::size_t previous = order.front();
+  for (std::size_t n = 0; n < order.size(); ++n) {
+    const std::size_t k = order[n];
+    RainSeries& p = parts[k];
+    if (p.covered.empty()) continue;
+    if (!out.covered.empty() && p.covered.front().start < out.covered.back().end) {
+      throw InputError(labels[k], 0, "rain.files",
+                       "overlaps " + labels[previous] + " from " +
+                           format_iso8601(p.covered.front().start) + " to " +
+                           format_iso8601(std::min(out.covered.back().end, p.covered.back().end)) +
+                           " (UTC); each period must come from one file");
+    }
+    if (!out.covered.empty() && p.covered.front().start > out.covered.back().end) {
+      out.gaps.push_back({out.covered.back().end, p.covered.front().start});
+    }
+    for (const TimeSpan& c : p.covered) {
+      if (!out.covered.empty() && out.covered.back().end == c.start) {
+        out.covered.back().end = c.end;
+      } else {
+        out.covered.push_back(c);
+      }
+    }
+    out.pulses.insert(out.pulses.end(), p.pulses.begin(), p.pulses.end());
+    out.gaps.insert(out.gaps.end(), p.gaps.begin(), p.gaps.end());
+    out.total_depth_m += p.total_depth_m;
+    for (std::string& w : p.warnings) out.warnings.push_back(labels[k] + ": " + w);
+    previous = k;
+  }
+  std::sort(out.gaps.begin(), out.gaps.end(),
+            [](const TimeSpan& a, const TimeSpan& b) { return a.start < b.start; });
+  return out;
+}
+
+RainSeries load_rain(const RainConfig& config, const std::filesystem::path& override_file) {
+  std::vector<std::filesystem::path> files = config.files;
+  if (!override_file.empty()) files = {override_file};
+  if (files.empty()) throw InputError("", 0, "rain.file", "no rain file given");
+  std::vector<RainSeries> parts;
+  std::vector<std::string> labels;
+  for (const std::filesystem::path& file : files) {
+    const std::string label = file.string();
+    std::error_code ec;
+    if (!std::filesystem::exists(file, ec)) {
+      throw InputError(label, 0, "rain.file", "no such file");
+    }
+    if (std::filesystem::is_directory(file, ec)) {
+      throw InputError(label, 0, "rain.file", "is a folder, not a file");
+    }
+    std::ifstream in(file, std::ios::binary);
+    if (!in) throw InputError(label, 0, "rain.file", "cannot be read");
+    switch (config.format) {
+      case RainFormat::series:
+        parts.push_back(read_rain_series(in, label, config.series));
+        break;
+      default:
+        throw InputError(label, 0, "rain.format", "TODO(#3): tips and daily records");
+    }
+    labels.push_back(label);
+  }
+  return join_rain(std::move(parts), labels);
+}
+
+}  // namespace gutterwatt

@@ -1,0 +1,39 @@
+#include "gutterwatt/release.hpp"
+
+#include "gutterwatt/float_valve.hpp"
+#include "gutterwatt/orifice_release.hpp"
+#include "gutterwatt/siphon.hpp"
+
+namespace gutterwatt {
+
+std::string_view release_state_name(ReleaseState state) {
+  switch (state) {
+    case ReleaseState::idle:
+      return "idle";
+    case ReleaseState::dribble:
+      return "dribble";
+    case ReleaseState::running:
+      return "running";
+    case ReleaseState::closed:
+      return "closed";
+    case ReleaseState::open:
+      return "open";
+  }
+  return "idle";
+}
+
+std::unique_ptr<Release> make_release(const ReleaseConfig& config) {
+  switch (config.kind) {
+    case ReleaseKind::bell:
+      return std::make_unique<BellSiphon>(config);
+    case ReleaseKind::float_valve:
+      return std::make_unique<FloatValve>(config);
+    case ReleaseKind::orifice:
+      return std::make_unique<OrificeRelease>(config);
+    case ReleaseKind::none:
+      return std::make_unique<NoRelease>();
+  }
+  return std::make_unique<NoRelease>();
+}
+
+}  // namespace gutterwatt

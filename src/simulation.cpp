@@ -1,0 +1,892 @@
+#include "gutterwatt/simulation.hpp"
+
+#include <algorithm>
+#include <array>
+#include <boost/math/tools/roots.hpp>
+#include <boost/numeric/odeint.hpp>
+#include <cmath>
+#include <limits>
+#include <sstream>
+
+#include "gutterwatt/battery.hpp"
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/plant.hpp"
+#include "gutterwatt/reservoir.hpp"
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+
+std::string_view episode_kind_name(EpisodeKind kind) {
+  switch (kind) {
+    case EpisodeKind::cycle:
+      return "cycle";
+    case EpisodeKind::overflow:
+      return "overflow";
+    case EpisodeKind::dribble:
+      return "dribble";
+    case EpisodeKind::column_overflow:
+      return "column_overflow";
+  }
+  return "cycle";
+}
+
+void ObserverList::on_start(const Sample& s) {
+  for (Observer* o : observers_) o->on_start(s);
+}
+void ObserverList::on_sample(const Sample& s) {
+  for (Observer* o : observers_) o->on_sample(s);
+}
+void ObserverList::on_episode(const Episode& e) {
+  for (Observer* o : observers_) o->on_episode(e);
+}
+
+namespace detail {
+namespace {
+
+namespace odeint = boost::numeric::odeint;
+
+// Continuous state: storages first, then running integrals of every account.
+enum Slot : std::size_t {
+  kRoof,        // water on the roof's linear reservoir, m3
+  kDepression,  // initial-loss store filled, m of depth
+  kFlush,       // first-flush diverter fill, m3
+  kReservoir,   // m3
+  kColumn,      // head column, m3
+  kBattery,     // J
+  kRain,
+  kRoofLoss,
+  kRoofRunoff,
+  kFirstFlush,
+  kReservoirOverflow,
+  kColumnOverflow,
+  kRelease,
+  kDribble,
+  kNozzle,
+  kJet,
+  kShaft,
+  kElectrical,
+  kAccepted,
+  kStored,
+  kCurtailed,
+  kServed,
+  kUnmet,
+  kSlots
+};
+
+using State = std::array<double, kSlots>;
+
+enum class Depression { filling, full, drying, dry };
+enum class ColumnMode { partial, full };
+
+// Discrete state: which branch of each piecewise law is in force.
+struct Mode {
+  ReleaseState release = ReleaseState::idle;
+  bool overflowing = false;
+  Depression depression = Depression::dry;
+  bool flush_full = false;
+  ColumnMode column = ColumnMode::partial;
+  bool generator_on = false;
+  BatteryMode battery = BatteryMode::normal;
+};
+
+// What drives a segment: constant over it.
+struct Forcing {
+  double rain_m_per_s = 0.0;
+  double load_W = 0.0;
+};
+
+// Every rate and intermediate value at one instant.
+struct Rates {
+  double level_m = 0.0;
+  double full_flow = 0.0;
+  double release = 0.0;
+  double overflow = 0.0;
+  double nozzle = 0.0;
+  double column_overflow = 0.0;
+  double head_m = 0.0;
+  PlantPower power;
+  double electrical_W = 0.0;
+  BatteryFlows battery;
+  State dxdt{};
+};
+
+// Error norm with a scale per slot: err_i / (rtol (scale_i + |x_i| + dt |dxdt_i|)), the odeint
+// default checker's form with per-slot absolute tolerances.
+struct ScaledErrorChecker {
+  using value_type = double;
+  using algebra_type = odeint::array_algebra;
+  using operations_type = odeint::default_operations;
+
+  double rtol = 1e-6;
+  State scale{};
+
+  template <class S, class D, class E, class T>
+  double error(algebra_type&, const S& x_old, const D& dxdt_old, E& x_err, T dt) const {
+    double worst = 0.0;
+    for (std::size_t i = 0; i < kSlots; ++i) {
+      const double tol = rtol * (scale[i] + std::abs(x_old[i]) + dt * std::abs(dxdt_old[i]));
+      worst = std::max(worst, std::abs(x_err[i]) / tol);
+    }
+    return worst;
+  }
+};
+
+using BaseStepper = odeint::runge_kutta_dopri5<State, double, State, double, odeint::array_algebra>;
+using Controlled = odeint::controlled_runge_kutta<BaseStepper, ScaledErrorChecker,
+                                                  odeint::default_step_adjuster<double, double>>;
+using Dense = odeint::dense_output_runge_kutta<Controlled>;
+
+// Volume below which a head column counts as drained.
+constexpr double kColumnDry_m3 = 1e-9;
+// Largest solver step: a switch that happens and un-happens within one step would be missed.
+constexpr double kMaxStep_s = 120.0;
+constexpr int kMaxSwitchesAtOnce = 16;
+
+class Engine {
+ public:
+  Engine(const Scenario& sc, const RainSeries& rain, Observer& observer, const RunOptions& options)
+      : sc_(sc),
+        rain_(rain),
+        observer_(observer),
+        options_(options),
+        geometry_(sc.reservoir),
+        plant_(sc),
+        release_(make_release(sc.release)) {}
+
+  RunResult run();
+
+ private:
+  // Physics at one instant.
+  Rates rates(const State& x, const Mode& m, const Forcing& f) const;
+  int guards(const State& x, const Mode& m, const Forcing& f, const Rates& r,
+             std::array<double, 8>& g) const;
+  void apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rates& r, double t);
+  void settle(State& x, Mode& m, const Forcing& f, double t);
+  bool at_rest(const State& x, const Mode& m, const Forcing& f) const;
+
+  // Time.
+  void advance(Instant t0, Instant t1, const Forcing& f);
+  void integrate(double t0, double t1, const Forcing& f);
+  void coast(double dt, const Forcing& f);
+
+  // Records.
+  void track_episodes(const Mode& before, const Mode& after, double t);
+  void open_episode(EpisodeKind kind, double t);
+  void close_episode(EpisodeKind kind, double t);
+  void update_peaks(const Rates& r);
+  Sample make_sample(Instant t, bool output, bool month_end) const;
+  Storage storage(const State& x) const;
+  Accounts accounts(const State& x) const;
+  [[noreturn]] void fail(const std::string& what, double t) const;
+
+  struct OpenEpisode {
+    bool open = false;
+    double start_s = 0.0;
+    double start_volume_m3 = 0.0;
+    double start_energy_J = 0.0;
+    double peak = 0.0;
+  };
+
+  const Scenario& sc_;
+  const RainSeries& rain_;
+  Observer& observer_;
+  const RunOptions& options_;
+  ReservoirGeometry geometry_;
+  Plant plant_;
+  std::unique_ptr<Release> release_;
+
+  State x_{};
+  Mode mode_;
+  double now_s_ = 0.0;  // absolute, seconds since the epoch
+  double last_wet_s_ = -std::numeric_limits<double>::infinity();
+  std::array<OpenEpisode, 4> episodes_{};
+  RunResult result_;
+  ScaledErrorChecker checker_;
+};
+
+Rates Engine::rates(const State& x, const Mode& m, const Forcing& f) const {
+  Rates r;
+  State& d = r.dxdt;
+  const double area = sc_.roof.area_m2;
+  const double rain = f.rain_m_per_s * area;
+  d[kRain] = rain;
+
+  // Roof: initial loss first, then the runoff coefficient on the remainder (rational method,
+  // Q = C i A), routed through a linear reservoir dS/dt = I - S/k (Nash 1957 single reservoir).
+  double effective = 0.0;
+  switch (m.depression) {
+    case Depression::filling:
+      d[kDepression] = f.rain_m_per_s;
+      d[kRoofLoss] = rain;
+      break;
+    case Depression::full:
+      effective = sc_.roof.runoff_coefficient * rain;
+      d[kRoofLoss] = rain - effective;
+      break;
+    case Depression::drying:
+      d[kDepression] = -sc_.roof.drying_m_per_s;
+      break;
+    case Depression::dry:
+      break;
+  }
+  double runoff = effective;
+  if (sc_.roof.lag_s > 0.0) {
+    runoff = std::max(0.0, x[kRoof]) / sc_.roof.lag_s;
+    d[kRoof] = effective - runoff;
+  }
+  d[kRoofRunoff] = runoff;
+
+  // First flush: everything goes to the diverter until it holds volume_L.
+  double inflow = runoff;
+  if (sc_.first_flush.volume_m3 > 0.0 && !m.flush_full) {
+    d[kFlush] = runoff;
+    d[kFirstFlush] = runoff;
+    inflow = 0.0;
+  }
+
+  // Reservoir, release and overflow.
+  r.level_m = geometry_.level_m(x[kReservoir]);
+  const bool needs_full_flow = m.release != ReleaseState::idle && m.release != ReleaseState::closed;
+  r.full_flow = needs_full_flow ? plant_.full_flow_m3_per_s(r.level_m) : 0.0;
+  r.release = release_->outflow_m3_per_s(m.release, r.level_m, r.full_flow);
+  r.overflow = m.overflowing ? geometry_.overflow_m3_per_s(r.level_m) : 0.0;
+  d[kReservoir] = inflow - r.release - r.overflow;
+  d[kReservoirOverflow] = r.overflow;
+  d[kRelease] = r.release;
+  d[kDribble] = release_->is_running(m.release) ? 0.0 : r.release;
+
+  // Conveyance and nozzle.
+  if (plant_.has_column()) {
+    const double volume = m.column == ColumnMode::full ? plant_.column_capacity_m3() : x[kColumn];
+    r.nozzle = plant_.column_nozzle_flow_m3_per_s(volume);
+    r.head_m = plant_.column_head_m(volume);
+    if (m.column == ColumnMode::full) {
+      r.column_overflow = std::max(0.0, r.release - r.nozzle);
+    } else {
+      d[kColumn] = r.release - r.nozzle;
+    }
+  } else {
+    r.nozzle = r.release;
+    r.head_m = plant_.nozzle_head_for_flow_m(r.nozzle);
+  }
+  d[kColumnOverflow] = r.column_overflow;
+  d[kNozzle] = r.nozzle;
+
+  // Turbine, generator, battery.
+  r.power = plant_.power(r.nozzle, r.head_m);
+  r.electrical_W = m.generator_on ? r.power.electrical_W : 0.0;
+  r.battery = battery_flows(m.battery, r.electrical_W, f.load_W, sc_.battery);
+  d[kBattery] = r.battery.charge_W;
+  d[kJet] = r.power.jet_W;
+  d[kShaft] = r.power.shaft_W;
+  d[kElectrical] = r.electrical_W;
+  d[kAccepted] = r.battery.accepted_W;
+  d[kStored] = sc_.battery.charge_efficiency * r.battery.accepted_W;
+  d[kCurtailed] = r.battery.curtailed_W;
+  d[kServed] = r.battery.served_W;
+  d[kUnmet] = r.battery.unmet_W;
+  return r;
+}
+
+// Guard k fires when g[k] falls below zero. The numbering is the switch table of apply_switch.
+enum GuardId {
+  kGuardRelease0,
+  kGuardRelease1,
+  kGuardOverflow,
+  kGuardDepression,
+  kGuardFlush,
+  kGuardColumn,
+  kGuardGenerator,
+  kGuardBattery,
+  kGuardCount
+};
+
+int Engine::guards(const State& x, const Mode& m, const Forcing& f, const Rates& r,
+                   std::array<double, 8>& g) const {
+  constexpr double kInactive = 1.0;
+  g.fill(kInactive);
+  Guard rel[Release::kMaxGuards];
+  const int n = release_->guards(m.release, r.level_m, r.full_flow, rel);
+  for (int k = 0; k < n; ++k) g[kGuardRelease0 + k] = rel[k].value;
+
+  const double rim = geometry_.rim_m();
+  g[kGuardOverflow] =
+      m.overflowing ? r.level_m - rim - 0.5 * kHoldHead_m : rim + kHoldHead_m - r.level_m;
+  if (m.depression == Depression::filling) {
+    g[kGuardDepression] = sc_.roof.initial_loss_m - x[kDepression];
+  } else if (m.depression == Depression::drying) {
+    g[kGuardDepression] = x[kDepression];
+  }
+  if (sc_.first_flush.volume_m3 > 0.0 && !m.flush_full) {
+    g[kGuardFlush] = sc_.first_flush.volume_m3 - x[kFlush];
+  }
+  if (plant_.has_column()) {
+    g[kGuardColumn] = m.column == ColumnMode::full ? r.release - r.nozzle
+                                                   : plant_.column_capacity_m3() - x[kColumn];
+  }
+  const double cut_in = sc_.generator.cut_in_W;
+  g[kGuardGenerator] =
+      m.generator_on ? r.power.electrical_W - cut_in : cut_in - r.power.electrical_W;
+  const double surplus = r.electrical_W - f.load_W;
+  switch (m.battery) {
+    case BatteryMode::normal:
+      g[kGuardBattery] =
+          r.battery.charge_W >= 0.0 ? sc_.battery.capacity_J - x[kBattery] : x[kBattery];
+      break;
+    case BatteryMode::full:
+      g[kGuardBattery] = surplus;
+      break;
+    case BatteryMode::empty:
+      g[kGuardBattery] = -surplus;
+      break;
+  }
+  return n;
+}
+
+void Engine::apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rates& r, double t) {
+  const Mode before = m;
+  switch (k) {
+    case kGuardRelease0:
+    case kGuardRelease1: {
+      Guard rel[Release::kMaxGuards];
+      release_->guards(m.release, r.level_m, r.full_flow, rel);
+      m.release = rel[k - kGuardRelease0].next;
+      break;
+    }
+    case kGuardOverflow:
+      m.overflowing = !m.overflowing;
+      break;
+    case kGuardDepression:
+      if (m.depression == Depression::filling) {
+        m.depression = Depression::full;
+        x[kDepression] = sc_.roof.initial_loss_m;
+      } else {
+        m.depression = Depression::dry;
+        x[kDepression] = 0.0;
+      }
+      break;
+    case kGuardFlush:
+      m.flush_full = true;
+      x[kFlush] = sc_.first_flush.volume_m3;
+      break;
+    case kGuardColumn:
+      if (m.column == ColumnMode::partial) {
+        // Brim-full: the excess over the brim leaves as column overflow, conserving water.
+        const double excess = x[kColumn] - plant_.column_capacity_m3();
+        x[kColumnOverflow] += excess;
+        x[kColumn] = plant_.column_capacity_m3();
+        m.column = ColumnMode::full;
+      } else {
+        m.column = ColumnMode::partial;
+      }
+      break;
+    case kGuardGenerator:
+      m.generator_on = !m.generator_on;
+      break;
+    case kGuardBattery:
+      m.battery = battery_mode(x[kBattery], r.electrical_W, f.load_W, sc_.battery);
+      if (m.battery == before.battery) {
+        m.battery = before.battery == BatteryMode::normal
+                        ? (r.battery.charge_W >= 0.0 ? BatteryMode::full : BatteryMode::empty)
+                        : BatteryMode::normal;
+      }
+      break;
+    default:
+      break;
+  }
+  ++result_.stats.switches;
+  track_episodes(before, m, t);
+}
+
+// Applies every switch whose guard is already below zero, so the mode matches the state.
+void Engine::settle(State& x, Mode& m, const Forcing& f, double t) {
+  for (int pass = 0; pass < kMaxSwitchesAtOnce; ++pass) {
+    const Rates r = rates(x, m, f);
+    std::array<double, 8> g;
+    guards(x, m, f, r, g);
+    int fired = -1;
+    for (int k = 0; k < kGuardCount; ++k) {
+      if (g[k] < 0.0) {
+        fired = k;
+        break;
+      }
+    }
+    if (fired < 0) return;
+    apply_switch(fired, x, m, f, r, t);
+  }
+  fail("the modes do not settle (switches chatter)", t);
+}
+
+bool Engine::at_rest(const State& x, const Mode& m, const Forcing& f) const {
+  if (f.rain_m_per_s > 0.0 || m.overflowing) return false;
+  if (plant_.has_column() && (m.column == ColumnMode::full || x[kColumn] > kColumnDry_m3)) {
+    return false;
+  }
+  const double ceiling = release_->rest_ceiling_m(m.release);
+  if (ceiling < 0.0) return false;
+  const double limit = std::min(ceiling, geometry_.rim_m() + kHoldHead_m);
+  return x[kReservoir] + std::max(0.0, x[kRoof]) <= geometry_.volume_m3(limit);
+}
+
+// Dry time at rest in closed form: the roof store empties exponentially into the diverter and the
+// reservoir, the initial loss dries linearly, the battery serves the load.
+void Engine::coast(double dt, const Forcing& f) {
+  State& x = x_;
+  if (sc_.roof.lag_s > 0.0) {
+    const double left = x[kRoof] * std::exp(-dt / sc_.roof.lag_s);
+    const double out = x[kRoof] - left;
+    x[kRoof] = left;
+    x[kRoofRunoff] += out;
+    double to_reservoir = out;
+    if (sc_.first_flush.volume_m3 > 0.0 && !mode_.flush_full) {
+      const double taken = std::min(out, sc_.first_flush.volume_m3 - x[kFlush]);
+      x[kFlush] += taken;
+      x[kFirstFlush] += taken;
+      to_reservoir -= taken;
+      if (x[kFlush] >= sc_.first_flush.volume_m3) {
+        x[kFlush] = sc_.first_flush.volume_m3;
+        mode_.flush_full = true;
+      }
+    }
+    x[kReservoir] += to_reservoir;
+  }
+  if (mode_.depression == Depression::drying) {
+    x[kDepression] = std::max(0.0, x[kDepression] - sc_.roof.drying_m_per_s * dt);
+    if (x[kDepression] <= 0.0) mode_.depression = Depression::dry;
+  }
+  const double demand = f.load_W * dt;
+  const double drawn = std::min(std::max(0.0, x[kBattery]), demand);
+  x[kBattery] -= drawn;
+  x[kServed] += drawn;
+  x[kUnmet] += demand - drawn;
+  mode_.battery = battery_mode(x[kBattery], 0.0, f.load_W, sc_.battery);
+  result_.stats.coasted_s += dt;
+}
+
+void Engine::integrate(double t0, double t1, const Forcing& f) {
+  const auto system = [this, &f](const State& x, State& dxdt, double) {
+    dxdt = rates(x, mode_, f).dxdt;
+  };
+  const double span = t1 - t0;
+  double t = 0.0;  // time within the segment, for precision
+  Dense stepper(Controlled(checker_, odeint::default_step_adjuster<double, double>(kMaxStep_s)));
+  double dt = std::min(span, 10.0);
+  bool fresh = true;
+  State x_prev{};
+  std::array<double, 8> g_prev{};
+  while (t < span) {
+    if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
+    if (at_rest(x_, mode_, f)) {
+      coast(span - t, f);
+      now_s_ = t1;
+      return;
+    }
+    if (fresh) {
+      settle(x_, mode_, f, now_s_);
+      stepper.initialize(x_, t, std::min(dt, span - t));
+      const Rates r = rates(x_, mode_, f);
+      guards(x_, mode_, f, r, g_prev);
+      update_peaks(r);
+      fresh = false;
+    } else if (stepper.current_time() + stepper.current_time_step() > span) {
+      stepper.initialize(x_, t, span - t);
+    }
+    x_prev = x_;
+    std::pair<double, double> step;
+    try {
+      step = stepper.do_step(system);
+    } catch (const odeint::odeint_error& e) {
+      fail(std::string("the solver made no progress (") + e.what() + ")", t0 + t);
+    }
+    ++result_.stats.steps;
+    double t_end = std::min(step.second, span);
+    State x_end;
+    stepper.calc_state(t_end, x_end);
+    Rates r = rates(x_end, mode_, f);
+    std::array<double, 8> g_end;
+    guards(x_end, mode_, f, r, g_end);
+
+    // Earliest guard that crossed zero within the step, located on the dense output.
+    int first = -1;
+    double t_switch = t_end;
+    for (int k = 0; k < kGuardCount; ++k) {
+      if (!(g_prev[k] >= 0.0 && g_end[k] < 0.0)) continue;
+      const auto guard_at = [&](double tau) {
+        State xs;
+        stepper.calc_state(tau, xs);
+        std::array<double, 8> gs;
+        guards(xs, mode_, f, rates(xs, mode_, f), gs);
+        return gs[k];
+      };
+      double lo = step.first;
+      double hi = t_switch;
+      if (guard_at(hi) >= 0.0) continue;  // crosses only after an earlier switch
+      // Bisection on the dense output to 1e-7 s: a switch is placed, not rounded to a step.
+      while (hi - lo > 1e-7) {
+        const double mid = 0.5 * (lo + hi);
+        if (guard_at(mid) < 0.0)
+          hi = mid;
+        else
+          lo = mid;
+      }
+      t_switch = hi;
+      first = k;
+    }
+    if (first >= 0) {
+      t_end = t_switch;
+      stepper.calc_state(t_end, x_end);
+      r = rates(x_end, mode_, f);
+    }
+    for (double v : x_end) {
+      if (!std::isfinite(v)) {
+        x_ = x_end;
+        fail("the state is not finite", t0 + t_end);
+      }
+    }
+    x_ = x_end;
+    t = t_end;
+    now_s_ = t0 + t;
+    update_peaks(r);
+    if (first >= 0) {
+      apply_switch(first, x_, mode_, f, r, now_s_);
+      dt = std::max(1e-3, stepper.current_time_step());
+      fresh = true;
+    } else {
+      g_prev = g_end;
+      if (step.second > span) break;
+    }
+  }
+  now_s_ = t1;
+}
+
+void Engine::advance(Instant t0, Instant t1, const Forcing& f) {
+  if (t1 <= t0) return;
+  ++result_.stats.segments;
+  // The initial loss fills while it rains and dries otherwise.
+  const double loss = sc_.roof.initial_loss_m;
+  if (f.rain_m_per_s > 0.0) {
+    mode_.depression = x_[kDepression] < loss ? Depression::filling : Depression::full;
+  } else {
+    mode_.depression = x_[kDepression] > 0.0 ? Depression::drying : Depression::dry;
+  }
+  now_s_ = static_cast<double>(t0);
+  if (at_rest(x_, mode_, f)) {
+    coast(static_cast<double>(t1 - t0), f);
+  } else {
+    integrate(static_cast<double>(t0), static_cast<double>(t1), f);
+  }
+  now_s_ = static_cast<double>(t1);
+  if (f.rain_m_per_s > 0.0) last_wet_s_ = now_s_;
+}
+
+void Engine::open_episode(EpisodeKind kind, double t) {
+  OpenEpisode& e = episodes_[static_cast<std::size_t>(kind)];
+  e.open = true;
+  e.start_s = t;
+  e.peak = 0.0;
+  e.start_energy_J = x_[kElectrical];
+  switch (kind) {
+    case EpisodeKind::cycle:
+      e.start_volume_m3 = x_[kRelease];
+      break;
+    case EpisodeKind::overflow:
+      e.start_volume_m3 = x_[kReservoirOverflow];
+      break;
+    case EpisodeKind::dribble:
+      e.start_volume_m3 = x_[kDribble];
+      break;
+    case EpisodeKind::column_overflow:
+      e.start_volume_m3 = x_[kColumnOverflow];
+      break;
+  }
+}
+
+void Engine::close_episode(EpisodeKind kind, double t) {
+  OpenEpisode& e = episodes_[static_cast<std::size_t>(kind)];
+  if (!e.open) return;
+  e.open = false;
+  double volume = 0.0;
+  switch (kind) {
+    case EpisodeKind::cycle:
+      volume = x_[kRelease] - e.start_volume_m3;
+      ++result_.cycles;
+      break;
+    case EpisodeKind::overflow:
+      volume = x_[kReservoirOverflow] - e.start_volume_m3;
+      ++result_.overflow_events;
+      result_.overflow_s += t - e.start_s;
+      break;
+    case EpisodeKind::dribble:
+      volume = x_[kDribble] - e.start_volume_m3;
+      ++result_.dribble_episodes;
+      result_.dribble_s += t - e.start_s;
+      break;
+    case EpisodeKind::column_overflow:
+      volume = x_[kColumnOverflow] - e.start_volume_m3;
+      break;
+  }
+  observer_.on_episode(
+      Episode{kind, e.start_s, t, volume, e.peak, x_[kElectrical] - e.start_energy_J});
+}
+
+void Engine::track_episodes(const Mode& before, const Mode& after, double t) {
+  const bool ran = release_->is_running(before.release);
+  const bool runs = release_->is_running(after.release);
+  if (ran && !runs) close_episode(EpisodeKind::cycle, t);
+  if (!ran && runs) open_episode(EpisodeKind::cycle, t);
+  const bool dribbled = before.release == ReleaseState::dribble;
+  const bool dribbles = after.release == ReleaseState::dribble;
+  if (dribbled && !dribbles) close_episode(EpisodeKind::dribble, t);
+  if (!dribbled && dribbles) open_episode(EpisodeKind::dribble, t);
+  if (before.overflowing && !after.overflowing) close_episode(EpisodeKind::overflow, t);
+  if (!before.overflowing && after.overflowing) open_episode(EpisodeKind::overflow, t);
+  const bool brim = before.column == ColumnMode::full;
+  const bool brims = after.column == ColumnMode::full;
+  if (brim && !brims) close_episode(EpisodeKind::column_overflow, t);
+  if (!brim && brims) open_episode(EpisodeKind::column_overflow, t);
+}
+
+void Engine::update_peaks(const Rates& r) {
+  auto bump = [&](EpisodeKind kind, double q) {
+    OpenEpisode& e = episodes_[static_cast<std::size_t>(kind)];
+    if (e.open) e.peak = std::max(e.peak, q);
+  };
+  bump(EpisodeKind::cycle, r.release);
+  bump(EpisodeKind::dribble, r.release);
+  bump(EpisodeKind::overflow, r.overflow);
+  bump(EpisodeKind::column_overflow, r.column_overflow);
+}
+
+Storage Engine::storage(const State& x) const {
+  Storage s;
+  s.roof_m3 = x[kRoof];
+  s.reservoir_m3 = x[kReservoir];
+  s.column_m3 = x[kColumn];
+  s.battery_J = x[kBattery];
+  return s;
+}
+
+Accounts Engine::accounts(const State& x) const {
+  Accounts a;
+  a.rain_m3 = x[kRain];
+  a.roof_loss_m3 = x[kRoofLoss];
+  a.roof_runoff_m3 = x[kRoofRunoff];
+  a.first_flush_m3 = x[kFirstFlush];
+  a.reservoir_overflow_m3 = x[kReservoirOverflow];
+  a.column_overflow_m3 = x[kColumnOverflow];
+  a.release_m3 = x[kRelease];
+  a.dribble_m3 = x[kDribble];
+  a.nozzle_m3 = x[kNozzle];
+  a.jet_J = x[kJet];
+  a.shaft_J = x[kShaft];
+  a.electrical_J = x[kElectrical];
+  a.accepted_J = x[kAccepted];
+  a.stored_J = x[kStored];
+  a.curtailed_J = x[kCurtailed];
+  a.served_J = x[kServed];
+  a.unmet_J = x[kUnmet];
+  return a;
+}
+
+Sample Engine::make_sample(Instant t, bool output, bool month_end) const {
+  Sample s;
+  s.time = t;
+  s.totals = accounts(x_);
+  s.storage = storage(x_);
+  const Rates r = rates(x_, mode_, Forcing{});
+  s.level_m = r.level_m;
+  s.release = mode_.release;
+  s.head_m = r.nozzle > 0.0 ? r.head_m : 0.0;
+  s.power_W = r.electrical_W;
+  s.soc = sc_.battery.capacity_J > 0.0 ? x_[kBattery] / sc_.battery.capacity_J : 0.0;
+  s.output = output;
+  s.month_end = month_end;
+  return s;
+}
+
+void Engine::fail(const std::string& what, double t) const {
+  std::ostringstream msg;
+  msg.precision(6);
+  msg << "simulation failed at "
+      << format_iso8601(static_cast<Instant>(std::floor(t)), sc_.site.utc_offset_s)
+      << " (t = " << std::fixed << t << " s): " << what << "; mode: release "
+      << release_state_name(mode_.release) << (mode_.overflowing ? ", overflowing" : "")
+      << (mode_.column == ColumnMode::full ? ", column brim-full" : "") << "; state: level "
+      << geometry_.level_m(x_[kReservoir]) * 1e3 << " mm, reservoir " << x_[kReservoir] * 1e3
+      << " L, roof " << x_[kRoof] * 1e3 << " L, column " << x_[kColumn] * 1e3 << " L, battery "
+      << x_[kBattery] / kJoulesPerWh << " Wh";
+  throw SimulationError(msg.str());
+}
+
+RunResult Engine::run() {
+  if (rain_.covered.empty()) {
+    throw InputError(sc_.file.string(), 0, "rain", "the rain record holds no data");
+  }
+  const Instant start = sc_.simulation.start.value_or(rain_.covered.front().start);
+  const Instant end = sc_.simulation.end.value_or(rain_.covered.back().end);
+  if (end <= start) {
+    throw InputError(
+        sc_.file.string(), 0, "simulation.end",
+        "must be after simulation.start (" + format_iso8601(start, sc_.site.utc_offset_s) + ")");
+  }
+  // Time in the window that the record does not cover, in order.
+  std::vector<TimeSpan> missing;
+  {
+    Instant cursor = start;
+    for (const TimeSpan& c : rain_.covered) {
+      if (c.end <= cursor) continue;
+      if (c.start >= end) break;
+      if (c.start > cursor) missing.push_back({cursor, std::min(c.start, end)});
+      cursor = std::max(cursor, c.end);
+      if (cursor >= end) break;
+    }
+    if (cursor < end) missing.push_back({cursor, end});
+  }
+  if (!missing.empty() && rain_.policy == GapPolicy::error) {
+    const TimeSpan& m = missing.front();
+    const int off = sc_.site.utc_offset_s;
+    const bool before = m.start == start && m.start < rain_.covered.front().start;
+    const bool after = m.end == end && m.start >= rain_.covered.back().end;
+    const std::string field = before ? "simulation.start" : after ? "simulation.end" : "rain";
+    throw InputError(sc_.file.string(), 0, field,
+                     "the rain record has no data from " + format_iso8601(m.start, off) + " to " +
+                         format_iso8601(m.end, off) +
+                         "; move the period inside the record or set rain.gaps: zero or skip");
+  }
+  const bool skip_missing = rain_.policy == GapPolicy::skip;
+
+  result_.start = start;
+  result_.end = end;
+  checker_.rtol = sc_.simulation.rtol;
+  checker_.scale.fill(1e-3);  // m3 (1 L) for volumes, m (1 mm) for depth
+  for (std::size_t i = kJet; i <= kUnmet; ++i) checker_.scale[i] = 1.0;  // J
+  checker_.scale[kBattery] = 1.0;
+
+  x_[kReservoir] = geometry_.volume_m3(sc_.reservoir.initial_level_m);
+  x_[kBattery] = sc_.battery.initial_soc * sc_.battery.capacity_J;
+  mode_.release = release_->initial_state(sc_.reservoir.initial_level_m);
+  mode_.overflowing = sc_.reservoir.initial_level_m > geometry_.rim_m() + kHoldHead_m;
+  mode_.generator_on = sc_.generator.cut_in_W <= 0.0;
+  mode_.battery = battery_mode(x_[kBattery], 0.0, sc_.battery.load_W, sc_.battery);
+  now_s_ = static_cast<double>(start);
+  if (release_->is_running(mode_.release)) open_episode(EpisodeKind::cycle, now_s_);
+  if (mode_.release == ReleaseState::dribble) open_episode(EpisodeKind::dribble, now_s_);
+  if (mode_.overflowing) open_episode(EpisodeKind::overflow, now_s_);
+  result_.initial = storage(x_);
+  observer_.on_start(make_sample(start, false, false));
+
+  const int off = sc_.site.utc_offset_s;
+  const Instant output_step = std::max<Instant>(1, std::llround(sc_.simulation.output_interval_s));
+  Instant next_output = start + output_step;
+  const CivilTime c0 = to_civil(start, off);
+  int month_year = c0.year;
+  int month = c0.month;
+  auto next_month_start = [&]() {
+    int y = month_year, mo = month + 1;
+    if (mo > 12) {
+      mo = 1;
+      ++y;
+    }
+    return month_start(y, mo, off);
+  };
+  Instant next_month = next_month_start();
+  const bool hourly_load = sc_.battery.load_profile_W.size() == 24;
+
+  auto pulse = std::lower_bound(rain_.pulses.begin(), rain_.pulses.end(), start,
+                                [](const RainPulse& p, Instant t) { return p.end <= t; });
+  auto gap = missing.begin();
+  Instant t = start;
+  while (t < end) {
+    Instant next = std::min({end, next_output, next_month});
+    while (pulse != rain_.pulses.end() && pulse->end <= t) ++pulse;
+    Forcing f;
+    if (pulse != rain_.pulses.end() && pulse->start <= t) {
+      f.rain_m_per_s = pulse->depth_m / static_cast<double>(pulse->end - pulse->start);
+      next = std::min(next, pulse->end);
+    } else if (pulse != rain_.pulses.end()) {
+      next = std::min(next, pulse->start);
+    }
+    while (gap != missing.end() && gap->end <= t) ++gap;
+    bool frozen = false;
+    if (skip_missing && gap != missing.end()) {
+      if (gap->start <= t) {
+        frozen = true;
+        next = std::min(next, gap->end);
+      } else {
+        next = std::min(next, gap->start);
+      }
+    }
+    if (sc_.first_flush.volume_m3 > 0.0 && x_[kFlush] > 0.0 && f.rain_m_per_s == 0.0) {
+      const double reset_at = last_wet_s_ + sc_.first_flush.reset_after_dry_s;
+      const Instant reset = static_cast<Instant>(std::ceil(reset_at));
+      if (reset <= t) {
+        // The diverter has drained to waste: the next event is diverted afresh.
+        x_[kFlush] = 0.0;
+        mode_.flush_full = false;
+      } else {
+        next = std::min(next, reset);
+      }
+    }
+    if (hourly_load) {
+      const Instant hour = (t + off) - ((t + off) % 3600 + 3600) % 3600 + 3600 - off;
+      next = std::min(next, hour);
+      f.load_W = battery_load_W(sc_.battery, to_civil(t, off).hour);
+    } else {
+      f.load_W = sc_.battery.load_W;
+    }
+    if (frozen) {
+      result_.stats.skipped_s += static_cast<double>(next - t);
+    } else {
+      advance(t, next, f);
+    }
+    t = next;
+    now_s_ = static_cast<double>(t);
+    const bool is_end = t >= end;
+    const bool is_output = t >= next_output || is_end;
+    const bool is_month = t >= next_month || is_end;
+    if (is_output || is_month) {
+      if (is_end) {
+        for (std::size_t k = 0; k < episodes_.size(); ++k) {
+          close_episode(static_cast<EpisodeKind>(k), now_s_);
+        }
+      }
+      observer_.on_sample(make_sample(t, is_output, is_month));
+    }
+    while (next_output <= t) next_output += output_step;
+    if (t >= next_month) {
+      const CivilTime c = to_civil(t, off);
+      month_year = c.year;
+      month = c.month;
+      next_month = next_month_start();
+    }
+  }
+
+  result_.totals = accounts(x_);
+  result_.final = storage(x_);
+  const Accounts& a = result_.totals;
+  const double out = a.roof_loss_m3 + a.first_flush_m3 + a.reservoir_overflow_m3 +
+                     a.column_overflow_m3 + a.nozzle_m3;
+  const double stored = result_.final.water_m3() - result_.initial.water_m3();
+  result_.balance_error_m3 = a.rain_m3 - out - stored;
+  const double scale = std::max({a.rain_m3, std::abs(result_.initial.water_m3()), 1e-9});
+  result_.balance_relative_error = std::abs(result_.balance_error_m3) / scale;
+  if (!(result_.balance_relative_error <= kMaxBalanceError)) {
+    std::ostringstream msg;
+    msg << "the water balance does not close: error " << result_.balance_error_m3 * 1e3 << " L of "
+        << a.rain_m3 * 1e3 << " L rain (relative " << result_.balance_relative_error << ", limit "
+        << kMaxBalanceError << ")";
+    fail(msg.str(), now_s_);
+  }
+  return result_;
+}
+
+}  // namespace
+}  // namespace detail
+
+RunResult simulate(const Scenario& scenario, const RainSeries& rain, Observer& observer,
+                   const RunOptions& options) {
+  detail::Engine engine(scenario, rain, observer, options);
+  return engine.run();
+}
+
+}  // namespace gutterwatt
