@@ -14,6 +14,7 @@
 #include <vector>
 
 #include "gutterwatt/calendar.hpp"
+#include "gutterwatt/design.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/output.hpp"
 #include "gutterwatt/rain_files.hpp"
@@ -36,15 +37,6 @@ constexpr int kExitOk = 0;
 constexpr int kExitFailure = 1;
 constexpr int kExitBadInput = 2;
 constexpr int kExitInterrupted = 130;
-
-const char* const kCautions =
-    "Cautions: roof and gutter work means working at height: use proper access and never work "
-    "alone. Batteries and generators can burn and shock: fuse every circuit and follow the "
-    "makers' instructions. Overflowing reservoirs soak walls and foundations and can ice over: "
-    "lead overflow well away from the building. A full gutter or tank is heavy: check that its "
-    "brackets and the fascia carry it. Standing water breeds mosquitoes: screen every opening. "
-    "These figures are estimates from a model; local building, plumbing and electrical codes and "
-    "licensed practitioners have the last word.";
 
 struct RunArgs {
   std::string scenario;
@@ -88,6 +80,24 @@ int run_command(const RunArgs& args) {
     std::cout << "wrote " << (dir / "timeseries.csv").string() << ", "
               << (dir / "events.csv").string() << ", " << (dir / "summary.json").string() << '\n';
   }
+  return kExitOk;
+}
+
+struct CheckArgs {
+  std::string scenario;
+  std::vector<std::string> set;
+  std::string rain;
+  bool no_rain = false;
+};
+
+int check_command(const CheckArgs& args) {
+  const Scenario sc = load_scenario(args.scenario, args.set);
+  std::optional<RainSeries> rain;
+  if (!args.no_rain) {
+    rain = load_rain(sc.rain, args.rain);
+    for (const std::string& w : rain->warnings) spdlog::warn("{}", w);
+  }
+  write_design(std::cout, sc, evaluate_design(sc, rain ? &*rain : nullptr));
   return kExitOk;
 }
 
@@ -164,6 +174,13 @@ int main(int argc, char** argv) {
   run_cmd->add_option("--to", run.to, "end of the simulated period (ISO 8601)");
   run_cmd->add_flag("--quiet", run.quiet, "print nothing on success");
 
+  CheckArgs check;
+  auto* check_cmd = app.add_subcommand("check", "validate a scenario and print its design figures");
+  check_cmd->add_option("scenario", check.scenario, "scenario file (YAML)")->required();
+  check_cmd->add_option("--set", check.set, "override a scenario key: key.path=value (repeatable)");
+  check_cmd->add_option("--rain", check.rain, "rain file to use instead of the scenario's");
+  check_cmd->add_flag("--no-rain", check.no_rain, "do not read the rain record");
+
   std::string report_dir;
   auto* report_cmd =
       app.add_subcommand("report", "write DIR/report.html from a run or sweep folder");
@@ -201,6 +218,7 @@ int main(int argc, char** argv) {
 
   try {
     if (*run_cmd) return run_command(run);
+    if (*check_cmd) return check_command(check);
     if (*report_cmd) {
       std::cout << "wrote " << write_report(report_dir).string() << '\n';
       return kExitOk;
@@ -219,6 +237,5 @@ int main(int argc, char** argv) {
     spdlog::error("{}", e.what());
     return kExitFailure;
   }
-  (void)kCautions;
   return kExitOk;
 }

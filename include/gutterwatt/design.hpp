@@ -1,0 +1,46 @@
+#pragma once
+/// Design figures of a scenario, worked out from the same physics the simulation uses: what
+/// `gutterwatt check` prints. No time stepping: closed forms and quadratures of the steady laws.
+
+#include <optional>
+#include <ostream>
+#include <string>
+#include <vector>
+
+#include "gutterwatt/rain_input.hpp"
+#include "gutterwatt/scenario.hpp"
+
+namespace gutterwatt {
+
+/// Figures in SI. Optional ones are absent where the release kind or the record has none.
+struct DesignFigures {
+  std::optional<double> storage_m3;       ///< between the set-points (bell: priming level)
+  std::optional<double> priming_level_m;  ///< bell: lip + weir head of the priming flow
+  std::optional<double> priming_intensity_m_per_s;  ///< steady rain that just primes the bell
+  std::optional<double> priming_exceedance;         ///< share of wet record time at or above it
+  double running_flow_trigger_m3_per_s = 0.0;       ///< release running full, level at trigger
+  double running_flow_break_m3_per_s = 0.0;         ///< ... at the break level
+  std::optional<double> cycle_drain_s;  ///< running time from the set-point to break, no inflow
+  double design_head_m = 0.0;           ///< at the nozzle, release running at trigger
+  double nozzle_flow_m3_per_s = 0.0;    ///< at the design head
+  double jet_velocity_m_per_s = 0.0;
+  double jet_power_W = 0.0;
+  double electrical_power_W = 0.0;
+  double overflow_intensity_m_per_s = 0.0;   ///< steady rain that overflows the rim while running
+  std::optional<double> energy_per_cycle_J;  ///< no head column: quadrature over the drain
+  std::optional<double> column_fill_s;       ///< head column: time to brim-full while running
+  std::optional<double> record_median_intensity_m_per_s;  ///< of wet record intervals
+  std::optional<double> record_peak_intensity_m_per_s;    ///< median annual maximum (2-year)
+  std::vector<std::string> warnings;
+};
+
+/// Works out the figures; `rain` may be null (no record given or readable).
+DesignFigures evaluate_design(const Scenario& scenario, const RainSeries* rain);
+
+/// Writes the figures with their units, the warnings in plain words, then the cautions.
+void write_design(std::ostream& out, const Scenario& scenario, const DesignFigures& figures);
+
+/// The safety cautions printed by `check` and at the foot of the report.
+const char* safety_cautions();
+
+}  // namespace gutterwatt

@@ -1,0 +1,257 @@
+#include "gutterwatt/design.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <map>
+
+#include "gutterwatt/hydraulics.hpp"
+#include "gutterwatt/plant.hpp"
+#include "gutterwatt/reservoir.hpp"
+#include "gutterwatt/siphon.hpp"
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+namespace {
+
+constexpr double kMmPerHourPerMPerS = 3.6e6;
+constexpr double kLitresPerMinutePerM3PerS = 6e4;
+
+// Composite Simpson's rule on n (even) panels.
+template <class F>
+double simpson(F f, double a, double b, int n = 400) {
+  const double h = (b - a) / n;
+  double s = f(a) + f(b);
+  for (int k = 1; k < n; ++k) s += f(a + k * h) * (k % 2 ? 4.0 : 2.0);
+  return s * h / 3.0;
+}
+
+// Steady rain intensity whose roof runoff equals `flow` (rational method Q = C i A).
+double intensity_for_flow(const Scenario& sc, double flow_m3_per_s) {
+  return flow_m3_per_s / (sc.roof.runoff_coefficient * sc.roof.area_m2);
+}
+
+double wet_intensity(const RainPulse& p) {
+  return p.depth_m / static_cast<double>(p.end - p.start);
+}
+
+std::string fmt(double v, int decimals) {
+  char buf[64];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  return buf;
+}
+
+}  // namespace
+
+const char* safety_cautions() {
+  return "Working at height: roof and gutter work needs safe access (a secured ladder or a "
+         "platform), a second person, and no work in wind, rain or ice.\n"
+         "Electrics and batteries: batteries store enough energy to burn and start fires; fuse "
+         "every circuit next to the battery, ventilate lead-acid batteries, and keep water away "
+         "from terminals and the generator's wiring.\n"
+         "Overflow water: an overflowing gutter or tank soaks walls and foundations and can flood "
+         "neighbours; lead overflow to a safe drain, well away from the building.\n"
+         "Gutter loading: a gutter held full of water weighs several kilograms per metre; check "
+         "that brackets and fascia carry it, and snow and ice on top.\n"
+         "Standing water: screen every opening against mosquitoes and keep children and animals "
+         "away from open tanks.\n"
+         "These are model estimates. Local building, plumbing and electrical codes and licensed "
+         "practitioners have the last word.";
+}
+
+DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
+  DesignFigures d;
+  const ReservoirGeometry geometry(sc.reservoir);
+  const Plant plant(sc);
+  const ReleaseConfig& rel = sc.release;
+  const bool has_set_points = rel.kind == ReleaseKind::bell || rel.kind == ReleaseKind::float_valve;
+  double top_m = has_set_points ? rel.trigger_level_m : geometry.rim_m();
+  if (rel.kind == ReleaseKind::bell) {
+    const BellSiphon bell(rel);
+    d.priming_level_m = std::min(bell.priming_level_m(), geometry.rim_m());
+    top_m = *d.priming_level_m;
+    d.priming_intensity_m_per_s = intensity_for_flow(sc, rel.priming_flow_m3_per_s);
+  }
+  const double bottom_m = has_set_points ? rel.break_level_m : 0.0;
+  if (has_set_points) d.storage_m3 = geometry.volume_m3(top_m) - geometry.volume_m3(bottom_m);
+
+  // Outflow with the release running full (float valve and orifice: their orifice may limit it).
+  const double orifice_area = circle_area_m2(rel.orifice_diameter_m);
+  const auto release_flow = [&](double level_m) {
+    const double full = plant.full_flow_m3_per_s(level_m);
+    if (rel.kind == ReleaseKind::float_valve || rel.kind == ReleaseKind::orifice) {
+      return std::min(full, orifice_flow_m3_per_s(rel.orifice_coefficient, orifice_area, level_m));
+    }
+    return rel.kind == ReleaseKind::none ? 0.0 : full;
+  };
+  d.running_flow_trigger_m3_per_s = release_flow(top_m);
+  d.running_flow_break_m3_per_s = release_flow(bottom_m);
+  d.overflow_intensity_m_per_s = intensity_for_flow(sc, release_flow(geometry.rim_m()));
+
+  const auto nozzle_head = [&](double flow) {
+    return plant.has_column() ? sc.head_column->height_m : plant.nozzle_head_for_flow_m(flow);
+  };
+  d.design_head_m = nozzle_head(d.running_flow_trigger_m3_per_s);
+  d.nozzle_flow_m3_per_s = plant.has_column()
+                               ? plant.column_nozzle_flow_m3_per_s(plant.column_capacity_m3())
+                               : d.running_flow_trigger_m3_per_s;
+  const PlantPower p = plant.power(d.nozzle_flow_m3_per_s, d.design_head_m);
+  d.jet_velocity_m_per_s = p.jet_velocity_m_per_s;
+  d.jet_power_W = p.jet_W;
+  d.electrical_power_W = p.electrical_W;
+
+  if (has_set_points && d.running_flow_break_m3_per_s > 0.0) {
+    // Drain time t = integral of A(h) dh / Q(h) from break to the set-point (level-pool).
+    d.cycle_drain_s = simpson(
+        [&](double h) { return geometry.surface_area_m2(h) / release_flow(h); }, bottom_m, top_m);
+    if (!plant.has_column()) {
+      d.energy_per_cycle_J = simpson(
+          [&](double h) {
+            const double q = release_flow(h);
+            const double e = plant.power(q, plant.nozzle_head_for_flow_m(q)).electrical_W;
+            return (e >= sc.generator.cut_in_W ? e : 0.0) * geometry.surface_area_m2(h) / q;
+          },
+          bottom_m, top_m);
+    }
+  }
+  if (plant.has_column() && d.running_flow_trigger_m3_per_s > d.nozzle_flow_m3_per_s) {
+    // Fill time of the column from empty, t = integral of dV / (Q_in - Q_nozzle(V)).
+    const double q_in = d.running_flow_trigger_m3_per_s;
+    d.column_fill_s =
+        simpson([&](double v) { return 1.0 / (q_in - plant.column_nozzle_flow_m3_per_s(v)); }, 0.0,
+                plant.column_capacity_m3());
+  }
+  if (rain && !rain->pulses.empty()) {
+    std::vector<std::pair<double, double>> wet;  // intensity, duration
+    double wet_s = 0.0;
+    std::map<int, double> annual_max;
+    for (const RainPulse& pulse : rain->pulses) {
+      const double dur = static_cast<double>(pulse.end - pulse.start);
+      wet.emplace_back(wet_intensity(pulse), dur);
+      wet_s += dur;
+      const int year = to_civil(pulse.start, sc.site.utc_offset_s).year;
+      annual_max[year] = std::max(annual_max[year], wet_intensity(pulse));
+    }
+    std::sort(wet.begin(), wet.end());
+    double acc = 0.0;
+    for (const auto& [i, dur] : wet) {
+      acc += dur;
+      if (acc >= 0.5 * wet_s) {
+        d.record_median_intensity_m_per_s = i;
+        break;
+      }
+    }
+    // The 2-year event is the median of the annual maxima (return period 1/(1 - 0.5)).
+    std::vector<double> maxima;
+    for (const auto& [year, m] : annual_max) maxima.push_back(m);
+    std::sort(maxima.begin(), maxima.end());
+    const std::size_t n = maxima.size();
+    d.record_peak_intensity_m_per_s =
+        n % 2 ? maxima[n / 2] : 0.5 * (maxima[n / 2 - 1] + maxima[n / 2]);
+    if (d.priming_intensity_m_per_s) {
+      double above = 0.0;
+      for (const auto& [i, dur] : wet) {
+        if (i >= *d.priming_intensity_m_per_s) above += dur;
+      }
+      d.priming_exceedance = above / wet_s;
+    }
+  }
+
+  // Warnings in plain words.
+  const auto mmh = [](double i) { return fmt(i * kMmPerHourPerMPerS, 1) + " mm/h"; };
+  if (d.priming_intensity_m_per_s && d.record_median_intensity_m_per_s &&
+      *d.priming_intensity_m_per_s > *d.record_median_intensity_m_per_s) {
+    d.warnings.push_back(
+        "The siphon needs " + mmh(*d.priming_intensity_m_per_s) +
+        " of rain to prime, more than the record's usual (median) wet intensity of " +
+        mmh(*d.record_median_intensity_m_per_s) +
+        ": in most rain it will dribble without cycling. A lower priming flow, a "
+        "larger roof or a float valve would help.");
+  }
+  if (d.record_peak_intensity_m_per_s &&
+      d.overflow_intensity_m_per_s < *d.record_peak_intensity_m_per_s) {
+    d.warnings.push_back(
+        "The release running full carries the runoff of " + mmh(d.overflow_intensity_m_per_s) +
+        " of rain, less than the record's 2-year peak of " + mmh(*d.record_peak_intensity_m_per_s) +
+        " (median of the annual maxima at the record's step): the reservoir will "
+        "overflow in heavy rain. Lead the overflow somewhere safe.");
+  }
+  if (!plant.has_column() && d.running_flow_trigger_m3_per_s > 0.0) {
+    const double total = top_m + sc.drop_m;
+    const double loss = total - d.design_head_m;
+    if (loss > 0.2 * total) {
+      d.warnings.push_back("The drop pipe loses " + fmt(100.0 * loss / total, 0) +
+                           " % of the head to friction and fittings: it starves the nozzle. A "
+                           "wider pipe or a smaller nozzle would deliver more.");
+    }
+  }
+  if (plant.has_column() && d.running_flow_trigger_m3_per_s < d.nozzle_flow_m3_per_s) {
+    d.warnings.push_back("The drop pipe carries " +
+                         fmt(d.running_flow_trigger_m3_per_s * kLitresPerMinutePerM3PerS, 1) +
+                         " L/min, less than the nozzle passes at the column's top (" +
+                         fmt(d.nozzle_flow_m3_per_s * kLitresPerMinutePerM3PerS, 1) +
+                         " L/min): the head column never fills and the nozzle runs starved.");
+  }
+  if (d.column_fill_s && d.cycle_drain_s && *d.column_fill_s < *d.cycle_drain_s) {
+    d.warnings.push_back(
+        "A cycle releases more water than the head column can hold while the "
+        "nozzle runs: the column overflows every cycle. A taller or wider column, "
+        "or a larger nozzle, would keep that water.");
+  }
+  if (sc.generator.cut_in_W > d.electrical_power_W) {
+    d.warnings.push_back("The generator's cut-in power (" + fmt(sc.generator.cut_in_W, 2) +
+                         " W) is above the design power (" + fmt(d.electrical_power_W, 2) +
+                         " W): it will deliver little or nothing.");
+  }
+  return d;
+}
+
+void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d) {
+  const auto line = [&](const std::string& label, const std::string& value,
+                        const std::string& unit) {
+    char buf[160];
+    std::snprintf(buf, sizeof buf, "  %-52s %12s  %s\n", label.c_str(), value.c_str(),
+                  unit.c_str());
+    out << buf;
+  };
+  const auto lpm = [](double q) { return fmt(q * kLitresPerMinutePerM3PerS, 2); };
+  const auto mmh = [](double i) { return fmt(i * kMmPerHourPerMPerS, 2); };
+  out << "Design figures for " << sc.site.name << " (" << sc.file.filename().string() << ")\n";
+  if (d.storage_m3) line("storage between the set-points", fmt(*d.storage_m3 * 1e3, 2), "L");
+  if (d.priming_level_m)
+    line("priming level (lip + weir head)", fmt(*d.priming_level_m * 1e3, 2), "mm");
+  if (d.priming_intensity_m_per_s) {
+    line("priming flow as steady rain on this roof", mmh(*d.priming_intensity_m_per_s), "mm/h");
+  }
+  if (d.priming_exceedance) {
+    line("  wet record time at or above it", fmt(*d.priming_exceedance * 100.0, 1), "%");
+  }
+  line("running flow at the set-point", lpm(d.running_flow_trigger_m3_per_s), "L/min");
+  line("running flow at the break level", lpm(d.running_flow_break_m3_per_s), "L/min");
+  if (d.cycle_drain_s) line("running time per cycle (no inflow)", fmt(*d.cycle_drain_s, 1), "s");
+  if (d.column_fill_s) line("head column brim-full after", fmt(*d.column_fill_s, 1), "s");
+  line(sc.head_column ? "design head (head column brim-full)" : "design head at the nozzle",
+       fmt(d.design_head_m, 3), "m");
+  line("nozzle flow at design head", lpm(d.nozzle_flow_m3_per_s), "L/min");
+  line("jet velocity", fmt(d.jet_velocity_m_per_s, 2), "m/s");
+  line("jet power", fmt(d.jet_power_W, 2), "W");
+  line("electrical power at design head", fmt(d.electrical_power_W, 2), "W");
+  line("rain that overflows the rim while the release runs", mmh(d.overflow_intensity_m_per_s),
+       "mm/h");
+  if (d.energy_per_cycle_J)
+    line("energy per cycle", fmt(*d.energy_per_cycle_J / kJoulesPerWh, 4), "Wh");
+  if (d.record_median_intensity_m_per_s) {
+    line("record: median wet intensity", mmh(*d.record_median_intensity_m_per_s), "mm/h");
+  }
+  if (d.record_peak_intensity_m_per_s) {
+    line("record: 2-year peak intensity (median annual max)", mmh(*d.record_peak_intensity_m_per_s),
+         "mm/h");
+  }
+  if (!d.warnings.empty()) {
+    out << "\nWarnings\n";
+    for (const std::string& w : d.warnings) out << "  - " << w << '\n';
+  }
+  out << "\nCautions\n" << safety_cautions() << '\n';
+}
+
+}  // namespace gutterwatt
