@@ -90,25 +90,20 @@ void SummaryBuilder::on_start(const Sample& s) {
   min_soc_ = s.soc;
 }
 
-MonthSummary& SummaryBuilder::month_of(double time_s) {
+PeriodSummary& SummaryBuilder::month_of(double time_s) {
   const std::string label = month_label(floor_instant(time_s), scenario_.site.utc_offset_s);
-  for (MonthSummary& m : months_) {
-    if (m.month == label) return m;
-  }
-  months_.push_back(MonthSummary{label});
-  std::sort(months_.begin(), months_.end(),
-            [](const MonthSummary& a, const MonthSummary& b) { return a.month < b.month; });
-  for (MonthSummary& m : months_) {
-    if (m.month == label) return m;
-  }
-  return months_.back();
+  auto it =
+      std::lower_bound(months_.begin(), months_.end(), label,
+                       [](const PeriodSummary& m, const std::string& l) { return m.label < l; });
+  if (it == months_.end() || it->label != label) it = months_.insert(it, PeriodSummary{label});
+  return *it;
 }
 
 void SummaryBuilder::on_sample(const Sample& s) {
   min_soc_ = std::min(min_soc_, s.soc);
   if (!s.month_end) return;
   // The month is the one the interval ending at s.time lies in.
-  MonthSummary& m = month_of(static_cast<double>(s.time) - 1.0);
+  PeriodSummary& m = month_of(static_cast<double>(s.time) - 1.0);
   const Accounts& a = s.totals;
   const Accounts& b = month_start_.totals;
   m.rain_m3 += a.rain_m3 - b.rain_m3;
@@ -127,25 +122,96 @@ void SummaryBuilder::on_episode(const Episode& e) {
     cycle_energy_J_ += e.energy_J;
     ++cycle_count_;
   } else if (e.kind == EpisodeKind::overflow) {
-    ++month_of(e.start_s).overflow_events;
-    largest_overflow_m3_ = std::max(largest_overflow_m3_, e.volume_m3);
-    const int off = scenario_.site.utc_offset_s;
-    for (Instant day = floor_instant(e.start_s); day <= floor_instant(e.end_s); day += 86400) {
-      const std::string label = format_iso8601(day, off).substr(0, 10);
-      if (std::find(overflow_days_.begin(), overflow_days_.end(), label) == overflow_days_.end()) {
-        overflow_days_.push_back(label);
-      }
-    }
-    const std::string last = format_iso8601(floor_instant(e.end_s), off).substr(0, 10);
-    if (std::find(overflow_days_.begin(), overflow_days_.end(), last) == overflow_days_.end()) {
-      overflow_days_.push_back(last);
+    PeriodSummary& m = month_of(e.start_s);
+    ++m.overflow_events;
+    m.overflow_s += e.end_s - e.start_s;
+    overflows_.push_back(e);
+  }
+}
+
+double SummaryBuilder::largest_overflow_m3() const {
+  double largest = 0.0;
+  for (const Episode& e : overflows_) largest = std::max(largest, e.volume_m3);
+  return largest;
+}
+
+long SummaryBuilder::overflow_days() const {
+  std::vector<std::string> days;
+  const int off = scenario_.site.utc_offset_s;
+  for (const Episode& e : overflows_) {
+    for (double t = e.start_s;; t += kSecondsPerDay) {
+      const double at = std::min(t, e.end_s);
+      days.push_back(format_iso8601(floor_instant(at), off).substr(0, 10));
+      if (at >= e.end_s) break;
     }
   }
+  std::sort(days.begin(), days.end());
+  return static_cast<long>(std::unique(days.begin(), days.end()) - days.begin());
 }
 
 double SummaryBuilder::energy_per_cycle_J() const {
   return cycle_count_ > 0 ? cycle_energy_J_ / static_cast<double>(cycle_count_) : 0.0;
 }
+
+std::string season_label(const std::string& month) {
+  int year = std::stoi(month.substr(0, 4));
+  const int mo = std::stoi(month.substr(5, 2));
+  if (mo == 12) ++year;
+  static const char* const kNames[] = {"DJF", "DJF", "MAM", "MAM", "MAM", "JJA",
+                                       "JJA", "JJA", "SON", "SON", "SON", "DJF"};
+  return std::to_string(year) + " " + kNames[mo - 1];
+}
+
+std::vector<PeriodSummary> SummaryBuilder::seasons() const {
+  std::vector<PeriodSummary> out;
+  for (const PeriodSummary& m : months_) {
+    const std::string label = season_label(m.label);
+    if (out.empty() || out.back().label != label) out.push_back(PeriodSummary{label});
+    PeriodSummary& s = out.back();
+    s.rain_m3 += m.rain_m3;
+    s.rain_depth_m += m.rain_depth_m;
+    s.electrical_J += m.electrical_J;
+    s.overflow_m3 += m.overflow_m3;
+    s.dribble_m3 += m.dribble_m3;
+    s.nozzle_m3 += m.nozzle_m3;
+    s.cycles += m.cycles;
+    s.overflow_events += m.overflow_events;
+    s.overflow_s += m.overflow_s;
+  }
+  return out;
+}
+
+double wettest_dry_intensity_m_per_s(const RainSeries& rain, Instant start, Instant end,
+                                     const std::vector<Episode>& overflows) {
+  double best = 0.0;
+  auto episode = overflows.begin();
+  for (const RainPulse& p : rain.pulses) {
+    if (p.end <= start || p.start >= end) continue;
+    const double t0 = static_cast<double>(p.start);
+    const double t1 = static_cast<double>(p.end);
+    while (episode != overflows.end() && episode->end_s <= t0) ++episode;
+    const bool overflowed = episode != overflows.end() && episode->start_s < t1;
+    if (!overflowed) best = std::max(best, p.depth_m / (t1 - t0));
+  }
+  return best;
+}
+
+namespace {
+
+nlohmann::json period_json(const PeriodSummary& p, const char* key) {
+  const auto L = [](double m3) { return round_to(m3 * kLitresPerM3, 6); };
+  return {{key, p.label},
+          {"rain_mm", round_to(p.rain_depth_m * kMmPerM, 4)},
+          {"energy_Wh", round_to(p.electrical_J / kJoulesPerWh, 6)},
+          {"overflow_L", L(p.overflow_m3)},
+          {"dribble_L", L(p.dribble_m3)},
+          {"through_nozzle_L", L(p.nozzle_m3)},
+          {"cycles", p.cycles},
+          {"overflow_events", p.overflow_events},
+          {"overflow_hours", round_to(p.overflow_s / kSecondsPerHour, 4)}};
+}
+
+}  // namespace
 
 void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries& rain,
                         const RunResult& r, const SummaryBuilder& summary) {
@@ -185,12 +251,28 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                  {"dribble_episodes", r.dribble_episodes},
                  {"dribble_hours", round_to(r.dribble_s / kSecondsPerHour, 4)}};
   const double runoff = a.roof_runoff_m3 > 0.0 ? a.roof_runoff_m3 : 1.0;
-  j["overflow"] = {{"events", r.overflow_events},
-                   {"hours", round_to(r.overflow_s / kSecondsPerHour, 4)},
-                   {"days", summary.overflow_days()},
-                   {"largest_L", L(summary.largest_overflow_m3())},
-                   {"share_of_runoff", round_to(a.reservoir_overflow_m3 / runoff, 6)},
-                   {"dribble_share_of_runoff", round_to(a.dribble_m3 / runoff, 6)}};
+  json largest = nullptr;
+  const auto& ov = summary.overflows();
+  const auto big = std::max_element(ov.begin(), ov.end(), [](const Episode& x, const Episode& y) {
+    return x.volume_m3 < y.volume_m3;
+  });
+  if (big != ov.end()) {
+    largest = {{"start", format_iso8601(floor_instant(big->start_s), off)},
+               {"end", format_iso8601(floor_instant(big->end_s), off)},
+               {"volume_L", L(big->volume_m3)},
+               {"peak_flow_L_per_s", round_to(big->peak_flow_m3_per_s * kLitresPerM3, 6)}};
+  }
+  j["overflow"] = {
+      {"events", r.overflow_events},
+      {"hours", round_to(r.overflow_s / kSecondsPerHour, 4)},
+      {"days", summary.overflow_days()},
+      {"largest", largest},
+      {"wettest_interval_without_overflow_mm_per_h",
+       round_to(wettest_dry_intensity_m_per_s(rain, r.start, r.end, summary.overflows()) *
+                    kSecondsPerHour * kMmPerM,
+                4)},
+      {"share_of_runoff", round_to(a.reservoir_overflow_m3 / runoff, 6)},
+      {"dribble_share_of_runoff", round_to(a.dribble_m3 / runoff, 6)}};
   const bool has_set_points =
       sc.release.kind == ReleaseKind::bell || sc.release.kind == ReleaseKind::float_valve;
   j["levels_mm"] = {
@@ -213,22 +295,16 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                  {"skipped_hours", round_to(r.stats.skipped_s / kSecondsPerHour, 4)},
                  {"rtol", sc.simulation.rtol}};
   json months = json::array();
-  for (const MonthSummary& m : summary.months()) {
-    months.push_back({{"month", m.month},
-                      {"rain_mm", round_to(m.rain_depth_m * kMmPerM, 4)},
-                      {"energy_Wh", Wh(m.electrical_J)},
-                      {"overflow_L", L(m.overflow_m3)},
-                      {"dribble_L", L(m.dribble_m3)},
-                      {"through_nozzle_L", L(m.nozzle_m3)},
-                      {"cycles", m.cycles},
-                      {"overflow_events", m.overflow_events}});
-  }
+  for (const PeriodSummary& m : summary.months()) months.push_back(period_json(m, "month"));
   j["months"] = months;
+  json seasons = json::array();
+  for (const PeriodSummary& m : summary.seasons()) seasons.push_back(period_json(m, "season"));
+  j["seasons"] = seasons;
   out << j.dump(2) << '\n';
 }
 
-void print_summary_table(std::ostream& out, const Scenario& sc, const RunResult& r,
-                         const SummaryBuilder& summary) {
+void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries& rain,
+                         const RunResult& r, const SummaryBuilder& summary) {
   const Accounts& a = r.totals;
   const int off = sc.site.utc_offset_s;
   const auto row = [&](const std::string& label, const std::string& value,
@@ -264,16 +340,30 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RunResult&
   row("overflow episodes", std::to_string(r.overflow_events), "");
   row("overflow time", num(r.overflow_s / kSecondsPerHour, 2), "h");
   row("days with overflow", std::to_string(summary.overflow_days()), "");
+  const double runoff = a.roof_runoff_m3 > 0.0 ? a.roof_runoff_m3 : 1.0;
+  row("share of roof runoff overflowing", num(100.0 * a.reservoir_overflow_m3 / runoff, 1), "%");
+  row("share of roof runoff dribbling", num(100.0 * a.dribble_m3 / runoff, 1), "%");
+  row("largest overflow episode", L(summary.largest_overflow_m3()), "L");
+  row("wettest interval without overflow",
+      num(wettest_dry_intensity_m_per_s(rain, r.start, r.end, summary.overflows()) *
+              kSecondsPerHour * kMmPerM,
+          1),
+      "mm/h");
   row("battery state of charge, lowest", num(summary.min_soc() * 100.0, 1), "%");
-  out << " by month\n";
-  out << "  month      rain mm   energy Wh   cycles   overflow L   dribble L\n";
-  for (const MonthSummary& m : summary.months()) {
-    out << "  " << std::left << std::setw(8) << m.month << std::right << std::setw(10)
-        << num(m.rain_depth_m * kMmPerM, 1) << std::setw(12)
-        << num(m.electrical_J / kJoulesPerWh, 2) << std::setw(9) << m.cycles << std::setw(13)
-        << num(m.overflow_m3 * kLitresPerM3, 1) << std::setw(12)
-        << num(m.dribble_m3 * kLitresPerM3, 1) << '\n';
-  }
+  const auto periods = [&](const char* title, const std::vector<PeriodSummary>& list) {
+    out << " by " << title << "\n";
+    out << "  " << std::left << std::setw(10) << title << std::right
+        << "  rain mm  energy Wh   cycles  overflows   overflow L   dribble L\n";
+    for (const PeriodSummary& m : list) {
+      out << "  " << std::left << std::setw(10) << m.label << std::right << std::setw(9)
+          << num(m.rain_depth_m * kMmPerM, 1) << std::setw(11)
+          << num(m.electrical_J / kJoulesPerWh, 2) << std::setw(9) << m.cycles << std::setw(11)
+          << m.overflow_events << std::setw(13) << num(m.overflow_m3 * kLitresPerM3, 1)
+          << std::setw(12) << num(m.dribble_m3 * kLitresPerM3, 1) << '\n';
+    }
+  };
+  periods("month", summary.months());
+  periods("season", summary.seasons());
 }
 
 OutputFolder::OutputFolder(std::filesystem::path dir) : dir_(std::move(dir)) {

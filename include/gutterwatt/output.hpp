@@ -41,18 +41,23 @@ class EventsWriter : public Observer {
   int offset_s_;
 };
 
-/// One calendar month (local time) of a run.
-struct MonthSummary {
-  std::string month;  ///< YYYY-MM
+/// One calendar month (local time), one meteorological season, or the whole run.
+struct PeriodSummary {
+  std::string label;  ///< `YYYY-MM` for a month; `YYYY DJF|MAM|JJA|SON` for a season
   double rain_m3 = 0.0;
   double rain_depth_m = 0.0;
   double electrical_J = 0.0;
-  double overflow_m3 = 0.0;
+  double overflow_m3 = 0.0;  ///< reservoir and head column
   double dribble_m3 = 0.0;
   double nozzle_m3 = 0.0;
   long cycles = 0;
   long overflow_events = 0;
+  double overflow_s = 0.0;
 };
+
+/// Meteorological seasons by local month: DJF, MAM, JJA, SON; December counts with the next
+/// year's January and February (`2025 DJF` is December 2024 to February 2025).
+std::string season_label(const std::string& month_label);
 
 /// Collects what summary.json and the table report beyond the run totals.
 class SummaryBuilder : public Observer {
@@ -62,32 +67,42 @@ class SummaryBuilder : public Observer {
   void on_sample(const Sample& s) override;
   void on_episode(const Episode& e) override;
 
-  const std::vector<MonthSummary>& months() const { return months_; }
+  const std::vector<PeriodSummary>& months() const { return months_; }
+  /// The months folded into meteorological seasons, in time order.
+  std::vector<PeriodSummary> seasons() const;
   double min_soc() const { return min_soc_; }
-  double largest_overflow_m3() const { return largest_overflow_m3_; }
-  long overflow_days() const { return static_cast<long>(overflow_days_.size()); }
+  /// Reservoir overflow episodes, in time order.
+  const std::vector<Episode>& overflows() const { return overflows_; }
+  /// Volume of the largest reservoir overflow episode (0 without any).
+  double largest_overflow_m3() const;
+  /// Distinct local days with reservoir overflow.
+  long overflow_days() const;
   double energy_per_cycle_J() const;
 
  private:
-  MonthSummary& month_of(double time_s);
+  PeriodSummary& month_of(double time_s);
 
   const Scenario& scenario_;
   Sample month_start_;
-  std::vector<MonthSummary> months_;
-  std::vector<std::string> overflow_days_;
+  std::vector<PeriodSummary> months_;
+  std::vector<Episode> overflows_;
   double min_soc_ = 1.0;
-  double largest_overflow_m3_ = 0.0;
   double cycle_energy_J_ = 0.0;
   long cycle_count_ = 0;
 };
+
+/// Intensity of the wettest record interval in [start, end) during which the reservoir did not
+/// overflow (0 when every wet interval overflowed or there is none), m/s.
+double wettest_dry_intensity_m_per_s(const RainSeries& rain, Instant start, Instant end,
+                                     const std::vector<Episode>& overflows);
 
 /// summary.json: water_L, energy_Wh, siphon, overflow, battery, months and more.
 void write_summary_json(std::ostream& out, const Scenario& scenario, const RainSeries& rain,
                         const RunResult& result, const SummaryBuilder& summary);
 
 /// The summary table printed after a run.
-void print_summary_table(std::ostream& out, const Scenario& scenario, const RunResult& result,
-                         const SummaryBuilder& summary);
+void print_summary_table(std::ostream& out, const Scenario& scenario, const RainSeries& rain,
+                         const RunResult& result, const SummaryBuilder& summary);
 
 /// Files in an output folder that appear only complete: each is written under a temporary name
 /// in the same folder and renamed into place by commit(). Without commit() (a failed or

@@ -76,7 +76,7 @@ int run_command(const RunArgs& args) {
   write_summary_json(folder.open("summary.json"), sc, rain, result, summary);
   folder.commit();
   if (!args.quiet) {
-    print_summary_table(std::cout, sc, result, summary);
+    print_summary_table(std::cout, sc, rain, result, summary);
     std::cout << "wrote " << (dir / "timeseries.csv").string() << ", "
               << (dir / "events.csv").string() << ", " << (dir / "summary.json").string() << '\n';
   }
