@@ -1,14 +1,19 @@
 #include "gutterwatt/rain_input.hpp"
 
 #include <algorithm>
+#include <cassert>
 #include <charconv>
 #include <cmath>
+#include <cstdio>
 #include <cstring>
+#include <limits>
+#include <random>
 #include <string_view>
 #include <unordered_map>
 #include <utility>
 
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/storm.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
@@ -212,24 +217,21 @@ class ExactSum {
   std::vector<double> partials_;
 };
 
-struct Header {
-  std::size_t time_index = 0;
-  std::size_t value_index = 0;
-};
-
-Header read_header(std::string_view line, int line_number, const std::string& file_label,
-                   const SeriesFormat& fmt) {
+// The index of each wanted column in a header line, found by name.
+std::vector<std::size_t> find_columns(std::string_view line, int line_number,
+                                      const std::string& file_label,
+                                      const std::vector<std::string>& wanted) {
   std::vector<std::string> names;
   std::string_view rest = line;
   bool more = true;
   while (more) names.push_back(unescape_quotes(next_field(rest, more)));
 
-  const auto find_column = [&](const std::string& wanted) {
+  const auto find_column = [&](const std::string& column) {
     std::size_t found = names.size();
     for (std::size_t i = 0; i < names.size(); ++i) {
-      if (names[i] != wanted) continue;
+      if (names[i] != column) continue;
       if (found != names.size()) {
-        throw InputError(file_label, line_number, wanted,
+        throw InputError(file_label, line_number, column,
                          "appears twice in the header (columns " + std::to_string(found + 1) +
                              " and " + std::to_string(i + 1) + ")");
       }
@@ -241,15 +243,186 @@ Header read_header(std::string_view line, int line_number, const std::string& fi
         if (!list.empty()) list += ", ";
         list += quoted(name);
       }
-      throw InputError(file_label, line_number, wanted,
+      throw InputError(file_label, line_number, column,
                        "no such column in the header (found " + list + ")");
     }
     return found;
   };
-  Header header;
-  header.time_index = find_column(fmt.time_column);
-  header.value_index = find_column(fmt.value_column);
-  return header;
+  std::vector<std::size_t> indexes;
+  for (const std::string& column : wanted) indexes.push_back(find_column(column));
+  return indexes;
+}
+
+// The fields of a row at `indexes` (header order of the wanted columns). Throws when the row is
+// too short, naming the first column it lacks.
+void take_fields(std::string_view line, int line_number, const std::string& file_label,
+                 const std::vector<std::size_t>& indexes, const std::vector<std::string>& columns,
+                 std::vector<std::string_view>& fields) {
+  const std::size_t last_index = *std::max_element(indexes.begin(), indexes.end());
+  fields.assign(indexes.size(), {});
+  std::string_view rest = line;
+  bool more = true;
+  std::size_t index = 0;
+  for (; more && index <= last_index; ++index) {
+    const std::string_view field = next_field(rest, more);
+    for (std::size_t c = 0; c < indexes.size(); ++c) {
+      if (indexes[c] == index) fields[c] = field;
+    }
+  }
+  if (index > last_index) return;
+  std::size_t missing = 0;
+  while (indexes[missing] < index) ++missing;
+  throw InputError(file_label, line_number, columns[missing],
+                   "missing (the row has " + std::to_string(index) +
+                       (index == 1 ? " field" : " fields") + ", the column is field " +
+                       std::to_string(indexes[missing] + 1) + ")");
+}
+
+// A depth or intensity as written: finite and not negative; too small for a double is no rain.
+double parse_amount(std::string_view text, const std::string& file_label, int line_number,
+                    const std::string& column) {
+  std::string_view digits = text;
+  if (digits.size() > 1 && digits.front() == '+') digits.remove_prefix(1);
+  double value = 0.0;
+  const char* const end = digits.data() + digits.size();
+  const auto [stop, ec] = std::from_chars(digits.data(), end, value);
+  if (ec == std::errc::result_out_of_range && stop == end) {
+    // Too small for a double (1e-400) is no rain; too large (1e400) is not a finite amount.
+    const bool underflow = digits.find("e-") != digits.npos || digits.find("E-") != digits.npos;
+    if (underflow && digits.front() != '-') return 0.0;
+    throw InputError(file_label, line_number, column,
+                     (underflow ? "must not be negative (got " + std::string(text) + ")"
+                                : "not a finite number (got " + quoted(text) + ")"));
+  }
+  if (ec != std::errc{} || stop != end || digits.empty() || std::isnan(value)) {
+    throw InputError(file_label, line_number, column, "not a number (got " + quoted(text) + ")");
+  }
+  if (std::isinf(value)) {
+    throw InputError(file_label, line_number, column,
+                     "not a finite number (got " + quoted(text) + ")");
+  }
+  if (value < 0.0) {
+    throw InputError(file_label, line_number, column,
+                     "must not be negative (got " + std::string(text) + ")");
+  }
+  return value == 0.0 ? 0.0 : value;  // -0 becomes 0
+}
+
+// Words for the time column's messages: series stamps, tip stamps or dates.
+struct StampWords {
+  const char* expected;  ///< what a good value looks like
+  const char* same;      ///< what an equal value is
+  const char* noun;      ///< what one value is called
+  bool repeats_allowed;
+  bool dates_only;
+};
+
+constexpr StampWords kSeriesStamps{"an ISO 8601 date-time such as 2025-03-01T00:05",
+                                   "the same instant as", "stamp", false, false};
+constexpr StampWords kTipStamps{"an ISO 8601 date-time such as 2025-03-01T00:05",
+                                "the same instant as", "stamp", true, false};
+constexpr StampWords kDates{"a date such as 2025-03-01", "the same day as", "date", false, true};
+
+// Parses the time column row by row and checks what holds across rows: one time-zone style per
+// file, and time order.
+class StampReader {
+ public:
+  StampReader(const std::string& file_label, const std::string& column, int default_offset_s,
+              const StampWords& words)
+      : file_(file_label), column_(column), default_offset_s_(default_offset_s), words_(words) {}
+
+  ParsedTime read(std::string_view text, int line_number) {
+    std::optional<ParsedTime> parsed = parse_iso8601(text, default_offset_s_);
+    if (words_.dates_only && text.size() != 10) parsed.reset();
+    if (!parsed) {
+      throw InputError(file_, line_number, column_,
+                       std::string("not ") + words_.expected + " (got " + quoted(text) + ")");
+    }
+    if (count_ == 0) {
+      first_has_offset_ = parsed->has_offset;
+      first_line_ = line_number;
+    } else {
+      if (parsed->has_offset != first_has_offset_) {
+        throw InputError(file_, line_number, column_,
+                         "mixed time zones: " + quoted(text) +
+                             (parsed->has_offset ? " has a UTC offset but the stamp on line " +
+                                                       std::to_string(first_line_) + " has none"
+                                                 : " has no UTC offset but the stamp on line " +
+                                                       std::to_string(first_line_) + " has one"));
+      }
+      const std::string previous =
+          quoted(previous_text_) + " (line " + std::to_string(previous_line_) + ")";
+      if (parsed->instant == previous_ && !words_.repeats_allowed) {
+        throw InputError(
+            file_, line_number, column_,
+            quoted(text) + " is " + words_.same + " the previous " + words_.noun + " " + previous);
+      }
+      if (parsed->instant < previous_) {
+        throw InputError(file_, line_number, column_,
+                         quoted(text) + " is earlier than the previous " + words_.noun + " " +
+                             previous + "; rows must be in time order");
+      }
+    }
+    ++count_;
+    previous_ = parsed->instant;
+    previous_line_ = line_number;
+    previous_text_.assign(text);
+    return *parsed;
+  }
+
+ private:
+  const std::string& file_;
+  const std::string& column_;
+  int default_offset_s_;
+  StampWords words_;
+  std::size_t count_ = 0;
+  Instant previous_ = 0;
+  int previous_line_ = 0;
+  bool first_has_offset_ = false;
+  int first_line_ = 0;
+  std::string previous_text_;
+};
+
+// Reads the header (the first line that is neither blank nor a comment) and hands each data row
+// to `on_row(fields, line_number)`, the fields in the order of `columns`. Throws for an empty
+// file, a file without data rows and a read error.
+template <class OnRow>
+void scan_rows(std::istream& in, const std::string& file_label,
+               const std::vector<std::string>& columns, OnRow&& on_row) {
+  LineReader reader(in);
+  std::string_view line;
+  int line_number = 0;
+  int header_line = 0;
+  std::vector<std::size_t> indexes;
+  std::vector<std::string_view> fields;
+  std::size_t rows = 0;
+  while (reader.next(line)) {
+    ++line_number;
+    if (line_number == 1 && line.substr(0, kByteOrderMark.size()) == kByteOrderMark) {
+      line.remove_prefix(kByteOrderMark.size());
+    }
+    if (is_comment_or_blank(line)) continue;
+    if (header_line == 0) {
+      indexes = find_columns(line, line_number, file_label, columns);
+      header_line = line_number;
+      continue;
+    }
+    take_fields(line, line_number, file_label, indexes, columns, fields);
+    on_row(fields, line_number);
+    ++rows;
+  }
+  if (reader.failed()) throw InputError(file_label, line_number, "", "read error");
+  if (header_line == 0) {
+    std::string names;
+    for (std::size_t c = 0; c < columns.size(); ++c) {
+      if (c > 0) names += c + 1 == columns.size() ? " and " : ", ";
+      names += quoted(columns[c]);
+    }
+    throw InputError(file_label, 1, "",
+                     "empty file (expected a header row naming the column" +
+                         std::string(columns.size() > 1 ? "s " : " ") + names + ")");
+  }
+  if (rows == 0) throw InputError(file_label, header_line, "", "no data rows");
 }
 
 // What the first pass keeps of each data row.
@@ -258,163 +431,30 @@ struct Rows {
   std::vector<double> values;  ///< as written, in the file's unit
   std::vector<RowMark> line_marks;
   std::vector<RowMark> offset_marks;
-  int header_line = 0;
-};
-
-class RowParser {
- public:
-  RowParser(const std::string& file_label, const SeriesFormat& fmt, const Header& header,
-            Rows& rows)
-      : file_(file_label), fmt_(fmt), header_(header), rows_(rows) {
-    last_index_ = std::max(header.time_index, header.value_index);
-  }
-
-  void parse(std::string_view line, int line_number) {
-    std::string_view time_text;
-    std::string_view value_text;
-    std::string_view rest = line;
-    bool more = true;
-    std::size_t index = 0;
-    for (; more && index <= last_index_; ++index) {
-      const std::string_view field = next_field(rest, more);
-      if (index == header_.time_index) time_text = field;
-      if (index == header_.value_index) value_text = field;
-    }
-    if (index <= last_index_) report_missing_field(index, line_number);
-
-    const Instant instant = parse_time(time_text, line_number);
-    const double value = parse_value(value_text, line_number);
-
-    const std::size_t row = rows_.times.size();
-    if (row == 0 || line_number != previous_line_ + 1) {
-      rows_.line_marks.push_back({row, line_number});
-    }
-    if (row == 0 || offset_s_ != previous_offset_s_) rows_.offset_marks.push_back({row, offset_s_});
-    rows_.times.push_back(instant);
-    rows_.values.push_back(value);
-    previous_line_ = line_number;
-    previous_offset_s_ = offset_s_;
-    previous_text_.assign(time_text);
-  }
-
- private:
-  [[noreturn]] void report_missing_field(std::size_t field_count, int line_number) const {
-    const bool time_missing = header_.time_index >= field_count;
-    const std::string& column = time_missing ? fmt_.time_column : fmt_.value_column;
-    const std::size_t wanted = (time_missing ? header_.time_index : header_.value_index) + 1;
-    throw InputError(file_, line_number, column,
-                     "missing (the row has " + std::to_string(field_count) +
-                         (field_count == 1 ? " field" : " fields") + ", the column is field " +
-                         std::to_string(wanted) + ")");
-  }
-
-  Instant parse_time(std::string_view text, int line_number) {
-    const std::optional<ParsedTime> parsed = parse_iso8601(text, fmt_.utc_offset_s);
-    if (!parsed) {
-      throw InputError(
-          file_, line_number, fmt_.time_column,
-          "not an ISO 8601 date-time such as 2025-03-01T00:05 (got " + quoted(text) + ")");
-    }
-    if (rows_.times.empty()) {
-      first_has_offset_ = parsed->has_offset;
-      first_line_ = line_number;
-    } else {
-      if (parsed->has_offset != first_has_offset_) {
-        throw InputError(file_, line_number, fmt_.time_column,
-                         "mixed time zones: " + quoted(text) +
-                             (parsed->has_offset ? " has a UTC offset but the stamp on line " +
-                                                       std::to_string(first_line_) + " has none"
-                                                 : " has no UTC offset but the stamp on line " +
-                                                       std::to_string(first_line_) + " has one"));
-      }
-      const Instant previous = rows_.times.back();
-      if (parsed->instant == previous) {
-        throw InputError(file_, line_number, fmt_.time_column,
-                         quoted(text) + " is the same instant as the previous stamp " +
-                             quoted(previous_text_) + " (line " + std::to_string(previous_line_) +
-                             ")");
-      }
-      if (parsed->instant < previous) {
-        throw InputError(file_, line_number, fmt_.time_column,
-                         quoted(text) + " is earlier than the previous stamp " +
-                             quoted(previous_text_) + " (line " + std::to_string(previous_line_) +
-                             "); rows must be in time order");
-      }
-    }
-    offset_s_ = parsed->offset_s;
-    return parsed->instant;
-  }
-
-  double parse_value(std::string_view text, int line_number) const {
-    std::string_view digits = text;
-    if (digits.size() > 1 && digits.front() == '+') digits.remove_prefix(1);
-    double value = 0.0;
-    const char* const end = digits.data() + digits.size();
-    const auto [stop, ec] = std::from_chars(digits.data(), end, value);
-    if (ec == std::errc::result_out_of_range && stop == end) {
-      // Too small for a double (1e-400) is no rain; too large (1e400) is not a finite amount.
-      const bool underflow = digits.find("e-") != digits.npos || digits.find("E-") != digits.npos;
-      if (underflow && digits.front() != '-') return 0.0;
-      throw InputError(file_, line_number, fmt_.value_column,
-                       (underflow ? "must not be negative (got " + std::string(text) + ")"
-                                  : "not a finite number (got " + quoted(text) + ")"));
-    }
-    if (ec != std::errc{} || stop != end || digits.empty() || std::isnan(value)) {
-      throw InputError(file_, line_number, fmt_.value_column,
-                       "not a number (got " + quoted(text) + ")");
-    }
-    if (std::isinf(value)) {
-      throw InputError(file_, line_number, fmt_.value_column,
-                       "not a finite number (got " + quoted(text) + ")");
-    }
-    if (value < 0.0) {
-      throw InputError(file_, line_number, fmt_.value_column,
-                       "must not be negative (got " + std::string(text) + ")");
-    }
-    return value == 0.0 ? 0.0 : value;  // -0 becomes 0
-  }
-
-  const std::string& file_;
-  const SeriesFormat& fmt_;
-  const Header& header_;
-  Rows& rows_;
-  std::size_t last_index_ = 0;
-  int previous_line_ = 0;
-  int previous_offset_s_ = 0;
-  int offset_s_ = 0;
-  bool first_has_offset_ = false;
-  int first_line_ = 0;
-  std::string previous_text_;
 };
 
 Rows read_rows(std::istream& in, const std::string& file_label, const SeriesFormat& fmt) {
-  LineReader reader(in);
-  std::string_view line;
-  int line_number = 0;
-  std::optional<Header> header;
-  std::optional<RowParser> parser;
   Rows rows;
-  while (reader.next(line)) {
-    ++line_number;
-    if (line_number == 1 && line.substr(0, kByteOrderMark.size()) == kByteOrderMark) {
-      line.remove_prefix(kByteOrderMark.size());
-    }
-    if (is_comment_or_blank(line)) continue;
-    if (!header) {
-      header = read_header(line, line_number, file_label, fmt);
-      rows.header_line = line_number;
-      parser.emplace(file_label, fmt, *header, rows);
-      continue;
-    }
-    parser->parse(line, line_number);
-  }
-  if (reader.failed()) throw InputError(file_label, line_number, "", "read error");
-  if (!header) {
-    throw InputError(file_label, 1, "",
-                     "empty file (expected a header row naming the columns " +
-                         quoted(fmt.time_column) + " and " + quoted(fmt.value_column) + ")");
-  }
-  if (rows.times.empty()) throw InputError(file_label, rows.header_line, "", "no data rows");
+  StampReader stamps(file_label, fmt.time_column, fmt.utc_offset_s, kSeriesStamps);
+  int previous_line = 0;
+  int previous_offset_s = 0;
+  scan_rows(in, file_label, {fmt.time_column, fmt.value_column},
+            [&](const std::vector<std::string_view>& fields, int line_number) {
+              const ParsedTime stamp = stamps.read(fields[0], line_number);
+              const double value =
+                  parse_amount(fields[1], file_label, line_number, fmt.value_column);
+              const std::size_t row = rows.times.size();
+              if (row == 0 || line_number != previous_line + 1) {
+                rows.line_marks.push_back({row, line_number});
+              }
+              if (row == 0 || stamp.offset_s != previous_offset_s) {
+                rows.offset_marks.push_back({row, stamp.offset_s});
+              }
+              rows.times.push_back(stamp.instant);
+              rows.values.push_back(value);
+              previous_line = line_number;
+              previous_offset_s = stamp.offset_s;
+            });
   return rows;
 }
 
@@ -464,7 +504,91 @@ std::string gap_text(Instant start, int start_offset_s, Instant end, int end_off
          format_iso8601(end, end_offset_s) + " (" + format_duration(end - start) + " with no rows)";
 }
 
+constexpr Instant kDay_s = 86400;
+
+// Floor division for instants before 1970 as well.
+Instant floor_div(Instant a, Instant b) { return a / b - ((a % b != 0) && ((a < 0) != (b < 0))); }
+
+// One step of SplitMix64, used to turn (seed, day) into a generator seed: Steele, Lea & Flood
+// (2014), Fast splittable pseudorandom number generators, OOPSLA '14 (constants from memory).
+std::uint64_t split_mix(std::uint64_t x) {
+  x += 0x9e3779b97f4a7c15ULL;
+  x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9ULL;
+  x = (x ^ (x >> 27)) * 0x94d049bb133111ebULL;
+  return x ^ (x >> 31);
+}
+
+// Uniform on (0, 1) from the top 53 bits of one draw; std::mt19937_64's sequence is fixed by the
+// standard, the standard distributions are not, so the cascade uses this instead.
+double uniform_open(std::mt19937_64& rng) {
+  return (static_cast<double>(rng() >> 11) + 0.5) * 0x1.0p-53;
+}
+
+// Box weights of a microcanonical binary cascade after `levels` halvings (2^levels boxes, summing
+// to 1 up to rounding). Structure after Olsson (1998), Hydrol. Earth Syst. Sci. 2, 19-30: each box
+// splits 0/1 or 1/0 (together with probability `intermittency`) or W/(1 - W) with W uniform.
+std::vector<double> cascade_weights(int levels, std::uint64_t seed, double intermittency) {
+  std::mt19937_64 rng(seed);
+  std::vector<double> weights{1.0};
+  for (int level = 0; level < levels; ++level) {
+    std::vector<double> next(weights.size() * 2, 0.0);
+    for (std::size_t i = 0; i < weights.size(); ++i) {
+      const double w = weights[i];
+      if (w == 0.0) continue;
+      if (uniform_open(rng) < intermittency) {
+        next[2 * i + (uniform_open(rng) < 0.5 ? 0 : 1)] = w;
+      } else {
+        const double left = uniform_open(rng) * w;
+        next[2 * i] = left;
+        next[2 * i + 1] = w - left;
+      }
+    }
+    weights = std::move(next);
+  }
+  return weights;
+}
+
+// Splits `depth_m` at the cumulative fractions (non-decreasing, 0 first, 1 last) into parts that
+// are whole multiples of u, the spacing of doubles at `depth_m`: depth_m = N u with N < 2^53,
+// so every partial sum is a multiple of u below 2^53 u and is exact, in any order.
+std::vector<double> split_exactly(double depth_m, const std::vector<double>& cumulative) {
+  const std::size_t parts = cumulative.size() - 1;
+  std::vector<double> out(parts, 0.0);
+  int exponent = 0;
+  const double mantissa = std::frexp(depth_m, &exponent);
+  const int unit_exponent = exponent - std::numeric_limits<double>::digits;
+  if (depth_m == 0.0) return out;
+  if (unit_exponent <
+      std::numeric_limits<double>::min_exponent - std::numeric_limits<double>::digits) {
+    // A depth far below anything a gauge reads (subnormal range): all of it in the wettest step.
+    std::size_t wettest = 0;
+    for (std::size_t j = 1; j < parts; ++j) {
+      if (cumulative[j + 1] - cumulative[j] > cumulative[wettest + 1] - cumulative[wettest]) {
+        wettest = j;
+      }
+    }
+    out[wettest] = depth_m;
+    return out;
+  }
+  const auto units =
+      static_cast<std::int64_t>(std::ldexp(mantissa, std::numeric_limits<double>::digits));
+  std::int64_t previous = 0;
+  for (std::size_t j = 0; j < parts; ++j) {
+    std::int64_t next = j + 1 == parts ? units : std::llround(cumulative[j + 1] * units);
+    next = std::clamp(next, previous, units);
+    out[j] = std::ldexp(static_cast<double>(next - previous), unit_exponent);
+    previous = next;
+  }
+  return out;
+}
+
 }  // namespace
+
+double sum_depths_m(const std::vector<RainPulse>& pulses) {
+  ExactSum sum;
+  for (const RainPulse& p : pulses) sum.add(p.depth_m);
+  return sum.value();
+}
 
 RainSeries read_rain_series(std::istream& in, const std::string& file_label,
                             const SeriesFormat& fmt) {
@@ -541,6 +665,228 @@ RainSeries read_rain_series(std::istream& in, const std::string& file_label,
   }
   series.total_depth_m = total.value();
   return series;
+}
+
+TipLog read_tip_log(std::istream& in, const std::string& file_label, const SeriesFormat& fmt) {
+  TipLog log;
+  log.label = file_label;
+  log.time_column = fmt.time_column;
+  StampReader stamps(file_label, fmt.time_column, fmt.utc_offset_s, kTipStamps);
+  scan_rows(in, file_label, {fmt.time_column},
+            [&](const std::vector<std::string_view>& fields, int line_number) {
+              log.times.push_back(stamps.read(fields[0], line_number).instant);
+              log.lines.push_back(line_number);
+            });
+  return log;
+}
+
+RainSeries spread_tips(const std::vector<TipLog>& logs, const TipSpreading& tips,
+                       GapPolicy policy) {
+  assert(tips.tip_depth_m > 0.0 && tips.cap_s >= 1);
+  std::vector<const TipLog*> order;
+  for (const TipLog& log : logs) {
+    if (!log.times.empty()) order.push_back(&log);
+  }
+  std::sort(order.begin(), order.end(),
+            [](const TipLog* a, const TipLog* b) { return a->times.front() < b->times.front(); });
+  for (std::size_t k = 1; k < order.size(); ++k) {
+    const TipLog& earlier = *order[k - 1];
+    const TipLog& later = *order[k];
+    if (later.times.front() <= earlier.times.back()) {
+      throw InputError(later.label, 0, "rain.files",
+                       "overlaps " + earlier.label + " from " +
+                           format_iso8601(later.times.front()) + " to " +
+                           format_iso8601(std::min(earlier.times.back(), later.times.back())) +
+                           " (UTC); each period must come from one file");
+    }
+  }
+
+  RainSeries series;
+  series.policy = policy;
+  series.step_s = tips.cap_s;
+  ExactSum total;
+  std::optional<Instant> previous;
+  for (const TipLog* log : order) {
+    const std::vector<Instant>& times = log->times;
+    for (std::size_t k = 0; k < times.size();) {
+      const Instant end = times[k];
+      std::size_t count = 0;
+      for (; k < times.size() && times[k] == end; ++k) ++count;
+      const Instant start = previous ? std::max(*previous, end - tips.cap_s) : end - tips.cap_s;
+      const double depth_m = static_cast<double>(count) * tips.tip_depth_m;
+      const double intensity_mm_per_h =
+          depth_m / kMetresPerMm * (kSecondsPerHour / static_cast<double>(end - start));
+      if (intensity_mm_per_h > kMaxRainIntensity_mm_per_h) {
+        throw InputError(log->label, log->lines[k - 1], log->time_column,
+                         "implausible intensity " + format_number(intensity_mm_per_h) +
+                             " mm/h (got " + std::to_string(count) +
+                             (count == 1 ? " tip" : " tips") + " of " +
+                             format_number(tips.tip_depth_m / kMetresPerMm) + " mm in " +
+                             format_duration(end - start) + "; the limit is " +
+                             format_number(kMaxRainIntensity_mm_per_h) + " mm/h)");
+      }
+      series.pulses.push_back({start, end, depth_m});
+      total.add(depth_m);
+      if (series.covered.empty()) {
+        series.covered.push_back({start, end});
+      } else {
+        series.covered.back().end = end;  // dry time between tips is data too
+      }
+      previous = end;
+    }
+  }
+  series.total_depth_m = total.value();
+  return series;
+}
+
+RainSeries read_rain_tips(std::istream& in, const std::string& file_label, const SeriesFormat& fmt,
+                          const TipSpreading& tips) {
+  return spread_tips({read_tip_log(in, file_label, fmt)}, tips, fmt.gaps);
+}
+
+std::vector<double> disaggregate_day(double depth_m, std::int64_t day, const Disaggregation& how) {
+  assert(how.duration_s >= 1 && how.start_s >= 0 && how.start_s + how.duration_s <= kDay_s);
+  if (how.method == DisaggregationMethod::block) return {depth_m};
+  assert(how.step_s >= 1 && how.duration_s % how.step_s == 0);
+  const Instant steps = how.duration_s / how.step_s;
+  std::vector<double> cumulative(static_cast<std::size_t>(steps) + 1, 0.0);
+  if (how.method == DisaggregationMethod::nrcs_ii) {
+    assert(how.duration_s == kDay_s && how.start_s == 0);
+    for (Instant j = 1; j <= steps; ++j) {
+      cumulative[j] =
+          nrcs_cumulative_fraction(StormKind::nrcs_ii, static_cast<double>(j * how.step_s));
+    }
+  } else {
+    int levels = 0;
+    while (how.duration_s > (how.step_s << levels)) ++levels;
+    const std::uint64_t seed = split_mix(how.seed ^ split_mix(static_cast<std::uint64_t>(day)));
+    const std::vector<double> weights = cascade_weights(levels, seed, how.intermittency);
+    std::vector<double> before(weights.size() + 1, 0.0);  // weight of the boxes before box i
+    for (std::size_t i = 0; i < weights.size(); ++i) before[i + 1] = before[i] + weights[i];
+    const auto boxes = static_cast<Instant>(weights.size());
+    for (Instant j = 1; j < steps; ++j) {
+      // Step boundary j falls in box i, a share r / duration into it (exact integers).
+      const Instant position = j * how.step_s * boxes;
+      const auto i = static_cast<std::size_t>(position / how.duration_s);
+      const Instant r = position % how.duration_s;
+      cumulative[j] =
+          before[i] + weights[i] * static_cast<double>(r) / static_cast<double>(how.duration_s);
+    }
+    cumulative.back() = 1.0;
+  }
+  return split_exactly(depth_m, cumulative);
+}
+
+RainSeries read_rain_daily(std::istream& in, const std::string& file_label, const SeriesFormat& fmt,
+                           const Disaggregation& how) {
+  RainSeries series;
+  series.policy = fmt.gaps;
+  series.step_s = kDay_s;
+  series.warnings.emplace_back(kDailyWarning);
+  const char* const gap_fate =
+      fmt.gaps == GapPolicy::zero ? ", counted as dry" : ", left out of the simulation";
+  const bool blocks = how.method == DisaggregationMethod::block;
+  const Instant part_s = blocks ? how.duration_s : how.step_s;
+  Instant gap_total_s = 0;
+  ExactSum total;
+  int previous_offset_s = 0;
+  StampReader dates(file_label, fmt.time_column, fmt.utc_offset_s, kDates);
+  scan_rows(
+      in, file_label, {fmt.time_column, fmt.value_column},
+      [&](const std::vector<std::string_view>& fields, int line_number) {
+        const ParsedTime date = dates.read(fields[0], line_number);
+        const double value = parse_amount(fields[1], file_label, line_number, fmt.value_column);
+        const Instant start = date.instant;
+        const Instant end = start + kDay_s;
+        if (!series.covered.empty() && series.covered.back().end < start) {
+          const Instant gap_start = series.covered.back().end;
+          const std::string text = gap_text(gap_start, previous_offset_s, start, date.offset_s);
+          if (fmt.gaps == GapPolicy::error) {
+            throw InputError(file_label, line_number, fmt.time_column,
+                             text +
+                                 "; set rain.gaps: zero to count gaps as dry, or rain.gaps: "
+                                 "skip to leave them out");
+          }
+          series.gaps.push_back({gap_start, start});
+          gap_total_s += start - gap_start;
+          if (series.gaps.size() <= kMaxGapWarnings) {
+            series.warnings.push_back(file_label + ":" + std::to_string(line_number) + ": " + text +
+                                      gap_fate);
+          }
+        }
+        if (!series.covered.empty() && series.covered.back().end == start) {
+          series.covered.back().end = end;
+        } else {
+          series.covered.push_back({start, end});
+        }
+        previous_offset_s = date.offset_s;
+
+        const double depth_m = value * fmt.unit_m;
+        const double intensity_mm_per_h =
+            depth_m / kMetresPerMm * (kSecondsPerHour / static_cast<double>(how.duration_s));
+        if (intensity_mm_per_h > kMaxRainIntensity_mm_per_h) {
+          throw InputError(file_label, line_number, fmt.value_column,
+                           "implausible intensity " + format_number(intensity_mm_per_h) +
+                               " mm/h (got " + format_number(value) + " " + fmt.unit_name + " in " +
+                               format_duration(how.duration_s) + "; the limit is " +
+                               format_number(kMaxRainIntensity_mm_per_h) + " mm/h)");
+        }
+        if (depth_m == 0.0) return;
+        const Instant day = floor_div(start + date.offset_s, kDay_s);
+        const std::vector<double> parts = disaggregate_day(depth_m, day, how);
+        for (std::size_t j = 0; j < parts.size(); ++j) {
+          if (parts[j] == 0.0) continue;
+          const Instant part_start = start + how.start_s + static_cast<Instant>(j) * part_s;
+          series.pulses.push_back({part_start, part_start + part_s, parts[j]});
+          total.add(parts[j]);
+        }
+      });
+  if (series.gaps.size() > kMaxGapWarnings) {
+    const std::size_t more = series.gaps.size() - kMaxGapWarnings;
+    series.warnings.push_back(file_label + ": " + std::to_string(more) +
+                              " more gaps in the record (" + std::to_string(series.gaps.size()) +
+                              " gaps, " + format_duration(gap_total_s) + " in all)" + gap_fate);
+  }
+  series.total_depth_m = total.value();
+  return series;
+}
+
+std::vector<MonthCoverage> month_coverage(const RainSeries& rain, Instant start, Instant end,
+                                          int utc_offset_s) {
+  std::vector<MonthCoverage> out;
+  if (end <= start) return out;
+  const CivilTime first = to_civil(start, utc_offset_s);
+  auto span = rain.covered.begin();
+  for (int k = 0;; ++k) {
+    const Instant month_begin = month_start(first.year, first.month + k, utc_offset_s);
+    if (month_begin >= end) break;
+    MonthCoverage m;
+    m.month = month_label(month_begin, utc_offset_s);
+    m.start = std::max(start, month_begin);
+    m.end = std::min(end, month_start(first.year, first.month + k + 1, utc_offset_s));
+    m.covered_s = 0;
+    while (span != rain.covered.end() && span->end <= m.start) ++span;
+    for (auto s = span; s != rain.covered.end() && s->start < m.end; ++s) {
+      m.covered_s += std::min(s->end, m.end) - std::max(s->start, m.start);
+    }
+    m.fraction = static_cast<double>(m.covered_s) / static_cast<double>(m.end - m.start);
+    out.push_back(m);
+  }
+  return out;
+}
+
+std::vector<std::string> coverage_warnings(const std::vector<MonthCoverage>& months) {
+  std::vector<std::string> out;
+  for (const MonthCoverage& m : months) {
+    if (m.fraction >= kMinMonthCoverage) continue;
+    // Rounded down, so that 89.96 % does not read as 90.0 %.
+    char percent[16];
+    std::snprintf(percent, sizeof percent, "%.1f", std::floor(m.fraction * 1000.0) / 10.0);
+    out.push_back("rain data cover " + std::string(percent) + " % of " + m.month + " (below " +
+                  format_number(kMinMonthCoverage * 100.0) +
+                  " %): that month's rain and yield are understated");
+  }
+  return out;
 }
 
 }  // namespace gutterwatt

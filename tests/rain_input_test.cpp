@@ -2,6 +2,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cstdio>
 #include <fstream>
 #include <sstream>
@@ -550,6 +551,509 @@ TEST(RainInput, SummarisesManyGapsInOneWarning) {
   ASSERT_EQ(rain.warnings.size(), 21u);
   EXPECT_EQ(rain.warnings[20],
             "rain.csv: 4 more gaps in the record (24 gaps, 2h in all), counted as dry");
+}
+
+// ---- tipping-bucket logs ----
+
+constexpr Instant kHour = 3600;
+constexpr double kTip_m = 0.2 * kMetresPerMm;  // invented 0.2 mm bucket
+
+RainSeries read_tips(const std::string& text, Instant cap_s = kDefaultTipCap_s,
+                     const SeriesFormat& fmt = {}) {
+  std::istringstream in(text);
+  return read_rain_tips(in, "tips.csv", fmt, TipSpreading{kTip_m, cap_s});
+}
+
+std::string tips_error_of(const std::string& text) {
+  try {
+    read_tips(text);
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "no error";
+}
+
+TipLog tip_log(const std::string& label, const std::string& text) {
+  std::istringstream in(text);
+  return read_tip_log(in, label, SeriesFormat{});
+}
+
+// Invented tips: three close together, then one after a dry spell longer than the cap.
+const char* const kTips =
+    "time\n"
+    "2025-03-01T00:10\n"
+    "2025-03-01T00:20\n"
+    "2025-03-01T00:25\n"
+    "2025-03-01T02:00\n";
+
+void expect_same_series(const RainSeries& a, const RainSeries& b) {
+  ASSERT_EQ(a.pulses.size(), b.pulses.size());
+  for (std::size_t k = 0; k < a.pulses.size(); ++k) {
+    EXPECT_EQ(a.pulses[k].start, b.pulses[k].start) << k;
+    EXPECT_EQ(a.pulses[k].end, b.pulses[k].end) << k;
+    EXPECT_EQ(a.pulses[k].depth_m, b.pulses[k].depth_m) << k;
+  }
+  ASSERT_EQ(a.covered.size(), b.covered.size());
+  for (std::size_t k = 0; k < a.covered.size(); ++k) {
+    expect_span(a.covered[k], b.covered[k].start, b.covered[k].end);
+  }
+  EXPECT_EQ(a.gaps.size(), b.gaps.size());
+  EXPECT_EQ(a.total_depth_m, b.total_depth_m);
+}
+
+TEST(RainTips, SpreadsEachTipOverTheTimeSinceThePreviousTip) {
+  const RainSeries rain = read_tips(kTips);
+  ASSERT_EQ(rain.pulses.size(), 4u);
+  expect_pulse(rain.pulses[1], kT0 + 10 * kMinute, kT0 + 20 * kMinute, kTip_m);
+  expect_pulse(rain.pulses[2], kT0 + 20 * kMinute, kT0 + 25 * kMinute, kTip_m);
+}
+
+TEST(RainTips, SpreadsTheFirstTipOverTheCap) {
+  const RainSeries rain = read_tips(kTips);
+  ASSERT_FALSE(rain.pulses.empty());
+  expect_pulse(rain.pulses[0], kT0 + 10 * kMinute - kDefaultTipCap_s, kT0 + 10 * kMinute, kTip_m);
+}
+
+TEST(RainTips, CountsATipAfterALongDrySpellAsAShowerAsLongAsTheCap) {
+  const RainSeries rain = read_tips(kTips);
+  ASSERT_EQ(rain.pulses.size(), 4u);
+  expect_pulse(rain.pulses[3], kT0 + 90 * kMinute, kT0 + 2 * kHour, kTip_m);
+  const RainSeries hour_cap = read_tips(kTips, kHour);
+  expect_pulse(hour_cap.pulses[3], kT0 + kHour, kT0 + 2 * kHour, kTip_m);
+}
+
+TEST(RainTips, CoversTheDrySpellsBetweenTips) {
+  const RainSeries rain = read_tips(kTips);
+  ASSERT_EQ(rain.covered.size(), 1u);
+  expect_span(rain.covered[0], kT0 + 10 * kMinute - kDefaultTipCap_s, kT0 + 2 * kHour);
+  EXPECT_TRUE(rain.gaps.empty());
+  EXPECT_TRUE(rain.warnings.empty());
+}
+
+TEST(RainTips, SharesOneIntervalAmongTipsWithTheSameStamp) {
+  const RainSeries rain =
+      read_tips("time\n2025-03-01T00:10\n2025-03-01T00:20\n2025-03-01T00:20\n2025-03-01T00:20\n");
+  ASSERT_EQ(rain.pulses.size(), 2u);
+  expect_pulse(rain.pulses[1], kT0 + 10 * kMinute, kT0 + 20 * kMinute, 3 * kTip_m);
+}
+
+TEST(RainTips, GiveTheSameSeriesAsTheEquivalentSeriesFile) {
+  // The same rain written as a period-ending series with a 30-minute step: each tip becomes a
+  // row, and rows of zero fill the dry spell up to one cap before the late tip.
+  SeriesFormat fmt;
+  fmt.step_s = 1800.0;
+  const RainSeries series = read(
+      "time,rain_mm\n"
+      "2025-03-01T00:10,0.2\n"
+      "2025-03-01T00:20,0.2\n"
+      "2025-03-01T00:25,0.2\n"
+      "2025-03-01T00:55,0\n"
+      "2025-03-01T01:25,0\n"
+      "2025-03-01T01:30,0\n"
+      "2025-03-01T02:00,0.2\n",
+      fmt);
+  expect_same_series(read_tips(kTips), series);
+}
+
+TEST(RainTips, ConservesTheDepthOfEveryTipExactly) {
+  // 1000 invented tips at irregular spacings from 7 s to 2 h.
+  std::string text = "time\n";
+  Instant t = kT0;
+  for (int i = 0; i < 1000; ++i) {
+    t += 7 + (i * 7919) % 7200;
+    text += format_iso8601(t) + "\n";
+  }
+  const RainSeries rain = read_tips(text);
+  EXPECT_EQ(rain.pulses.size(), 1000u);
+  EXPECT_EQ(rain.total_depth_m, 1000.0 * kTip_m);
+  EXPECT_EQ(sum_depths_m(rain.pulses), 1000.0 * kTip_m);
+}
+
+TEST(RainTips, ReadsTheTimeColumnByNameAndStampsWithOffsets) {
+  SeriesFormat fmt;
+  fmt.time_column = "tipped";
+  const RainSeries rain =
+      read_tips("logger,tipped\nhill,2025-03-01T02:10+02:00\nhill,2025-03-01T02:20+02:00\n",
+                kDefaultTipCap_s, fmt);
+  ASSERT_EQ(rain.pulses.size(), 2u);
+  expect_pulse(rain.pulses[1], kT0 + 10 * kMinute, kT0 + 20 * kMinute, kTip_m);
+}
+
+TEST(RainTips, JoinsLogsAsOneStream) {
+  const TipLog early = tip_log("a.csv", "time\n2025-03-01T00:10\n2025-03-01T00:20\n");
+  const TipLog late = tip_log("b.csv", "time\n2025-03-01T00:25\n");
+  const RainSeries rain = spread_tips({late, early}, TipSpreading{kTip_m, kDefaultTipCap_s});
+  ASSERT_EQ(rain.pulses.size(), 3u);
+  expect_pulse(rain.pulses[2], kT0 + 20 * kMinute, kT0 + 25 * kMinute, kTip_m);
+  ASSERT_EQ(rain.covered.size(), 1u);
+}
+
+TEST(RainTips, RejectsOverlappingLogsNamingBoth) {
+  const TipLog a = tip_log("a.csv", "time\n2025-03-01T00:10\n2025-03-01T00:30\n");
+  const TipLog b = tip_log("b.csv", "time\n2025-03-01T00:20\n2025-03-01T00:40\n");
+  try {
+    spread_tips({a, b}, TipSpreading{kTip_m, kDefaultTipCap_s});
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(),
+                 "b.csv: rain.files: overlaps a.csv from 2025-03-01T00:20 to 2025-03-01T00:30 "
+                 "(UTC); each period must come from one file");
+  }
+}
+
+TEST(RainTips, RejectsImplausibleIntensity) {
+  SeriesFormat fmt;
+  std::istringstream in("time\n2025-03-01T00:10:00\n2025-03-01T00:10:01\n");
+  try {
+    read_rain_tips(in, "tips.csv", fmt, TipSpreading{0.5 * kMetresPerMm, kDefaultTipCap_s});
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(),
+                 "tips.csv:3: time: implausible intensity 1800 mm/h (got 1 tip of 0.5 mm in 1s; "
+                 "the limit is 1000 mm/h)");
+  }
+}
+
+TEST(RainTips, RejectsATipEarlierThanThePreviousOne) {
+  EXPECT_EQ(tips_error_of("time\n2025-03-01T00:20\n2025-03-01T00:10\n"),
+            "tips.csv:3: time: \"2025-03-01T00:10\" is earlier than the previous stamp "
+            "\"2025-03-01T00:20\" (line 2); rows must be in time order");
+}
+
+TEST(RainTips, RejectsABadStamp) {
+  EXPECT_EQ(tips_error_of("time\n2025-03-01T00:20\nsoon\n"),
+            "tips.csv:3: time: not an ISO 8601 date-time such as 2025-03-01T00:05 (got \"soon\")");
+}
+
+TEST(RainTips, RejectsALogWithoutTips) {
+  EXPECT_EQ(tips_error_of("# invented, empty\ntime\n"), "tips.csv:2: no data rows");
+}
+
+TEST(RainTips, RejectsAMissingTimeColumn) {
+  EXPECT_EQ(tips_error_of("when\n2025-03-01T00:20\n"),
+            "tips.csv:1: time: no such column in the header (found \"when\")");
+}
+
+TEST(RainTips, RejectsAnEmptyFileNamingTheOneColumn) {
+  EXPECT_EQ(tips_error_of(""),
+            "tips.csv:1: empty file (expected a header row naming the column \"time\")");
+}
+
+// ---- daily totals ----
+
+constexpr Instant kDay = 86400;
+
+Disaggregation method(DisaggregationMethod m) {
+  Disaggregation how;
+  how.method = m;
+  return how;
+}
+
+SeriesFormat daily_format(GapPolicy gaps = GapPolicy::error) {
+  SeriesFormat fmt;
+  fmt.time_column = "date";
+  fmt.gaps = gaps;
+  return fmt;
+}
+
+RainSeries read_daily(const std::string& text, const Disaggregation& how,
+                      const SeriesFormat& fmt = daily_format()) {
+  std::istringstream in(text);
+  return read_rain_daily(in, "daily.csv", fmt, how);
+}
+
+std::string daily_error_of(const std::string& text, const SeriesFormat& fmt = daily_format()) {
+  try {
+    read_daily(text, method(DisaggregationMethod::block), fmt);
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "no error";
+}
+
+// Invented daily totals, including awkward depths.
+const char* const kDaily =
+    "date,rain_mm\n"
+    "2025-03-01,12.3\n"
+    "2025-03-02,0\n"
+    "2025-03-03,0.1\n"
+    "2025-03-04,87.65\n"
+    "2025-03-05,1e-5\n"
+    "2025-03-06,0.7\n";
+const std::vector<double> kDailyDepths_m = {12.3e-3, 0.0, 0.1e-3, 87.65e-3, 1e-8, 0.7e-3};
+
+// The depths of the pulses in each day from kT0 on, added left to right in time order.
+std::vector<double> day_sums(const RainSeries& rain, std::size_t days) {
+  std::vector<double> sums(days, 0.0);
+  for (const RainPulse& p : rain.pulses) {
+    const auto day = static_cast<std::size_t>((p.start - kT0) / kDay);
+    EXPECT_EQ((p.end - 1 - kT0) / kDay, (p.start - kT0) / kDay) << "pulse crosses midnight";
+    if (day < days) sums[day] += p.depth_m;
+  }
+  return sums;
+}
+
+void expect_days_conserved(const RainSeries& rain) {
+  const std::vector<double> sums = day_sums(rain, kDailyDepths_m.size());
+  for (std::size_t d = 0; d < sums.size(); ++d) {
+    EXPECT_EQ(sums[d], kDailyDepths_m[d]) << "day " << d;
+  }
+}
+
+TEST(RainDaily, SpreadsADayAsOneBlockInsideItsWindow) {
+  Disaggregation how = method(DisaggregationMethod::block);
+  how.start_s = 6 * kHour;
+  how.duration_s = 6 * kHour;
+  const RainSeries rain = read_daily("date,rain_mm\n2025-03-01,12\n2025-03-02,0\n", how);
+  ASSERT_EQ(rain.pulses.size(), 1u);
+  expect_pulse(rain.pulses[0], kT0 + 6 * kHour, kT0 + 12 * kHour, 12e-3);
+  ASSERT_EQ(rain.covered.size(), 1u);
+  expect_span(rain.covered[0], kT0, kT0 + 2 * kDay);
+  EXPECT_EQ(rain.step_s, kDay);
+}
+
+TEST(RainDaily, WarnsThatDailyTotalsHideIntensity) {
+  const RainSeries rain = read_daily(kDaily, method(DisaggregationMethod::block));
+  ASSERT_EQ(rain.warnings.size(), 1u);
+  EXPECT_EQ(rain.warnings[0],
+            "daily totals hide rain intensity, and whether the siphon primes depends on it: the "
+            "results follow the chosen rain.disaggregate method");
+}
+
+TEST(RainDaily, ConservesEachDayExactlyForEveryMethod) {
+  for (const DisaggregationMethod m : {DisaggregationMethod::block, DisaggregationMethod::nrcs_ii,
+                                       DisaggregationMethod::cascade}) {
+    Disaggregation how = method(m);
+    how.step_s = 300;
+    const RainSeries rain = read_daily(kDaily, how);
+    expect_days_conserved(rain);
+    EXPECT_EQ(rain.total_depth_m, sum_depths_m(rain.pulses));
+  }
+}
+
+TEST(RainDaily, ConservesEachDayExactlyInAnyOrder) {
+  // Every part is a whole multiple of the spacing of doubles at the day's depth, so the sum
+  // does not depend on the order of addition.
+  Disaggregation how = method(DisaggregationMethod::cascade);
+  how.step_s = 60;
+  const double depth_m = 87.65e-3;
+  std::vector<double> parts = disaggregate_day(depth_m, 20148, how);
+  ASSERT_EQ(parts.size(), 1440u);
+  std::sort(parts.begin(), parts.end());
+  double rising = 0.0;
+  for (double part : parts) rising += part;
+  double falling = 0.0;
+  for (auto it = parts.rbegin(); it != parts.rend(); ++it) falling += *it;
+  EXPECT_EQ(rising, depth_m);
+  EXPECT_EQ(falling, depth_m);
+}
+
+TEST(RainDaily, FollowsTheNrcsTypeIIShape) {
+  Disaggregation how = method(DisaggregationMethod::nrcs_ii);
+  how.step_s = 1800;
+  const std::vector<double> parts = disaggregate_day(50e-3, 0, how);
+  ASSERT_EQ(parts.size(), 48u);
+  double by_hour = 0.0;
+  std::vector<double> fraction_at_hour(25, 0.0);
+  for (std::size_t j = 0; j < parts.size(); ++j) {
+    by_hour += parts[j];
+    if (j % 2 == 1) fraction_at_hour[(j + 1) / 2] = by_hour / 50e-3;
+  }
+  // source: TR-55 (1986) App. B type II, values from REFERENCES.md section 8 (tolerance 0.005)
+  EXPECT_NEAR(fraction_at_hour[6], 0.080, 0.005);
+  EXPECT_NEAR(fraction_at_hour[11], 0.235, 0.005);
+  EXPECT_NEAR(fraction_at_hour[12], 0.663, 0.005);
+  EXPECT_NEAR(fraction_at_hour[16], 0.880, 0.005);
+  EXPECT_NEAR(fraction_at_hour[20], 0.952, 0.005);
+  EXPECT_EQ(fraction_at_hour[24], 1.0);
+}
+
+TEST(RainDaily, RepeatsTheCascadeForTheSameSeedAndDate) {
+  Disaggregation how = method(DisaggregationMethod::cascade);
+  const RainSeries whole = read_daily(kDaily, how);
+  // The fourth day alone, in a file of its own, gets the same draw.
+  const RainSeries alone = read_daily("date,rain_mm\n2025-03-04,87.65\n", how);
+  std::vector<RainPulse> fourth;
+  for (const RainPulse& p : whole.pulses) {
+    if (p.start >= kT0 + 3 * kDay && p.start < kT0 + 4 * kDay) fourth.push_back(p);
+  }
+  ASSERT_EQ(fourth.size(), alone.pulses.size());
+  for (std::size_t k = 0; k < fourth.size(); ++k) {
+    EXPECT_EQ(fourth[k].start, alone.pulses[k].start);
+    EXPECT_EQ(fourth[k].depth_m, alone.pulses[k].depth_m);
+  }
+  how.seed = 2;
+  const RainSeries other = read_daily("date,rain_mm\n2025-03-04,87.65\n", how);
+  bool differs = other.pulses.size() != alone.pulses.size();
+  for (std::size_t k = 0; !differs && k < other.pulses.size(); ++k) {
+    differs = other.pulses[k].depth_m != alone.pulses[k].depth_m;
+  }
+  EXPECT_TRUE(differs);
+}
+
+TEST(RainDaily, PutsADayInOneStepWhenTheCascadeAlwaysSendsRainToOneHalf) {
+  Disaggregation how = method(DisaggregationMethod::cascade);
+  how.step_s = kDay / 128;  // seven halvings reach the step exactly
+  how.intermittency = 1.0;
+  const std::vector<double> parts = disaggregate_day(10e-3, 7, how);
+  ASSERT_EQ(parts.size(), 128u);
+  EXPECT_EQ(std::count(parts.begin(), parts.end(), 0.0), 127);
+  EXPECT_EQ(*std::max_element(parts.begin(), parts.end()), 10e-3);
+}
+
+TEST(RainDaily, WetsEveryStepWhenTheCascadeNeverSendsRainToOneHalf) {
+  Disaggregation how = method(DisaggregationMethod::cascade);
+  how.intermittency = 0.0;
+  const std::vector<double> parts = disaggregate_day(10e-3, 7, how);
+  ASSERT_EQ(parts.size(), 288u);
+  EXPECT_EQ(std::count(parts.begin(), parts.end(), 0.0), 0);
+}
+
+TEST(RainDaily, SharesRainEvenlyBetweenHalvesOnAverage) {
+  // Each halving splits W : 1 - W with W symmetric about 1/2, so over many days the first half
+  // of the day holds half of the rain. Over n days the share's standard deviation is about
+  // sqrt(1/12 (1 - p) + 1/4 p) / sqrt(n) = 0.0096 for p = 0.3, n = 2000; the tolerance is 4 sd.
+  Disaggregation how = method(DisaggregationMethod::cascade);
+  how.step_s = 3600;
+  double first_half = 0.0;
+  constexpr int kDays = 2000;
+  for (int day = 0; day < kDays; ++day) {
+    const std::vector<double> parts = disaggregate_day(1.0, day, how);
+    for (std::size_t j = 0; j < 12; ++j) first_half += parts[j];
+  }
+  EXPECT_NEAR(first_half / kDays, 0.5, 4 * 0.0096);
+}
+
+TEST(RainDaily, TakesDatesAtTheRecordsOffset) {
+  SeriesFormat fmt = daily_format();
+  fmt.utc_offset_s = 2 * 3600;
+  const RainSeries rain =
+      read_daily("date,rain_mm\n2025-03-01,5\n", method(DisaggregationMethod::block), fmt);
+  ASSERT_EQ(rain.covered.size(), 1u);
+  expect_span(rain.covered[0], kT0 - 2 * kHour, kT0 + kDay - 2 * kHour);
+}
+
+TEST(RainDaily, ConvertsInches) {
+  SeriesFormat fmt = daily_format();
+  fmt.unit_m = kMetresPerInch;
+  fmt.unit_name = "in";
+  const RainSeries rain =
+      read_daily("date,rain_mm\n2025-03-01,1.5\n", method(DisaggregationMethod::block), fmt);
+  ASSERT_EQ(rain.pulses.size(), 1u);
+  EXPECT_EQ(rain.pulses[0].depth_m, 1.5 * kMetresPerInch);
+}
+
+TEST(RainDaily, StopsAtAMissingDayByDefault) {
+  EXPECT_EQ(daily_error_of("date,rain_mm\n2025-03-01,5\n2025-03-03,1\n"),
+            "daily.csv:3: date: gap in the record from 2025-03-02T00:00 to 2025-03-03T00:00 (1d "
+            "with no rows); set rain.gaps: zero to count gaps as dry, or rain.gaps: skip to "
+            "leave them out");
+}
+
+TEST(RainDaily, ListsAMissingDayAsAGapWhenAskedTo) {
+  const RainSeries rain =
+      read_daily("date,rain_mm\n2025-03-01,5\n2025-03-03,1\n", method(DisaggregationMethod::block),
+                 daily_format(GapPolicy::skip));
+  ASSERT_EQ(rain.gaps.size(), 1u);
+  expect_span(rain.gaps[0], kT0 + kDay, kT0 + 2 * kDay);
+  ASSERT_EQ(rain.covered.size(), 2u);
+  ASSERT_EQ(rain.warnings.size(), 2u);
+  EXPECT_EQ(rain.warnings[1],
+            "daily.csv:3: gap in the record from 2025-03-02T00:00 to 2025-03-03T00:00 (1d with no "
+            "rows), left out of the simulation");
+}
+
+TEST(RainDaily, RejectsADateWithATimeOfDay) {
+  EXPECT_EQ(daily_error_of("date,rain_mm\n2025-03-01T00:00,5\n"),
+            "daily.csv:2: date: not a date such as 2025-03-01 (got \"2025-03-01T00:00\")");
+}
+
+TEST(RainDaily, RejectsARepeatedDate) {
+  EXPECT_EQ(daily_error_of("date,rain_mm\n2025-03-01,5\n2025-03-01,1\n"),
+            "daily.csv:3: date: \"2025-03-01\" is the same day as the previous date "
+            "\"2025-03-01\" (line 2)");
+}
+
+TEST(RainDaily, RejectsDatesOutOfOrder) {
+  EXPECT_EQ(daily_error_of("date,rain_mm\n2025-03-02,5\n2025-03-01,1\n"),
+            "daily.csv:3: date: \"2025-03-01\" is earlier than the previous date \"2025-03-02\" "
+            "(line 2); rows must be in time order");
+}
+
+TEST(RainDaily, RejectsANegativeTotal) {
+  EXPECT_EQ(daily_error_of("date,rain_mm\n2025-03-01,-5\n"),
+            "daily.csv:2: rain_mm: must not be negative (got -5)");
+}
+
+TEST(RainDaily, RejectsAShortRow) {
+  EXPECT_EQ(daily_error_of("date,rain_mm\n2025-03-01\n"),
+            "daily.csv:2: rain_mm: missing (the row has 1 field, the column is field 2)");
+}
+
+TEST(RainDaily, RejectsAnImplausibleTotal) {
+  EXPECT_EQ(daily_error_of("date,rain_mm\n2025-03-01,30000\n"),
+            "daily.csv:2: rain_mm: implausible intensity 1250 mm/h (got 30000 mm in 1d; the "
+            "limit is 1000 mm/h)");
+}
+
+// ---- coverage ----
+
+TEST(RainCoverage, GivesTheShareOfEachMonthWithData) {
+  RainSeries rain;
+  // Invented: data for all of March 2025 but 6 hours, and for the first 15 days of April.
+  const Instant april = month_start(2025, 4);
+  rain.covered = {{kT0, kT0 + 10 * kDay}, {kT0 + 10 * kDay + 6 * kHour, april + 15 * kDay}};
+  const std::vector<MonthCoverage> months = month_coverage(rain, kT0, month_start(2025, 6), 0);
+  ASSERT_EQ(months.size(), 3u);
+  EXPECT_EQ(months[0].month, "2025-03");
+  EXPECT_EQ(months[0].covered_s, 31 * kDay - 6 * kHour);
+  EXPECT_DOUBLE_EQ(months[0].fraction, (31.0 * 24 - 6) / (31.0 * 24));
+  EXPECT_EQ(months[1].month, "2025-04");
+  EXPECT_DOUBLE_EQ(months[1].fraction, 0.5);
+  EXPECT_EQ(months[2].month, "2025-05");
+  EXPECT_EQ(months[2].covered_s, 0);
+  EXPECT_EQ(months[2].fraction, 0.0);
+}
+
+TEST(RainCoverage, CountsOnlyThePartOfAMonthInsideThePeriod) {
+  RainSeries rain;
+  rain.covered = {{kT0, kT0 + 20 * kDay}};
+  const std::vector<MonthCoverage> months =
+      month_coverage(rain, kT0 + 10 * kDay, kT0 + 30 * kDay, 0);
+  ASSERT_EQ(months.size(), 1u);
+  EXPECT_EQ(months[0].start, kT0 + 10 * kDay);
+  EXPECT_EQ(months[0].end, kT0 + 30 * kDay);
+  EXPECT_DOUBLE_EQ(months[0].fraction, 0.5);
+}
+
+TEST(RainCoverage, FollowsTheSitesOffset) {
+  RainSeries rain;
+  rain.covered = {{kT0, kT0 + 31 * kDay}};  // March in UTC
+  // At UTC+10:00 local March starts 10 hours before kT0, and April 10 hours before UTC April.
+  const int offset_s = 10 * 3600;
+  const std::vector<MonthCoverage> months = month_coverage(
+      rain, month_start(2025, 3, offset_s), month_start(2025, 5, offset_s), offset_s);
+  ASSERT_EQ(months.size(), 2u);
+  EXPECT_EQ(months[0].covered_s, 31 * kDay - 10 * kHour);
+  EXPECT_EQ(months[1].month, "2025-04");
+  EXPECT_EQ(months[1].covered_s, 10 * kHour);
+}
+
+TEST(RainCoverage, WarnsAboutMonthsBelowNinetyPercent) {
+  RainSeries rain;
+  const Instant april = month_start(2025, 4);
+  // April: 30 days less 3 days and 1 minute, just below 90 %, which must not read as 90.0 %.
+  rain.covered = {{kT0, april + 27 * kDay - kMinute}};
+  const std::vector<std::string> warnings =
+      coverage_warnings(month_coverage(rain, kT0, month_start(2025, 5), 0));
+  ASSERT_EQ(warnings.size(), 1u);
+  EXPECT_EQ(warnings[0],
+            "rain data cover 89.9 % of 2025-04 (below 90 %): that month's rain and yield are "
+            "understated");
+}
+
+TEST(RainCoverage, IsEmptyForAnEmptyPeriod) {
+  EXPECT_TRUE(month_coverage(RainSeries{}, kT0, kT0, 0).empty());
 }
 
 }  // namespace

@@ -5,6 +5,7 @@
 #include <istream>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "gutterwatt/calendar.hpp"
@@ -59,6 +60,9 @@ struct RainSeries {
   std::vector<std::string> warnings;  ///< things a user should hear about (gaps filled, ...)
 };
 
+/// The sum of the pulse depths, correctly rounded (exact summation, independent of order).
+double sum_depths_m(const std::vector<RainPulse>& pulses);
+
 /// Reads a period-ending CSV: each row's value belongs to the interval that ends at its
 /// timestamp, of length the nominal step (or the time since the previous row when shorter).
 /// A longer spacing is a gap, handled by `fmt.gaps`: `error` throws, `zero` counts it as dry,
@@ -80,5 +84,126 @@ struct RainSeries {
 ///   // rain.pulses == {{T0 - 300, T0, 0.2e-3}}, rain.covered == {{T0 - 300, T0 + 300}}
 RainSeries read_rain_series(std::istream& in, const std::string& file_label,
                             const SeriesFormat& fmt);
+
+/// Longest time one tip's depth is spread over, by default: 30 min. A tip that follows a dry
+/// spell longer than this counts as a shower of this length ending at the tip. A project choice
+/// (common practice, no source): about the time a light shower takes to fill a 0.2 mm bucket.
+inline constexpr Instant kDefaultTipCap_s = 1800;
+
+/// How a tipping-bucket log becomes intensity. Each tip's depth is spread uniformly over the
+/// time since the previous tip, but over no more than `cap_s`; the first tip of a log counts
+/// as following a long dry spell. Tips that share a stamp share one interval.
+struct TipSpreading {
+  double tip_depth_m = 0.0;          ///< depth of one tip, > 0
+  Instant cap_s = kDefaultTipCap_s;  ///< >= 1
+};
+
+/// The tips of one log file as read, before spreading: times (non-decreasing; equal stamps are
+/// several tips at once) and the line each came from, for messages.
+struct TipLog {
+  std::string label;
+  std::string time_column;
+  std::vector<Instant> times;
+  std::vector<int> lines;
+};
+
+/// Reads a tipping-bucket log: a CSV with one row per tip, the tip's time in column
+/// `fmt.time_column` (other columns are ignored). Same file rules and messages as
+/// read_rain_series (header, comments, BOM, CRLF, quoting, offsets), except that a stamp may
+/// repeat. Throws InputError for a stamp earlier than the one before it, or a log without tips.
+TipLog read_tip_log(std::istream& in, const std::string& file_label, const SeriesFormat& fmt);
+
+/// Spreads the tips of one or more logs (one instrument, files in any order) into pulses, one
+/// pulse per distinct stamp: n tips at stamp t give n * tip depth over
+/// [t - min(t - t_previous, cap), t). The logs are joined into one stream, so the first tip of a
+/// file follows the last tip of the file before it. A log cannot tell a logger outage from dry
+/// weather: the record covers the whole time from the first pulse's start to the last tip,
+/// without gaps. `policy` is only passed on (for the time outside the record).
+///
+/// Throws InputError naming both files when two logs overlap (a tip of one at or before the
+/// last tip of the other), and naming the file and line of a tip that implies more than
+/// kMaxRainIntensity_mm_per_h. `total_depth_m` is the correctly rounded sum of the pulses: with
+/// one tip per stamp, exactly (number of tips) x (tip depth), rounded once.
+RainSeries spread_tips(const std::vector<TipLog>& logs, const TipSpreading& tips,
+                       GapPolicy policy = GapPolicy::error);
+
+/// read_tip_log then spread_tips, for one file.
+RainSeries read_rain_tips(std::istream& in, const std::string& file_label, const SeriesFormat& fmt,
+                          const TipSpreading& tips);
+
+enum class DisaggregationMethod { nrcs_ii, block, cascade };
+
+/// Default probability that a cascade box sends all its rain into one of its halves. A project
+/// default (common practice, no source); fit it to a local record at fine resolution if one
+/// exists.
+inline constexpr double kDefaultCascadeIntermittency = 0.3;
+
+/// How a day's total is spread over the day. The rain falls in the window
+/// [midnight + start_s, midnight + start_s + duration_s) of the local day; the window lies
+/// inside the day (start_s + duration_s <= 86400).
+/// - `block`: constant intensity over the window, one pulse (`step_s` is not used).
+/// - `nrcs_ii`: the NRCS (TR-55) type II 24-hour shape, in steps of `step_s`; only defined for a
+///   24-hour window from midnight (the TR-55 shapes are 24-hour shapes and are not stretched).
+/// - `cascade`: a microcanonical binary random cascade: the window is halved again and again
+///   until the boxes are no longer than `step_s`; at each halving a box sends all its depth into
+///   one half (either, with equal chance) with probability `intermittency`, otherwise it splits
+///   it W : 1 - W with W uniform on (0, 1). Structure after Olsson (1998), Evaluation of a
+///   scaling cascade model for temporal rain-sub-division, Hydrol. Earth Syst. Sci. 2, 19-30;
+///   the single intermittency probability and the uniform W are simplifications of this
+///   project (Olsson lets the probabilities depend on the box's position and volume). The seed
+///   and the date fix each day's draw, so a day disaggregates the same way whatever else the
+///   record holds.
+/// `duration_s` and `start_s` are whole seconds; for nrcs_ii and cascade, `step_s` divides
+/// `duration_s`.
+struct Disaggregation {
+  DisaggregationMethod method = DisaggregationMethod::block;
+  Instant duration_s = 86400;
+  Instant start_s = 0;  ///< after local midnight
+  Instant step_s = 300;
+  std::uint64_t seed = 1;
+  double intermittency = kDefaultCascadeIntermittency;  ///< cascade only, 0..1
+};
+
+/// The depths of one day's steps over the window, in time order (a single value for `block`).
+/// Every depth is a whole multiple of the spacing of doubles at `depth_m`, so the depths add up
+/// to `depth_m` exactly in any order. `day` numbers the day (days since 1970-01-01 of its local
+/// date) and, with the seed, picks the cascade's draw.
+std::vector<double> disaggregate_day(double depth_m, std::int64_t day, const Disaggregation& how);
+
+/// The warning a daily record always carries (once per record, however many files).
+inline constexpr std::string_view kDailyWarning =
+    "daily totals hide rain intensity, and whether the siphon primes depends on it: the "
+    "results follow the chosen rain.disaggregate method";
+
+/// Reads daily totals: a CSV with a date column (`fmt.time_column`, dates such as 2025-03-01,
+/// the local day at `fmt.utc_offset_s`) and a depth column (`fmt.value_column`, in `fmt.unit_m`;
+/// `fmt.value` must be depth). Each day covers its 24 hours and its depth is spread by `how`.
+/// Missing days are gaps, handled by `fmt.gaps` as in read_rain_series. Same file rules and
+/// messages as read_rain_series; a day's depth may imply at most kMaxRainIntensity_mm_per_h
+/// over the window. The series carries kDailyWarning; `step_s` is one day.
+RainSeries read_rain_daily(std::istream& in, const std::string& file_label, const SeriesFormat& fmt,
+                           const Disaggregation& how);
+
+/// The share of one local calendar month (the part inside the period asked about) for which the
+/// record has data.
+struct MonthCoverage {
+  std::string month;  ///< YYYY-MM
+  Instant start;      ///< start of the month, or of the period when later
+  Instant end;        ///< end of the month, or of the period when earlier
+  Instant covered_s;  ///< seconds of [start, end) inside `RainSeries::covered`
+  double fraction;    ///< covered_s / (end - start)
+};
+
+/// Months below this share of data get a warning: 90 % (common practice, no source).
+inline constexpr double kMinMonthCoverage = 0.9;
+
+/// Coverage of every local month (at `utc_offset_s`) that overlaps [start, end), in order;
+/// empty when end <= start.
+std::vector<MonthCoverage> month_coverage(const RainSeries& rain, Instant start, Instant end,
+                                          int utc_offset_s);
+
+/// One warning per month below kMinMonthCoverage, e.g. `rain data cover 85.2 % of 2025-04
+/// (below 90 %): that month's rain and yield are low, or cover less time`.
+std::vector<std::string> coverage_warnings(const std::vector<MonthCoverage>& months);
 
 }  // namespace gutterwatt
