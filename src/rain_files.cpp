@@ -19,6 +19,8 @@ RainSeries join_rain(std::vector<RainSeries> parts, const std::vector<std::strin
             [&](std::size_t a, std::size_t b) { return first(a) < first(b); });
   RainSeries out;
   out.policy = parts.front().policy;
+  const char* const gap_fate =
+      out.policy == GapPolicy::zero ? ", counted as dry" : ", left out of the simulation";
   std::size_t previous = order.front();
   for (std::size_t n = 0; n < order.size(); ++n) {
     const std::size_t k = order[n];
@@ -32,7 +34,18 @@ RainSeries join_rain(std::vector<RainSeries> parts, const std::vector<std::strin
                            " (UTC); each period must come from one file");
     }
     if (!out.covered.empty() && p.covered.front().start > out.covered.back().end) {
-      out.gaps.push_back({out.covered.back().end, p.covered.front().start});
+      const TimeSpan gap{out.covered.back().end, p.covered.front().start};
+      const std::string text = "gap between the files from " + format_iso8601(gap.start) + " to " +
+                               format_iso8601(gap.end) + " (UTC, " +
+                               format_duration(gap.end - gap.start) + ") after " + labels[previous];
+      if (out.policy == GapPolicy::error) {
+        throw InputError(labels[k], 0, "rain.files",
+                         text +
+                             "; set rain.gaps: zero to count gaps as dry, or rain.gaps: skip to "
+                             "leave them out");
+      }
+      out.gaps.push_back(gap);
+      out.warnings.push_back(labels[k] + ": " + text + gap_fate);
     }
     for (const TimeSpan& c : p.covered) {
       if (!out.covered.empty() && out.covered.back().end == c.start) {
@@ -43,38 +56,63 @@ RainSeries join_rain(std::vector<RainSeries> parts, const std::vector<std::strin
     }
     out.pulses.insert(out.pulses.end(), p.pulses.begin(), p.pulses.end());
     out.gaps.insert(out.gaps.end(), p.gaps.begin(), p.gaps.end());
-    out.total_depth_m += p.total_depth_m;
-    for (std::string& w : p.warnings) out.warnings.push_back(labels[k] + ": " + w);
+    out.step_s = out.step_s == 0 ? p.step_s : std::min(out.step_s, p.step_s);
+    // Readers put the file in their own warnings; one said by several files is said once.
+    for (std::string& w : p.warnings) {
+      if (std::find(out.warnings.begin(), out.warnings.end(), w) == out.warnings.end()) {
+        out.warnings.push_back(std::move(w));
+      }
+    }
     previous = k;
   }
   std::sort(out.gaps.begin(), out.gaps.end(),
             [](const TimeSpan& a, const TimeSpan& b) { return a.start < b.start; });
+  out.total_depth_m = sum_depths_m(out.pulses);
   return out;
 }
+
+namespace {
+
+// Opens `file` for reading, or throws naming it.
+std::ifstream open_rain_file(const std::filesystem::path& file) {
+  const std::string label = file.string();
+  std::error_code ec;
+  if (!std::filesystem::exists(file, ec)) {
+    throw InputError(label, 0, "rain.file", "no such file");
+  }
+  if (std::filesystem::is_directory(file, ec)) {
+    throw InputError(label, 0, "rain.file", "is a folder, not a file");
+  }
+  std::ifstream in(file, std::ios::binary);
+  if (!in) throw InputError(label, 0, "rain.file", "cannot be read");
+  return in;
+}
+
+}  // namespace
 
 RainSeries load_rain(const RainConfig& config, const std::filesystem::path& override_file) {
   std::vector<std::filesystem::path> files = config.files;
   if (!override_file.empty()) files = {override_file};
   if (files.empty()) throw InputError("", 0, "rain.file", "no rain file given");
+  if (config.format == RainFormat::tips) {
+    // The tips of several files are one stream: a file's first tip follows the last tip of
+    // the file before it.
+    std::vector<TipLog> logs;
+    for (const std::filesystem::path& file : files) {
+      std::ifstream in = open_rain_file(file);
+      logs.push_back(read_tip_log(in, file.string(), config.series));
+    }
+    return spread_tips(logs, config.tips, config.series.gaps);
+  }
   std::vector<RainSeries> parts;
   std::vector<std::string> labels;
   for (const std::filesystem::path& file : files) {
+    std::ifstream in = open_rain_file(file);
     const std::string label = file.string();
-    std::error_code ec;
-    if (!std::filesystem::exists(file, ec)) {
-      throw InputError(label, 0, "rain.file", "no such file");
-    }
-    if (std::filesystem::is_directory(file, ec)) {
-      throw InputError(label, 0, "rain.file", "is a folder, not a file");
-    }
-    std::ifstream in(file, std::ios::binary);
-    if (!in) throw InputError(label, 0, "rain.file", "cannot be read");
-    switch (config.format) {
-      case RainFormat::series:
-        parts.push_back(read_rain_series(in, label, config.series));
-        break;
-      default:
-        throw InputError(label, 0, "rain.format", "TODO(#3): tips and daily records");
+    if (config.format == RainFormat::daily) {
+      parts.push_back(read_rain_daily(in, label, config.series, config.disaggregate));
+    } else {
+      parts.push_back(read_rain_series(in, label, config.series));
     }
     labels.push_back(label);
   }

@@ -224,6 +224,128 @@ HeadColumnConfig& head_column(Scenario& s) {
   return *s.head_column;
 }
 
+/// A duration in whole seconds from `lo_s` to `hi_s`.
+Instant whole_seconds(const Value& v, Instant lo_s, Instant hi_s) {
+  const double d = v.duration_s(kPositive);
+  v.expect(d == std::floor(d) && d >= static_cast<double>(lo_s) && d <= static_cast<double>(hi_s),
+           "must be a whole number of seconds from " + format_duration(lo_s) + " to " +
+               format_duration(hi_s));
+  return static_cast<Instant>(d);
+}
+
+/// Hours as whole seconds.
+Instant hours_as_seconds(const Value& v, const Limits& limits) {
+  const double s = v.number(limits) * kSecondsPerHour;
+  v.expect(s == std::floor(s), "must be a whole number of seconds");
+  return static_cast<Instant>(s);
+}
+
+std::string_view nearest(std::string_view name, const std::vector<std::string_view>& valid);
+
+/// rain.disaggregate, a small section inside rain: its keys are read and checked here, with the
+/// same messages as the loader's.
+void apply_disaggregate(const Value& v, Scenario& s) {
+  using V = const Value&;
+  using S = Scenario&;
+  static const std::vector<Key> kKeys = {
+      {"method", kRequired,
+       [](V v, S s) {
+         s.rain.disaggregate.method =
+             v.choice<DisaggregationMethod>({{"nrcs-II", DisaggregationMethod::nrcs_ii},
+                                             {"block", DisaggregationMethod::block},
+                                             {"cascade", DisaggregationMethod::cascade}});
+       }},
+      {"duration_h", kOptional,
+       [](V v, S s) {
+         s.rain.disaggregate.duration_s = hours_as_seconds(v, {0.0, 24.0, true, false});
+       }},
+      {"start_hour", kOptional,
+       [](V v, S s) {
+         s.rain.disaggregate.start_s = hours_as_seconds(v, {0.0, 24.0, false, true});
+       }},
+      {"step", kOptional,
+       [](V v, S s) { s.rain.disaggregate.step_s = whole_seconds(v, 1, 86400); }},
+      {"seed", kOptional,
+       [](V v, S s) {
+         std::uint64_t seed = 0;
+         const std::string& text = v.raw();
+         const auto result = std::from_chars(text.data(), text.data() + text.size(), seed);
+         if (text.empty() || result.ec != std::errc() || result.ptr != text.data() + text.size()) {
+           v.fail("expected a whole number from 0 to 18446744073709551615, got " + v.got());
+         }
+         s.rain.disaggregate.seed = seed;
+       }},
+      {"intermittency", kOptional,
+       [](V v, S s) { s.rain.disaggregate.intermittency = v.number(kShare); }},
+  };
+  if (!v.node().IsMap()) {
+    v.fail("expected a section of keys such as {method: cascade, step: 5min}, got " + v.got());
+  }
+  std::vector<std::string_view> names;
+  for (const Key& key : kKeys) names.push_back(key.name);
+  std::map<std::string, Value> given;
+  for (auto it = v.node().begin(); it != v.node().end(); ++it) {
+    if (!it->first.IsScalar()) v.fail("expected a key name, got a section or a list");
+    const std::string name = it->first.Scalar();
+    // Keys written by --set have no place in the file.
+    const bool from_override = v.label() == kOverrideLabel || it->first.Mark().is_null();
+    const Value item(it->second, v.path() + "." + name, from_override ? kOverrideLabel : v.label(),
+                     from_override ? 0 : it->first.Mark().line + 1);
+    if (std::find(names.begin(), names.end(), name) == names.end()) {
+      item.fail("unknown key; did you mean " + std::string(nearest(name, names)) + "?");
+    }
+    const auto [first, inserted] = given.emplace(name, item);
+    if (!inserted) {
+      item.fail("duplicate key (first given on line " + std::to_string(first->second.line()) + ")");
+    }
+  }
+  for (const Key& key : kKeys) {
+    const auto found = given.find(std::string(key.name));
+    if (found != given.end()) {
+      key.apply(found->second, s);
+    } else if (key.required) {
+      throw InputError(v.label(), v.line(), v.path() + "." + std::string(key.name),
+                       "missing required key");
+    }
+  }
+  const Disaggregation& d = s.rain.disaggregate;
+  const auto at = [&](const std::string& name) { return given.find(name); };
+  if (d.method == DisaggregationMethod::nrcs_ii) {
+    // TR-55 gives the type II shape for 24 hours only; it is not stretched or cut here.
+    if (at("duration_h") != given.end()) {
+      at("duration_h")
+          ->second.expect(d.duration_s == 86400, "must be 24 for method: nrcs-II, a 24-hour shape");
+    }
+    if (at("start_hour") != given.end()) {
+      at("start_hour")
+          ->second.expect(d.start_s == 0, "must be 0 for method: nrcs-II, a 24-hour shape");
+    }
+  }
+  if (d.start_s + d.duration_s > 86400) {
+    // Each day's rain stays in its own day.
+    if (at("duration_h") != given.end()) {
+      at("duration_h")
+          ->second.expect(false,
+                          "must be <= 24 - rain.disaggregate.start_hour = " +
+                              show(static_cast<double>(86400 - d.start_s) / kSecondsPerHour) +
+                              ", so that each day's rain stays in its day");
+    }
+    at("start_hour")
+        ->second.expect(false,
+                        "must be 0 with the default duration_h of 24, so that each "
+                        "day's rain stays in its day");
+  }
+  if (d.method != DisaggregationMethod::block && d.duration_s % d.step_s != 0) {
+    const std::string duration = show(static_cast<double>(d.duration_s) / kSecondsPerHour);
+    if (at("step") == given.end()) {
+      v.fail("the default step of " + format_duration(d.step_s) + " does not divide duration_h = " +
+             duration + " into whole steps; give rain.disaggregate.step");
+    }
+    at("step")->second.expect(
+        false, "must divide rain.disaggregate.duration_h = " + duration + " into whole steps");
+  }
+}
+
 // The one list of sections and keys: names, whether they are required, and their conversion to SI.
 // Sections are converted in this order (simulation times need the site's offset). Checks that
 // involve more than one key are in check_combinations().
@@ -279,6 +401,10 @@ const std::vector<Section>& schema() {
            {"step", kOptional, [](V v, S s) { s.rain.series.step_s = v.duration_s(kPositive); }},
            {"utc_offset", kOptional,
             [](V v, S s) { s.rain.series.utc_offset_s = v.utc_offset_s(); }},
+           {"tip_depth", kOptional,
+            [](V v, S s) { s.rain.tips.tip_depth_m = v.number(kPositive) * s.rain.series.unit_m; }},
+           {"tip_cap", kOptional, [](V v, S s) { s.rain.tips.cap_s = whole_seconds(v, 1, 86400); }},
+           {"disaggregate", kOptional, apply_disaggregate},
        }},
       {"roof",
        kRequired,
@@ -525,6 +651,15 @@ void check_rain(const Seen& seen, Scenario& s) {
   }
   if (series.value == RainValue::intensity && !per_hour) series.unit_name += "/h";
   if (!seen.has("rain.utc_offset")) series.utc_offset_s = s.site.utc_offset_s;
+  if (s.rain.format == RainFormat::tips) seen.require("rain.tip_depth", "needed by format: tips");
+  if (s.rain.format == RainFormat::daily) {
+    seen.require("rain.disaggregate", "needed by format: daily");
+    if (seen.has("rain.value")) {
+      seen.at("rain.value")
+          .expect(series.value == RainValue::depth, "must be depth for format: daily");
+    }
+    if (!seen.has("rain.time_column")) series.time_column = "date";
+  }
 }
 
 void check_level_table(const Seen& seen) {

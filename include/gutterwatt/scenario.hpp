@@ -25,7 +25,9 @@ enum class RainFormat { series, tips, daily };
 struct RainConfig {
   std::vector<std::filesystem::path> files;  ///< resolved against the scenario file's folder
   RainFormat format = RainFormat::series;
-  SeriesFormat series;  ///< columns, value kind, unit, step, gaps, offset
+  SeriesFormat series;          ///< columns, value kind, unit, step, gaps, offset
+  TipSpreading tips;            ///< format tips: depth of one tip (rain.tip_depth), rain.tip_cap
+  Disaggregation disaggregate;  ///< format daily: rain.disaggregate
 };
 
 struct RoofConfig {

@@ -1,0 +1,319 @@
+#include "gutterwatt/rain_files.hpp"
+
+#include <gtest/gtest.h>
+#include <unistd.h>
+
+#include <fstream>
+#include <string>
+#include <vector>
+
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/scenario.hpp"
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+namespace {
+
+// Seconds since the epoch of 2025-03-01T00:00Z.
+// source: POSIX.1-2017 Base Definitions 4.16 (Seconds Since the Epoch), formula worked by hand.
+constexpr Instant kT0 = 1740787200;
+constexpr Instant kMinute = 60;
+constexpr Instant kDay = 86400;
+
+const std::filesystem::path kFixtures =
+    std::filesystem::path(GUTTERWATT_SOURCE_DIR) / "tests/data/rain";
+
+// A folder of its own for each test, emptied first.
+class RainFiles : public ::testing::Test {
+ protected:
+  void SetUp() override {
+    const auto* info = ::testing::UnitTest::GetInstance()->current_test_info();
+    dir_ = std::filesystem::temp_directory_path() /
+           ("gutterwatt-rain-files-" + std::to_string(::getpid()) + "-" + info->name());
+    std::filesystem::remove_all(dir_);
+    std::filesystem::create_directories(dir_);
+  }
+  void TearDown() override { std::filesystem::remove_all(dir_); }
+
+  std::filesystem::path write(const std::string& name, const std::string& text) const {
+    const std::filesystem::path path = dir_ / name;
+    std::ofstream(path, std::ios::binary) << text;
+    return path;
+  }
+
+  std::string label(const std::string& name) const { return (dir_ / name).string(); }
+
+  std::filesystem::path dir_;
+};
+
+RainConfig config(RainFormat format, std::vector<std::filesystem::path> files,
+                  GapPolicy gaps = GapPolicy::error) {
+  RainConfig c;
+  c.format = format;
+  c.files = std::move(files);
+  c.series.gaps = gaps;
+  return c;
+}
+
+std::string error_of(const RainConfig& c) {
+  try {
+    load_rain(c);
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "no error";
+}
+
+// Invented records: two 5-minute files that follow each other, and one that overlaps the first.
+const char* const kSeriesA = "time,rain_mm\n2025-03-01T00:05,0.2\n2025-03-01T00:10,0.4\n";
+const char* const kSeriesB = "time,rain_mm\n2025-03-01T00:15,1.0\n2025-03-01T00:20,0\n";
+const char* const kSeriesOverlap = "time,rain_mm\n2025-03-01T00:10,1.0\n2025-03-01T00:15,0\n";
+const char* const kSeriesLater = "time,rain_mm\n2025-03-01T01:05,1.0\n2025-03-01T01:10,0\n";
+
+TEST_F(RainFiles, JoinsSeriesFilesInTimeOrder) {
+  const RainSeries rain =
+      load_rain(config(RainFormat::series, {write("b.csv", kSeriesB), write("a.csv", kSeriesA)}));
+  ASSERT_EQ(rain.pulses.size(), 3u);
+  EXPECT_EQ(rain.pulses[2].start, kT0 + 10 * kMinute);
+  ASSERT_EQ(rain.covered.size(), 1u);
+  EXPECT_EQ(rain.covered[0].start, kT0);
+  EXPECT_EQ(rain.covered[0].end, kT0 + 20 * kMinute);
+  EXPECT_EQ(rain.total_depth_m, 1.6e-3);
+  EXPECT_EQ(rain.step_s, 300);
+}
+
+TEST_F(RainFiles, RejectsOverlappingFilesNamingBoth) {
+  EXPECT_EQ(error_of(config(RainFormat::series,
+                            {write("a.csv", kSeriesA), write("c.csv", kSeriesOverlap)})),
+            label("c.csv") + ": rain.files: overlaps " + label("a.csv") +
+                " from 2025-03-01T00:05 to 2025-03-01T00:10 (UTC); each period must come from "
+                "one file");
+}
+
+TEST_F(RainFiles, StopsAtAGapBetweenFilesByDefault) {
+  EXPECT_EQ(
+      error_of(
+          config(RainFormat::series, {write("a.csv", kSeriesA), write("d.csv", kSeriesLater)})),
+      label("d.csv") +
+          ": rain.files: gap between the files from 2025-03-01T00:10 to 2025-03-01T01:00 (UTC, "
+          "50min) after " +
+          label("a.csv") +
+          "; set rain.gaps: zero to count gaps as dry, or rain.gaps: skip to leave them out");
+}
+
+TEST_F(RainFiles, CountsAGapBetweenFilesAsDryWhenAskedTo) {
+  const RainSeries rain =
+      load_rain(config(RainFormat::series, {write("a.csv", kSeriesA), write("d.csv", kSeriesLater)},
+                       GapPolicy::zero));
+  EXPECT_EQ(rain.policy, GapPolicy::zero);
+  ASSERT_EQ(rain.gaps.size(), 1u);
+  EXPECT_EQ(rain.gaps[0].start, kT0 + 10 * kMinute);
+  EXPECT_EQ(rain.gaps[0].end, kT0 + 60 * kMinute);
+  ASSERT_EQ(rain.covered.size(), 2u);
+  ASSERT_EQ(rain.warnings.size(), 1u);
+  EXPECT_EQ(rain.warnings[0], label("d.csv") +
+                                  ": gap between the files from 2025-03-01T00:10 to "
+                                  "2025-03-01T01:00 (UTC, 50min) after " +
+                                  label("a.csv") + ", counted as dry");
+}
+
+TEST_F(RainFiles, KeepsEachFilesOwnWarningsAsTheyAre) {
+  const RainSeries rain = load_rain(
+      config(RainFormat::series,
+             {write("a.csv",
+                    "time,rain_mm\n2025-03-01T00:05,0\n2025-03-01T00:10,0\n2025-03-01T00:30,0\n")},
+             GapPolicy::skip));
+  ASSERT_EQ(rain.warnings.size(), 1u);
+  EXPECT_EQ(rain.warnings[0], label("a.csv") +
+                                  ":4: gap in the record from 2025-03-01T00:10 to "
+                                  "2025-03-01T00:25 (15min with no rows), left out of the "
+                                  "simulation");
+}
+
+TEST_F(RainFiles, JoinsTipFilesAsOneStream) {
+  RainConfig c = config(RainFormat::tips, {write("b.csv", "time\n2025-03-01T00:25\n"),
+                                           write("a.csv", "time\n2025-03-01T00:10\n")});
+  c.tips.tip_depth_m = 0.2e-3;
+  const RainSeries rain = load_rain(c);
+  ASSERT_EQ(rain.pulses.size(), 2u);
+  EXPECT_EQ(rain.pulses[1].start, kT0 + 10 * kMinute);
+  EXPECT_EQ(rain.pulses[1].end, kT0 + 25 * kMinute);
+  ASSERT_EQ(rain.covered.size(), 1u);
+  EXPECT_TRUE(rain.gaps.empty());
+}
+
+TEST_F(RainFiles, RejectsOverlappingTipFilesNamingBoth) {
+  RainConfig c =
+      config(RainFormat::tips, {write("a.csv", "time\n2025-03-01T00:10\n2025-03-01T00:30\n"),
+                                write("b.csv", "time\n2025-03-01T00:30\n")});
+  c.tips.tip_depth_m = 0.2e-3;
+  EXPECT_EQ(error_of(c), label("b.csv") + ": rain.files: overlaps " + label("a.csv") +
+                             " from 2025-03-01T00:30 to 2025-03-01T00:30 (UTC); each period "
+                             "must come from one file");
+}
+
+TEST_F(RainFiles, WarnsOnceAboutDailyTotalsFromSeveralFiles) {
+  RainConfig c = config(RainFormat::daily, {write("a.csv", "date,rain_mm\n2025-03-01,4\n"),
+                                            write("b.csv", "date,rain_mm\n2025-03-02,6\n")});
+  c.series.time_column = "date";
+  const RainSeries rain = load_rain(c);
+  ASSERT_EQ(rain.warnings.size(), 1u);
+  EXPECT_EQ(rain.warnings[0], kDailyWarning);
+  ASSERT_EQ(rain.covered.size(), 1u);
+  EXPECT_EQ(rain.covered[0].end, kT0 + 2 * kDay);
+  EXPECT_EQ(rain.total_depth_m, 10e-3);
+}
+
+TEST_F(RainFiles, ReadsTheOverrideFileInPlaceOfTheScenariosFiles) {
+  const RainSeries rain =
+      load_rain(config(RainFormat::series, {write("a.csv", kSeriesA)}), write("b.csv", kSeriesB));
+  ASSERT_EQ(rain.pulses.size(), 1u);
+  EXPECT_EQ(rain.pulses[0].depth_m, 1.0e-3);
+}
+
+TEST_F(RainFiles, NamesAMissingFile) {
+  EXPECT_EQ(error_of(config(RainFormat::daily, {dir_ / "none.csv"})),
+            label("none.csv") + ": rain.file: no such file");
+}
+
+// ---- the scenario keys of each format, end to end ----
+
+// Only the required keys besides rain, with invented values (not a real site).
+const char* const kScenarioRest =
+    "site: {name: Test shed}\n"
+    "roof: {area_m2: 12}\n"
+    "reservoir: {width_mm: 100, length_m: 4, rim_mm: 50}\n"
+    "release: {trigger_level_mm: 40, break_level_mm: 5, standpipe_diameter_mm: 15,\n"
+    "          priming_flow_L_per_min: 2}\n"
+    "drop_pipe: {diameter_mm: 15, length_m: 3, drop_m: 2.5}\n"
+    "nozzle: {diameter_mm: 4}\n"
+    "turbine: {runner_diameter_mm: 60}\n"
+    "battery: {capacity_Wh: 20}\n";
+
+Scenario scenario(const std::string& rain, const std::filesystem::path& base_dir,
+                  const std::vector<std::string>& overrides = {}) {
+  return parse_scenario("rain:\n" + rain + kScenarioRest, "demo.yaml", base_dir, overrides);
+}
+
+std::string scenario_error_of(const std::string& rain,
+                              const std::vector<std::string>& overrides = {}) {
+  try {
+    scenario(rain, "base", overrides);
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "no error";
+}
+
+TEST(RainScenario, LoadsATipLogFromAScenario) {
+  const Scenario s = scenario(
+      "  file: tips-log.csv\n  format: tips\n  time_column: tipped\n  unit: in\n"
+      "  tip_depth: 0.01\n  tip_cap: 20min\n",
+      kFixtures);
+  EXPECT_EQ(s.rain.tips.tip_depth_m, 0.01 * kMetresPerInch);
+  EXPECT_EQ(s.rain.tips.cap_s, 1200);
+  const RainSeries rain = load_rain(s.rain);
+  ASSERT_EQ(rain.pulses.size(), 4u);
+  EXPECT_EQ(rain.pulses[0].start, kT0 + 5 * kMinute - 20 * kMinute);
+  EXPECT_EQ(rain.total_depth_m, 5 * s.rain.tips.tip_depth_m);
+}
+
+TEST(RainScenario, LoadsDailyTotalsFromAScenario) {
+  const Scenario s = scenario(
+      "  file: daily-totals.csv\n  format: daily\n  gaps: zero\n"
+      "  disaggregate: {method: cascade, step: 10min, seed: 42, intermittency: 0.5}\n",
+      kFixtures);
+  EXPECT_EQ(s.rain.series.time_column, "date");
+  EXPECT_EQ(s.rain.disaggregate.method, DisaggregationMethod::cascade);
+  EXPECT_EQ(s.rain.disaggregate.step_s, 600);
+  EXPECT_EQ(s.rain.disaggregate.seed, 42u);
+  EXPECT_EQ(s.rain.disaggregate.intermittency, 0.5);
+  EXPECT_EQ(s.rain.disaggregate.duration_s, kDay);
+  const RainSeries rain = load_rain(s.rain);
+  EXPECT_EQ(rain.total_depth_m, sum_depths_m(rain.pulses));
+  EXPECT_DOUBLE_EQ(rain.total_depth_m, (3.5 + 12.25 + 0.4) * 1e-3);
+  ASSERT_EQ(rain.gaps.size(), 1u);
+  EXPECT_EQ(rain.warnings.front(), kDailyWarning);
+}
+
+TEST(RainScenario, ReadsTheWindowOfABlock) {
+  const Scenario s = scenario(
+      "  file: d.csv\n  format: daily\n"
+      "  disaggregate: {method: block, start_hour: 14, duration_h: 2.5}\n",
+      "base");
+  EXPECT_EQ(s.rain.disaggregate.start_s, 14 * 3600);
+  EXPECT_EQ(s.rain.disaggregate.duration_s, 9000);
+}
+
+TEST(RainScenario, SetsTheMethodFromTheCommandLine) {
+  const Scenario s = scenario("  file: d.csv\n  format: daily\n  disaggregate: {method: block}\n",
+                              "base", {"rain.disaggregate.method=nrcs-II"});
+  EXPECT_EQ(s.rain.disaggregate.method, DisaggregationMethod::nrcs_ii);
+}
+
+TEST(RainScenario, NeedsATipDepthForTips) {
+  EXPECT_EQ(scenario_error_of("  file: t.csv\n  format: tips\n"),
+            "demo.yaml:1: rain.tip_depth: missing required key (needed by format: tips)");
+}
+
+TEST(RainScenario, NeedsADisaggregationMethodForDailyTotals) {
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n"),
+            "demo.yaml:1: rain.disaggregate: missing required key (needed by format: daily)");
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n  disaggregate: {step: 5min}\n"),
+            "demo.yaml:4: rain.disaggregate.method: missing required key");
+}
+
+TEST(RainScenario, SuggestsTheNearestDisaggregationKey) {
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n"
+                              "  disaggregate:\n    method: cascade\n    sead: 3\n"),
+            "demo.yaml:6: rain.disaggregate.sead: unknown key; did you mean seed?");
+}
+
+TEST(RainScenario, RejectsAnUnknownMethod) {
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n  disaggregate: {method: nrcs}\n"),
+            "demo.yaml:4: rain.disaggregate.method: expected one of nrcs-II, block or cascade, "
+            "got \"nrcs\"");
+}
+
+TEST(RainScenario, KeepsNrcsToItsTwentyFourHours) {
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n"
+                              "  disaggregate: {method: nrcs-II, duration_h: 12}\n"),
+            "demo.yaml:4: rain.disaggregate.duration_h: must be 24 for method: nrcs-II, a "
+            "24-hour shape (got 12)");
+}
+
+TEST(RainScenario, KeepsEachDaysRainInItsDay) {
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n"
+                              "  disaggregate: {method: block, start_hour: 18, duration_h: 12}\n"),
+            "demo.yaml:4: rain.disaggregate.duration_h: must be <= 24 - "
+            "rain.disaggregate.start_hour = 6, so that each day's rain stays in its day (got 12)");
+}
+
+TEST(RainScenario, NeedsAStepThatDividesTheWindow) {
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n"
+                              "  disaggregate: {method: cascade, step: 7min}\n"),
+            "demo.yaml:4: rain.disaggregate.step: must divide rain.disaggregate.duration_h = 24 "
+            "into whole steps (got 7min)");
+}
+
+TEST(RainScenario, RejectsASeedThatIsNotAWholeNumber) {
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n"
+                              "  disaggregate: {method: cascade, seed: -1}\n"),
+            "demo.yaml:4: rain.disaggregate.seed: expected a whole number from 0 to "
+            "18446744073709551615, got \"-1\"");
+}
+
+TEST(RainScenario, RejectsIntensityForDailyTotals) {
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n  value: intensity\n  unit: mm/h\n"
+                              "  disaggregate: {method: block}\n"),
+            "demo.yaml:4: rain.value: must be depth for format: daily (got intensity)");
+}
+
+TEST(RainScenario, RejectsATipCapOfPartSeconds) {
+  EXPECT_EQ(scenario_error_of("  file: t.csv\n  format: tips\n  tip_depth: 0.2\n  tip_cap: 1.5s\n"),
+            "demo.yaml:5: rain.tip_cap: must be a whole number of seconds from 1s to 1d (got "
+            "1.5s)");
+}
+
+}  // namespace
+}  // namespace gutterwatt
