@@ -94,6 +94,7 @@ double ReservoirGeometry::section_volume_m3(double h) const {
 
 double ReservoirGeometry::level_m(double volume_m3) const {
   const double v = std::max(0.0, volume_m3);
+  if (v == 0.0) return 0.0;
   if (v >= rim_volume_m3_) return rim_m_ + (v - rim_volume_m3_) / rim_area_m2_;
   switch (shape_) {
     case ReservoirShape::rectangular:
@@ -119,7 +120,8 @@ double ReservoirGeometry::level_m(double volume_m3) const {
   const double area = v / length_m_;
   double lo = 0.0;
   double hi = rim_m_;
-  double h = std::min(hi, std::pow(3.0 * area / (4.0 * std::sqrt(2.0 * r)), 2.0 / 3.0));
+  double h = std::min(hi, std::cbrt(3.0 * area / (4.0 * std::sqrt(2.0 * r))) *
+                              std::cbrt(3.0 * area / (4.0 * std::sqrt(2.0 * r))));
   for (int iter = 0; iter < 60; ++iter) {
     const double f = circular_segment_area_m2(r, h) - area;
     if (f > 0.0)

@@ -3,6 +3,7 @@
 /// turbine and generator, as seen from the simulation at one instant.
 
 #include <optional>
+#include <vector>
 
 #include "gutterwatt/scenario.hpp"
 
@@ -27,7 +28,11 @@ class Plant {
 
   /// Flow the conveyance carries with the release running full and the reservoir at `level_m`:
   /// nozzle-controlled without a head column, free outfall into the column top with one.
+  /// Interpolated (4-point cubic, relative error below 1e-9) from a table solved once up to
+  /// `table_top_m`, solved directly above it.
   double full_flow_m3_per_s(double level_m) const;
+  /// The same flow solved directly (Darcy-Weisbach with the chosen friction law).
+  double solve_full_flow_m3_per_s(double level_m) const;
 
   bool has_column() const { return column_.has_value(); }
   double column_area_m2() const;
@@ -62,6 +67,8 @@ class Plant {
   double cut_in_W_;
   double density_kg_per_m3_;
   double kinematic_viscosity_m2_per_s_;
+  double table_step_m_ = 0.0;
+  std::vector<double> table_;  ///< full flow at levels k * table_step_m_, k = -1 .. n + 1
 };
 
 }  // namespace gutterwatt
