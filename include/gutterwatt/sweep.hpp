@@ -1,0 +1,188 @@
+#pragma once
+/// Set-point sweeps: every combination of some scenario keys, run in parallel on one rain record
+/// read once, ranked best first and written as DIR/sweep.csv, DIR/skipped.csv and DIR/sweep.json.
+
+#include <atomic>
+#include <cstddef>
+#include <filesystem>
+#include <functional>
+#include <ostream>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "gutterwatt/output.hpp"
+#include "gutterwatt/rain_input.hpp"
+#include "gutterwatt/scenario.hpp"
+#include "gutterwatt/simulation.hpp"
+
+namespace gutterwatt {
+
+/// One varied key and its values, each the exact text of a `--set key=value` override.
+struct SweepAxis {
+  std::string key;
+  std::vector<std::string> values;
+};
+
+/// Most combinations one sweep may have, so a mistyped step does not start a run of years.
+inline constexpr std::size_t kMaxSweepCombinations = 100000;
+
+/// Reads one `--vary` spec: `KEY=FROM:TO:STEP` (numbers; FROM <= TO, STEP > 0; TO included when
+/// it is reached within 1e-9 of the largest of |FROM|, |TO| and STEP) or `KEY=v1,v2,...` (any
+/// text, e.g. `release.kind=bell,float_valve`; one value needs no comma). Range values are
+/// printed with the decimals of the spec's numbers, so `0.1:0.3:0.1` gives 0.1, 0.2, 0.3. Throws
+/// InputError (`--vary: KEY: message`) for a malformed spec, a zero or negative step, a range
+/// that runs backwards, an empty or repeated value, or more than kMaxSweepCombinations values.
+///
+///   parse_vary("release.trigger_level_mm=30:50:10").values  // {"30", "40", "50"}
+SweepAxis parse_vary(const std::string& spec);
+
+/// Every combination of the axes' values, in nested order (the first axis varies slowest).
+/// Throws InputError naming `--vary` for more than kMaxSweepCombinations combinations.
+std::vector<std::vector<std::string>> expand_combinations(const std::vector<SweepAxis>& axes);
+
+/// What a sweep reports for one combination. Water in litres, energy in watt-hours (the units of
+/// the column names), taken from the run's totals without rounding.
+struct SweepMetrics {
+  double energy_Wh = 0.0;   ///< electrical, out of the generator
+  double overflow_L = 0.0;  ///< reservoir plus head-column overflow
+  double dribble_L = 0.0;   ///< released while the release was not running
+  double cycles = 0.0;      ///< siphon cycles or valve openings
+  double overflow_events = 0.0;
+  double overflow_hours = 0.0;
+  double curtailed_Wh = 0.0;  ///< could not be stored (battery full or charge limit)
+  double jet_Wh = 0.0;
+  double stored_Wh = 0.0;
+  double unmet_load_Wh = 0.0;
+  double dribble_share = 0.0;  ///< dribble over roof runoff (0 without runoff)
+  double overflow_days = 0.0;  ///< local days with a reservoir overflow episode
+  double largest_overflow_L = 0.0;
+};
+
+/// The metrics of a finished run; `summary` must have observed that run.
+SweepMetrics sweep_metrics(const RunResult& result, const SummaryBuilder& summary);
+
+/// The metric column names, in the order sweep.csv writes them after the varied keys.
+std::vector<std::string> sweep_metric_names();
+
+/// A metric's value by column name; throws std::out_of_range for an unknown name.
+double sweep_metric(const SweepMetrics& metrics, std::string_view name);
+
+/// How rows are ranked: by one metric, best first.
+struct SweepRank {
+  std::string metric = "energy_Wh";
+  bool descending = true;
+};
+
+/// Reads `--rank`: a metric column name, best first in its natural order (descending, except
+/// ascending for overflow_*, dribble_*, unmet_*, curtailed_* and largest_overflow_L), or the name
+/// after `-` (descending) or `+` (ascending) to force the order. Throws InputError naming
+/// `--rank` and listing the metrics for an unknown name.
+SweepRank parse_rank(const std::string& text);
+
+/// A metric's value as sweep.csv prints it: the shortest text that reads back as the same double.
+std::string format_metric(double value);
+
+enum class SweepStatus { ok, skipped, failed };
+
+/// The outcome of one combination. `reason` is the error text for a skipped (invalid input) or
+/// failed (simulation error) combination.
+struct SweepRow {
+  std::vector<std::string> values;  ///< one per axis
+  SweepStatus status = SweepStatus::ok;
+  SweepMetrics metrics;
+  std::string reason;
+};
+
+/// A checked sweep, ready to run: the scenario text is parsed once per combination with the
+/// base overrides first and then `key=value` for each axis, exactly as
+/// `gutterwatt run SCENARIO --set BASE... --set key=value...` would parse it.
+struct SweepPlan {
+  std::string scenario_text;
+  std::string scenario_label;  ///< the scenario path as given, used in messages
+  std::filesystem::path base_dir;
+  std::vector<std::string> base_overrides;
+  std::vector<SweepAxis> axes;
+  std::vector<std::vector<std::string>> combinations;
+  SweepRank rank;
+  Scenario base;  ///< the scenario with only the base overrides (its rain is the sweep's rain)
+
+  /// The override strings of combination `index`.
+  std::vector<std::string> overrides(std::size_t index) const;
+};
+
+/// Checks the specs and builds the plan. Throws InputError for a bad `--vary` or `--rank`, a key
+/// varied twice or also given with `--set`, a key under `rain.` (the record is read once for the
+/// whole sweep), no key to vary, and for a base scenario (text plus `base_overrides`) that does
+/// not load.
+SweepPlan plan_sweep(std::string scenario_text, const std::string& scenario_label,
+                     const std::filesystem::path& base_dir,
+                     const std::vector<std::string>& vary_specs,
+                     const std::vector<std::string>& base_overrides,
+                     const std::string& rank_text = "energy_Wh");
+
+/// Where a sweep stands, as reported to SweepOptions::progress.
+struct SweepProgress {
+  std::size_t done = 0;
+  std::size_t total = 0;
+  double elapsed_s = 0.0;
+};
+
+/// Runs one scenario, with the signature of gutterwatt::simulate.
+using SimulateFunction =
+    std::function<RunResult(const Scenario&, const RainSeries&, Observer&, const RunOptions&)>;
+
+struct SweepOptions {
+  unsigned jobs = 0;  ///< worker threads; 0: one per core
+  /// Checked between combinations and (through RunOptions) between rain intervals.
+  const std::atomic<bool>* stop = nullptr;
+  /// Called on the calling thread, never concurrently, when combinations finish.
+  std::function<void(const SweepProgress&)> progress;
+  /// What runs each combination, from several threads at once (a seam for tests); empty:
+  /// gutterwatt::simulate.
+  SimulateFunction simulate;
+};
+
+/// The outcome of a sweep: `rows` in combination order, `ranked` the indices of the rows that
+/// ran, best first (ties in combination order).
+struct SweepResult {
+  std::vector<SweepRow> rows;
+  std::vector<std::size_t> ranked;
+  std::size_t skipped = 0;
+  std::size_t failed = 0;
+};
+
+/// Runs every combination of `plan` on `rain` (shared read-only by the workers). An InputError
+/// of one combination (at load or from the simulation) marks it skipped and a SimulationError
+/// failed; neither stops the sweep. Throws Interrupted soon after `options.stop` is set, and
+/// rethrows any other error of a worker once all workers have stopped.
+SweepResult run_sweep(const SweepPlan& plan, const RainSeries& rain,
+                      const SweepOptions& options = {});
+
+/// Indices of the rows that ran, best first by `rank`, ties in combination order.
+std::vector<std::size_t> rank_rows(const std::vector<SweepRow>& rows, const SweepRank& rank);
+
+/// sweep.csv: the varied keys, then the metrics, one row per combination that ran, best first.
+void write_sweep_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result);
+
+/// skipped.csv: the varied keys, `status` (skipped or failed) and `reason`, in combination order.
+void write_skipped_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result);
+
+/// sweep.json: scenario, site, vary, set, rank, order, combinations, ran, skipped, failed.
+void write_sweep_json(std::ostream& out, const SweepPlan& plan, const SweepResult& result);
+
+/// The best `top` rows as a short table for the terminal.
+void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResult& result,
+                       std::size_t top = 10);
+
+/// Runs the sweep and writes sweep.csv, skipped.csv and sweep.json into `dir` through an
+/// OutputFolder: the folder is checked before the first run, and an interrupted or failed sweep
+/// leaves no file behind and earlier results untouched.
+SweepResult run_sweep_into(const std::filesystem::path& dir, const SweepPlan& plan,
+                           const RainSeries& rain, const SweepOptions& options = {});
+
+/// One line of progress for a terminal, e.g. `[#######.............]  12/40  30%  0:42 left`;
+/// no estimate before the first combination has finished.
+std::string progress_line(const SweepProgress& progress, std::size_t width = 30);
+
+}  // namespace gutterwatt

@@ -1,0 +1,111 @@
+#include "sweep_command.hpp"
+
+#include <spdlog/spdlog.h>
+#include <unistd.h>
+
+#include <chrono>
+#include <filesystem>
+#include <fstream>
+#include <iostream>
+#include <sstream>
+
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/rain_files.hpp"
+#include "gutterwatt/sweep.hpp"
+
+namespace gutterwatt {
+namespace {
+
+namespace fs = std::filesystem;
+
+constexpr int kExitOk = 0;
+constexpr int kExitFailure = 1;
+constexpr int kExitBadInput = 2;
+// Redraws of the progress bar at most this often.
+constexpr double kRedrawInterval_s = 0.2;
+
+std::string read_scenario_text(const std::string& file) {
+  std::ifstream in(file, std::ios::binary);
+  if (!in || fs::is_directory(file)) {
+    throw InputError(file, 0, "", "cannot read the scenario file");
+  }
+  std::ostringstream text;
+  text << in.rdbuf();
+  return text.str();
+}
+
+/// The progress bar on a terminal's stderr; ends its line when the sweep ends in any way.
+class ProgressBar {
+ public:
+  ProgressBar() : enabled_(::isatty(STDERR_FILENO) == 1) {}
+  ~ProgressBar() {
+    if (drawn_) std::cerr << '\n' << std::flush;
+  }
+  ProgressBar(const ProgressBar&) = delete;
+  ProgressBar& operator=(const ProgressBar&) = delete;
+
+  bool enabled() const { return enabled_; }
+
+  void draw(const SweepProgress& p) {
+    const auto now = std::chrono::steady_clock::now();
+    if (drawn_ && p.done < p.total &&
+        std::chrono::duration<double>(now - last_).count() < kRedrawInterval_s) {
+      return;
+    }
+    last_ = now;
+    drawn_ = true;
+    std::cerr << "\rsweep " << progress_line(p) << "\033[K" << std::flush;
+  }
+
+ private:
+  bool enabled_;
+  bool drawn_ = false;
+  std::chrono::steady_clock::time_point last_;
+};
+
+}  // namespace
+
+int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop) {
+  if (args.out.empty()) {
+    throw InputError("", 0, "--out", "give the folder for sweep.csv, skipped.csv and sweep.json");
+  }
+  const SweepPlan plan =
+      plan_sweep(read_scenario_text(args.scenario), args.scenario,
+                 fs::path(args.scenario).parent_path(), args.vary, args.set, args.rank);
+  const RainSeries rain = load_rain(plan.base.rain);
+  for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
+
+  SweepOptions options;
+  options.jobs = args.jobs;
+  options.stop = &stop;
+  SweepResult result;
+  {
+    ProgressBar bar;
+    if (bar.enabled()) options.progress = [&bar](const SweepProgress& p) { bar.draw(p); };
+    result = run_sweep_into(args.out, plan, rain, options);
+  }
+
+  const fs::path dir(args.out);
+  const std::size_t total = result.rows.size();
+  if (result.skipped > 0 || result.failed > 0) {
+    spdlog::warn("{} of {} combinations skipped as invalid, {} failed; reasons in {}",
+                 result.skipped, total, result.failed, (dir / "skipped.csv").string());
+    for (const SweepRow& row : result.rows) {
+      if (row.status == SweepStatus::ok) continue;
+      spdlog::warn("first reason: {}", row.reason);
+      break;
+    }
+  }
+  if (result.ranked.empty()) {
+    spdlog::error("no combination ran; see {}", (dir / "skipped.csv").string());
+    return result.skipped > 0 ? kExitBadInput : kExitFailure;
+  }
+  if (!args.quiet) {
+    print_sweep_table(std::cout, plan, result);
+    std::cout << "wrote " << (dir / "sweep.csv").string() << ", " << (dir / "skipped.csv").string()
+              << ", " << (dir / "sweep.json").string() << '\n';
+  }
+  return kExitOk;
+}
+
+}  // namespace gutterwatt

@@ -1,0 +1,27 @@
+#pragma once
+// `gutterwatt sweep`: the command's arguments and the function main() calls.
+
+#include <atomic>
+#include <string>
+#include <vector>
+
+namespace gutterwatt {
+
+struct SweepArgs {
+  std::string scenario;            ///< scenario file (YAML)
+  std::vector<std::string> vary;   ///< `--vary KEY=FROM:TO:STEP` or `KEY=v1,v2,...`, repeatable
+  std::vector<std::string> set;    ///< `--set key.path=value`, repeatable, applied to every run
+  unsigned jobs = 0;               ///< `--jobs N`; 0: one worker per core
+  std::string rank = "energy_Wh";  ///< `--rank [-|+]METRIC`
+  std::string out;                 ///< `--out DIR`, required
+  bool quiet = false;              ///< `--quiet`: print nothing on stdout on success
+};
+
+/// Runs the sweep, writes DIR/sweep.csv, DIR/skipped.csv and DIR/sweep.json, reports skipped and
+/// failed combinations on stderr (with a progress bar when stderr is a terminal) and the best
+/// rows on stdout. Returns the exit status: 0 when at least one combination ran, 2 when none did
+/// and some were invalid, 1 when every one failed. Throws InputError for bad arguments or input,
+/// Interrupted soon after `stop` is set (leaving no file written).
+int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop);
+
+}  // namespace gutterwatt

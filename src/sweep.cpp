@@ -1,0 +1,612 @@
+#include "gutterwatt/sweep.hpp"
+
+#include <algorithm>
+#include <charconv>
+#include <chrono>
+#include <cmath>
+#include <condition_variable>
+#include <cstdio>
+#include <exception>
+#include <iomanip>
+#include <mutex>
+#include <nlohmann/json.hpp>
+#include <optional>
+#include <sstream>
+#include <stdexcept>
+#include <thread>
+
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+namespace {
+
+const std::string kVaryLabel = "--vary";
+constexpr double kLitresPerM3 = 1e3;
+// Relative tolerance for reaching TO in a range, against float noise in FROM + i * STEP.
+constexpr double kRangeTolerance = 1e-9;
+// More decimals than a range spec can sensibly ask for.
+constexpr int kMaxRangeDecimals = 30;
+
+/// One metric column: its name, where it lives, its natural order and its decimals in the table.
+struct MetricColumn {
+  std::string_view name;
+  double SweepMetrics::*member;
+  bool lower_is_better;
+  int table_decimals;
+};
+
+constexpr MetricColumn kMetrics[] = {
+    {"energy_Wh", &SweepMetrics::energy_Wh, false, 3},
+    {"overflow_L", &SweepMetrics::overflow_L, true, 1},
+    {"dribble_L", &SweepMetrics::dribble_L, true, 1},
+    {"cycles", &SweepMetrics::cycles, false, 0},
+    {"overflow_events", &SweepMetrics::overflow_events, true, 0},
+    {"overflow_hours", &SweepMetrics::overflow_hours, true, 2},
+    {"curtailed_Wh", &SweepMetrics::curtailed_Wh, true, 3},
+    {"jet_Wh", &SweepMetrics::jet_Wh, false, 3},
+    {"stored_Wh", &SweepMetrics::stored_Wh, false, 3},
+    {"unmet_load_Wh", &SweepMetrics::unmet_load_Wh, true, 3},
+    {"dribble_share", &SweepMetrics::dribble_share, true, 4},
+    {"overflow_days", &SweepMetrics::overflow_days, true, 0},
+    {"largest_overflow_L", &SweepMetrics::largest_overflow_L, true, 1},
+};
+
+// The columns the terminal table shows besides the varied keys and the rank metric.
+constexpr std::string_view kTableMetrics[] = {"energy_Wh", "overflow_L", "dribble_L", "cycles",
+                                              "overflow_events"};
+
+const MetricColumn* find_metric(std::string_view name) {
+  for (const MetricColumn& m : kMetrics) {
+    if (m.name == name) return &m;
+  }
+  return nullptr;
+}
+
+std::string trim(std::string_view s) {
+  const auto space = [](char c) { return c == ' ' || c == '\t'; };
+  while (!s.empty() && space(s.front())) s.remove_prefix(1);
+  while (!s.empty() && space(s.back())) s.remove_suffix(1);
+  return std::string(s);
+}
+
+/// A whole-text finite number (a leading `+` allowed), or nothing.
+std::optional<double> to_number(std::string_view text) {
+  if (!text.empty() && text.front() == '+') text.remove_prefix(1);
+  double v = 0.0;
+  const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), v);
+  if (text.empty() || ec != std::errc() || end != text.data() + text.size() || !std::isfinite(v)) {
+    return std::nullopt;
+  }
+  return v;
+}
+
+/// Decimals a number's text asks for: `0.25` 2, `5` 0, `1e-3` 3, `2.5e1` 0.
+int decimals_of(std::string_view text) {
+  const std::size_t e = text.find_first_of("eE");
+  const std::string_view mantissa = text.substr(0, e);
+  const std::size_t dot = mantissa.find('.');
+  int decimals = dot == std::string_view::npos ? 0 : static_cast<int>(mantissa.size() - dot - 1);
+  if (e != std::string_view::npos) {
+    if (const auto exponent = to_number(text.substr(e + 1))) {
+      decimals -= static_cast<int>(std::clamp(*exponent, -1000.0, 1000.0));
+    }
+  }
+  return std::clamp(decimals, 0, kMaxRangeDecimals);
+}
+
+/// Fixed-point text with `decimals` places, trailing zeros and a bare `-0` removed.
+std::string fixed_text(double v, int decimals) {
+  std::vector<char> buf(static_cast<std::size_t>(decimals) + 400);
+  std::snprintf(buf.data(), buf.size(), "%.*f", decimals, v);
+  std::string s(buf.data());
+  if (s.find('.') != std::string::npos) {
+    while (s.back() == '0') s.pop_back();
+    if (s.back() == '.') s.pop_back();
+  }
+  if (s == "-0") s = "0";
+  return s;
+}
+
+std::vector<std::string> range_values(const std::string& key, const std::string& body) {
+  std::vector<std::string> parts;
+  std::size_t begin = 0;
+  while (true) {
+    const std::size_t colon = body.find(':', begin);
+    parts.push_back(trim(std::string_view(body).substr(begin, colon - begin)));
+    if (colon == std::string::npos) break;
+    begin = colon + 1;
+  }
+  std::optional<double> from, to, step;
+  if (parts.size() == 3) {
+    from = to_number(parts[0]);
+    to = to_number(parts[1]);
+    step = to_number(parts[2]);
+  }
+  if (!from || !to || !step) {
+    throw InputError(kVaryLabel, 0, key,
+                     "expected FROM:TO:STEP with three numbers (got \"" + body + "\")");
+  }
+  if (*step <= 0.0) {
+    throw InputError(kVaryLabel, 0, key, "the step must be greater than 0 (got " + parts[2] + ")");
+  }
+  if (*from > *to) {
+    throw InputError(kVaryLabel, 0, key,
+                     "the range runs backwards (from " + parts[0] + " to " + parts[1] +
+                         "); FROM must not exceed TO");
+  }
+  const double tolerance =
+      kRangeTolerance * std::max({std::abs(*from), std::abs(*to), std::abs(*step)});
+  const double count = std::floor((*to - *from + tolerance) / *step) + 1.0;
+  if (count > static_cast<double>(kMaxSweepCombinations)) {
+    throw InputError(kVaryLabel, 0, key,
+                     fixed_text(count, 0) + " values; a sweep is limited to " +
+                         std::to_string(kMaxSweepCombinations) + " combinations");
+  }
+  const int decimals =
+      std::max({decimals_of(parts[0]), decimals_of(parts[1]), decimals_of(parts[2])});
+  std::vector<std::string> values;
+  for (std::size_t i = 0;; ++i) {
+    const double v = *from + static_cast<double>(i) * *step;
+    if (v > *to + tolerance) break;
+    values.push_back(fixed_text(v, decimals));
+  }
+  return values;
+}
+
+std::vector<std::string> list_values(const std::string& key, const std::string& body) {
+  std::vector<std::string> values;
+  std::size_t begin = 0;
+  while (true) {
+    const std::size_t comma = body.find(',', begin);
+    std::string value = trim(std::string_view(body).substr(begin, comma - begin));
+    if (value.empty()) {
+      throw InputError(kVaryLabel, 0, key, "empty value in the list \"" + body + "\"");
+    }
+    if (std::find(values.begin(), values.end(), value) != values.end()) {
+      throw InputError(kVaryLabel, 0, key, "the value \"" + value + "\" is listed twice");
+    }
+    values.push_back(std::move(value));
+    if (comma == std::string::npos) break;
+    begin = comma + 1;
+  }
+  return values;
+}
+
+/// `key` of a `key=value` override.
+std::string override_key(const std::string& text) { return trim(text.substr(0, text.find('='))); }
+
+/// RFC 4180 cell: quoted when it holds a comma, a quote or a line break.
+std::string csv_cell(const std::string& s) {
+  if (s.find_first_of(",\"\r\n") == std::string::npos) return s;
+  std::string out = "\"";
+  for (const char c : s) {
+    out += c;
+    if (c == '"') out += '"';
+  }
+  return out + "\"";
+}
+
+std::string status_name(SweepStatus status) {
+  switch (status) {
+    case SweepStatus::ok:
+      return "ok";
+    case SweepStatus::skipped:
+      return "skipped";
+    case SweepStatus::failed:
+      return "failed";
+  }
+  return "ok";
+}
+
+/// Runs one combination. Interrupted (and anything unexpected) propagates.
+SweepRow run_combination(const SweepPlan& plan, std::size_t index, const RainSeries& rain,
+                         const SweepOptions& options, const RunOptions& run_options) {
+  SweepRow row;
+  row.values = plan.combinations[index];
+  try {
+    const Scenario scenario = parse_scenario(plan.scenario_text, plan.scenario_label, plan.base_dir,
+                                             plan.overrides(index));
+    SummaryBuilder summary(scenario);
+    const RunResult result = options.simulate
+                                 ? options.simulate(scenario, rain, summary, run_options)
+                                 : simulate(scenario, rain, summary, run_options);
+    row.metrics = sweep_metrics(result, summary);
+  } catch (const InputError& e) {
+    row.status = SweepStatus::skipped;
+    row.reason = e.what();
+  } catch (const SimulationError& e) {
+    row.status = SweepStatus::failed;
+    row.reason = e.what();
+  }
+  return row;
+}
+
+std::string clock_text(double seconds) {
+  const long s = std::lround(std::max(0.0, seconds));
+  char buf[32];
+  if (s >= 3600) {
+    std::snprintf(buf, sizeof buf, "%ld:%02ld:%02ld", s / 3600, s / 60 % 60, s % 60);
+  } else {
+    std::snprintf(buf, sizeof buf, "%ld:%02ld", s / 60, s % 60);
+  }
+  return buf;
+}
+
+}  // namespace
+
+SweepAxis parse_vary(const std::string& spec) {
+  const std::size_t eq = spec.find('=');
+  SweepAxis axis;
+  if (eq != std::string::npos) axis.key = trim(std::string_view(spec).substr(0, eq));
+  if (axis.key.empty()) {
+    throw InputError(kVaryLabel, 0, "",
+                     "expected KEY=FROM:TO:STEP or KEY=v1,v2,... (got \"" + spec + "\")");
+  }
+  const std::string body = trim(std::string_view(spec).substr(eq + 1));
+  if (body.empty()) throw InputError(kVaryLabel, 0, axis.key, "no values after \"=\"");
+  const bool is_range = body.find(',') == std::string::npos && body.find(':') != std::string::npos;
+  axis.values = is_range ? range_values(axis.key, body) : list_values(axis.key, body);
+  return axis;
+}
+
+std::vector<std::vector<std::string>> expand_combinations(const std::vector<SweepAxis>& axes) {
+  double count = 1.0;
+  for (const SweepAxis& axis : axes) count *= static_cast<double>(axis.values.size());
+  if (count > static_cast<double>(kMaxSweepCombinations)) {
+    throw InputError(kVaryLabel, 0, "",
+                     fixed_text(count, 0) + " combinations; a sweep is limited to " +
+                         std::to_string(kMaxSweepCombinations));
+  }
+  std::vector<std::vector<std::string>> out;
+  if (axes.empty() || count == 0.0) return out;
+  std::vector<std::size_t> at(axes.size(), 0);
+  while (true) {
+    std::vector<std::string> combination;
+    for (std::size_t k = 0; k < axes.size(); ++k) combination.push_back(axes[k].values[at[k]]);
+    out.push_back(std::move(combination));
+    std::size_t k = axes.size();
+    while (k > 0) {
+      --k;
+      if (++at[k] < axes[k].values.size()) break;
+      at[k] = 0;
+      if (k == 0) return out;
+    }
+  }
+}
+
+SweepMetrics sweep_metrics(const RunResult& r, const SummaryBuilder& summary) {
+  const Accounts& a = r.totals;
+  SweepMetrics m;
+  m.energy_Wh = a.electrical_J / kJoulesPerWh;
+  m.overflow_L = (a.reservoir_overflow_m3 + a.column_overflow_m3) * kLitresPerM3;
+  m.dribble_L = a.dribble_m3 * kLitresPerM3;
+  m.cycles = static_cast<double>(r.cycles);
+  m.overflow_events = static_cast<double>(r.overflow_events);
+  m.overflow_hours = r.overflow_s / kSecondsPerHour;
+  m.curtailed_Wh = a.curtailed_J / kJoulesPerWh;
+  m.jet_Wh = a.jet_J / kJoulesPerWh;
+  m.stored_Wh = a.stored_J / kJoulesPerWh;
+  m.unmet_load_Wh = a.unmet_J / kJoulesPerWh;
+  m.dribble_share = a.roof_runoff_m3 > 0.0 ? a.dribble_m3 / a.roof_runoff_m3 : 0.0;
+  m.overflow_days = static_cast<double>(summary.overflow_days());
+  m.largest_overflow_L = summary.largest_overflow_m3() * kLitresPerM3;
+  return m;
+}
+
+std::vector<std::string> sweep_metric_names() {
+  std::vector<std::string> names;
+  for (const MetricColumn& m : kMetrics) names.emplace_back(m.name);
+  return names;
+}
+
+double sweep_metric(const SweepMetrics& metrics, std::string_view name) {
+  const MetricColumn* m = find_metric(name);
+  if (m == nullptr) throw std::out_of_range("no sweep metric named " + std::string(name));
+  return metrics.*(m->member);
+}
+
+SweepRank parse_rank(const std::string& text) {
+  std::string_view name = text;
+  std::optional<bool> forced_descending;
+  if (!name.empty() && (name.front() == '-' || name.front() == '+')) {
+    forced_descending = name.front() == '-';
+    name.remove_prefix(1);
+  }
+  const MetricColumn* m = find_metric(name);
+  if (m == nullptr) {
+    std::string names;
+    for (const MetricColumn& c : kMetrics)
+      names += (names.empty() ? "" : ", ") + std::string(c.name);
+    throw InputError("", 0, "--rank",
+                     "unknown metric \"" + text + "\"; expected one of " + names +
+                         " (with - or + in front to force descending or ascending)");
+  }
+  return SweepRank{std::string(name), forced_descending.value_or(!m->lower_is_better)};
+}
+
+std::string format_metric(double value) {
+  if (value == 0.0) return "0";
+  char buf[64];
+  const auto [end, ec] = std::to_chars(buf, buf + sizeof buf, value);
+  return ec == std::errc() ? std::string(buf, end) : std::string("nan");
+}
+
+std::vector<std::string> SweepPlan::overrides(std::size_t index) const {
+  std::vector<std::string> out = base_overrides;
+  for (std::size_t k = 0; k < axes.size(); ++k) {
+    out.push_back(axes[k].key + "=" + combinations[index][k]);
+  }
+  return out;
+}
+
+SweepPlan plan_sweep(std::string scenario_text, const std::string& scenario_label,
+                     const std::filesystem::path& base_dir,
+                     const std::vector<std::string>& vary_specs,
+                     const std::vector<std::string>& base_overrides, const std::string& rank_text) {
+  if (vary_specs.empty()) {
+    throw InputError(kVaryLabel, 0, "",
+                     "give at least one key to vary, as KEY=FROM:TO:STEP or KEY=v1,v2,...");
+  }
+  SweepPlan plan;
+  for (const std::string& spec : vary_specs) {
+    SweepAxis axis = parse_vary(spec);
+    if (axis.key == "rain" || axis.key.rfind("rain.", 0) == 0) {
+      throw InputError(kVaryLabel, 0, axis.key,
+                       "the rain record is read once for the whole sweep, so keys under rain. "
+                       "cannot be varied; sweep each record separately");
+    }
+    for (const SweepAxis& other : plan.axes) {
+      if (other.key == axis.key) throw InputError(kVaryLabel, 0, axis.key, "is varied twice");
+    }
+    for (const std::string& set : base_overrides) {
+      if (override_key(set) == axis.key) {
+        throw InputError(kVaryLabel, 0, axis.key,
+                         "is also given with --set; vary it or set it, not both");
+      }
+    }
+    plan.axes.push_back(std::move(axis));
+  }
+  plan.rank = parse_rank(rank_text);
+  plan.combinations = expand_combinations(plan.axes);
+  plan.base = parse_scenario(scenario_text, scenario_label, base_dir, base_overrides);
+  plan.scenario_text = std::move(scenario_text);
+  plan.scenario_label = scenario_label;
+  plan.base_dir = base_dir;
+  plan.base_overrides = base_overrides;
+  return plan;
+}
+
+SweepResult run_sweep(const SweepPlan& plan, const RainSeries& rain, const SweepOptions& options) {
+  using Clock = std::chrono::steady_clock;
+  const auto started = Clock::now();
+  const std::size_t n = plan.combinations.size();
+  SweepResult result;
+  result.rows.resize(n);
+
+  const unsigned cores = std::max(1u, std::thread::hardware_concurrency());
+  const std::size_t jobs =
+      std::max<std::size_t>(1, std::min<std::size_t>(options.jobs > 0 ? options.jobs : cores, n));
+  const auto user_stop = [&] { return options.stop != nullptr && options.stop->load(); };
+
+  // Workers stop on `halt`: set for the user's stop and for an unexpected error.
+  std::atomic<bool> halt{false};
+  std::atomic<std::size_t> next{0};
+  std::mutex mutex;
+  std::condition_variable changed;
+  std::size_t done = 0;
+  std::size_t running = jobs;
+  bool interrupted = false;
+  std::exception_ptr error;
+
+  const auto worker = [&] {
+    RunOptions run_options;
+    run_options.stop = &halt;
+    try {
+      while (!halt.load() && !user_stop()) {
+        const std::size_t i = next.fetch_add(1);
+        if (i >= n) break;
+        SweepRow row = run_combination(plan, i, rain, options, run_options);
+        const std::lock_guard<std::mutex> lock(mutex);
+        result.rows[i] = std::move(row);
+        ++done;
+        changed.notify_all();
+      }
+    } catch (const Interrupted&) {
+      const std::lock_guard<std::mutex> lock(mutex);
+      interrupted = true;
+    } catch (...) {
+      const std::lock_guard<std::mutex> lock(mutex);
+      if (!error) error = std::current_exception();
+      halt.store(true);
+    }
+    const std::lock_guard<std::mutex> lock(mutex);
+    --running;
+    changed.notify_all();
+  };
+
+  std::vector<std::thread> threads;
+  try {
+    for (std::size_t j = 0; j < jobs; ++j) threads.emplace_back(worker);
+  } catch (...) {
+    halt.store(true);
+    for (std::thread& t : threads) t.join();
+    throw;
+  }
+  {
+    std::unique_lock<std::mutex> lock(mutex);
+    std::size_t reported = 0;
+    bool first = true;
+    while (true) {
+      changed.wait_for(lock, std::chrono::milliseconds(50));
+      if (user_stop()) halt.store(true);
+      if (options.progress && (first || done != reported) && !halt.load()) {
+        first = false;
+        reported = done;
+        const SweepProgress p{done, n,
+                              std::chrono::duration<double>(Clock::now() - started).count()};
+        lock.unlock();
+        try {
+          options.progress(p);
+        } catch (...) {
+          lock.lock();
+          if (!error) error = std::current_exception();
+          halt.store(true);
+          continue;
+        }
+        lock.lock();
+        if (user_stop()) halt.store(true);
+      }
+      if (running == 0) break;
+    }
+  }
+  for (std::thread& t : threads) t.join();
+  if (error) std::rethrow_exception(error);
+  if (interrupted || user_stop()) throw Interrupted();
+
+  for (const SweepRow& row : result.rows) {
+    if (row.status == SweepStatus::skipped) ++result.skipped;
+    if (row.status == SweepStatus::failed) ++result.failed;
+  }
+  result.ranked = rank_rows(result.rows, plan.rank);
+  return result;
+}
+
+std::vector<std::size_t> rank_rows(const std::vector<SweepRow>& rows, const SweepRank& rank) {
+  std::vector<std::size_t> order;
+  for (std::size_t i = 0; i < rows.size(); ++i) {
+    if (rows[i].status == SweepStatus::ok) order.push_back(i);
+  }
+  const MetricColumn* m = find_metric(rank.metric);
+  if (m == nullptr) throw std::out_of_range("no sweep metric named " + rank.metric);
+  const auto value = [&](std::size_t i) { return rows[i].metrics.*(m->member); };
+  std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
+    return rank.descending ? value(a) > value(b) : value(a) < value(b);
+  });
+  return order;
+}
+
+void write_sweep_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result) {
+  std::string header;
+  for (const SweepAxis& axis : plan.axes) header += csv_cell(axis.key) + ",";
+  for (const MetricColumn& m : kMetrics) header += std::string(m.name) + ",";
+  header.back() = '\n';
+  out << header;
+  for (const std::size_t i : result.ranked) {
+    const SweepRow& row = result.rows[i];
+    std::string line;
+    for (const std::string& v : row.values) line += csv_cell(v) + ",";
+    for (const MetricColumn& m : kMetrics) line += format_metric(row.metrics.*(m.member)) + ",";
+    line.back() = '\n';
+    out << line;
+  }
+}
+
+void write_skipped_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result) {
+  for (const SweepAxis& axis : plan.axes) out << csv_cell(axis.key) << ',';
+  out << "status,reason\n";
+  for (const SweepRow& row : result.rows) {
+    if (row.status == SweepStatus::ok) continue;
+    for (const std::string& v : row.values) out << csv_cell(v) << ',';
+    out << status_name(row.status) << ',' << csv_cell(row.reason) << '\n';
+  }
+}
+
+void write_sweep_json(std::ostream& out, const SweepPlan& plan, const SweepResult& result) {
+  using nlohmann::ordered_json;
+  ordered_json j;
+  j["scenario"] = std::filesystem::path(plan.scenario_label).filename().string();
+  j["site"] = plan.base.site.name;
+  ordered_json vary = ordered_json::array();
+  ordered_json values = ordered_json::object();
+  for (const SweepAxis& axis : plan.axes) {
+    vary.push_back(axis.key);
+    values[axis.key] = axis.values;
+  }
+  j["vary"] = vary;
+  j["values"] = values;
+  j["set"] = plan.base_overrides;
+  j["rank"] = plan.rank.metric;
+  j["order"] = plan.rank.descending ? "descending" : "ascending";
+  j["combinations"] = result.rows.size();
+  j["ran"] = result.ranked.size();
+  j["skipped"] = result.skipped;
+  j["failed"] = result.failed;
+  out << j.dump(2) << '\n';
+}
+
+void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResult& result,
+                       std::size_t top) {
+  std::vector<const MetricColumn*> shown;
+  for (const std::string_view name : kTableMetrics) shown.push_back(find_metric(name));
+  const MetricColumn* rank = find_metric(plan.rank.metric);
+  if (std::find(shown.begin(), shown.end(), rank) == shown.end()) shown.push_back(rank);
+
+  std::vector<std::string> header{"#"};
+  for (const SweepAxis& axis : plan.axes) header.push_back(axis.key);
+  for (const MetricColumn* m : shown) header.emplace_back(m->name);
+  std::vector<std::vector<std::string>> cells;
+  const std::size_t rows = std::min(top, result.ranked.size());
+  for (std::size_t r = 0; r < rows; ++r) {
+    const SweepRow& row = result.rows[result.ranked[r]];
+    std::vector<std::string> line{std::to_string(r + 1)};
+    line.insert(line.end(), row.values.begin(), row.values.end());
+    for (const MetricColumn* m : shown) {
+      line.push_back(fixed_text(row.metrics.*(m->member), m->table_decimals));
+    }
+    cells.push_back(std::move(line));
+  }
+  std::vector<std::size_t> width(header.size());
+  for (std::size_t c = 0; c < header.size(); ++c) {
+    width[c] = header[c].size();
+    for (const auto& line : cells) width[c] = std::max(width[c], line[c].size());
+  }
+  // Varied keys are left-aligned (they may be text); the rank and the metrics right-aligned.
+  const auto print = [&](const std::vector<std::string>& line) {
+    std::string text;
+    for (std::size_t c = 0; c < line.size(); ++c) {
+      const bool left = c > 0 && c <= plan.axes.size();
+      const std::string pad(width[c] - line[c].size(), ' ');
+      text += "  " + (left ? line[c] + pad : pad + line[c]);
+    }
+    while (!text.empty() && text.back() == ' ') text.pop_back();
+    out << text << '\n';
+  };
+  out << plan.base.site.name << ": " << result.ranked.size() << " of " << result.rows.size()
+      << " combinations ran, best first by " << plan.rank.metric << " ("
+      << (plan.rank.descending ? "highest" : "lowest") << " first)\n";
+  print(header);
+  for (const auto& line : cells) print(line);
+  if (result.ranked.size() > rows) {
+    out << "  ... " << result.ranked.size() - rows << " more in sweep.csv\n";
+  }
+}
+
+SweepResult run_sweep_into(const std::filesystem::path& dir, const SweepPlan& plan,
+                           const RainSeries& rain, const SweepOptions& options) {
+  OutputFolder folder(dir);
+  SweepResult result = run_sweep(plan, rain, options);
+  write_sweep_csv(folder.open("sweep.csv"), plan, result);
+  write_skipped_csv(folder.open("skipped.csv"), plan, result);
+  write_sweep_json(folder.open("sweep.json"), plan, result);
+  folder.commit();
+  return result;
+}
+
+std::string progress_line(const SweepProgress& p, std::size_t width) {
+  const double share = p.total > 0 ? static_cast<double>(p.done) / static_cast<double>(p.total) : 1;
+  const auto filled = static_cast<std::size_t>(std::floor(share * static_cast<double>(width)));
+  const std::string count = std::to_string(p.total);
+  std::ostringstream out;
+  out << '[' << std::string(filled, '#') << std::string(width - filled, '.') << "]  "
+      << std::setw(static_cast<int>(count.size())) << p.done << '/' << count << "  " << std::setw(3)
+      << static_cast<int>(std::floor(share * 100.0)) << '%';
+  if (p.done > 0) {
+    const double left =
+        p.elapsed_s / static_cast<double>(p.done) * static_cast<double>(p.total - p.done);
+    out << "  " << clock_text(left) << " left";
+  }
+  return out.str();
+}
+
+}  // namespace gutterwatt
