@@ -2,7 +2,7 @@
 // program or a charting library: the page then needs no external process at report time and no
 // runtime dependency (a missing plotter cannot break `gutterwatt report`), the same inputs give a
 // byte-identical page (testable, diff-able), and inline SVG prints as vectors at any size. The
-// charts needed are few and plain (bars, lines, bands, heat maps), so a few hundred lines serve.
+// charts needed are few and plain (bars, lines, bands, heat maps), so a little code serves.
 
 #include "gutterwatt/report.hpp"
 
@@ -37,8 +37,9 @@ namespace fs = std::filesystem;
 using Json = nlohmann::json;
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
-constexpr std::int64_t kSecondsPerDay = 86400;
-constexpr std::int64_t kSecondsPerHour = 3600;
+// Whole seconds, for calendar arithmetic on wall-clock stamps.
+constexpr std::int64_t kDaySeconds = 86400;
+constexpr std::int64_t kHourSeconds = 3600;
 
 // ---------------------------------------------------------------------------------------------
 // Reading
@@ -222,7 +223,7 @@ std::optional<std::int64_t> parse_stamp(std::string_view s) {
     return std::nullopt;
   }
   const std::int64_t days = date::sys_days(ymd).time_since_epoch().count();
-  return days * kSecondsPerDay + hour * kSecondsPerHour + minute * 60 + second;
+  return days * kDaySeconds + hour * kHourSeconds + minute * 60 + second;
 }
 
 std::int64_t parse_time_cell(const std::string& cell, const std::string& file, int line,
@@ -478,9 +479,8 @@ Summary read_summary(const fs::path& path) {
 struct Sweep {
   std::string scenario;
   std::string rank = "energy_Wh";
-  bool rank_given = false;  ///< `rank` came from sweep.json
-  std::string site;         ///< from sweep.json, when given
-  std::string order;        ///< `ascending` or `descending`, from sweep.json, when given
+  std::string site;   ///< from sweep.json, when given
+  std::string order;  ///< `ascending` or `descending`, from sweep.json, when given
   std::optional<double> skipped, failed;  ///< combinations that did not run, when given
   Csv csv;
   std::vector<std::size_t> keys;         ///< column indices of the varied keys
@@ -525,7 +525,6 @@ Sweep read_sweep(const fs::path& dir) {
     if (const Json* r = find_key(root, "rank"); r != nullptr) {
       if (!r->is_string()) throw InputError(jfile, 0, "rank", "expected a string");
       sw.rank = r->get<std::string>();
-      sw.rank_given = true;
     }
     if (const Json* v = find_key(root, "vary"); v != nullptr) {
       if (!v->is_array()) throw InputError(jfile, 0, "vary", "expected an array");
@@ -654,12 +653,12 @@ std::string percent_of(double part, double whole) {
 
 std::string duration_text(double seconds) {
   const auto s = static_cast<std::int64_t>(std::llround(seconds));
-  if (s > 0 && s % kSecondsPerDay == 0)
-    return std::to_string(s / kSecondsPerDay) + std::string(kNbsp) + "d";
-  if (s > 0 && s % kSecondsPerHour == 0)
-    return std::to_string(s / kSecondsPerHour) + std::string(kNbsp) + "h";
-  if (seconds >= 2.0 * kSecondsPerHour)
-    return pretty(seconds / kSecondsPerHour) + std::string(kNbsp) + "h";
+  if (s > 0 && s % kDaySeconds == 0)
+    return std::to_string(s / kDaySeconds) + std::string(kNbsp) + "d";
+  if (s > 0 && s % kHourSeconds == 0)
+    return std::to_string(s / kHourSeconds) + std::string(kNbsp) + "h";
+  if (seconds >= 2.0 * kHourSeconds)
+    return pretty(seconds / kHourSeconds) + std::string(kNbsp) + "h";
   if (s > 0 && s % 60 == 0) return std::to_string(s / 60) + std::string(kNbsp) + "min";
   if (seconds >= 120.0) return pretty(seconds / 60.0) + std::string(kNbsp) + "min";
   return pretty(seconds) + std::string(kNbsp) + "s";
@@ -680,17 +679,17 @@ struct Civil {
 };
 
 Civil civil(std::int64_t t) {
-  const std::int64_t days = floor_div(t, kSecondsPerDay);
-  const std::int64_t secs = t - days * kSecondsPerDay;
+  const std::int64_t days = floor_div(t, kDaySeconds);
+  const std::int64_t secs = t - days * kDaySeconds;
   const date::year_month_day ymd{date::sys_days{date::days{days}}};
   return {static_cast<int>(ymd.year()), static_cast<unsigned>(ymd.month()),
-          static_cast<unsigned>(ymd.day()), static_cast<int>(secs / kSecondsPerHour),
-          static_cast<int>(secs % kSecondsPerHour / 60)};
+          static_cast<unsigned>(ymd.day()), static_cast<int>(secs / kHourSeconds),
+          static_cast<int>(secs % kHourSeconds / 60)};
 }
 
 std::int64_t month_start_s(int year, unsigned month) {
   const date::sys_days d{date::year{year} / date::month{month} / date::day{1}};
-  return d.time_since_epoch().count() * kSecondsPerDay;
+  return d.time_since_epoch().count() * kDaySeconds;
 }
 
 std::string day_label(std::int64_t t) {
@@ -725,25 +724,24 @@ std::vector<TimeTick> time_ticks(std::int64_t lo, std::int64_t hi, std::size_t m
   for (const std::int64_t step : {900, 1800, 3600, 7200, 10800, 21600, 43200}) {
     if (!fits(static_cast<double>(step))) continue;
     for (std::int64_t t = floor_div(lo + step - 1, step) * step; t <= hi; t += step) {
-      ticks.push_back({t, t % kSecondsPerDay == 0 ? day_label(t) : clock_label(t)});
+      ticks.push_back({t, t % kDaySeconds == 0 ? day_label(t) : clock_label(t)});
     }
     return ticks;
   }
   for (const std::int64_t k : {1, 2}) {
-    if (!fits(static_cast<double>(k * kSecondsPerDay))) continue;
-    for (std::int64_t d = floor_div(lo + kSecondsPerDay - 1, kSecondsPerDay);
-         d * kSecondsPerDay <= hi; ++d) {
-      if (floor_div(d, k) * k == d)
-        ticks.push_back({d * kSecondsPerDay, day_label(d * kSecondsPerDay)});
+    if (!fits(static_cast<double>(k * kDaySeconds))) continue;
+    for (std::int64_t d = floor_div(lo + kDaySeconds - 1, kDaySeconds); d * kDaySeconds <= hi;
+         ++d) {
+      if (floor_div(d, k) * k == d) ticks.push_back({d * kDaySeconds, day_label(d * kDaySeconds)});
     }
     return ticks;
   }
-  if (fits(7.0 * kSecondsPerDay)) {
-    for (std::int64_t d = floor_div(lo + kSecondsPerDay - 1, kSecondsPerDay);
-         d * kSecondsPerDay <= hi; ++d) {
-      const unsigned dom = civil(d * kSecondsPerDay).day;
+  if (fits(7.0 * kDaySeconds)) {
+    for (std::int64_t d = floor_div(lo + kDaySeconds - 1, kDaySeconds); d * kDaySeconds <= hi;
+         ++d) {
+      const unsigned dom = civil(d * kDaySeconds).day;
       if (dom == 1 || dom == 8 || dom == 15 || dom == 22) {
-        ticks.push_back({d * kSecondsPerDay, day_label(d * kSecondsPerDay)});
+        ticks.push_back({d * kDaySeconds, day_label(d * kDaySeconds)});
       }
     }
     if (ticks.size() <= max_ticks) return ticks;
@@ -751,7 +749,7 @@ std::vector<TimeTick> time_ticks(std::int64_t lo, std::int64_t hi, std::size_t m
   }
   const Civil first = civil(lo);
   for (const int k : {1, 2, 3, 6, 12, 24, 60, 120}) {
-    if (!fits(k * 30.4 * kSecondsPerDay)) continue;
+    if (!fits(k * 30.4 * kDaySeconds)) continue;
     for (int index = first.year * 12 + static_cast<int>(first.month) - 1;; ++index) {
       const int year = floor_div(index, 12);
       const auto month = static_cast<unsigned>(index - year * 12 + 1);
@@ -864,7 +862,7 @@ struct BandSet {
 };
 
 struct LegendEntry {
-  enum Kind { kBar, kLine, kBand } kind;
+  enum Kind { kBar, kLine, kBand, kMark } kind;
   const char* colour;
   std::string dash;
   std::string label;
@@ -880,6 +878,8 @@ struct Panel {
   std::vector<BarSet> bars;
   std::vector<LineSet> lines;
   std::vector<RefLine> refs;
+  std::vector<double> marks;  ///< times marked by a short tick along the top (event starts)
+  const char* mark_colour = kBlack;
   std::vector<LegendEntry> legend;
 
   double data_max() const {
@@ -955,6 +955,9 @@ void svg_legend(std::string& out, const std::vector<LegendEntry>& entries, doubl
         break;
       case LegendEntry::kBand:
         svg_rect(out, x, y - 11, 18, 13, e.colour, e.opacity);
+        break;
+      case LegendEntry::kMark:
+        svg_line(out, x + 9, y - 11, x + 9, y + 1, e.colour, 2.0);
         break;
       case LegendEntry::kLine:
         svg_line(out, x, y - 4, x + 18, y - 4, e.colour, 2.0, e.dash);
@@ -1056,6 +1059,18 @@ std::string TimeFigure::svg(const std::string& id, const std::string& label) con
         if (!l.dash.empty()) out += " stroke-dasharray=\"" + l.dash + "\"";
         out += "/>";
       }
+    }
+    if (!p.marks.empty()) {
+      // One tick per half pixel at most, however many events fall there.
+      std::string d;
+      double last = -1.0;
+      for (const double m : p.marks) {
+        const double mx = std::round(x(m) * 2.0) / 2.0;
+        if (mx == last) continue;
+        last = mx;
+        d += "M" + px(mx) + " " + px(top) + "V" + px(top + 10.0);
+      }
+      out += "<path d=\"" + d + "\" stroke=\"" + p.mark_colour + "\" stroke-width=\"1.6\"/>";
     }
     out += "</g>\n";
     // Reference lines run across the plot and are named in the right margin; the names are
@@ -1596,7 +1611,7 @@ std::optional<std::int64_t> busiest_day(const Timeseries& ts) {
   std::map<std::int64_t, std::pair<double, double>> days;  // day -> (energy, rain)
   for (std::size_t i = 0; i < ts.size(); ++i) {
     const auto mid = ts.t[i] - static_cast<std::int64_t>(ts.dt_s[i] / 2.0);
-    auto& d = days[floor_div(mid, kSecondsPerDay)];
+    auto& d = days[floor_div(mid, kDaySeconds)];
     d.first += ts.energy_Wh[i];
     d.second += ts.rain_mm[i];
   }
@@ -1608,7 +1623,7 @@ std::optional<std::int64_t> busiest_day(const Timeseries& ts) {
       best = day;
     }
   }
-  if (best) return *best * kSecondsPerDay;
+  if (best) return *best * kDaySeconds;
   return std::nullopt;
 }
 
@@ -1625,8 +1640,11 @@ std::string thinning_note(double bucket_s) {
 }
 
 /// Rain bars and the reservoir level with its set-points and the release state.
-void add_rain_and_level(TimeFigure& fig, const Timeseries& ts, const Summary& s, const Window& w,
-                        const std::string& step, double rain_h, double level_h) {
+/// Release cycles last minutes, so an hourly row rarely ends in one; their starts from events.csv
+/// are marked along the top of the level panel.
+void add_rain_and_level(TimeFigure& fig, const Timeseries& ts, const Summary& s,
+                        const std::vector<Event>& events, const Window& w, const std::string& step,
+                        double rain_h, double level_h) {
   double bucket_s = 0.0;
   BarSet rain = bars_of(ts, ts.rain_mm, w, kSkyBlue, &bucket_s);
   std::string title = "Rain, mm per " + step + " interval";
@@ -1647,6 +1665,12 @@ void add_rain_and_level(TimeFigure& fig, const Timeseries& ts, const Summary& s,
   if (dribble) {
     l.legend.push_back({LegendEntry::kBand, kOrange, "", "dribble (not sealed)", 0.30});
   }
+  for (const auto& e : events) {
+    const auto t = static_cast<double>(e.start);
+    if (e.kind == "cycle" && t >= w.t_lo && t <= w.t_hi) l.marks.push_back(t);
+  }
+  l.mark_colour = kGreen;
+  if (!l.marks.empty()) l.legend.push_back({LegendEntry::kMark, kGreen, "", "cycle start"});
   if (s.rim_mm)
     l.refs.push_back({*s.rim_mm, kVermillion, "", "rim " + pretty(*s.rim_mm, false) + " mm"});
   if (s.trigger_mm) {
@@ -1737,16 +1761,18 @@ std::string render_run(const fs::path& dir) {
   // The season.
   {
     TimeFigure fig(all.t_lo, all.t_hi);
-    add_rain_and_level(fig, ts, s, all, step, 110.0, 200.0);
+    add_rain_and_level(fig, ts, s, events, all, step, 110.0, 200.0);
     charts.push_back("chart-rain-level");
     body += "<section id=\"season\">\n<h2>Rain, reservoir level and release state</h2>\n";
-    body += figure(fig.svg("chart-rain-level", "Rain and reservoir level over the run"),
-                   "Rain per output interval above the reservoir level at the end of each "
-                   "interval. Dashed lines: the release trigger and break levels; solid: the "
-                   "overflow rim. Shading: the release state at the end of each interval." +
-                       std::string(thinned ? " Thinned for display (min/max per bucket, see "
-                                             "<a href=\"#reading\">Reading the charts</a>)."
-                                           : ""));
+    body +=
+        figure(fig.svg("chart-rain-level", "Rain and reservoir level over the run"),
+               "Rain per output interval above the reservoir level at the end of each "
+               "interval. Dashed lines: the release trigger and break levels; solid: the "
+               "overflow rim. Shading: the release state at the end of each interval; ticks along "
+               "the top: the start of each release cycle (events.csv)." +
+                   std::string(thinned ? " Thinned for display (min/max per bucket, see "
+                                         "<a href=\"#reading\">Reading the charts</a>)."
+                                       : ""));
     body += "</section>\n";
   }
 
@@ -1799,7 +1825,7 @@ std::string render_run(const fs::path& dir) {
   body += "<section id=\"closeups\">\n<h2>Close-ups</h2>\n";
   if (const auto day = busiest_day(ts)) {
     const double t_lo = static_cast<double>(*day);
-    const Window w = window_of(ts, t_lo, t_lo + kSecondsPerDay);
+    const Window w = window_of(ts, t_lo, t_lo + kDaySeconds);
     double energy = 0.0, rain = 0.0;
     for (std::size_t i = w.i0; i < w.i1; ++i) {
       energy += ts.energy_Wh[i];
@@ -1807,10 +1833,10 @@ std::string render_run(const fs::path& dir) {
     }
     std::size_t cycles = 0;
     for (const auto& e : events) {
-      if (e.kind == "cycle" && e.start >= *day && e.start < *day + kSecondsPerDay) ++cycles;
+      if (e.kind == "cycle" && e.start >= *day && e.start < *day + kDaySeconds) ++cycles;
     }
     TimeFigure fig(w.t_lo, w.t_hi);
-    add_rain_and_level(fig, ts, s, w, step, 90.0, 160.0);
+    add_rain_and_level(fig, ts, s, events, w, step, 90.0, 160.0);
     Panel& p = fig.add("Electrical power, W", 110.0);
     p.lines.push_back(line_of(ts, ts.power_W, w, kVermillion, 1.4));
     charts.push_back("chart-busiest-day");
@@ -1832,7 +1858,7 @@ std::string render_run(const fs::path& dir) {
   }
   if (largest != nullptr) {
     const double pad =
-        std::max(6.0 * kSecondsPerHour, 0.5 * static_cast<double>(largest->end - largest->start));
+        std::max(6.0 * kHourSeconds, 0.5 * static_cast<double>(largest->end - largest->start));
     const double t_lo = std::max(static_cast<double>(largest->start) - pad, all.t_lo);
     const double t_hi = std::min(static_cast<double>(largest->end) + pad, all.t_hi);
     const Window w = window_of(ts, t_lo, std::max(t_hi, t_lo + 1.0));
@@ -1841,7 +1867,7 @@ std::string render_run(const fs::path& dir) {
       spill[i] = ts.reservoir_overflow_L[i] + ts.column_overflow_L[i];
     }
     TimeFigure fig(w.t_lo, w.t_hi);
-    add_rain_and_level(fig, ts, s, w, step, 90.0, 160.0);
+    add_rain_and_level(fig, ts, s, events, w, step, 90.0, 160.0);
     double bucket_s = 0.0;
     BarSet bars = bars_of(ts, spill, w, kBlue, &bucket_s);
     Panel& p = fig.add("Overflow (reservoir rim and head column), L per " + step + " interval" +

@@ -130,6 +130,14 @@ TEST(Report, RunPageHasTheHeadlineFigures) {
             std::string::npos);
 }
 
+TEST(Report, MarksCycleStartsAlongTheLevelCharts) {
+  ScratchDir scratch;
+  const std::string page = render_report(scratch.copy_of("run"));
+  // The season and both close-ups carry the marks and their legend entry.
+  EXPECT_EQ(count(page, ">cycle start</text>"), 3u);
+  EXPECT_EQ(count(page, "stroke=\"#009E73\" stroke-width=\"1.6\"/>"), 3u);
+}
+
 TEST(Report, SweepPageContainsTheRankedTableAndBothHeatMaps) {
   ScratchDir scratch;
   const fs::path sweep = scratch.copy_of("sweep");
