@@ -43,6 +43,18 @@ ReservoirGeometry::ReservoirGeometry(const ReservoirConfig& config)
                        0.5 * (areas_m2_[k - 1] + areas_m2_[k]) * (levels_m_[k] - levels_m_[k - 1]);
     }
   }
+  if (shape_ == ReservoirShape::half_round) {
+    // Table of the level at w = A^(2/3), nodes k = -1 .. n + 1 (the first mirrors w < 0).
+    constexpr int kNodes = 512;
+    const double w_top = std::pow(circular_segment_area_m2(0.5 * width_m_, rim_m_), 2.0 / 3.0);
+    level_table_step_ = w_top / kNodes;
+    level_table_.resize(kNodes + 3);
+    for (int k = -1; k <= kNodes + 1; ++k) {
+      const double w = k * level_table_step_;
+      const double h = solve_half_round_level_m(std::abs(w) * std::sqrt(std::abs(w)));
+      level_table_[static_cast<std::size_t>(k + 1)] = w < 0.0 ? -h : h;
+    }
+  }
   rim_area_m2_ = section_area_m2(rim_m_);
   rim_volume_m3_ = section_volume_m3(rim_m_);
 }
@@ -114,24 +126,43 @@ double ReservoirGeometry::level_m(double volume_m3) const {
     case ReservoirShape::half_round:
       break;
   }
-  // Half-round: Newton on A(h) L = V, bracketed in [0, rim]. Start from the shallow-segment
-  // approximation A ~ (4/3) sqrt(2r) h^1.5, accurate for h << r.
+  // Half-round: the level is an analytic function of w = A^(2/3) (A ~ (4/3) sqrt(2r) h^1.5 for
+  // h << r), tabulated once; one Newton step on A(h) = A polishes the interpolated value.
   const double r = 0.5 * width_m_;
   const double area = v / length_m_;
+  const double w = std::cbrt(area) * std::cbrt(area);
+  const double u = w / level_table_step_;
+  const auto k = std::min(static_cast<std::size_t>(u), level_table_.size() - 3);
+  const double t = u - static_cast<double>(k);
+  const double* f = &level_table_[k];
+  const double a = t + 1.0, b = t - 1.0, c = t - 2.0;
+  double h =
+      (-t * b * c * f[0] + 3.0 * a * b * c * f[1] - 3.0 * a * t * c * f[2] + a * t * b * f[3]) /
+      6.0;
+  h = std::clamp(h, 0.0, rim_m_);
+  const double width = segment_width_m(r, h);
+  if (width > 0.0) h -= (circular_segment_area_m2(r, h) - area) / width;
+  return std::clamp(h, 0.0, rim_m_);
+}
+
+double ReservoirGeometry::solve_half_round_level_m(double area_m2) const {
+  // Newton on A(h) = area, bracketed in [0, 2r]; start from the shallow-segment approximation.
+  const double r = 0.5 * width_m_;
   double lo = 0.0;
-  double hi = rim_m_;
-  double h = std::min(hi, std::cbrt(3.0 * area / (4.0 * std::sqrt(2.0 * r))) *
-                              std::cbrt(3.0 * area / (4.0 * std::sqrt(2.0 * r))));
-  for (int iter = 0; iter < 60; ++iter) {
-    const double f = circular_segment_area_m2(r, h) - area;
-    if (f > 0.0)
+  double hi = 2.0 * r;
+  const double guess = std::cbrt(3.0 * area_m2 / (4.0 * std::sqrt(2.0 * r)));
+  double h = std::min(hi, guess * guess);
+  for (int iter = 0; iter < 100; ++iter) {
+    const double f = circular_segment_area_m2(r, h) - area_m2;
+    if (f > 0.0) {
       hi = h;
-    else
+    } else {
       lo = h;
+    }
     const double width = segment_width_m(r, h);
     double next = width > 0.0 ? h - f / width : 0.5 * (lo + hi);
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    if (std::abs(next - h) <= 1e-15 * std::max(r, 1.0)) return next;
+    if (std::abs(next - h) <= 1e-15 * r) return next;
     h = next;
   }
   return h;

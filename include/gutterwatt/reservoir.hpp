@@ -28,6 +28,8 @@ class ReservoirGeometry {
   /// The section's own geometry at level h in [0, rim], ignoring the vertical walls above the rim.
   double section_area_m2(double h) const;
   double section_volume_m3(double h) const;
+  /// Half-round: the level holding cross-section `area_m2`, by safeguarded Newton iteration.
+  double solve_half_round_level_m(double area_m2) const;
 
   ReservoirShape shape_;
   double width_m_;
@@ -40,6 +42,8 @@ class ReservoirGeometry {
   std::vector<double> volumes_m3_;  ///< table: volume at each tabulated level
   double rim_volume_m3_;
   double rim_area_m2_;
+  double level_table_step_ = 0.0;    ///< half-round: node spacing in w = A^(2/3)
+  std::vector<double> level_table_;  ///< half-round: level at w = k * step, k = -1 .. n + 1
 };
 
 /// Wetted cross-section of a circle of radius `radius_m` filled to depth `depth_m` (0..2r):
