@@ -23,6 +23,7 @@
 #include "gutterwatt/simulation.hpp"
 #include "gutterwatt/storm.hpp"
 #include "gutterwatt/units.hpp"
+#include "sweep_command.hpp"
 
 namespace fs = std::filesystem;
 using namespace gutterwatt;
@@ -181,6 +182,20 @@ int main(int argc, char** argv) {
   check_cmd->add_option("--rain", check.rain, "rain file to use instead of the scenario's");
   check_cmd->add_flag("--no-rain", check.no_rain, "do not read the rain record");
 
+  SweepArgs sweep;
+  auto* sweep_cmd =
+      app.add_subcommand("sweep", "run every combination of varied keys; write DIR/sweep.csv");
+  sweep_cmd->add_option("scenario", sweep.scenario, "scenario file (YAML)")->required();
+  sweep_cmd->add_option("--vary", sweep.vary, "KEY=FROM:TO:STEP or KEY=v1,v2,... (repeatable)")
+      ->required();
+  sweep_cmd->add_option("--set", sweep.set, "override a scenario key in every run (repeatable)");
+  sweep_cmd->add_option("--jobs", sweep.jobs, "worker threads (default: one per core)");
+  sweep_cmd->add_option("--rank", sweep.rank,
+                        "metric to rank by (default energy_Wh); force the order with "
+                        "--rank=-KEY (lowest first) or --rank=+KEY");
+  sweep_cmd->add_option("--out", sweep.out, "output folder")->required();
+  sweep_cmd->add_flag("--quiet", sweep.quiet, "print nothing on success");
+
   std::string report_dir;
   auto* report_cmd =
       app.add_subcommand("report", "write DIR/report.html from a run or sweep folder");
@@ -219,6 +234,7 @@ int main(int argc, char** argv) {
   try {
     if (*run_cmd) return run_command(run);
     if (*check_cmd) return check_command(check);
+    if (*sweep_cmd) return sweep_command(sweep, g_stop);
     if (*report_cmd) {
       std::cout << "wrote " << write_report(report_dir).string() << '\n';
       return kExitOk;
