@@ -1,0 +1,169 @@
+#include "gutterwatt/plant.hpp"
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <initializer_list>
+
+#include "gutterwatt/hydraulics.hpp"
+#include "gutterwatt/units.hpp"
+#include "test_support.hpp"
+
+namespace gutterwatt {
+namespace {
+
+using test_support::make_scenario;
+
+double relative_error(double actual, double expected) {
+  return std::abs(actual - expected) / std::abs(expected);
+}
+
+// The plant may interpolate the full flow from a table; it promises 1e-9 relative.
+constexpr double kFullFlowTolerance = 1e-9;
+
+TEST(Plant, FullFlowIsNozzleControlledWithoutAColumn) {
+  const Scenario s = make_scenario();
+  const Plant p(s);
+  const double nu = water_kinematic_viscosity_m2_per_s(s.site.temperature_C);
+  for (double level : {0.0, 0.003, 0.008, 0.05, 0.0567, 0.062, 0.1, 0.5}) {
+    const double direct =
+        nozzle_controlled_flow_m3_per_s(s.drop_pipe, s.nozzle, level + s.drop_m, nu);
+    EXPECT_LT(relative_error(p.full_flow_m3_per_s(level), direct), kFullFlowTolerance) << level;
+  }
+  EXPECT_DOUBLE_EQ(p.full_flow_m3_per_s(-0.01), p.full_flow_m3_per_s(0.0));
+}
+
+TEST(Plant, FullFlowIsAFreeOutfallIntoTheColumnTop) {
+  Scenario s = make_scenario();
+  s.head_column = HeadColumnConfig{0.040, 3.5};
+  const Plant p(s);
+  const double nu = water_kinematic_viscosity_m2_per_s(s.site.temperature_C);
+  for (double level : {0.0, 0.03, 0.062, 0.3}) {
+    const double direct = free_outfall_flow_m3_per_s(s.drop_pipe, level + 4.0 - 3.5, nu);
+    EXPECT_LT(relative_error(p.full_flow_m3_per_s(level), direct), kFullFlowTolerance) << level;
+  }
+}
+
+TEST(Plant, FullBoreSiphonMatchesTheWorkedExample) {
+  // source: worked check of REFERENCES.md section 4 (Darcy-Weisbach with Colebrook): free outfall,
+  // head 1.5 m, D 40 mm, L 3 m, K 0.5 + 2 x 0.3, 20 C, roughness 0.0015 mm -> Q 3.684 L/s (0.5 %).
+  Scenario s = make_scenario();
+  s.site.temperature_C = 20.0;
+  s.drop_pipe = Pipe{0.040, 3.0, 0.0015e-3, 0.5 + 2.0 * 0.3};
+  s.head_column = HeadColumnConfig{0.1, 1.0};
+  s.drop_m = 2.5;
+  const Plant p(s);
+  EXPECT_LT(relative_error(p.full_flow_m3_per_s(0.0), 3.684e-3), 0.005);
+}
+
+TEST(Plant, ColumnHoldsItsVolumeAndSetsTheHead) {
+  Scenario s = make_scenario();
+  s.head_column = HeadColumnConfig{0.040, 3.5};
+  const Plant p(s);
+  const double area = 0.25 * kPi * 0.040 * 0.040;
+  EXPECT_TRUE(p.has_column());
+  EXPECT_DOUBLE_EQ(p.column_area_m2(), area);
+  EXPECT_DOUBLE_EQ(p.column_capacity_m3(), area * 3.5);
+  EXPECT_DOUBLE_EQ(p.column_head_m(area * 2.0), 2.0);
+  EXPECT_EQ(p.column_head_m(-1.0), 0.0);
+}
+
+TEST(Plant, ColumnNozzleIsAnOrificeAboveTheLinearHead) {
+  Scenario s = make_scenario();
+  s.head_column = HeadColumnConfig{0.040, 3.5};
+  const Plant p(s);
+  const double area = p.column_area_m2();
+  const double nozzle_area = circle_area_m2(0.005);
+  EXPECT_DOUBLE_EQ(p.column_nozzle_flow_m3_per_s(area * 2.0),
+                   orifice_flow_m3_per_s(0.95, nozzle_area, 2.0));
+  // Below kNozzleLinearHead_m the flow is linear in head, continuous at the threshold.
+  const double at_threshold = orifice_flow_m3_per_s(0.95, nozzle_area, kNozzleLinearHead_m);
+  EXPECT_NEAR(p.column_nozzle_flow_m3_per_s(area * kNozzleLinearHead_m), at_threshold,
+              1e-15 * at_threshold);
+  EXPECT_NEAR(p.column_nozzle_flow_m3_per_s(area * 0.25 * kNozzleLinearHead_m), 0.25 * at_threshold,
+              1e-15 * at_threshold);
+  EXPECT_EQ(p.column_nozzle_flow_m3_per_s(0.0), 0.0);
+}
+
+TEST(Plant, NoColumnMeansNoColumnVolume) {
+  const Plant p(make_scenario());
+  EXPECT_FALSE(p.has_column());
+  EXPECT_EQ(p.column_capacity_m3(), 0.0);
+  EXPECT_EQ(p.column_head_m(1.0), 0.0);
+}
+
+TEST(Plant, NozzleHeadInvertsTheOrificeLaw) {
+  const Plant p(make_scenario());
+  const double head = p.nozzle_head_for_flow_m(1.2e-4);
+  EXPECT_NEAR(orifice_flow_m3_per_s(0.95, circle_area_m2(0.005), head), 1.2e-4, 1e-18);
+}
+
+TEST(Plant, JetPowerMatchesTheWorkedExample) {
+  // source: nozzle jet check of REFERENCES.md section 5: H 10 m, Cv 0.98 -> V 13.7247 m/s; 1 L/s
+  // at 20 C: rho g Q H 97.89 W -> jet 94.01 W.
+  Scenario s = make_scenario();
+  s.site.temperature_C = 20.0;
+  s.nozzle.velocity_coefficient = 0.98;
+  const Plant p(s);
+  const PlantPower w = p.power(1e-3, 10.0);
+  EXPECT_EQ(w.head_m, 10.0);
+  EXPECT_NEAR(w.jet_velocity_m_per_s, 13.7247, 0.00005);
+  EXPECT_NEAR(w.jet_W, 94.01, 0.005);
+}
+
+TEST(Plant, BestSpeedEfficiencyIsThePeak) {
+  const Scenario s = make_scenario();
+  const Plant p(s);
+  for (double head : {0.5, 4.0, 20.0}) {
+    const PlantPower w = p.power(1e-4, head);
+    EXPECT_NEAR(w.shaft_W, s.turbine.peak_efficiency * w.jet_W, 1e-15 * w.jet_W) << head;
+  }
+}
+
+TEST(Plant, FixedSpeedFollowsTheIdealImpulseCurve) {
+  // source: ideal impulse-runner curve 4x(1 - x), Dixon and Hall, REFERENCES.md section 7:
+  // x 0.3 -> 0.84 of the peak.
+  Scenario s = make_scenario();
+  const double head = 4.0;
+  const double jet = 0.97 * std::sqrt(2.0 * kGravity_m_per_s2 * head);
+  s.turbine.speed_rpm = 0.3 * jet * 60.0 / (kPi * s.turbine.runner_diameter_m);
+  const Plant p(s);
+  const PlantPower w = p.power(1e-4, head);
+  EXPECT_NEAR(w.shaft_W / w.jet_W, 0.84 * s.turbine.peak_efficiency, 1e-12);
+}
+
+TEST(Plant, PowerChainMultipliesTheEfficiencies) {
+  const Scenario s = make_scenario();
+  const Plant p(s);
+  const double q = 1.5e-4;
+  const double head = 3.0;
+  const PlantPower w = p.power(q, head);
+  const double rho = water_density_kg_per_m3(s.site.temperature_C);
+  // Jet V = Cv sqrt(2 g H), P = rho Q V^2 / 2 (REFERENCES.md section 5), so P = Cv^2 rho g Q H.
+  EXPECT_NEAR(w.jet_W, 0.97 * 0.97 * rho * kGravity_m_per_s2 * q * head, 1e-12 * w.jet_W);
+  EXPECT_NEAR(w.electrical_W, 0.65 * 0.7 * w.jet_W, 1e-12 * w.jet_W);
+}
+
+TEST(Plant, NoFlowOrNoHeadGivesNoPower) {
+  const Plant p(make_scenario());
+  const PlantPower a = p.power(0.0, 3.0);
+  const PlantPower b = p.power(1e-4, 0.0);
+  EXPECT_EQ(a.jet_W, 0.0);
+  EXPECT_EQ(a.electrical_W, 0.0);
+  EXPECT_EQ(b.jet_W, 0.0);
+  EXPECT_EQ(b.head_m, 0.0);
+}
+
+TEST(Plant, CarriesTheWaterPropertiesOfTheSiteTemperature) {
+  Scenario s = make_scenario();
+  s.site.temperature_C = 20.0;
+  const Plant p(s);
+  // source: IAPWS-IF97 density and IAPWS 2008 viscosity, values from REFERENCES.md section 2:
+  // 20 C -> 998.206 kg/m3 (0.05 %), 1.0034 mm2/s (0.5 %).
+  EXPECT_LT(relative_error(p.density_kg_per_m3(), 998.206), 5e-4);
+  EXPECT_LT(relative_error(p.kinematic_viscosity_m2_per_s(), 1.0034e-6), 5e-3);
+  EXPECT_EQ(p.cut_in_W(), 0.0);
+}
+
+}  // namespace
+}  // namespace gutterwatt

@@ -1,0 +1,684 @@
+#include "gutterwatt/simulation.hpp"
+
+#include <gtest/gtest.h>
+
+#include <algorithm>
+#include <atomic>
+#include <cmath>
+#include <initializer_list>
+#include <sstream>
+#include <string>
+
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/hydraulics.hpp"
+#include "gutterwatt/plant.hpp"
+#include "gutterwatt/reservoir.hpp"
+#include "gutterwatt/siphon.hpp"
+#include "gutterwatt/units.hpp"
+#include "test_support.hpp"
+
+namespace gutterwatt {
+namespace {
+
+using test_support::constant_inflow;
+using test_support::constant_rain;
+using test_support::kLitre_m3;
+using test_support::kPerMinute;
+using test_support::kStart;
+using test_support::make_scenario;
+using test_support::RecordingObserver;
+using test_support::simpson;
+
+// The water balance of every run here closes far inside the run's own limit.
+constexpr double kBalance = 1e-9;
+
+double relative_error(double actual, double expected) {
+  return std::abs(actual - expected) / std::abs(expected);
+}
+
+// The tank of REFERENCES.md section 5 (A_t 0.5 m2, 20 mm orifice at Cd 0.61), as a rectangular
+// reservoir 0.5 m x 1 m with its rim out of reach, and a conveyance so large (100 mm pipe and
+// nozzle) that the orifice controls the release.
+Scenario orifice_tank(double duration_s, double output_interval_s) {
+  Scenario s = make_scenario(duration_s, output_interval_s);
+  s.reservoir.width_m = 0.5;
+  s.reservoir.length_m = 1.0;
+  s.reservoir.rim_m = 1.2;
+  s.reservoir.overflow_length_m = 1.0;
+  s.release.kind = ReleaseKind::orifice;
+  s.release.orifice_diameter_m = 0.020;
+  s.release.orifice_coefficient = 0.61;
+  s.drop_pipe = Pipe{0.100, 4.5, 0.0015e-3, 2.0};
+  s.nozzle = Nozzle{0.100, 0.95, 0.97};
+  return s;
+}
+
+// Cd a sqrt(2 g): the orifice law Q = k sqrt(h).
+double orifice_constant(const Scenario& s) {
+  return s.release.orifice_coefficient * circle_area_m2(s.release.orifice_diameter_m) *
+         std::sqrt(2.0 * kGravity_m_per_s2);
+}
+
+double plan_area(const Scenario& s) { return s.reservoir.width_m * s.reservoir.length_m; }
+
+// Closed-form level of a prismatic tank draining through a floor orifice from `h0`:
+// sqrt(h) = sqrt(h0) - k t / (2 A) (Torricelli; REFERENCES.md section 5, tank drain).
+double torricelli_level(double h0, double k, double area, double t) {
+  const double root = std::max(0.0, std::sqrt(h0) - k * t / (2.0 * area));
+  return root * root;
+}
+
+TEST(Simulation, TankDrainsInTheTorricelliTime) {
+  Scenario s = orifice_tank(1300.0, 10.0);
+  s.reservoir.initial_level_m = 1.0;
+  const double k = orifice_constant(s);
+  const double area = plan_area(s);
+  // source: tank drain of REFERENCES.md section 5: A_t 0.5 m2, d 20 mm, Cd 0.61, 1.0 m -> 0 in
+  // 1178.3 s, to H/4 in 589.1 s.
+  EXPECT_NEAR(2.0 * area / k, 1178.3, 0.05);
+  EXPECT_NEAR(area / k, 589.1, 0.05);
+  // The conveyance does not limit the release at any level.
+  EXPECT_GT(Plant(s).full_flow_m3_per_s(0.0), 10.0 * k);
+
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_rain(kStart, kStart + 1300, 0.0), obs);
+  ASSERT_EQ(obs.samples.size(), 130u);
+  int compared = 0;
+  for (const Sample& sample : obs.samples) {
+    const double t = static_cast<double>(sample.time - kStart);
+    const double expected = torricelli_level(1.0, k, area, t);
+    if (expected < 1e-3) continue;
+    EXPECT_LT(relative_error(sample.level_m, expected), 1e-5) << "t = " << t;
+    ++compared;
+  }
+  EXPECT_GT(compared, 100);
+  const Sample* quarter = obs.at(kStart + 590);
+  ASSERT_NE(quarter, nullptr);
+  EXPECT_NEAR(quarter->level_m, torricelli_level(1.0, k, area, 590.0), 1e-6);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, OrificeIdlesAtTheHoldHeadAtTheClosedFormTime) {
+  Scenario s = orifice_tank(1300.0, 10.0);
+  s.reservoir.initial_level_m = 1.0;
+  const double k = orifice_constant(s);
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_rain(kStart, kStart + 1300, 0.0), obs);
+  // The orifice idles when the level falls to half the hold head, sqrt(h) = sqrt(H) - k t / 2A.
+  const double t_idle = (1.0 - std::sqrt(0.5 * kHoldHead_m)) * 2.0 * plan_area(s) / k;
+  const auto releases = obs.of_kind(EpisodeKind::cycle);
+  ASSERT_EQ(releases.size(), 1u);
+  EXPECT_EQ(releases[0].start_s, static_cast<double>(kStart));
+  EXPECT_NEAR(releases[0].end_s - static_cast<double>(kStart), t_idle, 1e-3);
+  EXPECT_NEAR(releases[0].volume_m3, 0.5, 1e-5);
+  EXPECT_EQ(r.cycles, 1);
+  EXPECT_EQ(obs.samples.back().release, ReleaseState::idle);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, SkipsTheDrySpellAfterTheTankEmpties) {
+  Scenario s = orifice_tank(1300.0, 10.0);
+  s.reservoir.initial_level_m = 1.0;
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_rain(kStart, kStart + 1300, 0.0), obs);
+  // Idle from about 1175.6 s: the rest of the run is coasted in closed form.
+  EXPECT_GT(r.stats.coasted_s, 120.0);
+  EXPECT_LT(r.stats.coasted_s, 125.0);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, OrificeSettlesWhereOutflowEqualsInflow) {
+  Scenario s = orifice_tank(6.0 * 3600.0, 600.0);
+  const double inflow = 0.5 * kLitre_m3;
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
+  // Q = k sqrt(h) = q_in at h = (q_in / k)^2; the time constant 2 A h / q_in is about 700 s.
+  const double k = orifice_constant(s);
+  const double expected = (inflow / k) * (inflow / k);
+  EXPECT_LT(relative_error(obs.samples.back().level_m, expected), 1e-6);
+  const Sample& a = obs.samples[obs.samples.size() - 7];
+  const Sample& b = obs.samples.back();
+  const double outflow = (b.totals.release_m3 - a.totals.release_m3) / (b.time - a.time);
+  EXPECT_LT(relative_error(outflow, inflow), 1e-6);
+  EXPECT_EQ(r.totals.reservoir_overflow_m3, 0.0);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, InflowBelowThePrimingFlowOnlyDribbles) {
+  Scenario s = make_scenario(3.0 * 3600.0, 60.0);
+  const double inflow = 2.0 * kLitre_m3 * kPerMinute;
+  ASSERT_LT(inflow, s.release.priming_flow_m3_per_s);
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
+  EXPECT_EQ(r.cycles, 0);
+  EXPECT_TRUE(obs.of_kind(EpisodeKind::cycle).empty());
+  EXPECT_EQ(r.dribble_episodes, 1);
+  EXPECT_EQ(obs.samples.back().release, ReleaseState::dribble);
+  // Everything released left as dribble, and all of it went through the nozzle.
+  EXPECT_GT(r.totals.dribble_m3, 0.0);
+  EXPECT_EQ(r.totals.dribble_m3, r.totals.release_m3);
+  EXPECT_EQ(r.totals.nozzle_m3, r.totals.release_m3);
+  EXPECT_EQ(r.totals.reservoir_overflow_m3, 0.0);
+  // The level settles at lip + weir head of the inflow, h = (q / (C pi d))^(2/3).
+  const double head = std::pow(
+      inflow / (s.release.lip_coefficient * kPi * s.release.standpipe_diameter_m), 2.0 / 3.0);
+  EXPECT_LT(relative_error(obs.samples.back().level_m, s.release.trigger_level_m + head), 1e-6);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+// Closed-form cycle of a bell siphon under constant inflow q, starting idle at the bell rim: fill
+// at q to the lip plus the hold head (no outflow), then fill against the lip's weir flow to the
+// priming level, then drain at Q_run(h) - q down to the rim; dV = A(h) dh with A the surface.
+struct BellCycle {
+  double fill_s;
+  double drain_s;
+  double period_s() const { return fill_s + drain_s; }
+};
+
+BellCycle bell_cycle(const Scenario& s, double inflow) {
+  const BellSiphon bell(s.release);
+  const Plant plant(s);
+  const ReservoirGeometry geometry(s.reservoir);
+  const double lip = s.release.trigger_level_m;
+  const double rim = s.release.break_level_m;
+  const double weir = s.release.lip_coefficient * kPi * s.release.standpipe_diameter_m;
+  const double idle_s = (geometry.volume_m3(lip + kHoldHead_m) - geometry.volume_m3(rim)) / inflow;
+  // With h = lip + u^2, dh = 2 u du removes the square-root kink of the weir law at the lip.
+  const auto against_lip = [&](double u) {
+    return 2.0 * u * geometry.surface_area_m2(lip + u * u) / (inflow - weir * u * u * u);
+  };
+  const double u_prime = std::sqrt(bell.priming_level_m() - lip);
+  const double dribble_s = simpson(against_lip, std::sqrt(kHoldHead_m), u_prime, 20000);
+  const auto running = [&](double h) {
+    return geometry.surface_area_m2(h) / (plant.full_flow_m3_per_s(h) - inflow);
+  };
+  const double drain_s = simpson(running, rim, bell.priming_level_m(), 2000);
+  return {idle_s + dribble_s, drain_s};
+}
+
+// Runs `s` under constant `inflow` from the bell rim and checks the cycles against bell_cycle.
+void expect_closed_form_cycles(Scenario s, double inflow) {
+  const double duration_s = static_cast<double>(*s.simulation.end - *s.simulation.start);
+  s.reservoir.initial_level_m = s.release.break_level_m;
+  s.simulation.rtol = 1e-9;
+  ASSERT_GT(inflow, s.release.priming_flow_m3_per_s);
+  ASSERT_LT(inflow, Plant(s).full_flow_m3_per_s(s.release.break_level_m));
+  const BellCycle cycle = bell_cycle(s, inflow);
+
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
+  const auto cycles = obs.of_kind(EpisodeKind::cycle);
+  // Primings at fill + n period, each cycle counted (the last one is closed by the end of the run).
+  const long expected_cycles =
+      static_cast<long>(std::floor((duration_s - cycle.fill_s) / cycle.period_s())) + 1;
+  EXPECT_EQ(r.cycles, expected_cycles);
+  ASSERT_EQ(static_cast<long>(cycles.size()), r.cycles);
+  ASSERT_GE(cycles.size(), 3u);
+  // The switch times are located, not rounded to a step.
+  EXPECT_NEAR(cycles[0].start_s - static_cast<double>(kStart), cycle.fill_s, 1e-3);
+  EXPECT_NEAR(cycles[0].end_s - cycles[0].start_s, cycle.drain_s, 1e-3);
+  for (std::size_t n = 1; n < cycles.size(); ++n) {
+    EXPECT_LT(relative_error(cycles[n].start_s - cycles[n - 1].start_s, cycle.period_s()), 1e-6)
+        << n;
+  }
+  // One dribble before each priming, and perhaps one still under way at the end.
+  EXPECT_GE(r.dribble_episodes, r.cycles);
+  EXPECT_LE(r.dribble_episodes, r.cycles + 1);
+  EXPECT_EQ(r.totals.reservoir_overflow_m3, 0.0);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, InflowAbovePrimingCyclesWithTheClosedFormPeriod) {
+  expect_closed_form_cycles(make_scenario(6.0 * 3600.0, 60.0), 6.0 * kLitre_m3 * kPerMinute);
+}
+
+TEST(Simulation, HalfRoundGutterCyclesWithTheClosedFormPeriod) {
+  Scenario s = make_scenario(6.0 * 3600.0, 60.0);
+  s.reservoir.shape = ReservoirShape::half_round;
+  s.reservoir.width_m = 0.125;
+  expect_closed_form_cycles(s, 7.0 * kLitre_m3 * kPerMinute);
+}
+
+TEST(Simulation, EachCycleReleasesTheStorageBetweenSetPointsPlusTheInflow) {
+  Scenario s = make_scenario(2.0 * 3600.0, 60.0);
+  s.reservoir.initial_level_m = s.release.break_level_m;
+  s.simulation.rtol = 1e-9;
+  const double inflow = 6.0 * kLitre_m3 * kPerMinute;
+  const BellCycle cycle = bell_cycle(s, inflow);
+  RecordingObserver obs;
+  simulate(s, constant_inflow(s, inflow), obs);
+  const auto cycles = obs.of_kind(EpisodeKind::cycle);
+  ASSERT_GE(cycles.size(), 2u);
+  // Volume from the priming level down to the rim, plus what flows in meanwhile.
+  const double storage =
+      plan_area(s) * (BellSiphon(s.release).priming_level_m() - s.release.break_level_m);
+  EXPECT_LT(relative_error(cycles[0].volume_m3, storage + inflow * cycle.drain_s), 1e-6);
+  EXPECT_GT(cycles[0].energy_J, 0.0);
+  EXPECT_GT(cycles[0].peak_flow_m3_per_s, inflow);
+}
+
+// Level where the overflow over the rim carries what the running siphon cannot: bisection on
+// C_w L (h - rim)^1.5 = q - Q_run(h).
+double overflow_level(const Scenario& s, double inflow) {
+  const Plant plant(s);
+  const ReservoirGeometry geometry(s.reservoir);
+  double lo = s.reservoir.rim_m;
+  double hi = s.reservoir.rim_m + 0.1;
+  for (int k = 0; k < 200; ++k) {
+    const double mid = 0.5 * (lo + hi);
+    if (geometry.overflow_m3_per_s(mid) > inflow - plant.full_flow_m3_per_s(mid)) {
+      hi = mid;
+    } else {
+      lo = mid;
+    }
+  }
+  return 0.5 * (lo + hi);
+}
+
+TEST(Simulation, InflowAboveTheRunningFlowOverflowsTheDifference) {
+  Scenario s = make_scenario(3.0 * 3600.0, 60.0);
+  s.simulation.rtol = 1e-9;
+  const double inflow = 12.0 * kLitre_m3 * kPerMinute;
+  const Plant plant(s);
+  ASSERT_GT(inflow, plant.full_flow_m3_per_s(s.reservoir.rim_m));
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
+  const double level = overflow_level(s, inflow);
+  EXPECT_LT(relative_error(obs.samples.back().level_m, level), 1e-6);
+  EXPECT_EQ(obs.samples.back().release, ReleaseState::running);
+  // Steady state over the last hour: overflow = inflow - running flow.
+  const Sample& a = obs.samples[obs.samples.size() - 61];
+  const Sample& b = obs.samples.back();
+  const double span = static_cast<double>(b.time - a.time);
+  const double overflow = (b.totals.reservoir_overflow_m3 - a.totals.reservoir_overflow_m3) / span;
+  const double running = (b.totals.release_m3 - a.totals.release_m3) / span;
+  EXPECT_LT(relative_error(running, plant.full_flow_m3_per_s(level)), 1e-6);
+  EXPECT_LT(relative_error(overflow, inflow - running), 1e-6);
+  EXPECT_EQ(r.cycles, 1);
+  EXPECT_EQ(r.overflow_events, 1);
+  EXPECT_EQ(obs.of_kind(EpisodeKind::overflow).size(), 1u);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, FloatValveCyclesWithTheClosedFormPeriod) {
+  const double duration_s = 4.0 * 3600.0;
+  Scenario s = orifice_tank(duration_s, 60.0);
+  s.release.kind = ReleaseKind::float_valve;
+  s.release.trigger_level_m = 0.300;
+  s.release.break_level_m = 0.100;
+  s.reservoir.initial_level_m = 0.100;
+  s.simulation.rtol = 1e-9;
+  const double inflow = 0.15 * kLitre_m3;
+  const double k = orifice_constant(s);
+  const double area = plan_area(s);
+  const double s_open = std::sqrt(0.300);
+  const double s_close = std::sqrt(0.100);
+  ASSERT_GT(k * s_close, inflow);
+  // Fill from the closing to the opening level at q; drain A dh / (k sqrt(h) - q), which with
+  // h = s^2 integrates to (2A/k) [s + (q/k) ln(k s - q)].
+  const double fill_s = area * (0.300 - 0.100) / inflow;
+  const double drain_s =
+      2.0 * area / k *
+      (s_open - s_close + inflow / k * std::log((k * s_open - inflow) / (k * s_close - inflow)));
+
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
+  const auto openings = obs.of_kind(EpisodeKind::cycle);
+  const long expected =
+      static_cast<long>(std::floor((duration_s - fill_s) / (fill_s + drain_s))) + 1;
+  EXPECT_EQ(r.cycles, expected);
+  ASSERT_GE(openings.size(), 3u);
+  EXPECT_NEAR(openings[0].start_s - static_cast<double>(kStart), fill_s, 1e-3);
+  EXPECT_NEAR(openings[0].end_s - openings[0].start_s, drain_s, 1e-3);
+  for (std::size_t n = 1; n < openings.size(); ++n) {
+    EXPECT_LT(relative_error(openings[n].start_s - openings[n - 1].start_s, fill_s + drain_s), 1e-6)
+        << n;
+  }
+  EXPECT_EQ(r.totals.dribble_m3, 0.0);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+// The same invented 5-minute record (2 h of rain, then 1 h dry) as CSV text in one unit.
+std::string rain_csv(double scale) {
+  // Depths in hundredths of an inch, so every unit below is exact in decimal.
+  const int hundredths[] = {1, 3, 5, 4, 2, 6, 8, 3, 1, 0, 2, 7, 9, 5, 3, 2, 1, 4, 6, 3, 2, 1, 0, 1};
+  std::ostringstream csv;
+  csv.precision(12);
+  csv << "time,rain\n";
+  Instant t = kStart;
+  for (int n = 0; n < 36; ++n) {
+    t += 300;
+    const int d = n < 24 ? hundredths[n] : 0;
+    csv << format_iso8601(t) << "," << d * scale << "\n";
+  }
+  return csv.str();
+}
+
+RunResult run_rain(const std::string& csv, RainValue value, double unit_m) {
+  SeriesFormat fmt;
+  fmt.value_column = "rain";
+  fmt.value = value;
+  fmt.unit_m = unit_m;
+  fmt.step_s = 300.0;
+  std::istringstream in(csv);
+  const RainSeries rain = read_rain_series(in, "rain.csv", fmt);
+  RecordingObserver obs;
+  return simulate(make_scenario(3.0 * 3600.0, 300.0), rain, obs);
+}
+
+void expect_same_run(const RunResult& a, const RunResult& b, const char* what) {
+  EXPECT_EQ(a.cycles, b.cycles) << what;
+  EXPECT_EQ(a.overflow_events, b.overflow_events) << what;
+  EXPECT_EQ(a.dribble_episodes, b.dribble_episodes) << what;
+  EXPECT_LT(relative_error(b.totals.rain_m3, a.totals.rain_m3), 1e-9) << what;
+  EXPECT_LT(relative_error(b.totals.nozzle_m3, a.totals.nozzle_m3), 1e-9) << what;
+  EXPECT_LT(relative_error(b.totals.dribble_m3, a.totals.dribble_m3), 1e-9) << what;
+  EXPECT_LT(relative_error(b.totals.electrical_J, a.totals.electrical_J), 1e-9) << what;
+  EXPECT_LT(relative_error(b.final.reservoir_m3, a.final.reservoir_m3), 1e-9) << what;
+  EXPECT_LT(b.balance_relative_error, kBalance) << what;
+}
+
+TEST(Simulation, RainInMillimetresInchesOrIntensityGivesTheSameRun) {
+  // 1 in = 25.4 mm exactly: source: 1959 yard and pound agreement, REFERENCES.md section 1.
+  const RunResult mm = run_rain(rain_csv(0.254), RainValue::depth, 1e-3);
+  const RunResult in = run_rain(rain_csv(0.01), RainValue::depth, 0.0254);
+  // Intensity over 5-minute intervals: 12 times the depth per hour.
+  const RunResult mm_h = run_rain(rain_csv(0.254 * 12.0), RainValue::intensity, 1e-3);
+  const RunResult in_h = run_rain(rain_csv(0.12), RainValue::intensity, 0.0254);
+  EXPECT_GT(mm.cycles, 0);
+  EXPECT_NEAR(mm.totals.rain_m3, 79 * 0.254e-3 * 40.0, 1e-12);
+  EXPECT_LT(mm.balance_relative_error, kBalance);
+  expect_same_run(mm, in, "inches");
+  expect_same_run(mm, mm_h, "mm/h");
+  expect_same_run(mm, in_h, "in/h");
+}
+
+TEST(Simulation, EnergyAccountsClose) {
+  Scenario s = make_scenario(3.0 * 3600.0, 60.0);
+  s.battery.capacity_J = 0.5 * kJoulesPerWh;  // small, so that it fills and curtails
+  s.battery.load_W = 0.2;
+  const double inflow = 6.0 * kLitre_m3 * kPerMinute;
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
+  const Accounts& a = r.totals;
+  EXPECT_GT(a.curtailed_J, 0.0);
+  // Generator plus what the battery gave = charge loss + curtailed + served + stored.
+  const double stored_change = r.final.battery_J - r.initial.battery_J;
+  const double loss = a.accepted_J - a.stored_J;
+  EXPECT_NEAR(a.electrical_J - stored_change, loss + a.curtailed_J + a.served_J,
+              1e-9 * a.electrical_J);
+  EXPECT_NEAR(a.stored_J, s.battery.charge_efficiency * a.accepted_J, 1e-9 * a.accepted_J);
+  EXPECT_NEAR(a.served_J + a.unmet_J, 0.2 * 3.0 * 3600.0, 1e-9 * 2160.0);
+  // Best speed and no cut-in: shaft = peak jet, electrical = generator shaft.
+  EXPECT_NEAR(a.shaft_J, 0.7 * a.jet_J, 1e-9 * a.jet_J);
+  EXPECT_NEAR(a.electrical_J, 0.65 * a.shaft_J, 1e-9 * a.jet_J);
+  EXPECT_LE(r.final.battery_J, s.battery.capacity_J * (1.0 + 1e-9));
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, DryRecordCoastsAndServesTheLoadFromTheBattery) {
+  Scenario s = make_scenario(86400.0, 3600.0);
+  s.battery.load_W = 1.0;
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_rain(kStart, kStart + 86400, 0.0), obs);
+  EXPECT_EQ(r.stats.coasted_s, 86400.0);
+  EXPECT_EQ(r.stats.steps, 0);
+  EXPECT_DOUBLE_EQ(r.totals.served_J, 86400.0);
+  EXPECT_DOUBLE_EQ(r.final.battery_J, 0.5 * 60.0 * 3600.0 - 86400.0);
+  EXPECT_EQ(r.totals.unmet_J, 0.0);
+  EXPECT_EQ(r.balance_relative_error, 0.0);
+}
+
+TEST(Simulation, DryRecordLeavesLoadUnmetOnceTheBatteryIsEmpty) {
+  Scenario s = make_scenario(86400.0, 3600.0);
+  s.battery.load_W = 2.0;  // 172.8 kJ a day against 108 kJ stored
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_rain(kStart, kStart + 86400, 0.0), obs);
+  EXPECT_DOUBLE_EQ(r.totals.served_J, 108000.0);
+  EXPECT_DOUBLE_EQ(r.totals.unmet_J, 172800.0 - 108000.0);
+  EXPECT_EQ(r.final.battery_J, 0.0);
+  EXPECT_EQ(obs.samples.back().soc, 0.0);
+}
+
+// A switch is located to 1e-7 s; at the storms' 0.11 L/s that leaves 1e-11 m3 on either side.
+constexpr double kSwitchVolume = 1e-10;
+
+// Two invented storms of 10 mm in an hour each on the 40 m2 roof, the second `gap_h` hours after
+// the first ends, with the roof's initial loss, runoff coefficient and a first-flush diverter.
+RunResult two_storms(double gap_h, double lag_s, RecordingObserver& obs) {
+  const double end_s = (2.0 + gap_h + 6.0) * 3600.0;
+  Scenario s = make_scenario(end_s, 3600.0);
+  s.roof.runoff_coefficient = 0.9;
+  s.roof.initial_loss_m = 0.5e-3;
+  s.roof.drying_m_per_s = 3e-3 / 86400.0;
+  s.roof.lag_s = lag_s;
+  s.first_flush.volume_m3 = 10.0 * kLitre_m3;
+  s.first_flush.reset_after_dry_s = 12.0 * 3600.0;
+  const double intensity = 10e-3 / 3600.0;
+  const Instant second = kStart + static_cast<Instant>((1.0 + gap_h) * 3600.0);
+  const RainSeries rain = test_support::block_rain(
+      kStart, *s.simulation.end,
+      {{kStart, kStart + 3600, intensity}, {second, second + 3600, intensity}});
+  return simulate(s, rain, obs);
+}
+
+TEST(Simulation, InitialLossRefillsAfterDryingBetweenStorms) {
+  RecordingObserver obs;
+  const RunResult r = two_storms(2.0, 0.0, obs);
+  // Two hours at 3 mm/day dry 0.25 mm of the 0.5 mm loss, so the second storm loses 0.25 mm
+  // first; the runoff coefficient takes 10 % of the rest.
+  const double area = 40.0;
+  const double initial = (0.5e-3 + 0.25e-3) * area;
+  const double rain = 20e-3 * area;
+  EXPECT_NEAR(r.totals.rain_m3, rain, 1e-15);
+  EXPECT_NEAR(r.totals.roof_loss_m3, initial + 0.1 * (rain - initial), kSwitchVolume);
+  EXPECT_NEAR(r.totals.roof_runoff_m3, 0.9 * (rain - initial), kSwitchVolume);
+  // Only two dry hours: the diverter does not reset, so it takes 10 L once.
+  EXPECT_NEAR(r.totals.first_flush_m3, 10.0 * kLitre_m3, kSwitchVolume);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, FirstFlushResetsAfterTheDrySpell) {
+  RecordingObserver obs;
+  const RunResult r = two_storms(13.0, 0.0, obs);
+  const double area = 40.0;
+  // Thirteen dry hours dry the whole initial loss and reset the diverter.
+  const double initial = 2.0 * 0.5e-3 * area;
+  EXPECT_NEAR(r.totals.roof_loss_m3, initial + 0.1 * (20e-3 * area - initial), kSwitchVolume);
+  EXPECT_NEAR(r.totals.first_flush_m3, 20.0 * kLitre_m3, kSwitchVolume);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, RoofLagDelaysButKeepsTheRunoff) {
+  RecordingObserver obs;
+  const RunResult r = two_storms(2.0, 120.0, obs);
+  // Six dry hours after the second storm empty the linear reservoir (k = 120 s) to e^-180.
+  const double initial = (0.5e-3 + 0.25e-3) * 40.0;
+  EXPECT_NEAR(r.totals.roof_runoff_m3, 0.9 * (20e-3 * 40.0 - initial), kSwitchVolume);
+  EXPECT_LT(r.final.roof_m3, 1e-15);
+  EXPECT_GT(r.stats.coasted_s, 0.0);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, CutInDropsThePowerOfTheDribble) {
+  Scenario s = make_scenario(3.0 * 3600.0, 60.0);
+  const double inflow = 6.0 * kLitre_m3 * kPerMinute;
+  RecordingObserver all;
+  const RunResult free_run = simulate(s, constant_inflow(s, inflow), all);
+  s.generator.cut_in_W = 0.5;  // above the dribble's power, below the running siphon's
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
+  double cycles_J = 0.0;
+  for (const Episode& e : obs.of_kind(EpisodeKind::cycle)) cycles_J += e.energy_J;
+  EXPECT_GT(cycles_J, 0.0);
+  EXPECT_NEAR(r.totals.electrical_J, cycles_J, 1e-9 * cycles_J);
+  EXPECT_LT(r.totals.electrical_J, free_run.totals.electrical_J);
+  EXPECT_EQ(r.totals.jet_J, free_run.totals.jet_J);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, HeadColumnPassesWhatItDoesNotSpill) {
+  Scenario s = make_scenario(3.0 * 3600.0, 60.0);
+  s.head_column = HeadColumnConfig{0.040, 3.5};
+  const double inflow = 6.0 * kLitre_m3 * kPerMinute;
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
+  const Accounts& a = r.totals;
+  EXPECT_GT(r.cycles, 0);
+  EXPECT_GT(a.column_overflow_m3, 0.0);
+  const double column_change = r.final.column_m3 - r.initial.column_m3;
+  EXPECT_NEAR(a.release_m3, a.nozzle_m3 + a.column_overflow_m3 + column_change,
+              1e-9 * a.release_m3);
+  EXPECT_LE(r.final.column_m3, Plant(s).column_capacity_m3() * (1.0 + 1e-12));
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, SkippedGapFreezesTheTank) {
+  Scenario s = orifice_tank(1500.0, 10.0);
+  s.reservoir.initial_level_m = 1.0;
+  RainSeries rain = constant_rain(kStart, kStart + 1500, 0.0);
+  rain.covered = {{kStart, kStart + 300}, {kStart + 900, kStart + 1500}};
+  rain.gaps = {{kStart + 300, kStart + 900}};
+  rain.policy = GapPolicy::skip;
+  RecordingObserver obs;
+  const RunResult r = simulate(s, rain, obs);
+  EXPECT_EQ(r.stats.skipped_s, 600.0);
+  // The drain stops for the 600 s the record leaves out and then goes on where it stopped.
+  const double k = orifice_constant(s);
+  const double area = plan_area(s);
+  const Sample* in_gap = obs.at(kStart + 600);
+  const Sample* after = obs.at(kStart + 1000);
+  ASSERT_NE(in_gap, nullptr);
+  ASSERT_NE(after, nullptr);
+  EXPECT_LT(relative_error(in_gap->level_m, torricelli_level(1.0, k, area, 300.0)), 1e-6);
+  EXPECT_LT(relative_error(after->level_m, torricelli_level(1.0, k, area, 400.0)), 1e-6);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, RejectsAPeriodBeforeTheRecord) {
+  const Scenario s = make_scenario(86400.0, 3600.0);
+  RecordingObserver obs;
+  try {
+    simulate(s, constant_rain(kStart + 3600, kStart + 86400, 0.0), obs);
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(),
+                 "test.yaml: simulation.start: the rain record has no data from 2025-03-01T00:00 "
+                 "to 2025-03-01T01:00; move the period inside the record or set rain.gaps: zero "
+                 "or skip");
+  }
+}
+
+TEST(Simulation, RejectsAPeriodAfterTheRecord) {
+  const Scenario s = make_scenario(86400.0, 3600.0);
+  RecordingObserver obs;
+  try {
+    simulate(s, constant_rain(kStart, kStart + 3600, 0.0), obs);
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(),
+                 "test.yaml: simulation.end: the rain record has no data from 2025-03-01T01:00 "
+                 "to 2025-03-02T00:00; move the period inside the record or set rain.gaps: zero "
+                 "or skip");
+  }
+}
+
+TEST(Simulation, RejectsAGapUnlessToldToFillOrSkipIt) {
+  const Scenario s = make_scenario(86400.0, 3600.0);
+  RainSeries rain = constant_rain(kStart, kStart + 86400, 0.0);
+  rain.covered = {{kStart, kStart + 3600}, {kStart + 7200, kStart + 86400}};
+  RecordingObserver obs;
+  try {
+    simulate(s, rain, obs);
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(),
+                 "test.yaml: rain: the rain record has no data from 2025-03-01T01:00 to "
+                 "2025-03-01T02:00; move the period inside the record or set rain.gaps: zero or "
+                 "skip");
+  }
+  rain.policy = GapPolicy::zero;
+  EXPECT_EQ(simulate(s, rain, obs).stats.coasted_s, 86400.0);
+}
+
+TEST(Simulation, RejectsAnEndBeforeTheStart) {
+  Scenario s = make_scenario(86400.0, 3600.0);
+  s.simulation.end = kStart;
+  RecordingObserver obs;
+  try {
+    simulate(s, constant_rain(kStart, kStart + 86400, 0.0), obs);
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(),
+                 "test.yaml: simulation.end: must be after simulation.start "
+                 "(2025-03-01T00:00)");
+  }
+}
+
+TEST(Simulation, RejectsAnEmptyRecord) {
+  const Scenario s = make_scenario(86400.0, 3600.0);
+  RecordingObserver obs;
+  try {
+    simulate(s, RainSeries{}, obs);
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(), "test.yaml: rain: the rain record holds no data");
+  }
+}
+
+TEST(Simulation, StopsWhenAskedEvenWhileCoasting) {
+  const Scenario s = make_scenario(86400.0, 3600.0);
+  std::atomic<bool> stop{true};
+  RunOptions options;
+  options.stop = &stop;
+  RecordingObserver obs;
+  EXPECT_THROW(simulate(s, constant_rain(kStart, kStart + 86400, 0.0), obs, options), Interrupted);
+  EXPECT_THROW(simulate(s, constant_rain(kStart, kStart + 86400, 1e-6), obs, options), Interrupted);
+}
+
+TEST(Simulation, HourlyLoadProfileIsServedHourByHour) {
+  Scenario s = make_scenario(86400.0, 3600.0);
+  double daily_J = 0.0;
+  for (int h = 0; h < 24; ++h) {
+    s.battery.load_profile_W.push_back(0.05 * (h + 1));
+    daily_J += 0.05 * (h + 1) * 3600.0;
+  }
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_rain(kStart, kStart + 86400, 0.0), obs);
+  EXPECT_NEAR(r.totals.served_J, daily_J, 1e-9 * daily_J);
+  // The first hour draws 0.05 W for 3600 s.
+  EXPECT_NEAR(obs.samples[0].totals.served_J, 180.0, 1e-12);
+  EXPECT_EQ(r.totals.unmet_J, 0.0);
+}
+
+TEST(Simulation, SamplesAtTheMonthBoundary) {
+  Scenario s = make_scenario(4.0 * 3600.0, 3600.0);
+  const Instant start = kStart + 30 * 86400 + 22 * 3600;  // 2025-03-31T22:00Z
+  s.simulation.start = start;
+  s.simulation.end = start + 4 * 3600;
+  RecordingObserver obs;
+  simulate(s, constant_rain(start, start + 4 * 3600, 0.0), obs);
+  ASSERT_EQ(obs.samples.size(), 4u);
+  EXPECT_EQ(format_iso8601(obs.samples[1].time), "2025-04-01T00:00");
+  EXPECT_FALSE(obs.samples[0].month_end);
+  EXPECT_TRUE(obs.samples[1].month_end);
+  EXPECT_FALSE(obs.samples[2].month_end);
+  EXPECT_TRUE(obs.samples[3].month_end);
+}
+
+TEST(Simulation, SamplesEveryOutputIntervalAndAtTheEnd) {
+  Scenario s = make_scenario(3.0 * 3600.0 + 900.0, 3600.0);
+  RecordingObserver obs;
+  simulate(s, constant_inflow(s, 2.0 * kLitre_m3 * kPerMinute), obs);
+  ASSERT_EQ(obs.samples.size(), 4u);
+  EXPECT_EQ(obs.start.time, kStart);
+  EXPECT_EQ(obs.samples[0].time, kStart + 3600);
+  EXPECT_EQ(obs.samples[2].time, kStart + 3 * 3600);
+  EXPECT_EQ(obs.samples[3].time, kStart + 3 * 3600 + 900);
+  EXPECT_TRUE(obs.samples[3].output);
+  EXPECT_TRUE(obs.samples[3].month_end);
+  EXPECT_FALSE(obs.samples[0].month_end);
+}
+
+}  // namespace
+}  // namespace gutterwatt

@@ -1,0 +1,145 @@
+#include "gutterwatt/siphon.hpp"
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <initializer_list>
+
+#include "gutterwatt/hydraulics.hpp"
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+namespace {
+
+// An invented bell siphon: lip 50 mm, bell rim 8 mm, 19 mm standpipe, primes at 3 L/min.
+ReleaseConfig bell() {
+  ReleaseConfig c;
+  c.kind = ReleaseKind::bell;
+  c.trigger_level_m = 0.050;
+  c.break_level_m = 0.008;
+  c.standpipe_diameter_m = 0.019;
+  c.priming_flow_m3_per_s = 3e-3 / 60.0;
+  c.lip_coefficient = 1.77;
+  return c;
+}
+
+constexpr double kFullFlow = 1.5e-4;  // m3/s, what the conveyance carries (invented)
+
+TEST(Siphon, LipIsACircularWeir) {
+  const BellSiphon s(bell());
+  // Weir Q = C L h^1.5 over the lip circumference L = pi d: source: ISO 1438 thin-plate form,
+  // REFERENCES.md section 6, with the lumped C of this project.
+  const double head = 0.004;
+  EXPECT_NEAR(s.lip_flow_m3_per_s(0.050 + head), 1.77 * kPi * 0.019 * std::pow(head, 1.5), 1e-18);
+  EXPECT_EQ(s.lip_flow_m3_per_s(0.050), 0.0);
+  EXPECT_EQ(s.lip_flow_m3_per_s(0.02), 0.0);
+}
+
+TEST(Siphon, PrimingLevelIsLipPlusWeirHeadOfThePrimingFlow) {
+  const BellSiphon s(bell());
+  // Inverse of the weir law: h = (Q / (C pi d))^(2/3).
+  const double head = std::pow(5e-5 / (1.77 * kPi * 0.019), 2.0 / 3.0);
+  EXPECT_NEAR(s.priming_level_m(), 0.050 + head, 1e-15);
+  EXPECT_NEAR(s.lip_flow_m3_per_s(s.priming_level_m()), 5e-5, 1e-17);
+}
+
+TEST(Siphon, StartsIdleBelowTheLipAndDribblingAboveIt) {
+  const BellSiphon s(bell());
+  EXPECT_EQ(s.initial_state(0.0), ReleaseState::idle);
+  EXPECT_EQ(s.initial_state(0.050), ReleaseState::idle);
+  EXPECT_EQ(s.initial_state(0.052), ReleaseState::dribble);
+}
+
+TEST(Siphon, IdlePassesNoWater) {
+  const BellSiphon s(bell());
+  EXPECT_EQ(s.outflow_m3_per_s(ReleaseState::idle, 0.055, kFullFlow), 0.0);
+}
+
+TEST(Siphon, DribbleIsTheLipFlowCappedByTheConveyance) {
+  const BellSiphon s(bell());
+  EXPECT_EQ(s.outflow_m3_per_s(ReleaseState::dribble, 0.054, kFullFlow),
+            s.lip_flow_m3_per_s(0.054));
+  EXPECT_EQ(s.outflow_m3_per_s(ReleaseState::dribble, 0.054, 1e-6), 1e-6);
+  EXPECT_EQ(s.outflow_m3_per_s(ReleaseState::dribble, 0.049, kFullFlow), 0.0);
+}
+
+TEST(Siphon, RunningPassesTheFullFlow) {
+  const BellSiphon s(bell());
+  EXPECT_EQ(s.outflow_m3_per_s(ReleaseState::running, 0.03, kFullFlow), kFullFlow);
+  EXPECT_TRUE(s.is_running(ReleaseState::running));
+  EXPECT_FALSE(s.is_running(ReleaseState::dribble));
+  EXPECT_FALSE(s.is_running(ReleaseState::idle));
+}
+
+TEST(Siphon, IdleStartsDribblingAboveTheHoldHead) {
+  const BellSiphon s(bell());
+  Guard g[Release::kMaxGuards];
+  ASSERT_EQ(s.guards(ReleaseState::idle, 0.050, kFullFlow, g), 1);
+  EXPECT_GT(g[0].value, 0.0);
+  EXPECT_EQ(g[0].next, ReleaseState::dribble);
+  s.guards(ReleaseState::idle, 0.050 + 0.99 * kHoldHead_m, kFullFlow, g);
+  EXPECT_GT(g[0].value, 0.0);
+  s.guards(ReleaseState::idle, 0.050 + 1.01 * kHoldHead_m, kFullFlow, g);
+  EXPECT_LT(g[0].value, 0.0);
+}
+
+TEST(Siphon, PrimesOnlyAtThePrimingLevel) {
+  const BellSiphon s(bell());
+  const double h = s.priming_level_m();
+  Guard g[Release::kMaxGuards];
+  ASSERT_EQ(s.guards(ReleaseState::dribble, h - 1e-9, kFullFlow, g), 2);
+  EXPECT_EQ(g[0].next, ReleaseState::running);
+  EXPECT_GT(g[0].value, 0.0);
+  s.guards(ReleaseState::dribble, h + 1e-9, kFullFlow, g);
+  EXPECT_LT(g[0].value, 0.0);
+  // Well above the lip but below the priming level it does not prime.
+  s.guards(ReleaseState::dribble, 0.5 * (0.050 + h), kFullFlow, g);
+  EXPECT_GT(g[0].value, 0.0);
+  EXPECT_GT(g[1].value, 0.0);
+}
+
+TEST(Siphon, DribbleStopsAtHalfTheHoldHead) {
+  const BellSiphon s(bell());
+  Guard g[Release::kMaxGuards];
+  s.guards(ReleaseState::dribble, 0.050 + 0.6 * kHoldHead_m, kFullFlow, g);
+  EXPECT_EQ(g[1].next, ReleaseState::idle);
+  EXPECT_GT(g[1].value, 0.0);
+  s.guards(ReleaseState::dribble, 0.050 + 0.4 * kHoldHead_m, kFullFlow, g);
+  EXPECT_LT(g[1].value, 0.0);
+}
+
+TEST(Siphon, BreaksAtTheBellRim) {
+  const BellSiphon s(bell());
+  Guard g[Release::kMaxGuards];
+  ASSERT_EQ(s.guards(ReleaseState::running, 0.008 + 1e-9, kFullFlow, g), 1);
+  EXPECT_EQ(g[0].next, ReleaseState::idle);
+  EXPECT_GT(g[0].value, 0.0);
+  s.guards(ReleaseState::running, 0.008 - 1e-9, kFullFlow, g);
+  EXPECT_LT(g[0].value, 0.0);
+  // Running on below the lip: the siphon only breaks at the rim.
+  s.guards(ReleaseState::running, 0.03, kFullFlow, g);
+  EXPECT_GT(g[0].value, 0.0);
+}
+
+TEST(Siphon, RestsOnlyWhenIdle) {
+  const BellSiphon s(bell());
+  EXPECT_EQ(s.rest_ceiling_m(ReleaseState::idle), 0.050 + kHoldHead_m);
+  EXPECT_LT(s.rest_ceiling_m(ReleaseState::dribble), 0.0);
+  EXPECT_LT(s.rest_ceiling_m(ReleaseState::running), 0.0);
+}
+
+TEST(Siphon, MakeReleaseBuildsABellForKindBell) {
+  const auto r = make_release(bell());
+  EXPECT_NE(dynamic_cast<const BellSiphon*>(r.get()), nullptr);
+}
+
+TEST(Siphon, NamesEveryReleaseState) {
+  EXPECT_EQ(release_state_name(ReleaseState::idle), "idle");
+  EXPECT_EQ(release_state_name(ReleaseState::dribble), "dribble");
+  EXPECT_EQ(release_state_name(ReleaseState::running), "running");
+  EXPECT_EQ(release_state_name(ReleaseState::closed), "closed");
+  EXPECT_EQ(release_state_name(ReleaseState::open), "open");
+}
+
+}  // namespace
+}  // namespace gutterwatt
