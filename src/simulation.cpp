@@ -797,6 +797,7 @@ RunResult Engine::run() {
   auto gap = missing.begin();
   Instant t = start;
   while (t < end) {
+    if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
     Instant next = std::min({end, next_output, next_month});
     while (pulse != rain_.pulses.end() && pulse->end <= t) ++pulse;
     Forcing f;
