@@ -1,0 +1,140 @@
+// Tests of the design figures `gutterwatt check` prints, against hand calculations from the
+// published relations.
+
+#include "gutterwatt/design.hpp"
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <sstream>
+
+#include "gutterwatt/hydraulics.hpp"
+#include "test_support.hpp"
+
+namespace gutterwatt {
+namespace {
+
+using test_support::make_scenario;
+
+constexpr double kG = 9.80665;
+
+TEST(Design, StorageOfARectangularGutterIsWidthTimesLengthTimesTheLevelSpan) {
+  Scenario s = make_scenario();
+  s.release.kind = ReleaseKind::float_valve;
+  const DesignFigures d = evaluate_design(s, nullptr);
+  ASSERT_TRUE(d.storage_m3);
+  // Prism volume, 0.1 m x 8 m x (0.050 - 0.008) m.
+  EXPECT_NEAR(*d.storage_m3, 0.1 * 8.0 * 0.042, 1e-12);
+}
+
+TEST(Design, BellStorageRunsToThePrimingLevel) {
+  const Scenario s = make_scenario();
+  const DesignFigures d = evaluate_design(s, nullptr);
+  ASSERT_TRUE(d.priming_level_m);
+  // Weir head of the priming flow over the lip, h = (Q / (C pi d))^(2/3).
+  const double head = std::pow(s.release.priming_flow_m3_per_s / (1.77 * M_PI * 0.019), 2.0 / 3.0);
+  EXPECT_NEAR(*d.priming_level_m, 0.050 + head, 1e-12);
+  EXPECT_NEAR(*d.storage_m3, 0.1 * 8.0 * (0.050 + head - 0.008), 1e-12);
+}
+
+TEST(Design, PrimingFlowAsRainIntensityFollowsTheRationalMethod) {
+  Scenario s = make_scenario();
+  s.roof.runoff_coefficient = 0.9;
+  s.release.priming_flow_m3_per_s = 2e-3 / 60.0;
+  const DesignFigures d = evaluate_design(s, nullptr);
+  // Rational method Q = C i A (ASCE/WPCF 1969 as in Chow et al. 1988): i = Q / (C A);
+  // 2 L/min on 0.9 x 40 m2 is 3.333 mm/h.
+  EXPECT_NEAR(*d.priming_intensity_m_per_s * 3.6e6, 2.0 * 60.0 / (0.9 * 40.0), 1e-9);
+}
+
+TEST(Design, HeadColumnRunningFlowMatchesTheFullBoreSiphonWorkedCheck) {
+  // REFERENCES.md section 4 (C): free outfall, dH 1.5 m, D 40 mm, L 3 m, K 1.1, 20 C: 3.684 L/s.
+  Scenario s = make_scenario();
+  s.site.temperature_C = 20.0;
+  s.release.kind = ReleaseKind::float_valve;
+  s.release.orifice_diameter_m = 0.2;  // wide open: the pipe controls
+  s.release.orifice_coefficient = 1.0;
+  s.drop_pipe = Pipe{0.040, 3.0, 0.0015e-3, 1.1};
+  s.head_column = HeadColumnConfig{0.2, 1.0};
+  s.drop_m = 1.5 + 1.0 - 0.050;  // level at trigger + drop - column height = 1.5 m
+  s.nozzle = Nozzle{0.020, 0.95, 0.97};
+  const DesignFigures d = evaluate_design(s, nullptr);
+  EXPECT_NEAR(d.running_flow_trigger_m3_per_s * 1e3, 3.684, 0.005 * 3.684);
+}
+
+TEST(Design, NozzleFiguresAtTheColumnHeadFollowTorricelli) {
+  Scenario s = make_scenario();
+  s.head_column = HeadColumnConfig{0.12, 3.0};
+  const DesignFigures d = evaluate_design(s, nullptr);
+  EXPECT_DOUBLE_EQ(d.design_head_m, 3.0);
+  // Q = Cd A sqrt(2 g H), V = Cv sqrt(2 g H): Torricelli with coefficients (REFERENCES.md 5).
+  const double area = M_PI * 0.005 * 0.005 / 4.0;
+  EXPECT_NEAR(d.nozzle_flow_m3_per_s, 0.95 * area * std::sqrt(2.0 * kG * 3.0), 1e-12);
+  EXPECT_NEAR(d.jet_velocity_m_per_s, 0.97 * std::sqrt(2.0 * kG * 3.0), 1e-12);
+  // Jet power rho Q V^2 / 2; electrical = best-speed peak efficiency x generator efficiency.
+  const double rho = water_density_kg_per_m3(15.0);
+  const double jet =
+      0.5 * rho * d.nozzle_flow_m3_per_s * d.jet_velocity_m_per_s * d.jet_velocity_m_per_s;
+  EXPECT_NEAR(d.jet_power_W, jet, 1e-9);
+  EXPECT_NEAR(d.electrical_power_W, jet * 0.7 * 0.65, 1e-9);
+}
+
+TEST(Design, EnergyPerCycleIsTheStoredWaterTimesHeadTimesTheChainEfficiency) {
+  // A tall drop makes the head nearly constant over the cycle, so E ~ rho g V H_n eta with H_n the
+  // nozzle head (hand calculation; the quadrature must agree within 1 %).
+  Scenario s = make_scenario();
+  s.release.kind = ReleaseKind::float_valve;
+  s.release.orifice_diameter_m = 0.05;
+  s.release.orifice_coefficient = 1.0;
+  s.drop_m = 20.0;
+  s.drop_pipe = Pipe{0.05, 20.0, 0.0015e-3, 0.5};
+  const DesignFigures d = evaluate_design(s, nullptr);
+  ASSERT_TRUE(d.energy_per_cycle_J);
+  const double rho = water_density_kg_per_m3(15.0);
+  const double eta = 0.97 * 0.97 * 0.7 * 0.65;
+  const double e = rho * kG * *d.storage_m3 * d.design_head_m * eta;
+  EXPECT_NEAR(*d.energy_per_cycle_J, e, 0.01 * e);
+  // Drain time of a prism at nearly constant outflow: V / Q.
+  EXPECT_NEAR(*d.cycle_drain_s, *d.storage_m3 / d.running_flow_trigger_m3_per_s,
+              0.01 * *d.cycle_drain_s);
+}
+
+TEST(Design, WarnsWhenCutInExceedsTheDesignPower) {
+  Scenario s = make_scenario();
+  s.generator.cut_in_W = 1000.0;
+  const DesignFigures d = evaluate_design(s, nullptr);
+  ASSERT_FALSE(d.warnings.empty());
+  EXPECT_NE(d.warnings.back().find("cut-in power (1000.00 W) is above the design power"),
+            std::string::npos);
+}
+
+TEST(Design, WarnsWhenPrimingNeedsMoreThanTheRecordsUsualRain) {
+  const Scenario s = make_scenario();
+  // 1 mm/h light rain for a day: below the 4.5 mm/h that primes 3 L/min on 40 m2.
+  const RainSeries rain = test_support::block_rain(
+      test_support::kStart, test_support::kStart + 86400,
+      {{test_support::kStart, test_support::kStart + 86400, 1e-3 / 3600.0}}, 300);
+  const DesignFigures d = evaluate_design(s, &rain);
+  ASSERT_TRUE(d.priming_exceedance);
+  EXPECT_EQ(*d.priming_exceedance, 0.0);
+  ASSERT_FALSE(d.warnings.empty());
+  EXPECT_EQ(d.warnings.front().rfind("The siphon needs 4.5 mm/h of rain to prime", 0), 0u)
+      << d.warnings.front();
+}
+
+TEST(Design, PrintsEveryFigureAndTheCautions) {
+  std::ostringstream out;
+  const Scenario s = make_scenario();
+  write_design(out, s, evaluate_design(s, nullptr));
+  const std::string text = out.str();
+  for (const char* label :
+       {"storage between the set-points", "priming flow as steady rain",
+        "running flow at the set-point", "running time per cycle", "nozzle flow at design head",
+        "jet velocity", "electrical power at design head", "rain that overflows the rim",
+        "energy per cycle", "Cautions", "Working at height"}) {
+    EXPECT_NE(text.find(label), std::string::npos) << label;
+  }
+}
+
+}  // namespace
+}  // namespace gutterwatt
