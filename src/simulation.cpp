@@ -76,7 +76,9 @@ enum Slot : std::size_t {
 using State = std::array<double, kSlots>;
 
 enum class Depression { filling, full, drying, dry };
-enum class ColumnMode { partial, full };
+// A head column fills and drains (partial), spills over its top (full), or, nearly empty under a
+// trickle, passes what arrives straight to the nozzle holding its puddle (trickle).
+enum class ColumnMode { trickle, partial, full };
 
 // Discrete state: which branch of each piecewise law is in force.
 struct Mode {
@@ -84,7 +86,7 @@ struct Mode {
   bool overflowing = false;
   Depression depression = Depression::dry;
   bool flush_full = false;
-  ColumnMode column = ColumnMode::partial;
+  ColumnMode column = ColumnMode::trickle;
   bool generator_on = false;
   BatteryMode battery = BatteryMode::normal;
 };
@@ -136,6 +138,27 @@ using Controlled = odeint::controlled_runge_kutta<BaseStepper, ScaledErrorChecke
                                                   odeint::default_step_adjuster<double, double>>;
 using Dense = odeint::dense_output_runge_kutta<Controlled>;
 
+// Guard k fires when g[k] falls below zero. The numbering is the switch table of apply_switch.
+enum GuardId {
+  kGuardRelease0,
+  kGuardRelease1,
+  kGuardOverflow,
+  kGuardDepression,
+  kGuardFlush,
+  kGuardColumn,
+  kGuardTrickle,
+  kGuardGenerator,
+  kGuardBattery,
+  kGuardCount
+};
+
+using Guards = std::array<double, kGuardCount>;
+
+// Head-column water height below which, with a trickle of inflow, the column passes the inflow
+// straight to the nozzle: its drain time constant 2 A H / Q is then under a minute, which would
+// make the solver's steps stability-bound for hours of dribble, while the power at such heads is
+// far below any generator's cut-in.
+constexpr double kTrickleHead_m = 0.05;
 // Volume below which a head column counts as drained.
 constexpr double kColumnDry_m3 = 1e-9;
 // Largest solver step: a switch that happens and un-happens within one step would be missed.
@@ -151,15 +174,15 @@ class Engine {
         options_(options),
         geometry_(sc.reservoir),
         plant_(sc),
-        release_(make_release(sc.release)) {}
+        release_(make_release(sc.release)),
+        trickle_volume_m3_(plant_.column_area_m2() * kTrickleHead_m) {}
 
   RunResult run();
 
  private:
   // Physics at one instant.
   Rates rates(const State& x, const Mode& m, const Forcing& f) const;
-  int guards(const State& x, const Mode& m, const Forcing& f, const Rates& r,
-             std::array<double, 8>& g) const;
+  int guards(const State& x, const Mode& m, const Forcing& f, const Rates& r, Guards& g) const;
   void apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rates& r, double t);
   void settle(State& x, Mode& m, const Forcing& f, double t);
   bool at_rest(const State& x, const Mode& m, const Forcing& f) const;
@@ -194,11 +217,13 @@ class Engine {
   ReservoirGeometry geometry_;
   Plant plant_;
   std::unique_ptr<Release> release_;
+  double trickle_volume_m3_;  // head column: volume at kTrickleHead_m
 
   State x_{};
   Mode mode_;
   double now_s_ = 0.0;  // absolute, seconds since the epoch
   double last_wet_s_ = -std::numeric_limits<double>::infinity();
+  double last_step_s_ = 10.0;  // solver step carried from one segment into the next
   std::array<OpenEpisode, 4> episodes_{};
   RunResult result_;
   ScaledErrorChecker checker_;
@@ -256,7 +281,12 @@ Rates Engine::rates(const State& x, const Mode& m, const Forcing& f) const {
   d[kDribble] = release_->is_running(m.release) ? 0.0 : r.release;
 
   // Conveyance and nozzle.
-  if (plant_.has_column()) {
+  if (plant_.has_column() && m.column == ColumnMode::trickle) {
+    // The column's drain time constant at a few millimetres of head is seconds, against hours
+    // for a dribble: integrating it would make the system stiff, so it passes the trickle on.
+    r.nozzle = r.release;
+    r.head_m = plant_.nozzle_head_for_flow_m(r.nozzle);
+  } else if (plant_.has_column()) {
     const double volume = m.column == ColumnMode::full ? plant_.column_capacity_m3() : x[kColumn];
     r.nozzle = plant_.column_nozzle_flow_m3_per_s(volume);
     r.head_m = plant_.column_head_m(volume);
@@ -288,21 +318,8 @@ Rates Engine::rates(const State& x, const Mode& m, const Forcing& f) const {
   return r;
 }
 
-// Guard k fires when g[k] falls below zero. The numbering is the switch table of apply_switch.
-enum GuardId {
-  kGuardRelease0,
-  kGuardRelease1,
-  kGuardOverflow,
-  kGuardDepression,
-  kGuardFlush,
-  kGuardColumn,
-  kGuardGenerator,
-  kGuardBattery,
-  kGuardCount
-};
-
 int Engine::guards(const State& x, const Mode& m, const Forcing& f, const Rates& r,
-                   std::array<double, 8>& g) const {
+                   Guards& g) const {
   constexpr double kInactive = 1.0;
   g.fill(kInactive);
   Guard rel[Release::kMaxGuards];
@@ -321,8 +338,21 @@ int Engine::guards(const State& x, const Mode& m, const Forcing& f, const Rates&
     g[kGuardFlush] = sc_.first_flush.volume_m3 - x[kFlush];
   }
   if (plant_.has_column()) {
-    g[kGuardColumn] = m.column == ColumnMode::full ? r.release - r.nozzle
-                                                   : plant_.column_capacity_m3() - x[kColumn];
+    const double q_lin = plant_.column_nozzle_flow_m3_per_s(trickle_volume_m3_);
+    switch (m.column) {
+      case ColumnMode::trickle:
+        g[kGuardColumn] = q_lin - r.release;
+        break;
+      case ColumnMode::partial:
+        g[kGuardColumn] = plant_.column_capacity_m3() - x[kColumn];
+        // Back to trickle once both the puddle and the inflow are small (half the threshold).
+        g[kGuardTrickle] = std::max((x[kColumn] - 0.5 * trickle_volume_m3_) / trickle_volume_m3_,
+                                    (r.release - 0.5 * q_lin) / q_lin);
+        break;
+      case ColumnMode::full:
+        g[kGuardColumn] = r.release - r.nozzle;
+        break;
+    }
   }
   const double cut_in = sc_.generator.cut_in_W;
   g[kGuardGenerator] =
@@ -369,8 +399,13 @@ void Engine::apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rate
       m.flush_full = true;
       x[kFlush] = sc_.first_flush.volume_m3;
       break;
+    case kGuardTrickle:
+      m.column = ColumnMode::trickle;
+      break;
     case kGuardColumn:
-      if (m.column == ColumnMode::partial) {
+      if (m.column == ColumnMode::trickle) {
+        m.column = ColumnMode::partial;
+      } else if (m.column == ColumnMode::partial) {
         // Brim-full: the excess over the brim leaves as column overflow, conserving water.
         const double excess = x[kColumn] - plant_.column_capacity_m3();
         x[kColumnOverflow] += excess;
@@ -402,7 +437,7 @@ void Engine::apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rate
 void Engine::settle(State& x, Mode& m, const Forcing& f, double t) {
   for (int pass = 0; pass < kMaxSwitchesAtOnce; ++pass) {
     const Rates r = rates(x, m, f);
-    std::array<double, 8> g;
+    Guards g;
     guards(x, m, f, r, g);
     int fired = -1;
     for (int k = 0; k < kGuardCount; ++k) {
@@ -419,7 +454,8 @@ void Engine::settle(State& x, Mode& m, const Forcing& f, double t) {
 
 bool Engine::at_rest(const State& x, const Mode& m, const Forcing& f) const {
   if (f.rain_m_per_s > 0.0 || m.overflowing) return false;
-  if (plant_.has_column() && (m.column == ColumnMode::full || x[kColumn] > kColumnDry_m3)) {
+  if (plant_.has_column() && m.column != ColumnMode::trickle &&
+      (m.column == ColumnMode::full || x[kColumn] > kColumnDry_m3)) {
     return false;
   }
   const double ceiling = release_->rest_ceiling_m(m.release);
@@ -464,16 +500,22 @@ void Engine::coast(double dt, const Forcing& f) {
 }
 
 void Engine::integrate(double t0, double t1, const Forcing& f) {
-  const auto system = [this, &f](const State& x, State& dxdt, double) {
-    dxdt = rates(x, mode_, f).dxdt;
+  // The last stage of a Dormand-Prince step is evaluated at the step's end state (FSAL); keeping
+  // it spares the guard evaluation there a second call of the whole chain.
+  Rates last;
+  State last_x{};
+  const auto system = [this, &f, &last, &last_x](const State& x, State& dxdt, double) {
+    last = rates(x, mode_, f);
+    last_x = x;
+    dxdt = last.dxdt;
   };
   const double span = t1 - t0;
   double t = 0.0;  // time within the segment, for precision
   Dense stepper(Controlled(checker_, odeint::default_step_adjuster<double, double>(kMaxStep_s)));
-  double dt = std::min(span, 10.0);
+  double dt = std::min(span, last_step_s_);
   bool fresh = true;
   State x_prev{};
-  std::array<double, 8> g_prev{};
+  Guards g_prev{};
   while (t < span) {
     if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
     if (at_rest(x_, mode_, f)) {
@@ -501,9 +543,15 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
     ++result_.stats.steps;
     double t_end = std::min(step.second, span);
     State x_end;
-    stepper.calc_state(t_end, x_end);
-    Rates r = rates(x_end, mode_, f);
-    std::array<double, 8> g_end;
+    Rates r;
+    if (t_end == step.second && stepper.current_state() == last_x) {
+      x_end = last_x;
+      r = last;
+    } else {
+      stepper.calc_state(t_end, x_end);
+      r = rates(x_end, mode_, f);
+    }
+    Guards g_end;
     guards(x_end, mode_, f, r, g_end);
 
     // Earliest guard that crossed zero within the step, located on the dense output.
@@ -514,15 +562,16 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
       const auto guard_at = [&](double tau) {
         State xs;
         stepper.calc_state(tau, xs);
-        std::array<double, 8> gs;
+        Guards gs;
         guards(xs, mode_, f, rates(xs, mode_, f), gs);
         return gs[k];
       };
       double lo = step.first;
       double hi = t_switch;
       if (guard_at(hi) >= 0.0) continue;  // crosses only after an earlier switch
-      // Bisection on the dense output to 1e-7 s: a switch is placed, not rounded to a step.
-      while (hi - lo > 1e-7) {
+      // Bisection on the dense output to 1e-10 s: a switch is placed, not rounded to a step, and
+      // the accounts it splits move by less than 1e-9 of their size.
+      while (hi - lo > 1e-10) {
         const double mid = 0.5 * (lo + hi);
         if (guard_at(mid) < 0.0)
           hi = mid;
@@ -555,6 +604,7 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
       g_prev = g_end;
       if (step.second > span) break;
     }
+    last_step_s_ = std::max(1e-3, stepper.current_time_step());
   }
   now_s_ = t1;
 }
