@@ -123,7 +123,7 @@ TipLog read_tip_log(std::istream& in, const std::string& file_label, const Serie
 /// Throws InputError naming both files when two logs overlap (a tip of one at or before the
 /// last tip of the other), and naming the file and line of a tip that implies more than
 /// kMaxRainIntensity_mm_per_h. `total_depth_m` is the correctly rounded sum of the pulses: with
-/// one tip per stamp, exactly (number of tips) x (tip depth), rounded once.
+/// one tip per stamp, exactly (number of tips) x (tip depth), rounded once. `step_s` is the cap.
 RainSeries spread_tips(const std::vector<TipLog>& logs, const TipSpreading& tips,
                        GapPolicy policy = GapPolicy::error);
 
