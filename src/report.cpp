@@ -1328,8 +1328,9 @@ struct HeatGrid {
   std::size_t best_x = 0, best_y = 0;
 };
 
+/// `decimals`: for the values written in the cells.
 std::string heat_svg(const std::string& id, const std::string& title, const std::string& unit,
-                     const HeatGrid& grid, const std::array<const char*, 9>& ramp) {
+                     const HeatGrid& grid, const std::array<const char*, 9>& ramp, int decimals) {
   const std::size_t nx = grid.xs.size();
   const std::size_t ny = grid.ys.size();
   const double left = 130.0;
@@ -1376,7 +1377,7 @@ std::string heat_svg(const std::string& id, const std::string& title, const std:
       if (values) {
         out += "<text x=\"" + px(x0 + cell_w / 2.0) + "\" y=\"" + px(y0 + cell_h / 2.0 + 4.0) +
                "\" text-anchor=\"middle\" class=\"" + (is_dark(c) ? "cell light" : "cell") + "\">" +
-               pretty(v, false) + "</text>";
+               grouped(v, decimals) + "</text>";
       }
     }
   }
@@ -1515,6 +1516,8 @@ tr.best td { font-weight: 600; }
 .wide { overflow-x: auto; }
 .ranked { font-size: .92em; }
 .ranked thead th { vertical-align: bottom; }
+.ranked.many { font-size: .8em; }
+.ranked.many th, .ranked.many td { padding-right: 6px; padding-left: 6px; }
 .ranked th.rank, .ranked td.rank { background: #f4f4f4; }
 figure { margin: 1em 0 1.4em; }
 figcaption { font-size: .9em; color: #3a3a3a; margin-top: .3em; max-width: 60em; }
@@ -1951,8 +1954,9 @@ std::string render_run(const fs::path& dir) {
   return page_open(s.scenario + ": season report", charts) + body + page_close();
 }
 
-// Decimals for a table column: none when every value is whole, else three significant figures at
-// the column's median magnitude, so the digits of one column line up.
+// Decimals for a table column: none when every value is whole, else four significant figures at
+// the column's median magnitude (enough to tell close-ranked rows apart), so the digits of one
+// column line up.
 int column_decimals(const Sweep& sw, std::size_t c) {
   std::vector<double> magnitudes;
   bool whole = true;
@@ -1965,7 +1969,7 @@ int column_decimals(const Sweep& sw, std::size_t c) {
   std::nth_element(magnitudes.begin(),
                    magnitudes.begin() + static_cast<long>(magnitudes.size() / 2), magnitudes.end());
   const double median = magnitudes[magnitudes.size() / 2];
-  return std::clamp(2 - static_cast<int>(std::floor(std::log10(median))), 0, 4);
+  return std::clamp(3 - static_cast<int>(std::floor(std::log10(median))), 0, 4);
 }
 
 // The class attribute of a ranked-table cell: numbers align right, the rank column is shaded.
@@ -2088,16 +2092,16 @@ std::string render_sweep(const fs::path& dir) {
             escape(grid.y_name) + "</h2>\n";
     grid.value = grid_of(c_energy);
     charts.push_back("chart-heat-energy");
-    body += figure(
-        heat_svg("chart-heat-energy", "Electrical energy, Wh", "energy, Wh", grid, kEnergyRamp),
-        "Season electrical energy for each pair of values; brighter is more." + note);
+    body += figure(heat_svg("chart-heat-energy", "Electrical energy, Wh", "energy, Wh", grid,
+                            kEnergyRamp, decimals[c_energy]),
+                   "Season electrical energy for each pair of values; brighter is more." + note);
     grid.value = grid_of(c_overflow);
     charts.push_back("chart-heat-overflow");
-    body +=
-        figure(heat_svg("chart-heat-overflow", "Overflow, L", "overflow, L", grid, kOverflowRamp),
-               "Water lost over the rim (and the head column) for each pair of values; darker "
-               "is more." +
-                   note);
+    body += figure(heat_svg("chart-heat-overflow", "Overflow, L", "overflow, L", grid,
+                            kOverflowRamp, decimals[c_overflow]),
+                   "Water lost over the rim (and the head column) for each pair of values; darker "
+                   "is more." +
+                       note);
     body += "</section>\n";
   } else if (numeric.size() == 1 && sw.keys.size() == 1) {
     std::vector<std::size_t> order(n);
@@ -2131,7 +2135,8 @@ std::string render_sweep(const fs::path& dir) {
     body += "<p class=\"note\">The best " + std::to_string(kMaxRows) + " of " + std::to_string(n) +
             " combinations; sweep.csv has them all.</p>\n";
   }
-  body += "<div class=\"wide\"><table class=\"ranked\">\n<thead><tr><th class=\"n\">#</th>";
+  body += std::string("<div class=\"wide\"><table class=\"ranked") +
+          (csv.header.size() > 11 ? " many" : "") + "\">\n<thead><tr><th class=\"n\">#</th>";
   for (std::size_t c = 0; c < csv.header.size(); ++c) {
     const bool is_rank = csv.header[c] == sw.rank;
     body += "<th" + cell_class(!std::isnan(sw.num[0][c]), is_rank) + ">" +
