@@ -284,9 +284,14 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                   {"initial_soc", round_to(cap > 0 ? r.initial.battery_J / cap : 0.0, 6)},
                   {"final_soc", round_to(cap > 0 ? r.final.battery_J / cap : 0.0, 6)},
                   {"min_soc", round_to(summary.min_soc(), 6)}};
+  json coverage = json::array();
+  for (const MonthCoverage& m : month_coverage(rain, r.start, r.end, off)) {
+    coverage.push_back({{"month", m.month}, {"fraction", round_to(m.fraction, 6)}});
+  }
   j["rain"] = {{"depth_mm", round_to(a.rain_m3 / sc.roof.area_m2 * kMmPerM, 6)},
                {"record_depth_mm", round_to(rain.total_depth_m * kMmPerM, 6)},
                {"gaps", rain.gaps.size()},
+               {"coverage", coverage},
                {"warnings", rain.warnings}};
   j["solver"] = {{"steps", r.stats.steps},
                  {"switches", r.stats.switches},

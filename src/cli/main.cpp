@@ -8,9 +8,11 @@
 #include <atomic>
 #include <csignal>
 #include <filesystem>
+#include <fstream>
 #include <iostream>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "gutterwatt/calendar.hpp"
@@ -22,6 +24,7 @@
 #include "gutterwatt/scenario.hpp"
 #include "gutterwatt/simulation.hpp"
 #include "gutterwatt/storm.hpp"
+#include "gutterwatt/synth.hpp"
 #include "gutterwatt/units.hpp"
 #include "sweep_command.hpp"
 
@@ -32,12 +35,104 @@ namespace {
 
 std::atomic<bool> g_stop{false};
 
-extern "C" void on_signal(int) { g_stop.store(true); }
+// The first SIGINT or SIGTERM asks the run to stop at its next step; a second one ends the
+// program at once, for a command that does not look at the flag.
+extern "C" void on_signal(int sig) {
+  if (g_stop.exchange(true)) {
+    std::signal(sig, SIG_DFL);
+    std::raise(sig);
+  }
+}
 
 constexpr int kExitOk = 0;
 constexpr int kExitFailure = 1;
 constexpr int kExitBadInput = 2;
 constexpr int kExitInterrupted = 130;
+
+// A UTF-8 sequence starting at text[i]: its length, or 0 when the bytes are not one.
+std::size_t utf8_length(std::string_view text, std::size_t i) {
+  const auto byte = [&](std::size_t k) { return static_cast<unsigned char>(text[k]); };
+  const unsigned char lead = byte(i);
+  std::size_t n = 0;
+  unsigned char lo = 0x80;
+  unsigned char hi = 0xBF;
+  if (lead >= 0xC2 && lead <= 0xDF) {
+    n = 2;
+  } else if (lead >= 0xE0 && lead <= 0xEF) {
+    n = 3;
+    if (lead == 0xE0) lo = 0xA0;
+    if (lead == 0xED) hi = 0x9F;
+  } else if (lead >= 0xF0 && lead <= 0xF4) {
+    n = 4;
+    if (lead == 0xF0) lo = 0x90;
+    if (lead == 0xF4) hi = 0x8F;
+  } else {
+    return 0;
+  }
+  if (i + n > text.size()) return 0;
+  for (std::size_t k = 1; k < n; ++k) {
+    const unsigned char c = byte(i + k);
+    if (c < (k == 1 ? lo : 0x80) || c > (k == 1 ? hi : 0xBF)) return 0;
+  }
+  return n;
+}
+
+// Error text as one printable line: a message may quote a line of a binary file or a
+// multi-line YAML value, so control characters and bytes that are not UTF-8 become \xNN.
+std::string one_line(std::string_view text) {
+  std::string out;
+  out.reserve(text.size());
+  for (std::size_t i = 0; i < text.size();) {
+    const auto c = static_cast<unsigned char>(text[i]);
+    const std::size_t n = c < 0x80 ? (c >= 0x20 && c != 0x7F) : utf8_length(text, i);
+    if (n > 0) {
+      out.append(text.substr(i, n));
+      i += n;
+      continue;
+    }
+    static constexpr char kHex[] = "0123456789ABCDEF";
+    out += "\\x";
+    out += kHex[c >> 4];
+    out += kHex[c & 0xF];
+    ++i;
+  }
+  return out;
+}
+
+// An input error's text from its parts: what() ends at the first NUL byte a message quotes.
+std::string describe(const InputError& e) {
+  std::string out;
+  if (!e.file().empty()) {
+    out += e.file();
+    if (e.line() > 0) out += ":" + std::to_string(e.line());
+    out += ": ";
+  }
+  if (!e.field().empty()) out += e.field() + ": ";
+  return one_line(out + e.message());
+}
+
+// A parse error in words: CLI11 reports an unknown command as a missing one.
+std::string describe(const CLI::ParseError& e, CLI::App& app, int argc, char** argv) {
+  const std::vector<CLI::App*> parsed = app.get_subcommands();
+  if (!parsed.empty()) {
+    return one_line(std::string(e.what()) + " (see gutterwatt " + parsed.front()->get_name() +
+                    " --help)");
+  }
+  std::string names;
+  const std::vector<CLI::App*> commands = app.get_subcommands([](CLI::App*) { return true; });
+  for (std::size_t i = 0; i < commands.size(); ++i) {
+    if (i > 0) names += i + 1 == commands.size() ? " or " : ", ";
+    names += commands[i]->get_name();
+  }
+  if (argc < 2) return "no command given; expected " + names + " (see gutterwatt --help)";
+  const std::string first = argv[1];
+  if (first.starts_with("-")) {
+    return one_line("unknown option " + first + "; expected a command first: " + names +
+                    " (see gutterwatt --help)");
+  }
+  return one_line("unknown command \"" + first + "\"; expected " + names +
+                  " (see gutterwatt --help)");
+}
 
 struct RunArgs {
   std::string scenario;
@@ -74,6 +169,10 @@ int run_command(const RunArgs& args) {
   RunOptions options;
   options.stop = &g_stop;
   const RunResult result = simulate(sc, rain, observers, options);
+  for (const std::string& w :
+       coverage_warnings(month_coverage(rain, result.start, result.end, sc.site.utc_offset_s))) {
+    spdlog::warn("{}", w);
+  }
   write_summary_json(folder.open("summary.json"), sc, rain, result, summary);
   folder.commit();
   if (!args.quiet) {
@@ -149,6 +248,47 @@ int storm_command(const StormArgs& a) {
   return kExitOk;
 }
 
+struct SynthArgs {
+  std::string params;
+  std::string start;
+  std::string end;
+  std::string step = "1h";
+  std::uint64_t seed = 1;
+  std::string utc_offset = "+00:00";
+  std::string out;
+};
+
+int synth_command(const SynthArgs& a) {
+  std::ifstream in(a.params, std::ios::binary);
+  if (!in) throw InputError(a.params, 0, "--params", "cannot be read");
+  const PrpParameters params = read_prp_parameters(in, a.params);
+  SynthSpec spec;
+  const auto offset = parse_utc_offset(a.utc_offset);
+  if (!offset) {
+    throw InputError("", 0, "--utc-offset",
+                     "expected an offset such as +02:00 (got \"" + a.utc_offset + "\")");
+  }
+  spec.utc_offset_s = *offset;
+  const auto start = parse_iso8601(a.start, spec.utc_offset_s);
+  if (!start)
+    throw InputError("", 0, "--start", "expected an ISO 8601 time (got \"" + a.start + "\")");
+  const auto end = parse_iso8601(a.end, spec.utc_offset_s);
+  if (!end) throw InputError("", 0, "--end", "expected an ISO 8601 time (got \"" + a.end + "\")");
+  spec.start = start->instant;
+  spec.end = end->instant;
+  spec.step_s = static_cast<Instant>(std::llround(duration_option(a.step, "--step")));
+  spec.seed = a.seed;
+  if (a.out.empty() || a.out == "-") {
+    write_synth_csv(std::cout, params, spec);
+    return kExitOk;
+  }
+  const fs::path file(a.out);
+  OutputFolder folder(file.parent_path().empty() ? fs::path(".") : file.parent_path());
+  write_synth_csv(folder.open(file.filename().string()), params, spec);
+  folder.commit();
+  return kExitOk;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
@@ -218,6 +358,18 @@ int main(int argc, char** argv) {
                         "peak position 0..1 (chicago, idf-block), default 0.5");
   storm_cmd->add_option("--out", storm.out, "file to write (default: standard output)");
 
+  SynthArgs synth;
+  auto* synth_cmd = app.add_subcommand(
+      "synth",
+      "write a long synthetic rain record (Poisson rectangular pulses, monthly parameters)");
+  synth_cmd->add_option("--params", synth.params, "monthly parameter CSV (see README)")->required();
+  synth_cmd->add_option("--start", synth.start, "first instant (ISO 8601)")->required();
+  synth_cmd->add_option("--end", synth.end, "end instant (ISO 8601)")->required();
+  synth_cmd->add_option("--step", synth.step, "record step, e.g. 5min (default 1h)");
+  synth_cmd->add_option("--seed", synth.seed, "random seed (default 1)");
+  synth_cmd->add_option("--utc-offset", synth.utc_offset, "local time of months and stamps");
+  synth_cmd->add_option("--out", synth.out, "file to write (default: standard output)");
+
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {
@@ -227,7 +379,7 @@ int main(int argc, char** argv) {
   } catch (const CLI::CallForVersion& e) {
     return app.exit(e);
   } catch (const CLI::ParseError& e) {
-    spdlog::error("{} (see gutterwatt --help)", e.what());
+    spdlog::error("{}", describe(e, app, argc, argv));
     return kExitBadInput;
   }
 
@@ -240,17 +392,18 @@ int main(int argc, char** argv) {
       return kExitOk;
     }
     if (*storm_cmd) return storm_command(storm);
+    if (*synth_cmd) return synth_command(synth);
   } catch (const InputError& e) {
-    spdlog::error("{}", e.what());
+    spdlog::error("{}", describe(e));
     return kExitBadInput;
   } catch (const Interrupted&) {
     spdlog::error("interrupted; earlier results in the output folder are untouched");
     return kExitInterrupted;
   } catch (const SimulationError& e) {
-    spdlog::error("{}", e.what());
+    spdlog::error("{}", one_line(e.what()));
     return kExitFailure;
   } catch (const std::exception& e) {
-    spdlog::error("{}", e.what());
+    spdlog::error("{}", one_line(e.what()));
     return kExitFailure;
   }
   return kExitOk;
