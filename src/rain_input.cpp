@@ -217,14 +217,16 @@ class ExactSum {
   std::vector<double> partials_;
 };
 
-// The index of each wanted column in a header line, found by name.
+// The index of each wanted column in a header line, found by name; `count` is set to the number
+// of columns the header names.
 std::vector<std::size_t> find_columns(std::string_view line, int line_number,
                                       const std::string& file_label,
-                                      const std::vector<std::string>& wanted) {
+                                      const std::vector<std::string>& wanted, std::size_t& count) {
   std::vector<std::string> names;
   std::string_view rest = line;
   bool more = true;
   while (more) names.push_back(unescape_quotes(next_field(rest, more)));
+  count = names.size();
 
   const auto find_column = [&](const std::string& column) {
     std::size_t found = names.size();
@@ -254,10 +256,11 @@ std::vector<std::size_t> find_columns(std::string_view line, int line_number,
 }
 
 // The fields of a row at `indexes` (header order of the wanted columns). Throws when the row is
-// too short, naming the first column it lacks.
+// too short, naming the first column it lacks, and when it has a value beyond the header's
+// `header_fields` columns (empty trailing fields are fine).
 void take_fields(std::string_view line, int line_number, const std::string& file_label,
                  const std::vector<std::size_t>& indexes, const std::vector<std::string>& columns,
-                 std::vector<std::string_view>& fields) {
+                 std::size_t header_fields, std::vector<std::string_view>& fields) {
   const std::size_t last_index = *std::max_element(indexes.begin(), indexes.end());
   fields.assign(indexes.size(), {});
   std::string_view rest = line;
@@ -269,7 +272,18 @@ void take_fields(std::string_view line, int line_number, const std::string& file
       if (indexes[c] == index) fields[c] = field;
     }
   }
-  if (index > last_index) return;
+  if (index > last_index) {
+    // Most often a decimal comma ("0,2"), which would otherwise be read as its whole part.
+    for (; more; ++index) {
+      const std::string_view field = next_field(rest, more);
+      if (index < header_fields || field.empty()) continue;
+      throw InputError(file_label, line_number, "",
+                       "the row has more fields than the " + std::to_string(header_fields) +
+                           " columns of the header (field " + std::to_string(index + 1) + " is " +
+                           quoted(field) + "); a decimal comma? write decimals with a point");
+    }
+    return;
+  }
   std::size_t missing = 0;
   while (indexes[missing] < index) ++missing;
   throw InputError(file_label, line_number, columns[missing],
@@ -306,6 +320,19 @@ double parse_amount(std::string_view text, const std::string& file_label, int li
                      "must not be negative (got " + std::string(text) + ")");
   }
   return value == 0.0 ? 0.0 : value;  // -0 becomes 0
+}
+
+// Throws for a header line that shows the file is not text: UTF-16 (a spreadsheet's "Unicode
+// text"), or any other file with NUL bytes.
+void check_text(std::string_view line, int line_number, const std::string& file_label) {
+  if (line.starts_with("\xFF\xFE") || line.starts_with("\xFE\xFF")) {
+    throw InputError(file_label, line_number, "",
+                     "UTF-16 text, not UTF-8; save the file as CSV in UTF-8 (or plain ASCII)");
+  }
+  if (line.find('\0') != std::string_view::npos) {
+    throw InputError(file_label, line_number, "",
+                     "binary data (a NUL byte on this line), not a CSV text file");
+  }
 }
 
 // Words for the time column's messages: series stamps, tip stamps or dates.
@@ -394,6 +421,7 @@ void scan_rows(std::istream& in, const std::string& file_label,
   int line_number = 0;
   int header_line = 0;
   std::vector<std::size_t> indexes;
+  std::size_t header_fields = 0;
   std::vector<std::string_view> fields;
   std::size_t rows = 0;
   while (reader.next(line)) {
@@ -403,11 +431,12 @@ void scan_rows(std::istream& in, const std::string& file_label,
     }
     if (is_comment_or_blank(line)) continue;
     if (header_line == 0) {
-      indexes = find_columns(line, line_number, file_label, columns);
+      check_text(line, line_number, file_label);
+      indexes = find_columns(line, line_number, file_label, columns, header_fields);
       header_line = line_number;
       continue;
     }
-    take_fields(line, line_number, file_label, indexes, columns, fields);
+    take_fields(line, line_number, file_label, indexes, columns, header_fields, fields);
     on_row(fields, line_number);
     ++rows;
   }

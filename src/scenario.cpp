@@ -21,6 +21,10 @@ namespace {
 /// The file name in messages about a `--set` override.
 const std::string kOverrideLabel = "--set";
 
+/// Above a square kilometre a roof area is a unit mix-up, and much larger areas make the solver
+/// crawl (common practice, no source).
+constexpr double kMaxRoofArea_m2 = 1e6;
+
 /// Shortest text that reads back as `x` (40, 62.5, 1e-10).
 std::string show(double x) {
   char buf[32];
@@ -409,7 +413,12 @@ const std::vector<Section>& schema() {
       {"roof",
        kRequired,
        {
-           {"area_m2", kRequired, [](V v, S s) { s.roof.area_m2 = v.number(kPositive); }},
+           {"area_m2", kRequired,
+            [](V v, S s) {
+              s.roof.area_m2 = v.number(kPositive);
+              v.expect(s.roof.area_m2 <= kMaxRoofArea_m2,
+                       "must be at most 1000000 (a square kilometre)");
+            }},
            {"runoff_coefficient", kOptional,
             [](V v, S s) { s.roof.runoff_coefficient = v.number(kFraction); }},
            {"initial_loss_mm", kOptional,
@@ -826,6 +835,12 @@ class Loader {
       const Value item = child(section, it->first, it->second);
       const std::string name = it->first.Scalar();
       if (std::find(valid.begin(), valid.end(), name) == valid.end()) {
+        if (!name.empty() && name.find_first_not_of("0123456789") == std::string::npos) {
+          // `{temperature_C: 12,5}` reads as a key `5` after the value 12.
+          item.fail(
+              "unknown key; a number is not a key name (a decimal comma? write decimals "
+              "with a point, such as 12.5)");
+        }
         item.fail("unknown key; did you mean " + std::string(nearest(name, valid)) + "?");
       }
       const auto [first, inserted] = out.emplace(name, item);
@@ -918,6 +933,12 @@ std::set<std::string> apply_overrides(YAML::Node& root, const std::vector<std::s
 Scenario parse_scenario(std::string_view yaml_text, const std::string& file_label,
                         const std::filesystem::path& base_dir,
                         const std::vector<std::string>& overrides) {
+  const std::size_t nul = yaml_text.find('\0');
+  if (nul != std::string_view::npos) {
+    const auto line = 1 + std::count(yaml_text.begin(), yaml_text.begin() + nul, '\n');
+    throw InputError(file_label, static_cast<int>(line), "",
+                     "binary data (a NUL byte on this line), not a YAML text file");
+  }
   YAML::Node root;
   try {
     root = YAML::Load(std::string(yaml_text));
