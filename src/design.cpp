@@ -8,6 +8,7 @@
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/plant.hpp"
 #include "gutterwatt/reservoir.hpp"
+#include "gutterwatt/simulation.hpp"
 #include "gutterwatt/siphon.hpp"
 #include "gutterwatt/units.hpp"
 
@@ -39,6 +40,29 @@ std::string fmt(double v, int decimals) {
   char buf[64];
   std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
   return buf;
+}
+
+// Electrical energy of one release from the set-point with no inflow, simulated by the same
+// engine as a run: the reservoir starts just above the set-point, the release runs to its break
+// level, the head column (if any) drains. The battery is made large enough to take it all.
+double one_cycle_energy_J(const Scenario& sc, double set_point_m) {
+  Scenario one = sc;
+  constexpr Instant kStart = 0;
+  constexpr Instant kSpan = 6 * 3600;
+  one.reservoir.initial_level_m = std::min(set_point_m + 1e-6, sc.reservoir.rim_m);
+  one.first_flush.volume_m3 = 0.0;
+  one.battery.capacity_J = 1e12;
+  one.battery.initial_soc = 0.5;
+  one.battery.max_charge_W = 1e12;
+  one.battery.load_W = 0.0;
+  one.battery.load_profile_W.clear();
+  one.simulation.start = kStart;
+  one.simulation.end = kStart + kSpan;
+  one.simulation.output_interval_s = static_cast<double>(kSpan);
+  RainSeries dry;
+  dry.covered.push_back({kStart, kStart + kSpan});
+  Observer none;
+  return simulate(one, dry, none).totals.electrical_J;
 }
 
 }  // namespace
@@ -104,15 +128,7 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
     // Drain time t = integral of A(h) dh / Q(h) from break to the set-point (level-pool).
     d.cycle_drain_s = simpson(
         [&](double h) { return geometry.surface_area_m2(h) / release_flow(h); }, bottom_m, top_m);
-    if (!plant.has_column()) {
-      d.energy_per_cycle_J = simpson(
-          [&](double h) {
-            const double q = release_flow(h);
-            const double e = plant.power(q, plant.nozzle_head_for_flow_m(q)).electrical_W;
-            return (e >= sc.generator.cut_in_W ? e : 0.0) * geometry.surface_area_m2(h) / q;
-          },
-          bottom_m, top_m);
-    }
+    d.energy_per_cycle_J = one_cycle_energy_J(sc, top_m);
   }
   if (plant.has_column() && d.running_flow_trigger_m3_per_s > d.nozzle_flow_m3_per_s) {
     // Fill time of the column from empty, t = integral of dV / (Q_in - Q_nozzle(V)).

@@ -26,9 +26,10 @@ struct DesignFigures {
   double jet_velocity_m_per_s = 0.0;
   double jet_power_W = 0.0;
   double electrical_power_W = 0.0;
-  double overflow_intensity_m_per_s = 0.0;   ///< steady rain that overflows the rim while running
-  std::optional<double> energy_per_cycle_J;  ///< no head column: quadrature over the drain
-  std::optional<double> column_fill_s;       ///< head column: time to brim-full while running
+  double overflow_intensity_m_per_s = 0.0;  ///< steady rain that overflows the rim while running
+  std::optional<double>
+      energy_per_cycle_J;               ///< one release from the set-point, no inflow (simulated)
+  std::optional<double> column_fill_s;  ///< head column: time to brim-full while running
   std::optional<double> record_median_intensity_m_per_s;  ///< of wet record intervals
   std::optional<double> record_peak_intensity_m_per_s;    ///< median annual maximum (2-year)
   std::vector<std::string> warnings;
