@@ -134,6 +134,19 @@ std::string describe(const CLI::ParseError& e, CLI::App& app, int argc, char** a
                   " (see gutterwatt --help)");
 }
 
+// The file --out names is replaced by renaming a finished temporary file onto it: refuse a
+// folder, and a device or pipe, which the rename would replace instead of writing to.
+void check_output_file(const fs::path& file) {
+  std::error_code ec;
+  const fs::file_status status = fs::status(file, ec);
+  if (fs::exists(status) && !fs::is_regular_file(status)) {
+    throw InputError(
+        file.string(), 0, "--out",
+        std::string(fs::is_directory(status) ? "is a folder" : "is not a regular file") +
+            "; give the name of a file to write");
+  }
+}
+
 struct RunArgs {
   std::string scenario;
   std::string out;
@@ -242,6 +255,7 @@ int storm_command(const StormArgs& a) {
     return kExitOk;
   }
   const fs::path file(a.out);
+  check_output_file(file);
   OutputFolder folder(file.parent_path().empty() ? fs::path(".") : file.parent_path());
   write_storm_csv(folder.open(file.filename().string()), spec, start->offset_s);
   folder.commit();
@@ -283,6 +297,7 @@ int synth_command(const SynthArgs& a) {
     return kExitOk;
   }
   const fs::path file(a.out);
+  check_output_file(file);
   OutputFolder folder(file.parent_path().empty() ? fs::path(".") : file.parent_path());
   write_synth_csv(folder.open(file.filename().string()), params, spec);
   folder.commit();
