@@ -377,17 +377,19 @@ class StampReader {
                                                  : " has no UTC offset but the stamp on line " +
                                                        std::to_string(first_line_) + " has one"));
       }
-      const std::string previous =
-          quoted(previous_text_) + " (line " + std::to_string(previous_line_) + ")";
+      // Built only on the error paths: this runs once per row of records of millions.
+      const auto previous = [this] {
+        return quoted(previous_text_) + " (line " + std::to_string(previous_line_) + ")";
+      };
       if (parsed->instant == previous_ && !words_.repeats_allowed) {
-        throw InputError(
-            file_, line_number, column_,
-            quoted(text) + " is " + words_.same + " the previous " + words_.noun + " " + previous);
+        throw InputError(file_, line_number, column_,
+                         quoted(text) + " is " + words_.same + " the previous " + words_.noun +
+                             " " + previous());
       }
       if (parsed->instant < previous_) {
         throw InputError(file_, line_number, column_,
                          quoted(text) + " is earlier than the previous " + words_.noun + " " +
-                             previous + "; rows must be in time order");
+                             previous() + "; rows must be in time order");
       }
     }
     ++count_;
