@@ -161,8 +161,12 @@ using Guards = std::array<double, kGuardCount>;
 constexpr double kTrickleHead_m = 0.05;
 // Volume below which a head column counts as drained.
 constexpr double kColumnDry_m3 = 1e-9;
-// Largest solver step: a switch that happens and un-happens within one step would be missed.
-constexpr double kMaxStep_s = 120.0;
+// Largest solver step while it rains: a switch that happens and un-happens within one step would
+// be missed, and rain can start and stop an overflow within minutes.
+constexpr double kMaxWetStep_s = 120.0;
+// Without rain the flows decay or drain; the one exception, a release cycle still running, moves
+// on a time scale of a minute, which keeps the error-controlled steps far shorter than this.
+constexpr double kMaxDryStep_s = 1800.0;
 constexpr int kMaxSwitchesAtOnce = 16;
 
 class Engine {
@@ -185,7 +189,7 @@ class Engine {
   int guards(const State& x, const Mode& m, const Forcing& f, const Rates& r, Guards& g) const;
   void apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rates& r, double t);
   void settle(State& x, Mode& m, const Forcing& f, double t);
-  bool at_rest(const State& x, const Mode& m, const Forcing& f) const;
+  bool at_rest(const State& x, const Mode& m, const Forcing& f, double span_s) const;
 
   // Time.
   void advance(Instant t0, Instant t1, const Forcing& f);
@@ -452,8 +456,8 @@ void Engine::settle(State& x, Mode& m, const Forcing& f, double t) {
   fail("the modes do not settle (switches chatter)", t);
 }
 
-bool Engine::at_rest(const State& x, const Mode& m, const Forcing& f) const {
-  if (f.rain_m_per_s > 0.0 || m.overflowing) return false;
+bool Engine::at_rest(const State& x, const Mode& m, const Forcing& f, double span_s) const {
+  if (m.overflowing) return false;
   if (plant_.has_column() && m.column != ColumnMode::trickle &&
       (m.column == ColumnMode::full || x[kColumn] > kColumnDry_m3)) {
     return false;
@@ -461,35 +465,65 @@ bool Engine::at_rest(const State& x, const Mode& m, const Forcing& f) const {
   const double ceiling = release_->rest_ceiling_m(m.release);
   if (ceiling < 0.0) return false;
   const double limit = std::min(ceiling, geometry_.rim_m() + kHoldHead_m);
-  return x[kReservoir] + std::max(0.0, x[kRoof]) <= geometry_.volume_m3(limit);
+  // All the water that can reach the reservoir within the span: what is on the roof now and
+  // what the rain can add to it.
+  const double arriving = std::max(0.0, x[kRoof]) +
+                          sc_.roof.runoff_coefficient * f.rain_m_per_s * sc_.roof.area_m2 * span_s;
+  return x[kReservoir] + arriving <= geometry_.volume_m3(limit);
 }
 
-// Dry time at rest in closed form: the roof store empties exponentially into the diverter and the
-// reservoir, the initial loss dries linearly, the battery serves the load.
+// A span at rest in closed form: the release passes nothing and cannot start to, so the rest of
+// the chain is linear. The initial loss fills at the rain rate (or dries at the drying rate), the
+// roof's linear reservoir takes C i A once it is full and empties exponentially, the diverter
+// takes the first of its runoff and the reservoir the rest, and the battery serves the load.
 void Engine::coast(double dt, const Forcing& f) {
   State& x = x_;
-  if (sc_.roof.lag_s > 0.0) {
-    const double left = x[kRoof] * std::exp(-dt / sc_.roof.lag_s);
-    const double out = x[kRoof] - left;
-    x[kRoof] = left;
-    x[kRoofRunoff] += out;
-    double to_reservoir = out;
-    if (sc_.first_flush.volume_m3 > 0.0 && !mode_.flush_full) {
-      const double taken = std::min(out, sc_.first_flush.volume_m3 - x[kFlush]);
-      x[kFlush] += taken;
-      x[kFirstFlush] += taken;
-      to_reservoir -= taken;
-      if (x[kFlush] >= sc_.first_flush.volume_m3) {
-        x[kFlush] = sc_.first_flush.volume_m3;
-        mode_.flush_full = true;
+  const double area = sc_.roof.area_m2;
+  const double rain = f.rain_m_per_s * area;
+  x[kRain] += rain * dt;
+  double wet_s = 0.0;  // time within dt with the initial loss full
+  if (f.rain_m_per_s > 0.0) {
+    const double room = sc_.roof.initial_loss_m - x[kDepression];
+    const double filling_s = mode_.depression == Depression::filling
+                                 ? std::min(dt, std::max(0.0, room) / f.rain_m_per_s)
+                                 : 0.0;
+    if (mode_.depression == Depression::filling) {
+      if (filling_s < dt) {
+        x[kDepression] = sc_.roof.initial_loss_m;
+        mode_.depression = Depression::full;
+      } else {
+        x[kDepression] += f.rain_m_per_s * dt;
       }
     }
-    x[kReservoir] += to_reservoir;
-  }
-  if (mode_.depression == Depression::drying) {
+    wet_s = dt - filling_s;
+    x[kRoofLoss] += rain * filling_s + (1.0 - sc_.roof.runoff_coefficient) * rain * wet_s;
+  } else if (mode_.depression == Depression::drying) {
     x[kDepression] = std::max(0.0, x[kDepression] - sc_.roof.drying_m_per_s * dt);
     if (x[kDepression] <= 0.0) mode_.depression = Depression::dry;
   }
+  const double effective = sc_.roof.runoff_coefficient * rain;
+  double out = effective * wet_s;  // lag 0: runoff follows the rain
+  if (sc_.roof.lag_s > 0.0) {
+    // dS/dt = E - S/k: S decays alone while the loss fills, then relaxes towards E k.
+    const double k = sc_.roof.lag_s;
+    const double before = x[kRoof] * std::exp(-(dt - wet_s) / k);
+    const double left = effective * k + (before - effective * k) * std::exp(-wet_s / k);
+    out = x[kRoof] + effective * wet_s - left;
+    x[kRoof] = left;
+  }
+  x[kRoofRunoff] += out;
+  double to_reservoir = out;
+  if (sc_.first_flush.volume_m3 > 0.0 && !mode_.flush_full) {
+    const double taken = std::min(out, sc_.first_flush.volume_m3 - x[kFlush]);
+    x[kFlush] += taken;
+    x[kFirstFlush] += taken;
+    to_reservoir -= taken;
+    if (x[kFlush] >= sc_.first_flush.volume_m3) {
+      x[kFlush] = sc_.first_flush.volume_m3;
+      mode_.flush_full = true;
+    }
+  }
+  x[kReservoir] += to_reservoir;
   const double demand = f.load_W * dt;
   const double drawn = std::min(std::max(0.0, x[kBattery]), demand);
   x[kBattery] -= drawn;
@@ -511,14 +545,15 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
   };
   const double span = t1 - t0;
   double t = 0.0;  // time within the segment, for precision
-  Dense stepper(Controlled(checker_, odeint::default_step_adjuster<double, double>(kMaxStep_s)));
+  const double max_step = f.rain_m_per_s > 0.0 ? kMaxWetStep_s : kMaxDryStep_s;
+  Dense stepper(Controlled(checker_, odeint::default_step_adjuster<double, double>(max_step)));
   double dt = std::min(span, last_step_s_);
   bool fresh = true;
   State x_prev{};
   Guards g_prev{};
   while (t < span) {
     if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
-    if (at_rest(x_, mode_, f)) {
+    if (at_rest(x_, mode_, f, span - t)) {
       coast(span - t, f);
       now_s_ = t1;
       return;
@@ -620,7 +655,7 @@ void Engine::advance(Instant t0, Instant t1, const Forcing& f) {
     mode_.depression = x_[kDepression] > 0.0 ? Depression::drying : Depression::dry;
   }
   now_s_ = static_cast<double>(t0);
-  if (at_rest(x_, mode_, f)) {
+  if (at_rest(x_, mode_, f, static_cast<double>(t1 - t0))) {
     coast(static_cast<double>(t1 - t0), f);
   } else {
     integrate(static_cast<double>(t0), static_cast<double>(t1), f);
@@ -853,7 +888,16 @@ RunResult Engine::run() {
     Forcing f;
     if (pulse != rain_.pulses.end() && pulse->start <= t) {
       f.rain_m_per_s = pulse->depth_m / static_cast<double>(pulse->end - pulse->start);
-      next = std::min(next, pulse->end);
+      // Back-to-back intervals of the same intensity are one forcing: no solver restart between.
+      auto run_end = pulse;
+      while (std::next(run_end) != rain_.pulses.end() &&
+             std::next(run_end)->start == run_end->end &&
+             std::next(run_end)->depth_m /
+                     static_cast<double>(std::next(run_end)->end - std::next(run_end)->start) ==
+                 f.rain_m_per_s) {
+        ++run_end;
+      }
+      next = std::min(next, run_end->end);
     } else if (pulse != rain_.pulses.end()) {
       next = std::min(next, pulse->start);
     }
