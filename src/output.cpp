@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <functional>
 #include <iomanip>
 #include <nlohmann/json.hpp>
 #include <sstream>
@@ -163,9 +164,18 @@ std::string season_label(const std::string& month) {
 }
 
 std::vector<PeriodSummary> SummaryBuilder::seasons() const {
+  return fold_months([](const std::string& month) { return season_label(month); });
+}
+
+std::vector<PeriodSummary> SummaryBuilder::years() const {
+  return fold_months([](const std::string& month) { return month.substr(0, 4); });
+}
+
+std::vector<PeriodSummary> SummaryBuilder::fold_months(
+    const std::function<std::string(const std::string&)>& label_of) const {
   std::vector<PeriodSummary> out;
   for (const PeriodSummary& m : months_) {
-    const std::string label = season_label(m.label);
+    const std::string label = label_of(m.label);
     if (out.empty() || out.back().label != label) out.push_back(PeriodSummary{label});
     PeriodSummary& s = out.back();
     s.rain_m3 += m.rain_m3;
@@ -305,6 +315,9 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
   json seasons = json::array();
   for (const PeriodSummary& m : summary.seasons()) seasons.push_back(period_json(m, "season"));
   j["seasons"] = seasons;
+  json years = json::array();
+  for (const PeriodSummary& m : summary.years()) years.push_back(period_json(m, "year"));
+  j["years"] = years;
   out << j.dump(2) << '\n';
 }
 
@@ -367,8 +380,15 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
           << std::setw(12) << num(m.dribble_m3 * kLitresPerM3, 1) << '\n';
     }
   };
-  periods("month", summary.months());
-  periods("season", summary.seasons());
+  // A long run's months would fill the screen: they stay in summary.json.
+  const auto seasons = summary.seasons();
+  if (summary.months().size() <= 24) periods("month", summary.months());
+  if (seasons.size() <= 16) {
+    periods("season", seasons);
+  } else {
+    periods("year", summary.years());
+    out << "  (months and seasons are in summary.json)\n";
+  }
 }
 
 OutputFolder::OutputFolder(std::filesystem::path dir) : dir_(std::move(dir)) {

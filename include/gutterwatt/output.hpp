@@ -4,6 +4,7 @@
 
 #include <filesystem>
 #include <fstream>
+#include <functional>
 #include <memory>
 #include <ostream>
 #include <string>
@@ -70,6 +71,8 @@ class SummaryBuilder : public Observer {
   const std::vector<PeriodSummary>& months() const { return months_; }
   /// The months folded into meteorological seasons, in time order.
   std::vector<PeriodSummary> seasons() const;
+  /// The months folded into calendar years (local), in time order.
+  std::vector<PeriodSummary> years() const;
   double min_soc() const { return min_soc_; }
   /// Reservoir overflow episodes, in time order.
   const std::vector<Episode>& overflows() const { return overflows_; }
@@ -81,6 +84,8 @@ class SummaryBuilder : public Observer {
 
  private:
   PeriodSummary& month_of(double time_s);
+  std::vector<PeriodSummary> fold_months(
+      const std::function<std::string(const std::string&)>& label_of) const;
 
   const Scenario& scenario_;
   Sample month_start_;
