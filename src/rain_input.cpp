@@ -153,26 +153,6 @@ bool is_comment_or_blank(std::string_view line) {
 
 // Line numbers and offsets change rarely from row to row, so they are kept as marks at the rows
 // where the simple rule (next line, same offset) stops holding.
-struct RowMark {
-  std::size_t row;
-  std::int64_t value;
-};
-
-const RowMark& mark_for(const std::vector<RowMark>& marks, std::size_t row) {
-  const auto after = std::upper_bound(marks.begin(), marks.end(), row,
-                                      [](std::size_t r, const RowMark& m) { return r < m.row; });
-  return *(after - 1);
-}
-
-int line_of(const std::vector<RowMark>& line_marks, std::size_t row) {
-  const RowMark& mark = mark_for(line_marks, row);
-  return static_cast<int>(mark.value + static_cast<std::int64_t>(row - mark.row));
-}
-
-int offset_of(const std::vector<RowMark>& offset_marks, std::size_t row) {
-  return static_cast<int>(mark_for(offset_marks, row).value);
-}
-
 // Exact summation: the running sum is held as non-overlapping partials and rounded once at the
 // end. Source: Shewchuk (1997), Adaptive precision floating-point arithmetic and fast robust
 // geometric predicates, Discrete Comput. Geom. 18, 305-363 (grow-expansion, Theorem 13).
@@ -456,38 +436,17 @@ void scan_rows(std::istream& in, const std::string& file_label,
   if (rows == 0) throw InputError(file_label, header_line, "", "no data rows");
 }
 
-// What the first pass keeps of each data row.
-struct Rows {
-  std::vector<Instant> times;
-  std::vector<double> values;  ///< as written, in the file's unit
-  std::vector<RowMark> line_marks;
-  std::vector<RowMark> offset_marks;
+// One data row of a series file, as read.
+struct SeriesRow {
+  Instant time;
+  double value;  ///< as written, in the file's unit
+  int line;
+  int offset_s;
 };
 
-Rows read_rows(std::istream& in, const std::string& file_label, const SeriesFormat& fmt) {
-  Rows rows;
-  StampReader stamps(file_label, fmt.time_column, fmt.utc_offset_s, kSeriesStamps);
-  int previous_line = 0;
-  int previous_offset_s = 0;
-  scan_rows(in, file_label, {fmt.time_column, fmt.value_column},
-            [&](const std::vector<std::string_view>& fields, int line_number) {
-              const ParsedTime stamp = stamps.read(fields[0], line_number);
-              const double value =
-                  parse_amount(fields[1], file_label, line_number, fmt.value_column);
-              const std::size_t row = rows.times.size();
-              if (row == 0 || line_number != previous_line + 1) {
-                rows.line_marks.push_back({row, line_number});
-              }
-              if (row == 0 || stamp.offset_s != previous_offset_s) {
-                rows.offset_marks.push_back({row, stamp.offset_s});
-              }
-              rows.times.push_back(stamp.instant);
-              rows.values.push_back(value);
-              previous_line = line_number;
-              previous_offset_s = stamp.offset_s;
-            });
-  return rows;
-}
+// Rows read before the step is known, when the scenario does not give it: the step is the most
+// common spacing among them, so a long record is not held in memory row by row.
+constexpr std::size_t kStepInferenceRows = 4096;
 
 Instant checked_step(const std::string& file_label, double step_s) {
   if (!std::isfinite(step_s) || step_s < 1.0 || step_s != std::floor(step_s) || step_s > 1e12) {
@@ -499,26 +458,15 @@ Instant checked_step(const std::string& file_label, double step_s) {
 }
 
 // The most common spacing of consecutive stamps; ties go to the smallest.
-Instant inferred_step(const Rows& rows, const std::string& file_label, const SeriesFormat& fmt) {
-  const std::vector<Instant>& times = rows.times;
-  if (times.size() < 2) {
-    throw InputError(file_label, line_of(rows.line_marks, 0), fmt.time_column,
+Instant inferred_step(const std::vector<SeriesRow>& rows, const std::string& file_label,
+                      const SeriesFormat& fmt) {
+  if (rows.size() < 2) {
+    throw InputError(file_label, rows.front().line, fmt.time_column,
                      "cannot tell the record step from a single row; give it in the scenario "
                      "(rain.step, e.g. 5min)");
   }
   std::unordered_map<Instant, std::size_t> counts;
-  Instant run_spacing = times[1] - times[0];
-  std::size_t run_length = 0;
-  for (std::size_t k = 1; k < times.size(); ++k) {
-    const Instant spacing = times[k] - times[k - 1];
-    if (spacing != run_spacing) {
-      counts[run_spacing] += run_length;
-      run_spacing = spacing;
-      run_length = 0;
-    }
-    ++run_length;
-  }
-  counts[run_spacing] += run_length;
+  for (std::size_t k = 1; k < rows.size(); ++k) ++counts[rows[k].time - rows[k - 1].time];
   Instant best = 0;
   std::size_t best_count = 0;
   for (const auto& [spacing, count] : counts) {
@@ -621,81 +569,124 @@ double sum_depths_m(const std::vector<RainPulse>& pulses) {
   return sum.value();
 }
 
-RainSeries read_rain_series(std::istream& in, const std::string& file_label,
-                            const SeriesFormat& fmt) {
-  const Rows rows = read_rows(in, file_label, fmt);
-  const Instant step =
-      fmt.step_s ? checked_step(file_label, *fmt.step_s) : inferred_step(rows, file_label, fmt);
+namespace {
 
-  RainSeries series;
-  series.policy = fmt.gaps;
-  series.step_s = step;
-  const char* const gap_fate =
-      fmt.gaps == GapPolicy::zero ? ", counted as dry" : ", left out of the simulation";
-  const bool intensity = fmt.value == RainValue::intensity;
-  Instant gap_total_s = 0;
-  ExactSum total;
+// Turns series rows, in order, into the record: intervals, gaps, coverage and pulses.
+class SeriesBuilder {
+ public:
+  SeriesBuilder(const std::string& file_label, const SeriesFormat& fmt, Instant step)
+      : file_label_(file_label), fmt_(fmt), step_(step) {
+    series_.policy = fmt.gaps;
+    series_.step_s = step;
+  }
 
-  const std::vector<Instant>& times = rows.times;
-  for (std::size_t k = 0; k < times.size(); ++k) {
-    const Instant end = times[k];
-    Instant start = end - step;
-    if (k > 0 && end - times[k - 1] <= step) {
-      start = times[k - 1];
-    } else if (k > 0) {
-      const Instant gap_start = times[k - 1];
-      const int line = line_of(rows.line_marks, k);
-      const std::string text = gap_text(gap_start, offset_of(rows.offset_marks, k - 1), start,
-                                        offset_of(rows.offset_marks, k));
-      if (fmt.gaps == GapPolicy::error) {
-        throw InputError(file_label, line, fmt.time_column,
+  void add(const SeriesRow& row) {
+    const Instant end = row.time;
+    Instant start = end - step_;
+    if (has_previous_ && end - previous_.time <= step_) {
+      start = previous_.time;
+    } else if (has_previous_) {
+      const Instant gap_start = previous_.time;
+      const std::string text = gap_text(gap_start, previous_.offset_s, start, row.offset_s);
+      if (fmt_.gaps == GapPolicy::error) {
+        throw InputError(file_label_, row.line, fmt_.time_column,
                          text +
                              "; set rain.gaps: zero to count gaps as dry, or rain.gaps: "
                              "skip to leave them out");
       }
-      series.gaps.push_back({gap_start, start});
-      gap_total_s += start - gap_start;
-      if (series.gaps.size() <= kMaxGapWarnings) {
-        series.warnings.push_back(file_label + ":" + std::to_string(line) + ": " + text + gap_fate);
+      series_.gaps.push_back({gap_start, start});
+      gap_total_s_ += start - gap_start;
+      if (series_.gaps.size() <= kMaxGapWarnings) {
+        series_.warnings.push_back(file_label_ + ":" + std::to_string(row.line) + ": " + text +
+                                   gap_fate());
       }
     }
-
-    const double value = rows.values[k];
+    const bool intensity = fmt_.value == RainValue::intensity;
     const auto length_s = static_cast<double>(end - start);
-    const double depth_m =
-        intensity ? value * fmt.unit_m * (length_s / kSecondsPerHour) : value * fmt.unit_m;
+    const double depth_m = intensity ? row.value * fmt_.unit_m * (length_s / kSecondsPerHour)
+                                     : row.value * fmt_.unit_m;
     const double intensity_mm_per_h = intensity
-                                          ? value * fmt.unit_m / kMetresPerMm
+                                          ? row.value * fmt_.unit_m / kMetresPerMm
                                           : depth_m / kMetresPerMm * (kSecondsPerHour / length_s);
     if (intensity_mm_per_h > kMaxRainIntensity_mm_per_h) {
-      const std::string got = intensity ? format_number(value) + " " + fmt.unit_name + "/h"
-                                        : format_number(value) + " " + fmt.unit_name + " in " +
+      const std::string got = intensity ? format_number(row.value) + " " + fmt_.unit_name + "/h"
+                                        : format_number(row.value) + " " + fmt_.unit_name + " in " +
                                               format_duration(end - start);
-      throw InputError(file_label, line_of(rows.line_marks, k), fmt.value_column,
+      throw InputError(file_label_, row.line, fmt_.value_column,
                        "implausible intensity " + format_number(intensity_mm_per_h) +
                            " mm/h (got " + got + "; the limit is " +
                            format_number(kMaxRainIntensity_mm_per_h) + " mm/h)");
     }
-
-    if (!series.covered.empty() && series.covered.back().end == start) {
-      series.covered.back().end = end;
+    if (!series_.covered.empty() && series_.covered.back().end == start) {
+      series_.covered.back().end = end;
     } else {
-      series.covered.push_back({start, end});
+      series_.covered.push_back({start, end});
     }
     if (depth_m > 0.0) {
-      series.pulses.push_back({start, end, depth_m});
-      total.add(depth_m);
+      series_.pulses.push_back({start, end, depth_m});
+      total_.add(depth_m);
     }
+    previous_ = row;
+    has_previous_ = true;
   }
 
-  if (series.gaps.size() > kMaxGapWarnings) {
-    const std::size_t more = series.gaps.size() - kMaxGapWarnings;
-    series.warnings.push_back(file_label + ": " + std::to_string(more) +
-                              " more gaps in the record (" + std::to_string(series.gaps.size()) +
-                              " gaps, " + format_duration(gap_total_s) + " in all)" + gap_fate);
+  RainSeries finish() {
+    if (series_.gaps.size() > kMaxGapWarnings) {
+      const std::size_t more = series_.gaps.size() - kMaxGapWarnings;
+      series_.warnings.push_back(file_label_ + ": " + std::to_string(more) +
+                                 " more gaps in the record (" +
+                                 std::to_string(series_.gaps.size()) + " gaps, " +
+                                 format_duration(gap_total_s_) + " in all)" + gap_fate());
+    }
+    series_.total_depth_m = total_.value();
+    return std::move(series_);
   }
-  series.total_depth_m = total.value();
-  return series;
+
+ private:
+  const char* gap_fate() const {
+    return fmt_.gaps == GapPolicy::zero ? ", counted as dry" : ", left out of the simulation";
+  }
+
+  const std::string& file_label_;
+  const SeriesFormat& fmt_;
+  Instant step_;
+  RainSeries series_;
+  ExactSum total_;
+  Instant gap_total_s_ = 0;
+  SeriesRow previous_{};
+  bool has_previous_ = false;
+};
+
+}  // namespace
+
+RainSeries read_rain_series(std::istream& in, const std::string& file_label,
+                            const SeriesFormat& fmt) {
+  // Rows stream into the builder once the step is known, so memory holds the wet intervals
+  // only, not every row of the record.
+  std::optional<SeriesBuilder> builder;
+  if (fmt.step_s) builder.emplace(file_label, fmt, checked_step(file_label, *fmt.step_s));
+  std::vector<SeriesRow> head;
+  const auto start_building = [&] {
+    builder.emplace(file_label, fmt, inferred_step(head, file_label, fmt));
+    for (const SeriesRow& row : head) builder->add(row);
+    head = {};
+  };
+  StampReader stamps(file_label, fmt.time_column, fmt.utc_offset_s, kSeriesStamps);
+  scan_rows(in, file_label, {fmt.time_column, fmt.value_column},
+            [&](const std::vector<std::string_view>& fields, int line_number) {
+              const ParsedTime stamp = stamps.read(fields[0], line_number);
+              const SeriesRow row{
+                  stamp.instant, parse_amount(fields[1], file_label, line_number, fmt.value_column),
+                  line_number, stamp.offset_s};
+              if (builder) {
+                builder->add(row);
+                return;
+              }
+              head.push_back(row);
+              if (head.size() == kStepInferenceRows) start_building();
+            });
+  if (!builder) start_building();
+  return builder->finish();
 }
 
 TipLog read_tip_log(std::istream& in, const std::string& file_label, const SeriesFormat& fmt) {

@@ -41,7 +41,7 @@ struct SeriesFormat {
   RainValue value = RainValue::depth;
   double unit_m = 1e-3;
   std::string unit_name = "mm";
-  /// Nominal record step; when absent, the most common spacing of the timestamps.
+  /// Nominal record step; when absent, the most common spacing of the first 4096 timestamps.
   std::optional<double> step_s;
   GapPolicy gaps = GapPolicy::error;
   /// Offset applied to naive timestamps, seconds east of UTC.
@@ -74,8 +74,9 @@ double sum_depths_m(const std::vector<RainPulse>& pulses);
 /// found by name and others are ignored; a quoted field may not span lines. The first row covers
 /// (T0 - step, T0]. Timestamps must strictly increase; naive ones are taken at `fmt.utc_offset_s`,
 /// and a file may not mix naive stamps with stamps that carry an offset. Without `fmt.step_s` the
-/// step is the most common spacing of consecutive stamps (ties: the smallest), which needs at
-/// least two rows. Values must be finite, not negative, and imply at most
+/// step is the most common spacing of consecutive stamps among the first 4096 rows (ties: the
+/// smallest), which needs at least two rows. Rows stream through once the step is known: memory
+/// holds the wet intervals, not every row. Values must be finite, not negative, and imply at most
 /// kMaxRainIntensity_mm_per_h over their interval.
 ///
 /// Example:
