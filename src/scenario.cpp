@@ -417,7 +417,7 @@ const std::vector<Section>& schema() {
             [](V v, S s) {
               s.roof.area_m2 = v.number(kPositive);
               v.expect(s.roof.area_m2 <= kMaxRoofArea_m2,
-                       "must be at most 1000000 (a square kilometre)");
+                       "must be at most 1000000, a square kilometre");
             }},
            {"runoff_coefficient", kOptional,
             [](V v, S s) { s.roof.runoff_coefficient = v.number(kFraction); }},

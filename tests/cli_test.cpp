@@ -1,62 +1,19 @@
 // End-to-end tests: the built gutterwatt executable run as a user would run it.
 
 #include <gtest/gtest.h>
-#include <sys/wait.h>
 
-#include <cstdlib>
 #include <filesystem>
 #include <fstream>
 #include <nlohmann/json.hpp>
-#include <sstream>
 #include <string>
 
+#include "cli_support.hpp"
+
 namespace fs = std::filesystem;
-
-namespace {
-
-struct Outcome {
-  int status;
-  std::string out;
-  std::string err;
-};
-
-std::string slurp(const fs::path& p) {
-  std::ifstream in(p, std::ios::binary);
-  std::ostringstream s;
-  s << in.rdbuf();
-  return s.str();
-}
-
-fs::path scratch(const std::string& name) {
-  const fs::path dir = fs::temp_directory_path() / ("gutterwatt-cli-" + name);
-  fs::remove_all(dir);
-  fs::create_directories(dir);
-  return dir;
-}
-
-Outcome run(const std::string& args, const fs::path& dir) {
-  const fs::path out = dir / "stdout.txt";
-  const fs::path err = dir / "stderr.txt";
-  const std::string cmd = std::string(GUTTERWATT_EXE) + " " + args + " >" + out.string() + " 2>" +
-                          err.string() + " </dev/null";
-  const int raw = std::system(cmd.c_str());
-  return {WIFEXITED(raw) ? WEXITSTATUS(raw) : -1, slurp(out), slurp(err)};
-}
-
-std::string source(const std::string& rel) {
-  return std::string(GUTTERWATT_SOURCE_DIR) + "/" + rel;
-}
-
-int lines(const std::string& s) {
-  int n = 0;
-  for (char c : s) n += c == '\n';
-  return n;
-}
-
-}  // namespace
+using namespace gutterwatt::cli_support;
 
 TEST(Cli, DemoRunWritesThreeFilesWithEnergyAndAClosedBalance) {
-  const fs::path dir = scratch("demo");
+  const fs::path dir = scratch("cli-demo");
   const Outcome r =
       run("run " + source("scenarios/demo.yaml") + " --out " + (dir / "out").string(), dir);
   ASSERT_EQ(r.status, 0) << r.err;
@@ -94,7 +51,7 @@ TEST(Cli, DemoRunWritesThreeFilesWithEnergyAndAClosedBalance) {
 }
 
 TEST(Cli, CheckPrintsFiguresWarningsAndCautions) {
-  const fs::path dir = scratch("check");
+  const fs::path dir = scratch("cli-check");
   const Outcome r = run("check " + source("scenarios/demo.yaml"), dir);
   ASSERT_EQ(r.status, 0) << r.err;
   for (const char* s :
@@ -107,7 +64,7 @@ TEST(Cli, CheckPrintsFiguresWarningsAndCautions) {
 }
 
 TEST(Cli, MisspeltKeyIsOneLineExitTwoNamingFileLineAndKey) {
-  const fs::path dir = scratch("misspelt");
+  const fs::path dir = scratch("cli-misspelt");
   std::string text = slurp(source("scenarios/demo.yaml"));
   const std::string good = "runoff_coefficient";
   text.replace(text.find(good), good.size(), "runof_coefficient");
@@ -123,7 +80,7 @@ TEST(Cli, MisspeltKeyIsOneLineExitTwoNamingFileLineAndKey) {
 }
 
 TEST(Cli, FailedRunLeavesEarlierResultsUntouched) {
-  const fs::path dir = scratch("untouched");
+  const fs::path dir = scratch("cli-untouched");
   const fs::path out = dir / "out";
   ASSERT_EQ(
       run("run " + source("scenarios/demo.yaml") + " --quiet --out " + out.string(), dir).status,
@@ -140,14 +97,14 @@ TEST(Cli, FailedRunLeavesEarlierResultsUntouched) {
 }
 
 TEST(Cli, UnknownCommandIsExitTwo) {
-  const fs::path dir = scratch("unknown");
+  const fs::path dir = scratch("cli-unknown");
   const Outcome r = run("simulate x.yaml", dir);
   EXPECT_EQ(r.status, 2);
   EXPECT_EQ(lines(r.err), 1) << r.err;
 }
 
 TEST(Cli, StormFileRunsUnchangedAsARainFile) {
-  const fs::path dir = scratch("storm");
+  const fs::path dir = scratch("cli-storm");
   ASSERT_EQ(run("storm --kind nrcs-II --depth 40 --duration 24h --step 5min --start "
                 "2025-06-01T00:00 --out " +
                     (dir / "storm.csv").string(),

@@ -1,0 +1,178 @@
+#pragma once
+/// Helpers of the end-to-end tests: run the built gutterwatt executable as a user would, in the
+/// foreground or in the background (to signal it), and read what it wrote.
+
+#include <fcntl.h>
+#include <signal.h>
+#include <spawn.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <chrono>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+#include <optional>
+#include <sstream>
+#include <string>
+#include <thread>
+#include <vector>
+
+extern char** environ;
+
+namespace gutterwatt::cli_support {
+
+namespace fs = std::filesystem;
+
+/// Exit status (-1 when killed by a signal) and the text on stdout and stderr.
+struct Outcome {
+  int status;
+  std::string out;
+  std::string err;
+};
+
+inline std::string slurp(const fs::path& p) {
+  std::ifstream in(p, std::ios::binary);
+  std::ostringstream s;
+  s << in.rdbuf();
+  return s.str();
+}
+
+inline void write_file(const fs::path& p, const std::string& text) {
+  std::ofstream(p, std::ios::binary) << text;
+}
+
+/// The folders scratch() made, removed when the test program ends (kept when the environment
+/// sets GUTTERWATT_KEEP_SCRATCH, to look at after a failure).
+class ScratchFolders {
+ public:
+  ScratchFolders() = default;
+  ScratchFolders(const ScratchFolders&) = delete;
+  ScratchFolders& operator=(const ScratchFolders&) = delete;
+  ~ScratchFolders() {
+    if (std::getenv("GUTTERWATT_KEEP_SCRATCH") != nullptr) return;
+    for (const fs::path& dir : dirs_) {
+      std::error_code ec;
+      fs::remove_all(dir, ec);
+    }
+  }
+  void add(const fs::path& dir) { dirs_.push_back(dir); }
+
+ private:
+  std::vector<fs::path> dirs_;
+};
+
+inline ScratchFolders& scratch_folders() {
+  static ScratchFolders folders;
+  return folders;
+}
+
+/// A fresh, empty folder for one test, unique to this process so that concurrent test runs in
+/// several build folders do not share it.
+inline fs::path scratch(const std::string& name) {
+  const fs::path dir =
+      fs::temp_directory_path() / ("gutterwatt-" + name + "-" + std::to_string(::getpid()));
+  fs::remove_all(dir);
+  fs::create_directories(dir);
+  scratch_folders().add(dir);
+  return dir;
+}
+
+/// Runs `command` in a shell with stdin from /dev/null, keeping its output in files in `dir`.
+inline Outcome shell(const std::string& command, const fs::path& dir) {
+  const fs::path out = dir / "stdout.txt";
+  const fs::path err = dir / "stderr.txt";
+  const std::string cmd =
+      "(" + command + ") >" + out.string() + " 2>" + err.string() + " </dev/null";
+  const int raw = std::system(cmd.c_str());
+  return {WIFEXITED(raw) ? WEXITSTATUS(raw) : -1, slurp(out), slurp(err)};
+}
+
+/// Runs gutterwatt with `args` (a shell command line after the program name).
+inline Outcome run(const std::string& args, const fs::path& dir) {
+  return shell(std::string(GUTTERWATT_EXE) + " " + args, dir);
+}
+
+/// A file of the source tree, by its path relative to the top.
+inline std::string source(const std::string& rel) {
+  return std::string(GUTTERWATT_SOURCE_DIR) + "/" + rel;
+}
+
+inline int lines(const std::string& s) {
+  int n = 0;
+  for (char c : s) n += c == '\n';
+  return n;
+}
+
+/// gutterwatt started in the background, stdout and stderr going to files in `dir`, with
+/// SIGINT and SIGTERM at their defaults and unblocked whatever the test runner set.
+class Child {
+ public:
+  Child(const std::vector<std::string>& args, const fs::path& dir)
+      : out_(dir / "stdout.txt"), err_(dir / "stderr.txt") {
+    std::vector<std::string> all{GUTTERWATT_EXE};
+    all.insert(all.end(), args.begin(), args.end());
+    std::vector<char*> argv;
+    for (std::string& a : all) argv.push_back(a.data());
+    argv.push_back(nullptr);
+    posix_spawn_file_actions_t files;
+    posix_spawn_file_actions_init(&files);
+    posix_spawn_file_actions_addopen(&files, 0, "/dev/null", O_RDONLY, 0);
+    posix_spawn_file_actions_addopen(&files, 1, out_.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+    posix_spawn_file_actions_addopen(&files, 2, err_.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+    posix_spawnattr_t attr;
+    posix_spawnattr_init(&attr);
+    sigset_t none;
+    sigemptyset(&none);
+    sigset_t defaults;
+    sigemptyset(&defaults);
+    sigaddset(&defaults, SIGINT);
+    sigaddset(&defaults, SIGTERM);
+    posix_spawnattr_setsigmask(&attr, &none);
+    posix_spawnattr_setsigdefault(&attr, &defaults);
+    posix_spawnattr_setflags(&attr, POSIX_SPAWN_SETSIGMASK | POSIX_SPAWN_SETSIGDEF);
+    if (posix_spawn(&pid_, argv[0], &files, &attr, argv.data(), environ) != 0) pid_ = -1;
+    posix_spawnattr_destroy(&attr);
+    posix_spawn_file_actions_destroy(&files);
+  }
+
+  Child(const Child&) = delete;
+  Child& operator=(const Child&) = delete;
+
+  /// Kills a child still running when the test ends (a failed test must not leave it behind).
+  ~Child() {
+    if (pid_ > 0 && !status_) {
+      ::kill(pid_, SIGKILL);
+      ::waitpid(pid_, nullptr, 0);
+    }
+  }
+
+  bool started() const { return pid_ > 0; }
+  void signal(int sig) const { ::kill(pid_, sig); }
+
+  /// The exit status once the child has ended (-1 when killed by a signal), or nullopt when it
+  /// is still running after `timeout`.
+  std::optional<int> wait_for(std::chrono::milliseconds timeout) {
+    const auto until = std::chrono::steady_clock::now() + timeout;
+    while (!status_) {
+      int raw = 0;
+      if (::waitpid(pid_, &raw, WNOHANG) == pid_) {
+        status_ = WIFEXITED(raw) ? WEXITSTATUS(raw) : -1;
+        break;
+      }
+      if (std::chrono::steady_clock::now() >= until) break;
+      std::this_thread::sleep_for(std::chrono::milliseconds(5));
+    }
+    return status_;
+  }
+
+  Outcome outcome() const { return {status_.value_or(-1), slurp(out_), slurp(err_)}; }
+
+ private:
+  fs::path out_;
+  fs::path err_;
+  pid_t pid_ = -1;
+  std::optional<int> status_;
+};
+
+}  // namespace gutterwatt::cli_support
