@@ -115,19 +115,20 @@ std::set<std::string> names_in(const fs::path& dir) {
 }
 
 // An output folder holding an earlier run's three files, with invented contents.
-fs::path earlier_results(const fs::path& dir) {
+const std::vector<std::string> kRunFiles = {"events.csv", "summary.json", "timeseries.csv"};
+
+fs::path earlier_results(const fs::path& dir, const std::vector<std::string>& names = kRunFiles) {
   const fs::path out = dir / "out";
   fs::create_directories(out);
-  for (const char* name : {"timeseries.csv", "events.csv", "summary.json"}) {
-    write_file(out / name, std::string("earlier ") + name + "\n");
-  }
+  for (const std::string& name : names) write_file(out / name, "earlier " + name + "\n");
   return out;
 }
 
-void expect_earlier_results_untouched(const fs::path& out) {
-  EXPECT_EQ(names_in(out), (std::set<std::string>{"events.csv", "summary.json", "timeseries.csv"}));
-  for (const char* name : {"timeseries.csv", "events.csv", "summary.json"}) {
-    EXPECT_EQ(slurp(out / name), std::string("earlier ") + name + "\n") << name;
+void expect_earlier_results_untouched(const fs::path& out,
+                                      const std::vector<std::string>& names = kRunFiles) {
+  EXPECT_EQ(names_in(out), std::set<std::string>(names.begin(), names.end()));
+  for (const std::string& name : names) {
+    EXPECT_EQ(slurp(out / name), "earlier " + name + "\n") << name;
   }
 }
 
@@ -481,6 +482,55 @@ TEST(BadRainDaily, IntensityValuesAreRefused) {
   expect_bad(check(s), s.scenario +
                            ":7: rain.value: must be depth for format: daily (got "
                            "intensity)");
+}
+
+// ---------------------------------------------------------------- rain: every reader at once
+
+TEST(BadRainReaders, EveryBadFileIsAnInputErrorNamingTheFileOnOneLine) {
+  using namespace gutterwatt;
+  const std::vector<std::string> bad = {
+      "",
+      "\n  \n# only a comment\n",
+      std::string("\x7f"
+                  "ELF\x02\x01\0\0\n",
+                  9),
+      std::string("\xFF\xFEt\0i\0m\0e\0\n\0", 12),
+      "time,rain_mm\n",
+      "when,amount\n2025-03-01,1\n",
+      "time,rain_mm\n2025-03-02,1\n2025-03-01,1\n",
+      "time,rain_mm\n2025-03-01T00:05Z,1\n2025-03-01T00:10,1\n",
+      "time,rain_mm\n\"2025-03-01,1\n",
+      "time,rain_mm\nnot a time,1\n",
+  };
+  SeriesFormat fmt;
+  fmt.step_s = 300.0;
+  using Reader = RainSeries (*)(std::istream&, const std::string&, const SeriesFormat&);
+  const std::vector<std::pair<const char*, Reader>> readers = {
+      {"series", [](std::istream& in, const std::string& label,
+                    const SeriesFormat& f) { return read_rain_series(in, label, f); }},
+      {"tips",
+       [](std::istream& in, const std::string& label, const SeriesFormat& f) {
+         return read_rain_tips(in, label, f, TipSpreading{0.2e-3, kDefaultTipCap_s});
+       }},
+      {"daily",
+       [](std::istream& in, const std::string& label, const SeriesFormat& f) {
+         return read_rain_daily(in, label, f, Disaggregation{});
+       }},
+  };
+  for (const auto& [format, read] : readers) {
+    for (const std::string& text : bad) {
+      std::istringstream in(text);
+      try {
+        read(in, "logger.csv", fmt);
+        ADD_FAILURE() << format << " took " << testing::PrintToString(text);
+      } catch (const InputError& e) {
+        const std::string what = e.what();
+        EXPECT_EQ(what.rfind("logger.csv:", 0), 0u) << format << ": " << what;
+        EXPECT_EQ(what.find('\n'), std::string::npos) << format << ": " << what;
+        EXPECT_FALSE(e.message().empty()) << format;
+      }
+    }
+  }
 }
 
 // ---------------------------------------------------------------- the scenario file
@@ -907,22 +957,10 @@ std::string long_rain(int years) {
   return text;
 }
 
-// Starts a long run over earlier results, sends `sig` once the run has begun writing (a new
-// entry in the output folder), and checks that it stops within 2 s with status 130, the earlier
-// results untouched and no temporary file left.
-void expect_prompt_stop(const std::string& name, int sig) {
-  const Site s = make_site(name, long_rain(10));
-  const fs::path out = earlier_results(s.dir);
-  const std::set<std::string> before = names_in(out);
-  Child child({"run", s.scenario, "--quiet", "--out", out.string()}, s.dir);
-  ASSERT_TRUE(child.started());
-  const auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(60);
-  while (names_in(out) == before && std::chrono::steady_clock::now() < deadline &&
-         !child.wait_for(std::chrono::milliseconds(0))) {
-    std::this_thread::sleep_for(std::chrono::milliseconds(5));
-  }
-  ASSERT_NE(names_in(out), before) << "the run never began writing: " << child.outcome().err;
-  std::this_thread::sleep_for(std::chrono::milliseconds(200));  // well inside the simulation
+// Sends `sig` to a running child and checks that it stops within 2 s with status 130, the
+// earlier results in `out` untouched and no temporary file left.
+void expect_prompt_stop(Child& child, int sig, const fs::path& out,
+                        const std::vector<std::string>& earlier) {
   ASSERT_FALSE(child.wait_for(std::chrono::milliseconds(0))) << "the run ended too soon";
   const auto sent = std::chrono::steady_clock::now();
   child.signal(sig);
@@ -934,17 +972,49 @@ void expect_prompt_stop(const std::string& name, int sig) {
   EXPECT_EQ(child.outcome().err,
             "gutterwatt: error: interrupted; earlier results in the output folder are "
             "untouched\n");
-  expect_earlier_results_untouched(out);
+  expect_earlier_results_untouched(out, earlier);
+}
+
+// Starts a long run over earlier results and signals it once it has begun writing (a new entry
+// in the output folder), well inside the simulation.
+void expect_run_stops(const std::string& name, int sig) {
+  const Site s = make_site(name, long_rain(10));
+  const fs::path out = earlier_results(s.dir);
+  const std::set<std::string> before = names_in(out);
+  Child child({"run", s.scenario, "--quiet", "--out", out.string()}, s.dir);
+  ASSERT_TRUE(child.started());
+  const auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(60);
+  while (names_in(out) == before && std::chrono::steady_clock::now() < deadline &&
+         !child.wait_for(std::chrono::milliseconds(0))) {
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+  }
+  ASSERT_NE(names_in(out), before) << "the run never began writing: " << child.outcome().err;
+  std::this_thread::sleep_for(std::chrono::milliseconds(200));
+  expect_prompt_stop(child, sig, out, kRunFiles);
 }
 
 }  // namespace
 
 TEST(RunFaults, SigintStopsALongRunPromptlyAndKeepsEarlierResults) {
-  expect_prompt_stop("fault-sigint", SIGINT);
+  expect_run_stops("fault-sigint", SIGINT);
 }
 
 TEST(RunFaults, SigtermStopsALongRunPromptlyAndKeepsEarlierResults) {
-  expect_prompt_stop("fault-sigterm", SIGTERM);
+  expect_run_stops("fault-sigterm", SIGTERM);
+}
+
+TEST(RunFaults, SigintStopsALongSweepPromptlyAndKeepsEarlierResults) {
+  // A sweep writes only at the end, so the signal goes after a second: by then the record
+  // (read in a fraction of that) is read and the first combinations are running.
+  const Site s = make_site("fault-sweep", long_rain(10));
+  const std::vector<std::string> earlier = {"skipped.csv", "sweep.csv", "sweep.json"};
+  const fs::path out = earlier_results(s.dir, earlier);
+  Child child({"sweep", s.scenario, "--vary", "release.trigger_level_mm=40,45", "--jobs", "1",
+               "--quiet", "--out", out.string()},
+              s.dir);
+  ASSERT_TRUE(child.started());
+  std::this_thread::sleep_for(std::chrono::seconds(1));
+  expect_prompt_stop(child, SIGINT, out, earlier);
 }
 
 TEST(RunFaults, StopFlagInterruptsTheSimulation) {
