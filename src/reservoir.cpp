@@ -55,6 +55,20 @@ ReservoirGeometry::ReservoirGeometry(const ReservoirConfig& config)
       level_table_[static_cast<std::size_t>(k + 1)] = w < 0.0 ? -h : h;
     }
   }
+  if (shape_ == ReservoirShape::half_round) {
+    // Above a shallow start the level is smooth in the volume: a uniform table in V serves there
+    // without the cube root and the Newton step the shallow part needs.
+    constexpr int kNodes = 4096;
+    const double r = 0.5 * width_m_;
+    volume_table_start_m3_ = circular_segment_area_m2(r, std::min(0.1 * r, rim_m_)) * length_m_;
+    const double top = circular_segment_area_m2(r, rim_m_) * length_m_;
+    volume_table_step_m3_ = (top - volume_table_start_m3_) / kNodes;
+    volume_table_.resize(kNodes + 3);
+    for (int k = -1; k <= kNodes + 1; ++k) {
+      const double v = volume_table_start_m3_ + k * volume_table_step_m3_;
+      volume_table_[static_cast<std::size_t>(k + 1)] = solve_half_round_level_m(v / length_m_);
+    }
+  }
   rim_area_m2_ = section_area_m2(rim_m_);
   rim_volume_m3_ = section_volume_m3(rim_m_);
 }
@@ -125,6 +139,16 @@ double ReservoirGeometry::level_m(double volume_m3) const {
     }
     case ReservoirShape::half_round:
       break;
+  }
+  if (v >= volume_table_start_m3_ && volume_table_step_m3_ > 0.0) {
+    const double u = (v - volume_table_start_m3_) / volume_table_step_m3_;
+    const auto k = std::min(static_cast<std::size_t>(u), volume_table_.size() - 3);
+    const double t = u - static_cast<double>(k);
+    const double* f = &volume_table_[k];
+    const double a = t + 1.0, b = t - 1.0, c = t - 2.0;
+    return (-t * b * c * f[0] + 3.0 * a * b * c * f[1] - 3.0 * a * t * c * f[2] +
+            a * t * b * f[3]) /
+           6.0;
   }
   // Half-round: the level is an analytic function of w = A^(2/3) (A ~ (4/3) sqrt(2r) h^1.5 for
   // h << r), tabulated once; one Newton step on A(h) = A polishes the interpolated value.
