@@ -25,6 +25,7 @@ Plant::Plant(const Scenario& scenario)
   const double top =
       std::max({scenario.reservoir.rim_m, scenario.release.trigger_level_m, 1e-3}) + 0.1;
   table_step_m_ = top / kNodes;
+  table_per_m_ = kNodes / top;
   table_.resize(kNodes + 3);
   for (int k = -1; k <= kNodes + 1; ++k) {
     table_[static_cast<std::size_t>(k + 1)] = solve_full_flow_m3_per_s(k * table_step_m_);
@@ -33,7 +34,7 @@ Plant::Plant(const Scenario& scenario)
 
 double Plant::full_flow_m3_per_s(double level_m) const {
   const double level = std::max(0.0, level_m);
-  const double u = level / table_step_m_;
+  const double u = level * table_per_m_;
   const auto k = static_cast<std::size_t>(u);
   if (k + 3 >= table_.size()) return solve_full_flow_m3_per_s(level);
   // Lagrange cubic through the nodes k-1 .. k+2 (table index k .. k+3).

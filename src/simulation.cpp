@@ -185,10 +185,17 @@ class Engine {
 
  private:
   // Physics at one instant.
-  Rates rates(const State& x, const Mode& m, const Forcing& f) const;
+  Rates rates(const State& x, const Mode& m, const Forcing& f) const {
+    Rates r;
+    rates(x, m, f, r);
+    return r;
+  }
+  /// Fills `r` (every field) for state `x`: the solver's hot path, which must not copy Rates.
+  void rates(const State& x, const Mode& m, const Forcing& f, Rates& r) const;
   int guards(const State& x, const Mode& m, const Forcing& f, const Rates& r, Guards& g) const;
   void apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rates& r, double t);
-  void settle(State& x, Mode& m, const Forcing& f, double t);
+  /// Applies every switch already due; returns the rates and guards of the settled state.
+  Rates settle(State& x, Mode& m, const Forcing& f, double t, Guards& g);
   bool at_rest(const State& x, const Mode& m, const Forcing& f, double span_s) const;
 
   // Time.
@@ -233,8 +240,8 @@ class Engine {
   ScaledErrorChecker checker_;
 };
 
-Rates Engine::rates(const State& x, const Mode& m, const Forcing& f) const {
-  Rates r;
+void Engine::rates(const State& x, const Mode& m, const Forcing& f, Rates& r) const {
+  r = Rates{};
   State& d = r.dxdt;
   const double area = sc_.roof.area_m2;
   const double rain = f.rain_m_per_s * area;
@@ -319,7 +326,6 @@ Rates Engine::rates(const State& x, const Mode& m, const Forcing& f) const {
   d[kCurtailed] = r.battery.curtailed_W;
   d[kServed] = r.battery.served_W;
   d[kUnmet] = r.battery.unmet_W;
-  return r;
 }
 
 int Engine::guards(const State& x, const Mode& m, const Forcing& f, const Rates& r,
@@ -438,10 +444,9 @@ void Engine::apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rate
 }
 
 // Applies every switch whose guard is already below zero, so the mode matches the state.
-void Engine::settle(State& x, Mode& m, const Forcing& f, double t) {
+Rates Engine::settle(State& x, Mode& m, const Forcing& f, double t, Guards& g) {
   for (int pass = 0; pass < kMaxSwitchesAtOnce; ++pass) {
     const Rates r = rates(x, m, f);
-    Guards g;
     guards(x, m, f, r, g);
     int fired = -1;
     for (int k = 0; k < kGuardCount; ++k) {
@@ -450,7 +455,7 @@ void Engine::settle(State& x, Mode& m, const Forcing& f, double t) {
         break;
       }
     }
-    if (fired < 0) return;
+    if (fired < 0) return r;
     apply_switch(fired, x, m, f, r, t);
   }
   fail("the modes do not settle (switches chatter)", t);
@@ -539,7 +544,7 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
   Rates last;
   State last_x{};
   const auto system = [this, &f, &last, &last_x](const State& x, State& dxdt, double) {
-    last = rates(x, mode_, f);
+    rates(x, mode_, f, last);
     last_x = x;
     dxdt = last.dxdt;
   };
@@ -559,11 +564,8 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
       return;
     }
     if (fresh) {
-      settle(x_, mode_, f, now_s_);
+      update_peaks(settle(x_, mode_, f, now_s_, g_prev));
       stepper.initialize(x_, t, std::min(dt, span - t));
-      const Rates r = rates(x_, mode_, f);
-      guards(x_, mode_, f, r, g_prev);
-      update_peaks(r);
       fresh = false;
     } else if (stepper.current_time() + stepper.current_time_step() > span) {
       stepper.initialize(x_, t, span - t);
@@ -603,15 +605,28 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
       };
       double lo = step.first;
       double hi = t_switch;
-      if (guard_at(hi) >= 0.0) continue;  // crosses only after an earlier switch
-      // Bisection on the dense output to 1e-10 s: a switch is placed, not rounded to a step, and
-      // the accounts it splits move by less than 1e-9 of their size.
-      while (hi - lo > 1e-10) {
-        const double mid = 0.5 * (lo + hi);
-        if (guard_at(mid) < 0.0)
+      double g_lo = g_prev[k];
+      double g_hi = guard_at(hi);
+      if (g_hi >= 0.0) continue;  // crosses only after an earlier switch
+      // Illinois regula falsi on the dense output to 1e-10 s (Dowell & Jarratt 1971): a switch is
+      // placed, not rounded to a step, and the accounts it splits move by less than 1e-9 of their
+      // size. Bisection takes over when an interpolated point falls outside the bracket.
+      int side = 0;
+      for (int iter = 0; hi - lo > 1e-10; ++iter) {
+        double mid = iter < 60 ? hi - g_hi * (hi - lo) / (g_hi - g_lo) : 0.5 * (lo + hi);
+        if (!(mid > lo && mid < hi)) mid = 0.5 * (lo + hi);
+        const double g_mid = guard_at(mid);
+        if (g_mid < 0.0) {
           hi = mid;
-        else
+          g_hi = g_mid;
+          if (side == -1) g_lo *= 0.5;
+          side = -1;
+        } else {
           lo = mid;
+          g_lo = g_mid;
+          if (side == 1) g_hi *= 0.5;
+          side = 1;
+        }
       }
       t_switch = hi;
       first = k;

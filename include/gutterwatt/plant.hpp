@@ -68,6 +68,7 @@ class Plant {
   double density_kg_per_m3_;
   double kinematic_viscosity_m2_per_s_;
   double table_step_m_ = 0.0;
+  double table_per_m_ = 0.0;   ///< 1 / table_step_m_
   std::vector<double> table_;  ///< full flow at levels k * table_step_m_, k = -1 .. n + 1
 };
 
