@@ -1,6 +1,7 @@
 #include "gutterwatt/rain_input.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cassert>
 #include <charconv>
 #include <cmath>
@@ -359,7 +360,8 @@ class StampReader {
       }
       // Built only on the error paths: this runs once per row of records of millions.
       const auto previous = [this] {
-        return quoted(previous_text_) + " (line " + std::to_string(previous_line_) + ")";
+        return quoted(std::string_view(previous_text_.data(), previous_size_)) + " (line " +
+               std::to_string(previous_line_) + ")";
       };
       if (parsed->instant == previous_ && !words_.repeats_allowed) {
         throw InputError(file_, line_number, column_,
@@ -375,7 +377,9 @@ class StampReader {
     ++count_;
     previous_ = parsed->instant;
     previous_line_ = line_number;
-    previous_text_.assign(text);
+    // A stamp longer than the buffer is cut in the message only; it parsed, so it is sane.
+    previous_size_ = std::min(text.size(), previous_text_.size());
+    std::memcpy(previous_text_.data(), text.data(), previous_size_);
     return *parsed;
   }
 
@@ -389,7 +393,8 @@ class StampReader {
   int previous_line_ = 0;
   bool first_has_offset_ = false;
   int first_line_ = 0;
-  std::string previous_text_;
+  std::array<char, 64> previous_text_{};  // no allocation per row
+  std::size_t previous_size_ = 0;
 };
 
 // Reads the header (the first line that is neither blank nor a comment) and hands each data row
