@@ -94,9 +94,22 @@ std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offse
       !read_digits(text, 5, 2, month) || text[7] != '-' || !read_digits(text, 8, 2, day)) {
     return std::nullopt;
   }
-  const date::year_month_day ymd{date::year{year}, date::month{static_cast<unsigned>(month)},
-                                 date::day{static_cast<unsigned>(day)}};
-  if (!ymd.ok()) return std::nullopt;
+  // Records hold many stamps of one day in a row: the day's number is kept from the last call.
+  thread_local int cached_year = 0, cached_month = 0, cached_day = 0;
+  thread_local std::int64_t cached_days = 0;
+  std::int64_t days = 0;
+  if (year == cached_year && month == cached_month && day == cached_day) {
+    days = cached_days;
+  } else {
+    const date::year_month_day ymd{date::year{year}, date::month{static_cast<unsigned>(month)},
+                                   date::day{static_cast<unsigned>(day)}};
+    if (!ymd.ok()) return std::nullopt;
+    days = days_from_civil(ymd);
+    cached_year = year;
+    cached_month = month;
+    cached_day = day;
+    cached_days = days;
+  }
 
   int hour = 0;
   int minute = 0;
@@ -142,7 +155,7 @@ std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offse
     parsed.offset_s = *offset;
   }
   const std::int64_t local =
-      days_from_civil(ymd) * kSecondsPerDayInt + hour * 3600 + minute * 60 + second + round_up;
+      days * kSecondsPerDayInt + hour * 3600 + minute * 60 + second + round_up;
   parsed.instant = local - parsed.offset_s;
   return parsed;
 }

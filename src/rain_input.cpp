@@ -5,6 +5,7 @@
 #include <cassert>
 #include <charconv>
 #include <cmath>
+#include <cstdint>
 #include <cstdio>
 #include <cstring>
 #include <limits>
@@ -242,8 +243,10 @@ std::vector<std::size_t> find_columns(std::string_view line, int line_number,
 void take_fields(std::string_view line, int line_number, const std::string& file_label,
                  const std::vector<std::size_t>& indexes, const std::vector<std::string>& columns,
                  std::size_t header_fields, std::vector<std::string_view>& fields) {
-  const std::size_t last_index = *std::max_element(indexes.begin(), indexes.end());
-  fields.assign(indexes.size(), {});
+  const std::size_t last_index = indexes.size() == 2
+                                     ? std::max(indexes[0], indexes[1])
+                                     : *std::max_element(indexes.begin(), indexes.end());
+  fields.resize(indexes.size());
   std::string_view rest = line;
   bool more = true;
   std::size_t index = 0;
@@ -274,8 +277,36 @@ void take_fields(std::string_view line, int line_number, const std::string& file
 }
 
 // A depth or intensity as written: finite and not negative; too small for a double is no rain.
+// Plain decimals ("0", "0.25", "12.7") as most records write them, without from_chars: with at
+// most 15 digits the digits form an exact integer m and m / 10^k, one correctly rounded division
+// of exact operands, is the nearest double to the decimal (Clinger 1990, How to read floating
+// point numbers accurately, PLDI). Returns false for anything else.
+bool parse_plain_decimal(std::string_view text, double& value) {
+  static constexpr double kPowersOfTen[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                            1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+  std::uint64_t mantissa = 0;
+  int digits = 0;
+  int decimals = -1;
+  for (const char c : text) {
+    if (c >= '0' && c <= '9') {
+      mantissa = mantissa * 10 + static_cast<std::uint64_t>(c - '0');
+      if (++digits > 15) return false;
+      if (decimals >= 0) ++decimals;
+    } else if (c == '.' && decimals < 0) {
+      decimals = 0;
+    } else {
+      return false;
+    }
+  }
+  if (digits == 0) return false;
+  value = static_cast<double>(mantissa) / kPowersOfTen[decimals < 0 ? 0 : decimals];
+  return true;
+}
+
 double parse_amount(std::string_view text, const std::string& file_label, int line_number,
                     const std::string& column) {
+  double plain = 0.0;
+  if (parse_plain_decimal(text, plain)) return plain;
   std::string_view digits = text;
   if (digits.size() > 1 && digits.front() == '+') digits.remove_prefix(1);
   double value = 0.0;

@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <charconv>
 #include <cstdio>
 #include <fstream>
 #include <sstream>
@@ -1058,3 +1059,34 @@ TEST(RainCoverage, IsEmptyForAnEmptyPeriod) {
 
 }  // namespace
 }  // namespace gutterwatt
+
+TEST(RainSeries, PlainDecimalsReadAsTheNearestDouble) {
+  // The reader's fast path for plain decimals must give what std::from_chars gives (the nearest
+  // double, C++17 [charconv]) for every form, including ones it hands on to from_chars. Rows a
+  // billion seconds apart keep even the large values plausible as intensities.
+  const char* const values[] = {"0",     "0.1",           "0.30", "12.7",  "0.0001",
+                                "999.5", "123456789.012", "1e-2", "+0.25", "0.333333333333333333"};
+  constexpr gutterwatt::Instant kStep = 1000000000;
+  std::string csv = "time,rain_mm\n";
+  gutterwatt::Instant t = 1740787200;
+  for (const char* v : values) {
+    csv += gutterwatt::format_iso8601(t) + "," + v + "\n";
+    t += kStep;
+  }
+  gutterwatt::SeriesFormat fmt;
+  fmt.step_s = static_cast<double>(kStep);
+  std::istringstream in(csv);
+  const gutterwatt::RainSeries rain = gutterwatt::read_rain_series(in, "plain.csv", fmt);
+  std::size_t pulse = 0;
+  for (const char* v : values) {
+    std::string_view text(v);
+    if (text.front() == '+') text.remove_prefix(1);
+    double expected = 0.0;
+    std::from_chars(text.data(), text.data() + text.size(), expected);
+    if (expected == 0.0) continue;
+    ASSERT_LT(pulse, rain.pulses.size());
+    EXPECT_EQ(rain.pulses[pulse].depth_m, expected * 1e-3) << v;
+    ++pulse;
+  }
+  EXPECT_EQ(pulse, rain.pulses.size());
+}
