@@ -21,28 +21,15 @@ Plant::Plant(const Scenario& scenario)
           water_kinematic_viscosity_m2_per_s(scenario.site.temperature_C)) {
   // The full flow is needed at every solver stage while the release runs; solving the friction
   // law there dominated the run time, so it is tabulated once over the levels a run can reach.
-  constexpr int kNodes = 1024;
   const double top =
       std::max({scenario.reservoir.rim_m, scenario.release.trigger_level_m, 1e-3}) + 0.1;
-  table_step_m_ = top / kNodes;
-  table_per_m_ = kNodes / top;
-  table_.resize(kNodes + 3);
-  for (int k = -1; k <= kNodes + 1; ++k) {
-    table_[static_cast<std::size_t>(k + 1)] = solve_full_flow_m3_per_s(k * table_step_m_);
-  }
+  full_flow_table_ = UniformTable(0.0, top, 1024,
+                                  [this](double level) { return solve_full_flow_m3_per_s(level); });
 }
 
 double Plant::full_flow_m3_per_s(double level_m) const {
   const double level = std::max(0.0, level_m);
-  const double u = level * table_per_m_;
-  const auto k = static_cast<std::size_t>(u);
-  if (k + 3 >= table_.size()) return solve_full_flow_m3_per_s(level);
-  // Lagrange cubic through the nodes k-1 .. k+2 (table index k .. k+3).
-  const double t = u - static_cast<double>(k);
-  const double* f = &table_[k];
-  const double a = t + 1.0, b = t - 1.0, c = t - 2.0;
-  return (-t * b * c * f[0] + 3.0 * a * b * c * f[1] - 3.0 * a * t * c * f[2] + a * t * b * f[3]) /
-         6.0;
+  return full_flow_table_.covers(level) ? full_flow_table_(level) : solve_full_flow_m3_per_s(level);
 }
 
 double Plant::solve_full_flow_m3_per_s(double level_m) const {

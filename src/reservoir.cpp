@@ -44,29 +44,20 @@ ReservoirGeometry::ReservoirGeometry(const ReservoirConfig& config)
     }
   }
   if (shape_ == ReservoirShape::half_round) {
-    // Table of the level at w = A^(2/3), nodes k = -1 .. n + 1 (the first mirrors w < 0).
-    constexpr int kNodes = 512;
-    const double w_top = std::pow(circular_segment_area_m2(0.5 * width_m_, rim_m_), 2.0 / 3.0);
-    level_table_step_ = w_top / kNodes;
-    level_table_.resize(kNodes + 3);
-    for (int k = -1; k <= kNodes + 1; ++k) {
-      const double w = k * level_table_step_;
+    const double r = 0.5 * width_m_;
+    // The level at w = A^(2/3), analytic in w down to 0 (the first node mirrors w < 0).
+    const double w_top = std::pow(circular_segment_area_m2(r, rim_m_), 2.0 / 3.0);
+    shallow_table_ = UniformTable(0.0, w_top, 512, [this](double w) {
       const double h = solve_half_round_level_m(std::abs(w) * std::sqrt(std::abs(w)));
-      level_table_[static_cast<std::size_t>(k + 1)] = w < 0.0 ? -h : h;
-    }
-  }
-  if (shape_ == ReservoirShape::half_round) {
+      return w < 0.0 ? -h : h;
+    });
     // Above a shallow start the level is smooth in the volume: a uniform table in V serves there
     // without the cube root and the Newton step the shallow part needs.
-    constexpr int kNodes = 4096;
-    const double r = 0.5 * width_m_;
-    volume_table_start_m3_ = circular_segment_area_m2(r, std::min(0.1 * r, rim_m_)) * length_m_;
-    const double top = circular_segment_area_m2(r, rim_m_) * length_m_;
-    volume_table_step_m3_ = (top - volume_table_start_m3_) / kNodes;
-    volume_table_.resize(kNodes + 3);
-    for (int k = -1; k <= kNodes + 1; ++k) {
-      const double v = volume_table_start_m3_ + k * volume_table_step_m3_;
-      volume_table_[static_cast<std::size_t>(k + 1)] = solve_half_round_level_m(v / length_m_);
+    volume_table_start_m3_ = circular_segment_area_m2(r, 0.1 * r) * length_m_;
+    if (rim_m_ > 0.1 * r) {
+      volume_table_ =
+          UniformTable(volume_table_start_m3_, circular_segment_area_m2(r, rim_m_) * length_m_,
+                       4096, [this](double v) { return solve_half_round_level_m(v / length_m_); });
     }
   }
   rim_area_m2_ = section_area_m2(rim_m_);
@@ -140,29 +131,13 @@ double ReservoirGeometry::level_m(double volume_m3) const {
     case ReservoirShape::half_round:
       break;
   }
-  if (v >= volume_table_start_m3_ && volume_table_step_m3_ > 0.0) {
-    const double u = (v - volume_table_start_m3_) / volume_table_step_m3_;
-    const auto k = std::min(static_cast<std::size_t>(u), volume_table_.size() - 3);
-    const double t = u - static_cast<double>(k);
-    const double* f = &volume_table_[k];
-    const double a = t + 1.0, b = t - 1.0, c = t - 2.0;
-    return (-t * b * c * f[0] + 3.0 * a * b * c * f[1] - 3.0 * a * t * c * f[2] +
-            a * t * b * f[3]) /
-           6.0;
-  }
-  // Half-round: the level is an analytic function of w = A^(2/3) (A ~ (4/3) sqrt(2r) h^1.5 for
-  // h << r), tabulated once; one Newton step on A(h) = A polishes the interpolated value.
+  if (v >= volume_table_start_m3_ && volume_table_.covers(v)) return volume_table_(v);
+  // Half-round, shallow: the level is an analytic function of w = A^(2/3) (A ~ (4/3) sqrt(2r)
+  // h^1.5 for h << r), tabulated once; one Newton step on A(h) = A polishes the value.
   const double r = 0.5 * width_m_;
   const double area = v / length_m_;
   const double w = std::cbrt(area) * std::cbrt(area);
-  const double u = w / level_table_step_;
-  const auto k = std::min(static_cast<std::size_t>(u), level_table_.size() - 3);
-  const double t = u - static_cast<double>(k);
-  const double* f = &level_table_[k];
-  const double a = t + 1.0, b = t - 1.0, c = t - 2.0;
-  double h =
-      (-t * b * c * f[0] + 3.0 * a * b * c * f[1] - 3.0 * a * t * c * f[2] + a * t * b * f[3]) /
-      6.0;
+  double h = shallow_table_(w);
   h = std::clamp(h, 0.0, rim_m_);
   const double width = segment_width_m(r, h);
   if (width > 0.0) h -= (circular_segment_area_m2(r, h) - area) / width;

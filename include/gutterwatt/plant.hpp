@@ -5,6 +5,7 @@
 #include <optional>
 #include <vector>
 
+#include "gutterwatt/interpolation.hpp"
 #include "gutterwatt/scenario.hpp"
 
 namespace gutterwatt {
@@ -29,7 +30,7 @@ class Plant {
   /// Flow the conveyance carries with the release running full and the reservoir at `level_m`:
   /// nozzle-controlled without a head column, free outfall into the column top with one.
   /// Interpolated (4-point cubic, relative error below 1e-9) from a table solved once up to
-  /// `table_top_m`, solved directly above it.
+  /// 0.1 m above the rim, solved directly above that.
   double full_flow_m3_per_s(double level_m) const;
   /// The same flow solved directly (Darcy-Weisbach with the chosen friction law).
   double solve_full_flow_m3_per_s(double level_m) const;
@@ -67,9 +68,7 @@ class Plant {
   double cut_in_W_;
   double density_kg_per_m3_;
   double kinematic_viscosity_m2_per_s_;
-  double table_step_m_ = 0.0;
-  double table_per_m_ = 0.0;   ///< 1 / table_step_m_
-  std::vector<double> table_;  ///< full flow at levels k * table_step_m_, k = -1 .. n + 1
+  UniformTable full_flow_table_;
 };
 
 }  // namespace gutterwatt

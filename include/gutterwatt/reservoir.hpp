@@ -4,6 +4,7 @@
 
 #include <vector>
 
+#include "gutterwatt/interpolation.hpp"
 #include "gutterwatt/scenario.hpp"
 
 namespace gutterwatt {
@@ -42,11 +43,9 @@ class ReservoirGeometry {
   std::vector<double> volumes_m3_;  ///< table: volume at each tabulated level
   double rim_volume_m3_;
   double rim_area_m2_;
-  double level_table_step_ = 0.0;       ///< half-round: node spacing in w = A^(2/3)
-  std::vector<double> level_table_;     ///< half-round: level at w = k * step, k = -1 .. n + 1
-  double volume_table_start_m3_ = 0.0;  ///< half-round: first volume of the uniform-V table
-  double volume_table_step_m3_ = 0.0;
-  std::vector<double> volume_table_;  ///< half-round: level at start + k * step, k = -1 .. n + 1
+  UniformTable shallow_table_;  ///< half-round: level against w = A^(2/3)
+  double volume_table_start_m3_ = 0.0;
+  UniformTable volume_table_;  ///< half-round: level against volume above 10 % of the radius
 };
 
 /// Wetted cross-section of a circle of radius `radius_m` filled to depth `depth_m` (0..2r):
