@@ -1321,6 +1321,21 @@ std::string number_label(double v) {
   return pretty(v, false);
 }
 
+// Labels for the values of a varied key with the decimals they share (1, 1.5, 2 print as 1.0, 1.5,
+// 2.0), so an axis reads evenly.
+std::vector<std::string> shared_decimal_labels(const std::vector<double>& values) {
+  int decimals = 0;
+  for (; decimals < 6; ++decimals) {
+    const double scale = std::pow(10.0, decimals);
+    bool exact = true;
+    for (double v : values) exact = exact && std::fabs(v * scale - std::round(v * scale)) < 1e-6;
+    if (exact) break;
+  }
+  std::vector<std::string> labels;
+  for (double v : values) labels.push_back(decimals < 6 ? fixed(v, decimals) : number_label(v));
+  return labels;
+}
+
 struct HeatGrid {
   std::string x_name, y_name;
   std::vector<double> xs, ys;
@@ -1331,6 +1346,8 @@ struct HeatGrid {
 /// `decimals`: for the values written in the cells.
 std::string heat_svg(const std::string& id, const std::string& title, const std::string& unit,
                      const HeatGrid& grid, const std::array<const char*, 9>& ramp, int decimals) {
+  const std::vector<std::string> x_labels = shared_decimal_labels(grid.xs);
+  const std::vector<std::string> y_labels = shared_decimal_labels(grid.ys);
   const std::size_t nx = grid.xs.size();
   const std::size_t ny = grid.ys.size();
   const double left = 130.0;
@@ -1362,7 +1379,7 @@ std::string heat_svg(const std::string& id, const std::string& title, const std:
   for (std::size_t yi = 0; yi < ny; ++yi) {
     const double y0 = top + plot_h - cell_h * static_cast<double>(yi + 1);
     if (yi % y_every == 0) {
-      svg_text(out, left - 8.0, y0 + cell_h / 2.0 + 4.0, number_label(grid.ys[yi]), "end", "tick");
+      svg_text(out, left - 8.0, y0 + cell_h / 2.0 + 4.0, y_labels[yi], "end", "tick");
     }
     for (std::size_t xi = 0; xi < nx; ++xi) {
       const double x0 = left + cell_w * static_cast<double>(xi);
@@ -1383,7 +1400,7 @@ std::string heat_svg(const std::string& id, const std::string& title, const std:
   }
   for (std::size_t xi = 0; xi < nx; xi += x_every) {
     svg_text(out, left + cell_w * (static_cast<double>(xi) + 0.5), top + plot_h + 17.0,
-             number_label(grid.xs[xi]), "middle", "tick");
+             x_labels[xi], "middle", "tick");
   }
   svg_text(out, left + plot_w / 2.0, top + plot_h + 40.0, escape(grid.x_name) + " &#8594;",
            "middle", "axis");
