@@ -7,6 +7,7 @@
 
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/plant.hpp"
+#include "gutterwatt/release.hpp"
 #include "gutterwatt/reservoir.hpp"
 #include "gutterwatt/simulation.hpp"
 #include "gutterwatt/siphon.hpp"
@@ -104,7 +105,7 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
   const auto release_flow = [&](double level_m) {
     const double full = plant.full_flow_m3_per_s(level_m);
     if (rel.kind == ReleaseKind::float_valve || rel.kind == ReleaseKind::orifice) {
-      return std::min(full, orifice_flow_m3_per_s(rel.orifice_coefficient, orifice_area, level_m));
+      return floor_orifice_flow_m3_per_s(rel.orifice_coefficient, orifice_area, level_m, full);
     }
     return rel.kind == ReleaseKind::none ? 0.0 : full;
   };

@@ -1,7 +1,5 @@
 #include "gutterwatt/float_valve.hpp"
 
-#include <algorithm>
-
 #include "gutterwatt/hydraulics.hpp"
 
 namespace gutterwatt {
@@ -19,8 +17,8 @@ ReleaseState FloatValve::initial_state(double level_m) const {
 double FloatValve::outflow_m3_per_s(ReleaseState state, double level_m,
                                     double full_flow_m3_per_s) const {
   if (state != ReleaseState::open) return 0.0;
-  return std::min(orifice_flow_m3_per_s(orifice_coefficient_, orifice_area_m2_, level_m),
-                  full_flow_m3_per_s);
+  return floor_orifice_flow_m3_per_s(orifice_coefficient_, orifice_area_m2_, level_m,
+                                     full_flow_m3_per_s);
 }
 
 int FloatValve::guards(ReleaseState state, double level_m, double, Guard* out) const {

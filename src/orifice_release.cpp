@@ -1,7 +1,5 @@
 #include "gutterwatt/orifice_release.hpp"
 
-#include <algorithm>
-
 #include "gutterwatt/hydraulics.hpp"
 
 namespace gutterwatt {
@@ -17,8 +15,8 @@ ReleaseState OrificeRelease::initial_state(double level_m) const {
 double OrificeRelease::outflow_m3_per_s(ReleaseState state, double level_m,
                                         double full_flow_m3_per_s) const {
   if (state != ReleaseState::open) return 0.0;
-  return std::min(orifice_flow_m3_per_s(orifice_coefficient_, orifice_area_m2_, level_m),
-                  full_flow_m3_per_s);
+  return floor_orifice_flow_m3_per_s(orifice_coefficient_, orifice_area_m2_, level_m,
+                                     full_flow_m3_per_s);
 }
 
 int OrificeRelease::guards(ReleaseState state, double level_m, double, Guard* out) const {

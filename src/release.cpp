@@ -1,6 +1,9 @@
 #include "gutterwatt/release.hpp"
 
+#include <algorithm>
+
 #include "gutterwatt/float_valve.hpp"
+#include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/orifice_release.hpp"
 #include "gutterwatt/siphon.hpp"
 
@@ -20,6 +23,11 @@ std::string_view release_state_name(ReleaseState state) {
       return "open";
   }
   return "idle";
+}
+
+double floor_orifice_flow_m3_per_s(double coefficient, double area_m2, double level_m,
+                                   double full_flow_m3_per_s) {
+  return std::min(orifice_flow_m3_per_s(coefficient, area_m2, level_m), full_flow_m3_per_s);
 }
 
 std::unique_ptr<Release> make_release(const ReleaseConfig& config) {

@@ -554,7 +554,6 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
   Dense stepper(Controlled(checker_, odeint::default_step_adjuster<double, double>(max_step)));
   double dt = std::min(span, last_step_s_);
   bool fresh = true;
-  State x_prev{};
   Guards g_prev{};
   while (t < span) {
     if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
@@ -570,7 +569,6 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
     } else if (stepper.current_time() + stepper.current_time_step() > span) {
       stepper.initialize(x_, t, span - t);
     }
-    x_prev = x_;
     std::pair<double, double> step;
     try {
       step = stepper.do_step(system);
@@ -679,50 +677,48 @@ void Engine::advance(Instant t0, Instant t1, const Forcing& f) {
   if (f.rain_m_per_s > 0.0) last_wet_s_ = now_s_;
 }
 
+// The account an episode's volume is measured on.
+Slot volume_slot(EpisodeKind kind) {
+  switch (kind) {
+    case EpisodeKind::cycle:
+      return kRelease;
+    case EpisodeKind::overflow:
+      return kReservoirOverflow;
+    case EpisodeKind::dribble:
+      return kDribble;
+    case EpisodeKind::column_overflow:
+      return kColumnOverflow;
+  }
+  return kRelease;
+}
+
 void Engine::open_episode(EpisodeKind kind, double t) {
   OpenEpisode& e = episodes_[static_cast<std::size_t>(kind)];
   e.open = true;
   e.start_s = t;
   e.peak = 0.0;
   e.start_energy_J = x_[kElectrical];
-  switch (kind) {
-    case EpisodeKind::cycle:
-      e.start_volume_m3 = x_[kRelease];
-      break;
-    case EpisodeKind::overflow:
-      e.start_volume_m3 = x_[kReservoirOverflow];
-      break;
-    case EpisodeKind::dribble:
-      e.start_volume_m3 = x_[kDribble];
-      break;
-    case EpisodeKind::column_overflow:
-      e.start_volume_m3 = x_[kColumnOverflow];
-      break;
-  }
+  e.start_volume_m3 = x_[volume_slot(kind)];
 }
 
 void Engine::close_episode(EpisodeKind kind, double t) {
   OpenEpisode& e = episodes_[static_cast<std::size_t>(kind)];
   if (!e.open) return;
   e.open = false;
-  double volume = 0.0;
+  const double volume = x_[volume_slot(kind)] - e.start_volume_m3;
   switch (kind) {
     case EpisodeKind::cycle:
-      volume = x_[kRelease] - e.start_volume_m3;
       ++result_.cycles;
       break;
     case EpisodeKind::overflow:
-      volume = x_[kReservoirOverflow] - e.start_volume_m3;
       ++result_.overflow_events;
       result_.overflow_s += t - e.start_s;
       break;
     case EpisodeKind::dribble:
-      volume = x_[kDribble] - e.start_volume_m3;
       ++result_.dribble_episodes;
       result_.dribble_s += t - e.start_s;
       break;
     case EpisodeKind::column_overflow:
-      volume = x_[kColumnOverflow] - e.start_volume_m3;
       break;
   }
   observer_.on_episode(

@@ -46,6 +46,11 @@ class Release {
   virtual double rest_ceiling_m(ReleaseState state) const = 0;
 };
 
+/// Outflow through an open orifice in the reservoir floor into the drop pipe: orifice flow at
+/// `level_m` (Q = Cd a sqrt(2 g h)), limited by what the conveyance carries running full.
+double floor_orifice_flow_m3_per_s(double coefficient, double area_m2, double level_m,
+                                   double full_flow_m3_per_s);
+
 /// The release of the kind the configuration names.
 std::unique_ptr<Release> make_release(const ReleaseConfig& config);
 
