@@ -40,6 +40,10 @@ double round_to(double v, int decimals) {
 
 Instant floor_instant(double t) { return static_cast<Instant>(std::floor(t + 1e-9)); }
 
+// summary.json numbers: litres and watt-hours to 1e-6.
+double json_litres(double m3) { return round_to(m3 * kLitresPerM3, 6); }
+double json_watt_hours(double J) { return round_to(J / kJoulesPerWh, 6); }
+
 }  // namespace
 
 TimeseriesWriter::TimeseriesWriter(std::ostream& out, const Scenario& scenario)
@@ -209,10 +213,10 @@ double wettest_dry_intensity_m_per_s(const RainSeries& rain, Instant start, Inst
 namespace {
 
 nlohmann::json period_json(const PeriodSummary& p, const char* key) {
-  const auto L = [](double m3) { return round_to(m3 * kLitresPerM3, 6); };
+  const auto L = json_litres;
   return {{key, p.label},
           {"rain_mm", round_to(p.rain_depth_m * kMmPerM, 4)},
-          {"energy_Wh", round_to(p.electrical_J / kJoulesPerWh, 6)},
+          {"energy_Wh", json_watt_hours(p.electrical_J)},
           {"overflow_L", L(p.overflow_m3)},
           {"dribble_L", L(p.dribble_m3)},
           {"through_nozzle_L", L(p.nozzle_m3)},
@@ -228,8 +232,8 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
   using nlohmann::json;
   const Accounts& a = r.totals;
   const int off = sc.site.utc_offset_s;
-  const auto L = [](double m3) { return round_to(m3 * kLitresPerM3, 6); };
-  const auto Wh = [](double J) { return round_to(J / kJoulesPerWh, 6); };
+  const auto L = json_litres;
+  const auto Wh = json_watt_hours;
   json j;
   j["scenario"] = sc.file.filename().string();
   j["site"] = sc.site.name;
