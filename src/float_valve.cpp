@@ -21,7 +21,7 @@ double FloatValve::outflow_m3_per_s(ReleaseState state, double level_m,
                                      full_flow_m3_per_s);
 }
 
-int FloatValve::guards(ReleaseState state, double level_m, double, Guard* out) const {
+int FloatValve::guards(ReleaseState state, double level_m, Guard* out) const {
   if (state == ReleaseState::open) {
     out[0] = {level_m - close_level_m_, ReleaseState::closed};
   } else {

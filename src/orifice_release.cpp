@@ -19,7 +19,7 @@ double OrificeRelease::outflow_m3_per_s(ReleaseState state, double level_m,
                                      full_flow_m3_per_s);
 }
 
-int OrificeRelease::guards(ReleaseState state, double level_m, double, Guard* out) const {
+int OrificeRelease::guards(ReleaseState state, double level_m, Guard* out) const {
   if (state == ReleaseState::open) {
     out[0] = {level_m - 0.5 * kHoldHead_m, ReleaseState::idle};
   } else {

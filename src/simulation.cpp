@@ -333,7 +333,7 @@ int Engine::guards(const State& x, const Mode& m, const Forcing& f, const Rates&
   constexpr double kInactive = 1.0;
   g.fill(kInactive);
   Guard rel[Release::kMaxGuards];
-  const int n = release_->guards(m.release, r.level_m, r.full_flow, rel);
+  const int n = release_->guards(m.release, r.level_m, rel);
   for (int k = 0; k < n; ++k) g[kGuardRelease0 + k] = rel[k].value;
 
   const double rim = geometry_.rim_m();
@@ -389,7 +389,7 @@ void Engine::apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rate
     case kGuardRelease0:
     case kGuardRelease1: {
       Guard rel[Release::kMaxGuards];
-      release_->guards(m.release, r.level_m, r.full_flow, rel);
+      release_->guards(m.release, r.level_m, rel);
       m.release = rel[k - kGuardRelease0].next;
       break;
     }

@@ -40,7 +40,7 @@ double BellSiphon::outflow_m3_per_s(ReleaseState state, double level_m,
   }
 }
 
-int BellSiphon::guards(ReleaseState state, double level_m, double, Guard* out) const {
+int BellSiphon::guards(ReleaseState state, double level_m, Guard* out) const {
   switch (state) {
     case ReleaseState::idle:
       out[0] = {lip_m_ + kHoldHead_m - level_m, ReleaseState::dribble};

@@ -46,23 +46,23 @@ TEST(FloatValve, ConveyanceCapsTheFlow) {
 TEST(FloatValve, OpensAtTheOpeningLevel) {
   const FloatValve v(valve());
   Guard g[Release::kMaxGuards];
-  ASSERT_EQ(v.guards(ReleaseState::closed, 0.3 - 1e-9, kFullFlow, g), 1);
+  ASSERT_EQ(v.guards(ReleaseState::closed, 0.3 - 1e-9, g), 1);
   EXPECT_EQ(g[0].next, ReleaseState::open);
   EXPECT_GT(g[0].value, 0.0);
-  v.guards(ReleaseState::closed, 0.3 + 1e-9, kFullFlow, g);
+  v.guards(ReleaseState::closed, 0.3 + 1e-9, g);
   EXPECT_LT(g[0].value, 0.0);
 }
 
 TEST(FloatValve, ClosesAtTheClosingLevel) {
   const FloatValve v(valve());
   Guard g[Release::kMaxGuards];
-  ASSERT_EQ(v.guards(ReleaseState::open, 0.1 + 1e-9, kFullFlow, g), 1);
+  ASSERT_EQ(v.guards(ReleaseState::open, 0.1 + 1e-9, g), 1);
   EXPECT_EQ(g[0].next, ReleaseState::closed);
   EXPECT_GT(g[0].value, 0.0);
-  v.guards(ReleaseState::open, 0.1 - 1e-9, kFullFlow, g);
+  v.guards(ReleaseState::open, 0.1 - 1e-9, g);
   EXPECT_LT(g[0].value, 0.0);
   // Between the two levels an open valve stays open.
-  v.guards(ReleaseState::open, 0.2, kFullFlow, g);
+  v.guards(ReleaseState::open, 0.2, g);
   EXPECT_GT(g[0].value, 0.0);
 }
 

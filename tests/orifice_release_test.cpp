@@ -49,15 +49,15 @@ TEST(OrificeRelease, IdlesOnlyWhenEmpty) {
 TEST(OrificeRelease, GuardsSwitchAroundTheHoldHead) {
   const OrificeRelease o(orifice());
   Guard g[Release::kMaxGuards];
-  ASSERT_EQ(o.guards(ReleaseState::open, 0.6 * kHoldHead_m, kFullFlow, g), 1);
+  ASSERT_EQ(o.guards(ReleaseState::open, 0.6 * kHoldHead_m, g), 1);
   EXPECT_EQ(g[0].next, ReleaseState::idle);
   EXPECT_GT(g[0].value, 0.0);
-  o.guards(ReleaseState::open, 0.4 * kHoldHead_m, kFullFlow, g);
+  o.guards(ReleaseState::open, 0.4 * kHoldHead_m, g);
   EXPECT_LT(g[0].value, 0.0);
-  ASSERT_EQ(o.guards(ReleaseState::idle, 0.9 * kHoldHead_m, kFullFlow, g), 1);
+  ASSERT_EQ(o.guards(ReleaseState::idle, 0.9 * kHoldHead_m, g), 1);
   EXPECT_EQ(g[0].next, ReleaseState::open);
   EXPECT_GT(g[0].value, 0.0);
-  o.guards(ReleaseState::idle, 1.1 * kHoldHead_m, kFullFlow, g);
+  o.guards(ReleaseState::idle, 1.1 * kHoldHead_m, g);
   EXPECT_LT(g[0].value, 0.0);
 }
 
@@ -72,7 +72,7 @@ TEST(OrificeRelease, NoReleaseOnlyEverRests) {
   Guard g[Release::kMaxGuards];
   EXPECT_EQ(n.initial_state(0.5), ReleaseState::closed);
   EXPECT_EQ(n.outflow_m3_per_s(ReleaseState::closed, 0.5, kFullFlow), 0.0);
-  EXPECT_EQ(n.guards(ReleaseState::closed, 0.5, kFullFlow, g), 0);
+  EXPECT_EQ(n.guards(ReleaseState::closed, 0.5, g), 0);
   EXPECT_FALSE(n.is_running(ReleaseState::closed));
   EXPECT_GT(n.rest_ceiling_m(ReleaseState::closed), 1e6);
 }

@@ -74,12 +74,12 @@ TEST(Siphon, RunningPassesTheFullFlow) {
 TEST(Siphon, IdleStartsDribblingAboveTheHoldHead) {
   const BellSiphon s(bell());
   Guard g[Release::kMaxGuards];
-  ASSERT_EQ(s.guards(ReleaseState::idle, 0.050, kFullFlow, g), 1);
+  ASSERT_EQ(s.guards(ReleaseState::idle, 0.050, g), 1);
   EXPECT_GT(g[0].value, 0.0);
   EXPECT_EQ(g[0].next, ReleaseState::dribble);
-  s.guards(ReleaseState::idle, 0.050 + 0.99 * kHoldHead_m, kFullFlow, g);
+  s.guards(ReleaseState::idle, 0.050 + 0.99 * kHoldHead_m, g);
   EXPECT_GT(g[0].value, 0.0);
-  s.guards(ReleaseState::idle, 0.050 + 1.01 * kHoldHead_m, kFullFlow, g);
+  s.guards(ReleaseState::idle, 0.050 + 1.01 * kHoldHead_m, g);
   EXPECT_LT(g[0].value, 0.0);
 }
 
@@ -87,13 +87,13 @@ TEST(Siphon, PrimesOnlyAtThePrimingLevel) {
   const BellSiphon s(bell());
   const double h = s.priming_level_m();
   Guard g[Release::kMaxGuards];
-  ASSERT_EQ(s.guards(ReleaseState::dribble, h - 1e-9, kFullFlow, g), 2);
+  ASSERT_EQ(s.guards(ReleaseState::dribble, h - 1e-9, g), 2);
   EXPECT_EQ(g[0].next, ReleaseState::running);
   EXPECT_GT(g[0].value, 0.0);
-  s.guards(ReleaseState::dribble, h + 1e-9, kFullFlow, g);
+  s.guards(ReleaseState::dribble, h + 1e-9, g);
   EXPECT_LT(g[0].value, 0.0);
   // Well above the lip but below the priming level it does not prime.
-  s.guards(ReleaseState::dribble, 0.5 * (0.050 + h), kFullFlow, g);
+  s.guards(ReleaseState::dribble, 0.5 * (0.050 + h), g);
   EXPECT_GT(g[0].value, 0.0);
   EXPECT_GT(g[1].value, 0.0);
 }
@@ -101,23 +101,23 @@ TEST(Siphon, PrimesOnlyAtThePrimingLevel) {
 TEST(Siphon, DribbleStopsAtHalfTheHoldHead) {
   const BellSiphon s(bell());
   Guard g[Release::kMaxGuards];
-  s.guards(ReleaseState::dribble, 0.050 + 0.6 * kHoldHead_m, kFullFlow, g);
+  s.guards(ReleaseState::dribble, 0.050 + 0.6 * kHoldHead_m, g);
   EXPECT_EQ(g[1].next, ReleaseState::idle);
   EXPECT_GT(g[1].value, 0.0);
-  s.guards(ReleaseState::dribble, 0.050 + 0.4 * kHoldHead_m, kFullFlow, g);
+  s.guards(ReleaseState::dribble, 0.050 + 0.4 * kHoldHead_m, g);
   EXPECT_LT(g[1].value, 0.0);
 }
 
 TEST(Siphon, BreaksAtTheBellRim) {
   const BellSiphon s(bell());
   Guard g[Release::kMaxGuards];
-  ASSERT_EQ(s.guards(ReleaseState::running, 0.008 + 1e-9, kFullFlow, g), 1);
+  ASSERT_EQ(s.guards(ReleaseState::running, 0.008 + 1e-9, g), 1);
   EXPECT_EQ(g[0].next, ReleaseState::idle);
   EXPECT_GT(g[0].value, 0.0);
-  s.guards(ReleaseState::running, 0.008 - 1e-9, kFullFlow, g);
+  s.guards(ReleaseState::running, 0.008 - 1e-9, g);
   EXPECT_LT(g[0].value, 0.0);
   // Running on below the lip: the siphon only breaks at the rim.
-  s.guards(ReleaseState::running, 0.03, kFullFlow, g);
+  s.guards(ReleaseState::running, 0.03, g);
   EXPECT_GT(g[0].value, 0.0);
 }
 

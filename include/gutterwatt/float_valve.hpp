@@ -14,8 +14,7 @@ class FloatValve final : public Release {
   ReleaseState initial_state(double level_m) const override;
   double outflow_m3_per_s(ReleaseState state, double level_m,
                           double full_flow_m3_per_s) const override;
-  int guards(ReleaseState state, double level_m, double full_flow_m3_per_s,
-             Guard* out) const override;
+  int guards(ReleaseState state, double level_m, Guard* out) const override;
   bool is_running(ReleaseState state) const override { return state == ReleaseState::open; }
   double rest_ceiling_m(ReleaseState state) const override;
 

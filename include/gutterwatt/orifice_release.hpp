@@ -13,8 +13,7 @@ class OrificeRelease final : public Release {
   ReleaseState initial_state(double level_m) const override;
   double outflow_m3_per_s(ReleaseState state, double level_m,
                           double full_flow_m3_per_s) const override;
-  int guards(ReleaseState state, double level_m, double full_flow_m3_per_s,
-             Guard* out) const override;
+  int guards(ReleaseState state, double level_m, Guard* out) const override;
   bool is_running(ReleaseState state) const override { return state == ReleaseState::open; }
   double rest_ceiling_m(ReleaseState state) const override;
 
@@ -28,7 +27,7 @@ class NoRelease final : public Release {
  public:
   ReleaseState initial_state(double) const override { return ReleaseState::closed; }
   double outflow_m3_per_s(ReleaseState, double, double) const override { return 0.0; }
-  int guards(ReleaseState, double, double, Guard*) const override { return 0; }
+  int guards(ReleaseState, double, Guard*) const override { return 0; }
   bool is_running(ReleaseState) const override { return false; }
   double rest_ceiling_m(ReleaseState) const override { return 1e300; }
 };

@@ -37,8 +37,7 @@ class Release {
   virtual double outflow_m3_per_s(ReleaseState state, double level_m,
                                   double full_flow_m3_per_s) const = 0;
   /// Writes the guards active in `state` into `out` and returns how many (0..kMaxGuards).
-  virtual int guards(ReleaseState state, double level_m, double full_flow_m3_per_s,
-                     Guard* out) const = 0;
+  virtual int guards(ReleaseState state, double level_m, Guard* out) const = 0;
   /// True when outflow in `state` is a deliberate release rather than dribble.
   virtual bool is_running(ReleaseState state) const = 0;
   /// The level below which `state` passes no water and does not change by itself; negative when
