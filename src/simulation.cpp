@@ -168,6 +168,9 @@ constexpr double kMaxWetStep_s = 120.0;
 // on a time scale of a minute, which keeps the error-controlled steps far shorter than this.
 constexpr double kMaxDryStep_s = 1800.0;
 constexpr int kMaxSwitchesAtOnce = 16;
+// Steps one segment may take before the run counts as stalled: a segment is at most an output
+// interval or a month long and needs a few hundred steps even through a storm.
+constexpr long kMaxStepsPerSegment = 100000;
 
 class Engine {
  public:
@@ -554,6 +557,7 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
   Dense stepper(Controlled(checker_, odeint::default_step_adjuster<double, double>(max_step)));
   double dt = std::min(span, last_step_s_);
   bool fresh = true;
+  long segment_steps = 0;
   Guards g_prev{};
   while (t < span) {
     if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
@@ -576,6 +580,11 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
       fail(std::string("the solver made no progress (") + e.what() + ")", t0 + t);
     }
     ++result_.stats.steps;
+    if (++segment_steps > kMaxStepsPerSegment) {
+      fail("the solver made no progress (" + std::to_string(kMaxStepsPerSegment) +
+               " steps in one segment)",
+           t0 + t);
+    }
     double t_end = std::min(step.second, span);
     State x_end;
     Rates r;

@@ -680,5 +680,25 @@ TEST(Simulation, SamplesEveryOutputIntervalAndAtTheEnd) {
   EXPECT_FALSE(obs.samples[0].month_end);
 }
 
+TEST(Simulation, StalledSolverIsASimulationErrorNotAHang) {
+  // An absurd roof (1e20 m2, beyond what the loader accepts) makes the steps collapse; the
+  // per-segment step budget turns that into a SimulationError naming time, mode and state.
+  Scenario s = make_scenario(3600.0);
+  s.roof.area_m2 = 1e20;
+  const RainSeries rain = constant_rain(kStart, kStart + 3600, 1e-3 / 3600.0);
+  RecordingObserver obs;
+  try {
+    simulate(s, rain, obs);
+    FAIL() << "no SimulationError";
+  } catch (const SimulationError& e) {
+    const std::string what = e.what();
+    EXPECT_EQ(what.rfind("simulation failed at 2025-03-01T00:", 0), 0u) << what;
+    EXPECT_TRUE(what.find("the solver made no progress") != std::string::npos ||
+                what.find("the state is not finite") != std::string::npos)
+        << what;
+    EXPECT_NE(what.find("; mode: release "), std::string::npos) << what;
+  }
+}
+
 }  // namespace
 }  // namespace gutterwatt
