@@ -109,7 +109,6 @@ struct Rates {
   PlantPower power;
   double electrical_W = 0.0;
   BatteryFlows battery;
-  State dxdt{};
 };
 
 // Error norm with a scale per slot: err_i / (rtol (scale_i + |x_i| + dt |dxdt_i|)), the odeint
@@ -190,11 +189,13 @@ class Engine {
   // Physics at one instant.
   Rates rates(const State& x, const Mode& m, const Forcing& f) const {
     Rates r;
-    rates(x, m, f, r);
+    State dxdt;
+    rates(x, m, f, r, dxdt);
     return r;
   }
-  /// Fills `r` (every field) for state `x`: the solver's hot path, which must not copy Rates.
-  void rates(const State& x, const Mode& m, const Forcing& f, Rates& r) const;
+  /// Fills `r` and the derivative `d` (every field and slot) for state `x`: the solver's hot
+  /// path, which must not copy Rates.
+  void rates(const State& x, const Mode& m, const Forcing& f, Rates& r, State& d) const;
   int guards(const State& x, const Mode& m, const Forcing& f, const Rates& r, Guards& g) const;
   void apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rates& r, double t);
   /// Applies every switch already due; returns the rates and guards of the settled state.
@@ -243,9 +244,9 @@ class Engine {
   ScaledErrorChecker checker_;
 };
 
-void Engine::rates(const State& x, const Mode& m, const Forcing& f, Rates& r) const {
-  r = Rates{};
-  State& d = r.dxdt;
+void Engine::rates(const State& x, const Mode& m, const Forcing& f, Rates& r, State& d) const {
+  d.fill(0.0);
+  r.column_overflow = 0.0;
   const double area = sc_.roof.area_m2;
   const double rain = f.rain_m_per_s * area;
   d[kRain] = rain;
@@ -543,13 +544,13 @@ void Engine::coast(double dt, const Forcing& f) {
 
 void Engine::integrate(double t0, double t1, const Forcing& f) {
   // The last stage of a Dormand-Prince step is evaluated at the step's end state (FSAL); keeping
-  // it spares the guard evaluation there a second call of the whole chain.
+  // it spares the guard evaluation there a second call of the whole chain. The stage's time tells
+  // it apart: odeint evaluates it last, at the time the step ends.
   Rates last;
-  State last_x{};
-  const auto system = [this, &f, &last, &last_x](const State& x, State& dxdt, double) {
-    rates(x, mode_, f, last);
-    last_x = x;
-    dxdt = last.dxdt;
+  double last_t = std::numeric_limits<double>::quiet_NaN();
+  const auto system = [this, &f, &last, &last_t](const State& x, State& dxdt, double t) {
+    rates(x, mode_, f, last, dxdt);
+    last_t = t;
   };
   const double span = t1 - t0;
   double t = 0.0;  // time within the segment, for precision
@@ -588,8 +589,8 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
     double t_end = std::min(step.second, span);
     State x_end;
     Rates r;
-    if (t_end == step.second && stepper.current_state() == last_x) {
-      x_end = last_x;
+    if (t_end == step.second && last_t == step.second) {
+      x_end = stepper.current_state();
       r = last;
     } else {
       stepper.calc_state(t_end, x_end);

@@ -22,7 +22,9 @@ TEST(UniformTable, ErrorFallsAsTheFourthPowerOfTheStep) {
     const UniformTable table(0.0, 1.0, n, f);
     double worst = 0.0;
     for (double x = 0.0; x <= 1.0; x += 1e-3) worst = std::max(worst, std::abs(table(x) - f(x)));
-    if (previous > 0.0) EXPECT_NEAR(previous / worst, 16.0, 3.0) << n;
+    if (previous > 0.0) {
+      EXPECT_NEAR(previous / worst, 16.0, 3.0) << n;
+    }
     previous = worst;
   }
 }

@@ -1,6 +1,7 @@
 #pragma once
 /// Tables of smooth functions solved once and read back cheaply on the solver's hot path.
 
+#include <array>
 #include <cstddef>
 #include <functional>
 #include <vector>
@@ -9,7 +10,8 @@ namespace gutterwatt {
 
 /// A function tabulated at uniformly spaced nodes x0 + k h, k = -1 .. n + 1, over [x0, x1], and
 /// read back by 4-point Lagrange (cubic) interpolation through the nodes around x: exact for
-/// cubics, error O(h^4 f'''') for smooth f (Abramowitz & Stegun 1964, 25.2.13).
+/// cubics, error O(h^4 f'''') for smooth f (Abramowitz & Stegun 1964, 25.2.13). Each cell's
+/// cubic is stored in powers of the local coordinate, so a read is one Horner evaluation.
 class UniformTable {
  public:
   UniformTable() = default;
@@ -18,27 +20,26 @@ class UniformTable {
   UniformTable(double x0, double x1, int n, const std::function<double(double)>& f);
 
   /// True when x lies in [x0, x1] (and the table is not empty).
-  bool covers(double x) const { return !values_.empty() && x >= x0_ && x <= x1_; }
+  bool covers(double x) const { return !cells_.empty() && x >= x0_ && x <= x1_; }
 
   /// The interpolated value; x must be covered. Inline: it runs at every solver stage.
   double operator()(double x) const {
     const double u = (x - x0_) * per_step_;
-    const std::size_t last_cell = values_.size() - 4;
-    const auto k = u < static_cast<double>(last_cell) ? static_cast<std::size_t>(u) : last_cell;
-    // Lagrange basis on the nodes -1, 0, 1, 2 around the cell [k, k + 1], t in [0, 1].
+    const auto k = u < last_cell_ ? static_cast<std::size_t>(u) : cells_.size() - 1;
     const double t = u - static_cast<double>(k);
-    const double* f = &values_[k];
-    const double a = t + 1.0, b = t - 1.0, c = t - 2.0;
-    return (-t * b * c * f[0] + 3.0 * a * b * c * f[1] - 3.0 * a * t * c * f[2] +
-            a * t * b * f[3]) /
-           6.0;
+    const Cell& c = cells_[k];
+    return c[0] + t * (c[1] + t * (c[2] + t * c[3]));
   }
 
  private:
+  /// The cubic through the nodes -1, 0, 1, 2 around a cell, in powers of t in [0, 1].
+  using Cell = std::array<double, 4>;
+
   double x0_ = 0.0;
   double x1_ = -1.0;
   double per_step_ = 0.0;
-  std::vector<double> values_;  ///< f at x0 + (k - 1) h, k = 0 .. n + 2
+  double last_cell_ = 0.0;   ///< index of the last cell, as a double
+  std::vector<Cell> cells_;  ///< one per cell [x0 + k h, x0 + (k + 1) h], k = 0 .. n - 1
 };
 
 }  // namespace gutterwatt
