@@ -397,6 +397,12 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
 
 OutputFolder::OutputFolder(std::filesystem::path dir) : dir_(std::move(dir)) {
   std::error_code ec;
+  // The folders this run makes, deepest first: an uncommitted run takes them away again.
+  for (std::filesystem::path p = dir_; !p.empty() && !std::filesystem::exists(p, ec);
+       p = p.parent_path()) {
+    created_.push_back(p);
+    if (p == p.parent_path()) break;
+  }
   std::filesystem::create_directories(dir_, ec);
   if (ec || !std::filesystem::is_directory(dir_)) {
     throw InputError(
@@ -452,6 +458,12 @@ void OutputFolder::discard() {
     std::filesystem::remove(f.temp, ec);
   }
   files_.clear();
+  for (const std::filesystem::path& p : created_) {
+    std::error_code ec;
+    if (!std::filesystem::is_empty(p, ec) || ec) break;
+    std::filesystem::remove(p, ec);
+  }
+  created_.clear();
 }
 
 }  // namespace gutterwatt

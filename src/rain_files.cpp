@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <fstream>
 #include <numeric>
+#include <optional>
+#include <thread>
 
 #include "gutterwatt/error.hpp"
 
@@ -117,6 +119,48 @@ RainSeries load_rain(const RainConfig& config, const std::filesystem::path& over
     labels.push_back(label);
   }
   return join_rain(std::move(parts), labels);
+}
+
+RainSeries load_rain_while(const RainConfig& config, const std::filesystem::path& override_file,
+                           const std::function<void(RainView&)>& consume) {
+  const bool one_series =
+      config.format == RainFormat::series && (!override_file.empty() || config.files.size() == 1);
+  if (!one_series) {
+    RainSeries whole = load_rain(config, override_file);
+    RainView view(whole);
+    consume(view);
+    return whole;
+  }
+  const std::filesystem::path file = override_file.empty() ? config.files.front() : override_file;
+  std::ifstream in = open_rain_file(file);
+  const std::string label = file.string();
+  RainFeed feed(config.series.gaps);
+  std::optional<RainSeries> whole;
+  std::thread reader([&] {
+    try {
+      whole = read_rain_series(in, label, config.series,
+                               [&](const RainSeries& so_far) { feed.publish(so_far); });
+      feed.finish(*whole);
+    } catch (const RainFeed::Cancelled&) {
+    } catch (...) {
+      feed.fail(std::current_exception());
+    }
+  });
+  try {
+    RainView view(feed);
+    consume(view);
+  } catch (const Interrupted&) {
+    feed.cancel();
+    reader.join();
+    throw;
+  } catch (...) {
+    reader.join();
+    if (const std::exception_ptr error = feed.error()) std::rethrow_exception(error);
+    throw;
+  }
+  reader.join();
+  if (const std::exception_ptr error = feed.error()) std::rethrow_exception(error);
+  return std::move(*whole);
 }
 
 }  // namespace gutterwatt

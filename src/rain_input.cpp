@@ -666,6 +666,8 @@ class SeriesBuilder {
     has_previous_ = true;
   }
 
+  const RainSeries& so_far() const { return series_; }
+
   RainSeries finish() {
     if (series_.gaps.size() > kMaxGapWarnings) {
       const std::size_t more = series_.gaps.size() - kMaxGapWarnings;
@@ -696,7 +698,7 @@ class SeriesBuilder {
 }  // namespace
 
 RainSeries read_rain_series(std::istream& in, const std::string& file_label,
-                            const SeriesFormat& fmt) {
+                            const SeriesFormat& fmt, const SeriesProgress& progress) {
   // Rows stream into the builder once the step is known, so memory holds the wet intervals
   // only, not every row of the record.
   std::optional<SeriesBuilder> builder;
@@ -708,6 +710,7 @@ RainSeries read_rain_series(std::istream& in, const std::string& file_label,
     head = {};
   };
   StampReader stamps(file_label, fmt.time_column, fmt.utc_offset_s, kSeriesStamps);
+  std::size_t rows_since_progress = 0;
   scan_rows(in, file_label, {fmt.time_column, fmt.value_column},
             [&](const std::vector<std::string_view>& fields, int line_number) {
               const ParsedTime stamp = stamps.read(fields[0], line_number);
@@ -716,6 +719,10 @@ RainSeries read_rain_series(std::istream& in, const std::string& file_label,
                   line_number, stamp.offset_s};
               if (builder) {
                 builder->add(row);
+                if (progress && ++rows_since_progress == kProgressRows) {
+                  progress(builder->so_far());
+                  rows_since_progress = 0;
+                }
                 return;
               }
               head.push_back(row);

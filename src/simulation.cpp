@@ -6,6 +6,8 @@
 #include <boost/numeric/odeint.hpp>
 #include <cmath>
 #include <limits>
+#include <optional>
+#include <span>
 #include <sstream>
 
 #include "gutterwatt/battery.hpp"
@@ -112,7 +114,10 @@ struct Rates {
 };
 
 // Error norm with a scale per slot: err_i / (rtol (scale_i + |x_i| + dt |dxdt_i|)), the odeint
-// default checker's form with per-slot absolute tolerances.
+// default checker's form with per-slot absolute tolerances, except that the roof's error is
+// measured against the water on the roof and in the reservoir together: an error on the roof
+// only moves water that is on its way to the reservoir a little in time, and judged against the
+// roof's own small, fast store alone it set the step for the whole chain.
 struct ScaledErrorChecker {
   using value_type = double;
   using algebra_type = odeint::array_algebra;
@@ -125,7 +130,9 @@ struct ScaledErrorChecker {
   double error(algebra_type&, const S& x_old, const D& dxdt_old, E& x_err, T dt) const {
     double worst = 0.0;
     for (std::size_t i = 0; i < kSlots; ++i) {
-      const double tol = rtol * (scale[i] + std::abs(x_old[i]) + dt * std::abs(dxdt_old[i]));
+      const double size =
+          i == kRoof ? std::abs(x_old[kRoof]) + std::abs(x_old[kReservoir]) : std::abs(x_old[i]);
+      const double tol = rtol * (scale[i] + size + dt * std::abs(dxdt_old[i]));
       worst = std::max(worst, std::abs(x_err[i]) / tol);
     }
     return worst;
@@ -173,7 +180,7 @@ constexpr long kMaxStepsPerSegment = 100000;
 
 class Engine {
  public:
-  Engine(const Scenario& sc, const RainSeries& rain, Observer& observer, const RunOptions& options)
+  Engine(const Scenario& sc, RainView& rain, Observer& observer, const RunOptions& options)
       : sc_(sc),
         rain_(rain),
         observer_(observer),
@@ -216,6 +223,9 @@ class Engine {
   Storage storage(const State& x) const;
   Accounts accounts(const State& x) const;
   [[noreturn]] void fail(const std::string& what, double t) const;
+  /// The time from `from` on that the record does not cover, up to `end` when known.
+  TimeSpan missing_from(Instant from, std::optional<Instant> end);
+  [[noreturn]] void missing_data(const TimeSpan& gap, Instant start, Instant end) const;
 
   struct OpenEpisode {
     bool open = false;
@@ -226,7 +236,7 @@ class Engine {
   };
 
   const Scenario& sc_;
-  const RainSeries& rain_;
+  RainView& rain_;
   Observer& observer_;
   const RunOptions& options_;
   ReservoirGeometry geometry_;
@@ -824,45 +834,49 @@ void Engine::fail(const std::string& what, double t) const {
   throw SimulationError(msg.str());
 }
 
+TimeSpan Engine::missing_from(Instant from, std::optional<Instant> end) {
+  for (;;) {
+    const std::vector<TimeSpan>& covered = rain_.covered();
+    const auto next = std::upper_bound(covered.begin(), covered.end(), from,
+                                       [](Instant t, const TimeSpan& c) { return t < c.start; });
+    if (next != covered.end()) return {from, end ? std::min(next->start, *end) : next->start};
+    if (rain_.complete()) return {from, end.value_or(covered.back().end)};
+    rain_.need(rain_.final_before() + 1);
+  }
+}
+
+void Engine::missing_data(const TimeSpan& gap, Instant start, Instant end) const {
+  const std::vector<TimeSpan>& covered = rain_.covered();
+  const int off = sc_.site.utc_offset_s;
+  const bool before = gap.start == start && gap.start < covered.front().start;
+  const bool after = gap.end == end && gap.start >= covered.back().end;
+  const std::string field = before ? "simulation.start" : after ? "simulation.end" : "rain";
+  throw InputError(sc_.file.string(), 0, field,
+                   "the rain record has no data from " + format_iso8601(gap.start, off) + " to " +
+                       format_iso8601(gap.end, off) +
+                       "; move the period inside the record or set rain.gaps: zero or skip");
+}
+
 RunResult Engine::run() {
-  if (rain_.covered.empty()) {
+  rain_.need_data();
+  if (rain_.covered().empty()) {
     throw InputError(sc_.file.string(), 0, "rain", "the rain record holds no data");
   }
-  const Instant start = sc_.simulation.start.value_or(rain_.covered.front().start);
-  const Instant end = sc_.simulation.end.value_or(rain_.covered.back().end);
-  if (end <= start) {
-    throw InputError(
-        sc_.file.string(), 0, "simulation.end",
-        "must be after simulation.start (" + format_iso8601(start, sc_.site.utc_offset_s) + ")");
-  }
-  // Time in the window that the record does not cover, in order.
-  std::vector<TimeSpan> missing;
-  {
-    Instant cursor = start;
-    for (const TimeSpan& c : rain_.covered) {
-      if (c.end <= cursor) continue;
-      if (c.start >= end) break;
-      if (c.start > cursor) missing.push_back({cursor, std::min(c.start, end)});
-      cursor = std::max(cursor, c.end);
-      if (cursor >= end) break;
+  const Instant start = sc_.simulation.start.value_or(rain_.covered().front().start);
+  // Without simulation.end the run ends with the record, which is known once it is complete.
+  std::optional<Instant> end = sc_.simulation.end;
+  const auto learn_end = [&] {
+    if (!end && rain_.complete()) end = rain_.covered().back().end;
+    if (end && *end <= start) {
+      throw InputError(
+          sc_.file.string(), 0, "simulation.end",
+          "must be after simulation.start (" + format_iso8601(start, sc_.site.utc_offset_s) + ")");
     }
-    if (cursor < end) missing.push_back({cursor, end});
-  }
-  if (!missing.empty() && rain_.policy == GapPolicy::error) {
-    const TimeSpan& m = missing.front();
-    const int off = sc_.site.utc_offset_s;
-    const bool before = m.start == start && m.start < rain_.covered.front().start;
-    const bool after = m.end == end && m.start >= rain_.covered.back().end;
-    const std::string field = before ? "simulation.start" : after ? "simulation.end" : "rain";
-    throw InputError(sc_.file.string(), 0, field,
-                     "the rain record has no data from " + format_iso8601(m.start, off) + " to " +
-                         format_iso8601(m.end, off) +
-                         "; move the period inside the record or set rain.gaps: zero or skip");
-  }
-  const bool skip_missing = rain_.policy == GapPolicy::skip;
+  };
+  learn_end();
+  const GapPolicy policy = rain_.policy();
 
   result_.start = start;
-  result_.end = end;
   checker_.rtol = sc_.simulation.rtol;
   checker_.scale.fill(1e-3);  // m3 (1 L) for volumes, m (1 mm) for depth
   for (std::size_t i = kJet; i <= kUnmet; ++i) checker_.scale[i] = 1.0;  // J
@@ -898,39 +912,44 @@ RunResult Engine::run() {
   Instant next_month = next_month_start();
   const bool hourly_load = sc_.battery.load_profile_W.size() == 24;
 
-  auto pulse = std::lower_bound(rain_.pulses.begin(), rain_.pulses.end(), start,
-                                [](const RainPulse& p, Instant t) { return p.end <= t; });
-  auto gap = missing.begin();
+  std::size_t span = 0;  // the covered span at or after t
   Instant t = start;
-  while (t < end) {
+  while (!end || t < *end) {
     if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
-    Instant next = std::min({end, next_output, next_month});
-    while (pulse != rain_.pulses.end() && pulse->end <= t) ++pulse;
+    // The segment [t, next) ends at the first of: the end, an output, a month, a load hour, a
+    // change of rain, a diverter reset, the edge of the record's data. The boundaries that do
+    // not depend on the record come first; the record is then made final up to them, so that
+    // how it arrives cannot move a boundary.
+    Instant next = std::min(next_output, next_month);
+    if (end) next = std::min(next, *end);
     Forcing f;
-    if (pulse != rain_.pulses.end() && pulse->start <= t) {
-      f.rain_m_per_s = pulse->depth_m / static_cast<double>(pulse->end - pulse->start);
-      // Back-to-back intervals of the same intensity are one forcing: no solver restart between.
-      auto run_end = pulse;
-      while (std::next(run_end) != rain_.pulses.end() &&
-             std::next(run_end)->start == run_end->end &&
-             std::next(run_end)->depth_m /
-                     static_cast<double>(std::next(run_end)->end - std::next(run_end)->start) ==
-                 f.rain_m_per_s) {
-        ++run_end;
-      }
-      next = std::min(next, run_end->end);
-    } else if (pulse != rain_.pulses.end()) {
-      next = std::min(next, pulse->start);
+    if (hourly_load) {
+      const Instant hour = (t + off) - ((t + off) % 3600 + 3600) % 3600 + 3600 - off;
+      next = std::min(next, hour);
+      f.load_W = battery_load_W(sc_.battery, to_civil(t, off).hour);
+    } else {
+      f.load_W = sc_.battery.load_W;
     }
-    while (gap != missing.end() && gap->end <= t) ++gap;
-    bool frozen = false;
-    if (skip_missing && gap != missing.end()) {
-      if (gap->start <= t) {
-        frozen = true;
-        next = std::min(next, gap->end);
-      } else {
-        next = std::min(next, gap->start);
+    rain_.need(next);
+    learn_end();
+    if (end) next = std::min(next, *end);
+
+    const std::span<const RainPulse> pulses = rain_.pulses_from(t);
+    if (!pulses.empty() && pulses.front().start <= t) {
+      const RainPulse& p = pulses.front();
+      f.rain_m_per_s = p.depth_m / static_cast<double>(p.end - p.start);
+      // Back-to-back intervals of the same intensity are one forcing: no solver restart between.
+      std::size_t last = 0;
+      while (last + 1 < pulses.size() && pulses[last].end < next &&
+             pulses[last + 1].start == pulses[last].end &&
+             pulses[last + 1].depth_m /
+                     static_cast<double>(pulses[last + 1].end - pulses[last + 1].start) ==
+                 f.rain_m_per_s) {
+        ++last;
       }
+      next = std::min(next, pulses[last].end);
+    } else if (!pulses.empty()) {
+      next = std::min(next, pulses.front().start);
     }
     if (sc_.first_flush.volume_m3 > 0.0 && x_[kFlush] > 0.0 && f.rain_m_per_s == 0.0) {
       const double reset_at = last_wet_s_ + sc_.first_flush.reset_after_dry_s;
@@ -943,12 +962,22 @@ RunResult Engine::run() {
         next = std::min(next, reset);
       }
     }
-    if (hourly_load) {
-      const Instant hour = (t + off) - ((t + off) % 3600 + 3600) % 3600 + 3600 - off;
-      next = std::min(next, hour);
-      f.load_W = battery_load_W(sc_.battery, to_civil(t, off).hour);
-    } else {
-      f.load_W = sc_.battery.load_W;
+
+    bool frozen = false;
+    if (policy != GapPolicy::zero) {
+      const std::vector<TimeSpan>& covered = rain_.covered();
+      while (span < covered.size() && covered[span].end <= t) ++span;
+      if (span < covered.size() && covered[span].start <= t) {
+        next = std::min(next, covered[span].end);
+      } else {
+        const TimeSpan gap = missing_from(t, end);
+        if (policy == GapPolicy::error) {
+          learn_end();
+          missing_data(gap, start, *end);
+        }
+        frozen = true;
+        next = std::min(next, gap.end);
+      }
     }
     if (frozen) {
       result_.stats.skipped_s += static_cast<double>(next - t);
@@ -957,7 +986,11 @@ RunResult Engine::run() {
     }
     t = next;
     now_s_ = static_cast<double>(t);
-    const bool is_end = t >= end;
+    if (!end && rain_.final_before() <= t) {
+      rain_.need(t + 1);
+      learn_end();
+    }
+    const bool is_end = end && t >= *end;
     const bool is_output = t >= next_output || is_end;
     const bool is_month = t >= next_month || is_end;
     if (is_output || is_month) {
@@ -976,6 +1009,7 @@ RunResult Engine::run() {
       next_month = next_month_start();
     }
   }
+  result_.end = *end;
 
   result_.totals = accounts(x_);
   result_.final = storage(x_);
@@ -999,10 +1033,16 @@ RunResult Engine::run() {
 }  // namespace
 }  // namespace detail
 
-RunResult simulate(const Scenario& scenario, const RainSeries& rain, Observer& observer,
+RunResult simulate(const Scenario& scenario, RainView& rain, Observer& observer,
                    const RunOptions& options) {
   detail::Engine engine(scenario, rain, observer, options);
   return engine.run();
+}
+
+RunResult simulate(const Scenario& scenario, const RainSeries& rain, Observer& observer,
+                   const RunOptions& options) {
+  RainView view(rain);
+  return simulate(scenario, view, observer, options);
 }
 
 }  // namespace gutterwatt

@@ -1061,5 +1061,5 @@ TEST(NumericalFault, NonFiniteStateEndsTheRunWithStatusOneAndNoOutput) {
       "state is not finite; mode: release [a-z]+[^;]*; state: level [-0-9.a-z]+ mm, reservoir "
       "[-0-9.a-z]+ L, roof -?nan L, column [-0-9.a-z]+ L, battery [-0-9.a-z]+ Wh\n");
   EXPECT_TRUE(std::regex_match(r.err, form)) << r.err;
-  EXPECT_TRUE(names_in(out).empty());
+  EXPECT_FALSE(fs::exists(out));  // the folder the run made is gone with its files
 }

@@ -111,7 +111,8 @@ void print_summary_table(std::ostream& out, const Scenario& scenario, const Rain
 
 /// Files in an output folder that appear only complete: each is written under a temporary name
 /// in the same folder and renamed into place by commit(). Without commit() (a failed or
-/// interrupted run) the temporary files are removed and earlier results stay as they were.
+/// interrupted run) the temporary files are removed, and so are the folders it made, and earlier
+/// results stay as they were.
 class OutputFolder {
  public:
   /// Creates `dir` if needed; throws InputError naming `--out` when it cannot be written.
@@ -136,6 +137,7 @@ class OutputFolder {
 
   std::filesystem::path dir_;
   std::vector<File> files_;
+  std::vector<std::filesystem::path> created_;  ///< folders made here, deepest first
   bool committed_ = false;
 };
 

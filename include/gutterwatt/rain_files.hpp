@@ -2,8 +2,10 @@
 /// Opens the rain files a scenario names, reads each in its format and joins them in time.
 
 #include <filesystem>
+#include <functional>
 #include <vector>
 
+#include "gutterwatt/rain_feed.hpp"
 #include "gutterwatt/rain_input.hpp"
 #include "gutterwatt/scenario.hpp"
 
@@ -13,6 +15,14 @@ namespace gutterwatt {
 /// InputError naming the file for one that is missing or unreadable, and naming both files for
 /// records that overlap in time.
 RainSeries load_rain(const RainConfig& config, const std::filesystem::path& override_file = {});
+
+/// load_rain, with `consume` at work on the record while it is read. A record of one `series` file
+/// is read on a second thread and reaches `consume` through the view as it is read; any other
+/// record is read whole first. Returns the whole record once `consume` has returned and the
+/// reading has ended. When both fail, the reading error is thrown, as it would have been had the
+/// record been read first, except that an Interrupted from `consume` stops the reading at once.
+RainSeries load_rain_while(const RainConfig& config, const std::filesystem::path& override_file,
+                           const std::function<void(RainView&)>& consume);
 
 /// Joins records read separately into one, in time order. Throws InputError naming both labels
 /// and the overlap when two records cover the same time.

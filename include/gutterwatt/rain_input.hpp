@@ -1,7 +1,9 @@
 #pragma once
 /// Rain records in, plain rain series out. Readers take a stream so tests can pass strings.
 
+#include <cstddef>
 #include <cstdint>
+#include <functional>
 #include <istream>
 #include <optional>
 #include <string>
@@ -63,6 +65,13 @@ struct RainSeries {
 /// The sum of the pulse depths, correctly rounded (exact summation, independent of order).
 double sum_depths_m(const std::vector<RainPulse>& pulses);
 
+/// Rows read_rain_series reads between two calls of its progress function.
+inline constexpr std::size_t kProgressRows = 16384;
+
+/// Hears of a series while it is read: the series so far, final before the end of its last
+/// covered span, and append-only from call to call (see RainFeed::publish).
+using SeriesProgress = std::function<void(const RainSeries& so_far)>;
+
 /// Reads a period-ending CSV: each row's value belongs to the interval that ends at its
 /// timestamp, of length the nominal step (or the time since the previous row when shorter).
 /// A longer spacing is a gap, handled by `fmt.gaps`: `error` throws, `zero` counts it as dry,
@@ -77,14 +86,15 @@ double sum_depths_m(const std::vector<RainPulse>& pulses);
 /// step is the most common spacing of consecutive stamps among the first 4096 rows (ties: the
 /// smallest), which needs at least two rows. Rows stream through once the step is known: memory
 /// holds the wet intervals, not every row. Values must be finite, not negative, and imply at most
-/// kMaxRainIntensity_mm_per_h over their interval.
+/// kMaxRainIntensity_mm_per_h over their interval. `progress`, when given, is called every
+/// kProgressRows rows once the step is known.
 ///
 /// Example:
 ///   std::istringstream csv("time,rain_mm\n2025-03-01T00:05,0.2\n2025-03-01T00:10,0\n");
 ///   RainSeries rain = read_rain_series(csv, "rain.csv", SeriesFormat{});
 ///   // rain.pulses == {{T0 - 300, T0, 0.2e-3}}, rain.covered == {{T0 - 300, T0 + 300}}
 RainSeries read_rain_series(std::istream& in, const std::string& file_label,
-                            const SeriesFormat& fmt);
+                            const SeriesFormat& fmt, const SeriesProgress& progress = {});
 
 /// Longest time one tip's depth is spread over, by default: 30 min. A tip that follows a dry
 /// spell longer than this counts as a shower of this length ending at the tip. A project choice

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "gutterwatt/calendar.hpp"
+#include "gutterwatt/rain_feed.hpp"
 #include "gutterwatt/rain_input.hpp"
 #include "gutterwatt/release.hpp"
 #include "gutterwatt/scenario.hpp"
@@ -124,6 +125,12 @@ inline constexpr double kMaxBalanceError = 1e-6;
 /// simulated period is not covered by the record under `rain.gaps: error`, SimulationError when
 /// the solver fails, the state becomes non-finite or the balance does not close.
 RunResult simulate(const Scenario& scenario, const RainSeries& rain, Observer& observer,
+                   const RunOptions& options = {});
+
+/// The same, on a record that may still be arriving (see RainView); the results do not depend on
+/// how the record arrives. Under `rain.gaps: error`, time the record does not cover is found when
+/// the simulation reaches it.
+RunResult simulate(const Scenario& scenario, RainView& rain, Observer& observer,
                    const RunOptions& options = {});
 
 /// Forwards every record to several observers in order.

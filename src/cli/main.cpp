@@ -167,27 +167,34 @@ std::vector<std::string> overrides_of(const RunArgs& a) {
 
 int run_command(const RunArgs& args) {
   const Scenario sc = load_scenario(args.scenario, overrides_of(args));
-  const RainSeries rain = load_rain(sc.rain, args.rain);
-  for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
   const fs::path dir =
       args.out.empty() ? fs::path("out") / fs::path(args.scenario).stem() : fs::path(args.out);
-  OutputFolder folder(dir);
-  TimeseriesWriter timeseries(folder.open("timeseries.csv"), sc);
-  EventsWriter events(folder.open("events.csv"), sc);
+  // A long record is simulated while it is read; the output folder is made once the record
+  // has opened.
+  std::optional<OutputFolder> folder;
+  std::optional<TimeseriesWriter> timeseries;
+  std::optional<EventsWriter> events;
   SummaryBuilder summary(sc);
-  ObserverList observers;
-  observers.add(timeseries);
-  observers.add(events);
-  observers.add(summary);
-  RunOptions options;
-  options.stop = &g_stop;
-  const RunResult result = simulate(sc, rain, observers, options);
+  RunResult result;
+  const RainSeries rain = load_rain_while(sc.rain, args.rain, [&](RainView& view) {
+    folder.emplace(dir);
+    timeseries.emplace(folder->open("timeseries.csv"), sc);
+    events.emplace(folder->open("events.csv"), sc);
+    ObserverList observers;
+    observers.add(*timeseries);
+    observers.add(*events);
+    observers.add(summary);
+    RunOptions options;
+    options.stop = &g_stop;
+    result = simulate(sc, view, observers, options);
+  });
+  for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
   for (const std::string& w :
        coverage_warnings(month_coverage(rain, result.start, result.end, sc.site.utc_offset_s))) {
     spdlog::warn("{}", w);
   }
-  write_summary_json(folder.open("summary.json"), sc, rain, result, summary);
-  folder.commit();
+  write_summary_json(folder->open("summary.json"), sc, rain, result, summary);
+  folder->commit();
   if (!args.quiet) {
     print_summary_table(std::cout, sc, rain, result, summary);
     std::cout << "wrote " << (dir / "timeseries.csv").string() << ", "
