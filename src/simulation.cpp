@@ -212,6 +212,7 @@ class Engine {
   // Time.
   void advance(Instant t0, Instant t1, const Forcing& f);
   void integrate(double t0, double t1, const Forcing& f);
+  void integrate_fixed(double t0, double t1, const Forcing& f);
   void coast(double dt, const Forcing& f);
 
   // Records.
@@ -677,6 +678,82 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
   now_s_ = t1;
 }
 
+// The reference integration: classic Runge-Kutta (Kutta 1901) at a fixed step, every switch
+// placed by bisection, re-taking the step from its start with a shorter step each time.
+void Engine::integrate_fixed(double t0, double t1, const Forcing& f) {
+  odeint::runge_kutta4<State, double, State, double, odeint::array_algebra> rk4;
+  const auto system = [this, &f](const State& x, State& dxdt, double) {
+    Rates r;
+    rates(x, mode_, f, r, dxdt);
+  };
+  const auto step_to = [&](double h) {
+    State out;
+    rk4.do_step(system, x_, 0.0, out, h);
+    return out;
+  };
+  const double span = t1 - t0;
+  double t = 0.0;
+  bool fresh = true;
+  Guards g_prev{};
+  while (t < span) {
+    if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
+    if (at_rest(x_, mode_, f, span - t)) {
+      coast(span - t, f);
+      now_s_ = t1;
+      return;
+    }
+    if (fresh) {
+      update_peaks(settle(x_, mode_, f, now_s_, g_prev));
+      fresh = false;
+    }
+    double h = std::min(options_.fixed_step_s, span - t);
+    State x_end = step_to(h);
+    ++result_.stats.steps;
+    Rates r = rates(x_end, mode_, f);
+    Guards g_end;
+    guards(x_end, mode_, f, r, g_end);
+    int first = -1;
+    for (int k = 0; k < kGuardCount; ++k) {
+      if (!(g_prev[k] >= 0.0 && g_end[k] < 0.0)) continue;
+      double lo = 0.0, hi = h;
+      const auto guard_at = [&](double tau) {
+        const State xs = step_to(tau);
+        Guards gs;
+        guards(xs, mode_, f, rates(xs, mode_, f), gs);
+        return gs[k];
+      };
+      if (first >= 0 && guard_at(hi) >= 0.0) continue;  // crosses only after an earlier switch
+      while (hi - lo > 1e-10) {
+        const double mid = 0.5 * (lo + hi);
+        (guard_at(mid) < 0.0 ? hi : lo) = mid;
+      }
+      h = hi;
+      first = k;
+    }
+    if (first >= 0) {
+      x_end = step_to(h);
+      r = rates(x_end, mode_, f);
+    }
+    for (double v : x_end) {
+      if (!std::isfinite(v)) {
+        x_ = x_end;
+        fail("the state is not finite", t0 + t + h);
+      }
+    }
+    x_ = x_end;
+    t += h;
+    now_s_ = t0 + t;
+    update_peaks(r);
+    if (first >= 0) {
+      apply_switch(first, x_, mode_, f, r, now_s_);
+      fresh = true;
+    } else {
+      g_prev = g_end;
+    }
+  }
+  now_s_ = t1;
+}
+
 void Engine::advance(Instant t0, Instant t1, const Forcing& f) {
   if (t1 <= t0) return;
   ++result_.stats.segments;
@@ -690,6 +767,8 @@ void Engine::advance(Instant t0, Instant t1, const Forcing& f) {
   now_s_ = static_cast<double>(t0);
   if (at_rest(x_, mode_, f, static_cast<double>(t1 - t0))) {
     coast(static_cast<double>(t1 - t0), f);
+  } else if (options_.fixed_step_s > 0.0) {
+    integrate_fixed(static_cast<double>(t0), static_cast<double>(t1), f);
   } else {
     integrate(static_cast<double>(t0), static_cast<double>(t1), f);
   }

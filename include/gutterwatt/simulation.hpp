@@ -116,6 +116,10 @@ struct RunResult {
 struct RunOptions {
   /// Checked between rain intervals; when set, simulate throws Interrupted.
   const std::atomic<bool>* stop = nullptr;
+  /// When > 0, a reference integration: classic fourth-order Runge-Kutta at this fixed step (s)
+  /// instead of the error-controlled Dormand-Prince steps, switches located by bisection on
+  /// re-taken steps to 1e-10 s, and no step budget. Slow; for checking the default solver.
+  double fixed_step_s = 0.0;
 };
 
 /// Relative water-balance closing error above which a run fails.
