@@ -458,7 +458,10 @@ void scan_rows(std::istream& in, const std::string& file_label,
     on_row(fields, line_number);
     ++rows;
   }
-  if (reader.failed()) throw InputError(file_label, line_number, "", "read error");
+  if (reader.failed()) {
+    throw InputError(file_label, line_number, "",
+                     "the file could not be read past this line (an input/output error)");
+  }
   if (header_line == 0) {
     std::string names;
     for (std::size_t c = 0; c < columns.size(); ++c) {

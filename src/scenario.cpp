@@ -3,8 +3,10 @@
 #include <yaml-cpp/yaml.h>
 
 #include <algorithm>
+#include <cerrno>
 #include <charconv>
 #include <cmath>
+#include <cstring>
 #include <fstream>
 #include <initializer_list>
 #include <map>
@@ -955,15 +957,29 @@ Scenario parse_scenario(std::string_view yaml_text, const std::string& file_labe
   return s;
 }
 
-Scenario load_scenario(const std::filesystem::path& file,
-                       const std::vector<std::string>& overrides) {
+std::string read_scenario_text(const std::filesystem::path& file) {
+  const std::string label = file.string();
+  std::error_code ec;
+  if (!std::filesystem::exists(file, ec)) throw InputError(label, 0, "", "no such scenario file");
+  if (std::filesystem::is_directory(file, ec)) {
+    throw InputError(label, 0, "", "is a folder, not a scenario file");
+  }
+  errno = 0;
   std::ifstream in(file, std::ios::binary);
-  if (!in || std::filesystem::is_directory(file)) {
-    throw InputError(file.string(), 0, "", "cannot read the scenario file");
+  if (!in) {
+    throw InputError(label, 0, "",
+                     std::string("the scenario file cannot be opened (") +
+                         (errno ? std::strerror(errno) : "unknown reason") + ")");
   }
   std::ostringstream text;
   text << in.rdbuf();
-  return parse_scenario(text.str(), file.string(), file.parent_path(), overrides);
+  if (in.bad()) throw InputError(label, 0, "", "the scenario file could not be read");
+  return text.str();
+}
+
+Scenario load_scenario(const std::filesystem::path& file,
+                       const std::vector<std::string>& overrides) {
+  return parse_scenario(read_scenario_text(file), file.string(), file.parent_path(), overrides);
 }
 
 }  // namespace gutterwatt

@@ -331,7 +331,10 @@ PrpParameters read_prp_parameters(std::istream& in, const std::string& file_labe
                               values[3] * kSecondsPerHour);
     }
   }
-  if (in.bad()) throw InputError(file_label, line_number, "", "read error");
+  if (in.bad()) {
+    throw InputError(file_label, line_number, "",
+                     "the file could not be read past this line (an input/output error)");
+  }
   if (columns.empty()) {
     throw InputError(file_label, 1, "",
                      "empty file (expected the header " + joined(kModelColumns) + " or " +

@@ -151,7 +151,8 @@ TEST(BadRainSeries, FolderIsNotAFile) {
 TEST(BadRainSeries, FileThatCannotBeReadIsAReadError) {
   // Reading /proc/self/mem from its start fails: a file that opens but cannot be read.
   const Site s = make_site("series-unreadable");
-  expect_bad(check(s, "--rain /proc/self/mem"), "/proc/self/mem: read error");
+  expect_bad(check(s, "--rain /proc/self/mem"),
+             "/proc/self/mem: the file could not be read past this line (an input/output error)");
 }
 
 TEST(BadRainSeries, EmptyFileAsksForAHeader) {
@@ -538,13 +539,13 @@ TEST(BadRainReaders, EveryBadFileIsAnInputErrorNamingTheFileOnOneLine) {
 TEST(BadScenario, MissingFileIsNamed) {
   const Site s = make_site("scenario-missing");
   const std::string missing = (s.dir / "none.yaml").string();
-  expect_bad(run("check " + missing, s.dir), missing + ": cannot read the scenario file");
+  expect_bad(run("check " + missing, s.dir), missing + ": no such scenario file");
 }
 
 TEST(BadScenario, FolderIsNotAScenario) {
   const Site s = make_site("scenario-folder");
   expect_bad(run("check " + s.dir.string(), s.dir),
-             s.dir.string() + ": cannot read the scenario file");
+             s.dir.string() + ": is a folder, not a scenario file");
 }
 
 TEST(BadScenario, EmptyFileIsNamed) {

@@ -484,7 +484,7 @@ TEST(Scenario, ReportsAScenarioFileThatCannotBeRead) {
     load_scenario(missing);
     FAIL() << "no error";
   } catch (const InputError& e) {
-    EXPECT_EQ(std::string(e.what()), missing.string() + ": cannot read the scenario file");
+    EXPECT_EQ(std::string(e.what()), missing.string() + ": no such scenario file");
   }
 }
 

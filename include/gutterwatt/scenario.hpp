@@ -135,6 +135,10 @@ struct Scenario {
 Scenario load_scenario(const std::filesystem::path& file,
                        const std::vector<std::string>& overrides = {});
 
+/// The text of a scenario file. Throws InputError naming the file when it does not exist, is a
+/// folder, cannot be opened (with the system's reason) or fails part way.
+std::string read_scenario_text(const std::filesystem::path& file);
+
 /// As load_scenario, from text already read: `file_label` is used in messages and relative rain
 /// paths resolve against `base_dir`. A sweep parses the text once per combination.
 Scenario parse_scenario(std::string_view yaml_text, const std::string& file_label,

@@ -5,9 +5,7 @@
 
 #include <chrono>
 #include <filesystem>
-#include <fstream>
 #include <iostream>
-#include <sstream>
 
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/rain_files.hpp"
@@ -23,16 +21,6 @@ constexpr int kExitFailure = 1;
 constexpr int kExitBadInput = 2;
 // Redraws of the progress bar at most this often.
 constexpr double kRedrawInterval_s = 0.2;
-
-std::string read_scenario_text(const std::string& file) {
-  std::ifstream in(file, std::ios::binary);
-  if (!in || fs::is_directory(file)) {
-    throw InputError(file, 0, "", "cannot read the scenario file");
-  }
-  std::ostringstream text;
-  text << in.rdbuf();
-  return text.str();
-}
 
 /// The progress bar on a terminal's stderr; ends its line when the sweep ends in any way.
 class ProgressBar {
