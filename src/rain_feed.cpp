@@ -20,11 +20,14 @@ constexpr std::size_t kCompactAfter = 4096;
 
 void RainFeed::publish(const RainSeries& so_far) {
   {
-    std::lock_guard lock(mutex_);
+    std::unique_lock lock(mutex_);
+    changed_.wait(lock, [&] { return cancelled_ || !taking_ || pending_.size() < kMaxBacklog; });
     if (cancelled_) throw Cancelled{};
-    pending_.insert(pending_.end(),
-                    so_far.pulses.begin() + static_cast<std::ptrdiff_t>(published_pulses_),
-                    so_far.pulses.end());
+    if (taking_) {
+      pending_.insert(pending_.end(),
+                      so_far.pulses.begin() + static_cast<std::ptrdiff_t>(published_pulses_),
+                      so_far.pulses.end());
+    }
     published_pulses_ = so_far.pulses.size();
     update_covered(covered_, so_far.covered);
     if (!covered_.empty()) final_before_ = std::max(final_before_, covered_.back().end);
@@ -35,9 +38,11 @@ void RainFeed::publish(const RainSeries& so_far) {
 void RainFeed::finish(const RainSeries& whole) {
   {
     std::lock_guard lock(mutex_);
-    pending_.insert(pending_.end(),
-                    whole.pulses.begin() + static_cast<std::ptrdiff_t>(published_pulses_),
-                    whole.pulses.end());
+    if (taking_) {
+      pending_.insert(pending_.end(),
+                      whole.pulses.begin() + static_cast<std::ptrdiff_t>(published_pulses_),
+                      whole.pulses.end());
+    }
     published_pulses_ = whole.pulses.size();
     covered_ = whole.covered;
     final_before_ = kAllFinal;
@@ -54,8 +59,20 @@ void RainFeed::fail(std::exception_ptr error) {
 }
 
 void RainFeed::cancel() {
-  std::lock_guard lock(mutex_);
-  cancelled_ = true;
+  {
+    std::lock_guard lock(mutex_);
+    cancelled_ = true;
+  }
+  changed_.notify_all();
+}
+
+void RainFeed::stop_taking() {
+  {
+    std::lock_guard lock(mutex_);
+    taking_ = false;
+    pending_ = {};
+  }
+  changed_.notify_all();
 }
 
 std::exception_ptr RainFeed::error() const {
@@ -65,14 +82,19 @@ std::exception_ptr RainFeed::error() const {
 
 Instant RainFeed::take(Instant t, std::vector<RainPulse>& pulses, std::vector<TimeSpan>& covered) {
   std::unique_lock lock(mutex_);
-  changed_.wait(lock, [&] { return error_ || final_before_ >= t; });
-  if (error_) std::rethrow_exception(error_);
-  if (pulses.empty()) {
-    pulses.swap(pending_);  // the two buffers take turns, so memory holds one backlog
-  } else {
-    pulses.insert(pulses.end(), pending_.begin(), pending_.end());
+  for (;;) {
+    // What is published is taken at once, which also frees a reader waiting on the backlog.
+    if (pulses.empty()) {
+      pulses.swap(pending_);  // the two buffers take turns, so memory holds one backlog
+    } else {
+      pulses.insert(pulses.end(), pending_.begin(), pending_.end());
+    }
+    pending_.clear();
+    changed_.notify_all();
+    if (error_) std::rethrow_exception(error_);
+    if (final_before_ >= t) break;
+    changed_.wait(lock);
   }
-  pending_.clear();
   update_covered(covered, covered_);
   return final_before_;
 }

@@ -154,10 +154,12 @@ RainSeries load_rain_while(const RainConfig& config, const std::filesystem::path
     reader.join();
     throw;
   } catch (...) {
+    feed.stop_taking();
     reader.join();
     if (const std::exception_ptr error = feed.error()) std::rethrow_exception(error);
     throw;
   }
+  feed.stop_taking();  // the run may end before the record does
   reader.join();
   if (const std::exception_ptr error = feed.error()) std::rethrow_exception(error);
   return std::move(*whole);

@@ -47,7 +47,8 @@ namespace {
 
 namespace odeint = boost::numeric::odeint;
 
-// Continuous state: storages first, then running integrals of every account.
+// Continuous state: storages first, then running integrals of the accounts whose rates are
+// nonlinear in the state. The other accounts follow from these exactly (see Tally).
 enum Slot : std::size_t {
   kRoof,        // water on the roof's linear reservoir, m3
   kDepression,  // initial-loss store filled, m of depth
@@ -55,20 +56,12 @@ enum Slot : std::size_t {
   kReservoir,   // m3
   kColumn,      // head column, m3
   kBattery,     // J
-  kRain,
-  kRoofLoss,
-  kRoofRunoff,
-  kFirstFlush,
   kReservoirOverflow,
-  kColumnOverflow,
   kRelease,
-  kDribble,
   kNozzle,
   kJet,
   kShaft,
-  kElectrical,
   kAccepted,
-  kStored,
   kCurtailed,
   kServed,
   kUnmet,
@@ -76,6 +69,24 @@ enum Slot : std::size_t {
 };
 
 using State = std::array<double, kSlots>;
+
+// The accounts kept outside the solver's state. Within one step the mode is fixed, and each of
+// these grows by a constant rate times the time or by a fixed multiple of the change in a state
+// slot, so they are exact (tally_step) and cost the solver nothing: rain and roof loss at
+// constant rates, roof runoff as what entered the roof store less its change, the diverter's
+// take as its change while filling, dribble as release while the release is not running,
+// column overflow as release less nozzle while brim-full, electrical energy as the generator
+// efficiency times shaft energy while it runs. Stored energy is the charge efficiency times
+// the accepted energy.
+struct Tally {
+  double rain_m3 = 0.0;
+  double roof_loss_m3 = 0.0;
+  double roof_runoff_m3 = 0.0;
+  double first_flush_m3 = 0.0;
+  double dribble_m3 = 0.0;
+  double column_overflow_m3 = 0.0;
+  double electrical_J = 0.0;
+};
 
 enum class Depression { filling, full, drying, dry };
 // A head column fills and drains (partial), spills over its top (full), or, nearly empty under a
@@ -220,6 +231,9 @@ class Engine {
   void open_episode(EpisodeKind kind, double t);
   void close_episode(EpisodeKind kind, double t);
   void update_peaks(const Rates& r);
+  /// Adds to tally_ what a step from x0 to x1 over dt in mode m made of its accounts.
+  void tally_step(const State& x0, const State& x1, double dt, const Mode& m, const Forcing& f);
+  double episode_account(EpisodeKind kind) const;
   Sample make_sample(Instant t, bool output, bool month_end) const;
   Storage storage(const State& x) const;
   Accounts accounts(const State& x) const;
@@ -246,6 +260,7 @@ class Engine {
   double trickle_volume_m3_;  // head column: volume at kTrickleHead_m
 
   State x_{};
+  Tally tally_;
   Mode mode_;
   double now_s_ = 0.0;  // absolute, seconds since the epoch
   double last_wet_s_ = -std::numeric_limits<double>::infinity();
@@ -260,7 +275,6 @@ void Engine::rates(const State& x, const Mode& m, const Forcing& f, Rates& r, St
   r.column_overflow = 0.0;
   const double area = sc_.roof.area_m2;
   const double rain = f.rain_m_per_s * area;
-  d[kRain] = rain;
 
   // Roof: initial loss first, then the runoff coefficient on the remainder (rational method,
   // Q = C i A), routed through a linear reservoir dS/dt = I - S/k (Nash 1957 single reservoir).
@@ -268,11 +282,9 @@ void Engine::rates(const State& x, const Mode& m, const Forcing& f, Rates& r, St
   switch (m.depression) {
     case Depression::filling:
       d[kDepression] = f.rain_m_per_s;
-      d[kRoofLoss] = rain;
       break;
     case Depression::full:
       effective = sc_.roof.runoff_coefficient * rain;
-      d[kRoofLoss] = rain - effective;
       break;
     case Depression::drying:
       d[kDepression] = -sc_.roof.drying_m_per_s;
@@ -285,13 +297,11 @@ void Engine::rates(const State& x, const Mode& m, const Forcing& f, Rates& r, St
     runoff = std::max(0.0, x[kRoof]) / sc_.roof.lag_s;
     d[kRoof] = effective - runoff;
   }
-  d[kRoofRunoff] = runoff;
 
   // First flush: everything goes to the diverter until it holds volume_L.
   double inflow = runoff;
   if (sc_.first_flush.volume_m3 > 0.0 && !m.flush_full) {
     d[kFlush] = runoff;
-    d[kFirstFlush] = runoff;
     inflow = 0.0;
   }
 
@@ -304,7 +314,6 @@ void Engine::rates(const State& x, const Mode& m, const Forcing& f, Rates& r, St
   d[kReservoir] = inflow - r.release - r.overflow;
   d[kReservoirOverflow] = r.overflow;
   d[kRelease] = r.release;
-  d[kDribble] = release_->is_running(m.release) ? 0.0 : r.release;
 
   // Conveyance and nozzle.
   if (plant_.has_column() && m.column == ColumnMode::trickle) {
@@ -325,7 +334,6 @@ void Engine::rates(const State& x, const Mode& m, const Forcing& f, Rates& r, St
     r.nozzle = r.release;
     r.head_m = plant_.nozzle_head_for_flow_m(r.nozzle);
   }
-  d[kColumnOverflow] = r.column_overflow;
   d[kNozzle] = r.nozzle;
 
   // Turbine, generator, battery.
@@ -335,9 +343,7 @@ void Engine::rates(const State& x, const Mode& m, const Forcing& f, Rates& r, St
   d[kBattery] = r.battery.charge_W;
   d[kJet] = r.power.jet_W;
   d[kShaft] = r.power.shaft_W;
-  d[kElectrical] = r.electrical_W;
   d[kAccepted] = r.battery.accepted_W;
-  d[kStored] = sc_.battery.charge_efficiency * r.battery.accepted_W;
   d[kCurtailed] = r.battery.curtailed_W;
   d[kServed] = r.battery.served_W;
   d[kUnmet] = r.battery.unmet_W;
@@ -433,7 +439,7 @@ void Engine::apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rate
       } else if (m.column == ColumnMode::partial) {
         // Brim-full: the excess over the brim leaves as column overflow, conserving water.
         const double excess = x[kColumn] - plant_.column_capacity_m3();
-        x[kColumnOverflow] += excess;
+        tally_.column_overflow_m3 += excess;
         x[kColumn] = plant_.column_capacity_m3();
         m.column = ColumnMode::full;
       } else {
@@ -500,7 +506,7 @@ void Engine::coast(double dt, const Forcing& f) {
   State& x = x_;
   const double area = sc_.roof.area_m2;
   const double rain = f.rain_m_per_s * area;
-  x[kRain] += rain * dt;
+  tally_.rain_m3 += rain * dt;
   double wet_s = 0.0;  // time within dt with the initial loss full
   if (f.rain_m_per_s > 0.0) {
     const double room = sc_.roof.initial_loss_m - x[kDepression];
@@ -516,7 +522,7 @@ void Engine::coast(double dt, const Forcing& f) {
       }
     }
     wet_s = dt - filling_s;
-    x[kRoofLoss] += rain * filling_s + (1.0 - sc_.roof.runoff_coefficient) * rain * wet_s;
+    tally_.roof_loss_m3 += rain * filling_s + (1.0 - sc_.roof.runoff_coefficient) * rain * wet_s;
   } else if (mode_.depression == Depression::drying) {
     x[kDepression] = std::max(0.0, x[kDepression] - sc_.roof.drying_m_per_s * dt);
     if (x[kDepression] <= 0.0) mode_.depression = Depression::dry;
@@ -531,12 +537,12 @@ void Engine::coast(double dt, const Forcing& f) {
     out = x[kRoof] + effective * wet_s - left;
     x[kRoof] = left;
   }
-  x[kRoofRunoff] += out;
+  tally_.roof_runoff_m3 += out;
   double to_reservoir = out;
   if (sc_.first_flush.volume_m3 > 0.0 && !mode_.flush_full) {
     const double taken = std::min(out, sc_.first_flush.volume_m3 - x[kFlush]);
     x[kFlush] += taken;
-    x[kFirstFlush] += taken;
+    tally_.first_flush_m3 += taken;
     to_reservoir -= taken;
     if (x[kFlush] >= sc_.first_flush.volume_m3) {
       x[kFlush] = sc_.first_flush.volume_m3;
@@ -661,6 +667,7 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
         fail("the state is not finite", t0 + t_end);
       }
     }
+    tally_step(x_, x_end, t_end - t, mode_, f);
     x_ = x_end;
     t = t_end;
     now_s_ = t0 + t;
@@ -740,6 +747,7 @@ void Engine::integrate_fixed(double t0, double t1, const Forcing& f) {
         fail("the state is not finite", t0 + t + h);
       }
     }
+    tally_step(x_, x_end, h, mode_, f);
     x_ = x_end;
     t += h;
     now_s_ = t0 + t;
@@ -776,19 +784,44 @@ void Engine::advance(Instant t0, Instant t1, const Forcing& f) {
   if (f.rain_m_per_s > 0.0) last_wet_s_ = now_s_;
 }
 
+void Engine::tally_step(const State& x0, const State& x1, double dt, const Mode& m,
+                        const Forcing& f) {
+  const double rain = f.rain_m_per_s * sc_.roof.area_m2;
+  tally_.rain_m3 += rain * dt;
+  double effective = 0.0;
+  if (m.depression == Depression::filling) {
+    tally_.roof_loss_m3 += rain * dt;
+  } else if (m.depression == Depression::full) {
+    effective = sc_.roof.runoff_coefficient * rain;
+    tally_.roof_loss_m3 += (rain - effective) * dt;
+  }
+  // dS/dt = effective - runoff on the roof (runoff = effective without a lag).
+  const double runoff = effective * dt - (sc_.roof.lag_s > 0.0 ? x1[kRoof] - x0[kRoof] : 0.0);
+  tally_.roof_runoff_m3 += runoff;
+  if (sc_.first_flush.volume_m3 > 0.0 && !m.flush_full) {
+    tally_.first_flush_m3 += x1[kFlush] - x0[kFlush];
+  }
+  const double released = x1[kRelease] - x0[kRelease];
+  if (!release_->is_running(m.release)) tally_.dribble_m3 += released;
+  if (plant_.has_column() && m.column == ColumnMode::full) {
+    tally_.column_overflow_m3 += released - (x1[kNozzle] - x0[kNozzle]);
+  }
+  if (m.generator_on) tally_.electrical_J += sc_.generator.efficiency * (x1[kShaft] - x0[kShaft]);
+}
+
 // The account an episode's volume is measured on.
-Slot volume_slot(EpisodeKind kind) {
+double Engine::episode_account(EpisodeKind kind) const {
   switch (kind) {
     case EpisodeKind::cycle:
-      return kRelease;
+      return x_[kRelease];
     case EpisodeKind::overflow:
-      return kReservoirOverflow;
+      return x_[kReservoirOverflow];
     case EpisodeKind::dribble:
-      return kDribble;
+      return tally_.dribble_m3;
     case EpisodeKind::column_overflow:
-      return kColumnOverflow;
+      return tally_.column_overflow_m3;
   }
-  return kRelease;
+  return x_[kRelease];
 }
 
 void Engine::open_episode(EpisodeKind kind, double t) {
@@ -796,15 +829,15 @@ void Engine::open_episode(EpisodeKind kind, double t) {
   e.open = true;
   e.start_s = t;
   e.peak = 0.0;
-  e.start_energy_J = x_[kElectrical];
-  e.start_volume_m3 = x_[volume_slot(kind)];
+  e.start_energy_J = tally_.electrical_J;
+  e.start_volume_m3 = episode_account(kind);
 }
 
 void Engine::close_episode(EpisodeKind kind, double t) {
   OpenEpisode& e = episodes_[static_cast<std::size_t>(kind)];
   if (!e.open) return;
   e.open = false;
-  const double volume = x_[volume_slot(kind)] - e.start_volume_m3;
+  const double volume = episode_account(kind) - e.start_volume_m3;
   switch (kind) {
     case EpisodeKind::cycle:
       ++result_.cycles;
@@ -821,7 +854,7 @@ void Engine::close_episode(EpisodeKind kind, double t) {
       break;
   }
   observer_.on_episode(
-      Episode{kind, e.start_s, t, volume, e.peak, x_[kElectrical] - e.start_energy_J});
+      Episode{kind, e.start_s, t, volume, e.peak, tally_.electrical_J - e.start_energy_J});
 }
 
 void Engine::track_episodes(const Mode& before, const Mode& after, double t) {
@@ -863,20 +896,20 @@ Storage Engine::storage(const State& x) const {
 
 Accounts Engine::accounts(const State& x) const {
   Accounts a;
-  a.rain_m3 = x[kRain];
-  a.roof_loss_m3 = x[kRoofLoss];
-  a.roof_runoff_m3 = x[kRoofRunoff];
-  a.first_flush_m3 = x[kFirstFlush];
+  a.rain_m3 = tally_.rain_m3;
+  a.roof_loss_m3 = tally_.roof_loss_m3;
+  a.roof_runoff_m3 = tally_.roof_runoff_m3;
+  a.first_flush_m3 = tally_.first_flush_m3;
   a.reservoir_overflow_m3 = x[kReservoirOverflow];
-  a.column_overflow_m3 = x[kColumnOverflow];
+  a.column_overflow_m3 = tally_.column_overflow_m3;
   a.release_m3 = x[kRelease];
-  a.dribble_m3 = x[kDribble];
+  a.dribble_m3 = tally_.dribble_m3;
   a.nozzle_m3 = x[kNozzle];
   a.jet_J = x[kJet];
   a.shaft_J = x[kShaft];
-  a.electrical_J = x[kElectrical];
+  a.electrical_J = tally_.electrical_J;
   a.accepted_J = x[kAccepted];
-  a.stored_J = x[kStored];
+  a.stored_J = sc_.battery.charge_efficiency * x[kAccepted];
   a.curtailed_J = x[kCurtailed];
   a.served_J = x[kServed];
   a.unmet_J = x[kUnmet];

@@ -2,6 +2,7 @@
 
 #include <gtest/gtest.h>
 
+#include <atomic>
 #include <chrono>
 #include <filesystem>
 #include <fstream>
@@ -148,6 +149,33 @@ TEST(RainFeed, CancelStopsTheReaderAtItsNextPublication) {
   EXPECT_THROW(feed.publish(block_rain(0, 600, {}, 300)), RainFeed::Cancelled);
 }
 
+TEST(RainFeed, ReaderFarAheadWaitsForTheSimulation) {
+  // Rain every minute for 150 days: three backlogs' worth of pulses.
+  const Instant days = 150;
+  const RainSeries whole = block_rain(0, days * 86400, {{0, days * 86400, 1e-7}}, 60);
+  ASSERT_GT(whole.pulses.size(), 3 * RainFeed::kMaxBacklog);
+  RainFeed feed(GapPolicy::error);
+  std::atomic<Instant> read_to{0};
+  std::thread reader([&] {
+    for (Instant t = 86400; t < days * 86400; t += 86400) {
+      feed.publish(read_up_to(whole, t));
+      read_to = t;
+    }
+    feed.finish(whole);
+    read_to = days * 86400;
+  });
+  RainView view(feed);
+  view.need(86400);
+  const Instant taken = view.final_before();
+  std::this_thread::sleep_for(std::chrono::milliseconds(50));
+  // The reader has stopped about one backlog (45.5 days of pulses) ahead of what was taken.
+  EXPECT_LE(read_to.load(), taken + 48 * 86400);
+  EXPECT_LT(read_to.load(), days * 86400);
+  view.need(kAllFinal);
+  reader.join();
+  EXPECT_EQ(view.pulses_from(0).size(), whole.pulses.size());
+}
+
 TEST(RainFeed, StreamedRecordGivesTheSameRunAsTheWholeRecord) {
   Scenario sc = make_scenario(86400.0, 3600.0);
   const RainSeries whole = storm_day(kStart, kStart + 86400);
@@ -248,6 +276,21 @@ TEST(LoadRainWhile, ReturnsTheWholeRecordReadOnASecondThread) {
   EXPECT_EQ(rain.covered.size(), 1u);
   EXPECT_DOUBLE_EQ(rain.total_depth_m, 0.2e-3);
   std::filesystem::remove(file);
+}
+
+TEST(LoadRainWhile, RunThatEndsEarlyLetsTheReaderFinish) {
+  // More wet rows than a backlog, and a consumer that takes none of them.
+  const auto path = std::filesystem::temp_directory_path() / "gutterwatt-feed-early-end.csv";
+  {
+    std::ofstream out(path);
+    out << "time,rain_mm\n";
+    for (std::size_t m = 1; m <= RainFeed::kMaxBacklog + 5000; ++m) {
+      out << format_iso8601(kStart + 60 * static_cast<Instant>(m)) << ",0.1\n";
+    }
+  }
+  const RainSeries rain = load_rain_while(series_config(path), {}, [](RainView&) {});
+  EXPECT_EQ(rain.pulses.size(), RainFeed::kMaxBacklog + 5000);
+  std::filesystem::remove(path);
 }
 
 TEST(LoadRainWhile, InterruptStopsTheReading) {

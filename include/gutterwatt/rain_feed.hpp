@@ -27,6 +27,9 @@ class RainFeed {
   /// Thrown in the reader by publish() once the consumer has cancelled: it stops reading.
   struct Cancelled {};
 
+  /// Published pulses not yet taken at which the reader waits.
+  static constexpr std::size_t kMaxBacklog = 1 << 16;
+
   explicit RainFeed(GapPolicy policy) : policy_(policy) {}
   RainFeed(const RainFeed&) = delete;
   RainFeed& operator=(const RainFeed&) = delete;
@@ -35,7 +38,9 @@ class RainFeed {
 
   /// Reader: `so_far` is the record read so far, append-only between calls (new pulses at the
   /// end; covered spans appended, the last one possibly extended). It is final before the end of
-  /// its last covered span. Throws Cancelled after cancel().
+  /// its last covered span. Waits while kMaxBacklog pulses are published but not taken, so that
+  /// a reader ahead of the simulation does not hold a second copy of the record. Throws
+  /// Cancelled after cancel().
   void publish(const RainSeries& so_far);
   /// Reader: the record is complete; `whole` is all of it.
   void finish(const RainSeries& whole);
@@ -44,6 +49,8 @@ class RainFeed {
 
   /// Consumer: stop the reader at its next publication.
   void cancel();
+  /// Consumer: it takes nothing more; the reader reads on without waiting or keeping pulses.
+  void stop_taking();
   /// The reader's error, once it has failed (null otherwise).
   std::exception_ptr error() const;
 
@@ -62,6 +69,7 @@ class RainFeed {
   std::vector<TimeSpan> covered_;  ///< all covered spans published
   Instant final_before_ = kNeverFinal;
   bool cancelled_ = false;
+  bool taking_ = true;
   std::exception_ptr error_;
 };
 
