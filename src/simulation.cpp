@@ -217,7 +217,7 @@ class Engine {
   int guards(const State& x, const Mode& m, const Forcing& f, const Rates& r, Guards& g) const;
   void apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rates& r, double t);
   /// Applies every switch already due; returns the rates and guards of the settled state.
-  Rates settle(State& x, Mode& m, const Forcing& f, double t, Guards& g);
+  Rates settle(State& x, Mode& m, const Forcing& f, double t, Guards& g, State& dxdt);
   bool at_rest(const State& x, const Mode& m, const Forcing& f, double span_s) const;
 
   // Time.
@@ -465,9 +465,10 @@ void Engine::apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rate
 }
 
 // Applies every switch whose guard is already below zero, so the mode matches the state.
-Rates Engine::settle(State& x, Mode& m, const Forcing& f, double t, Guards& g) {
+Rates Engine::settle(State& x, Mode& m, const Forcing& f, double t, Guards& g, State& dxdt) {
   for (int pass = 0; pass < kMaxSwitchesAtOnce; ++pass) {
-    const Rates r = rates(x, m, f);
+    Rates r;
+    rates(x, m, f, r, dxdt);
     guards(x, m, f, r, g);
     int fired = -1;
     for (int k = 0; k < kGuardCount; ++k) {
@@ -563,11 +564,23 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
   // The last stage of a Dormand-Prince step is evaluated at the step's end state (FSAL); keeping
   // it spares the guard evaluation there a second call of the whole chain. The stage's time tells
   // it apart: odeint evaluates it last, at the time the step ends.
+  // After a restart odeint first asks for the derivative at the state it starts from, which the
+  // engine has just computed (settling the modes, or as the last stage of the step before):
+  // `known` hands it over instead of a second evaluation.
   Rates last;
   double last_t = std::numeric_limits<double>::quiet_NaN();
-  const auto system = [this, &f, &last, &last_t](const State& x, State& dxdt, double t) {
-    rates(x, mode_, f, last, dxdt);
+  const State* last_dxdt = nullptr;  // odeint's buffer holding the last derivative
+  bool known = false;
+  State known_dxdt{};
+  const auto system = [&](const State& x, State& dxdt, double t) {
+    if (known) {
+      known = false;
+      dxdt = known_dxdt;
+    } else {
+      rates(x, mode_, f, last, dxdt);
+    }
     last_t = t;
+    last_dxdt = &dxdt;
   };
   const double span = t1 - t0;
   double t = 0.0;  // time within the segment, for precision
@@ -585,10 +598,14 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
       return;
     }
     if (fresh) {
-      update_peaks(settle(x_, mode_, f, now_s_, g_prev));
+      last = settle(x_, mode_, f, now_s_, g_prev, known_dxdt);
+      update_peaks(last);
       stepper.initialize(x_, t, std::min(dt, span - t));
+      known = true;
       fresh = false;
     } else if (stepper.current_time() + stepper.current_time_step() > span) {
+      known = last_t == t && last_dxdt != nullptr;
+      if (known) known_dxdt = *last_dxdt;
       stepper.initialize(x_, t, span - t);
     }
     std::pair<double, double> step;
@@ -710,7 +727,8 @@ void Engine::integrate_fixed(double t0, double t1, const Forcing& f) {
       return;
     }
     if (fresh) {
-      update_peaks(settle(x_, mode_, f, now_s_, g_prev));
+      State dxdt;
+      update_peaks(settle(x_, mode_, f, now_s_, g_prev, dxdt));
       fresh = false;
     }
     double h = std::min(options_.fixed_step_s, span - t);
