@@ -28,7 +28,7 @@ class RainFeed {
   struct Cancelled {};
 
   /// Published pulses not yet taken at which the reader waits.
-  static constexpr std::size_t kMaxBacklog = 1 << 16;
+  static constexpr std::size_t kMaxBacklog = 1 << 14;
 
   explicit RainFeed(GapPolicy policy) : policy_(policy) {}
   RainFeed(const RainFeed&) = delete;
