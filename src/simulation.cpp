@@ -1005,6 +1005,16 @@ RunResult Engine::run() {
   };
   learn_end();
   const GapPolicy policy = rain_.policy();
+  if (policy == GapPolicy::error && rain_.complete()) {
+    // A whole record: time it does not cover is known before the run, and reported at once.
+    Instant cursor = start;
+    for (const TimeSpan& c : rain_.covered()) {
+      if (c.end <= cursor) continue;
+      if (c.start > cursor || cursor >= *end) break;
+      cursor = c.end;
+    }
+    if (cursor < *end) missing_data(missing_from(cursor, end), start, *end);
+  }
 
   result_.start = start;
   checker_.rtol = sc_.simulation.rtol;
