@@ -224,6 +224,9 @@ class Engine {
   void advance(Instant t0, Instant t1, const Forcing& f);
   void integrate(double t0, double t1, const Forcing& f);
   void integrate_fixed(double t0, double t1, const Forcing& f);
+  bool coasted_to_end(double left_s, const Forcing& f, double t1);
+  void accept_step(const State& x_end, double dt, const Rates& r, int fired, const Forcing& f,
+                   double t_abs);
   void coast(double dt, const Forcing& f);
 
   // Records.
@@ -591,12 +594,7 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
   long segment_steps = 0;
   Guards g_prev{};
   while (t < span) {
-    if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
-    if (at_rest(x_, mode_, f, span - t)) {
-      coast(span - t, f);
-      now_s_ = t1;
-      return;
-    }
+    if (coasted_to_end(span - t, f, t1)) return;
     if (fresh) {
       last = settle(x_, mode_, f, now_s_, g_prev, known_dxdt);
       update_peaks(last);
@@ -678,19 +676,9 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
       stepper.calc_state(t_end, x_end);
       r = rates(x_end, mode_, f);
     }
-    for (double v : x_end) {
-      if (!std::isfinite(v)) {
-        x_ = x_end;
-        fail("the state is not finite", t0 + t_end);
-      }
-    }
-    tally_step(x_, x_end, t_end - t, mode_, f);
-    x_ = x_end;
+    accept_step(x_end, t_end - t, r, first, f, t0 + t_end);
     t = t_end;
-    now_s_ = t0 + t;
-    update_peaks(r);
     if (first >= 0) {
-      apply_switch(first, x_, mode_, f, r, now_s_);
       dt = std::max(1e-3, stepper.current_time_step());
       fresh = true;
     } else {
@@ -700,6 +688,32 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
     last_step_s_ = std::max(1e-3, stepper.current_time_step());
   }
   now_s_ = t1;
+}
+
+// Between steps: stops on request, and ends the segment in closed form once it is at rest.
+bool Engine::coasted_to_end(double left_s, const Forcing& f, double t1) {
+  if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
+  if (!at_rest(x_, mode_, f, left_s)) return false;
+  coast(left_s, f);
+  now_s_ = t1;
+  return true;
+}
+
+// Makes the state at the end of a step (or at the switch `fired` inside it, -1 for none), reached
+// at absolute time `t_abs` after `dt`, the engine's state, and applies the switch.
+void Engine::accept_step(const State& x_end, double dt, const Rates& r, int fired, const Forcing& f,
+                         double t_abs) {
+  for (double v : x_end) {
+    if (!std::isfinite(v)) {
+      x_ = x_end;
+      fail("the state is not finite", t_abs);
+    }
+  }
+  tally_step(x_, x_end, dt, mode_, f);
+  x_ = x_end;
+  now_s_ = t_abs;
+  update_peaks(r);
+  if (fired >= 0) apply_switch(fired, x_, mode_, f, r, now_s_);
 }
 
 // The reference integration: classic Runge-Kutta (Kutta 1901) at a fixed step, every switch
@@ -720,12 +734,7 @@ void Engine::integrate_fixed(double t0, double t1, const Forcing& f) {
   bool fresh = true;
   Guards g_prev{};
   while (t < span) {
-    if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
-    if (at_rest(x_, mode_, f, span - t)) {
-      coast(span - t, f);
-      now_s_ = t1;
-      return;
-    }
+    if (coasted_to_end(span - t, f, t1)) return;
     if (fresh) {
       State dxdt;
       update_peaks(settle(x_, mode_, f, now_s_, g_prev, dxdt));
@@ -759,19 +768,10 @@ void Engine::integrate_fixed(double t0, double t1, const Forcing& f) {
       x_end = step_to(h);
       r = rates(x_end, mode_, f);
     }
-    for (double v : x_end) {
-      if (!std::isfinite(v)) {
-        x_ = x_end;
-        fail("the state is not finite", t0 + t + h);
-      }
-    }
-    tally_step(x_, x_end, h, mode_, f);
-    x_ = x_end;
-    t += h;
-    now_s_ = t0 + t;
-    update_peaks(r);
+    const double t_next = t + h;
+    accept_step(x_end, h, r, first, f, t0 + t_next);
+    t = t_next;
     if (first >= 0) {
-      apply_switch(first, x_, mode_, f, r, now_s_);
       fresh = true;
     } else {
       g_prev = g_end;
