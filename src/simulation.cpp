@@ -48,7 +48,7 @@ namespace {
 namespace odeint = boost::numeric::odeint;
 
 // Continuous state: storages first, then running integrals of the accounts whose rates are
-// nonlinear in the state. The other accounts follow from these exactly (see Tally).
+// nonlinear in the state. The other accounts follow from these exactly (see tally_step).
 enum Slot : std::size_t {
   kRoof,        // water on the roof's linear reservoir, m3
   kDepression,  // initial-loss store filled, m of depth
@@ -70,23 +70,14 @@ enum Slot : std::size_t {
 
 using State = std::array<double, kSlots>;
 
-// The accounts kept outside the solver's state. Within one step the mode is fixed, and each of
-// these grows by a constant rate times the time or by a fixed multiple of the change in a state
-// slot, so they are exact (tally_step) and cost the solver nothing: rain and roof loss at
-// constant rates, roof runoff as what entered the roof store less its change, the diverter's
-// take as its change while filling, dribble as release while the release is not running,
-// column overflow as release less nozzle while brim-full, electrical energy as the generator
-// efficiency times shaft energy while it runs. Stored energy is the charge efficiency times
-// the accepted energy.
-struct Tally {
-  double rain_m3 = 0.0;
-  double roof_loss_m3 = 0.0;
-  double roof_runoff_m3 = 0.0;
-  double first_flush_m3 = 0.0;
-  double dribble_m3 = 0.0;
-  double column_overflow_m3 = 0.0;
-  double electrical_J = 0.0;
-};
+// The accounts kept outside the solver's state, in an Accounts whose other fields stay zero
+// (tally_). Within one step the mode is fixed, and each of these grows by a constant rate times
+// the time or by a fixed multiple of the change in a state slot, so they are exact (tally_step)
+// and cost the solver nothing: rain and roof loss at constant rates, roof runoff as what entered
+// the roof store less its change, the diverter's take as its change while filling, dribble as
+// release while the release is not running, column overflow as release less nozzle while
+// brim-full, electrical energy as the generator efficiency times shaft energy while it runs.
+// Stored energy is the charge efficiency times the accepted energy.
 
 enum class Depression { filling, full, drying, dry };
 // A head column fills and drains (partial), spills over its top (full), or, nearly empty under a
@@ -263,7 +254,7 @@ class Engine {
   double trickle_volume_m3_;  // head column: volume at kTrickleHead_m
 
   State x_{};
-  Tally tally_;
+  Accounts tally_;  // the accounts tallied outside the state
   Mode mode_;
   double now_s_ = 0.0;  // absolute, seconds since the epoch
   double last_wet_s_ = -std::numeric_limits<double>::infinity();
@@ -913,19 +904,12 @@ Storage Engine::storage(const State& x) const {
 }
 
 Accounts Engine::accounts(const State& x) const {
-  Accounts a;
-  a.rain_m3 = tally_.rain_m3;
-  a.roof_loss_m3 = tally_.roof_loss_m3;
-  a.roof_runoff_m3 = tally_.roof_runoff_m3;
-  a.first_flush_m3 = tally_.first_flush_m3;
+  Accounts a = tally_;
   a.reservoir_overflow_m3 = x[kReservoirOverflow];
-  a.column_overflow_m3 = tally_.column_overflow_m3;
   a.release_m3 = x[kRelease];
-  a.dribble_m3 = tally_.dribble_m3;
   a.nozzle_m3 = x[kNozzle];
   a.jet_J = x[kJet];
   a.shaft_J = x[kShaft];
-  a.electrical_J = tally_.electrical_J;
   a.accepted_J = x[kAccepted];
   a.stored_J = sc_.battery.charge_efficiency * x[kAccepted];
   a.curtailed_J = x[kCurtailed];
