@@ -18,17 +18,21 @@ constexpr std::size_t kCompactAfter = 4096;
 
 }  // namespace
 
+void RainFeed::append_new_pulses(const RainSeries& read) {
+  if (taking_) {
+    pending_.insert(pending_.end(),
+                    read.pulses.begin() + static_cast<std::ptrdiff_t>(published_pulses_),
+                    read.pulses.end());
+  }
+  published_pulses_ = read.pulses.size();
+}
+
 void RainFeed::publish(const RainSeries& so_far) {
   {
     std::unique_lock lock(mutex_);
     changed_.wait(lock, [&] { return cancelled_ || !taking_ || pending_.size() < kMaxBacklog; });
     if (cancelled_) throw Cancelled{};
-    if (taking_) {
-      pending_.insert(pending_.end(),
-                      so_far.pulses.begin() + static_cast<std::ptrdiff_t>(published_pulses_),
-                      so_far.pulses.end());
-    }
-    published_pulses_ = so_far.pulses.size();
+    append_new_pulses(so_far);
     update_covered(covered_, so_far.covered);
     if (!covered_.empty()) final_before_ = std::max(final_before_, covered_.back().end);
   }
@@ -38,12 +42,7 @@ void RainFeed::publish(const RainSeries& so_far) {
 void RainFeed::finish(const RainSeries& whole) {
   {
     std::lock_guard lock(mutex_);
-    if (taking_) {
-      pending_.insert(pending_.end(),
-                      whole.pulses.begin() + static_cast<std::ptrdiff_t>(published_pulses_),
-                      whole.pulses.end());
-    }
-    published_pulses_ = whole.pulses.size();
+    append_new_pulses(whole);
     covered_ = whole.covered;
     final_before_ = kAllFinal;
   }
@@ -111,7 +110,7 @@ void RainView::need(Instant t) {
 
 void RainView::need_data() {
   while (covered().empty() && !complete()) {
-    need(final_before_ == kNeverFinal ? kNeverFinal + 1 : final_before_ + 1);
+    need(final_before_ + 1);
   }
 }
 

@@ -153,8 +153,6 @@ bool is_comment_or_blank(std::string_view line) {
   return trimmed.empty() || trimmed.front() == '#';
 }
 
-// Line numbers and offsets change rarely from row to row, so they are kept as marks at the rows
-// where the simple rule (next line, same offset) stops holding.
 // Exact summation: the running sum is held as non-overlapping partials and rounded once at the
 // end. Source: Shewchuk (1997), Adaptive precision floating-point arithmetic and fast robust
 // geometric predicates, Discrete Comput. Geom. 18, 305-363 (grow-expansion, Theorem 13).

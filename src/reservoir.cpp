@@ -53,11 +53,11 @@ ReservoirGeometry::ReservoirGeometry(const ReservoirConfig& config)
     });
     // Above a shallow start the level is smooth in the volume: a uniform table in V serves there
     // without the cube root and the Newton step the shallow part needs.
-    volume_table_start_m3_ = circular_segment_area_m2(r, 0.1 * r) * length_m_;
+    const double volume_table_start_m3 = circular_segment_area_m2(r, 0.1 * r) * length_m_;
     if (rim_m_ > 0.1 * r) {
       volume_table_ =
-          UniformTable(volume_table_start_m3_, circular_segment_area_m2(r, rim_m_) * length_m_,
-                       4096, [this](double v) { return solve_half_round_level_m(v / length_m_); });
+          UniformTable(volume_table_start_m3, circular_segment_area_m2(r, rim_m_) * length_m_, 4096,
+                       [this](double v) { return solve_half_round_level_m(v / length_m_); });
     }
   }
   rim_area_m2_ = section_area_m2(rim_m_);
@@ -131,7 +131,7 @@ double ReservoirGeometry::level_m(double volume_m3) const {
     case ReservoirShape::half_round:
       break;
   }
-  if (v >= volume_table_start_m3_ && volume_table_.covers(v)) return volume_table_(v);
+  if (volume_table_.covers(v)) return volume_table_(v);
   // Half-round, shallow: the level is an analytic function of w = A^(2/3) (A ~ (4/3) sqrt(2r)
   // h^1.5 for h << r), tabulated once; one Newton step on A(h) = A polishes the value.
   const double r = 0.5 * width_m_;

@@ -2,7 +2,6 @@
 
 #include <algorithm>
 #include <array>
-#include <boost/math/tools/roots.hpp>
 #include <boost/numeric/odeint.hpp>
 #include <cmath>
 #include <limits>
@@ -94,6 +93,11 @@ struct Mode {
   bool generator_on = false;
   BatteryMode battery = BatteryMode::normal;
 };
+
+// A pulse's rain intensity, m/s: constant over the pulse.
+double intensity_m_per_s(const RainPulse& p) {
+  return p.depth_m / static_cast<double>(p.end - p.start);
+}
 
 // What drives a segment: constant over it.
 struct Forcing {
@@ -205,7 +209,7 @@ class Engine {
   /// Fills `r` and the derivative `d` (every field and slot) for state `x`: the solver's hot
   /// path, which must not copy Rates.
   void rates(const State& x, const Mode& m, const Forcing& f, Rates& r, State& d) const;
-  int guards(const State& x, const Mode& m, const Forcing& f, const Rates& r, Guards& g) const;
+  void guards(const State& x, const Mode& m, const Forcing& f, const Rates& r, Guards& g) const;
   void apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rates& r, double t);
   /// Applies every switch already due; returns the rates and guards of the settled state.
   Rates settle(State& x, Mode& m, const Forcing& f, double t, Guards& g, State& dxdt);
@@ -343,8 +347,8 @@ void Engine::rates(const State& x, const Mode& m, const Forcing& f, Rates& r, St
   d[kUnmet] = r.battery.unmet_W;
 }
 
-int Engine::guards(const State& x, const Mode& m, const Forcing& f, const Rates& r,
-                   Guards& g) const {
+void Engine::guards(const State& x, const Mode& m, const Forcing& f, const Rates& r,
+                    Guards& g) const {
   constexpr double kInactive = 1.0;
   g.fill(kInactive);
   Guard rel[Release::kMaxGuards];
@@ -395,7 +399,6 @@ int Engine::guards(const State& x, const Mode& m, const Forcing& f, const Rates&
       g[kGuardBattery] = -surplus;
       break;
   }
-  return n;
 }
 
 void Engine::apply_switch(int k, State& x, Mode& m, const Forcing& f, const Rates& r, double t) {
@@ -580,7 +583,6 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
   double t = 0.0;  // time within the segment, for precision
   const double max_step = f.rain_m_per_s > 0.0 ? kMaxWetStep_s : kMaxDryStep_s;
   Dense stepper(Controlled(checker_, odeint::default_step_adjuster<double, double>(max_step)));
-  double dt = std::min(span, last_step_s_);
   bool fresh = true;
   long segment_steps = 0;
   Guards g_prev{};
@@ -589,7 +591,7 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
     if (fresh) {
       last = settle(x_, mode_, f, now_s_, g_prev, known_dxdt);
       update_peaks(last);
-      stepper.initialize(x_, t, std::min(dt, span - t));
+      stepper.initialize(x_, t, std::min(last_step_s_, span - t));
       known = true;
       fresh = false;
     } else if (stepper.current_time() + stepper.current_time_step() > span) {
@@ -637,7 +639,8 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
       double lo = step.first;
       double hi = t_switch;
       double g_lo = g_prev[k];
-      double g_hi = guard_at(hi);
+      // At the step's end the guard is known; before an earlier switch it must be looked up.
+      double g_hi = first < 0 ? g_end[k] : guard_at(hi);
       if (g_hi >= 0.0) continue;  // crosses only after an earlier switch
       // Illinois regula falsi on the dense output to 1e-10 s (Dowell & Jarratt 1971): a switch is
       // placed, not rounded to a step, and the accounts it splits move by less than 1e-9 of their
@@ -670,7 +673,6 @@ void Engine::integrate(double t0, double t1, const Forcing& f) {
     accept_step(x_end, t_end - t, r, first, f, t0 + t_end);
     t = t_end;
     if (first >= 0) {
-      dt = std::max(1e-3, stepper.current_time_step());
       fresh = true;
     } else {
       g_prev = g_end;
@@ -1061,14 +1063,12 @@ RunResult Engine::run() {
     const std::span<const RainPulse> pulses = rain_.pulses_from(t);
     if (!pulses.empty() && pulses.front().start <= t) {
       const RainPulse& p = pulses.front();
-      f.rain_m_per_s = p.depth_m / static_cast<double>(p.end - p.start);
+      f.rain_m_per_s = intensity_m_per_s(p);
       // Back-to-back intervals of the same intensity are one forcing: no solver restart between.
       std::size_t last = 0;
       while (last + 1 < pulses.size() && pulses[last].end < next &&
              pulses[last + 1].start == pulses[last].end &&
-             pulses[last + 1].depth_m /
-                     static_cast<double>(pulses[last + 1].end - pulses[last + 1].start) ==
-                 f.rain_m_per_s) {
+             intensity_m_per_s(pulses[last + 1]) == f.rain_m_per_s) {
         ++last;
       }
       next = std::min(next, pulses[last].end);

@@ -60,6 +60,8 @@ class RainFeed {
   /// appends the pulses published since the last call to `pulses` and brings `covered` up to date.
   /// Returns the time before which the record is final (kAllFinal once complete).
   Instant take(Instant t, std::vector<RainPulse>& pulses, std::vector<TimeSpan>& covered);
+  /// Under the lock: queues the pulses of `read` not yet published, unless nobody takes them.
+  void append_new_pulses(const RainSeries& read);
 
   const GapPolicy policy_;
   mutable std::mutex mutex_;

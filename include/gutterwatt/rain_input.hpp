@@ -214,7 +214,7 @@ std::vector<MonthCoverage> month_coverage(const RainSeries& rain, Instant start,
                                           int utc_offset_s);
 
 /// One warning per month below kMinMonthCoverage, e.g. `rain data cover 85.2 % of 2025-04
-/// (below 90 %): that month's rain and yield are low, or cover less time`.
+/// (below 90 %): that month's rain and yield are understated`.
 std::vector<std::string> coverage_warnings(const std::vector<MonthCoverage>& months);
 
 }  // namespace gutterwatt

@@ -44,8 +44,7 @@ class ReservoirGeometry {
   double rim_volume_m3_;
   double rim_area_m2_;
   UniformTable shallow_table_;  ///< half-round: level against w = A^(2/3)
-  double volume_table_start_m3_ = 0.0;
-  UniformTable volume_table_;  ///< half-round: level against volume above 10 % of the radius
+  UniformTable volume_table_;   ///< half-round: level against volume above 10 % of the radius
 };
 
 /// Wetted cross-section of a circle of radius `radius_m` filled to depth `depth_m` (0..2r):

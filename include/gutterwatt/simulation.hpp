@@ -90,7 +90,6 @@ class Observer {
 /// Numbers about the integration itself.
 struct SolverStats {
   long steps = 0;
-  long rejected_starts = 0;
   long switches = 0;
   long segments = 0;
   double coasted_s = 0.0;  ///< dry time at rest skipped in closed form
@@ -114,7 +113,8 @@ struct RunResult {
 };
 
 struct RunOptions {
-  /// Checked between rain intervals; when set, simulate throws Interrupted.
+  /// Checked between rain intervals and between solver steps; when set, simulate throws
+  /// Interrupted.
   const std::atomic<bool>* stop = nullptr;
   /// When > 0, a reference integration: classic fourth-order Runge-Kutta at this fixed step (s)
   /// instead of the error-controlled Dormand-Prince steps, switches located by bisection on
@@ -132,8 +132,8 @@ RunResult simulate(const Scenario& scenario, const RainSeries& rain, Observer& o
                    const RunOptions& options = {});
 
 /// The same, on a record that may still be arriving (see RainView); the results do not depend on
-/// how the record arrives. Under `rain.gaps: error`, time the record does not cover is found when
-/// the simulation reaches it.
+/// how the record arrives. Under `rain.gaps: error`, time a complete record does not cover is
+/// reported before the run; on a record still arriving, when the simulation reaches it.
 RunResult simulate(const Scenario& scenario, RainView& rain, Observer& observer,
                    const RunOptions& options = {});
 
