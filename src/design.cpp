@@ -1,6 +1,7 @@
 #include "gutterwatt/design.hpp"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <cstdio>
 #include <map>
@@ -68,20 +69,35 @@ double one_cycle_energy_J(const Scenario& sc, double set_point_m) {
 
 }  // namespace
 
-const char* safety_cautions() {
-  return "Working at height: roof and gutter work needs safe access (a secured ladder or a "
-         "platform), a second person, and no work in wind, rain or ice.\n"
-         "Electrics and batteries: batteries store enough energy to burn and start fires; fuse "
-         "every circuit next to the battery, ventilate lead-acid batteries, and keep water away "
-         "from terminals and the generator's wiring.\n"
-         "Overflow water: an overflowing gutter or tank soaks walls and foundations and can flood "
-         "neighbours; lead overflow to a safe drain, well away from the building.\n"
-         "Gutter loading: a gutter held full of water weighs several kilograms per metre; check "
-         "that brackets and fascia carry it, and snow and ice on top.\n"
-         "Standing water: screen every opening against mosquitoes and keep children and animals "
-         "away from open tanks.\n"
-         "These are model estimates. Local building, plumbing and electrical codes and licensed "
-         "practitioners have the last word.";
+std::span<const Caution> safety_cautions() {
+  static constexpr std::array<Caution, 6> kCautions{{
+      {"Working at height",
+       "Roofs and gutters are reached by ladders and edges that people fall from. Use sound "
+       "access equipment, keep three points of contact, do not work alone, and stay off wet, icy "
+       "or windy roofs."},
+      {"Batteries and electrics",
+       "Even a small battery can deliver enough current to start a fire or cause burns when "
+       "shorted. Fuse it close to its terminal, keep wiring and electronics dry and enclosed, "
+       "vent batteries that give off gas, and leave any connection to mains wiring to a licensed "
+       "electrician."},
+      {"Overflow and water damage",
+       "Water spilling over a gutter, tank or head column, or leaving the turbine, soaks walls "
+       "and can wash out or undermine foundations. Lead every overflow and the tailwater to a "
+       "drain or soakaway well away from the building."},
+      {"Gutter loading",
+       "A litre of water weighs a kilogram: a gutter held full as a reservoir, with a siphon and "
+       "pipework hung from it, carries far more than one that only drains. Check that brackets, "
+       "fascia and fixings are rated for the full load, plus debris and ice."},
+      {"Standing water and mosquitoes",
+       "Water that stands for more than a few days can breed mosquitoes. Screen every opening, "
+       "keep debris out, keep children and animals away from open tanks, and make sure "
+       "reservoirs can drain fully."},
+      {"Codes and practitioners",
+       "Local building, plumbing and electrical codes and permits govern rainwater collection, "
+       "roof work and electrical installations in many places. Follow local codes, and engage "
+       "licensed practitioners where the rules call for them."},
+  }};
+  return kCautions;
 }
 
 DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
@@ -268,7 +284,8 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
     out << "\nWarnings\n";
     for (const std::string& w : d.warnings) out << "  - " << w << '\n';
   }
-  out << "\nCautions\n" << safety_cautions() << '\n';
+  out << "\nCautions\n" << kCautionsPreface << '\n';
+  for (const Caution& c : safety_cautions()) out << "  - " << c.title << ": " << c.text << '\n';
 }
 
 }  // namespace gutterwatt

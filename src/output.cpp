@@ -111,7 +111,6 @@ void SummaryBuilder::on_sample(const Sample& s) {
   PeriodSummary& m = month_of(static_cast<double>(s.time) - 1.0);
   const Accounts& a = s.totals;
   const Accounts& b = month_start_.totals;
-  m.rain_m3 += a.rain_m3 - b.rain_m3;
   m.rain_depth_m += (a.rain_m3 - b.rain_m3) / scenario_.roof.area_m2;
   m.electrical_J += a.electrical_J - b.electrical_J;
   m.overflow_m3 += a.reservoir_overflow_m3 - b.reservoir_overflow_m3 + a.column_overflow_m3 -
@@ -182,7 +181,6 @@ std::vector<PeriodSummary> SummaryBuilder::fold_months(
     const std::string label = label_of(m.label);
     if (out.empty() || out.back().label != label) out.push_back(PeriodSummary{label});
     PeriodSummary& s = out.back();
-    s.rain_m3 += m.rain_m3;
     s.rain_depth_m += m.rain_depth_m;
     s.electrical_J += m.electrical_J;
     s.overflow_m3 += m.overflow_m3;

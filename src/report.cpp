@@ -28,7 +28,9 @@
 #include <utility>
 #include <vector>
 
+#include "gutterwatt/design.hpp"
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/sweep.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -318,7 +320,6 @@ struct Event {
   std::string kind;
   std::int64_t start = 0;
   std::int64_t end = 0;
-  std::string start_text, end_text;
   double duration_s = 0.0, volume_L = 0.0, peak_flow_L_per_s = 0.0, energy_Wh = 0.0;
 };
 
@@ -344,8 +345,6 @@ std::vector<Event> read_events(const fs::path& path) {
           file, line, "kind",
           "unknown kind \"" + e.kind + "\" (expected cycle, overflow, dribble or column_overflow)");
     }
-    e.start_text = row[c_start];
-    e.end_text = row[c_end];
     e.start = parse_time_cell(row[c_start], file, line, "start");
     e.end = parse_time_cell(row[c_end], file, line, "end");
     e.duration_s = parse_number(row[c_duration], file, line, "duration_s");
@@ -488,11 +487,6 @@ struct Sweep {
   std::vector<std::vector<double>> num;  ///< numeric value of every cell, NaN for text
 };
 
-// The metric columns the sweep writes; the page checks their values are numbers.
-constexpr std::array<std::string_view, 7> kSweepMetrics{
-    "energy_Wh",       "overflow_L",     "dribble_L",   "cycles",
-    "overflow_events", "overflow_hours", "curtailed_Wh"};
-
 Sweep read_sweep(const fs::path& dir) {
   Sweep sw;
   const fs::path csv_path = dir / "sweep.csv";
@@ -531,16 +525,8 @@ Sweep read_sweep(const fs::path& dir) {
       for (std::size_t i = 0; i < v->size(); ++i) {
         const Json& item = (*v)[i];
         const std::string field = "vary[" + std::to_string(i) + "]";
-        std::string key;
-        if (item.is_string()) {
-          // Either the bare key or the whole `key=from:to:step` spec.
-          key = item.get<std::string>();
-          key = key.substr(0, key.find('='));
-        } else if (item.is_object() && item.contains("key") && item["key"].is_string()) {
-          key = item["key"].get<std::string>();
-        } else {
-          throw InputError(jfile, 0, field, "expected a key name");
-        }
+        if (!item.is_string()) throw InputError(jfile, 0, field, "expected a key name");
+        const std::string key = item.get<std::string>();
         if (sw.csv.find(key) < 0) {
           throw InputError(jfile, 0, field, "\"" + key + "\" is not a column of sweep.csv");
         }
@@ -555,12 +541,14 @@ Sweep read_sweep(const fs::path& dir) {
   }
   if (sw.csv.rows.empty()) throw InputError(file, 0, "", "no data rows");
   const std::size_t ncol = sw.csv.header.size();
+  // The metric columns the sweep writes; the page checks their values are numbers.
+  const std::vector<std::string> metrics = sweep_metric_names();
   sw.num.assign(sw.csv.rows.size(), std::vector<double>(ncol, kNaN));
   for (std::size_t r = 0; r < sw.csv.rows.size(); ++r) {
     for (std::size_t c = 0; c < ncol; ++c) {
       const std::string& cell = sw.csv.rows[r][c];
-      const bool metric = std::find(kSweepMetrics.begin(), kSweepMetrics.end(), sw.csv.header[c]) !=
-                          kSweepMetrics.end();
+      const bool metric =
+          std::find(metrics.begin(), metrics.end(), sw.csv.header[c]) != metrics.end();
       if (metric && !cell.empty()) {
         sw.num[r][c] = parse_number(cell, file, sw.csv.lines[r], sw.csv.header[c]);
       } else if (const auto v = try_number(cell)) {
@@ -1576,35 +1564,12 @@ std::string page_open(const std::string& title, const std::vector<std::string>& 
 }
 
 std::string cautions_section() {
-  return R"html(<section id="cautions">
-<h2>Cautions</h2>
-<div class="cautions">
-<p>These figures come from a simulation of the inputs it was given. They help compare designs;
-they do not show that any installation is safe or lawful.</p>
-<ul>
-<li><strong>Working at height.</strong> Roofs and gutters are reached by ladders and edges that
-people fall from. Use sound access equipment, keep three points of contact, do not work alone,
-and stay off wet, icy or windy roofs.</li>
-<li><strong>Batteries and electrics.</strong> Even a small battery can deliver enough current to
-start a fire or cause burns when shorted. Fuse it close to its terminal, keep wiring and
-electronics dry and enclosed, vent batteries that give off gas, and leave any connection to
-mains wiring to a licensed electrician.</li>
-<li><strong>Overflow and water damage.</strong> Water spilling over a gutter, tank or head column,
-or leaving the turbine, soaks walls and can wash out or undermine foundations. Lead every
-overflow and the tailwater to a drain or soakaway well away from the building.</li>
-<li><strong>Gutter loading.</strong> A litre of water weighs a kilogram: a gutter held full as a
-reservoir, with a siphon and pipework hung from it, carries far more than one that only drains.
-Check that brackets, fascia and fixings are rated for the full load, plus debris and ice.</li>
-<li><strong>Standing water and mosquitoes.</strong> Water that stands for more than a few days can
-breed mosquitoes. Screen every opening, keep debris out, and make sure reservoirs can drain
-fully.</li>
-<li><strong>Codes and practitioners.</strong> Rainwater collection, plumbing, roof work and
-electrical installations are regulated in many places. Follow local codes and permits, and
-engage licensed practitioners where the rules call for them.</li>
-</ul>
-</div>
-</section>
-)html";
+  std::string html = "<section id=\"cautions\">\n<h2>Cautions</h2>\n<div class=\"cautions\">\n<p>" +
+                     escape(kCautionsPreface) + "</p>\n<ul>\n";
+  for (const Caution& c : safety_cautions()) {
+    html += "<li><strong>" + escape(c.title) + ".</strong> " + escape(c.text) + "</li>\n";
+  }
+  return html + "</ul>\n</div>\n</section>\n";
 }
 
 std::string page_close() {

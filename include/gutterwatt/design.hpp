@@ -1,10 +1,13 @@
 #pragma once
 /// Design figures of a scenario, worked out from the same physics the simulation uses: what
-/// `gutterwatt check` prints. No time stepping: closed forms and quadratures of the steady laws.
+/// `gutterwatt check` prints: closed forms and quadratures of the steady laws, and the energy of
+/// one release cycle from a short simulation.
 
 #include <optional>
 #include <ostream>
+#include <span>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "gutterwatt/rain_input.hpp"
@@ -41,7 +44,18 @@ DesignFigures evaluate_design(const Scenario& scenario, const RainSeries* rain);
 /// Writes the figures with their units, the warnings in plain words, then the cautions.
 void write_design(std::ostream& out, const Scenario& scenario, const DesignFigures& figures);
 
+/// One safety caution: a short title and what to do.
+struct Caution {
+  std::string_view title;
+  std::string_view text;
+};
+
+/// What the figures are and are not, said before the cautions.
+inline constexpr std::string_view kCautionsPreface =
+    "These figures come from a simulation of the inputs it was given. They help compare designs; "
+    "they do not show that any installation is safe or lawful.";
+
 /// The safety cautions printed by `check` and at the foot of the report.
-const char* safety_cautions();
+std::span<const Caution> safety_cautions();
 
 }  // namespace gutterwatt

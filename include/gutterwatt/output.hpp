@@ -42,10 +42,9 @@ class EventsWriter : public Observer {
   int offset_s_;
 };
 
-/// One calendar month (local time), one meteorological season, or the whole run.
+/// One calendar month (local time), one meteorological season, or one calendar year.
 struct PeriodSummary {
-  std::string label;  ///< `YYYY-MM` for a month; `YYYY DJF|MAM|JJA|SON` for a season
-  double rain_m3 = 0.0;
+  std::string label;  ///< `YYYY-MM` for a month; `YYYY DJF|MAM|JJA|SON` for a season; `YYYY`
   double rain_depth_m = 0.0;
   double electrical_J = 0.0;
   double overflow_m3 = 0.0;  ///< reservoir and head column

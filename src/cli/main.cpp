@@ -354,7 +354,7 @@ int main(int argc, char** argv) {
   sweep_cmd->add_option("--jobs", sweep.jobs, "worker threads (default: one per core)");
   sweep_cmd->add_option("--rank", sweep.rank,
                         "metric to rank by (default energy_Wh); force the order with "
-                        "--rank=-KEY (lowest first) or --rank=+KEY");
+                        "--rank=-KEY (highest first) or --rank=+KEY (lowest first)");
   sweep_cmd->add_option("--out", sweep.out, "output folder")->required();
   sweep_cmd->add_flag("--quiet", sweep.quiet, "print nothing on success");
 
