@@ -95,7 +95,7 @@ std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offse
     return std::nullopt;
   }
   // Records hold many stamps of one day in a row: the day's number is kept from the last call.
-  thread_local int cached_year = 0, cached_month = 0, cached_day = 0;
+  thread_local int cached_year = 0, cached_month = 0, cached_day = -1;  // no valid date yet
   thread_local std::int64_t cached_days = 0;
   std::int64_t days = 0;
   if (year == cached_year && month == cached_month && day == cached_day) {

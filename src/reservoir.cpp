@@ -1,7 +1,6 @@
 #include "gutterwatt/reservoir.hpp"
 
 #include <algorithm>
-#include <cassert>
 #include <cmath>
 
 #include "gutterwatt/hydraulics.hpp"

@@ -65,7 +65,7 @@ constexpr std::array<Node, 51> kNrcsTypeII = {{
     {23.0, 0.989}, {23.5, 0.995},  {24.0, 1.000},
 }};
 
-// Type III: same sources as Type I, from memory; 1 h, 9 h and 17 h agree within 0.002 with the
+// Type III: same sources as Type I, from memory; 1 h, 9 h and 17 h agree within 0.0025 with the
 // values REFERENCES.md section 8 marks as checked.
 constexpr std::array<Node, 51> kNrcsTypeIII = {{
     {0.0, 0.000},  {0.5, 0.005},   {1.0, 0.010},  {1.5, 0.015},  {2.0, 0.020},  {2.5, 0.026},

@@ -4,6 +4,7 @@
 
 #include <optional>
 #include <string>
+#include <thread>
 
 namespace gutterwatt {
 namespace {
@@ -81,6 +82,16 @@ TEST(Calendar, RejectsImpossibleDates) {
        {"2025-02-30", "2025-04-31", "2025-13-01", "2025-00-10", "2025-01-00", "2025-01-32"}) {
     EXPECT_FALSE(parse_iso8601(text).has_value()) << text;
   }
+}
+
+TEST(Calendar, RejectsTheAllZeroDateAsTheFirstDateOfAThread) {
+  // The day of the last stamp parsed is cached per thread; a fresh thread's cache must not take
+  // 0000-00-00 for a date it already knows.
+  bool parsed = true;
+  std::thread fresh([&] { parsed = parse_iso8601("0000-00-00T00:00").has_value(); });
+  fresh.join();
+  EXPECT_FALSE(parsed);
+  EXPECT_FALSE(parse_iso8601("0000-00-00").has_value());
 }
 
 TEST(Calendar, RejectsImpossibleTimes) {

@@ -9,7 +9,7 @@ namespace gutterwatt {
 enum class BatteryMode { normal, full, empty };
 
 /// Power flows at one instant, W. `charge_W` is the rate the stored energy changes
-/// (negative while discharging); accepted = stored / efficiency + the charge loss.
+/// (negative while discharging); accepted = stored / efficiency (stored plus the charge loss).
 struct BatteryFlows {
   double charge_W = 0.0;
   double accepted_W = 0.0;

@@ -17,7 +17,8 @@ class ReservoirGeometry {
   explicit ReservoirGeometry(const ReservoirConfig& config);
 
   double volume_m3(double level_m) const;
-  /// Inverse of volume_m3 (Newton with a bisection guard for the half-round section).
+  /// Inverse of volume_m3 (for the half-round section, tables solved once, with one Newton step
+  /// near empty).
   double level_m(double volume_m3) const;
   /// Plan area of the water surface at `level_m`.
   double surface_area_m2(double level_m) const;
