@@ -252,9 +252,12 @@ TEST(Simulation, EachCycleReleasesTheStorageBetweenSetPointsPlusTheInflow) {
   // Volume from the priming level down to the rim, plus what flows in meanwhile.
   const double storage =
       plan_area(s) * (BellSiphon(s.release).priming_level_m() - s.release.break_level_m);
-  EXPECT_LT(relative_error(cycles[0].volume_m3, storage + inflow * cycle.drain_s), 1e-6);
-  EXPECT_GT(cycles[0].energy_J, 0.0);
-  EXPECT_GT(cycles[0].peak_flow_m3_per_s, inflow);
+  // Every cycle that ended before the run did.
+  for (std::size_t k = 0; k + 1 < cycles.size(); ++k) {
+    EXPECT_LT(relative_error(cycles[k].volume_m3, storage + inflow * cycle.drain_s), 1e-6) << k;
+    EXPECT_GT(cycles[k].energy_J, 0.0) << k;
+    EXPECT_GT(cycles[k].peak_flow_m3_per_s, inflow) << k;
+  }
 }
 
 // Level where the overflow over the rim carries what the running siphon cannot: bisection on
@@ -693,8 +696,8 @@ TEST(Simulation, StalledSolverIsASimulationErrorNotAHang) {
   } catch (const SimulationError& e) {
     const std::string what = e.what();
     EXPECT_EQ(what.rfind("simulation failed at 2025-03-01T00:", 0), 0u) << what;
-    EXPECT_TRUE(what.find("the solver made no progress") != std::string::npos ||
-                what.find("the state is not finite") != std::string::npos)
+    EXPECT_NE(what.find("the solver made no progress (100000 steps in one segment)"),
+              std::string::npos)
         << what;
     EXPECT_NE(what.find("; mode: release "), std::string::npos) << what;
   }

@@ -301,6 +301,14 @@ TEST(Storm, AlternatingBlockCumulativeDepthsMatchTheWorkedExample) {
   }
   const std::vector<double> blocks_m = alternating_block_depths_m(denver_depth_m, 12, 600.0, 0.5);
   EXPECT_NEAR(sum(blocks_m) / kMetresPerMm, 41.64, 0.005);
+  // The k largest blocks of the storm hold the k-block cumulative depth of the book's table.
+  std::vector<double> largest = blocks_m;
+  std::sort(largest.begin(), largest.end(), std::greater<>());
+  double held_m = 0.0;
+  for (std::size_t k = 0; k < cumulative_in.size(); ++k) {
+    held_m += largest[k];
+    EXPECT_NEAR(held_m / kMetresPerInch, cumulative_in[k], 1e-3) << k + 1 << " largest blocks";
+  }
 }
 
 TEST(Storm, AlternatingBlockCentralBlocksNestTheIdfDepths) {
