@@ -27,4 +27,6 @@ InputError::InputError(std::string file, int line, std::string field, std::strin
       field_(std::move(field)),
       message_(std::move(message)) {}
 
+std::string InputError::text() const { return format_input_error(file_, line_, field_, message_); }
+
 }  // namespace gutterwatt

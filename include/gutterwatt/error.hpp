@@ -22,6 +22,8 @@ class InputError : public Error {
   int line() const { return line_; }
   const std::string& field() const { return field_; }
   const std::string& message() const { return message_; }
+  /// The whole text, as what() reads it but whole even when a message quotes a NUL byte.
+  std::string text() const;
 
  private:
   std::string file_;

@@ -9,6 +9,7 @@
 #include <csignal>
 #include <filesystem>
 #include <fstream>
+#include <functional>
 #include <iostream>
 #include <optional>
 #include <string>
@@ -100,16 +101,7 @@ std::string one_line(std::string_view text) {
 }
 
 // An input error's text from its parts: what() ends at the first NUL byte a message quotes.
-std::string describe(const InputError& e) {
-  std::string out;
-  if (!e.file().empty()) {
-    out += e.file();
-    if (e.line() > 0) out += ":" + std::to_string(e.line());
-    out += ": ";
-  }
-  if (!e.field().empty()) out += e.field() + ": ";
-  return one_line(out + e.message());
-}
+std::string describe(const InputError& e) { return one_line(e.text()); }
 
 // A parse error in words: CLI11 reports an unknown command as a missing one.
 std::string describe(const CLI::ParseError& e, CLI::App& app, int argc, char** argv) {
@@ -145,6 +137,20 @@ void check_output_file(const fs::path& file) {
         std::string(fs::is_directory(status) ? "is a folder" : "is not a regular file") +
             "; give the name of a file to write");
   }
+}
+
+// Writes one CSV to standard output (`out` empty or "-") or, whole or not at all, to the file
+// `out` names.
+void write_csv_to(const std::string& out, const std::function<void(std::ostream&)>& write) {
+  if (out.empty() || out == "-") {
+    write(std::cout);
+    return;
+  }
+  const fs::path file(out);
+  check_output_file(file);
+  OutputFolder folder(file.parent_path().empty() ? fs::path(".") : file.parent_path());
+  write(folder.open(file.filename().string()));
+  folder.commit();
 }
 
 struct RunArgs {
@@ -257,15 +263,7 @@ int storm_command(const StormArgs& a) {
     spec.idf = IdfCurve{a.idf[0], a.idf[1], a.idf[2]};
   }
   spec.peak_position = a.peak;
-  if (a.out.empty() || a.out == "-") {
-    write_storm_csv(std::cout, spec, start->offset_s);
-    return kExitOk;
-  }
-  const fs::path file(a.out);
-  check_output_file(file);
-  OutputFolder folder(file.parent_path().empty() ? fs::path(".") : file.parent_path());
-  write_storm_csv(folder.open(file.filename().string()), spec, start->offset_s);
-  folder.commit();
+  write_csv_to(a.out, [&](std::ostream& out) { write_storm_csv(out, spec, start->offset_s); });
   return kExitOk;
 }
 
@@ -299,15 +297,7 @@ int synth_command(const SynthArgs& a) {
   spec.end = end->instant;
   spec.step_s = static_cast<Instant>(std::llround(duration_option(a.step, "--step")));
   spec.seed = a.seed;
-  if (a.out.empty() || a.out == "-") {
-    write_synth_csv(std::cout, params, spec);
-    return kExitOk;
-  }
-  const fs::path file(a.out);
-  check_output_file(file);
-  OutputFolder folder(file.parent_path().empty() ? fs::path(".") : file.parent_path());
-  write_synth_csv(folder.open(file.filename().string()), params, spec);
-  folder.commit();
+  write_csv_to(a.out, [&](std::ostream& out) { write_synth_csv(out, params, spec); });
   return kExitOk;
 }
 
