@@ -7,7 +7,6 @@
 #include "gutterwatt/report.hpp"
 
 #include <date/date.h>
-#include <unistd.h>
 
 #include <algorithm>
 #include <array>
@@ -30,6 +29,7 @@
 
 #include "gutterwatt/design.hpp"
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/output.hpp"
 #include "gutterwatt/sweep.hpp"
 
 namespace gutterwatt {
@@ -2188,26 +2188,10 @@ std::string render_report(const std::filesystem::path& dir) {
 
 std::filesystem::path write_report(const std::filesystem::path& dir) {
   const std::string page = render_report(dir);
-  const fs::path target = dir / "report.html";
-  const fs::path temporary = dir / (".report.html." + std::to_string(::getpid()) + ".tmp");
-  {
-    std::ofstream out(temporary, std::ios::binary | std::ios::trunc);
-    out << page;
-    out.close();
-    if (!out) {
-      std::error_code ignored;
-      fs::remove(temporary, ignored);
-      throw InputError(target.string(), 0, "", "cannot write file");
-    }
-  }
-  std::error_code ec;
-  fs::rename(temporary, target, ec);
-  if (ec) {
-    std::error_code ignored;
-    fs::remove(temporary, ignored);
-    throw InputError(target.string(), 0, "", "cannot write file (" + ec.message() + ")");
-  }
-  return target;
+  OutputFolder folder(dir);
+  folder.open("report.html") << page;
+  folder.commit();
+  return dir / "report.html";
 }
 
 }  // namespace gutterwatt
