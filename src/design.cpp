@@ -5,6 +5,7 @@
 #include <cmath>
 #include <cstdio>
 #include <map>
+#include <memory>
 
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/plant.hpp"
@@ -116,14 +117,13 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
   const double bottom_m = has_set_points ? rel.break_level_m : 0.0;
   if (has_set_points) d.storage_m3 = geometry.volume_m3(top_m) - geometry.volume_m3(bottom_m);
 
-  // Outflow with the release running full (float valve and orifice: their orifice may limit it).
-  const double orifice_area = circle_area_m2(rel.orifice_diameter_m);
+  // Outflow with the release running, from the release itself (a valve's or orifice's opening
+  // may limit it below what the conveyance carries; no release passes nothing).
+  const std::unique_ptr<Release> release = make_release(rel);
+  const ReleaseState running =
+      release->is_running(ReleaseState::running) ? ReleaseState::running : ReleaseState::open;
   const auto release_flow = [&](double level_m) {
-    const double full = plant.full_flow_m3_per_s(level_m);
-    if (rel.kind == ReleaseKind::float_valve || rel.kind == ReleaseKind::orifice) {
-      return floor_orifice_flow_m3_per_s(rel.orifice_coefficient, orifice_area, level_m, full);
-    }
-    return rel.kind == ReleaseKind::none ? 0.0 : full;
+    return release->outflow_m3_per_s(running, level_m, plant.full_flow_m3_per_s(level_m));
   };
   d.running_flow_trigger_m3_per_s = release_flow(top_m);
   d.running_flow_break_m3_per_s = release_flow(bottom_m);
