@@ -6,8 +6,6 @@
 
 #include "gutterwatt/report.hpp"
 
-#include <date/date.h>
-
 #include <algorithm>
 #include <array>
 #include <charconv>
@@ -27,9 +25,11 @@
 #include <utility>
 #include <vector>
 
+#include "gutterwatt/calendar.hpp"
 #include "gutterwatt/design.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/output.hpp"
+#include "gutterwatt/release.hpp"
 #include "gutterwatt/sweep.hpp"
 
 namespace gutterwatt {
@@ -178,54 +178,9 @@ std::int64_t floor_div(std::int64_t a, std::int64_t b) {
 // Wall-clock seconds since 1970-01-01T00:00 of an ISO 8601 stamp, as written: a trailing `Z` or
 // UTC offset is accepted and left out, so every label on the page reads as the file does.
 std::optional<std::int64_t> parse_stamp(std::string_view s) {
-  auto digits = [&](std::size_t at, std::size_t n, int& out) {
-    if (at + n > s.size()) return false;
-    out = 0;
-    for (std::size_t i = at; i < at + n; ++i) {
-      if (s[i] < '0' || s[i] > '9') return false;
-      out = out * 10 + (s[i] - '0');
-    }
-    return true;
-  };
-  int year = 0, month = 0, day = 0, hour = 0, minute = 0, second = 0;
-  if (!digits(0, 4, year) || s.size() < 10 || s[4] != '-' || !digits(5, 2, month) || s[7] != '-' ||
-      !digits(8, 2, day)) {
-    return std::nullopt;
-  }
-  std::size_t p = 10;
-  if (p < s.size() && (s[p] == 'T' || s[p] == ' ')) {
-    if (!digits(p + 1, 2, hour) || p + 3 >= s.size() || s[p + 3] != ':' ||
-        !digits(p + 4, 2, minute)) {
-      return std::nullopt;
-    }
-    p += 6;
-    if (p < s.size() && s[p] == ':') {
-      if (!digits(p + 1, 2, second)) return std::nullopt;
-      p += 3;
-      if (p < s.size() && s[p] == '.') {
-        ++p;
-        while (p < s.size() && s[p] >= '0' && s[p] <= '9') ++p;
-      }
-    }
-  }
-  const std::string_view rest = s.substr(p);
-  if (!rest.empty() && rest != "Z") {
-    int oh = 0, om = 0;
-    const bool ok =
-        (rest[0] == '+' || rest[0] == '-') &&
-        ((rest.size() == 3 && digits(p + 1, 2, oh)) ||
-         (rest.size() == 5 && digits(p + 1, 2, oh) && digits(p + 3, 2, om)) ||
-         (rest.size() == 6 && digits(p + 1, 2, oh) && rest[3] == ':' && digits(p + 4, 2, om)));
-    if (!ok) return std::nullopt;
-  }
-  const date::year_month_day ymd{date::year{year}, date::month(static_cast<unsigned>(month)),
-                                 date::day(static_cast<unsigned>(day))};
-  if (!ymd.ok() || minute > 59 || second > 59 || hour > 24 ||
-      (hour == 24 && (minute != 0 || second != 0))) {
-    return std::nullopt;
-  }
-  const std::int64_t days = date::sys_days(ymd).time_since_epoch().count();
-  return days * kDaySeconds + hour * kHourSeconds + minute * 60 + second;
+  const std::optional<ParsedTime> p = parse_iso8601(s, 0);
+  if (!p) return std::nullopt;
+  return p->instant + p->offset_s;
 }
 
 std::int64_t parse_time_cell(const std::string& cell, const std::string& file, int line,
@@ -237,14 +192,11 @@ std::int64_t parse_time_cell(const std::string& cell, const std::string& file, i
   return *t;
 }
 
-enum class ReleaseState { idle, dribble, running, closed, open };
-
 ReleaseState parse_state(const std::string& cell, const std::string& file, int line) {
-  if (cell == "idle") return ReleaseState::idle;
-  if (cell == "dribble") return ReleaseState::dribble;
-  if (cell == "running") return ReleaseState::running;
-  if (cell == "closed") return ReleaseState::closed;
-  if (cell == "open") return ReleaseState::open;
+  for (ReleaseState state : {ReleaseState::idle, ReleaseState::dribble, ReleaseState::running,
+                             ReleaseState::closed, ReleaseState::open}) {
+    if (cell == release_state_name(state)) return state;
+  }
   throw InputError(
       file, line, "release_state",
       "unknown state \"" + cell + "\" (expected idle, dribble, running, closed or open)");
@@ -658,39 +610,17 @@ std::string duration_text(double seconds) {
 constexpr std::array<const char*, 12> kMonthNames{"Jan", "Feb", "Mar", "Apr", "May", "Jun",
                                                   "Jul", "Aug", "Sep", "Oct", "Nov", "Dec"};
 
-struct Civil {
-  int year;
-  unsigned month;
-  unsigned day;
-  int hour;
-  int minute;
-};
-
-Civil civil(std::int64_t t) {
-  const std::int64_t days = floor_div(t, kDaySeconds);
-  const std::int64_t secs = t - days * kDaySeconds;
-  const date::year_month_day ymd{date::sys_days{date::days{days}}};
-  return {static_cast<int>(ymd.year()), static_cast<unsigned>(ymd.month()),
-          static_cast<unsigned>(ymd.day()), static_cast<int>(secs / kHourSeconds),
-          static_cast<int>(secs % kHourSeconds / 60)};
-}
-
-std::int64_t month_start_s(int year, unsigned month) {
-  const date::sys_days d{date::year{year} / date::month{month} / date::day{1}};
-  return d.time_since_epoch().count() * kDaySeconds;
-}
-
 std::string day_label(std::int64_t t) {
-  const Civil c = civil(t);
+  const CivilTime c = to_civil(t);
   return std::to_string(c.day) + " " + kMonthNames[c.month - 1];
 }
 
 std::string date_label(std::int64_t t) {
-  return day_label(t) + " " + std::to_string(civil(t).year);
+  return day_label(t) + " " + std::to_string(to_civil(t).year);
 }
 
 std::string clock_label(std::int64_t t) {
-  const Civil c = civil(t);
+  const CivilTime c = to_civil(t);
   char buf[8];
   std::snprintf(buf, sizeof buf, "%02d:%02d", c.hour, c.minute);
   return buf;
@@ -727,7 +657,7 @@ std::vector<TimeTick> time_ticks(std::int64_t lo, std::int64_t hi, std::size_t m
   if (fits(7.0 * kDaySeconds)) {
     for (std::int64_t d = floor_div(lo + kDaySeconds - 1, kDaySeconds); d * kDaySeconds <= hi;
          ++d) {
-      const unsigned dom = civil(d * kDaySeconds).day;
+      const unsigned dom = to_civil(d * kDaySeconds).day;
       if (dom == 1 || dom == 8 || dom == 15 || dom == 22) {
         ticks.push_back({d * kDaySeconds, day_label(d * kDaySeconds)});
       }
@@ -735,13 +665,13 @@ std::vector<TimeTick> time_ticks(std::int64_t lo, std::int64_t hi, std::size_t m
     if (ticks.size() <= max_ticks) return ticks;
     ticks.clear();
   }
-  const Civil first = civil(lo);
+  const CivilTime first = to_civil(lo);
   for (const int k : {1, 2, 3, 6, 12, 24, 60, 120}) {
     if (!fits(k * 30.4 * kDaySeconds)) continue;
     for (int index = first.year * 12 + static_cast<int>(first.month) - 1;; ++index) {
       const int year = floor_div(index, 12);
       const auto month = static_cast<unsigned>(index - year * 12 + 1);
-      const std::int64_t t = month_start_s(year, month);
+      const std::int64_t t = month_start(year, month);
       if (t > hi) break;
       if (t < lo || index % k != 0) continue;
       std::string label = std::to_string(year);
