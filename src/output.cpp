@@ -133,10 +133,17 @@ void SummaryBuilder::on_episode(const Episode& e) {
   }
 }
 
-double SummaryBuilder::largest_overflow_m3() const {
-  double largest = 0.0;
-  for (const Episode& e : overflows_) largest = std::max(largest, e.volume_m3);
+const Episode* SummaryBuilder::largest_overflow() const {
+  const Episode* largest = nullptr;
+  for (const Episode& e : overflows_) {
+    if (largest == nullptr || e.volume_m3 > largest->volume_m3) largest = &e;
+  }
   return largest;
+}
+
+double SummaryBuilder::largest_overflow_m3() const {
+  const Episode* e = largest_overflow();
+  return e != nullptr ? std::max(0.0, e->volume_m3) : 0.0;
 }
 
 long SummaryBuilder::overflow_days() const {
@@ -264,11 +271,7 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                  {"dribble_hours", round_to(r.dribble_s / kSecondsPerHour, 4)}};
   const double runoff = a.roof_runoff_m3 > 0.0 ? a.roof_runoff_m3 : 1.0;
   json largest = nullptr;
-  const auto& ov = summary.overflows();
-  const auto big = std::max_element(ov.begin(), ov.end(), [](const Episode& x, const Episode& y) {
-    return x.volume_m3 < y.volume_m3;
-  });
-  if (big != ov.end()) {
+  if (const Episode* big = summary.largest_overflow()) {
     largest = {{"start", format_iso8601(floor_instant(big->start_s), off)},
                {"end", format_iso8601(floor_instant(big->end_s), off)},
                {"volume_L", L(big->volume_m3)},

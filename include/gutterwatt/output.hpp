@@ -75,6 +75,8 @@ class SummaryBuilder : public Observer {
   double min_soc() const { return min_soc_; }
   /// Reservoir overflow episodes, in time order.
   const std::vector<Episode>& overflows() const { return overflows_; }
+  /// The largest reservoir overflow episode by volume (the first of equals); null without any.
+  const Episode* largest_overflow() const;
   /// Volume of the largest reservoir overflow episode (0 without any).
   double largest_overflow_m3() const;
   /// Distinct local days with reservoir overflow.
