@@ -520,6 +520,57 @@ std::string gap_text(Instant start, int start_offset_s, Instant end, int end_off
          format_iso8601(end, end_offset_s) + " (" + format_duration(end - start) + " with no rows)";
 }
 
+// The gaps of one record as its rows reveal them: thrown under `gaps: error`, otherwise kept,
+// warned about one by one up to kMaxGapWarnings and summed up in one more warning at the end.
+class GapNotes {
+ public:
+  GapNotes(const std::string& file_label, const SeriesFormat& fmt)
+      : file_label_(file_label), fmt_(fmt) {}
+
+  // The gap [start, end) found at `line`; the offsets are those of the stamps either side.
+  void note(RainSeries& series, Instant start, int start_offset_s, Instant end, int end_offset_s,
+            int line) {
+    const std::string text = gap_text(start, start_offset_s, end, end_offset_s);
+    if (fmt_.gaps == GapPolicy::error) {
+      throw InputError(file_label_, line, fmt_.time_column,
+                       text +
+                           "; set rain.gaps: zero to count gaps as dry, or rain.gaps: skip to "
+                           "leave them out");
+    }
+    series.gaps.push_back({start, end});
+    total_s_ += end - start;
+    if (series.gaps.size() <= kMaxGapWarnings) {
+      series.warnings.push_back(file_label_ + ":" + std::to_string(line) + ": " + text + fate());
+    }
+  }
+
+  void finish(RainSeries& series) const {
+    if (series.gaps.size() <= kMaxGapWarnings) return;
+    const std::size_t more = series.gaps.size() - kMaxGapWarnings;
+    series.warnings.push_back(file_label_ + ": " + std::to_string(more) +
+                              " more gaps in the record (" + std::to_string(series.gaps.size()) +
+                              " gaps, " + format_duration(total_s_) + " in all)" + fate());
+  }
+
+ private:
+  const char* fate() const {
+    return fmt_.gaps == GapPolicy::zero ? ", counted as dry" : ", left out of the simulation";
+  }
+
+  const std::string& file_label_;
+  const SeriesFormat& fmt_;
+  Instant total_s_ = 0;
+};
+
+// Adds [start, end) to the covered spans, extending the last one when the two touch.
+void extend_covered(std::vector<TimeSpan>& covered, Instant start, Instant end) {
+  if (!covered.empty() && covered.back().end == start) {
+    covered.back().end = end;
+  } else {
+    covered.push_back({start, end});
+  }
+}
+
 constexpr Instant kDay_s = 86400;
 
 // Floor division for instants before 1970 as well.
@@ -612,7 +663,7 @@ namespace {
 class SeriesBuilder {
  public:
   SeriesBuilder(const std::string& file_label, const SeriesFormat& fmt, Instant step)
-      : file_label_(file_label), fmt_(fmt), step_(step) {
+      : file_label_(file_label), fmt_(fmt), step_(step), gaps_(file_label, fmt) {
     series_.policy = fmt.gaps;
     series_.step_s = step;
   }
@@ -623,20 +674,7 @@ class SeriesBuilder {
     if (has_previous_ && end - previous_.time <= step_) {
       start = previous_.time;
     } else if (has_previous_) {
-      const Instant gap_start = previous_.time;
-      const std::string text = gap_text(gap_start, previous_.offset_s, start, row.offset_s);
-      if (fmt_.gaps == GapPolicy::error) {
-        throw InputError(file_label_, row.line, fmt_.time_column,
-                         text +
-                             "; set rain.gaps: zero to count gaps as dry, or rain.gaps: "
-                             "skip to leave them out");
-      }
-      series_.gaps.push_back({gap_start, start});
-      gap_total_s_ += start - gap_start;
-      if (series_.gaps.size() <= kMaxGapWarnings) {
-        series_.warnings.push_back(file_label_ + ":" + std::to_string(row.line) + ": " + text +
-                                   gap_fate());
-      }
+      gaps_.note(series_, previous_.time, previous_.offset_s, start, row.offset_s, row.line);
     }
     const bool intensity = fmt_.value == RainValue::intensity;
     const auto length_s = static_cast<double>(end - start);
@@ -654,11 +692,7 @@ class SeriesBuilder {
                            " mm/h (got " + got + "; the limit is " +
                            format_number(kMaxRainIntensity_mm_per_h) + " mm/h)");
     }
-    if (!series_.covered.empty() && series_.covered.back().end == start) {
-      series_.covered.back().end = end;
-    } else {
-      series_.covered.push_back({start, end});
-    }
+    extend_covered(series_.covered, start, end);
     if (depth_m > 0.0) {
       series_.pulses.push_back({start, end, depth_m});
       total_.add(depth_m);
@@ -670,28 +704,18 @@ class SeriesBuilder {
   const RainSeries& so_far() const { return series_; }
 
   RainSeries finish() {
-    if (series_.gaps.size() > kMaxGapWarnings) {
-      const std::size_t more = series_.gaps.size() - kMaxGapWarnings;
-      series_.warnings.push_back(file_label_ + ": " + std::to_string(more) +
-                                 " more gaps in the record (" +
-                                 std::to_string(series_.gaps.size()) + " gaps, " +
-                                 format_duration(gap_total_s_) + " in all)" + gap_fate());
-    }
+    gaps_.finish(series_);
     series_.total_depth_m = total_.value();
     return std::move(series_);
   }
 
  private:
-  const char* gap_fate() const {
-    return fmt_.gaps == GapPolicy::zero ? ", counted as dry" : ", left out of the simulation";
-  }
-
   const std::string& file_label_;
   const SeriesFormat& fmt_;
   Instant step_;
+  GapNotes gaps_;
   RainSeries series_;
   ExactSum total_;
-  Instant gap_total_s_ = 0;
   SeriesRow previous_{};
   bool has_previous_ = false;
 };
@@ -849,70 +873,47 @@ RainSeries read_rain_daily(std::istream& in, const std::string& file_label, cons
   series.policy = fmt.gaps;
   series.step_s = kDay_s;
   series.warnings.emplace_back(kDailyWarning);
-  const char* const gap_fate =
-      fmt.gaps == GapPolicy::zero ? ", counted as dry" : ", left out of the simulation";
+  GapNotes gaps(file_label, fmt);
   const bool blocks = how.method == DisaggregationMethod::block;
   const Instant part_s = blocks ? how.duration_s : how.step_s;
-  Instant gap_total_s = 0;
   ExactSum total;
   int previous_offset_s = 0;
   StampReader dates(file_label, fmt.time_column, fmt.utc_offset_s, kDates);
-  scan_rows(
-      in, file_label, {fmt.time_column, fmt.value_column},
-      [&](const std::vector<std::string_view>& fields, int line_number) {
-        const ParsedTime date = dates.read(fields[0], line_number);
-        const double value = parse_amount(fields[1], file_label, line_number, fmt.value_column);
-        const Instant start = date.instant;
-        const Instant end = start + kDay_s;
-        if (!series.covered.empty() && series.covered.back().end < start) {
-          const Instant gap_start = series.covered.back().end;
-          const std::string text = gap_text(gap_start, previous_offset_s, start, date.offset_s);
-          if (fmt.gaps == GapPolicy::error) {
-            throw InputError(file_label, line_number, fmt.time_column,
-                             text +
-                                 "; set rain.gaps: zero to count gaps as dry, or rain.gaps: "
-                                 "skip to leave them out");
-          }
-          series.gaps.push_back({gap_start, start});
-          gap_total_s += start - gap_start;
-          if (series.gaps.size() <= kMaxGapWarnings) {
-            series.warnings.push_back(file_label + ":" + std::to_string(line_number) + ": " + text +
-                                      gap_fate);
-          }
-        }
-        if (!series.covered.empty() && series.covered.back().end == start) {
-          series.covered.back().end = end;
-        } else {
-          series.covered.push_back({start, end});
-        }
-        previous_offset_s = date.offset_s;
+  scan_rows(in, file_label, {fmt.time_column, fmt.value_column},
+            [&](const std::vector<std::string_view>& fields, int line_number) {
+              const ParsedTime date = dates.read(fields[0], line_number);
+              const double value =
+                  parse_amount(fields[1], file_label, line_number, fmt.value_column);
+              const Instant start = date.instant;
+              const Instant end = start + kDay_s;
+              if (!series.covered.empty() && series.covered.back().end < start) {
+                gaps.note(series, series.covered.back().end, previous_offset_s, start,
+                          date.offset_s, line_number);
+              }
+              extend_covered(series.covered, start, end);
+              previous_offset_s = date.offset_s;
 
-        const double depth_m = value * fmt.unit_m;
-        const double intensity_mm_per_h =
-            depth_m / kMetresPerMm * (kSecondsPerHour / static_cast<double>(how.duration_s));
-        if (intensity_mm_per_h > kMaxRainIntensity_mm_per_h) {
-          throw InputError(file_label, line_number, fmt.value_column,
-                           "implausible intensity " + format_number(intensity_mm_per_h) +
-                               " mm/h (got " + format_number(value) + " " + fmt.unit_name + " in " +
-                               format_duration(how.duration_s) + "; the limit is " +
-                               format_number(kMaxRainIntensity_mm_per_h) + " mm/h)");
-        }
-        if (depth_m == 0.0) return;
-        const Instant day = floor_div(start + date.offset_s, kDay_s);
-        const std::vector<double> parts = disaggregate_day(depth_m, day, how);
-        for (std::size_t j = 0; j < parts.size(); ++j) {
-          if (parts[j] == 0.0) continue;
-          const Instant part_start = start + how.start_s + static_cast<Instant>(j) * part_s;
-          series.pulses.push_back({part_start, part_start + part_s, parts[j]});
-          total.add(parts[j]);
-        }
-      });
-  if (series.gaps.size() > kMaxGapWarnings) {
-    const std::size_t more = series.gaps.size() - kMaxGapWarnings;
-    series.warnings.push_back(file_label + ": " + std::to_string(more) +
-                              " more gaps in the record (" + std::to_string(series.gaps.size()) +
-                              " gaps, " + format_duration(gap_total_s) + " in all)" + gap_fate);
-  }
+              const double depth_m = value * fmt.unit_m;
+              const double intensity_mm_per_h =
+                  depth_m / kMetresPerMm * (kSecondsPerHour / static_cast<double>(how.duration_s));
+              if (intensity_mm_per_h > kMaxRainIntensity_mm_per_h) {
+                throw InputError(file_label, line_number, fmt.value_column,
+                                 "implausible intensity " + format_number(intensity_mm_per_h) +
+                                     " mm/h (got " + format_number(value) + " " + fmt.unit_name +
+                                     " in " + format_duration(how.duration_s) + "; the limit is " +
+                                     format_number(kMaxRainIntensity_mm_per_h) + " mm/h)");
+              }
+              if (depth_m == 0.0) return;
+              const Instant day = floor_div(start + date.offset_s, kDay_s);
+              const std::vector<double> parts = disaggregate_day(depth_m, day, how);
+              for (std::size_t j = 0; j < parts.size(); ++j) {
+                if (parts[j] == 0.0) continue;
+                const Instant part_start = start + how.start_s + static_cast<Instant>(j) * part_s;
+                series.pulses.push_back({part_start, part_start + part_s, parts[j]});
+                total.add(parts[j]);
+              }
+            });
+  gaps.finish(series);
   series.total_depth_m = total.value();
   return series;
 }
