@@ -248,6 +248,19 @@ Instant hours_as_seconds(const Value& v, const Limits& limits) {
 
 std::string_view nearest(std::string_view name, const std::vector<std::string_view>& valid);
 
+/// Fails on `item` when its key `name` is not one of `valid`, suggesting the nearest.
+void reject_unknown_key(const Value& item, const std::string& name,
+                        const std::vector<std::string_view>& valid) {
+  if (std::find(valid.begin(), valid.end(), name) != valid.end()) return;
+  if (!name.empty() && name.find_first_not_of("0123456789") == std::string::npos) {
+    // `{temperature_C: 12,5}` reads as a key `5` after the value 12.
+    item.fail(
+        "unknown key; a number is not a key name (a decimal comma? write decimals with a point, "
+        "such as 12.5)");
+  }
+  item.fail("unknown key; did you mean " + std::string(nearest(name, valid)) + "?");
+}
+
 /// rain.disaggregate, a small section inside rain: its keys are read and checked here, with the
 /// same messages as the loader's.
 void apply_disaggregate(const Value& v, Scenario& s) {
@@ -297,9 +310,7 @@ void apply_disaggregate(const Value& v, Scenario& s) {
     const bool from_override = v.label() == kOverrideLabel || it->first.Mark().is_null();
     const Value item(it->second, v.path() + "." + name, from_override ? kOverrideLabel : v.label(),
                      from_override ? 0 : it->first.Mark().line + 1);
-    if (std::find(names.begin(), names.end(), name) == names.end()) {
-      item.fail("unknown key; did you mean " + std::string(nearest(name, names)) + "?");
-    }
+    reject_unknown_key(item, name, names);
     const auto [first, inserted] = given.emplace(name, item);
     if (!inserted) {
       item.fail("duplicate key (first given on line " + std::to_string(first->second.line()) + ")");
@@ -836,15 +847,7 @@ class Loader {
     for (auto it = section.node().begin(); it != section.node().end(); ++it) {
       const Value item = child(section, it->first, it->second);
       const std::string name = it->first.Scalar();
-      if (std::find(valid.begin(), valid.end(), name) == valid.end()) {
-        if (!name.empty() && name.find_first_not_of("0123456789") == std::string::npos) {
-          // `{temperature_C: 12,5}` reads as a key `5` after the value 12.
-          item.fail(
-              "unknown key; a number is not a key name (a decimal comma? write decimals "
-              "with a point, such as 12.5)");
-        }
-        item.fail("unknown key; did you mean " + std::string(nearest(name, valid)) + "?");
-      }
+      reject_unknown_key(item, name, valid);
       const auto [first, inserted] = out.emplace(name, item);
       if (!inserted) {
         item.fail("duplicate key (first given on line " + std::to_string(first->second.line()) +
