@@ -562,6 +562,17 @@ class GapNotes {
   Instant total_s_ = 0;
 };
 
+// Rejects a value implying `intensity_mm_per_h`, above kMaxRainIntensity_mm_per_h; `got` says
+// what the file gave.
+[[noreturn]] void implausible_intensity(const std::string& file, int line,
+                                        const std::string& column, double intensity_mm_per_h,
+                                        const std::string& got) {
+  throw InputError(file, line, column,
+                   "implausible intensity " + format_number(intensity_mm_per_h) + " mm/h (got " +
+                       got + "; the limit is " + format_number(kMaxRainIntensity_mm_per_h) +
+                       " mm/h)");
+}
+
 // Adds [start, end) to the covered spans, extending the last one when the two touch.
 void extend_covered(std::vector<TimeSpan>& covered, Instant start, Instant end) {
   if (!covered.empty() && covered.back().end == start) {
@@ -687,10 +698,7 @@ class SeriesBuilder {
       const std::string got = intensity ? format_number(row.value) + " " + fmt_.unit_name + "/h"
                                         : format_number(row.value) + " " + fmt_.unit_name + " in " +
                                               format_duration(end - start);
-      throw InputError(file_label_, row.line, fmt_.value_column,
-                       "implausible intensity " + format_number(intensity_mm_per_h) +
-                           " mm/h (got " + got + "; the limit is " +
-                           format_number(kMaxRainIntensity_mm_per_h) + " mm/h)");
+      implausible_intensity(file_label_, row.line, fmt_.value_column, intensity_mm_per_h, got);
     }
     extend_covered(series_.covered, start, end);
     if (depth_m > 0.0) {
@@ -807,13 +815,10 @@ RainSeries spread_tips(const std::vector<TipLog>& logs, const TipSpreading& tips
       const double intensity_mm_per_h =
           depth_m / kMetresPerMm * (kSecondsPerHour / static_cast<double>(end - start));
       if (intensity_mm_per_h > kMaxRainIntensity_mm_per_h) {
-        throw InputError(log->label, log->lines[k - 1], log->time_column,
-                         "implausible intensity " + format_number(intensity_mm_per_h) +
-                             " mm/h (got " + std::to_string(count) +
-                             (count == 1 ? " tip" : " tips") + " of " +
-                             format_number(tips.tip_depth_m / kMetresPerMm) + " mm in " +
-                             format_duration(end - start) + "; the limit is " +
-                             format_number(kMaxRainIntensity_mm_per_h) + " mm/h)");
+        implausible_intensity(log->label, log->lines[k - 1], log->time_column, intensity_mm_per_h,
+                              std::to_string(count) + (count == 1 ? " tip" : " tips") + " of " +
+                                  format_number(tips.tip_depth_m / kMetresPerMm) + " mm in " +
+                                  format_duration(end - start));
       }
       series.pulses.push_back({start, end, depth_m});
       total.add(depth_m);
@@ -897,11 +902,9 @@ RainSeries read_rain_daily(std::istream& in, const std::string& file_label, cons
               const double intensity_mm_per_h =
                   depth_m / kMetresPerMm * (kSecondsPerHour / static_cast<double>(how.duration_s));
               if (intensity_mm_per_h > kMaxRainIntensity_mm_per_h) {
-                throw InputError(file_label, line_number, fmt.value_column,
-                                 "implausible intensity " + format_number(intensity_mm_per_h) +
-                                     " mm/h (got " + format_number(value) + " " + fmt.unit_name +
-                                     " in " + format_duration(how.duration_s) + "; the limit is " +
-                                     format_number(kMaxRainIntensity_mm_per_h) + " mm/h)");
+                implausible_intensity(file_label, line_number, fmt.value_column, intensity_mm_per_h,
+                                      format_number(value) + " " + fmt.unit_name + " in " +
+                                          format_duration(how.duration_s));
               }
               if (depth_m == 0.0) return;
               const Instant day = floor_div(start + date.offset_s, kDay_s);
