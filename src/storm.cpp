@@ -389,31 +389,34 @@ std::vector<double> storm_depths_m(const StormSpec& spec) {
   return depths;
 }
 
+RainCsvWriter::RainCsvWriter(std::ostream& out, int utc_offset_s)
+    : out_(out), utc_offset_s_(utc_offset_s) {
+  out_ << "time,rain_mm\n";
+}
+
+void RainCsvWriter::row(Instant end, double depth_m) {
+  constexpr double kUnitsPerMetre = 1e9;  // units of 1e-6 mm
+  total_m_ += depth_m;
+  const std::int64_t target = std::llround(total_m_ * kUnitsPerMetre);
+  const std::int64_t units = std::max<std::int64_t>(0, target - printed_units_);
+  printed_units_ += units;
+  out_ << format_iso8601(end, utc_offset_s_) << ',' << units / 1000000;
+  if (const std::int64_t micro = units % 1000000; micro != 0) {
+    char digits[8];
+    std::snprintf(digits, sizeof digits, "%06lld", static_cast<long long>(micro));
+    std::string_view fraction(digits);
+    while (fraction.back() == '0') fraction.remove_suffix(1);
+    out_ << '.' << fraction;
+  }
+  out_ << '\n';
+}
+
 void write_storm_csv(std::ostream& out, const StormSpec& spec, int utc_offset_s) {
   const std::vector<double> depths = storm_depths_m(spec);
   const auto step_s = static_cast<Instant>(spec.step_s);
-  out << "time,rain_mm\n";
-  // Rounded on the running total in units of 1e-6 mm, so the rows add up to the rounded total.
-  constexpr double kUnitsPerMetre = 1e9;
-  double cumulative_m = 0.0;
-  std::int64_t printed_units = 0;
+  RainCsvWriter csv(out, utc_offset_s);
   for (std::size_t k = 0; k < depths.size(); ++k) {
-    cumulative_m += depths[k];
-    const std::int64_t target_units = std::llround(cumulative_m * kUnitsPerMetre);
-    const std::int64_t units = target_units - printed_units;
-    assert(units >= 0);
-    printed_units = target_units;
-    std::string value = std::to_string(units / 1000000);
-    const std::int64_t micro = units % 1000000;
-    if (micro != 0) {
-      char fraction[8];
-      std::snprintf(fraction, sizeof fraction, "%06lld", static_cast<long long>(micro));
-      std::string digits(fraction);
-      digits.erase(digits.find_last_not_of('0') + 1);
-      value += "." + digits;
-    }
-    const Instant end = spec.start + static_cast<Instant>(k + 1) * step_s;
-    out << format_iso8601(end, utc_offset_s) << ',' << value << '\n';
+    csv.row(spec.start + static_cast<Instant>(k + 1) * step_s, depths[k]);
   }
 }
 

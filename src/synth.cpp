@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/storm.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
@@ -203,26 +204,8 @@ void generate_prp(const PrpParameters& parameters, const SynthSpec& spec,
 }
 
 void write_synth_csv(std::ostream& out, const PrpParameters& parameters, const SynthSpec& spec) {
-  out << "time,rain_mm\n";
-  // Rounded on the running total in units of 1e-6 mm, so the rows add up to the rounded total.
-  constexpr double kUnitsPerMetre = 1e9;
-  double total_m = 0.0;
-  std::int64_t printed_units = 0;
-  generate_prp(parameters, spec, [&](Instant end, double depth_m) {
-    total_m += depth_m;
-    const std::int64_t target = std::llround(total_m * kUnitsPerMetre);
-    const std::int64_t units = std::max<std::int64_t>(0, target - printed_units);
-    printed_units += units;
-    out << format_iso8601(end, spec.utc_offset_s) << ',' << units / 1000000;
-    if (const std::int64_t micro = units % 1000000; micro != 0) {
-      char digits[8];
-      const auto result = std::to_chars(digits, digits + sizeof digits, micro + 1000000);
-      std::string_view fraction(digits + 1, result.ptr - digits - 1);
-      while (fraction.back() == '0') fraction.remove_suffix(1);
-      out << '.' << fraction;
-    }
-    out << '\n';
-  });
+  RainCsvWriter csv(out, spec.utc_offset_s);
+  generate_prp(parameters, spec, [&](Instant end, double depth_m) { csv.row(end, depth_m); });
 }
 
 namespace {

@@ -3,6 +3,7 @@
 /// from an IDF curve, and a constant block. A pure library; the only output is a CSV writer that
 /// takes a stream.
 
+#include <cstdint>
 #include <functional>
 #include <optional>
 #include <ostream>
@@ -52,6 +53,21 @@ std::vector<double> storm_depths_m(const StormSpec& spec);
 
 /// The total depth `storm_depths_m` will produce, after the same checks.
 double storm_total_depth_m(const StormSpec& spec);
+
+/// Writes a period-ending rain record row by row: header `time,rain_mm`, then each row stamped
+/// with the end of its interval (format_iso8601 at `utc_offset_s`) and its depth in mm to
+/// 1e-6 mm, rounded on the running total so that the rows add up to the rounded total.
+class RainCsvWriter {
+ public:
+  RainCsvWriter(std::ostream& out, int utc_offset_s);
+  void row(Instant end, double depth_m);
+
+ private:
+  std::ostream& out_;
+  int utc_offset_s_;
+  double total_m_ = 0.0;
+  std::int64_t printed_units_ = 0;  ///< of 1e-6 mm
+};
 
 /// Writes the storm as a rain record: header `time,rain_mm`, one row per step stamped with the
 /// end of its step (format_iso8601 at `utc_offset_s`), depth in mm to 1e-6 mm. Values are
