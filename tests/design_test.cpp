@@ -122,16 +122,18 @@ TEST(Design, WarnsWhenPrimingNeedsMoreThanTheRecordsUsualRain) {
       << d.warnings.front();
 }
 
-TEST(Design, PrintsEveryFigureAndTheCautions) {
+TEST(Design, PrintsEveryFigureOfASystemWithoutColumnOrRecordAndTheCautions) {
   std::ostringstream out;
   const Scenario s = make_scenario();
   write_design(out, s, evaluate_design(s, nullptr));
   const std::string text = out.str();
   for (const char* label :
-       {"storage between the set-points", "priming flow as steady rain",
-        "running flow at the set-point", "running time per cycle", "nozzle flow at design head",
-        "jet velocity", "electrical power at design head", "rain that overflows the rim",
-        "energy per cycle", "Cautions", "Working at height"}) {
+       {"storage between the set-points", "priming level (lip + weir head)",
+        "priming flow as steady rain", "running flow at the set-point",
+        "running flow at the break level", "running time per cycle", "design head",
+        "nozzle flow at design head", "jet velocity", "jet power",
+        "electrical power at design head", "rain that overflows the rim", "energy per cycle",
+        "Cautions", "Working at height"}) {
     EXPECT_NE(text.find(label), std::string::npos) << label;
   }
 }
