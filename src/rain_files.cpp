@@ -146,6 +146,12 @@ RainSeries load_rain_while(const RainConfig& config, const std::filesystem::path
       feed.fail(std::current_exception());
     }
   });
+  // Lets the reader finish (the run may end before the record does) and throws its error.
+  const auto finish_reading = [&] {
+    feed.stop_taking();
+    reader.join();
+    if (const std::exception_ptr error = feed.error()) std::rethrow_exception(error);
+  };
   try {
     RainView view(feed);
     consume(view);
@@ -154,14 +160,10 @@ RainSeries load_rain_while(const RainConfig& config, const std::filesystem::path
     reader.join();
     throw;
   } catch (...) {
-    feed.stop_taking();
-    reader.join();
-    if (const std::exception_ptr error = feed.error()) std::rethrow_exception(error);
+    finish_reading();
     throw;
   }
-  feed.stop_taking();  // the run may end before the record does
-  reader.join();
-  if (const std::exception_ptr error = feed.error()) std::rethrow_exception(error);
+  finish_reading();
   return std::move(*whole);
 }
 
