@@ -104,7 +104,7 @@ std::span<const Caution> safety_cautions() {
 DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
   DesignFigures d;
   const ReservoirGeometry geometry(sc.reservoir);
-  const Plant plant(sc);
+  const Plant plant(plant_config(sc));
   const ReleaseConfig& rel = sc.release;
   const bool has_set_points = rel.kind == ReleaseKind::bell || rel.kind == ReleaseKind::float_valve;
   double top_m = has_set_points ? rel.trigger_level_m : geometry.rim_m();

@@ -6,23 +6,21 @@
 
 namespace gutterwatt {
 
-Plant::Plant(const Scenario& scenario)
-    : pipe_(scenario.drop_pipe),
-      nozzle_(scenario.nozzle),
-      drop_m_(scenario.drop_m),
-      column_(scenario.head_column),
-      runner_diameter_m_(scenario.turbine.runner_diameter_m),
-      speed_rpm_(scenario.turbine.speed_rpm),
-      peak_efficiency_(scenario.turbine.peak_efficiency),
-      generator_efficiency_(scenario.generator.efficiency),
-      cut_in_W_(scenario.generator.cut_in_W),
-      density_kg_per_m3_(water_density_kg_per_m3(scenario.site.temperature_C)),
-      kinematic_viscosity_m2_per_s_(
-          water_kinematic_viscosity_m2_per_s(scenario.site.temperature_C)) {
+Plant::Plant(const PlantConfig& config)
+    : pipe_(config.drop_pipe),
+      nozzle_(config.nozzle),
+      drop_m_(config.drop_m),
+      column_(config.head_column),
+      runner_diameter_m_(config.turbine.runner_diameter_m),
+      speed_rpm_(config.turbine.speed_rpm),
+      peak_efficiency_(config.turbine.peak_efficiency),
+      generator_efficiency_(config.generator.efficiency),
+      cut_in_W_(config.generator.cut_in_W),
+      density_kg_per_m3_(water_density_kg_per_m3(config.temperature_C)),
+      kinematic_viscosity_m2_per_s_(water_kinematic_viscosity_m2_per_s(config.temperature_C)) {
   // The full flow is needed at every solver stage while the release runs; solving the friction
   // law there dominated the run time, so it is tabulated once over the levels a run can reach.
-  const double top =
-      std::max({scenario.reservoir.rim_m, scenario.release.trigger_level_m, 1e-3}) + 0.1;
+  const double top = std::max(config.top_level_m, 1e-3) + 0.1;
   full_flow_table_ = UniformTable(0.0, top, 1024,
                                   [this](double level) { return solve_full_flow_m3_per_s(level); });
 }

@@ -935,6 +935,17 @@ std::set<std::string> apply_overrides(YAML::Node& root, const std::vector<std::s
 
 }  // namespace
 
+PlantConfig plant_config(const Scenario& scenario) {
+  return {scenario.drop_pipe,
+          scenario.drop_m,
+          scenario.head_column,
+          scenario.nozzle,
+          scenario.turbine,
+          scenario.generator,
+          scenario.site.temperature_C,
+          std::max(scenario.reservoir.rim_m, scenario.release.trigger_level_m)};
+}
+
 Scenario parse_scenario(std::string_view yaml_text, const std::string& file_label,
                         const std::filesystem::path& base_dir,
                         const std::vector<std::string>& overrides) {

@@ -192,7 +192,7 @@ class Engine {
         observer_(observer),
         options_(options),
         geometry_(sc.reservoir),
-        plant_(sc),
+        plant_(plant_config(sc)),
         release_(make_release(sc.release)),
         trickle_volume_m3_(plant_.column_area_m2() * kTrickleHead_m) {}
 

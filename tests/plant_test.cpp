@@ -23,7 +23,7 @@ constexpr double kFullFlowTolerance = 1e-9;
 
 TEST(Plant, FullFlowIsNozzleControlledWithoutAColumn) {
   const Scenario s = make_scenario();
-  const Plant p(s);
+  const Plant p(plant_config(s));
   const double nu = water_kinematic_viscosity_m2_per_s(s.site.temperature_C);
   for (double level : {0.0, 0.003, 0.008, 0.05, 0.0567, 0.062, 0.1, 0.5}) {
     const double direct =
@@ -36,7 +36,7 @@ TEST(Plant, FullFlowIsNozzleControlledWithoutAColumn) {
 TEST(Plant, FullFlowIsAFreeOutfallIntoTheColumnTop) {
   Scenario s = make_scenario();
   s.head_column = HeadColumnConfig{0.040, 3.5};
-  const Plant p(s);
+  const Plant p(plant_config(s));
   const double nu = water_kinematic_viscosity_m2_per_s(s.site.temperature_C);
   for (double level : {0.0, 0.03, 0.062, 0.3}) {
     const double direct = free_outfall_flow_m3_per_s(s.drop_pipe, level + 4.0 - 3.5, nu);
@@ -52,14 +52,14 @@ TEST(Plant, FullBoreSiphonMatchesTheWorkedExample) {
   s.drop_pipe = Pipe{0.040, 3.0, 0.0015e-3, 0.5 + 2.0 * 0.3};
   s.head_column = HeadColumnConfig{0.1, 1.0};
   s.drop_m = 2.5;
-  const Plant p(s);
+  const Plant p(plant_config(s));
   EXPECT_LT(relative_error(p.full_flow_m3_per_s(0.0), 3.684e-3), 0.005);
 }
 
 TEST(Plant, ColumnHoldsItsVolumeAndSetsTheHead) {
   Scenario s = make_scenario();
   s.head_column = HeadColumnConfig{0.040, 3.5};
-  const Plant p(s);
+  const Plant p(plant_config(s));
   const double area = 0.25 * kPi * 0.040 * 0.040;
   EXPECT_TRUE(p.has_column());
   EXPECT_DOUBLE_EQ(p.column_area_m2(), area);
@@ -71,7 +71,7 @@ TEST(Plant, ColumnHoldsItsVolumeAndSetsTheHead) {
 TEST(Plant, ColumnNozzleIsAnOrificeAboveTheLinearHead) {
   Scenario s = make_scenario();
   s.head_column = HeadColumnConfig{0.040, 3.5};
-  const Plant p(s);
+  const Plant p(plant_config(s));
   const double area = p.column_area_m2();
   const double nozzle_area = circle_area_m2(0.005);
   EXPECT_DOUBLE_EQ(p.column_nozzle_flow_m3_per_s(area * 2.0),
@@ -86,14 +86,14 @@ TEST(Plant, ColumnNozzleIsAnOrificeAboveTheLinearHead) {
 }
 
 TEST(Plant, NoColumnMeansNoColumnVolume) {
-  const Plant p(make_scenario());
+  const Plant p(plant_config(make_scenario()));
   EXPECT_FALSE(p.has_column());
   EXPECT_EQ(p.column_capacity_m3(), 0.0);
   EXPECT_EQ(p.column_head_m(1.0), 0.0);
 }
 
 TEST(Plant, NozzleHeadInvertsTheOrificeLaw) {
-  const Plant p(make_scenario());
+  const Plant p(plant_config(make_scenario()));
   const double head = p.nozzle_head_for_flow_m(1.2e-4);
   EXPECT_NEAR(orifice_flow_m3_per_s(0.95, circle_area_m2(0.005), head), 1.2e-4, 1e-18);
 }
@@ -104,7 +104,7 @@ TEST(Plant, JetPowerMatchesTheWorkedExample) {
   Scenario s = make_scenario();
   s.site.temperature_C = 20.0;
   s.nozzle.velocity_coefficient = 0.98;
-  const Plant p(s);
+  const Plant p(plant_config(s));
   const PlantPower w = p.power(1e-3, 10.0);
   EXPECT_EQ(w.head_m, 10.0);
   EXPECT_NEAR(w.jet_velocity_m_per_s, 13.7247, 0.00005);
@@ -113,7 +113,7 @@ TEST(Plant, JetPowerMatchesTheWorkedExample) {
 
 TEST(Plant, BestSpeedEfficiencyIsThePeak) {
   const Scenario s = make_scenario();
-  const Plant p(s);
+  const Plant p(plant_config(s));
   for (double head : {0.5, 4.0, 20.0}) {
     const PlantPower w = p.power(1e-4, head);
     EXPECT_NEAR(w.shaft_W, s.turbine.peak_efficiency * w.jet_W, 1e-15 * w.jet_W) << head;
@@ -127,14 +127,14 @@ TEST(Plant, FixedSpeedFollowsTheIdealImpulseCurve) {
   const double head = 4.0;
   const double jet = 0.97 * std::sqrt(2.0 * kGravity_m_per_s2 * head);
   s.turbine.speed_rpm = 0.3 * jet * 60.0 / (kPi * s.turbine.runner_diameter_m);
-  const Plant p(s);
+  const Plant p(plant_config(s));
   const PlantPower w = p.power(1e-4, head);
   EXPECT_NEAR(w.shaft_W / w.jet_W, 0.84 * s.turbine.peak_efficiency, 1e-12);
 }
 
 TEST(Plant, PowerChainMultipliesTheEfficiencies) {
   const Scenario s = make_scenario();
-  const Plant p(s);
+  const Plant p(plant_config(s));
   const double q = 1.5e-4;
   const double head = 3.0;
   const PlantPower w = p.power(q, head);
@@ -145,7 +145,7 @@ TEST(Plant, PowerChainMultipliesTheEfficiencies) {
 }
 
 TEST(Plant, NoFlowOrNoHeadGivesNoPower) {
-  const Plant p(make_scenario());
+  const Plant p(plant_config(make_scenario()));
   const PlantPower a = p.power(0.0, 3.0);
   const PlantPower b = p.power(1e-4, 0.0);
   EXPECT_EQ(a.jet_W, 0.0);
@@ -157,7 +157,7 @@ TEST(Plant, NoFlowOrNoHeadGivesNoPower) {
 TEST(Plant, CarriesTheWaterPropertiesOfTheSiteTemperature) {
   Scenario s = make_scenario();
   s.site.temperature_C = 20.0;
-  const Plant p(s);
+  const Plant p(plant_config(s));
   // source: IAPWS-IF97 density and IAPWS 2008 viscosity, values from REFERENCES.md section 2:
   // 20 C -> 998.206 kg/m3 (0.05 %), 1.0034 mm2/s (0.5 %).
   EXPECT_LT(relative_error(p.density_kg_per_m3(), 998.206), 5e-4);

@@ -78,7 +78,7 @@ TEST(Simulation, TankDrainsInTheTorricelliTime) {
   EXPECT_NEAR(2.0 * area / k, 1178.3, 0.05);
   EXPECT_NEAR(area / k, 589.1, 0.05);
   // The conveyance does not limit the release at any level.
-  EXPECT_GT(Plant(s).full_flow_m3_per_s(0.0), 10.0 * k);
+  EXPECT_GT(Plant(plant_config(s)).full_flow_m3_per_s(0.0), 10.0 * k);
 
   RecordingObserver obs;
   const RunResult r = simulate(s, constant_rain(kStart, kStart + 1300, 0.0), obs);
@@ -177,7 +177,7 @@ struct BellCycle {
 
 BellCycle bell_cycle(const Scenario& s, double inflow) {
   const BellSiphon bell(s.release);
-  const Plant plant(s);
+  const Plant plant(plant_config(s));
   const ReservoirGeometry geometry(s.reservoir);
   const double lip = s.release.trigger_level_m;
   const double rim = s.release.break_level_m;
@@ -202,7 +202,7 @@ void expect_closed_form_cycles(Scenario s, double inflow) {
   s.reservoir.initial_level_m = s.release.break_level_m;
   s.simulation.rtol = 1e-9;
   ASSERT_GT(inflow, s.release.priming_flow_m3_per_s);
-  ASSERT_LT(inflow, Plant(s).full_flow_m3_per_s(s.release.break_level_m));
+  ASSERT_LT(inflow, Plant(plant_config(s)).full_flow_m3_per_s(s.release.break_level_m));
   const BellCycle cycle = bell_cycle(s, inflow);
 
   RecordingObserver obs;
@@ -263,7 +263,7 @@ TEST(Simulation, EachCycleReleasesTheStorageBetweenSetPointsPlusTheInflow) {
 // Level where the overflow over the rim carries what the running siphon cannot: bisection on
 // C_w L (h - rim)^1.5 = q - Q_run(h).
 double overflow_level(const Scenario& s, double inflow) {
-  const Plant plant(s);
+  const Plant plant(plant_config(s));
   const ReservoirGeometry geometry(s.reservoir);
   double lo = s.reservoir.rim_m;
   double hi = s.reservoir.rim_m + 0.1;
@@ -282,7 +282,7 @@ TEST(Simulation, InflowAboveTheRunningFlowOverflowsTheDifference) {
   Scenario s = make_scenario(3.0 * 3600.0, 60.0);
   s.simulation.rtol = 1e-9;
   const double inflow = 12.0 * kLitre_m3 * kPerMinute;
-  const Plant plant(s);
+  const Plant plant(plant_config(s));
   ASSERT_GT(inflow, plant.full_flow_m3_per_s(s.reservoir.rim_m));
   RecordingObserver obs;
   const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
@@ -532,7 +532,7 @@ TEST(Simulation, HeadColumnPassesWhatItDoesNotSpill) {
   const double column_change = r.final.column_m3 - r.initial.column_m3;
   EXPECT_NEAR(a.release_m3, a.nozzle_m3 + a.column_overflow_m3 + column_change,
               1e-9 * a.release_m3);
-  EXPECT_LE(r.final.column_m3, Plant(s).column_capacity_m3() * (1.0 + 1e-12));
+  EXPECT_LE(r.final.column_m3, Plant(plant_config(s)).column_capacity_m3() * (1.0 + 1e-12));
   EXPECT_LT(r.balance_relative_error, kBalance);
 }
 

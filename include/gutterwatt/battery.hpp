@@ -2,9 +2,19 @@
 /// The battery behind the charger: energy store with a charge-power limit and charge efficiency,
 /// serving a load. Energy it cannot take is curtailed; load it cannot serve is unmet.
 
-#include "gutterwatt/scenario.hpp"
+#include <vector>
 
 namespace gutterwatt {
+
+struct BatteryConfig {
+  double capacity_J = 0.0;
+  double initial_soc = 0.5;
+  double charge_efficiency = 0.9;
+  double max_charge_W = 1e9;
+  double load_W = 0.0;
+  /// Optional 24 hourly loads (local time), replacing load_W when given.
+  std::vector<double> load_profile_W;
+};
 
 enum class BatteryMode { normal, full, empty };
 

@@ -4,10 +4,42 @@
 
 #include <optional>
 
+#include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/interpolation.hpp"
-#include "gutterwatt/scenario.hpp"
 
 namespace gutterwatt {
+
+struct HeadColumnConfig {
+  double diameter_m = 0.0;
+  double height_m = 0.0;  ///< from the nozzle up to the column's top, where the drop pipe enters
+};
+
+enum class TurbineKind { impulse };
+
+struct TurbineConfig {
+  double runner_diameter_m = 0.0;
+  std::optional<double> speed_rpm;  ///< nullopt: the runner turns at the best speed
+  double peak_efficiency = 0.7;
+  TurbineKind kind = TurbineKind::impulse;
+};
+
+struct GeneratorConfig {
+  double efficiency = 0.65;
+  double cut_in_W = 0.0;
+};
+
+/// Everything below the release, as Plant needs it.
+struct PlantConfig {
+  Pipe drop_pipe{0.0, 0.0, 0.0, 0.0};
+  double drop_m = 0.0;  ///< vertical fall from the reservoir floor to the nozzle
+  std::optional<HeadColumnConfig> head_column;
+  Nozzle nozzle{0.0, 0.95, 0.97};
+  TurbineConfig turbine;
+  GeneratorConfig generator;
+  double temperature_C = 15.0;
+  /// The highest reservoir level the full-flow table must cover (the rim or the trigger level).
+  double top_level_m = 0.0;
+};
 
 /// Power figures for one flow through the nozzle at one head.
 struct PlantPower {
@@ -24,7 +56,7 @@ inline constexpr double kNozzleLinearHead_m = 0.01;
 
 class Plant {
  public:
-  explicit Plant(const Scenario& scenario);
+  explicit Plant(const PlantConfig& config);
 
   /// Flow the conveyance carries with the release running full and the reservoir at `level_m`:
   /// nozzle-controlled without a head column, free outfall into the column top with one.

@@ -5,9 +5,20 @@
 #include <memory>
 #include <string_view>
 
-#include "gutterwatt/scenario.hpp"
-
 namespace gutterwatt {
+
+enum class ReleaseKind { bell, float_valve, orifice, none };
+
+struct ReleaseConfig {
+  ReleaseKind kind = ReleaseKind::bell;
+  double trigger_level_m = 0.0;  ///< bell: standpipe lip; float_valve: opening level
+  double break_level_m = 0.0;    ///< bell: bell rim; float_valve: closing level
+  double standpipe_diameter_m = 0.0;
+  double priming_flow_m3_per_s = 0.0;
+  double lip_coefficient = 1.77;    ///< weir C over the standpipe lip, m^0.5/s
+  double orifice_diameter_m = 0.0;  ///< float_valve and orifice
+  double orifice_coefficient = 0.61;
+};
 
 enum class ReleaseState { idle, dribble, running, closed, open };
 

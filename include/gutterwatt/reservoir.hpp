@@ -5,9 +5,22 @@
 #include <vector>
 
 #include "gutterwatt/interpolation.hpp"
-#include "gutterwatt/scenario.hpp"
 
 namespace gutterwatt {
+
+enum class ReservoirShape { half_round, rectangular, table };
+
+struct ReservoirConfig {
+  ReservoirShape shape = ReservoirShape::half_round;
+  double width_m = 0.0;               ///< half_round: diameter; rectangular: inside width
+  double length_m = 0.0;              ///< half_round and rectangular
+  double rim_m = 0.0;                 ///< overflow rim above the floor
+  double overflow_coefficient = 1.7;  ///< weir C in Q = C L h^1.5, m^0.5/s
+  double overflow_length_m = 0.0;     ///< weir length; defaults to length_m (0 for table: required)
+  std::vector<double> table_level_m;  ///< table: levels above the floor, increasing from 0
+  std::vector<double> table_area_m2;  ///< table: plan (water-surface) area at each level
+  double initial_level_m = 0.0;
+};
 
 /// Level-volume geometry of a half-round or rectangular gutter, or of a level-area table. Above
 /// the rim the walls are taken as vertical with the rim's surface area, so an overflowing

@@ -8,9 +8,13 @@
 #include <string_view>
 #include <vector>
 
+#include "gutterwatt/battery.hpp"
 #include "gutterwatt/calendar.hpp"
 #include "gutterwatt/hydraulics.hpp"
+#include "gutterwatt/plant.hpp"
 #include "gutterwatt/rain_input.hpp"
+#include "gutterwatt/release.hpp"
+#include "gutterwatt/reservoir.hpp"
 
 namespace gutterwatt {
 
@@ -43,62 +47,6 @@ struct FirstFlushConfig {
   double reset_after_dry_s = 12.0 * 3600.0;
 };
 
-enum class ReservoirShape { half_round, rectangular, table };
-
-struct ReservoirConfig {
-  ReservoirShape shape = ReservoirShape::half_round;
-  double width_m = 0.0;               ///< half_round: diameter; rectangular: inside width
-  double length_m = 0.0;              ///< half_round and rectangular
-  double rim_m = 0.0;                 ///< overflow rim above the floor
-  double overflow_coefficient = 1.7;  ///< weir C in Q = C L h^1.5, m^0.5/s
-  double overflow_length_m = 0.0;     ///< weir length; defaults to length_m (0 for table: required)
-  std::vector<double> table_level_m;  ///< table: levels above the floor, increasing from 0
-  std::vector<double> table_area_m2;  ///< table: plan (water-surface) area at each level
-  double initial_level_m = 0.0;
-};
-
-enum class ReleaseKind { bell, float_valve, orifice, none };
-
-struct ReleaseConfig {
-  ReleaseKind kind = ReleaseKind::bell;
-  double trigger_level_m = 0.0;  ///< bell: standpipe lip; float_valve: opening level
-  double break_level_m = 0.0;    ///< bell: bell rim; float_valve: closing level
-  double standpipe_diameter_m = 0.0;
-  double priming_flow_m3_per_s = 0.0;
-  double lip_coefficient = 1.77;    ///< weir C over the standpipe lip, m^0.5/s
-  double orifice_diameter_m = 0.0;  ///< float_valve and orifice
-  double orifice_coefficient = 0.61;
-};
-
-struct HeadColumnConfig {
-  double diameter_m = 0.0;
-  double height_m = 0.0;  ///< from the nozzle up to the column's top, where the drop pipe enters
-};
-
-enum class TurbineKind { impulse };
-
-struct TurbineConfig {
-  double runner_diameter_m = 0.0;
-  std::optional<double> speed_rpm;  ///< nullopt: the runner turns at the best speed
-  double peak_efficiency = 0.7;
-  TurbineKind kind = TurbineKind::impulse;
-};
-
-struct GeneratorConfig {
-  double efficiency = 0.65;
-  double cut_in_W = 0.0;
-};
-
-struct BatteryConfig {
-  double capacity_J = 0.0;
-  double initial_soc = 0.5;
-  double charge_efficiency = 0.9;
-  double max_charge_W = 1e9;
-  double load_W = 0.0;
-  /// Optional 24 hourly loads (local time), replacing load_W when given.
-  std::vector<double> load_profile_W;
-};
-
 struct SimulationConfig {
   std::optional<Instant> start;  ///< nullopt: the start of the rain record
   std::optional<Instant> end;    ///< nullopt: the end of the rain record
@@ -123,6 +71,9 @@ struct Scenario {
   BatteryConfig battery;
   SimulationConfig simulation;
 };
+
+/// The plant's part of the scenario, for Plant.
+PlantConfig plant_config(const Scenario& scenario);
 
 /// Loads `file`, applies `overrides` (each `key.path=value`, in order), checks and converts.
 /// Throws InputError naming the file, the line and the key (and the nearest valid key for an
