@@ -252,7 +252,7 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
   out << "Design figures for " << sc.site.name << " (" << sc.file.filename().string() << ")\n";
   if (d.storage_m3) line("storage between the set-points", fmt(*d.storage_m3 * 1e3, 2), "L");
   if (d.priming_level_m)
-    line("priming level (lip + weir head)", fmt(*d.priming_level_m * 1e3, 2), "mm");
+    line("priming level (lip + head on the standpipe)", fmt(*d.priming_level_m * 1e3, 2), "mm");
   if (d.priming_intensity_m_per_s) {
     line("priming flow as steady rain on this roof", mmh(*d.priming_intensity_m_per_s), "mm/h");
   }

@@ -5,6 +5,23 @@
 #include "gutterwatt/hydraulics.hpp"
 
 namespace gutterwatt {
+namespace {
+
+// Nozzle-controlled without a head column, free outfall into the column top with one.
+double full_flow(const Pipe& pipe, const Nozzle& nozzle, double drop_m,
+                 const std::optional<HeadColumnConfig>& column, double nu_m2_per_s,
+                 double level_m) {
+  if (column)
+    return free_outfall_flow_m3_per_s(pipe, level_m + drop_m - column->height_m, nu_m2_per_s);
+  return nozzle_controlled_flow_m3_per_s(pipe, nozzle, level_m + drop_m, nu_m2_per_s);
+}
+
+}  // namespace
+
+double running_flow_m3_per_s(const PlantConfig& config, double level_m) {
+  return full_flow(config.drop_pipe, config.nozzle, config.drop_m, config.head_column,
+                   water_kinematic_viscosity_m2_per_s(config.temperature_C), level_m);
+}
 
 Plant::Plant(const PlantConfig& config)
     : pipe_(config.drop_pipe),
@@ -31,13 +48,8 @@ double Plant::full_flow_m3_per_s(double level_m) const {
 }
 
 double Plant::solve_full_flow_m3_per_s(double level_m) const {
-  const double level = level_m;  // may be slightly negative for the table's first node
-  if (column_) {
-    return free_outfall_flow_m3_per_s(pipe_, level + drop_m_ - column_->height_m,
-                                      kinematic_viscosity_m2_per_s_);
-  }
-  return nozzle_controlled_flow_m3_per_s(pipe_, nozzle_, level + drop_m_,
-                                         kinematic_viscosity_m2_per_s_);
+  // level_m may be slightly negative for the table's first node.
+  return full_flow(pipe_, nozzle_, drop_m_, column_, kinematic_viscosity_m2_per_s_, level_m);
 }
 
 double Plant::column_area_m2() const { return column_ ? circle_area_m2(column_->diameter_m) : 0.0; }

@@ -6,6 +6,7 @@
 #include <cerrno>
 #include <charconv>
 #include <cmath>
+#include <cstdio>
 #include <cstring>
 #include <fstream>
 #include <initializer_list>
@@ -509,6 +510,8 @@ const std::vector<Section>& schema() {
             }},
            {"lip_coefficient", kOptional,
             [](V v, S s) { s.release.lip_coefficient = v.number(kPositive); }},
+           {"mouth_coefficient", kOptional,
+            [](V v, S s) { s.release.mouth_coefficient = v.number(kFraction); }},
            {"orifice_diameter_mm", kOptional,
             [](V v, S s) { s.release.orifice_diameter_m = v.number(kPositive) * kMetresPerMm; }},
            {"orifice_coefficient", kOptional,
@@ -770,6 +773,39 @@ void check_conveyance(const Seen& seen) {
                 "must be smaller than drop_pipe.diameter_mm = " + pipe.raw());
 }
 
+/// A number as a message shows a computed value: three significant digits.
+std::string show3(double x) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.3g", x);
+  return buf;
+}
+
+void check_nozzle(const Seen& seen, const Scenario& s) {
+  // Cd = Cc Cv with a contraction coefficient Cc <= 1 (REFERENCES.md section 5), so Cd <= Cv.
+  const Nozzle& n = s.nozzle;
+  if (n.discharge_coefficient <= n.velocity_coefficient) return;
+  if (seen.has("nozzle.discharge_coefficient")) {
+    seen.at("nozzle.discharge_coefficient")
+        .expect(false, "must not exceed nozzle.velocity_coefficient = " +
+                           show(n.velocity_coefficient) + ", as Cd = Cc Cv with Cc <= 1");
+  }
+  seen.at("nozzle.velocity_coefficient")
+      .expect(false, "must be at least nozzle.discharge_coefficient = " +
+                         show(n.discharge_coefficient) + ", as Cd = Cc Cv with Cc <= 1");
+}
+
+/// A bell siphon that primes must run faster than it fills at the trigger level, or it would
+/// never drain below the lip once sealed.
+void check_priming_flow(const Seen& seen, const Scenario& s) {
+  if (s.release.kind != ReleaseKind::bell) return;
+  const double running = running_flow_m3_per_s(plant_config(s), s.release.trigger_level_m);
+  if (s.release.priming_flow_m3_per_s < running) return;
+  const double per_minute = kSecondsPerMinute / kCubicMetresPerLitre;
+  seen.at("release.priming_flow_L_per_min")
+      .expect(false, "must be below the running flow at release.trigger_level_mm, " +
+                         show3(running * per_minute) + " L/min");
+}
+
 void check_simulation(const Seen& seen, const Scenario& s) {
   const auto& sim = s.simulation;
   if (sim.start && sim.end) {
@@ -786,6 +822,8 @@ void check_combinations(const Seen& seen, Scenario& s) {
   check_reservoir(seen, s);
   check_release(seen, s);
   check_conveyance(seen);
+  check_nozzle(seen, s);
+  check_priming_flow(seen, s);
   check_simulation(seen, s);
 }
 

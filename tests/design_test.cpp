@@ -128,7 +128,7 @@ TEST(Design, PrintsEveryFigureOfASystemWithoutColumnOrRecordAndTheCautions) {
   write_design(out, s, evaluate_design(s, nullptr));
   const std::string text = out.str();
   for (const char* label :
-       {"storage between the set-points", "priming level (lip + weir head)",
+       {"storage between the set-points", "priming level (lip + head on the standpipe)",
         "priming flow as steady rain", "running flow at the set-point",
         "running flow at the break level", "running time per cycle", "design head",
         "nozzle flow at design head", "jet velocity", "jet power",

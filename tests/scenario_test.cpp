@@ -200,6 +200,28 @@ TEST(Scenario, RejectsARunnerSpeedThatIsNeitherANumberNorBest) {
             "demo.yaml:25: turbine.speed_rpm: expected a number or best, got \"fast\"");
 }
 
+// Running flow of minimal.yaml at the trigger level, worked outside the code (Colebrook solved by
+// fixed-point iteration in a separate script, nu 1.1386 mm2/s at 15 C from REFERENCES.md
+// section 2): H = 0.040 + 2.5 m through a 15 mm pipe 3 m long, K 1.5, into a 4 mm nozzle at
+// Cd 0.95: Q = 4.9596 L/min (Re 6162).
+TEST(Scenario, RejectsAPrimingFlowAtOrAboveTheRunningFlow) {
+  EXPECT_EQ(error_of(minimal_with("priming_flow_L_per_min: 2", "priming_flow_L_per_min: 6")),
+            "demo.yaml:16: release.priming_flow_L_per_min: must be below the running flow at "
+            "release.trigger_level_mm, 4.96 L/min (got 6)");
+  EXPECT_NO_THROW(parse(minimal_with("priming_flow_L_per_min: 2", "priming_flow_L_per_min: 4.9")));
+}
+
+TEST(Scenario, RejectsANozzleDischargeCoefficientAboveItsVelocityCoefficient) {
+  EXPECT_EQ(
+      error_of(minimal_with("  diameter_mm: 4", "  diameter_mm: 4\n  discharge_coefficient: 0.98")),
+      "demo.yaml:23: nozzle.discharge_coefficient: must not exceed "
+      "nozzle.velocity_coefficient = 0.97, as Cd = Cc Cv with Cc <= 1 (got 0.98)");
+  EXPECT_EQ(
+      error_of(minimal_with("  diameter_mm: 4", "  diameter_mm: 4\n  velocity_coefficient: 0.9")),
+      "demo.yaml:23: nozzle.velocity_coefficient: must be at least "
+      "nozzle.discharge_coefficient = 0.95, as Cd = Cc Cv with Cc <= 1 (got 0.9)");
+}
+
 TEST(Scenario, ReadsLagInSecondsOrAsADuration) {
   EXPECT_DOUBLE_EQ(parse(minimal(), {"roof.lag_s=90"}).roof.lag_s, 90.0);
   EXPECT_DOUBLE_EQ(parse(minimal(), {"roof.lag=1.5min"}).roof.lag_s, 90.0);

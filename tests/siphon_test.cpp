@@ -35,6 +35,47 @@ TEST(Siphon, LipIsACircularWeir) {
   EXPECT_EQ(s.lip_flow_m3_per_s(0.02), 0.0);
 }
 
+// Hand computation for the invented standpipe (C_w 1.77 m^0.5/s, C_d 0.61, d 19 mm, g 9.80665):
+//   transition  h_t = C_d d sqrt(2 g) / (4 C_w) = 0.61 * 0.019 * 4.428690 / 7.08 = 7.249791 mm;
+//   weir at 4 mm:     1.77 * pi * 0.019 * 0.004^1.5             = 2.672802e-5 m3/s;
+//   orifice at 4 mm:  0.61 * 2.835287e-4 * sqrt(2 g 0.004)       = 4.844314e-5 m3/s (not taken);
+//   orifice at 20 mm: 0.61 * 2.835287e-4 * 0.626309              = 1.083221e-4 m3/s;
+//   weir at 20 mm:    1.77 * pi * 0.019 * 0.02^1.5               = 2.988283e-4 m3/s (not taken);
+//   both at h_t:                                                  = 6.521763e-5 m3/s.
+TEST(Siphon, StandpipeTakesTheSmallerOfWeirAndOrificeFlow) {
+  EXPECT_NEAR(standpipe_transition_head_m(1.77, 0.61, 0.019), 7.249791e-3, 1e-9);
+  EXPECT_NEAR(standpipe_inflow_m3_per_s(1.77, 0.61, 0.019, 0.004), 2.672802e-5, 1e-11);
+  EXPECT_NEAR(standpipe_inflow_m3_per_s(1.77, 0.61, 0.019, 0.020), 1.083221e-4, 1e-10);
+  EXPECT_EQ(standpipe_inflow_m3_per_s(1.77, 0.61, 0.019, 0.0), 0.0);
+  EXPECT_EQ(standpipe_inflow_m3_per_s(1.77, 0.61, 0.019, -0.01), 0.0);
+}
+
+TEST(Siphon, WeirAndOrificeMeetContinuously) {
+  const double h_t = 7.249791e-3;
+  const double below = standpipe_inflow_m3_per_s(1.77, 0.61, 0.019, h_t - 1e-9);
+  const double above = standpipe_inflow_m3_per_s(1.77, 0.61, 0.019, h_t + 1e-9);
+  EXPECT_NEAR(below, 6.521763e-5, 1e-10);
+  EXPECT_NEAR(above, 6.521763e-5, 1e-10);
+  EXPECT_LT(above - below, 1e-10);  // the slope, about 0.013 m2/s, times 2e-9 m
+}
+
+// Inverse at 6 L/min = 1e-4 m3/s, above the transition flow: weir head (1e-4 / 0.105652)^(2/3)
+// = 9.640114 mm, orifice head (1e-4 / (0.61 * 2.835287e-4))^2 / (2 g) = 17.044941 mm; the
+// orifice controls, so the larger head is the answer.
+TEST(Siphon, HeadForAFlowAboveTheTransitionIsTheOrificeHead) {
+  EXPECT_NEAR(standpipe_head_for_flow_m(1.77, 0.61, 0.019, 1e-4), 17.044941e-3, 1e-9);
+  EXPECT_NEAR(standpipe_head_for_flow_m(1.77, 0.61, 0.019, 2.672802e-5), 0.004, 1e-9);
+  EXPECT_EQ(standpipe_head_for_flow_m(1.77, 0.61, 0.019, 0.0), 0.0);
+}
+
+TEST(Siphon, PrimingAboveTheTransitionWaitsForTheDrownedMouth) {
+  ReleaseConfig c = bell();
+  c.priming_flow_m3_per_s = 1e-4;
+  const BellSiphon s(c);
+  EXPECT_NEAR(s.priming_level_m(), 0.050 + 17.044941e-3, 1e-9);
+  EXPECT_NEAR(s.lip_flow_m3_per_s(0.070), 1.083221e-4, 1e-10);
+}
+
 TEST(Siphon, PrimingLevelIsLipPlusWeirHeadOfThePrimingFlow) {
   const BellSiphon s(bell());
   // Inverse of the weir law: h = (Q / (C pi d))^(2/3).

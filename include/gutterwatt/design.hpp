@@ -18,7 +18,7 @@ namespace gutterwatt {
 /// Figures in SI. Optional ones are absent where the release kind or the record has none.
 struct DesignFigures {
   std::optional<double> storage_m3;       ///< between the set-points (bell: priming level)
-  std::optional<double> priming_level_m;  ///< bell: lip + weir head of the priming flow
+  std::optional<double> priming_level_m;  ///< bell: lip + standpipe head of the priming flow
   std::optional<double> priming_intensity_m_per_s;  ///< steady rain that just primes the bell
   std::optional<double> priming_exceedance;         ///< share of wet record time at or above it
   double running_flow_trigger_m3_per_s = 0.0;       ///< release running full, level at trigger

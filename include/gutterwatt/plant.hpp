@@ -41,6 +41,11 @@ struct PlantConfig {
   double top_level_m = 0.0;
 };
 
+/// The flow the conveyance of `config` carries with the release running full and the reservoir
+/// at `level_m`, solved directly (what Plant::solve_full_flow_m3_per_s gives, without building
+/// a Plant and its table).
+double running_flow_m3_per_s(const PlantConfig& config, double level_m);
+
 /// Power figures for one flow through the nozzle at one head.
 struct PlantPower {
   double head_m = 0.0;  ///< head at the nozzle

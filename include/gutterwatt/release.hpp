@@ -16,6 +16,7 @@ struct ReleaseConfig {
   double standpipe_diameter_m = 0.0;
   double priming_flow_m3_per_s = 0.0;
   double lip_coefficient = 1.77;    ///< weir C over the standpipe lip, m^0.5/s
+  double mouth_coefficient = 0.61;  ///< orifice Cd of the standpipe mouth once drowned
   double orifice_diameter_m = 0.0;  ///< float_valve and orifice
   double orifice_coefficient = 0.61;
 };
