@@ -1,7 +1,5 @@
 #include "gutterwatt/output.hpp"
 
-#include <unistd.h>
-
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -394,77 +392,6 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
     periods("year", summary.years());
     out << "  (months and seasons are in summary.json)\n";
   }
-}
-
-OutputFolder::OutputFolder(std::filesystem::path dir) : dir_(std::move(dir)) {
-  std::error_code ec;
-  // The folders this run makes, deepest first: an uncommitted run takes them away again.
-  for (std::filesystem::path p = dir_; !p.empty() && !std::filesystem::exists(p, ec);
-       p = p.parent_path()) {
-    created_.push_back(p);
-    if (p == p.parent_path()) break;
-  }
-  std::filesystem::create_directories(dir_, ec);
-  if (ec || !std::filesystem::is_directory(dir_)) {
-    throw InputError(
-        dir_.string(), 0, "--out",
-        "cannot create the output folder (" + (ec ? ec.message() : "not a folder") + ")");
-  }
-  if (::access(dir_.c_str(), W_OK) != 0) {
-    throw InputError(dir_.string(), 0, "--out", "the output folder is not writable");
-  }
-}
-
-OutputFolder::~OutputFolder() {
-  if (!committed_) discard();
-}
-
-std::ostream& OutputFolder::open(const std::string& name) {
-  File f;
-  f.name = name;
-  f.temp = dir_ / ("." + name + ".tmp-" + std::to_string(::getpid()));
-  f.stream = std::make_unique<std::ofstream>(f.temp, std::ios::binary | std::ios::trunc);
-  if (!*f.stream) {
-    throw InputError((dir_ / name).string(), 0, "--out", "cannot write this file");
-  }
-  files_.push_back(std::move(f));
-  return *files_.back().stream;
-}
-
-void OutputFolder::commit() {
-  for (File& f : files_) {
-    f.stream->flush();
-    const bool ok = static_cast<bool>(*f.stream);
-    f.stream->close();
-    if (!ok || f.stream->fail()) {
-      discard();
-      throw Error((dir_ / f.name).string() + ": write failed (disk full?); earlier results kept");
-    }
-  }
-  for (File& f : files_) {
-    std::error_code ec;
-    std::filesystem::rename(f.temp, dir_ / f.name, ec);
-    if (ec) {
-      discard();
-      throw Error((dir_ / f.name).string() + ": cannot rename into place (" + ec.message() + ")");
-    }
-  }
-  committed_ = true;
-}
-
-void OutputFolder::discard() {
-  for (File& f : files_) {
-    if (f.stream && f.stream->is_open()) f.stream->close();
-    std::error_code ec;
-    std::filesystem::remove(f.temp, ec);
-  }
-  files_.clear();
-  for (const std::filesystem::path& p : created_) {
-    std::error_code ec;
-    if (!std::filesystem::is_empty(p, ec) || ec) break;
-    std::filesystem::remove(p, ec);
-  }
-  created_.clear();
 }
 
 }  // namespace gutterwatt

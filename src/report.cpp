@@ -29,6 +29,7 @@
 #include "gutterwatt/design.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/output.hpp"
+#include "gutterwatt/output_folder.hpp"
 #include "gutterwatt/release.hpp"
 #include "gutterwatt/sweep.hpp"
 
@@ -2111,14 +2112,21 @@ std::string render_report(const std::filesystem::path& dir) {
   std::error_code ec;
   if (fs::exists(dir / "timeseries.csv", ec)) return render_run(dir);
   if (fs::exists(dir / "sweep.csv", ec)) return render_sweep(dir);
-  if (!fs::is_directory(dir, ec)) throw InputError(dir.string(), 0, "", "no such directory");
+  if (!fs::exists(dir, ec)) throw InputError(dir.string(), 0, "", "no such directory");
+  if (!fs::is_directory(dir, ec)) {
+    throw InputError(dir.string(), 0, "", "is a file; give the output folder of a run or sweep");
+  }
   throw InputError(dir.string(), 0, "",
                    "holds neither timeseries.csv (a run) nor sweep.csv (a sweep)");
 }
 
 std::filesystem::path write_report(const std::filesystem::path& dir) {
-  const std::string page = render_report(dir);
-  OutputFolder folder(dir);
+  std::string page;
+  {
+    const FolderReadLock reading(dir);
+    page = render_report(dir);
+  }
+  OutputFolder folder(dir, "");
   folder.open("report.html") << page;
   folder.commit();
   return dir / "report.html";

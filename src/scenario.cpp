@@ -1029,6 +1029,23 @@ std::string read_scenario_text(const std::filesystem::path& file) {
   return text.str();
 }
 
+void check_scenario_key(const std::string& key, const std::string& label) {
+  const std::size_t dot = key.find('.');
+  const std::string section_name = key.substr(0, dot);
+  std::vector<std::string_view> section_names;
+  for (const Section& section : schema()) section_names.push_back(section.name);
+  const Value where(YAML::Node(), key, label, 0);
+  reject_unknown_key(where, section_name, section_names);
+  if (dot == std::string::npos) where.fail("is a section; give one of its keys as " + key + ".KEY");
+  const std::string name = key.substr(dot + 1, key.find('.', dot + 1) - dot - 1);
+  for (const Section& section : schema()) {
+    if (section.name != section_name) continue;
+    std::vector<std::string_view> key_names;
+    for (const Key& k : section.keys) key_names.push_back(k.name);
+    reject_unknown_key(where, name, key_names);
+  }
+}
+
 Scenario load_scenario(const std::filesystem::path& file,
                        const std::vector<std::string>& overrides) {
   return parse_scenario(read_scenario_text(file), file.string(), file.parent_path(), overrides);

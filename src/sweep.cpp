@@ -16,6 +16,7 @@
 #include <thread>
 
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/output_folder.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
@@ -351,6 +352,7 @@ SweepPlan plan_sweep(std::string scenario_text, const std::string& scenario_labe
   SweepPlan plan;
   for (const std::string& spec : vary_specs) {
     SweepAxis axis = parse_vary(spec);
+    check_scenario_key(axis.key, kVaryLabel);
     if (axis.key == "rain" || axis.key.rfind("rain.", 0) == 0) {
       throw InputError(kVaryLabel, 0, axis.key,
                        "the rain record is read once for the whole sweep, so keys under rain. "
@@ -586,6 +588,8 @@ SweepResult run_sweep_into(const std::filesystem::path& dir, const SweepPlan& pl
                            const RainSeries& rain, const SweepOptions& options) {
   OutputFolder folder(dir);
   SweepResult result = run_sweep(plan, rain, options);
+  // Nothing ran: earlier results are worth more than an empty table.
+  if (result.ranked.empty()) return result;
   write_sweep_csv(folder.open("sweep.csv"), plan, result);
   write_skipped_csv(folder.open("skipped.csv"), plan, result);
   write_sweep_json(folder.open("sweep.json"), plan, result);

@@ -100,20 +100,6 @@ Outcome check(const Site& s, const std::string& extra = "") {
 // `gutterwatt check --no-rain` of the site: the scenario alone.
 Outcome check_scenario(const Site& s) { return run("check --no-rain " + s.scenario, s.dir); }
 
-// Bad input: exit status 2 and exactly this one line on stderr.
-void expect_bad(const Outcome& r, const std::string& message) {
-  EXPECT_EQ(r.status, 2) << r.err;
-  EXPECT_EQ(r.err, "gutterwatt: error: " + message + "\n");
-}
-
-std::set<std::string> names_in(const fs::path& dir) {
-  std::set<std::string> names;
-  for (const auto& entry : fs::directory_iterator(dir)) {
-    names.insert(entry.path().filename().string());
-  }
-  return names;
-}
-
 // An output folder holding an earlier run's three files, with invented contents.
 const std::vector<std::string> kRunFiles = {"events.csv", "summary.json", "timeseries.csv"};
 
@@ -894,12 +880,6 @@ TEST(BadCommandLine, StormOutputThatIsAPipeIsRefused) {
                  ": --out: is not a regular file; give the name of a file "
                  "to write");
   EXPECT_TRUE(fs::is_fifo(dir / "pipe"));
-}
-
-TEST(BadCommandLine, ReportOfAMissingFolderIsNamed) {
-  const fs::path dir = scratch("bad-cli-report");
-  expect_bad(run("report " + (dir / "none").string(), dir),
-             (dir / "none").string() + ": no such directory");
 }
 
 // ---------------------------------------------------------------- faults around a run

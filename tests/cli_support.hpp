@@ -3,6 +3,7 @@
 /// foreground or in the background (to signal it), and read what it wrote.
 
 #include <fcntl.h>
+#include <gtest/gtest.h>
 #include <signal.h>
 #include <spawn.h>
 #include <sys/wait.h>
@@ -13,6 +14,7 @@
 #include <filesystem>
 #include <fstream>
 #include <optional>
+#include <set>
 #include <sstream>
 #include <string>
 #include <thread>
@@ -78,6 +80,25 @@ inline fs::path scratch(const std::string& name) {
   return dir;
 }
 
+/// The names of the entries of `dir` (hidden ones too).
+inline std::set<std::string> names_in(const fs::path& dir) {
+  std::set<std::string> names;
+  for (const auto& entry : fs::directory_iterator(dir)) {
+    names.insert(entry.path().filename().string());
+  }
+  return names;
+}
+
+/// A scratch folder holding a copy of the sweep fixtures (tests/data/sweep: shed.yaml, an
+/// invented system, and rain-10min.csv, three invented days of rain).
+inline fs::path fixture_site(const std::string& name) {
+  const fs::path dir = scratch(name);
+  for (const char* file : {"shed.yaml", "rain-10min.csv"}) {
+    fs::copy_file(fs::path(GUTTERWATT_SOURCE_DIR) / "tests" / "data" / "sweep" / file, dir / file);
+  }
+  return dir;
+}
+
 /// Runs `command` in a shell with stdin from /dev/null, keeping its output in files in `dir`.
 inline Outcome shell(const std::string& command, const fs::path& dir) {
   const fs::path out = dir / "stdout.txt";
@@ -96,6 +117,13 @@ inline Outcome run(const std::string& args, const fs::path& dir) {
 /// A file of the source tree, by its path relative to the top.
 inline std::string source(const std::string& rel) {
   return std::string(GUTTERWATT_SOURCE_DIR) + "/" + rel;
+}
+
+/// Bad input: exit status 2, nothing on stdout and exactly this one line on stderr.
+inline void expect_bad(const Outcome& r, const std::string& message) {
+  EXPECT_EQ(r.status, 2) << r.err;
+  EXPECT_EQ(r.out, "");
+  EXPECT_EQ(r.err, "gutterwatt: error: " + message + "\n");
 }
 
 inline int lines(const std::string& s) {

@@ -9,6 +9,7 @@
 #include <set>
 #include <sstream>
 
+#include "cli_support.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/rain_files.hpp"
 #include "gutterwatt/units.hpp"
@@ -17,6 +18,7 @@ namespace gutterwatt {
 namespace {
 
 namespace fs = std::filesystem;
+using cli_support::names_in;
 
 // An invented site and three days of invented rain (tests/data/sweep/README.md).
 const fs::path kFixtures = fs::path(GUTTERWATT_SOURCE_DIR) / "tests" / "data" / "sweep";
@@ -83,12 +85,6 @@ std::vector<std::string> lines_of(const std::string& text) {
   std::stringstream in(text);
   std::string line;
   while (std::getline(in, line)) out.push_back(line);
-  return out;
-}
-
-std::set<std::string> names_in(const fs::path& dir) {
-  std::set<std::string> out;
-  for (const auto& entry : fs::directory_iterator(dir)) out.insert(entry.path().filename());
   return out;
 }
 

@@ -1,11 +1,7 @@
 #pragma once
-/// Writers of a run's records: timeseries.csv, events.csv, summary.json and the terminal table,
-/// and the output folder that only ever shows complete files.
+/// Writers of a run's records: timeseries.csv, events.csv, summary.json and the terminal table.
 
-#include <filesystem>
-#include <fstream>
 #include <functional>
-#include <memory>
 #include <ostream>
 #include <string>
 #include <vector>
@@ -109,37 +105,5 @@ void write_summary_json(std::ostream& out, const Scenario& scenario, const RainS
 /// The summary table printed after a run.
 void print_summary_table(std::ostream& out, const Scenario& scenario, const RainSeries& rain,
                          const RunResult& result, const SummaryBuilder& summary);
-
-/// Files in an output folder that appear only complete: each is written under a temporary name
-/// in the same folder and renamed into place by commit(). Without commit() (a failed or
-/// interrupted run) the temporary files are removed, and so are the folders it made, and earlier
-/// results stay as they were.
-class OutputFolder {
- public:
-  /// Creates `dir` if needed; throws InputError naming `--out` when it cannot be written.
-  explicit OutputFolder(std::filesystem::path dir);
-  ~OutputFolder();
-  OutputFolder(const OutputFolder&) = delete;
-  OutputFolder& operator=(const OutputFolder&) = delete;
-
-  /// A stream for `name` (e.g. `timeseries.csv`) in the folder.
-  std::ostream& open(const std::string& name);
-  /// Flushes, checks and renames every file into place; throws Error on a write failure.
-  void commit();
-  const std::filesystem::path& dir() const { return dir_; }
-
- private:
-  struct File {
-    std::string name;
-    std::filesystem::path temp;
-    std::unique_ptr<std::ofstream> stream;
-  };
-  void discard();
-
-  std::filesystem::path dir_;
-  std::vector<File> files_;
-  std::vector<std::filesystem::path> created_;  ///< folders made here, deepest first
-  bool committed_ = false;
-};
 
 }  // namespace gutterwatt

@@ -15,8 +15,10 @@ namespace gutterwatt {
 /// missing, unreadable or malformed input, and naming `dir` when it holds neither kind of output.
 std::string render_report(const std::filesystem::path& dir);
 
-/// Renders the page and writes it to `dir`/report.html through an OutputFolder (a temporary name
-/// and a rename), so a failure leaves any earlier report untouched. Returns the path written.
+/// Renders the page, reading the folder's files under its shared lock (FolderReadLock) so that a
+/// run publishing into it meanwhile cannot mix two sets, and writes it to `dir`/report.html
+/// through an OutputFolder, so a failure leaves any earlier report untouched. Returns the path
+/// written.
 /// Throws as render_report, InputError when the folder or file cannot be opened for writing, and
 /// Error when the write itself fails.
 ///

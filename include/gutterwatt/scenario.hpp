@@ -96,4 +96,9 @@ Scenario parse_scenario(std::string_view yaml_text, const std::string& file_labe
                         const std::filesystem::path& base_dir,
                         const std::vector<std::string>& overrides = {});
 
+/// Throws InputError (`label: key: unknown key; did you mean ...?`) unless `key` names a key of
+/// the scenario file as `section.key` (deeper parts, inside a key's own value, are not checked).
+/// Lets a command reject a key before it loads anything, e.g. a sweep's `--vary` keys.
+void check_scenario_key(const std::string& key, const std::string& label);
+
 }  // namespace gutterwatt

@@ -112,9 +112,9 @@ struct SweepPlan {
 };
 
 /// Checks the specs and builds the plan. Throws InputError for a bad `--vary` or `--rank`, a key
-/// varied twice or also given with `--set`, a key under `rain.` (the record is read once for the
-/// whole sweep), no key to vary, and for a base scenario (text plus `base_overrides`) that does
-/// not load.
+/// that is no scenario key (check_scenario_key, naming `--vary`), a key varied twice or also given
+/// with `--set`, a key under `rain.` (the record is read once for the whole sweep), no key to vary,
+/// and for a base scenario (text plus `base_overrides`) that does not load.
 SweepPlan plan_sweep(std::string scenario_text, const std::string& scenario_label,
                      const std::filesystem::path& base_dir,
                      const std::vector<std::string>& vary_specs,
@@ -176,8 +176,9 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
                        std::size_t top = 10);
 
 /// Runs the sweep and writes sweep.csv, skipped.csv and sweep.json into `dir` through an
-/// OutputFolder: the folder is checked before the first run, and an interrupted or failed sweep
-/// leaves no file behind and earlier results untouched.
+/// OutputFolder as one set: the folder is checked before the first run, and an interrupted or
+/// failed sweep, or one in which no combination ran, writes nothing and leaves earlier results
+/// untouched.
 SweepResult run_sweep_into(const std::filesystem::path& dir, const SweepPlan& plan,
                            const RainSeries& rain, const SweepOptions& options = {});
 

@@ -20,6 +20,7 @@
 #include "gutterwatt/design.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/output.hpp"
+#include "gutterwatt/output_folder.hpp"
 #include "gutterwatt/rain_files.hpp"
 #include "gutterwatt/report.hpp"
 #include "gutterwatt/scenario.hpp"
@@ -400,7 +401,8 @@ int main(int argc, char** argv) {
     if (*check_cmd) return check_command(check);
     if (*sweep_cmd) return sweep_command(sweep, g_stop);
     if (*report_cmd) {
-      std::cout << "wrote " << write_report(report_dir).string() << '\n';
+      const fs::path page = write_report(report_dir);
+      std::cout << "wrote " << page.string() << '\n';
       return kExitOk;
     }
     if (*storm_cmd) return storm_command(storm);

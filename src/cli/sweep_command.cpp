@@ -75,18 +75,25 @@ int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop) {
 
   const fs::path dir(args.out);
   const std::size_t total = result.rows.size();
-  if (result.skipped > 0 || result.failed > 0) {
-    spdlog::warn("{} of {} combinations skipped as invalid, {} failed; reasons in {}",
-                 result.skipped, total, result.failed, (dir / "skipped.csv").string());
-    for (const SweepRow& row : result.rows) {
-      if (row.status == SweepStatus::ok) continue;
-      spdlog::warn("first reason: {}", row.reason);
+  const SweepRow* first_failure = nullptr;
+  for (const SweepRow& row : result.rows) {
+    if (row.status != SweepStatus::ok) {
+      first_failure = &row;
       break;
     }
   }
   if (result.ranked.empty()) {
-    spdlog::error("no combination ran; see {}", (dir / "skipped.csv").string());
+    spdlog::error(
+        "no combination ran ({} skipped as invalid, {} failed); nothing written, "
+        "earlier results in {} kept; first reason: {}",
+        result.skipped, result.failed, dir.string(),
+        first_failure != nullptr ? first_failure->reason : "none");
     return result.skipped > 0 ? kExitBadInput : kExitFailure;
+  }
+  if (first_failure != nullptr) {
+    spdlog::warn("{} of {} combinations skipped as invalid, {} failed; reasons in {}",
+                 result.skipped, total, result.failed, (dir / "skipped.csv").string());
+    spdlog::warn("first reason: {}", first_failure->reason);
   }
   if (!args.quiet) {
     print_sweep_table(std::cout, plan, result);

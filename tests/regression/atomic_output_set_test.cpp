@@ -1,0 +1,89 @@
+// A run's files are published as one set (issue 14, item 3): two runs into one folder at the same
+// moment leave one run's timeseries.csv, events.csv and summary.json, never a mix, and a reader
+// holding the folder's lock sees no set change under it.
+
+#include <gtest/gtest.h>
+
+#include <chrono>
+#include <filesystem>
+#include <nlohmann/json.hpp>
+#include <optional>
+#include <sstream>
+#include <string>
+#include <thread>
+
+#include "cli_support.hpp"
+#include "gutterwatt/output_folder.hpp"
+
+namespace fs = std::filesystem;
+using namespace gutterwatt;
+using namespace gutterwatt::cli_support;
+
+namespace {
+
+// Whether the three files of `out` come from one run: the electrical energy and the cycle count
+// of summary.json against the last cum_energy_Wh of timeseries.csv and the cycle rows of
+// events.csv.
+void expect_one_set(const fs::path& out) {
+  const nlohmann::json summary = nlohmann::json::parse(slurp(out / "summary.json"));
+  std::istringstream series(slurp(out / "timeseries.csv"));
+  std::string line, last;
+  while (std::getline(series, line)) last = line;
+  const double cum_energy_Wh =
+      std::stod(last.substr(last.find_last_of(',', last.rfind(',') - 1) + 1));
+  EXPECT_NEAR(cum_energy_Wh, summary["energy_Wh"]["electrical"].get<double>(), 1e-3) << last;
+  std::istringstream events(slurp(out / "events.csv"));
+  long cycles = 0;
+  while (std::getline(events, line)) cycles += line.starts_with("cycle,");
+  EXPECT_EQ(cycles, summary["siphon"]["cycles"].get<long>());
+}
+
+}  // namespace
+
+TEST(AtomicOutputSet, PublishingWaitsForAReaderAndThenShowsTheWholeSet) {
+  const fs::path site = fixture_site("atomic-reader");
+  const fs::path out = site / "out";
+  fs::create_directories(out);
+  std::optional<FolderReadLock> reading(std::in_place, out);
+  Child child({"run", (site / "shed.yaml").string(), "--quiet", "--out", out.string()}, site);
+  ASSERT_TRUE(child.started());
+  // Wait until the run has staged summary.json, its last file, then give it time to publish.
+  const auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(30);
+  bool staged = false;
+  while (!staged && std::chrono::steady_clock::now() < deadline) {
+    for (const auto& entry : fs::directory_iterator(out)) {
+      staged = staged || fs::exists(entry.path() / "summary.json");
+    }
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+  }
+  ASSERT_TRUE(staged) << child.outcome().err;
+  std::this_thread::sleep_for(std::chrono::milliseconds(300));
+  EXPECT_FALSE(child.wait_for(std::chrono::milliseconds(0)));  // still waiting for the lock
+  EXPECT_FALSE(fs::exists(out / "timeseries.csv"));
+  reading.reset();
+  ASSERT_EQ(child.wait_for(std::chrono::seconds(30)), 0) << child.outcome().err;
+  EXPECT_EQ(names_in(out), (std::set<std::string>{"events.csv", "summary.json", "timeseries.csv"}));
+  expect_one_set(out);
+}
+
+TEST(AtomicOutputSet, TwoConcurrentRunsIntoOneFolderLeaveOneRunsFiles) {
+  const fs::path site = fixture_site("atomic-two-runs");
+  const fs::path out = site / "out";
+  for (int round = 0; round < 10; ++round) {
+    const fs::path a = site / ("a" + std::to_string(round));
+    const fs::path b = site / ("b" + std::to_string(round));
+    fs::create_directories(a);
+    fs::create_directories(b);
+    Child small({"run", (site / "shed.yaml").string(), "--quiet", "--set", "roof.area_m2=20",
+                 "--out", out.string()},
+                a);
+    Child large({"run", (site / "shed.yaml").string(), "--quiet", "--set", "roof.area_m2=60",
+                 "--out", out.string()},
+                b);
+    ASSERT_EQ(small.wait_for(std::chrono::seconds(60)), 0) << small.outcome().err;
+    ASSERT_EQ(large.wait_for(std::chrono::seconds(60)), 0) << large.outcome().err;
+    EXPECT_EQ(names_in(out),
+              (std::set<std::string>{"events.csv", "summary.json", "timeseries.csv"}));
+    expect_one_set(out);
+  }
+}
