@@ -1,0 +1,171 @@
+#pragma once
+/// The accounts and observers of a run: the water and energy accounts kept outside the solver's
+/// state, the episodes (siphon cycles, overflows, dribbles), the samples handed to observers.
+/// What a step made of each account follows from the step's start and end state and its mode.
+
+#include <array>
+#include <string_view>
+#include <vector>
+
+#include "gutterwatt/calendar.hpp"
+#include "gutterwatt/chain_system.hpp"
+#include "gutterwatt/release.hpp"
+
+namespace gutterwatt {
+
+/// Cumulative water (m3) and energy (J) accounts since the start of a run.
+struct Accounts {
+  double rain_m3 = 0.0;         ///< on the plan roof area
+  double roof_loss_m3 = 0.0;    ///< initial loss plus the (1 - C) share
+  double roof_runoff_m3 = 0.0;  ///< out of the roof's linear reservoir
+  double first_flush_m3 = 0.0;  ///< diverted to waste
+  double reservoir_overflow_m3 = 0.0;
+  double column_overflow_m3 = 0.0;
+  double release_m3 = 0.0;  ///< out of the reservoir into the drop pipe
+  double dribble_m3 = 0.0;  ///< the part of release_m3 that left while not running
+  double nozzle_m3 = 0.0;
+  double jet_J = 0.0;
+  double shaft_J = 0.0;
+  double electrical_J = 0.0;  ///< delivered by the generator (above cut-in)
+  double accepted_J = 0.0;    ///< taken by the battery at its terminals
+  double stored_J = 0.0;      ///< accepted times the charge efficiency
+  double curtailed_J = 0.0;
+  double served_J = 0.0;  ///< load served
+  double unmet_J = 0.0;   ///< load not served
+};
+
+/// Water and energy held at one instant.
+struct Storage {
+  double roof_m3 = 0.0;
+  double reservoir_m3 = 0.0;
+  double column_m3 = 0.0;
+  double battery_J = 0.0;
+  double water_m3() const { return roof_m3 + reservoir_m3 + column_m3; }
+};
+
+/// The state of the run at a sample time (an output boundary, a month boundary or the end).
+struct Sample {
+  Instant time = 0;
+  Accounts totals;
+  Storage storage;
+  double level_m = 0.0;
+  ReleaseState release = ReleaseState::idle;
+  double head_m = 0.0;     ///< at the nozzle
+  double power_W = 0.0;    ///< electrical, delivered, at this instant
+  double soc = 0.0;        ///< battery state of charge, 0..1
+  bool output = false;     ///< an output-interval boundary (or the end of the run)
+  bool month_end = false;  ///< a local month boundary (or the end of the run)
+};
+
+enum class EpisodeKind { cycle, overflow, dribble, column_overflow };
+
+/// `cycle`, `overflow`, `dribble`, `column_overflow`.
+std::string_view episode_kind_name(EpisodeKind kind);
+
+/// One siphon cycle (or valve opening), overflow episode or dribble episode. Times in seconds
+/// since the epoch (UTC), not rounded; volume of what flowed in the episode (release, overflow
+/// or dribble); peak flow as seen at the solver's steps and switches; electrical energy.
+struct Episode {
+  EpisodeKind kind;
+  double start_s;
+  double end_s;
+  double volume_m3;
+  double peak_flow_m3_per_s;
+  double energy_J;
+};
+
+/// Receives a run's records as they are made, like an odeint observer.
+class Observer {
+ public:
+  virtual ~Observer() = default;
+  /// The state at the start of the run (not an output row).
+  virtual void on_start(const Sample&) {}
+  virtual void on_sample(const Sample&) {}
+  virtual void on_episode(const Episode&) {}
+};
+
+/// Forwards every record to several observers in order.
+class ObserverList : public Observer {
+ public:
+  void add(Observer& observer) { observers_.push_back(&observer); }
+  void on_start(const Sample& s) override;
+  void on_sample(const Sample& s) override;
+  void on_episode(const Episode& e) override;
+
+ private:
+  std::vector<Observer*> observers_;
+};
+
+/// Finished episodes counted by kind.
+struct EpisodeCounts {
+  long cycles = 0;
+  long overflow_events = 0;
+  double overflow_s = 0.0;
+  long dribble_episodes = 0;
+  double dribble_s = 0.0;
+};
+
+/// What the roof stage made of a span in closed form, m3.
+struct RoofFlows {
+  double rain_m3 = 0.0;
+  double loss_m3 = 0.0;
+  double runoff_m3 = 0.0;
+  double diverted_m3 = 0.0;
+};
+
+/// The accounts kept outside the solver's state, the open episodes and the observer they go to.
+/// Within one step the mode is fixed, and each account kept here grows by a constant rate times
+/// the time or by a fixed multiple of the change in a state slot, so it is exact and costs the
+/// solver nothing: rain and roof loss at constant rates, roof runoff as what entered the roof
+/// store less its change, the diverter's take as its change while filling, dribble as release
+/// while the release is not running, column overflow as release less nozzle while brim-full,
+/// electrical energy as the generator efficiency times shaft energy while it runs. Stored energy
+/// is the charge efficiency times the accepted energy.
+class Ledger {
+ public:
+  Ledger(const ChainSystem& system, Observer& observer);
+
+  /// Opens the episodes a run starting at `t` in mode `m` is already in.
+  void start(const ChainState& x, const ChainMode& m, double t);
+  /// Adds what a step from `x0` to `x1` over `dt` in mode `m` made of the accounts kept here.
+  void tally_step(const ChainState& x0, const ChainState& x1, double dt, const ChainMode& m,
+                  const Forcing& f);
+  /// Adds what the roof stage made of a span advanced in closed form.
+  void tally_roof(const RoofFlows& flows);
+  /// A switch at `t` from `before` to `after` (state `x` after it) that moved `spilled_m3` over
+  /// a head column's brim: opens and closes episodes.
+  void switched(const ChainMode& before, const ChainMode& after, const ChainState& x,
+                double spilled_m3, double t);
+  /// Raises the open episodes' peaks to the flows in `r`.
+  void update_peaks(const ChainRates& r);
+  /// Closes every open episode at the end of the run.
+  void close_all(const ChainState& x, double t);
+
+  /// Every account, from the state and the ones kept here.
+  Accounts accounts(const ChainState& x) const;
+  static Storage storage(const ChainState& x);
+  Sample sample(Instant t, const ChainState& x, const ChainMode& m, bool output,
+                bool month_end) const;
+  const EpisodeCounts& counts() const { return counts_; }
+
+ private:
+  struct OpenEpisode {
+    bool open = false;
+    double start_s = 0.0;
+    double start_volume_m3 = 0.0;
+    double start_energy_J = 0.0;
+    double peak = 0.0;
+  };
+
+  double episode_account(EpisodeKind kind, const ChainState& x) const;
+  void open_episode(EpisodeKind kind, const ChainState& x, double t);
+  void close_episode(EpisodeKind kind, const ChainState& x, double t);
+
+  const ChainSystem& system_;
+  Observer& observer_;
+  Accounts tally_;  // the accounts tallied outside the state; the others stay zero
+  std::array<OpenEpisode, 4> episodes_{};
+  EpisodeCounts counts_;
+};
+
+}  // namespace gutterwatt

@@ -1,0 +1,148 @@
+#pragma once
+/// The chain as a system of equations, as odeint keeps a system apart from its stepper: the
+/// continuous state, the discrete modes, and at one instant the rates and the guard functions
+/// that end a mode. Pure: no time, no accounts, no I/O; a state and a mode in, rates out.
+
+#include <array>
+#include <cstddef>
+#include <memory>
+#include <string>
+
+#include "gutterwatt/battery.hpp"
+#include "gutterwatt/plant.hpp"
+#include "gutterwatt/release.hpp"
+#include "gutterwatt/reservoir.hpp"
+#include "gutterwatt/scenario.hpp"
+
+namespace gutterwatt {
+
+/// Continuous state: storages first, then running integrals of the accounts whose rates are
+/// nonlinear in the state. The other accounts follow from these exactly (see Ledger::tally_step).
+enum Slot : std::size_t {
+  kRoof,        ///< water on the roof's linear reservoir, m3
+  kDepression,  ///< initial-loss store filled, m of depth
+  kFlush,       ///< first-flush diverter fill, m3
+  kReservoir,   ///< m3
+  kColumn,      ///< head column, m3
+  kBattery,     ///< J
+  kReservoirOverflow,
+  kRelease,
+  kNozzle,
+  kJet,
+  kShaft,
+  kAccepted,
+  kCurtailed,
+  kServed,
+  kUnmet,
+  kSlots
+};
+
+using ChainState = std::array<double, kSlots>;
+
+/// The initial loss fills while it rains and dries otherwise.
+enum class Depression { filling, full, drying, dry };
+/// A head column fills and drains (partial), spills over its top (full), or, nearly empty under
+/// a trickle, passes what arrives straight to the nozzle holding its puddle (trickle).
+enum class ColumnMode { trickle, partial, full };
+
+/// Discrete state: which branch of each piecewise law is in force.
+struct ChainMode {
+  ReleaseState release = ReleaseState::idle;
+  bool overflowing = false;
+  Depression depression = Depression::dry;
+  bool flush_full = false;
+  ColumnMode column = ColumnMode::trickle;
+  bool generator_on = false;
+  BatteryMode battery = BatteryMode::normal;
+};
+
+/// What drives a segment: constant over it.
+struct Forcing {
+  double rain_m_per_s = 0.0;
+  double load_W = 0.0;
+};
+
+/// Every rate and intermediate value at one instant.
+struct ChainRates {
+  double level_m = 0.0;
+  double full_flow = 0.0;  ///< m3/s the conveyance carries running full at this level
+  double release = 0.0;    ///< m3/s
+  double overflow = 0.0;   ///< m3/s over the reservoir's rim
+  double nozzle = 0.0;     ///< m3/s
+  double column_overflow = 0.0;
+  double head_m = 0.0;
+  PlantPower power;
+  double electrical_W = 0.0;
+  BatteryFlows battery;
+};
+
+/// Guard k fires when its value falls below zero. The numbering is the switch table of
+/// ChainSystem::apply_switch.
+enum GuardId {
+  kGuardRelease0,
+  kGuardRelease1,
+  kGuardOverflow,
+  kGuardDepression,
+  kGuardFlush,
+  kGuardColumn,
+  kGuardTrickle,
+  kGuardGenerator,
+  kGuardBattery,
+  kGuardCount
+};
+
+using Guards = std::array<double, kGuardCount>;
+
+/// Head-column water height below which, with a trickle of inflow, the column passes the inflow
+/// straight to the nozzle: its drain time constant 2 A H / Q is then under a minute, which would
+/// make the solver's steps stability-bound for hours of dribble, while the power at such heads is
+/// far below any generator's cut-in.
+inline constexpr double kTrickleHead_m = 0.05;
+/// Volume below which a head column counts as drained.
+inline constexpr double kColumnDry_m3 = 1e-9;
+
+/// The rates and guards of one scenario's chain. Holds the scenario by reference.
+class ChainSystem {
+ public:
+  explicit ChainSystem(const Scenario& scenario);
+
+  /// Fills `r` and the derivative `d` (every field and slot) for state `x` in mode `m`: the
+  /// solver's hot path, which must not copy ChainRates.
+  void rates(const ChainState& x, const ChainMode& m, const Forcing& f, ChainRates& r,
+             ChainState& d) const;
+  ChainRates rates(const ChainState& x, const ChainMode& m, const Forcing& f) const;
+  /// Every guard's value (1 where a guard is not active in `m`); `r` from rates(x, m, f).
+  void guards(const ChainState& x, const ChainMode& m, const Forcing& f, const ChainRates& r,
+              Guards& g) const;
+  /// Takes the switch of guard `k` (which has just reached zero): changes the mode and, where
+  /// the switch sets a store, the state. Returns the water that left the state at once (m3): the
+  /// excess over a head column's brim as it becomes brim-full, else 0.
+  double apply_switch(int k, ChainState& x, ChainMode& m, const Forcing& f,
+                      const ChainRates& r) const;
+  /// True when for `span_s` under `f` the release passes nothing and cannot start to, nothing
+  /// overflows and the head column is empty or passes a trickle: the chain is then linear.
+  bool at_rest(const ChainState& x, const ChainMode& m, const Forcing& f, double span_s) const;
+
+  /// The state and mode at the start of a run.
+  ChainState initial_state() const;
+  ChainMode initial_mode(const ChainState& x) const;
+  /// Sets the initial loss's mode for a segment of `f`: filling or full while it rains, drying
+  /// or dry otherwise.
+  void start_segment(const ChainState& x, ChainMode& m, const Forcing& f) const;
+  /// "mode: ...; state: ..." for a failure message.
+  std::string describe(const ChainState& x, const ChainMode& m) const;
+
+  const Scenario& scenario() const { return sc_; }
+  const ReservoirGeometry& geometry() const { return geometry_; }
+  const Plant& plant() const { return plant_; }
+  const Release& release() const { return *release_; }
+
+ private:
+  const Scenario& sc_;
+  ReservoirGeometry geometry_;
+  Plant plant_;
+  std::unique_ptr<Release> release_;
+  double trickle_volume_m3_;  // head column: volume at kTrickleHead_m
+};
+
+}  // namespace gutterwatt

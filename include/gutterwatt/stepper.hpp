@@ -1,0 +1,75 @@
+#pragma once
+/// The stepping of a run, as odeint keeps it apart from the system and the observers: each
+/// segment of constant forcing is advanced in closed form while the chain is at rest, and
+/// otherwise by an error-controlled dense-output stepper (or the fixed-step reference) that
+/// locates every guard's zero on the dense output and restarts in the new mode there.
+
+#include <atomic>
+#include <string>
+
+#include "gutterwatt/accounts.hpp"
+#include "gutterwatt/calendar.hpp"
+#include "gutterwatt/chain_system.hpp"
+
+namespace gutterwatt {
+
+/// Numbers about the integration itself.
+struct SolverStats {
+  long steps = 0;
+  long switches = 0;
+  long segments = 0;
+  double coasted_s = 0.0;  ///< dry time at rest skipped in closed form
+  double skipped_s = 0.0;  ///< record gaps cut out under `gaps: skip`
+};
+
+struct RunOptions {
+  /// Checked between rain intervals and between solver steps; when set, simulate throws
+  /// Interrupted.
+  const std::atomic<bool>* stop = nullptr;
+  /// When > 0, a reference integration: classic fourth-order Runge-Kutta at this fixed step (s)
+  /// instead of the error-controlled Dormand-Prince steps, switches located by bisection on
+  /// re-taken steps to 1e-10 s, and no step budget. Slow; for checking the default solver.
+  double fixed_step_s = 0.0;
+};
+
+/// Advances a run's state and mode through segments of constant forcing, handing every step and
+/// switch to the ledger.
+class Stepper {
+ public:
+  Stepper(const ChainSystem& system, Ledger& ledger, const RunOptions& options);
+
+  /// Advances from `t0` to `t1` under `f`.
+  void advance(Instant t0, Instant t1, const Forcing& f);
+
+  ChainState& state() { return x_; }
+  ChainMode& mode() { return mode_; }
+  const ChainState& state() const { return x_; }
+  const ChainMode& mode() const { return mode_; }
+  SolverStats& stats() { return stats_; }
+  /// Throws SimulationError naming the time `t` (s since the epoch), `what`, the mode and the
+  /// state.
+  [[noreturn]] void fail(const std::string& what, double t) const;
+
+ private:
+  /// Applies every switch already due; returns the rates and guards of the settled state.
+  ChainRates settle(const Forcing& f, Guards& g, ChainState& dxdt);
+  void integrate(double t0, double t1, const Forcing& f);
+  void integrate_fixed(double t0, double t1, const Forcing& f);
+  bool coasted_to_end(double left_s, const Forcing& f, double t1);
+  void accept_step(const ChainState& x_end, double dt, const ChainRates& r, int fired,
+                   const Forcing& f, double t_abs);
+  void switch_mode(int k, const Forcing& f, const ChainRates& r);
+  void coast(double dt, const Forcing& f);
+
+  const ChainSystem& system_;
+  Ledger& ledger_;
+  const RunOptions& options_;
+  ChainState x_;
+  ChainMode mode_;
+  double now_s_ = 0.0;         // absolute, seconds since the epoch
+  double last_step_s_ = 10.0;  // solver step carried from one segment into the next
+  SolverStats stats_;
+  ChainState error_scale_{};  // the error checker's absolute scale per slot
+};
+
+}  // namespace gutterwatt

@@ -1,0 +1,201 @@
+#include "gutterwatt/accounts.hpp"
+
+#include <algorithm>
+#include <cstddef>
+
+namespace gutterwatt {
+
+std::string_view episode_kind_name(EpisodeKind kind) {
+  switch (kind) {
+    case EpisodeKind::cycle:
+      return "cycle";
+    case EpisodeKind::overflow:
+      return "overflow";
+    case EpisodeKind::dribble:
+      return "dribble";
+    case EpisodeKind::column_overflow:
+      return "column_overflow";
+  }
+  return "cycle";
+}
+
+void ObserverList::on_start(const Sample& s) {
+  for (Observer* o : observers_) o->on_start(s);
+}
+void ObserverList::on_sample(const Sample& s) {
+  for (Observer* o : observers_) o->on_sample(s);
+}
+void ObserverList::on_episode(const Episode& e) {
+  for (Observer* o : observers_) o->on_episode(e);
+}
+
+Ledger::Ledger(const ChainSystem& system, Observer& observer)
+    : system_(system), observer_(observer) {}
+
+void Ledger::start(const ChainState& x, const ChainMode& m, double t) {
+  if (system_.release().is_running(m.release)) open_episode(EpisodeKind::cycle, x, t);
+  if (m.release == ReleaseState::dribble) open_episode(EpisodeKind::dribble, x, t);
+  if (m.overflowing) open_episode(EpisodeKind::overflow, x, t);
+}
+
+void Ledger::tally_step(const ChainState& x0, const ChainState& x1, double dt, const ChainMode& m,
+                        const Forcing& f) {
+  const Scenario& sc = system_.scenario();
+  const double rain = f.rain_m_per_s * sc.roof.area_m2;
+  tally_.rain_m3 += rain * dt;
+  double effective = 0.0;
+  if (m.depression == Depression::filling) {
+    tally_.roof_loss_m3 += rain * dt;
+  } else if (m.depression == Depression::full) {
+    effective = sc.roof.runoff_coefficient * rain;
+    tally_.roof_loss_m3 += (rain - effective) * dt;
+  }
+  // dS/dt = effective - runoff on the roof (runoff = effective without a lag).
+  const double runoff = effective * dt - (sc.roof.lag_s > 0.0 ? x1[kRoof] - x0[kRoof] : 0.0);
+  tally_.roof_runoff_m3 += runoff;
+  if (sc.first_flush.volume_m3 > 0.0 && !m.flush_full) {
+    tally_.first_flush_m3 += x1[kFlush] - x0[kFlush];
+  }
+  const double released = x1[kRelease] - x0[kRelease];
+  if (!system_.release().is_running(m.release)) tally_.dribble_m3 += released;
+  if (system_.plant().has_column() && m.column == ColumnMode::full) {
+    tally_.column_overflow_m3 += released - (x1[kNozzle] - x0[kNozzle]);
+  }
+  if (m.generator_on) tally_.electrical_J += sc.generator.efficiency * (x1[kShaft] - x0[kShaft]);
+}
+
+void Ledger::tally_roof(const RoofFlows& flows) {
+  tally_.rain_m3 += flows.rain_m3;
+  tally_.roof_loss_m3 += flows.loss_m3;
+  tally_.roof_runoff_m3 += flows.runoff_m3;
+  tally_.first_flush_m3 += flows.diverted_m3;
+}
+
+// The account an episode's volume is measured on.
+double Ledger::episode_account(EpisodeKind kind, const ChainState& x) const {
+  switch (kind) {
+    case EpisodeKind::cycle:
+      return x[kRelease];
+    case EpisodeKind::overflow:
+      return x[kReservoirOverflow];
+    case EpisodeKind::dribble:
+      return tally_.dribble_m3;
+    case EpisodeKind::column_overflow:
+      return tally_.column_overflow_m3;
+  }
+  return x[kRelease];
+}
+
+void Ledger::open_episode(EpisodeKind kind, const ChainState& x, double t) {
+  OpenEpisode& e = episodes_[static_cast<std::size_t>(kind)];
+  e.open = true;
+  e.start_s = t;
+  e.peak = 0.0;
+  e.start_energy_J = tally_.electrical_J;
+  e.start_volume_m3 = episode_account(kind, x);
+}
+
+void Ledger::close_episode(EpisodeKind kind, const ChainState& x, double t) {
+  OpenEpisode& e = episodes_[static_cast<std::size_t>(kind)];
+  if (!e.open) return;
+  e.open = false;
+  const double volume = episode_account(kind, x) - e.start_volume_m3;
+  switch (kind) {
+    case EpisodeKind::cycle:
+      ++counts_.cycles;
+      break;
+    case EpisodeKind::overflow:
+      ++counts_.overflow_events;
+      counts_.overflow_s += t - e.start_s;
+      break;
+    case EpisodeKind::dribble:
+      ++counts_.dribble_episodes;
+      counts_.dribble_s += t - e.start_s;
+      break;
+    case EpisodeKind::column_overflow:
+      break;
+  }
+  observer_.on_episode(
+      Episode{kind, e.start_s, t, volume, e.peak, tally_.electrical_J - e.start_energy_J});
+}
+
+void Ledger::switched(const ChainMode& before, const ChainMode& after, const ChainState& x,
+                      double spilled_m3, double t) {
+  tally_.column_overflow_m3 += spilled_m3;
+  const Release& release = system_.release();
+  const bool ran = release.is_running(before.release);
+  const bool runs = release.is_running(after.release);
+  if (ran && !runs) close_episode(EpisodeKind::cycle, x, t);
+  if (!ran && runs) open_episode(EpisodeKind::cycle, x, t);
+  const bool dribbled = before.release == ReleaseState::dribble;
+  const bool dribbles = after.release == ReleaseState::dribble;
+  if (dribbled && !dribbles) close_episode(EpisodeKind::dribble, x, t);
+  if (!dribbled && dribbles) open_episode(EpisodeKind::dribble, x, t);
+  if (before.overflowing && !after.overflowing) close_episode(EpisodeKind::overflow, x, t);
+  if (!before.overflowing && after.overflowing) open_episode(EpisodeKind::overflow, x, t);
+  const bool brim = before.column == ColumnMode::full;
+  const bool brims = after.column == ColumnMode::full;
+  if (brim && !brims) close_episode(EpisodeKind::column_overflow, x, t);
+  if (!brim && brims) open_episode(EpisodeKind::column_overflow, x, t);
+}
+
+void Ledger::update_peaks(const ChainRates& r) {
+  auto bump = [&](EpisodeKind kind, double q) {
+    OpenEpisode& e = episodes_[static_cast<std::size_t>(kind)];
+    if (e.open) e.peak = std::max(e.peak, q);
+  };
+  bump(EpisodeKind::cycle, r.release);
+  bump(EpisodeKind::dribble, r.release);
+  bump(EpisodeKind::overflow, r.overflow);
+  bump(EpisodeKind::column_overflow, r.column_overflow);
+}
+
+void Ledger::close_all(const ChainState& x, double t) {
+  for (std::size_t k = 0; k < episodes_.size(); ++k) {
+    close_episode(static_cast<EpisodeKind>(k), x, t);
+  }
+}
+
+Storage Ledger::storage(const ChainState& x) {
+  Storage s;
+  s.roof_m3 = x[kRoof];
+  s.reservoir_m3 = x[kReservoir];
+  s.column_m3 = x[kColumn];
+  s.battery_J = x[kBattery];
+  return s;
+}
+
+Accounts Ledger::accounts(const ChainState& x) const {
+  Accounts a = tally_;
+  a.reservoir_overflow_m3 = x[kReservoirOverflow];
+  a.release_m3 = x[kRelease];
+  a.nozzle_m3 = x[kNozzle];
+  a.jet_J = x[kJet];
+  a.shaft_J = x[kShaft];
+  a.accepted_J = x[kAccepted];
+  a.stored_J = system_.scenario().battery.charge_efficiency * x[kAccepted];
+  a.curtailed_J = x[kCurtailed];
+  a.served_J = x[kServed];
+  a.unmet_J = x[kUnmet];
+  return a;
+}
+
+Sample Ledger::sample(Instant t, const ChainState& x, const ChainMode& m, bool output,
+                      bool month_end) const {
+  Sample s;
+  s.time = t;
+  s.totals = accounts(x);
+  s.storage = storage(x);
+  const ChainRates r = system_.rates(x, m, Forcing{});
+  s.level_m = r.level_m;
+  s.release = m.release;
+  s.head_m = r.nozzle > 0.0 ? r.head_m : 0.0;
+  s.power_W = r.electrical_W;
+  const double capacity_J = system_.scenario().battery.capacity_J;
+  s.soc = capacity_J > 0.0 ? x[kBattery] / capacity_J : 0.0;
+  s.output = output;
+  s.month_end = month_end;
+  return s;
+}
+
+}  // namespace gutterwatt

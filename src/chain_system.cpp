@@ -1,0 +1,273 @@
+#include "gutterwatt/chain_system.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <sstream>
+
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+
+ChainSystem::ChainSystem(const Scenario& scenario)
+    : sc_(scenario),
+      geometry_(scenario.reservoir),
+      plant_(plant_config(scenario)),
+      release_(make_release(scenario.release)),
+      trickle_volume_m3_(plant_.column_area_m2() * kTrickleHead_m) {}
+
+ChainRates ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& f) const {
+  ChainRates r;
+  ChainState dxdt;
+  rates(x, m, f, r, dxdt);
+  return r;
+}
+
+void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& f, ChainRates& r,
+                        ChainState& d) const {
+  d.fill(0.0);
+  r.column_overflow = 0.0;
+  const double area = sc_.roof.area_m2;
+  const double rain = f.rain_m_per_s * area;
+
+  // Roof: initial loss first, then the runoff coefficient on the remainder (rational method,
+  // Q = C i A), routed through a linear reservoir dS/dt = I - S/k (Nash 1957 single reservoir).
+  double effective = 0.0;
+  switch (m.depression) {
+    case Depression::filling:
+      d[kDepression] = f.rain_m_per_s;
+      break;
+    case Depression::full:
+      effective = sc_.roof.runoff_coefficient * rain;
+      break;
+    case Depression::drying:
+      d[kDepression] = -sc_.roof.drying_m_per_s;
+      break;
+    case Depression::dry:
+      break;
+  }
+  double runoff = effective;
+  if (sc_.roof.lag_s > 0.0) {
+    runoff = std::max(0.0, x[kRoof]) / sc_.roof.lag_s;
+    d[kRoof] = effective - runoff;
+  }
+
+  // First flush: everything goes to the diverter until it holds volume_L.
+  double inflow = runoff;
+  if (sc_.first_flush.volume_m3 > 0.0 && !m.flush_full) {
+    d[kFlush] = runoff;
+    inflow = 0.0;
+  }
+
+  // Reservoir, release and overflow.
+  r.level_m = geometry_.level_m(x[kReservoir]);
+  const bool needs_full_flow = m.release != ReleaseState::idle && m.release != ReleaseState::closed;
+  r.full_flow = needs_full_flow ? plant_.full_flow_m3_per_s(r.level_m) : 0.0;
+  r.release = release_->outflow_m3_per_s(m.release, r.level_m, r.full_flow);
+  r.overflow = m.overflowing ? geometry_.overflow_m3_per_s(r.level_m) : 0.0;
+  d[kReservoir] = inflow - r.release - r.overflow;
+  d[kReservoirOverflow] = r.overflow;
+  d[kRelease] = r.release;
+
+  // Conveyance and nozzle.
+  if (plant_.has_column() && m.column == ColumnMode::trickle) {
+    // The column's drain time constant at a few millimetres of head is seconds, against hours
+    // for a dribble: integrating it would make the system stiff, so it passes the trickle on.
+    r.nozzle = r.release;
+    r.head_m = plant_.nozzle_head_for_flow_m(r.nozzle);
+  } else if (plant_.has_column()) {
+    const double volume = m.column == ColumnMode::full ? plant_.column_capacity_m3() : x[kColumn];
+    r.nozzle = plant_.column_nozzle_flow_m3_per_s(volume);
+    r.head_m = plant_.column_head_m(volume);
+    if (m.column == ColumnMode::full) {
+      r.column_overflow = std::max(0.0, r.release - r.nozzle);
+    } else {
+      d[kColumn] = r.release - r.nozzle;
+    }
+  } else {
+    r.nozzle = r.release;
+    r.head_m = plant_.nozzle_head_for_flow_m(r.nozzle);
+  }
+  d[kNozzle] = r.nozzle;
+
+  // Turbine, generator, battery.
+  r.power = plant_.power(r.nozzle, r.head_m);
+  r.electrical_W = m.generator_on ? r.power.electrical_W : 0.0;
+  r.battery = battery_flows(m.battery, r.electrical_W, f.load_W, sc_.battery);
+  d[kBattery] = r.battery.charge_W;
+  d[kJet] = r.power.jet_W;
+  d[kShaft] = r.power.shaft_W;
+  d[kAccepted] = r.battery.accepted_W;
+  d[kCurtailed] = r.battery.curtailed_W;
+  d[kServed] = r.battery.served_W;
+  d[kUnmet] = r.battery.unmet_W;
+}
+
+void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing& f,
+                         const ChainRates& r, Guards& g) const {
+  constexpr double kInactive = 1.0;
+  g.fill(kInactive);
+  Guard rel[Release::kMaxGuards];
+  const int n = release_->guards(m.release, r.level_m, rel);
+  for (int k = 0; k < n; ++k) g[kGuardRelease0 + k] = rel[k].value;
+
+  const double rim = geometry_.rim_m();
+  g[kGuardOverflow] =
+      m.overflowing ? r.level_m - rim - 0.5 * kHoldHead_m : rim + kHoldHead_m - r.level_m;
+  if (m.depression == Depression::filling) {
+    g[kGuardDepression] = sc_.roof.initial_loss_m - x[kDepression];
+  } else if (m.depression == Depression::drying) {
+    g[kGuardDepression] = x[kDepression];
+  }
+  if (sc_.first_flush.volume_m3 > 0.0 && !m.flush_full) {
+    g[kGuardFlush] = sc_.first_flush.volume_m3 - x[kFlush];
+  }
+  if (plant_.has_column()) {
+    const double q_lin = plant_.column_nozzle_flow_m3_per_s(trickle_volume_m3_);
+    switch (m.column) {
+      case ColumnMode::trickle:
+        g[kGuardColumn] = q_lin - r.release;
+        break;
+      case ColumnMode::partial:
+        g[kGuardColumn] = plant_.column_capacity_m3() - x[kColumn];
+        // Back to trickle once both the puddle and the inflow are small (half the threshold).
+        g[kGuardTrickle] = std::max((x[kColumn] - 0.5 * trickle_volume_m3_) / trickle_volume_m3_,
+                                    (r.release - 0.5 * q_lin) / q_lin);
+        break;
+      case ColumnMode::full:
+        g[kGuardColumn] = r.release - r.nozzle;
+        break;
+    }
+  }
+  const double cut_in = sc_.generator.cut_in_W;
+  g[kGuardGenerator] =
+      m.generator_on ? r.power.electrical_W - cut_in : cut_in - r.power.electrical_W;
+  const double surplus = r.electrical_W - f.load_W;
+  switch (m.battery) {
+    case BatteryMode::normal:
+      g[kGuardBattery] =
+          r.battery.charge_W >= 0.0 ? sc_.battery.capacity_J - x[kBattery] : x[kBattery];
+      break;
+    case BatteryMode::full:
+      g[kGuardBattery] = surplus;
+      break;
+    case BatteryMode::empty:
+      g[kGuardBattery] = -surplus;
+      break;
+  }
+}
+
+double ChainSystem::apply_switch(int k, ChainState& x, ChainMode& m, const Forcing& f,
+                                 const ChainRates& r) const {
+  const ChainMode before = m;
+  double spilled_m3 = 0.0;
+  switch (k) {
+    case kGuardRelease0:
+    case kGuardRelease1: {
+      Guard rel[Release::kMaxGuards];
+      release_->guards(m.release, r.level_m, rel);
+      m.release = rel[k - kGuardRelease0].next;
+      break;
+    }
+    case kGuardOverflow:
+      m.overflowing = !m.overflowing;
+      break;
+    case kGuardDepression:
+      if (m.depression == Depression::filling) {
+        m.depression = Depression::full;
+        x[kDepression] = sc_.roof.initial_loss_m;
+      } else {
+        m.depression = Depression::dry;
+        x[kDepression] = 0.0;
+      }
+      break;
+    case kGuardFlush:
+      m.flush_full = true;
+      x[kFlush] = sc_.first_flush.volume_m3;
+      break;
+    case kGuardTrickle:
+      m.column = ColumnMode::trickle;
+      break;
+    case kGuardColumn:
+      if (m.column == ColumnMode::trickle) {
+        m.column = ColumnMode::partial;
+      } else if (m.column == ColumnMode::partial) {
+        // Brim-full: the excess over the brim leaves as column overflow, conserving water.
+        const double excess = x[kColumn] - plant_.column_capacity_m3();
+        spilled_m3 = excess;
+        x[kColumn] = plant_.column_capacity_m3();
+        m.column = ColumnMode::full;
+      } else {
+        m.column = ColumnMode::partial;
+      }
+      break;
+    case kGuardGenerator:
+      m.generator_on = !m.generator_on;
+      break;
+    case kGuardBattery:
+      m.battery = battery_mode(x[kBattery], r.electrical_W, f.load_W, sc_.battery);
+      if (m.battery == before.battery) {
+        m.battery = before.battery == BatteryMode::normal
+                        ? (r.battery.charge_W >= 0.0 ? BatteryMode::full : BatteryMode::empty)
+                        : BatteryMode::normal;
+      }
+      break;
+    default:
+      break;
+  }
+  return spilled_m3;
+}
+
+bool ChainSystem::at_rest(const ChainState& x, const ChainMode& m, const Forcing& f,
+                          double span_s) const {
+  if (m.overflowing) return false;
+  if (plant_.has_column() && m.column != ColumnMode::trickle &&
+      (m.column == ColumnMode::full || x[kColumn] > kColumnDry_m3)) {
+    return false;
+  }
+  const double ceiling = release_->rest_ceiling_m(m.release);
+  if (ceiling < 0.0) return false;
+  const double limit = std::min(ceiling, geometry_.rim_m() + kHoldHead_m);
+  // All the water that can reach the reservoir within the span: what is on the roof now and
+  // what the rain can add to it.
+  const double arriving = std::max(0.0, x[kRoof]) +
+                          sc_.roof.runoff_coefficient * f.rain_m_per_s * sc_.roof.area_m2 * span_s;
+  return x[kReservoir] + arriving <= geometry_.volume_m3(limit);
+}
+
+ChainState ChainSystem::initial_state() const {
+  ChainState x{};
+  x[kReservoir] = geometry_.volume_m3(sc_.reservoir.initial_level_m);
+  x[kBattery] = sc_.battery.initial_soc * sc_.battery.capacity_J;
+  return x;
+}
+
+ChainMode ChainSystem::initial_mode(const ChainState& x) const {
+  ChainMode m;
+  m.release = release_->initial_state(sc_.reservoir.initial_level_m);
+  m.overflowing = sc_.reservoir.initial_level_m > geometry_.rim_m() + kHoldHead_m;
+  m.generator_on = sc_.generator.cut_in_W <= 0.0;
+  m.battery = battery_mode(x[kBattery], 0.0, sc_.battery.load_W, sc_.battery);
+  return m;
+}
+
+void ChainSystem::start_segment(const ChainState& x, ChainMode& m, const Forcing& f) const {
+  const double loss = sc_.roof.initial_loss_m;
+  if (f.rain_m_per_s > 0.0) {
+    m.depression = x[kDepression] < loss ? Depression::filling : Depression::full;
+  } else {
+    m.depression = x[kDepression] > 0.0 ? Depression::drying : Depression::dry;
+  }
+}
+
+std::string ChainSystem::describe(const ChainState& x, const ChainMode& m) const {
+  std::ostringstream msg;
+  msg.precision(6);
+  msg << std::fixed << "mode: release " << release_state_name(m.release) << (m.overflowing ? ", overflowing" : "")
+      << (m.column == ColumnMode::full ? ", column brim-full" : "") << "; state: level "
+      << geometry_.level_m(x[kReservoir]) * 1e3 << " mm, reservoir " << x[kReservoir] * 1e3
+      << " L, roof " << x[kRoof] * 1e3 << " L, column " << x[kColumn] * 1e3 << " L, battery "
+      << x[kBattery] / kJoulesPerWh << " Wh";
+  return msg.str();
+}
+
+}  // namespace gutterwatt

@@ -1,0 +1,404 @@
+#include "gutterwatt/stepper.hpp"
+
+#include <algorithm>
+#include <boost/numeric/odeint.hpp>
+#include <cmath>
+#include <limits>
+#include <sstream>
+#include <utility>
+
+#include "gutterwatt/error.hpp"
+
+namespace gutterwatt {
+namespace {
+
+namespace odeint = boost::numeric::odeint;
+
+// Error norm with a scale per slot: err_i / (rtol (scale_i + |x_i| + dt |dxdt_i|)), the odeint
+// default checker's form with per-slot absolute tolerances, except that the roof's error is
+// measured against the water on the roof and in the reservoir together: an error on the roof
+// only moves water that is on its way to the reservoir a little in time, and judged against the
+// roof's own small, fast store alone it set the step for the whole chain.
+struct ScaledErrorChecker {
+  using value_type = double;
+  using algebra_type = odeint::array_algebra;
+  using operations_type = odeint::default_operations;
+
+  double rtol = 1e-6;
+  ChainState scale{};
+
+  template <class S, class D, class E, class T>
+  double error(algebra_type&, const S& x_old, const D& dxdt_old, E& x_err, T dt) const {
+    double worst = 0.0;
+    for (std::size_t i = 0; i < kSlots; ++i) {
+      const double size =
+          i == kRoof ? std::abs(x_old[kRoof]) + std::abs(x_old[kReservoir]) : std::abs(x_old[i]);
+      const double tol = rtol * (scale[i] + size + dt * std::abs(dxdt_old[i]));
+      worst = std::max(worst, std::abs(x_err[i]) / tol);
+    }
+    return worst;
+  }
+};
+
+using BaseStepper =
+    odeint::runge_kutta_dopri5<ChainState, double, ChainState, double, odeint::array_algebra>;
+using Controlled = odeint::controlled_runge_kutta<BaseStepper, ScaledErrorChecker,
+                                                  odeint::default_step_adjuster<double, double>>;
+using Dense = odeint::dense_output_runge_kutta<Controlled>;
+
+// Largest solver step while it rains: a switch that happens and un-happens within one step would
+// be missed, and rain can start and stop an overflow within minutes.
+constexpr double kMaxWetStep_s = 120.0;
+// Without rain the flows decay or drain; the one exception, a release cycle still running, moves
+// on a time scale of a minute, which keeps the error-controlled steps far shorter than this.
+constexpr double kMaxDryStep_s = 1800.0;
+constexpr int kMaxSwitchesAtOnce = 16;
+// Steps one segment may take before the run counts as stalled: a segment is at most an output
+// interval or a month long and needs a few hundred steps even through a storm.
+constexpr long kMaxStepsPerSegment = 100000;
+
+}  // namespace
+
+Stepper::Stepper(const ChainSystem& system, Ledger& ledger, const RunOptions& options)
+    : system_(system),
+      ledger_(ledger),
+      options_(options),
+      x_(system.initial_state()),
+      mode_(system.initial_mode(x_)) {
+  error_scale_.fill(1e-3);  // m3 (1 L) for volumes, m (1 mm) for depth
+  for (std::size_t i = kJet; i <= kUnmet; ++i) error_scale_[i] = 1.0;  // J
+  error_scale_[kBattery] = 1.0;
+}
+
+void Stepper::fail(const std::string& what, double t) const {
+  std::ostringstream msg;
+  msg.precision(6);
+  msg << "simulation failed at "
+      << format_iso8601(static_cast<Instant>(std::floor(t)), system_.scenario().site.utc_offset_s)
+      << " (t = " << std::fixed << t << " s): " << what << "; " << system_.describe(x_, mode_);
+  throw SimulationError(msg.str());
+}
+
+// Applies every switch whose guard is already below zero, so the mode matches the state.
+ChainRates Stepper::settle(const Forcing& f, Guards& g, ChainState& dxdt) {
+  for (int pass = 0; pass < kMaxSwitchesAtOnce; ++pass) {
+    ChainRates r;
+    system_.rates(x_, mode_, f, r, dxdt);
+    system_.guards(x_, mode_, f, r, g);
+    int fired = -1;
+    for (int k = 0; k < kGuardCount; ++k) {
+      if (g[k] < 0.0) {
+        fired = k;
+        break;
+      }
+    }
+    if (fired < 0) return r;
+    switch_mode(fired, f, r);
+  }
+  fail("the modes do not settle (switches chatter)", now_s_);
+}
+
+// A span at rest in closed form: the release passes nothing and cannot start to, so the rest of
+// the chain is linear. The initial loss fills at the rain rate (or dries at the drying rate), the
+// roof's linear reservoir takes C i A once it is full and empties exponentially, the diverter
+// takes the first of its runoff and the reservoir the rest, and the battery serves the load.
+void Stepper::coast(double dt, const Forcing& f) {
+  const Scenario& sc = system_.scenario();
+  ChainState& x = x_;
+  const double area = sc.roof.area_m2;
+  const double rain = f.rain_m_per_s * area;
+  RoofFlows flows;
+  flows.rain_m3 = rain * dt;
+  double wet_s = 0.0;  // time within dt with the initial loss full
+  if (f.rain_m_per_s > 0.0) {
+    const double room = sc.roof.initial_loss_m - x[kDepression];
+    const double filling_s = mode_.depression == Depression::filling
+                                 ? std::min(dt, std::max(0.0, room) / f.rain_m_per_s)
+                                 : 0.0;
+    if (mode_.depression == Depression::filling) {
+      if (filling_s < dt) {
+        x[kDepression] = sc.roof.initial_loss_m;
+        mode_.depression = Depression::full;
+      } else {
+        x[kDepression] += f.rain_m_per_s * dt;
+      }
+    }
+    wet_s = dt - filling_s;
+    flows.loss_m3 = rain * filling_s + (1.0 - sc.roof.runoff_coefficient) * rain * wet_s;
+  } else if (mode_.depression == Depression::drying) {
+    x[kDepression] = std::max(0.0, x[kDepression] - sc.roof.drying_m_per_s * dt);
+    if (x[kDepression] <= 0.0) mode_.depression = Depression::dry;
+  }
+  const double effective = sc.roof.runoff_coefficient * rain;
+  double out = effective * wet_s;  // lag 0: runoff follows the rain
+  if (sc.roof.lag_s > 0.0) {
+    // dS/dt = E - S/k: S decays alone while the loss fills, then relaxes towards E k.
+    const double k = sc.roof.lag_s;
+    const double before = x[kRoof] * std::exp(-(dt - wet_s) / k);
+    const double left = effective * k + (before - effective * k) * std::exp(-wet_s / k);
+    out = x[kRoof] + effective * wet_s - left;
+    x[kRoof] = left;
+  }
+  flows.runoff_m3 = out;
+  double to_reservoir = out;
+  if (sc.first_flush.volume_m3 > 0.0 && !mode_.flush_full) {
+    const double taken = std::min(out, sc.first_flush.volume_m3 - x[kFlush]);
+    x[kFlush] += taken;
+    flows.diverted_m3 = taken;
+    to_reservoir -= taken;
+    if (x[kFlush] >= sc.first_flush.volume_m3) {
+      x[kFlush] = sc.first_flush.volume_m3;
+      mode_.flush_full = true;
+    }
+  }
+  ledger_.tally_roof(flows);
+  x[kReservoir] += to_reservoir;
+  const double demand = f.load_W * dt;
+  const double drawn = std::min(std::max(0.0, x[kBattery]), demand);
+  x[kBattery] -= drawn;
+  x[kServed] += drawn;
+  x[kUnmet] += demand - drawn;
+  mode_.battery = battery_mode(x[kBattery], 0.0, f.load_W, sc.battery);
+  stats_.coasted_s += dt;
+}
+
+void Stepper::integrate(double t0, double t1, const Forcing& f) {
+  // The last stage of a Dormand-Prince step is evaluated at the step's end state (FSAL); keeping
+  // it spares the guard evaluation there a second call of the whole chain. The stage's time tells
+  // it apart: odeint evaluates it last, at the time the step ends.
+  // After a restart odeint first asks for the derivative at the state it starts from, which the
+  // engine has just computed (settling the modes, or as the last stage of the step before):
+  // `known` hands it over instead of a second evaluation.
+  ChainRates last;
+  double last_t = std::numeric_limits<double>::quiet_NaN();
+  const ChainState* last_dxdt = nullptr;  // odeint's buffer holding the last derivative
+  bool known = false;
+  ChainState known_dxdt{};
+  const auto system = [&](const ChainState& x, ChainState& dxdt, double t) {
+    if (known) {
+      known = false;
+      dxdt = known_dxdt;
+    } else {
+      system_.rates(x, mode_, f, last, dxdt);
+    }
+    last_t = t;
+    last_dxdt = &dxdt;
+  };
+  const double span = t1 - t0;
+  double t = 0.0;  // time within the segment, for precision
+  const double max_step = f.rain_m_per_s > 0.0 ? kMaxWetStep_s : kMaxDryStep_s;
+  const ScaledErrorChecker checker{system_.scenario().simulation.rtol, error_scale_};
+  Dense stepper(Controlled(checker, odeint::default_step_adjuster<double, double>(max_step)));
+  bool fresh = true;
+  long segment_steps = 0;
+  Guards g_prev{};
+  while (t < span) {
+    if (coasted_to_end(span - t, f, t1)) return;
+    if (fresh) {
+      last = settle(f, g_prev, known_dxdt);
+      ledger_.update_peaks(last);
+      stepper.initialize(x_, t, std::min(last_step_s_, span - t));
+      known = true;
+      fresh = false;
+    } else if (stepper.current_time() + stepper.current_time_step() > span) {
+      known = last_t == t && last_dxdt != nullptr;
+      if (known) known_dxdt = *last_dxdt;
+      stepper.initialize(x_, t, span - t);
+    }
+    std::pair<double, double> step;
+    try {
+      step = stepper.do_step(system);
+    } catch (const odeint::odeint_error& e) {
+      fail(std::string("the solver made no progress (") + e.what() + ")", t0 + t);
+    }
+    ++stats_.steps;
+    if (++segment_steps > kMaxStepsPerSegment) {
+      fail("the solver made no progress (" + std::to_string(kMaxStepsPerSegment) +
+               " steps in one segment)",
+           t0 + t);
+    }
+    double t_end = std::min(step.second, span);
+    ChainState x_end;
+    ChainRates r;
+    if (t_end == step.second && last_t == step.second) {
+      x_end = stepper.current_state();
+      r = last;
+    } else {
+      stepper.calc_state(t_end, x_end);
+      r = system_.rates(x_end, mode_, f);
+    }
+    Guards g_end;
+    system_.guards(x_end, mode_, f, r, g_end);
+
+    // Earliest guard that crossed zero within the step, located on the dense output.
+    int first = -1;
+    double t_switch = t_end;
+    for (int k = 0; k < kGuardCount; ++k) {
+      if (!(g_prev[k] >= 0.0 && g_end[k] < 0.0)) continue;
+      const auto guard_at = [&](double tau) {
+        ChainState xs;
+        stepper.calc_state(tau, xs);
+        Guards gs;
+        system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), gs);
+        return gs[k];
+      };
+      double lo = step.first;
+      double hi = t_switch;
+      double g_lo = g_prev[k];
+      // At the step's end the guard is known; before an earlier switch it must be looked up.
+      double g_hi = first < 0 ? g_end[k] : guard_at(hi);
+      if (g_hi >= 0.0) continue;  // crosses only after an earlier switch
+      // Illinois regula falsi on the dense output to 1e-10 s (Dowell & Jarratt 1971): a switch is
+      // placed, not rounded to a step, and the accounts it splits move by less than 1e-9 of their
+      // size. Bisection takes over when an interpolated point falls outside the bracket.
+      int side = 0;
+      for (int iter = 0; hi - lo > 1e-10; ++iter) {
+        double mid = iter < 60 ? hi - g_hi * (hi - lo) / (g_hi - g_lo) : 0.5 * (lo + hi);
+        if (!(mid > lo && mid < hi)) mid = 0.5 * (lo + hi);
+        const double g_mid = guard_at(mid);
+        if (g_mid < 0.0) {
+          hi = mid;
+          g_hi = g_mid;
+          if (side == -1) g_lo *= 0.5;
+          side = -1;
+        } else {
+          lo = mid;
+          g_lo = g_mid;
+          if (side == 1) g_hi *= 0.5;
+          side = 1;
+        }
+      }
+      t_switch = hi;
+      first = k;
+    }
+    if (first >= 0) {
+      t_end = t_switch;
+      stepper.calc_state(t_end, x_end);
+      r = system_.rates(x_end, mode_, f);
+    }
+    accept_step(x_end, t_end - t, r, first, f, t0 + t_end);
+    t = t_end;
+    if (first >= 0) {
+      fresh = true;
+    } else {
+      g_prev = g_end;
+      if (step.second > span) break;
+    }
+    last_step_s_ = std::max(1e-3, stepper.current_time_step());
+  }
+  now_s_ = t1;
+}
+
+// Between steps: stops on request, and ends the segment in closed form once it is at rest.
+bool Stepper::coasted_to_end(double left_s, const Forcing& f, double t1) {
+  if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
+  if (!system_.at_rest(x_, mode_, f, left_s)) return false;
+  coast(left_s, f);
+  now_s_ = t1;
+  return true;
+}
+
+// Makes the state at the end of a step (or at the switch `fired` inside it, -1 for none), reached
+// at absolute time `t_abs` after `dt`, the engine's state, and applies the switch.
+void Stepper::accept_step(const ChainState& x_end, double dt, const ChainRates& r, int fired,
+                          const Forcing& f, double t_abs) {
+  for (double v : x_end) {
+    if (!std::isfinite(v)) {
+      x_ = x_end;
+      fail("the state is not finite", t_abs);
+    }
+  }
+  ledger_.tally_step(x_, x_end, dt, mode_, f);
+  x_ = x_end;
+  now_s_ = t_abs;
+  ledger_.update_peaks(r);
+  if (fired >= 0) switch_mode(fired, f, r);
+}
+
+void Stepper::switch_mode(int k, const Forcing& f, const ChainRates& r) {
+  const ChainMode before = mode_;
+  const double spilled_m3 = system_.apply_switch(k, x_, mode_, f, r);
+  ++stats_.switches;
+  ledger_.switched(before, mode_, x_, spilled_m3, now_s_);
+}
+
+// The reference integration: classic Runge-Kutta (Kutta 1901) at a fixed step, every switch
+// placed by bisection, re-taking the step from its start with a shorter step each time.
+void Stepper::integrate_fixed(double t0, double t1, const Forcing& f) {
+  odeint::runge_kutta4<ChainState, double, ChainState, double, odeint::array_algebra> rk4;
+  const auto system = [this, &f](const ChainState& x, ChainState& dxdt, double) {
+    ChainRates r;
+    system_.rates(x, mode_, f, r, dxdt);
+  };
+  const auto step_to = [&](double h) {
+    ChainState out;
+    rk4.do_step(system, x_, 0.0, out, h);
+    return out;
+  };
+  const double span = t1 - t0;
+  double t = 0.0;
+  bool fresh = true;
+  Guards g_prev{};
+  while (t < span) {
+    if (coasted_to_end(span - t, f, t1)) return;
+    if (fresh) {
+      ChainState dxdt;
+      ledger_.update_peaks(settle(f, g_prev, dxdt));
+      fresh = false;
+    }
+    double h = std::min(options_.fixed_step_s, span - t);
+    ChainState x_end = step_to(h);
+    ++stats_.steps;
+    ChainRates r = system_.rates(x_end, mode_, f);
+    Guards g_end;
+    system_.guards(x_end, mode_, f, r, g_end);
+    int first = -1;
+    for (int k = 0; k < kGuardCount; ++k) {
+      if (!(g_prev[k] >= 0.0 && g_end[k] < 0.0)) continue;
+      double lo = 0.0, hi = h;
+      const auto guard_at = [&](double tau) {
+        const ChainState xs = step_to(tau);
+        Guards gs;
+        system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), gs);
+        return gs[k];
+      };
+      if (first >= 0 && guard_at(hi) >= 0.0) continue;  // crosses only after an earlier switch
+      while (hi - lo > 1e-10) {
+        const double mid = 0.5 * (lo + hi);
+        (guard_at(mid) < 0.0 ? hi : lo) = mid;
+      }
+      h = hi;
+      first = k;
+    }
+    if (first >= 0) {
+      x_end = step_to(h);
+      r = system_.rates(x_end, mode_, f);
+    }
+    const double t_next = t + h;
+    accept_step(x_end, h, r, first, f, t0 + t_next);
+    t = t_next;
+    if (first >= 0) {
+      fresh = true;
+    } else {
+      g_prev = g_end;
+    }
+  }
+  now_s_ = t1;
+}
+
+void Stepper::advance(Instant t0, Instant t1, const Forcing& f) {
+  if (t1 <= t0) return;
+  ++stats_.segments;
+  system_.start_segment(x_, mode_, f);
+  now_s_ = static_cast<double>(t0);
+  if (system_.at_rest(x_, mode_, f, static_cast<double>(t1 - t0))) {
+    coast(static_cast<double>(t1 - t0), f);
+  } else if (options_.fixed_step_s > 0.0) {
+    integrate_fixed(static_cast<double>(t0), static_cast<double>(t1), f);
+  } else {
+    integrate(static_cast<double>(t0), static_cast<double>(t1), f);
+  }
+  now_s_ = static_cast<double>(t1);
+}
+
+}  // namespace gutterwatt
