@@ -6,12 +6,15 @@
 #include <cmath>
 #include <cstdio>
 
+#include "detail.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
 namespace {
 
-constexpr std::int64_t kSecondsPerDayInt = 86400;
+using detail::floor_div;
+using detail::kDay_s;
+using detail::trim;
 constexpr int kMaxOffsetHours = 23;
 
 // Reads `count` decimal digits at `pos`; false if any is not a digit or the text is too short.
@@ -49,20 +52,8 @@ std::optional<int> parse_offset_exact(std::string_view text) {
   return text[0] == '-' ? -magnitude : magnitude;
 }
 
-std::int64_t floor_div(std::int64_t a, std::int64_t b) {
-  std::int64_t q = a / b;
-  if ((a % b != 0) && ((a < 0) != (b < 0))) --q;
-  return q;
-}
-
 std::int64_t days_from_civil(const date::year_month_day& ymd) {
   return date::sys_days{ymd}.time_since_epoch().count();
-}
-
-std::string_view trim(std::string_view text) {
-  while (!text.empty() && (text.front() == ' ' || text.front() == '\t')) text.remove_prefix(1);
-  while (!text.empty() && (text.back() == ' ' || text.back() == '\t')) text.remove_suffix(1);
-  return text;
 }
 
 // Appends a zero-padded number of at least `width` digits (a leading `-` for negatives).
@@ -154,8 +145,7 @@ std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offse
     parsed.has_offset = true;
     parsed.offset_s = *offset;
   }
-  const std::int64_t local =
-      days * kSecondsPerDayInt + hour * 3600 + minute * 60 + second + round_up;
+  const std::int64_t local = days * kDay_s + hour * 3600 + minute * 60 + second + round_up;
   parsed.instant = local - parsed.offset_s;
   return parsed;
 }
@@ -239,8 +229,8 @@ std::string format_duration(std::int64_t seconds) {
 
 CivilTime to_civil(Instant instant, int offset_s) {
   const std::int64_t local = instant + offset_s;
-  const std::int64_t days = floor_div(local, kSecondsPerDayInt);
-  const std::int64_t second_of_day = local - days * kSecondsPerDayInt;
+  const std::int64_t days = floor_div(local, kDay_s);
+  const std::int64_t second_of_day = local - days * kDay_s;
   const date::year_month_day ymd{date::sys_days{date::days{static_cast<int>(days)}}};
   return CivilTime{static_cast<int>(ymd.year()),
                    static_cast<int>(static_cast<unsigned>(ymd.month())),
@@ -252,7 +242,7 @@ CivilTime to_civil(Instant instant, int offset_s) {
 
 Instant month_start(int year, int month, int offset_s) {
   const date::year_month ym = date::year{year} / date::January + date::months{month - 1};
-  return days_from_civil(ym / date::day{1}) * kSecondsPerDayInt - offset_s;
+  return days_from_civil(ym / date::day{1}) * kDay_s - offset_s;
 }
 
 std::string month_label(Instant instant, int offset_s) {

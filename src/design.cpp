@@ -7,6 +7,7 @@
 #include <map>
 #include <memory>
 
+#include "detail.hpp"
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/plant.hpp"
 #include "gutterwatt/release.hpp"
@@ -39,11 +40,7 @@ double wet_intensity(const RainPulse& p) {
   return p.depth_m / static_cast<double>(p.end - p.start);
 }
 
-std::string fmt(double v, int decimals) {
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-  return buf;
-}
+using detail::fixed;
 
 // Electrical energy of one release from the set-point with no inflow, simulated by the same
 // engine as a run: the reservoir starts just above the set-point, the release runs to its break
@@ -191,7 +188,7 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
   }
 
   // Warnings in plain words.
-  const auto mmh = [](double i) { return fmt(i * kMmPerHourPerMPerS, 1) + " mm/h"; };
+  const auto mmh = [](double i) { return fixed(i * kMmPerHourPerMPerS, 1) + " mm/h"; };
   if (d.priming_intensity_m_per_s && d.record_median_intensity_m_per_s &&
       *d.priming_intensity_m_per_s > *d.record_median_intensity_m_per_s) {
     d.warnings.push_back(
@@ -213,16 +210,16 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
     const double total = top_m + sc.drop_m;
     const double loss = total - d.design_head_m;
     if (loss > 0.2 * total) {
-      d.warnings.push_back("The drop pipe loses " + fmt(100.0 * loss / total, 0) +
+      d.warnings.push_back("The drop pipe loses " + fixed(100.0 * loss / total, 0) +
                            " % of the head to friction and fittings: it starves the nozzle. A "
                            "wider pipe or a smaller nozzle would deliver more.");
     }
   }
   if (plant.has_column() && d.running_flow_trigger_m3_per_s < d.nozzle_flow_m3_per_s) {
     d.warnings.push_back("The drop pipe carries " +
-                         fmt(d.running_flow_trigger_m3_per_s * kLitresPerMinutePerM3PerS, 1) +
+                         fixed(d.running_flow_trigger_m3_per_s * kLitresPerMinutePerM3PerS, 1) +
                          " L/min, less than the nozzle passes at the column's top (" +
-                         fmt(d.nozzle_flow_m3_per_s * kLitresPerMinutePerM3PerS, 1) +
+                         fixed(d.nozzle_flow_m3_per_s * kLitresPerMinutePerM3PerS, 1) +
                          " L/min): the head column never fills and the nozzle runs starved.");
   }
   if (d.column_fill_s && d.cycle_drain_s && *d.column_fill_s < *d.cycle_drain_s) {
@@ -232,8 +229,8 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
         "or a larger nozzle, would keep that water.");
   }
   if (sc.generator.cut_in_W > d.electrical_power_W) {
-    d.warnings.push_back("The generator's cut-in power (" + fmt(sc.generator.cut_in_W, 2) +
-                         " W) is above the design power (" + fmt(d.electrical_power_W, 2) +
+    d.warnings.push_back("The generator's cut-in power (" + fixed(sc.generator.cut_in_W, 2) +
+                         " W) is above the design power (" + fixed(d.electrical_power_W, 2) +
                          " W): it will deliver little or nothing.");
   }
   return d;
@@ -247,32 +244,32 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
                   unit.c_str());
     out << buf;
   };
-  const auto lpm = [](double q) { return fmt(q * kLitresPerMinutePerM3PerS, 2); };
-  const auto mmh = [](double i) { return fmt(i * kMmPerHourPerMPerS, 2); };
+  const auto lpm = [](double q) { return fixed(q * kLitresPerMinutePerM3PerS, 2); };
+  const auto mmh = [](double i) { return fixed(i * kMmPerHourPerMPerS, 2); };
   out << "Design figures for " << sc.site.name << " (" << sc.file.filename().string() << ")\n";
-  if (d.storage_m3) line("storage between the set-points", fmt(*d.storage_m3 * 1e3, 2), "L");
+  if (d.storage_m3) line("storage between the set-points", fixed(*d.storage_m3 * 1e3, 2), "L");
   if (d.priming_level_m)
-    line("priming level (lip + head on the standpipe)", fmt(*d.priming_level_m * 1e3, 2), "mm");
+    line("priming level (lip + head on the standpipe)", fixed(*d.priming_level_m * 1e3, 2), "mm");
   if (d.priming_intensity_m_per_s) {
     line("priming flow as steady rain on this roof", mmh(*d.priming_intensity_m_per_s), "mm/h");
   }
   if (d.priming_exceedance) {
-    line("  wet record time at or above it", fmt(*d.priming_exceedance * 100.0, 1), "%");
+    line("  wet record time at or above it", fixed(*d.priming_exceedance * 100.0, 1), "%");
   }
   line("running flow at the set-point", lpm(d.running_flow_trigger_m3_per_s), "L/min");
   line("running flow at the break level", lpm(d.running_flow_break_m3_per_s), "L/min");
-  if (d.cycle_drain_s) line("running time per cycle (no inflow)", fmt(*d.cycle_drain_s, 1), "s");
-  if (d.column_fill_s) line("head column brim-full after", fmt(*d.column_fill_s, 1), "s");
+  if (d.cycle_drain_s) line("running time per cycle (no inflow)", fixed(*d.cycle_drain_s, 1), "s");
+  if (d.column_fill_s) line("head column brim-full after", fixed(*d.column_fill_s, 1), "s");
   line(sc.head_column ? "design head (head column brim-full)" : "design head at the nozzle",
-       fmt(d.design_head_m, 3), "m");
+       fixed(d.design_head_m, 3), "m");
   line("nozzle flow at design head", lpm(d.nozzle_flow_m3_per_s), "L/min");
-  line("jet velocity", fmt(d.jet_velocity_m_per_s, 2), "m/s");
-  line("jet power", fmt(d.jet_power_W, 2), "W");
-  line("electrical power at design head", fmt(d.electrical_power_W, 2), "W");
+  line("jet velocity", fixed(d.jet_velocity_m_per_s, 2), "m/s");
+  line("jet power", fixed(d.jet_power_W, 2), "W");
+  line("electrical power at design head", fixed(d.electrical_power_W, 2), "W");
   line("rain that overflows the rim while the release runs", mmh(d.overflow_intensity_m_per_s),
        "mm/h");
   if (d.energy_per_cycle_J)
-    line("energy per cycle", fmt(*d.energy_per_cycle_J / kJoulesPerWh, 4), "Wh");
+    line("energy per cycle", fixed(*d.energy_per_cycle_J / kJoulesPerWh, 4), "Wh");
   if (d.record_median_intensity_m_per_s) {
     line("record: median wet intensity", mmh(*d.record_median_intensity_m_per_s), "mm/h");
   }

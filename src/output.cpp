@@ -8,6 +8,7 @@
 #include <nlohmann/json.hpp>
 #include <sstream>
 
+#include "detail.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/units.hpp"
 
@@ -20,15 +21,7 @@ constexpr double kMmPerM = 1e3;
 // Fixed-point text with trailing zeros trimmed, so CSV cells stay short and exact enough.
 std::string num(double v, int decimals) {
   if (!std::isfinite(v)) return "nan";
-  if (std::abs(v) < 0.5 * std::pow(10.0, -decimals)) return "0";
-  char buf[64];
-  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-  std::string s(buf);
-  if (s.find('.') != std::string::npos) {
-    while (!s.empty() && s.back() == '0') s.pop_back();
-    if (!s.empty() && s.back() == '.') s.pop_back();
-  }
-  return s;
+  return detail::fixed_trimmed(v, decimals);
 }
 
 double round_to(double v, int decimals) {

@@ -14,6 +14,7 @@
 #include <unordered_map>
 #include <utility>
 
+#include "detail.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/storm.hpp"
 #include "gutterwatt/units.hpp"
@@ -82,11 +83,7 @@ class LineReader {
 
 bool is_blank(char c) { return c == ' ' || c == '\t'; }
 
-std::string_view trim_blanks(std::string_view text) {
-  while (!text.empty() && is_blank(text.front())) text.remove_prefix(1);
-  while (!text.empty() && is_blank(text.back())) text.remove_suffix(1);
-  return text;
-}
+using detail::trim;
 
 // Takes the next comma-separated field off the front of `rest`. The field comes back without the
 // blanks around it and without enclosing double quotes (a doubled quote inside stays doubled).
@@ -117,7 +114,7 @@ std::string_view next_field(std::string_view& rest, bool& more) {
   }
   const std::size_t comma = rest.find(',', start);
   more = comma != std::string_view::npos;
-  const std::string_view field = trim_blanks(rest.substr(start, more ? comma - start : rest.npos));
+  const std::string_view field = trim(rest.substr(start, more ? comma - start : rest.npos));
   rest = more ? rest.substr(comma + 1) : std::string_view{};
   return field;
 }
@@ -149,7 +146,7 @@ std::string format_number(double value) {
 }
 
 bool is_comment_or_blank(std::string_view line) {
-  const std::string_view trimmed = trim_blanks(line);
+  const std::string_view trimmed = trim(line);
   return trimmed.empty() || trimmed.front() == '#';
 }
 
@@ -582,10 +579,8 @@ void extend_covered(std::vector<TimeSpan>& covered, Instant start, Instant end) 
   }
 }
 
-constexpr Instant kDay_s = 86400;
-
-// Floor division for instants before 1970 as well.
-Instant floor_div(Instant a, Instant b) { return a / b - ((a % b != 0) && ((a < 0) != (b < 0))); }
+using detail::floor_div;
+using detail::kDay_s;
 
 // One step of SplitMix64, used to turn (seed, day) into a generator seed: Steele, Lea & Flood
 // (2014), Fast splittable pseudorandom number generators, OOPSLA '14 (constants from memory).

@@ -15,6 +15,7 @@
 #include <sstream>
 #include <utility>
 
+#include "detail.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/units.hpp"
 
@@ -35,17 +36,7 @@ std::string show(double x) {
   return std::string(buf, result.ptr);
 }
 
-/// A finite decimal number, or nullopt.
-std::optional<double> to_number(std::string_view text) {
-  if (text.size() > 1 && text.front() == '+' && text[1] != '-') text.remove_prefix(1);
-  double x = 0.0;
-  const char* end = text.data() + text.size();
-  const auto result = std::from_chars(text.data(), end, x);
-  if (text.empty() || result.ec != std::errc() || result.ptr != end || !std::isfinite(x)) {
-    return std::nullopt;
-  }
-  return x;
-}
+using detail::to_number;
 
 /// The interval a number must fall in; each end may be open, closed or absent.
 struct Limits {

@@ -15,6 +15,7 @@
 #include <stdexcept>
 #include <thread>
 
+#include "detail.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/output_folder.hpp"
 #include "gutterwatt/units.hpp"
@@ -64,23 +65,7 @@ const MetricColumn* find_metric(std::string_view name) {
   return nullptr;
 }
 
-std::string trim(std::string_view s) {
-  const auto space = [](char c) { return c == ' ' || c == '\t'; };
-  while (!s.empty() && space(s.front())) s.remove_prefix(1);
-  while (!s.empty() && space(s.back())) s.remove_suffix(1);
-  return std::string(s);
-}
-
-/// A whole-text finite number (a leading `+` allowed), or nothing.
-std::optional<double> to_number(std::string_view text) {
-  if (!text.empty() && text.front() == '+') text.remove_prefix(1);
-  double v = 0.0;
-  const auto [end, ec] = std::from_chars(text.data(), text.data() + text.size(), v);
-  if (text.empty() || ec != std::errc() || end != text.data() + text.size() || !std::isfinite(v)) {
-    return std::nullopt;
-  }
-  return v;
-}
+using detail::to_number;
 
 /// Decimals a number's text asks for: `0.25` 2, `5` 0, `1e-3` 3, `2.5e1` 0.
 int decimals_of(std::string_view text) {
@@ -96,25 +81,12 @@ int decimals_of(std::string_view text) {
   return std::clamp(decimals, 0, kMaxRangeDecimals);
 }
 
-/// Fixed-point text with `decimals` places, trailing zeros and a bare `-0` removed.
-std::string fixed_text(double v, int decimals) {
-  std::vector<char> buf(static_cast<std::size_t>(decimals) + 400);
-  std::snprintf(buf.data(), buf.size(), "%.*f", decimals, v);
-  std::string s(buf.data());
-  if (s.find('.') != std::string::npos) {
-    while (s.back() == '0') s.pop_back();
-    if (s.back() == '.') s.pop_back();
-  }
-  if (s == "-0") s = "0";
-  return s;
-}
-
 std::vector<std::string> range_values(const std::string& key, const std::string& body) {
   std::vector<std::string> parts;
   std::size_t begin = 0;
   while (true) {
     const std::size_t colon = body.find(':', begin);
-    parts.push_back(trim(std::string_view(body).substr(begin, colon - begin)));
+    parts.push_back(std::string(detail::trim(std::string_view(body).substr(begin, colon - begin))));
     if (colon == std::string::npos) break;
     begin = colon + 1;
   }
@@ -141,7 +113,7 @@ std::vector<std::string> range_values(const std::string& key, const std::string&
   const double count = std::floor((*to - *from + tolerance) / *step) + 1.0;
   if (count > static_cast<double>(kMaxSweepCombinations)) {
     throw InputError(kVaryLabel, 0, key,
-                     fixed_text(count, 0) + " values; a sweep is limited to " +
+                     detail::fixed_trimmed(count, 0) + " values; a sweep is limited to " +
                          std::to_string(kMaxSweepCombinations) + " combinations");
   }
   const int decimals =
@@ -150,7 +122,7 @@ std::vector<std::string> range_values(const std::string& key, const std::string&
   for (std::size_t i = 0;; ++i) {
     const double v = *from + static_cast<double>(i) * *step;
     if (v > *to + tolerance) break;
-    values.push_back(fixed_text(v, decimals));
+    values.push_back(detail::fixed_trimmed(v, decimals));
   }
   return values;
 }
@@ -160,7 +132,8 @@ std::vector<std::string> list_values(const std::string& key, const std::string& 
   std::size_t begin = 0;
   while (true) {
     const std::size_t comma = body.find(',', begin);
-    std::string value = trim(std::string_view(body).substr(begin, comma - begin));
+    std::string value =
+        std::string(detail::trim(std::string_view(body).substr(begin, comma - begin)));
     if (value.empty()) {
       throw InputError(kVaryLabel, 0, key, "empty value in the list \"" + body + "\"");
     }
@@ -175,7 +148,9 @@ std::vector<std::string> list_values(const std::string& key, const std::string& 
 }
 
 /// `key` of a `key=value` override.
-std::string override_key(const std::string& text) { return trim(text.substr(0, text.find('='))); }
+std::string override_key(const std::string& text) {
+  return std::string(detail::trim(text.substr(0, text.find('='))));
+}
 
 /// RFC 4180 cell: quoted when it holds a comma, a quote or a line break.
 std::string csv_cell(const std::string& s) {
@@ -239,12 +214,13 @@ std::string clock_text(double seconds) {
 SweepAxis parse_vary(const std::string& spec) {
   const std::size_t eq = spec.find('=');
   SweepAxis axis;
-  if (eq != std::string::npos) axis.key = trim(std::string_view(spec).substr(0, eq));
+  if (eq != std::string::npos)
+    axis.key = std::string(detail::trim(std::string_view(spec).substr(0, eq)));
   if (axis.key.empty()) {
     throw InputError(kVaryLabel, 0, "",
                      "expected KEY=FROM:TO:STEP or KEY=v1,v2,... (got \"" + spec + "\")");
   }
-  const std::string body = trim(std::string_view(spec).substr(eq + 1));
+  const std::string body = std::string(detail::trim(std::string_view(spec).substr(eq + 1)));
   if (body.empty()) throw InputError(kVaryLabel, 0, axis.key, "no values after \"=\"");
   const bool is_range = body.find(',') == std::string::npos && body.find(':') != std::string::npos;
   axis.values = is_range ? range_values(axis.key, body) : list_values(axis.key, body);
@@ -256,7 +232,7 @@ std::vector<std::vector<std::string>> expand_combinations(const std::vector<Swee
   for (const SweepAxis& axis : axes) count *= static_cast<double>(axis.values.size());
   if (count > static_cast<double>(kMaxSweepCombinations)) {
     throw InputError(kVaryLabel, 0, "",
-                     fixed_text(count, 0) + " combinations; a sweep is limited to " +
+                     detail::fixed_trimmed(count, 0) + " combinations; a sweep is limited to " +
                          std::to_string(kMaxSweepCombinations));
   }
   std::vector<std::vector<std::string>> out;
@@ -554,7 +530,7 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
     std::vector<std::string> line{std::to_string(r + 1)};
     line.insert(line.end(), row.values.begin(), row.values.end());
     for (const MetricColumn* m : shown) {
-      line.push_back(fixed_text(row.metrics.*(m->member), m->table_decimals));
+      line.push_back(detail::fixed_trimmed(row.metrics.*(m->member), m->table_decimals));
     }
     cells.push_back(std::move(line));
   }

@@ -1,13 +1,13 @@
 #include "gutterwatt/synth.hpp"
 
 #include <algorithm>
-#include <charconv>
 #include <cmath>
 #include <limits>
 #include <random>
 #include <string_view>
 #include <vector>
 
+#include "detail.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/storm.hpp"
 #include "gutterwatt/units.hpp"
@@ -210,19 +210,14 @@ void write_synth_csv(std::ostream& out, const PrpParameters& parameters, const S
 
 namespace {
 
-std::string_view trim(std::string_view text) {
-  while (!text.empty() && (text.front() == ' ' || text.front() == '\t')) text.remove_prefix(1);
-  while (!text.empty() && (text.back() == ' ' || text.back() == '\t' || text.back() == '\r')) {
-    text.remove_suffix(1);
-  }
-  return text;
-}
+// Blanks and a carriage return (a CRLF file) around a field.
+constexpr std::string_view kBlanks = " \t\r";
 
 std::vector<std::string_view> split(std::string_view line) {
   std::vector<std::string_view> fields;
   for (;;) {
     const std::size_t comma = line.find(',');
-    fields.push_back(trim(line.substr(0, comma)));
+    fields.push_back(detail::trim(line.substr(0, comma), kBlanks));
     if (comma == std::string_view::npos) return fields;
     line.remove_prefix(comma + 1);
   }
@@ -251,7 +246,7 @@ PrpParameters read_prp_parameters(std::istream& in, const std::string& file_labe
     ++line_number;
     std::string_view text = line;
     if (line_number == 1 && text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
-    text = trim(text);
+    text = detail::trim(text, kBlanks);
     if (text.empty() || text.front() == '#') continue;
     const std::vector<std::string_view> fields = split(text);
     if (columns.empty()) {
@@ -272,12 +267,12 @@ PrpParameters read_prp_parameters(std::istream& in, const std::string& file_labe
     std::array<double, 4> values{};
     for (std::size_t c = 0; c < fields.size(); ++c) {
       const std::string_view f = fields[c];
-      const auto result = std::from_chars(f.data(), f.data() + f.size(), values[c]);
-      if (f.empty() || result.ec != std::errc() || result.ptr != f.data() + f.size() ||
-          !std::isfinite(values[c])) {
+      const std::optional<double> value = detail::to_number(f);
+      if (!value) {
         throw InputError(file_label, line_number, columns[c],
                          "not a number (got \"" + std::string(f) + "\")");
       }
+      values[c] = *value;
     }
     const double month = values[0];
     if (month != std::floor(month) || month < 1 || month > 12) {

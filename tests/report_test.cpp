@@ -276,52 +276,6 @@ TEST(Report, SeasonOfHourlyRowsIsThinnedAndStaysSmall) {
   EXPECT_EQ(count(page, "<svg "), 6u);
 }
 
-TEST(ThinMinMax, KeepsTheLargestAndSmallestSample) {
-  std::vector<double> values(10000);
-  for (std::size_t i = 0; i < values.size(); ++i) values[i] = std::sin(0.01 * i);
-  values[4321] = 99.0;
-  values[777] = -50.0;
-  const std::vector<std::size_t> kept = thin_min_max(values, 100);
-  EXPECT_LE(kept.size(), 202u);
-  EXPECT_TRUE(std::is_sorted(kept.begin(), kept.end()));
-  EXPECT_EQ(std::adjacent_find(kept.begin(), kept.end()), kept.end()) << "no repeats";
-  EXPECT_NE(std::find(kept.begin(), kept.end(), 4321u), kept.end());
-  EXPECT_NE(std::find(kept.begin(), kept.end(), 777u), kept.end());
-  EXPECT_EQ(kept.front(), 0u);
-  EXPECT_EQ(kept.back(), 9999u);
-}
-
-TEST(ThinMinMax, KeepsEveryBucketExtreme) {
-  // A sawtooth of period 10 over 100 buckets of 10: each bucket's 0 and 9 survive.
-  std::vector<double> values(1000);
-  for (std::size_t i = 0; i < values.size(); ++i) values[i] = static_cast<double>(i % 10);
-  const std::vector<std::size_t> kept = thin_min_max(values, 100);
-  ASSERT_EQ(kept.size(), 200u);
-  for (std::size_t b = 0; b < 100; ++b) {
-    EXPECT_EQ(kept[2 * b], 10 * b);
-    EXPECT_EQ(kept[2 * b + 1], 10 * b + 9);
-  }
-}
-
-TEST(ThinMinMax, PassesShortSeriesThrough) {
-  const std::vector<double> values{3.0, 1.0, 4.0, 1.0, 5.0};
-  EXPECT_EQ(thin_min_max(values, 10), (std::vector<std::size_t>{0, 1, 2, 3, 4}));
-  EXPECT_EQ(thin_min_max(values, 0), (std::vector<std::size_t>{0, 1, 2, 3, 4}));
-}
-
-TEST(ThinMinMax, NeverKeepsMissingSamples) {
-  std::vector<double> values(400, 1.0);
-  values[0] = std::nan("");
-  values[5] = std::nan("");
-  values[399] = std::nan("");
-  values[200] = 8.0;
-  const std::vector<std::size_t> kept = thin_min_max(values, 10);
-  for (const std::size_t i : kept) EXPECT_FALSE(std::isnan(values[i])) << i;
-  EXPECT_EQ(kept.front(), 1u);
-  EXPECT_EQ(kept.back(), 398u);
-  EXPECT_NE(std::find(kept.begin(), kept.end(), 200u), kept.end());
-}
-
 TEST(Report, SweepOverOneKeyDrawsEnergyAndOverflowAgainstIt) {
   ScratchDir scratch;
   const fs::path dir = scratch.path() / "one";

@@ -2,10 +2,8 @@
 /// The report: one self-contained HTML page (inline SVG charts, inline CSS, no scripts, nothing
 /// loaded from the network) drawn from what a run or a sweep wrote into its output folder.
 
-#include <cstddef>
 #include <filesystem>
 #include <string>
-#include <vector>
 
 namespace gutterwatt {
 
@@ -24,12 +22,5 @@ std::string render_report(const std::filesystem::path& dir);
 ///
 ///   auto page = gutterwatt::write_report("out/demo");  // out/demo/report.html
 std::filesystem::path write_report(const std::filesystem::path& dir);
-
-/// Min/max-per-bucket thinning for display: splits `values` into `buckets` runs of consecutive
-/// samples and keeps, from each, the index of its smallest and of its largest value (once when
-/// they coincide), plus the first and last sample overall. Returns increasing indices. NaN samples
-/// are never kept. With `values.size() <= 2 * buckets` (or `buckets == 0`) every index of a
-/// non-NaN sample is returned, so short series pass through unchanged. Peaks and troughs survive.
-std::vector<std::size_t> thin_min_max(const std::vector<double>& values, std::size_t buckets);
 
 }  // namespace gutterwatt

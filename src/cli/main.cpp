@@ -16,6 +16,7 @@
 #include <string_view>
 #include <vector>
 
+#include "../detail.hpp"
 #include "gutterwatt/calendar.hpp"
 #include "gutterwatt/design.hpp"
 #include "gutterwatt/error.hpp"
@@ -35,6 +36,11 @@ using namespace gutterwatt;
 
 namespace {
 
+using detail::kExitBadInput;
+using detail::kExitFailure;
+using detail::kExitInterrupted;
+using detail::kExitOk;
+
 std::atomic<bool> g_stop{false};
 
 // The first SIGINT or SIGTERM asks the run to stop at its next step; a second one ends the
@@ -45,11 +51,6 @@ extern "C" void on_signal(int sig) {
     std::raise(sig);
   }
 }
-
-constexpr int kExitOk = 0;
-constexpr int kExitFailure = 1;
-constexpr int kExitBadInput = 2;
-constexpr int kExitInterrupted = 130;
 
 // A UTF-8 sequence starting at text[i]: its length, or 0 when the bytes are not one.
 std::size_t utf8_length(std::string_view text, std::size_t i) {

@@ -7,6 +7,7 @@
 #include <filesystem>
 #include <iostream>
 
+#include "../detail.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/rain_files.hpp"
 #include "gutterwatt/sweep.hpp"
@@ -14,11 +15,12 @@
 namespace gutterwatt {
 namespace {
 
+using detail::kExitBadInput;
+using detail::kExitFailure;
+using detail::kExitOk;
+
 namespace fs = std::filesystem;
 
-constexpr int kExitOk = 0;
-constexpr int kExitFailure = 1;
-constexpr int kExitBadInput = 2;
 // Redraws of the progress bar at most this often.
 constexpr double kRedrawInterval_s = 0.2;
 

@@ -1,0 +1,82 @@
+#pragma once
+// Small helpers the library and the command line share, written once: whitespace trimming,
+// floor division, whole-text number parsing, fixed-point text, whole seconds of the calendar and
+// the exit statuses. Internal (not installed, not public API); tests in tests/detail_test.cpp.
+
+#include <charconv>
+#include <cmath>
+#include <cstdint>
+#include <cstdio>
+#include <limits>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <system_error>
+
+namespace gutterwatt::detail {
+
+/// Whole seconds, for calendar arithmetic on instants.
+inline constexpr std::int64_t kMinute_s = 60;
+inline constexpr std::int64_t kHour_s = 3600;
+inline constexpr std::int64_t kDay_s = 86400;
+
+/// A quiet NaN, for a value that is missing.
+inline constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+
+/// Exit statuses of the command line: success, a simulation failure, bad input, interrupted
+/// (128 + SIGINT, as shells report it).
+inline constexpr int kExitOk = 0;
+inline constexpr int kExitFailure = 1;
+inline constexpr int kExitBadInput = 2;
+inline constexpr int kExitInterrupted = 130;
+
+/// `text` without the characters of `blanks` at either end (spaces and tabs by default).
+inline std::string_view trim(std::string_view text, std::string_view blanks = " \t") {
+  const std::size_t first = text.find_first_not_of(blanks);
+  if (first == std::string_view::npos) return {};
+  return text.substr(first, text.find_last_not_of(blanks) - first + 1);
+}
+
+/// a / b rounded toward negative infinity (instants before 1970 fall on the right day). b != 0.
+inline constexpr std::int64_t floor_div(std::int64_t a, std::int64_t b) {
+  return a / b - ((a % b != 0) && ((a < 0) != (b < 0)) ? 1 : 0);
+}
+
+/// The whole of `text` as a number (decimal or `e` notation, a leading `+` allowed, `nan` and
+/// `inf` too), or nullopt when any of it is not part of the number.
+inline std::optional<double> parse_double(std::string_view text) {
+  if (text.size() > 1 && text.front() == '+' && text[1] != '-') text.remove_prefix(1);
+  double value = 0.0;
+  const char* end = text.data() + text.size();
+  const auto [ptr, ec] = std::from_chars(text.data(), end, value);
+  if (text.empty() || ec != std::errc() || ptr != end) return std::nullopt;
+  return value;
+}
+
+/// As parse_double, for finite numbers only.
+inline std::optional<double> to_number(std::string_view text) {
+  const std::optional<double> value = parse_double(text);
+  if (!value || !std::isfinite(*value)) return std::nullopt;
+  return value;
+}
+
+/// `v` with `decimals` places (printf `%.*f`), never a negative zero (`-0.00` prints `0.00`).
+inline std::string fixed(double v, int decimals) {
+  char buf[400];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  std::string out = buf;
+  if (out.find_first_not_of("-0.") == std::string::npos && out[0] == '-') out.erase(0, 1);
+  return out;
+}
+
+/// As fixed, without trailing zeros after the point (and without a bare point).
+inline std::string fixed_trimmed(double v, int decimals) {
+  std::string out = fixed(v, decimals);
+  if (out.find('.') != std::string::npos) {
+    while (out.back() == '0') out.pop_back();
+    if (out.back() == '.') out.pop_back();
+  }
+  return out == "-0" ? "0" : out;
+}
+
+}  // namespace gutterwatt::detail

@@ -1,0 +1,421 @@
+// The report's readers (see report_files.hpp).
+
+#include "report_files.hpp"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <fstream>
+#include <limits>
+#include <nlohmann/json.hpp>
+#include <sstream>
+#include <system_error>
+#include <utility>
+
+#include "detail.hpp"
+#include "gutterwatt/calendar.hpp"
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/sweep.hpp"
+
+namespace gutterwatt::detail {
+
+namespace fs = std::filesystem;
+using Json = nlohmann::json;
+
+std::string read_text(const fs::path& path) {
+  std::error_code ec;
+  if (!fs::exists(path, ec)) throw InputError(path.string(), 0, "", "file not found");
+  if (fs::is_directory(path, ec)) throw InputError(path.string(), 0, "", "is a directory");
+  std::ifstream in(path, std::ios::binary);
+  if (!in) throw InputError(path.string(), 0, "", "cannot read file");
+  std::ostringstream text;
+  text << in.rdbuf();
+  if (in.bad()) throw InputError(path.string(), 0, "", "cannot read file");
+  return text.str();
+}
+
+int Csv::find(std::string_view name) const {
+  for (std::size_t i = 0; i < header.size(); ++i) {
+    if (header[i] == name) return static_cast<int>(i);
+  }
+  return -1;
+}
+
+std::size_t Csv::require(std::string_view name) const {
+  const int i = find(name);
+  if (i < 0) throw InputError(file, 1, std::string(name), "missing column");
+  return static_cast<std::size_t>(i);
+}
+
+// RFC 4180 style: comma separated, fields may be quoted with "" for a quote inside. A UTF-8
+// byte-order mark, CRLF line ends and blank lines are accepted.
+Csv parse_csv(std::string_view text, const std::string& file) {
+  Csv csv;
+  csv.file = file;
+  if (text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
+  std::size_t pos = 0;
+  int line = 1;
+  while (pos < text.size()) {
+    const int row_line = line;
+    std::vector<std::string> fields;
+    std::string field;
+    bool quoted = false;
+    bool was_quoted = false;
+    for (; pos < text.size(); ++pos) {
+      const char c = text[pos];
+      if (quoted) {
+        if (c == '"' && pos + 1 < text.size() && text[pos + 1] == '"') {
+          field += '"';
+          ++pos;
+        } else if (c == '"') {
+          quoted = false;
+        } else {
+          if (c == '\n') ++line;
+          field += c;
+        }
+      } else if (c == '"' && trim(field, " \t\r").empty()) {
+        quoted = true;
+        was_quoted = true;
+        field.clear();
+      } else if (c == ',') {
+        fields.emplace_back(was_quoted ? field : std::string(trim(field, " \t\r")));
+        field.clear();
+        was_quoted = false;
+      } else if (c == '\n') {
+        break;
+      } else {
+        field += c;
+      }
+    }
+    if (quoted) throw InputError(file, row_line, "", "unterminated quoted field");
+    ++pos;
+    ++line;
+    fields.emplace_back(was_quoted ? field : std::string(trim(field, " \t\r")));
+    if (fields.size() == 1 && fields[0].empty() && !was_quoted) continue;
+    if (csv.header.empty()) {
+      csv.header = std::move(fields);
+      continue;
+    }
+    if (fields.size() != csv.header.size()) {
+      throw InputError(file, row_line, "",
+                       "expected " + std::to_string(csv.header.size()) + " fields, found " +
+                           std::to_string(fields.size()));
+    }
+    csv.rows.push_back(std::move(fields));
+    csv.lines.push_back(row_line);
+  }
+  if (csv.header.empty()) throw InputError(file, 0, "", "empty file (no header line)");
+  return csv;
+}
+
+double parse_number(const std::string& cell, const std::string& file, int line,
+                    const std::string& field) {
+  if (cell.empty()) throw InputError(file, line, field, "empty value");
+  const std::optional<double> value = parse_double(cell);
+  if (!value) throw InputError(file, line, field, "not a number: \"" + cell + "\"");
+  return *value;
+}
+
+std::optional<std::int64_t> parse_stamp(std::string_view s) {
+  const std::optional<ParsedTime> p = parse_iso8601(s, 0);
+  if (!p) return std::nullopt;
+  return p->instant + p->offset_s;
+}
+
+namespace {
+
+std::int64_t parse_time_cell(const std::string& cell, const std::string& file, int line,
+                             const std::string& field) {
+  const auto t = parse_stamp(cell);
+  if (!t) {
+    throw InputError(file, line, field, "not a time: \"" + cell + "\" (expected YYYY-MM-DDThh:mm)");
+  }
+  return *t;
+}
+
+ReleaseState parse_state(const std::string& cell, const std::string& file, int line) {
+  for (ReleaseState state : {ReleaseState::idle, ReleaseState::dribble, ReleaseState::running,
+                             ReleaseState::closed, ReleaseState::open}) {
+    if (cell == release_state_name(state)) return state;
+  }
+  throw InputError(
+      file, line, "release_state",
+      "unknown state \"" + cell + "\" (expected idle, dribble, running, closed or open)");
+}
+
+}  // namespace
+
+Timeseries read_timeseries(const fs::path& path) {
+  const std::string file = path.string();
+  const Csv csv = parse_csv(read_text(path), file);
+  const std::size_t c_time = csv.require("time");
+  const std::size_t c_state = csv.require("release_state");
+  Timeseries ts;
+  struct Column {
+    const char* name;
+    std::vector<double>* values;
+  };
+  const std::array<Column, 11> numbers{{{"rain_mm", &ts.rain_mm},
+                                        {"reservoir_level_mm", &ts.level_mm},
+                                        {"release_L", &ts.release_L},
+                                        {"reservoir_overflow_L", &ts.reservoir_overflow_L},
+                                        {"column_overflow_L", &ts.column_overflow_L},
+                                        {"nozzle_L", &ts.nozzle_L},
+                                        {"power_W", &ts.power_W},
+                                        {"energy_Wh", &ts.energy_Wh},
+                                        {"battery_soc", &ts.battery_soc},
+                                        {"cum_energy_Wh", &ts.cum_energy_Wh},
+                                        {"cum_overflow_L", &ts.cum_overflow_L}}};
+  // Columns the page does not draw must still be there: the header is a contract.
+  for (const char* name : {"roof_runoff_L", "head_m"}) csv.require(name);
+  std::array<std::size_t, 11> index{};
+  for (std::size_t k = 0; k < numbers.size(); ++k) index[k] = csv.require(numbers[k].name);
+  if (csv.rows.empty()) throw InputError(file, 0, "", "no data rows");
+  for (std::size_t r = 0; r < csv.rows.size(); ++r) {
+    const auto& row = csv.rows[r];
+    const int line = csv.lines[r];
+    const std::int64_t t = parse_time_cell(row[c_time], file, line, "time");
+    if (!ts.t.empty() && t <= ts.t.back()) {
+      throw InputError(file, line, "time", "not after the previous row (\"" + row[c_time] + "\")");
+    }
+    ts.t.push_back(t);
+    ts.state.push_back(parse_state(row[c_state], file, line));
+    for (std::size_t k = 0; k < numbers.size(); ++k) {
+      numbers[k].values->push_back(parse_number(row[index[k]], file, line, numbers[k].name));
+    }
+  }
+  ts.dt_s.resize(ts.size());
+  for (std::size_t i = 0; i < ts.size(); ++i) {
+    if (i > 0) {
+      ts.dt_s[i] = static_cast<double>(ts.t[i] - ts.t[i - 1]);
+    } else {
+      ts.dt_s[i] = ts.size() > 1 ? static_cast<double>(ts.t[1] - ts.t[0]) : 3600.0;
+    }
+  }
+  // A gap in the record (a skipped dry spell) would make the row after it look like one long
+  // interval; no interval is drawn longer than the usual step.
+  std::vector<double> sorted = ts.dt_s;
+  std::nth_element(sorted.begin(), sorted.begin() + sorted.size() / 2, sorted.end());
+  const double step = sorted[sorted.size() / 2];
+  for (double& dt : ts.dt_s) dt = std::min(dt, step);
+  return ts;
+}
+
+std::vector<Event> read_events(const fs::path& path) {
+  const std::string file = path.string();
+  const Csv csv = parse_csv(read_text(path), file);
+  const std::size_t c_kind = csv.require("kind");
+  const std::size_t c_start = csv.require("start");
+  const std::size_t c_end = csv.require("end");
+  const std::size_t c_duration = csv.require("duration_s");
+  const std::size_t c_volume = csv.require("volume_L");
+  const std::size_t c_peak = csv.require("peak_flow_L_per_s");
+  const std::size_t c_energy = csv.require("energy_Wh");
+  std::vector<Event> events;
+  for (std::size_t r = 0; r < csv.rows.size(); ++r) {
+    const auto& row = csv.rows[r];
+    const int line = csv.lines[r];
+    Event e;
+    e.kind = row[c_kind];
+    if (e.kind != "cycle" && e.kind != "overflow" && e.kind != "dribble" &&
+        e.kind != "column_overflow") {
+      throw InputError(
+          file, line, "kind",
+          "unknown kind \"" + e.kind + "\" (expected cycle, overflow, dribble or column_overflow)");
+    }
+    e.start = parse_time_cell(row[c_start], file, line, "start");
+    e.end = parse_time_cell(row[c_end], file, line, "end");
+    e.duration_s = parse_number(row[c_duration], file, line, "duration_s");
+    e.volume_L = parse_number(row[c_volume], file, line, "volume_L");
+    e.peak_flow_L_per_s = parse_number(row[c_peak], file, line, "peak_flow_L_per_s");
+    e.energy_Wh = parse_number(row[c_energy], file, line, "energy_Wh");
+    events.push_back(std::move(e));
+  }
+  return events;
+}
+
+namespace {
+
+/// Looks up `a.b.c` in a JSON object, or nullptr when any part is absent.
+const Json* find_key(const Json& root, std::string_view dotted) {
+  const Json* node = &root;
+  while (!dotted.empty()) {
+    const std::size_t dot = dotted.find('.');
+    const std::string part(dotted.substr(0, dot));
+    if (!node->is_object()) return nullptr;
+    const auto it = node->find(part);
+    if (it == node->end()) return nullptr;
+    node = &*it;
+    dotted = dot == std::string_view::npos ? std::string_view{} : dotted.substr(dot + 1);
+  }
+  return node;
+}
+
+double json_number(const Json& root, const std::string& key, const std::string& file,
+                   const std::string& label = "") {
+  const std::string field = label.empty() ? key : label;
+  const Json* node = find_key(root, key);
+  if (node == nullptr) throw InputError(file, 0, field, "missing");
+  if (!node->is_number()) throw InputError(file, 0, field, "expected a number");
+  return node->get<double>();
+}
+
+std::optional<double> json_optional_number(const Json& root, const std::string& key,
+                                           const std::string& file) {
+  const Json* node = find_key(root, key);
+  if (node == nullptr || node->is_null()) return std::nullopt;
+  if (!node->is_number()) throw InputError(file, 0, key, "expected a number or null");
+  return node->get<double>();
+}
+
+std::string json_string(const Json& root, const std::string& key, const std::string& file,
+                        const std::string& label = "") {
+  const std::string field = label.empty() ? key : label;
+  const Json* node = find_key(root, key);
+  if (node == nullptr) throw InputError(file, 0, field, "missing");
+  if (!node->is_string()) throw InputError(file, 0, field, "expected a string");
+  return node->get<std::string>();
+}
+
+Json parse_json(const fs::path& path) {
+  const std::string text = read_text(path);
+  try {
+    return Json::parse(text);
+  } catch (const Json::parse_error& e) {
+    // nlohmann reports a byte offset; turn it into the line a person would look at.
+    const std::size_t byte = std::min<std::size_t>(e.byte, text.size());
+    const int line = 1 + static_cast<int>(std::count(text.begin(),
+                                                     text.begin() + static_cast<long>(byte), '\n'));
+    throw InputError(path.string(), line, "", "not valid JSON");
+  }
+}
+
+}  // namespace
+
+Summary read_summary(const fs::path& path) {
+  const std::string file = path.string();
+  const Json root = parse_json(path);
+  if (!root.is_object()) throw InputError(file, 0, "", "expected a JSON object");
+  Summary s;
+  s.scenario = json_string(root, "scenario", file);
+  s.site = json_string(root, "site", file);
+  s.start = json_string(root, "start", file);
+  s.end = json_string(root, "end", file);
+  s.rain_L = json_number(root, "water_L.rain", file);
+  s.roof_loss_L = json_number(root, "water_L.roof_loss", file);
+  s.first_flush_L = json_number(root, "water_L.first_flush", file);
+  s.reservoir_overflow_L = json_number(root, "water_L.reservoir_overflow", file);
+  s.column_overflow_L = json_number(root, "water_L.column_overflow", file);
+  s.dribble_L = json_number(root, "water_L.dribble", file);
+  s.through_nozzle_L = json_number(root, "water_L.through_nozzle", file);
+  s.storage_change_L = json_number(root, "water_L.storage_change", file);
+  s.balance_error_L = json_number(root, "water_L.balance_error", file);
+  s.jet_Wh = json_number(root, "energy_Wh.jet", file);
+  s.electrical_Wh = json_number(root, "energy_Wh.electrical", file);
+  s.stored_Wh = json_number(root, "energy_Wh.stored", file);
+  s.curtailed_Wh = json_number(root, "energy_Wh.curtailed", file);
+  s.unmet_load_Wh = json_number(root, "energy_Wh.unmet_load", file);
+  s.cycles = json_number(root, "siphon.cycles", file);
+  s.overflow_events = json_number(root, "overflow.events", file);
+  s.overflow_hours = json_number(root, "overflow.hours", file);
+  s.trigger_mm = json_optional_number(root, "levels_mm.trigger", file);
+  s.break_mm = json_optional_number(root, "levels_mm.break", file);
+  s.rim_mm = json_optional_number(root, "levels_mm.rim", file);
+  const Json* months = find_key(root, "months");
+  if (months == nullptr) throw InputError(file, 0, "months", "missing");
+  if (!months->is_array()) throw InputError(file, 0, "months", "expected an array");
+  for (std::size_t i = 0; i < months->size(); ++i) {
+    const Json& m = (*months)[i];
+    const std::string at = "months[" + std::to_string(i) + "].";
+    if (!m.is_object())
+      throw InputError(file, 0, "months[" + std::to_string(i) + "]", "expected an object");
+    MonthRow row;
+    row.month = json_string(m, "month", file, at + "month");
+    row.rain_mm = json_number(m, "rain_mm", file, at + "rain_mm");
+    row.energy_Wh = json_number(m, "energy_Wh", file, at + "energy_Wh");
+    row.overflow_L = json_number(m, "overflow_L", file, at + "overflow_L");
+    row.cycles = json_number(m, "cycles", file, at + "cycles");
+    s.months.push_back(std::move(row));
+  }
+  return s;
+}
+
+Sweep read_sweep(const fs::path& dir) {
+  Sweep sw;
+  const fs::path csv_path = dir / "sweep.csv";
+  const std::string file = csv_path.string();
+  sw.csv = parse_csv(read_text(csv_path), file);
+  const std::size_t c_energy = sw.csv.require("energy_Wh");
+  sw.csv.require("overflow_L");
+  std::vector<std::string> vary;
+  const fs::path json_path = dir / "sweep.json";
+  std::error_code ec;
+  if (fs::exists(json_path, ec)) {
+    const std::string jfile = json_path.string();
+    const Json root = parse_json(json_path);
+    if (!root.is_object()) throw InputError(jfile, 0, "", "expected a JSON object");
+    if (const Json* s = find_key(root, "scenario"); s != nullptr && s->is_string()) {
+      sw.scenario = s->get<std::string>();
+    }
+    if (const Json* v = find_key(root, "site"); v != nullptr && v->is_string()) {
+      sw.site = v->get<std::string>();
+    }
+    if (const Json* v = find_key(root, "order"); v != nullptr && v->is_string()) {
+      sw.order = v->get<std::string>();
+    }
+    if (const Json* v = find_key(root, "skipped"); v != nullptr && v->is_number()) {
+      sw.skipped = v->get<double>();
+    }
+    if (const Json* v = find_key(root, "failed"); v != nullptr && v->is_number()) {
+      sw.failed = v->get<double>();
+    }
+    if (const Json* r = find_key(root, "rank"); r != nullptr) {
+      if (!r->is_string()) throw InputError(jfile, 0, "rank", "expected a string");
+      sw.rank = r->get<std::string>();
+    }
+    if (const Json* v = find_key(root, "vary"); v != nullptr) {
+      if (!v->is_array()) throw InputError(jfile, 0, "vary", "expected an array");
+      for (std::size_t i = 0; i < v->size(); ++i) {
+        const Json& item = (*v)[i];
+        const std::string field = "vary[" + std::to_string(i) + "]";
+        if (!item.is_string()) throw InputError(jfile, 0, field, "expected a key name");
+        const std::string key = item.get<std::string>();
+        if (sw.csv.find(key) < 0) {
+          throw InputError(jfile, 0, field, "\"" + key + "\" is not a column of sweep.csv");
+        }
+        vary.push_back(key);
+      }
+    }
+  }
+  if (vary.empty()) {
+    for (std::size_t c = 0; c < c_energy; ++c) sw.keys.push_back(c);
+  } else {
+    for (const auto& key : vary) sw.keys.push_back(static_cast<std::size_t>(sw.csv.find(key)));
+  }
+  if (sw.csv.rows.empty()) throw InputError(file, 0, "", "no data rows");
+  const std::size_t ncol = sw.csv.header.size();
+  // The metric columns the sweep writes; the page checks their values are numbers.
+  const std::vector<std::string> metrics = sweep_metric_names();
+  sw.num.assign(sw.csv.rows.size(), std::vector<double>(ncol, kNaN));
+  for (std::size_t r = 0; r < sw.csv.rows.size(); ++r) {
+    for (std::size_t c = 0; c < ncol; ++c) {
+      const std::string& cell = sw.csv.rows[r][c];
+      const bool metric =
+          std::find(metrics.begin(), metrics.end(), sw.csv.header[c]) != metrics.end();
+      if (metric && !cell.empty()) {
+        sw.num[r][c] = parse_number(cell, file, sw.csv.lines[r], sw.csv.header[c]);
+      } else if (const auto v = to_number(cell)) {
+        sw.num[r][c] = *v;
+      }
+    }
+  }
+  for (const std::size_t c : sw.keys) {
+    bool numeric = true;
+    for (std::size_t r = 0; r < sw.csv.rows.size(); ++r)
+      numeric = numeric && !std::isnan(sw.num[r][c]);
+    sw.numeric_key.push_back(numeric);
+  }
+  return sw;
+}
+
+}  // namespace gutterwatt::detail

@@ -1,0 +1,110 @@
+#pragma once
+// The report's readers: the files a run (timeseries.csv, events.csv, summary.json) or a sweep
+// (sweep.csv, sweep.json) wrote, back into plain tables. Every malformed input is an InputError
+// naming the file, the line and the column or key. Internal to the report; tests in
+// tests/report_test.cpp (the whole messages).
+
+#include <cstddef>
+#include <cstdint>
+#include <filesystem>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include "gutterwatt/release.hpp"
+
+namespace gutterwatt::detail {
+
+/// The whole of a file as text. Throws InputError for a missing file, a folder or a failed read.
+std::string read_text(const std::filesystem::path& path);
+
+/// A CSV file as text cells, with the line each row came from (for messages).
+struct Csv {
+  std::string file;
+  std::vector<std::string> header;
+  std::vector<std::vector<std::string>> rows;
+  std::vector<int> lines;
+
+  /// The index of column `name`, or -1.
+  int find(std::string_view name) const;
+  /// The index of column `name`; InputError (line 1) when there is none.
+  std::size_t require(std::string_view name) const;
+};
+
+/// RFC 4180 style CSV: comma separated, fields may be quoted with "" for a quote inside; a UTF-8
+/// byte-order mark, CRLF line ends and blank lines are accepted. `file` names the text in
+/// messages. Throws InputError for an unterminated quote, a row of the wrong width or no header.
+Csv parse_csv(std::string_view text, const std::string& file);
+
+/// A cell as a number (nan and inf allowed); InputError naming the cell otherwise.
+double parse_number(const std::string& cell, const std::string& file, int line,
+                    const std::string& field);
+
+/// Wall-clock seconds since 1970-01-01T00:00 of an ISO 8601 stamp, as written: a trailing `Z` or
+/// UTC offset is accepted and left out, so every label on the page reads as the file does.
+std::optional<std::int64_t> parse_stamp(std::string_view s);
+
+/// timeseries.csv, one entry a row; `t` is the end of each row's interval, `dt_s` its length
+/// (never longer than the usual step, so a skipped dry spell does not draw as one long interval).
+struct Timeseries {
+  std::vector<std::int64_t> t;
+  std::vector<double> dt_s;
+  std::vector<double> rain_mm, level_mm, release_L, reservoir_overflow_L, column_overflow_L,
+      nozzle_L, power_W, energy_Wh, battery_soc, cum_energy_Wh, cum_overflow_L;
+  std::vector<ReleaseState> state;
+  std::size_t size() const { return t.size(); }
+};
+
+/// Reads timeseries.csv; at least one row, times strictly increasing.
+Timeseries read_timeseries(const std::filesystem::path& path);
+
+/// One row of events.csv.
+struct Event {
+  std::string kind;
+  std::int64_t start = 0;
+  std::int64_t end = 0;
+  double duration_s = 0.0, volume_L = 0.0, peak_flow_L_per_s = 0.0, energy_Wh = 0.0;
+};
+
+/// Reads events.csv (possibly without rows).
+std::vector<Event> read_events(const std::filesystem::path& path);
+
+/// One entry of summary.json's `months`.
+struct MonthRow {
+  std::string month;
+  double rain_mm = 0.0, energy_Wh = 0.0, overflow_L = 0.0, cycles = 0.0;
+};
+
+/// The keys of summary.json the page shows.
+struct Summary {
+  std::string scenario, site, start, end;
+  double rain_L = 0, roof_loss_L = 0, first_flush_L = 0, reservoir_overflow_L = 0,
+         column_overflow_L = 0, dribble_L = 0, through_nozzle_L = 0, storage_change_L = 0,
+         balance_error_L = 0;
+  double jet_Wh = 0, electrical_Wh = 0, stored_Wh = 0, curtailed_Wh = 0, unmet_load_Wh = 0;
+  double cycles = 0, overflow_events = 0, overflow_hours = 0;
+  std::optional<double> trigger_mm, break_mm, rim_mm;
+  std::vector<MonthRow> months;
+};
+
+/// Reads summary.json; InputError naming a missing key or one of the wrong type.
+Summary read_summary(const std::filesystem::path& path);
+
+/// sweep.csv (and sweep.json when present): the first `keys` columns are the varied keys.
+struct Sweep {
+  std::string scenario;
+  std::string rank = "energy_Wh";
+  std::string site;   ///< from sweep.json, when given
+  std::string order;  ///< `ascending` or `descending`, from sweep.json, when given
+  std::optional<double> skipped, failed;  ///< combinations that did not run, when given
+  Csv csv;
+  std::vector<std::size_t> keys;         ///< column indices of the varied keys
+  std::vector<bool> numeric_key;         ///< per entry of `keys`
+  std::vector<std::vector<double>> num;  ///< numeric value of every cell, NaN for text
+};
+
+/// Reads `dir`/sweep.csv and, when there is one, `dir`/sweep.json.
+Sweep read_sweep(const std::filesystem::path& dir);
+
+}  // namespace gutterwatt::detail

@@ -1,0 +1,618 @@
+// The run page (see report_run.hpp): one function per section, in page order.
+
+#include "report_run.hpp"
+
+#include <algorithm>
+#include <array>
+#include <cmath>
+#include <map>
+#include <optional>
+#include <utility>
+
+#include "chart.hpp"
+#include "detail.hpp"
+#include "report_files.hpp"
+#include "report_format.hpp"
+#include "report_page.hpp"
+
+namespace gutterwatt::detail {
+namespace {
+
+namespace fs = std::filesystem;
+
+/// Rows [i0, i1) of the run shown over [t_lo, t_hi].
+struct Window {
+  std::size_t i0, i1;
+  double t_lo, t_hi;
+};
+
+/// Per interval bars, or, with more intervals than display columns, the largest interval value
+/// in each column (so a downpour keeps its height). `bucket_s` receives the column width.
+BarSet bars_of(const Timeseries& ts, const std::vector<double>& v, const Window& w,
+               const char* colour, double* bucket_s) {
+  BarSet b{{}, {}, {}, colour};
+  if (w.i1 - w.i0 <= kBuckets) {
+    for (std::size_t i = w.i0; i < w.i1; ++i) {
+      if (v[i] > 0.0) {
+        b.x0.push_back(static_cast<double>(ts.t[i]) - ts.dt_s[i]);
+        b.x1.push_back(static_cast<double>(ts.t[i]));
+        b.v.push_back(v[i]);
+      }
+    }
+    return b;
+  }
+  const double width = (w.t_hi - w.t_lo) / kBuckets;
+  if (bucket_s != nullptr) *bucket_s = width;
+  std::vector<double> peak(kBuckets, 0.0);
+  for (std::size_t i = w.i0; i < w.i1; ++i) {
+    const double mid = static_cast<double>(ts.t[i]) - ts.dt_s[i] / 2.0;
+    const auto k = static_cast<std::size_t>(
+        std::clamp(std::floor((mid - w.t_lo) / width), 0.0, static_cast<double>(kBuckets - 1)));
+    if (!std::isnan(v[i])) peak[k] = std::max(peak[k], v[i]);
+  }
+  for (std::size_t k = 0; k < kBuckets; ++k) {
+    if (peak[k] > 0.0) {
+      b.x0.push_back(w.t_lo + static_cast<double>(k) * width);
+      b.x1.push_back(w.t_lo + static_cast<double>(k + 1) * width);
+      b.v.push_back(peak[k]);
+    }
+  }
+  return b;
+}
+
+LineSet line_of(const Timeseries& ts, const std::vector<double>& v, const Window& w,
+                const char* colour, double width, double scale = 1.0) {
+  LineSet l{{}, {}, {}, colour, width, "", false};
+  const std::vector<double> part(v.begin() + static_cast<long>(w.i0),
+                                 v.begin() + static_cast<long>(w.i1));
+  std::vector<std::size_t> nan_before(part.size() + 1, 0);
+  for (std::size_t i = 0; i < part.size(); ++i) {
+    nan_before[i + 1] = nan_before[i] + (std::isnan(part[i]) ? 1 : 0);
+  }
+  std::size_t previous = 0;
+  bool have_previous = false;
+  for (const std::size_t i : thin_min_max(part, kBuckets)) {
+    l.x.push_back(static_cast<double>(ts.t[w.i0 + i]));
+    l.v.push_back(part[i] * scale);
+    l.pen_up.push_back(have_previous && nan_before[i] != nan_before[previous + 1]);
+    previous = i;
+    have_previous = true;
+  }
+  return l;
+}
+
+/// Shading for the release state at the end of each interval: full-bore flow (running, open) in
+/// green, dribble in orange. With more intervals than display columns, each column takes the
+/// most telling state found in it, full-bore flow first, then dribble.
+std::vector<BandSet> bands_of(const Timeseries& ts, const Window& w, bool* saw_running,
+                              bool* saw_open, bool* saw_dribble) {
+  BandSet flowing{{}, {}, kGreen, 0.17};
+  BandSet dribble{{}, {}, kOrange, 0.30};
+  auto grade = [&](ReleaseState s) {
+    if (s == ReleaseState::running) *saw_running = true;
+    if (s == ReleaseState::open) *saw_open = true;
+    if (s == ReleaseState::dribble) *saw_dribble = true;
+    return s == ReleaseState::running || s == ReleaseState::open ? 2
+           : s == ReleaseState::dribble                          ? 1
+                                                                 : 0;
+  };
+  auto add = [&](int g, double x0, double x1) {
+    if (g == 0) return;
+    BandSet& set = g == 2 ? flowing : dribble;
+    if (!set.x1.empty() && std::fabs(set.x1.back() - x0) < 1e-6) {
+      set.x1.back() = x1;
+    } else {
+      set.x0.push_back(x0);
+      set.x1.push_back(x1);
+    }
+  };
+  if (w.i1 - w.i0 <= kBuckets) {
+    for (std::size_t i = w.i0; i < w.i1; ++i) {
+      add(grade(ts.state[i]), static_cast<double>(ts.t[i]) - ts.dt_s[i],
+          static_cast<double>(ts.t[i]));
+    }
+  } else {
+    const double width = (w.t_hi - w.t_lo) / kBuckets;
+    std::vector<int> best(kBuckets, 0);
+    for (std::size_t i = w.i0; i < w.i1; ++i) {
+      const double mid = static_cast<double>(ts.t[i]) - ts.dt_s[i] / 2.0;
+      const auto k = static_cast<std::size_t>(
+          std::clamp(std::floor((mid - w.t_lo) / width), 0.0, static_cast<double>(kBuckets - 1)));
+      best[k] = std::max(best[k], grade(ts.state[i]));
+    }
+    for (std::size_t k = 0; k < kBuckets; ++k) {
+      add(best[k], w.t_lo + static_cast<double>(k) * width,
+          w.t_lo + static_cast<double>(k + 1) * width);
+    }
+  }
+  return {flowing, dribble};
+}
+
+struct MonthLabel {
+  std::string month;
+  std::string year;
+};
+
+MonthLabel month_label_of(const std::string& text) {
+  if (text.size() >= 7 && text[4] == '-') {
+    const auto m = to_number(text.substr(5, 2));
+    if (m && *m >= 1 && *m <= 12) {
+      return {std::string(month_name(static_cast<unsigned>(*m))), text.substr(0, 4)};
+    }
+  }
+  return {text, ""};
+}
+
+std::string monthly_svg(const std::vector<MonthRow>& months) {
+  const double height = 282.0;
+  const double top = 40.0;
+  const double bottom = 222.0;
+  struct Half {
+    std::string title;
+    const char* colour;
+    double left, right;
+    double MonthRow::*field;
+  };
+  const std::array<Half, 2> halves{
+      {{"Electrical energy, Wh per month", kVermillion, 70.0, 520.0, &MonthRow::energy_Wh},
+       {"Overflow (reservoir rim and head column), L per month", kBlue, 620.0, 1070.0,
+        &MonthRow::overflow_L}}};
+  std::string out;
+  svg_open(out, "chart-monthly", height, "Monthly electrical energy and overflow");
+  const double n = static_cast<double>(months.size());
+  for (const Half& h : halves) {
+    double max = 0.0;
+    for (const auto& m : months) max = std::max(max, m.*(h.field));
+    const Ticks yt = nice_ticks(0.0, axis_top(max), 4);
+    const Linear ys{0.0, yt.top, bottom, top};
+    svg_text(out, h.left - 62.0, 18.0, escape(h.title), "start", "ptitle");
+    for (const double v : yt.values) {
+      if (v != 0.0) svg_line(out, h.left, ys(v), h.right, ys(v), kGrid, 1.0);
+      svg_text(out, h.left - 7.0, ys(v) + 4.0, fixed(v, yt.decimals), "end", "tick");
+    }
+    const double slot = (h.right - h.left) / std::max(n, 1.0);
+    const auto every = static_cast<std::size_t>(std::max(1.0, std::ceil(30.0 / slot)));
+    for (std::size_t i = 0; i < months.size(); ++i) {
+      const double v = months[i].*(h.field);
+      const double x0 = h.left + slot * static_cast<double>(i);
+      svg_rect(out, x0 + slot * 0.17, ys(v), slot * 0.66, bottom - ys(v), h.colour);
+      if (slot >= 34.0) {
+        svg_text(out, x0 + slot / 2.0, ys(v) - 5.0, pretty(v, false), "middle", "val");
+      }
+      if (i % every == 0) {
+        const MonthLabel label = month_label_of(months[i].month);
+        svg_text(out, x0 + slot / 2.0, bottom + 17.0, escape(label.month), "middle", "tick");
+        const bool new_year = i == 0 || month_label_of(months[i - every].month).year != label.year;
+        if (new_year && !label.year.empty()) {
+          svg_text(out, x0 + slot / 2.0, bottom + 32.0, label.year, "middle", "tick");
+        }
+      }
+    }
+    svg_line(out, h.left, bottom, h.right, bottom, kAxis, 1.0);
+    svg_text(out, (h.left + h.right) / 2.0, bottom + 52.0, "month", "middle", "axis");
+  }
+  out += "</svg>\n";
+  return out;
+}
+
+/// The busiest day: the most electrical energy, else the most rain. Day of each row by the
+/// middle of its interval. Returns the day's first second, or nullopt for a dry, idle run.
+std::optional<std::int64_t> busiest_day(const Timeseries& ts) {
+  std::map<std::int64_t, std::pair<double, double>> days;  // day -> (energy, rain)
+  for (std::size_t i = 0; i < ts.size(); ++i) {
+    const auto mid = ts.t[i] - static_cast<std::int64_t>(ts.dt_s[i] / 2.0);
+    auto& d = days[floor_div(mid, kDay_s)];
+    d.first += ts.energy_Wh[i];
+    d.second += ts.rain_mm[i];
+  }
+  std::optional<std::int64_t> best;
+  std::pair<double, double> best_value{0.0, 0.0};
+  for (const auto& [day, value] : days) {
+    if (value > best_value) {
+      best_value = value;
+      best = day;
+    }
+  }
+  if (best) return *best * kDay_s;
+  return std::nullopt;
+}
+
+Window window_of(const Timeseries& ts, double t_lo, double t_hi) {
+  Window w{0, 0, t_lo, t_hi};
+  while (w.i0 < ts.size() && static_cast<double>(ts.t[w.i0]) <= t_lo) ++w.i0;
+  w.i1 = w.i0;
+  while (w.i1 < ts.size() && static_cast<double>(ts.t[w.i1]) - ts.dt_s[w.i1] < t_hi) ++w.i1;
+  return w;
+}
+
+std::string thinning_note(double bucket_s) {
+  return "tallest interval in each " + duration_text(bucket_s) + " column";
+}
+
+/// Rain bars and the reservoir level with its set-points and the release state.
+/// Release cycles last minutes, so an hourly row rarely ends in one; their starts from events.csv
+/// are marked along the top of the level panel.
+void add_rain_and_level(TimeFigure& fig, const Timeseries& ts, const Summary& s,
+                        const std::vector<Event>& events, const Window& w, const std::string& step,
+                        double rain_h, double level_h) {
+  double bucket_s = 0.0;
+  BarSet rain = bars_of(ts, ts.rain_mm, w, kSkyBlue, &bucket_s);
+  std::string title = "Rain, mm per " + step + " interval";
+  if (bucket_s > 0.0) title += " (" + thinning_note(bucket_s) + ")";
+  Panel& r = fig.add(title, rain_h);
+  r.bars.push_back(std::move(rain));
+  Panel& l = fig.add("Reservoir level, mm above the floor", level_h);
+  bool running = false, open = false, dribble = false;
+  l.bands = bands_of(ts, w, &running, &open, &dribble);
+  l.lines.push_back(line_of(ts, ts.level_mm, w, kBlue, 1.6));
+  l.legend.push_back({LegendEntry::kLine, kBlue, "", "level"});
+  if (running || open) {
+    std::string label = running && open ? "running / open"
+                        : running       ? "running (siphon full bore)"
+                                        : "open (valve)";
+    l.legend.push_back({LegendEntry::kBand, kGreen, "", label, 0.17});
+  }
+  if (dribble) {
+    l.legend.push_back({LegendEntry::kBand, kOrange, "", "dribble (not sealed)", 0.30});
+  }
+  for (const auto& e : events) {
+    const auto t = static_cast<double>(e.start);
+    if (e.kind == "cycle" && t >= w.t_lo && t <= w.t_hi) l.marks.push_back(t);
+  }
+  l.mark_colour = kGreen;
+  if (!l.marks.empty()) l.legend.push_back({LegendEntry::kMark, kGreen, "", "cycle start"});
+  if (s.rim_mm)
+    l.refs.push_back({*s.rim_mm, kVermillion, "", "rim " + pretty(*s.rim_mm, false) + " mm"});
+  if (s.trigger_mm) {
+    l.refs.push_back(
+        {*s.trigger_mm, kGreen, "7 4", "trigger " + pretty(*s.trigger_mm, false) + " mm"});
+  }
+  if (s.break_mm) {
+    l.refs.push_back({*s.break_mm, kOrange, "3 3", "break " + pretty(*s.break_mm, false) + " mm"});
+  }
+}
+
+struct EventStats {
+  std::size_t count = 0;
+  double volume_L = 0.0, energy_Wh = 0.0, longest_s = 0.0, largest_L = 0.0;
+};
+
+/// What a run folder holds, read once, and what every section derives from it.
+struct Run {
+  Timeseries ts;
+  std::vector<Event> events;
+  Summary summary;
+  std::string step;  ///< the output interval, as text
+  Window all;        ///< every row
+  bool thinned;      ///< more rows than display columns
+  std::string folder;
+};
+
+std::string title_section(const Run& run) {
+  const Timeseries& ts = run.ts;
+  const Summary& s = run.summary;
+  const std::string& step = run.step;
+  std::string body;
+  body += "<header>\n<h1>" + escape(s.scenario) + ": season report</h1>\n<p>" + escape(s.site) +
+          " &middot; " + escape(s.start) + " to " + escape(s.end) + " &middot; " +
+          std::to_string(ts.size()) + " rows of " + step + "</p>\n</header>\n";
+  return body;
+}
+
+std::string headline_section(const Run& run) {
+  const Summary& s = run.summary;
+  std::string body;
+  const double overflow_L = s.reservoir_overflow_L + s.column_overflow_L;
+  const double reached_L = s.rain_L - s.roof_loss_L - s.first_flush_L;
+  body +=
+      "<section class=\"first\" id=\"headline\">\n<h2>Headline</h2>\n<p class=\"lead\">The "
+      "system delivered <strong>" +
+      with_unit(s.electrical_Wh, "Wh") + "</strong> of electrical energy in <strong>" +
+      pretty(s.cycles) + "</strong> release cycles. Of " + with_unit(s.rain_L, "L") +
+      " of rain on the roof, " + with_unit(s.through_nozzle_L, "L") + " (" +
+      percent_of(s.through_nozzle_L, s.rain_L) + ") passed the nozzle, " +
+      with_unit(overflow_L, "L") + " (" + percent_of(overflow_L, s.rain_L) + ") overflowed and " +
+      with_unit(s.dribble_L, "L") + " (" + percent_of(s.dribble_L, s.rain_L) +
+      ") dribbled through at low head.</p>\n";
+  body += "<div class=\"tables\">\n<table>\n<caption>Energy</caption>\n<tbody>\n";
+  body += row_html("Electrical energy generated", with_unit(s.electrical_Wh, "Wh"));
+  body += row_html("stored in the battery", with_unit(s.stored_Wh, "Wh"), "", true);
+  body += row_html("curtailed (battery full or at its charge limit)",
+                   with_unit(s.curtailed_Wh, "Wh"), "", true);
+  body += row_html("Jet energy at the nozzle", with_unit(s.jet_Wh, "Wh"));
+  body += row_html("Load not served", with_unit(s.unmet_load_Wh, "Wh"));
+  body += row_html("Release cycles", pretty(s.cycles));
+  body += row_html("Overflow episodes", pretty(s.overflow_events));
+  body += row_html("hours overflowing", with_unit(s.overflow_hours, "h"), "", true);
+  if (s.trigger_mm) body += row_html("Trigger level", with_unit(*s.trigger_mm, "mm"));
+  if (s.break_mm) body += row_html("Break level", with_unit(*s.break_mm, "mm"));
+  if (s.rim_mm) body += row_html("Rim level", with_unit(*s.rim_mm, "mm"));
+  body +=
+      "</tbody>\n</table>\n<table>\n<caption>Water</caption>\n<thead><tr><th></th><th "
+      "class=\"n\">volume</th><th class=\"n\">of rain</th></tr></thead>\n<tbody>\n";
+  body += row_html("Rain on the roof", with_unit(s.rain_L, "L"), "100&nbsp;%");
+  body += row_html("roof loss (wetting, drying)", with_unit(s.roof_loss_L, "L"),
+                   percent_of(s.roof_loss_L, s.rain_L), true);
+  body += row_html("first flush diverted", with_unit(s.first_flush_L, "L"),
+                   percent_of(s.first_flush_L, s.rain_L), true);
+  body += row_html("reached the reservoir", with_unit(reached_L, "L"),
+                   percent_of(reached_L, s.rain_L), true);
+  body += row_html("Through the nozzle", with_unit(s.through_nozzle_L, "L"),
+                   percent_of(s.through_nozzle_L, s.rain_L));
+  body += row_html("of which dribble (release not running)", with_unit(s.dribble_L, "L"),
+                   percent_of(s.dribble_L, s.rain_L), true);
+  body += row_html("Overflow at the reservoir rim", with_unit(s.reservoir_overflow_L, "L"),
+                   percent_of(s.reservoir_overflow_L, s.rain_L));
+  body += row_html("Overflow at the head column", with_unit(s.column_overflow_L, "L"),
+                   percent_of(s.column_overflow_L, s.rain_L));
+  body += row_html("Change in storage", with_unit(s.storage_change_L, "L"),
+                   percent_of(s.storage_change_L, s.rain_L));
+  body += row_html("Balance error", with_unit(s.balance_error_L, "L"),
+                   s.rain_L > 0.0 ? pretty(s.balance_error_L / s.rain_L) + " of rain" : "");
+  body += "</tbody>\n</table>\n</div>\n</section>\n";
+  return body;
+}
+
+std::string season_section(const Run& run, std::vector<std::string>& charts) {
+  const Timeseries& ts = run.ts;
+  const std::vector<Event>& events = run.events;
+  const Summary& s = run.summary;
+  const std::string& step = run.step;
+  const Window& all = run.all;
+  const bool thinned = run.thinned;
+  std::string body;
+  TimeFigure fig(all.t_lo, all.t_hi);
+  add_rain_and_level(fig, ts, s, events, all, step, 110.0, 200.0);
+  charts.push_back("chart-rain-level");
+  body += "<section id=\"season\">\n<h2>Rain, reservoir level and release state</h2>\n";
+  body +=
+      figure(fig.svg("chart-rain-level", "Rain and reservoir level over the run"),
+             "Rain per output interval above the reservoir level at the end of each "
+             "interval. Dashed lines: the release trigger and break levels; solid: the "
+             "overflow rim. Shading: the release state at the end of each interval; ticks along "
+             "the top: the start of each release cycle (events.csv)." +
+                 std::string(thinned ? " Thinned for display (min/max per bucket, see "
+                                       "<a href=\"#reading\">Reading the charts</a>)."
+                                     : ""));
+  body += "</section>\n";
+  return body;
+}
+
+std::string energy_section(const Run& run, std::vector<std::string>& charts) {
+  const Timeseries& ts = run.ts;
+  const Summary& s = run.summary;
+  const Window& all = run.all;
+  std::string body;
+  TimeFigure fig(all.t_lo, all.t_hi);
+  Panel& p = fig.add("Electrical power, W (mean over each interval)", 150.0);
+  p.lines.push_back(line_of(ts, ts.power_W, all, kVermillion, 1.2));
+  Panel& c = fig.add("Cumulative electrical energy, Wh", 150.0);
+  c.lines.push_back(line_of(ts, ts.cum_energy_Wh, all, kVermillion, 1.8));
+  charts.push_back("chart-energy");
+  body += "<section id=\"energy\">\n<h2>Power and energy</h2>\n";
+  body += figure(fig.svg("chart-energy", "Electrical power and cumulative energy"),
+                 "Power delivered by the generator and the energy summed from the start of the "
+                 "run. Season total: " +
+                     with_unit(s.electrical_Wh, "Wh") + ".");
+  TimeFigure bat(all.t_lo, all.t_hi);
+  Panel& b = bat.add("Battery state of charge, %", 130.0);
+  b.y_top = 100.0;
+  b.lines.push_back(line_of(ts, ts.battery_soc, all, kGreen, 1.6, 100.0));
+  charts.push_back("chart-battery");
+  body += figure(bat.svg("chart-battery", "Battery state of charge"),
+                 "State of charge at the end of each interval. Curtailed while full: " +
+                     with_unit(s.curtailed_Wh, "Wh") +
+                     "; load not served while empty: " + with_unit(s.unmet_load_Wh, "Wh") + ".");
+  body += "</section>\n";
+  return body;
+}
+
+std::string months_section(const Run& run, std::vector<std::string>& charts) {
+  const Summary& s = run.summary;
+  std::string body;
+  body += "<section id=\"months\">\n<h2>Month by month</h2>\n";
+  if (s.months.empty()) {
+    body += "<p class=\"note\">summary.json lists no months.</p>\n";
+  } else {
+    charts.push_back("chart-monthly");
+    body += figure(monthly_svg(s.months), "Electrical energy and overflow in each calendar month.");
+    body +=
+        "<table>\n<thead><tr><th>month</th><th class=\"n\">rain, mm</th><th class=\"n\">"
+        "energy, Wh</th><th class=\"n\">overflow, L</th><th class=\"n\">cycles</th></tr>"
+        "</thead>\n<tbody>\n";
+    for (const auto& m : s.months) {
+      body += "<tr><td>" + escape(m.month) + "</td><td class=\"n\">" + pretty(m.rain_mm) +
+              "</td><td class=\"n\">" + pretty(m.energy_Wh) + "</td><td class=\"n\">" +
+              pretty(m.overflow_L) + "</td><td class=\"n\">" + pretty(m.cycles) + "</td></tr>\n";
+    }
+    body += "</tbody>\n</table>\n";
+  }
+  body += "</section>\n";
+  return body;
+}
+
+/// The busiest day, drawn from every row; a note when the run has none.
+std::string busiest_day_closeup(const Run& run, std::vector<std::string>& charts) {
+  const Timeseries& ts = run.ts;
+  const std::vector<Event>& events = run.events;
+  std::string body;
+  if (const auto day = busiest_day(ts)) {
+    const double t_lo = static_cast<double>(*day);
+    const Window w = window_of(ts, t_lo, t_lo + kDay_s);
+    double energy = 0.0, rain = 0.0;
+    for (std::size_t i = w.i0; i < w.i1; ++i) {
+      energy += ts.energy_Wh[i];
+      rain += ts.rain_mm[i];
+    }
+    std::size_t cycles = 0;
+    for (const auto& e : events) {
+      if (e.kind == "cycle" && e.start >= *day && e.start < *day + kDay_s) ++cycles;
+    }
+    TimeFigure fig(w.t_lo, w.t_hi);
+    add_rain_and_level(fig, ts, run.summary, events, w, run.step, 90.0, 160.0);
+    Panel& p = fig.add("Electrical power, W", 110.0);
+    p.lines.push_back(line_of(ts, ts.power_W, w, kVermillion, 1.4));
+    charts.push_back("chart-busiest-day");
+    body += "<div class=\"closeup\">\n<h3>Busiest day: " + date_label(*day) + "</h3>\n";
+    body += figure(fig.svg("chart-busiest-day", "The busiest day, " + date_label(*day)),
+                   "The day with the most electrical energy (" + with_unit(energy, "Wh") + ", " +
+                       std::to_string(cycles) + " cycles starting that day, " +
+                       with_unit(rain, "mm") + " of rain).") +
+            "</div>\n";
+  } else {
+    body += "<p class=\"note\">No rain and no energy in this run: there is no busiest day.</p>\n";
+  }
+  return body;
+}
+
+/// The largest overflow episode with the hours around it; a note when the run has none.
+std::string overflow_closeup(const Run& run, std::vector<std::string>& charts) {
+  const Timeseries& ts = run.ts;
+  const std::vector<Event>& events = run.events;
+  const std::string& step = run.step;
+  std::string body;
+  const Event* largest = nullptr;
+  for (const auto& e : events) {
+    if ((e.kind == "overflow" || e.kind == "column_overflow") &&
+        (largest == nullptr || e.volume_L > largest->volume_L)) {
+      largest = &e;
+    }
+  }
+  if (largest != nullptr) {
+    const double pad =
+        std::max(6.0 * kHour_s, 0.5 * static_cast<double>(largest->end - largest->start));
+    const double t_lo = std::max(static_cast<double>(largest->start) - pad, run.all.t_lo);
+    const double t_hi = std::min(static_cast<double>(largest->end) + pad, run.all.t_hi);
+    const Window w = window_of(ts, t_lo, std::max(t_hi, t_lo + 1.0));
+    std::vector<double> spill(ts.size(), 0.0);
+    for (std::size_t i = 0; i < ts.size(); ++i) {
+      spill[i] = ts.reservoir_overflow_L[i] + ts.column_overflow_L[i];
+    }
+    TimeFigure fig(w.t_lo, w.t_hi);
+    add_rain_and_level(fig, ts, run.summary, events, w, step, 90.0, 160.0);
+    double bucket_s = 0.0;
+    BarSet bars = bars_of(ts, spill, w, kBlue, &bucket_s);
+    Panel& p = fig.add("Overflow (reservoir rim and head column), L per " + step + " interval" +
+                           (bucket_s > 0.0 ? " (" + thinning_note(bucket_s) + ")" : ""),
+                       110.0);
+    p.bars.push_back(std::move(bars));
+    p.bands.push_back(
+        {{static_cast<double>(largest->start)}, {static_cast<double>(largest->end)}, kBlack, 0.10});
+    p.legend.push_back({LegendEntry::kBand, kBlack, "", "the episode", 0.10});
+    charts.push_back("chart-overflow-episode");
+    const std::string where = largest->kind == "overflow" ? "reservoir rim" : "head column";
+    body +=
+        "<div class=\"closeup\">\n<h3>Largest overflow episode: " + stamp_label(largest->start) +
+        " to " + stamp_label(largest->end) + "</h3>\n";
+    body += figure(fig.svg("chart-overflow-episode", "The largest overflow episode"),
+                   with_unit(largest->volume_L, "L") + " over the " + where + " in " +
+                       duration_text(largest->duration_s) + ", peak " +
+                       with_unit(largest->peak_flow_L_per_s, "L/s") +
+                       ", shown with the hours around it.") +
+            "</div>\n";
+  } else {
+    body += "<p class=\"note\">No overflow episode in this run.</p>\n";
+  }
+  return body;
+}
+
+std::string closeups_section(const Run& run, std::vector<std::string>& charts) {
+  std::string body = "<section id=\"closeups\">\n<h2>Close-ups</h2>\n";
+  body += busiest_day_closeup(run, charts);
+  body += overflow_closeup(run, charts);
+  return body + "</section>\n";
+}
+
+std::string events_section(const Run& run) {
+  const std::vector<Event>& events = run.events;
+  std::string body;
+  std::map<std::string, EventStats> by_kind;
+  for (const auto& e : events) {
+    EventStats& st = by_kind[e.kind];
+    ++st.count;
+    st.volume_L += e.volume_L;
+    st.energy_Wh += e.energy_Wh;
+    st.longest_s = std::max(st.longest_s, e.duration_s);
+    st.largest_L = std::max(st.largest_L, e.volume_L);
+  }
+  const std::array<std::pair<const char*, const char*>, 4> kinds{
+      {{"cycle", "release cycles"},
+       {"dribble", "dribble episodes (release not sealed)"},
+       {"overflow", "overflow at the reservoir rim"},
+       {"column_overflow", "overflow at the head column"}}};
+  body +=
+      "<section id=\"events\">\n<h2>Events</h2>\n<table>\n<thead><tr><th>kind</th><th "
+      "class=\"n\">count</th><th class=\"n\">volume, L</th><th class=\"n\">largest, L</th>"
+      "<th class=\"n\">longest</th><th class=\"n\">energy, Wh</th></tr></thead>\n<tbody>\n";
+  for (const auto& [kind, label] : kinds) {
+    const EventStats st = by_kind.count(kind) ? by_kind.at(kind) : EventStats{};
+    body += std::string("<tr><td>") + label + "</td><td class=\"n\">" + std::to_string(st.count) +
+            "</td><td class=\"n\">" + pretty(st.volume_L) + "</td><td class=\"n\">" +
+            pretty(st.largest_L) + "</td><td class=\"n\">" +
+            (st.count > 0 ? duration_text(st.longest_s) : "&ndash;") + "</td><td class=\"n\">" +
+            pretty(st.energy_Wh) + "</td></tr>\n";
+  }
+  body += "</tbody>\n</table>\n</section>\n";
+  return body;
+}
+
+std::string reading_section(const Run& run) {
+  const Timeseries& ts = run.ts;
+  const std::vector<Event>& events = run.events;
+  const bool thinned = run.thinned;
+  std::string body;
+  body += "<section id=\"reading\">\n<h2>Reading the charts</h2>\n";
+  body +=
+      "<p>Every value belongs to the interval that ends at its time stamp (period-ending); "
+      "times read as they do in the files. Release-state shading shows the state at the end "
+      "of each interval: green for full-bore flow (a running siphon or an open valve), orange "
+      "for dribble, none for idle or closed.</p>\n";
+  body += "<p><strong>Thinning.</strong> A chart with more intervals than about " +
+          std::to_string(kBuckets) +
+          " display columns is thinned by the <em>min/max-per-bucket</em> method: the time axis "
+          "is cut into equal buckets; a line keeps the lowest and the highest value in each "
+          "bucket (and the first and last), and a bar shows the tallest single interval in its "
+          "bucket, so peaks and troughs stay in view while the page stays small. In a thinned "
+          "chart a bucket is shaded green if full-bore flow occurs in it at all, else orange if "
+          "dribble does. ";
+  body += thinned ? "The season charts here are thinned (" + std::to_string(ts.size()) +
+                        " rows); the close-ups are drawn from every row unless they say "
+                        "otherwise.</p>\n"
+                  : "This run is short enough that every row is drawn.</p>\n";
+  body +=
+      "<p>Colours follow a palette chosen to stay distinct with common colour-vision "
+      "deficiencies. Inputs: timeseries.csv (" +
+      std::to_string(ts.size()) + " rows), events.csv (" + std::to_string(events.size()) +
+      " events) and summary.json in " + escape(run.folder) + ".</p>\n</section>\n";
+  return body;
+}
+
+}  // namespace
+
+std::string render_run(const fs::path& dir) {
+  Run run{read_timeseries(dir / "timeseries.csv"),
+          read_events(dir / "events.csv"),
+          read_summary(dir / "summary.json"),
+          "",
+          {},
+          false,
+          dir.filename().string()};
+  const Timeseries& ts = run.ts;
+  run.step = duration_text(*std::max_element(ts.dt_s.begin(), ts.dt_s.end()));
+  run.all = {0, ts.size(), static_cast<double>(ts.t.front()) - ts.dt_s.front(),
+             static_cast<double>(ts.t.back())};
+  run.thinned = ts.size() > kBuckets;
+
+  std::vector<std::string> charts;
+  std::string body = title_section(run);
+  body += headline_section(run);
+  body += season_section(run, charts);
+  body += energy_section(run, charts);
+  body += months_section(run, charts);
+  body += closeups_section(run, charts);
+  body += events_section(run);
+  body += reading_section(run);
+  return page_open(run.summary.scenario + ": season report", charts) + body + page_close();
+}
+
+}  // namespace gutterwatt::detail
