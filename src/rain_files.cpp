@@ -75,6 +75,9 @@ RainSeries join_rain(std::vector<RainSeries> parts, const std::vector<std::strin
 
 namespace {
 
+// Bytes read between two looks at the stop flag.
+constexpr std::size_t kStopCheckBytes = std::size_t{64} << 10;
+
 // Opens `file` for reading, or throws naming it.
 std::ifstream open_rain_file(const std::filesystem::path& file) {
   const std::string label = file.string();
@@ -90,9 +93,70 @@ std::ifstream open_rain_file(const std::filesystem::path& file) {
   return in;
 }
 
+// A stream buffer over another that ends the reading once `stop` is set, looking at it every
+// kStopCheckBytes: it then throws, which the stream takes for a read error.
+class StoppableBuf : public std::streambuf {
+ public:
+  StoppableBuf(std::streambuf& source, const std::atomic<bool>* stop)
+      : source_(source), stop_(stop), buffer_(kStopCheckBytes) {}
+  bool stopped() const { return stopped_; }
+
+ protected:
+  int_type underflow() override {
+    if (stop_ != nullptr && stop_->load()) {
+      stopped_ = true;
+      throw Interrupted();
+    }
+    const std::streamsize n =
+        source_.sgetn(buffer_.data(), static_cast<std::streamsize>(buffer_.size()));
+    if (n <= 0) return traits_type::eof();
+    setg(buffer_.data(), buffer_.data(), buffer_.data() + n);
+    return traits_type::to_int_type(buffer_.front());
+  }
+
+ private:
+  std::streambuf& source_;
+  const std::atomic<bool>* stop_;
+  std::vector<char> buffer_;
+  bool stopped_ = false;
+};
+
+// A rain file open for reading that stops soon after `stop` is set.
+class RainFile {
+ public:
+  RainFile(const std::filesystem::path& file, const std::atomic<bool>* stop)
+      : label_(file.string()),
+        in_(open_rain_file(file)),
+        buf_(*in_.rdbuf(), stop),
+        stream_(&buf_) {}
+
+  const std::string& label() const { return label_; }
+
+  /// `read(stream, label)`'s result; Interrupted when the stop flag cut the reading short,
+  /// whatever the reader made of the cut.
+  template <class Read>
+  auto read(Read&& read) {
+    try {
+      auto result = read(stream_, label_);
+      if (buf_.stopped()) throw Interrupted();
+      return result;
+    } catch (const InputError&) {
+      if (buf_.stopped()) throw Interrupted();
+      throw;
+    }
+  }
+
+ private:
+  std::string label_;
+  std::ifstream in_;
+  StoppableBuf buf_;
+  std::istream stream_;
+};
+
 }  // namespace
 
-RainSeries load_rain(const RainConfig& config, const std::filesystem::path& override_file) {
+RainSeries load_rain(const RainConfig& config, const std::filesystem::path& override_file,
+                     const std::atomic<bool>* stop) {
   std::vector<std::filesystem::path> files = config.files;
   if (!override_file.empty()) files = {override_file};
   if (files.empty()) throw InputError("", 0, "rain.file", "no rain file given");
@@ -101,45 +165,46 @@ RainSeries load_rain(const RainConfig& config, const std::filesystem::path& over
     // the file before it.
     std::vector<TipLog> logs;
     for (const std::filesystem::path& file : files) {
-      std::ifstream in = open_rain_file(file);
-      logs.push_back(read_tip_log(in, file.string(), config.series));
+      logs.push_back(RainFile(file, stop).read([&](std::istream& in, const std::string& label) {
+        return read_tip_log(in, label, config.series);
+      }));
     }
     return spread_tips(logs, config.tips, config.series.gaps);
   }
   std::vector<RainSeries> parts;
   std::vector<std::string> labels;
   for (const std::filesystem::path& file : files) {
-    std::ifstream in = open_rain_file(file);
-    const std::string label = file.string();
-    if (config.format == RainFormat::daily) {
-      parts.push_back(read_rain_daily(in, label, config.series, config.disaggregate));
-    } else {
-      parts.push_back(read_rain_series(in, label, config.series));
-    }
-    labels.push_back(label);
+    parts.push_back(RainFile(file, stop).read([&](std::istream& in, const std::string& label) {
+      return config.format == RainFormat::daily
+                 ? read_rain_daily(in, label, config.series, config.disaggregate)
+                 : read_rain_series(in, label, config.series);
+    }));
+    labels.push_back(file.string());
   }
   return join_rain(std::move(parts), labels);
 }
 
 RainSeries load_rain_while(const RainConfig& config, const std::filesystem::path& override_file,
-                           const std::function<void(RainView&)>& consume) {
+                           const std::function<void(RainView&)>& consume,
+                           const std::atomic<bool>* stop) {
   const bool one_series =
       config.format == RainFormat::series && (!override_file.empty() || config.files.size() == 1);
   if (!one_series) {
-    RainSeries whole = load_rain(config, override_file);
+    RainSeries whole = load_rain(config, override_file, stop);
     RainView view(whole);
     consume(view);
     return whole;
   }
   const std::filesystem::path file = override_file.empty() ? config.files.front() : override_file;
-  std::ifstream in = open_rain_file(file);
-  const std::string label = file.string();
+  RainFile rain_file(file, stop);
   RainFeed feed(config.series.gaps);
   std::optional<RainSeries> whole;
   std::thread reader([&] {
     try {
-      whole = read_rain_series(in, label, config.series,
-                               [&](const RainSeries& so_far) { feed.publish(so_far); });
+      whole = rain_file.read([&](std::istream& in, const std::string& label) {
+        return read_rain_series(in, label, config.series,
+                                [&](const RainSeries& so_far) { feed.publish(so_far); });
+      });
       feed.finish(*whole);
     } catch (const RainFeed::Cancelled&) {
     } catch (...) {

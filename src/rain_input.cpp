@@ -23,12 +23,16 @@ namespace gutterwatt {
 namespace {
 
 constexpr std::size_t kChunkBytes = std::size_t{1} << 20;
+// Longest line a rain file may have: a record's rows are a few dozen bytes, and a file without
+// line ends (binary data, a file saved with CR only) must not grow the buffer without bound.
+constexpr std::size_t kMaxLineBytes = std::size_t{64} << 10;
 constexpr std::size_t kMaxGapWarnings = 20;
 constexpr std::size_t kMaxQuotedChars = 40;
 constexpr std::string_view kByteOrderMark = "\xEF\xBB\xBF";
 
 // Hands out the lines of a stream, reading it in large chunks into one reused buffer. A line
-// stays valid until the next call. Line ends (LF or CRLF) are removed.
+// stays valid until the next call. Line ends (LF or CRLF) are removed. A line longer than
+// kMaxLineBytes ends the reading, with too_long() set.
 class LineReader {
  public:
   explicit LineReader(std::istream& in) : in_(in), buffer_(kChunkBytes) {}
@@ -37,8 +41,14 @@ class LineReader {
     for (;;) {
       const char* const first = buffer_.data() + begin_;
       const void* newline = std::memchr(first, '\n', end_ - begin_);
+      const std::size_t length =
+          newline != nullptr ? static_cast<std::size_t>(static_cast<const char*>(newline) - first)
+                             : end_ - begin_;
+      if (length > kMaxLineBytes) {
+        too_long_ = true;
+        return false;
+      }
       if (newline != nullptr) {
-        const auto length = static_cast<std::size_t>(static_cast<const char*>(newline) - first);
         line = std::string_view(first, length);
         begin_ += length + 1;
         drop_carriage_return(line);
@@ -56,6 +66,7 @@ class LineReader {
   }
 
   bool failed() const { return in_.bad(); }
+  bool too_long() const { return too_long_; }
 
  private:
   static void drop_carriage_return(std::string_view& line) {
@@ -67,7 +78,6 @@ class LineReader {
     if (begin_ > 0) std::memmove(buffer_.data(), buffer_.data() + begin_, kept);
     begin_ = 0;
     end_ = kept;
-    if (end_ == buffer_.size()) buffer_.resize(buffer_.size() * 2);  // one very long line
     in_.read(buffer_.data() + end_, static_cast<std::streamsize>(buffer_.size() - end_));
     const auto got = static_cast<std::size_t>(in_.gcount());
     end_ += got;
@@ -79,6 +89,7 @@ class LineReader {
   std::size_t begin_ = 0;
   std::size_t end_ = 0;
   bool at_end_ = false;
+  bool too_long_ = false;
 };
 
 bool is_blank(char c) { return c == ' ' || c == '\t'; }
@@ -456,6 +467,12 @@ void scan_rows(std::istream& in, const std::string& file_label,
   if (reader.failed()) {
     throw InputError(file_label, line_number, "",
                      "the file could not be read past this line (an input/output error)");
+  }
+  if (reader.too_long()) {
+    throw InputError(file_label, line_number + 1, "",
+                     "a line longer than " + std::to_string(kMaxLineBytes >> 10) +
+                         " KiB; a rain record's lines are short (binary data, or line ends "
+                         "other than LF or CRLF?)");
   }
   if (header_line == 0) {
     std::string names;

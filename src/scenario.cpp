@@ -159,6 +159,10 @@ class Value {
   /// The elements of a list, each with its own path (`key[2]`) and line.
   std::vector<Value> items() const {
     if (!node_.IsSequence()) fail("expected a list, got " + got());
+    if (node_.size() > kMaxScenarioListItems) {
+      fail("a list of " + std::to_string(node_.size()) + " items; a scenario list holds at most " +
+           std::to_string(kMaxScenarioListItems));
+    }
     std::vector<Value> out;
     for (std::size_t i = 0; i < node_.size(); ++i) {
       const YAML::Node item = node_[i];
@@ -1014,10 +1018,17 @@ std::string read_scenario_text(const std::filesystem::path& file) {
                      std::string("the scenario file cannot be opened (") +
                          (errno ? std::strerror(errno) : "unknown reason") + ")");
   }
-  std::ostringstream text;
-  text << in.rdbuf();
+  std::string text(kMaxScenarioBytes + 1, '\0');
+  in.read(text.data(), static_cast<std::streamsize>(text.size()));
   if (in.bad()) throw InputError(label, 0, "", "the scenario file could not be read");
-  return text.str();
+  text.resize(static_cast<std::size_t>(in.gcount()));
+  if (text.size() > kMaxScenarioBytes) {
+    const auto line = 1 + std::count(text.begin(), text.end() - 1, '\n');
+    throw InputError(label, static_cast<int>(line), "",
+                     "the scenario passes " + std::to_string(kMaxScenarioBytes / 1024) +
+                         " KiB on this line; a scenario is a page of keys (is this a data file?)");
+  }
+  return text;
 }
 
 void check_scenario_key(const std::string& key, const std::string& label) {

@@ -254,11 +254,13 @@ TEST(RainInput, ReadsAFileFixture) {
   expect_span(rain.covered[0], kT0, kT0 + 20 * kMinute);
 }
 
-TEST(RainInput, ReadsLinesLongerThanTheReadChunk) {
-  const std::string filler(3 << 20, 'x');
-  const RainSeries rain =
-      read("time,rain_mm,note\n2025-03-01T00:05,0.5," + filler + "\n2025-03-01T00:10,0.5,\n");
-  EXPECT_EQ(rain.pulses.size(), 2u);
+TEST(RainInput, ReadsLongLinesAcrossTheReadChunks) {
+  // 40 rows of 60 KiB, just under the 64 KiB a line may have, over three 1 MiB read chunks.
+  const std::string filler(60 << 10, 'x');
+  std::string text = "time,rain_mm,note\n";
+  for (int i = 1; i <= 40; ++i) text += format_iso8601(kT0 + i * kMinute) + ",0.5," + filler + "\n";
+  const RainSeries rain = read(text);
+  EXPECT_EQ(rain.pulses.size(), 40u);
 }
 
 TEST(RainInput, ReadsManyRowsAcrossChunks) {

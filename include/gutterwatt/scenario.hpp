@@ -75,6 +75,14 @@ struct Scenario {
 /// The plant's part of the scenario, for Plant.
 PlantConfig plant_config(const Scenario& scenario);
 
+/// Largest scenario file read: a scenario is a page of keys, and a file past this (a data file
+/// given as the scenario, a runaway list) would take seconds and a lot of memory to parse
+/// (a project choice, no source).
+inline constexpr std::size_t kMaxScenarioBytes = 256 * 1024;
+
+/// Most items in one list of a scenario (rain files, a level-area table, a load profile).
+inline constexpr std::size_t kMaxScenarioListItems = 10000;
+
 /// Loads `file`, applies `overrides` (each `key.path=value`, in order), checks and converts.
 /// Throws InputError naming the file, the line and the key (and the nearest valid key for an
 /// unknown one); an override's error names `--set` instead of a file.
@@ -87,7 +95,8 @@ Scenario load_scenario(const std::filesystem::path& file,
                        const std::vector<std::string>& overrides = {});
 
 /// The text of a scenario file. Throws InputError naming the file when it does not exist, is a
-/// folder, cannot be opened (with the system's reason) or fails part way.
+/// folder, cannot be opened (with the system's reason), fails part way, or is longer than
+/// kMaxScenarioBytes (naming the line where it passes the limit).
 std::string read_scenario_text(const std::filesystem::path& file);
 
 /// As load_scenario, from text already read: `file_label` is used in messages and relative rain

@@ -52,6 +52,15 @@ extern "C" void on_signal(int sig) {
   }
 }
 
+// A scenario is parsed in one piece (at most about a second at kMaxScenarioBytes): a signal
+// that came meanwhile stops the command as soon as it is loaded.
+Scenario load_scenario_unless_stopped(const std::string& file,
+                                      const std::vector<std::string>& overrides) {
+  Scenario sc = load_scenario(file, overrides);
+  if (g_stop.load()) throw Interrupted();
+  return sc;
+}
+
 // A UTF-8 sequence starting at text[i]: its length, or 0 when the bytes are not one.
 std::size_t utf8_length(std::string_view text, std::size_t i) {
   const auto byte = [&](std::size_t k) { return static_cast<unsigned char>(text[k]); };
@@ -174,7 +183,7 @@ std::vector<std::string> overrides_of(const RunArgs& a) {
 }
 
 int run_command(const RunArgs& args) {
-  const Scenario sc = load_scenario(args.scenario, overrides_of(args));
+  const Scenario sc = load_scenario_unless_stopped(args.scenario, overrides_of(args));
   const fs::path dir =
       args.out.empty() ? fs::path("out") / fs::path(args.scenario).stem() : fs::path(args.out);
   // A long record is simulated while it is read; the output folder is made once the record
@@ -184,18 +193,21 @@ int run_command(const RunArgs& args) {
   std::optional<EventsWriter> events;
   SummaryBuilder summary(sc);
   RunResult result;
-  const RainSeries rain = load_rain_while(sc.rain, args.rain, [&](RainView& view) {
-    folder.emplace(dir);
-    timeseries.emplace(folder->open("timeseries.csv"), sc);
-    events.emplace(folder->open("events.csv"), sc);
-    ObserverList observers;
-    observers.add(*timeseries);
-    observers.add(*events);
-    observers.add(summary);
-    RunOptions options;
-    options.stop = &g_stop;
-    result = simulate(sc, view, observers, options);
-  });
+  const RainSeries rain = load_rain_while(
+      sc.rain, args.rain,
+      [&](RainView& view) {
+        folder.emplace(dir);
+        timeseries.emplace(folder->open("timeseries.csv"), sc);
+        events.emplace(folder->open("events.csv"), sc);
+        ObserverList observers;
+        observers.add(*timeseries);
+        observers.add(*events);
+        observers.add(summary);
+        RunOptions options;
+        options.stop = &g_stop;
+        result = simulate(sc, view, observers, options);
+      },
+      &g_stop);
   for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
   for (const std::string& w :
        coverage_warnings(month_coverage(rain, result.start, result.end, sc.site.utc_offset_s))) {
@@ -219,10 +231,10 @@ struct CheckArgs {
 };
 
 int check_command(const CheckArgs& args) {
-  const Scenario sc = load_scenario(args.scenario, args.set);
+  const Scenario sc = load_scenario_unless_stopped(args.scenario, args.set);
   std::optional<RainSeries> rain;
   if (!args.no_rain) {
-    rain = load_rain(sc.rain, args.rain);
+    rain = load_rain(sc.rain, args.rain, &g_stop);
     for (const std::string& w : rain->warnings) spdlog::warn("{}", w);
   }
   write_design(std::cout, sc, evaluate_design(sc, rain ? &*rain : nullptr));

@@ -62,7 +62,8 @@ int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop) {
   const SweepPlan plan =
       plan_sweep(read_scenario_text(args.scenario), args.scenario,
                  fs::path(args.scenario).parent_path(), args.vary, args.set, args.rank);
-  const RainSeries rain = load_rain(plan.base.rain);
+  if (stop.load()) throw Interrupted();  // a signal while the scenario was parsed
+  const RainSeries rain = load_rain(plan.base.rain, {}, &stop);
   for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
 
   SweepOptions options;
