@@ -1,5 +1,6 @@
 #pragma once
 // Small helpers the library and the command line share, written once: whitespace trimming,
+// plain comma-separated fields and data lines,
 // floor division, whole-text number parsing, fixed-point text, whole seconds of the calendar and
 // the exit statuses. Internal (not installed, not public API); tests in tests/detail_test.cpp.
 
@@ -7,11 +8,13 @@
 #include <cmath>
 #include <cstdint>
 #include <cstdio>
+#include <istream>
 #include <limits>
 #include <optional>
 #include <string>
 #include <string_view>
 #include <system_error>
+#include <vector>
 
 namespace gutterwatt::detail {
 
@@ -77,6 +80,32 @@ inline std::string fixed_trimmed(double v, int decimals) {
     if (out.back() == '.') out.pop_back();
   }
   return out == "-0" ? "0" : out;
+}
+
+/// The comma-separated fields of `line`, each trimmed (no quoting).
+inline std::vector<std::string_view> split_fields(std::string_view line) {
+  std::vector<std::string_view> fields;
+  for (;;) {
+    const std::size_t comma = line.find(',');
+    fields.push_back(trim(line.substr(0, comma), " \t\r"));
+    if (comma == std::string_view::npos) return fields;
+    line.remove_prefix(comma + 1);
+  }
+}
+
+/// Reads lines from `in` up to the next one that holds data, skipping blank lines and `#`
+/// comments and a UTF-8 byte-order mark on line 1. Sets `text` to that line, trimmed (it views
+/// `buffer`), counts lines in `line_number`; false at the end of the input.
+inline bool next_data_line(std::istream& in, std::string& buffer, int& line_number,
+                           std::string_view& text) {
+  while (std::getline(in, buffer)) {
+    ++line_number;
+    text = buffer;
+    if (line_number == 1 && text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
+    text = trim(text, " \t\r");
+    if (!text.empty() && text.front() != '#') return true;
+  }
+  return false;
 }
 
 }  // namespace gutterwatt::detail

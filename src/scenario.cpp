@@ -503,6 +503,8 @@ const std::vector<Section>& schema() {
               s.release.priming_flow_m3_per_s =
                   v.number(kPositive) * kCubicMetresPerLitre / kSecondsPerMinute;
             }},
+           {"priming_flow_measured_by", kOptional,
+            [](V v, S s) { s.release.priming_flow_measured_by = v.text(); }},
            {"lip_coefficient", kOptional,
             [](V v, S s) { s.release.lip_coefficient = v.number(kPositive); }},
            {"mouth_coefficient", kOptional,

@@ -210,19 +210,6 @@ void write_synth_csv(std::ostream& out, const PrpParameters& parameters, const S
 
 namespace {
 
-// Blanks and a carriage return (a CRLF file) around a field.
-constexpr std::string_view kBlanks = " \t\r";
-
-std::vector<std::string_view> split(std::string_view line) {
-  std::vector<std::string_view> fields;
-  for (;;) {
-    const std::size_t comma = line.find(',');
-    fields.push_back(detail::trim(line.substr(0, comma), kBlanks));
-    if (comma == std::string_view::npos) return fields;
-    line.remove_prefix(comma + 1);
-  }
-}
-
 const std::vector<std::string> kModelColumns = {"month", "cells_per_day", "mean_duration_h",
                                                 "mean_intensity_mm_per_h"};
 const std::vector<std::string> kStatisticsColumns = {"month", "mean_mm_per_day", "wet_day_fraction",
@@ -242,13 +229,9 @@ PrpParameters read_prp_parameters(std::istream& in, const std::string& file_labe
   std::vector<std::string> columns;
   std::array<int, 12> line_of_month{};
   PrpParameters parameters;
-  while (std::getline(in, line)) {
-    ++line_number;
-    std::string_view text = line;
-    if (line_number == 1 && text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
-    text = detail::trim(text, kBlanks);
-    if (text.empty() || text.front() == '#') continue;
-    const std::vector<std::string_view> fields = split(text);
+  std::string_view text;
+  while (detail::next_data_line(in, line, line_number, text)) {
+    const std::vector<std::string_view> fields = detail::split_fields(text);
     if (columns.empty()) {
       const std::vector<std::string> names(fields.begin(), fields.end());
       if (names != kModelColumns && names != kStatisticsColumns) {

@@ -5,7 +5,9 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <sstream>
 #include <string>
+#include <vector>
 
 namespace gutterwatt::detail {
 namespace {
@@ -51,6 +53,29 @@ TEST(FixedTrimmed, DropsTrailingZerosAndABarePoint) {
   EXPECT_EQ(fixed_trimmed(40.0, 2), "40");
   EXPECT_EQ(fixed_trimmed(-0.0001, 3), "0");
   EXPECT_EQ(fixed_trimmed(100.0, 0), "100");
+}
+
+TEST(Detail, SplitsPlainFieldsTrimmed) {
+  const std::vector<std::string_view> f = split_fields(" a ,b,\t,c\r");
+  ASSERT_EQ(f.size(), 4u);
+  EXPECT_EQ(f[0], "a");
+  EXPECT_EQ(f[1], "b");
+  EXPECT_EQ(f[2], "");
+  EXPECT_EQ(f[3], "c");
+}
+
+TEST(Detail, SkipsCommentsBlankLinesAndAByteOrderMark) {
+  std::istringstream in("\xEF\xBB\xBF# note\n\n  x,y \r\n# more\nz\n");
+  std::string buffer;
+  int line = 0;
+  std::string_view text;
+  ASSERT_TRUE(next_data_line(in, buffer, line, text));
+  EXPECT_EQ(text, "x,y");
+  EXPECT_EQ(line, 3);
+  ASSERT_TRUE(next_data_line(in, buffer, line, text));
+  EXPECT_EQ(text, "z");
+  EXPECT_EQ(line, 5);
+  EXPECT_FALSE(next_data_line(in, buffer, line, text));
 }
 
 }  // namespace

@@ -10,6 +10,7 @@
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/rain_input.hpp"
 #include "gutterwatt/units.hpp"
+#include "test_support.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -221,12 +222,7 @@ PrpParameters read(const std::string& text) {
 }
 
 std::string error_of(const std::string& text) {
-  try {
-    read(text);
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  return "no error";
+  return test_support::input_error_of([&] { read(text); });
 }
 
 TEST(SynthParameters, ReadsTheModelsParameters) {

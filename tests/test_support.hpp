@@ -4,9 +4,11 @@
 
 #include <algorithm>
 #include <cmath>
+#include <string>
 #include <vector>
 
 #include "gutterwatt/calendar.hpp"
+#include "gutterwatt/error.hpp"
 #include "gutterwatt/rain_input.hpp"
 #include "gutterwatt/scenario.hpp"
 #include "gutterwatt/simulation.hpp"
@@ -134,6 +136,17 @@ class RecordingObserver : public Observer {
   std::vector<Sample> samples;
   std::vector<Episode> episodes;
 };
+
+/// The whole message of the InputError that `f()` throws, or "no error".
+template <class F>
+std::string input_error_of(F f) {
+  try {
+    f();
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "no error";
+}
 
 /// Composite Simpson rule of `f` over [a, b] with `n` (made even) intervals.
 template <class F>

@@ -3,6 +3,7 @@
 /// state machine over the reservoir level; the simulation locates its switches as events.
 
 #include <memory>
+#include <string>
 #include <string_view>
 
 namespace gutterwatt {
@@ -15,9 +16,10 @@ struct ReleaseConfig {
   double break_level_m = 0.0;    ///< bell: bell rim; float_valve: closing level
   double standpipe_diameter_m = 0.0;
   double priming_flow_m3_per_s = 0.0;
-  double lip_coefficient = 1.77;    ///< weir C over the standpipe lip, m^0.5/s
-  double mouth_coefficient = 0.61;  ///< orifice Cd of the standpipe mouth once drowned
-  double orifice_diameter_m = 0.0;  ///< float_valve and orifice
+  std::string priming_flow_measured_by;  ///< bell: the log or test it comes from; empty: a guess
+  double lip_coefficient = 1.77;         ///< weir C over the standpipe lip, m^0.5/s
+  double mouth_coefficient = 0.61;       ///< orifice Cd of the standpipe mouth once drowned
+  double orifice_diameter_m = 0.0;       ///< float_valve and orifice
   double orifice_coefficient = 0.61;
 };
 

@@ -17,6 +17,7 @@
 #include <vector>
 
 #include "../detail.hpp"
+#include "fit_command.hpp"
 #include "gutterwatt/calendar.hpp"
 #include "gutterwatt/design.hpp"
 #include "gutterwatt/error.hpp"
@@ -29,6 +30,7 @@
 #include "gutterwatt/storm.hpp"
 #include "gutterwatt/synth.hpp"
 #include "gutterwatt/units.hpp"
+#include "output_file.hpp"
 #include "sweep_command.hpp"
 
 namespace fs = std::filesystem;
@@ -135,33 +137,6 @@ std::string describe(const CLI::ParseError& e, CLI::App& app, int argc, char** a
   }
   return one_line("unknown command \"" + first + "\"; expected " + names +
                   " (see gutterwatt --help)");
-}
-
-// The file --out names is replaced by renaming a finished temporary file onto it: refuse a
-// folder, and a device or pipe, which the rename would replace instead of writing to.
-void check_output_file(const fs::path& file) {
-  std::error_code ec;
-  const fs::file_status status = fs::status(file, ec);
-  if (fs::exists(status) && !fs::is_regular_file(status)) {
-    throw InputError(
-        file.string(), 0, "--out",
-        std::string(fs::is_directory(status) ? "is a folder" : "is not a regular file") +
-            "; give the name of a file to write");
-  }
-}
-
-// Writes one CSV to standard output (`out` empty or "-") or, whole or not at all, to the file
-// `out` names.
-void write_csv_to(const std::string& out, const std::function<void(std::ostream&)>& write) {
-  if (out.empty() || out == "-") {
-    write(std::cout);
-    return;
-  }
-  const fs::path file(out);
-  check_output_file(file);
-  OutputFolder folder(file.parent_path().empty() ? fs::path(".") : file.parent_path());
-  write(folder.open(file.filename().string()));
-  folder.commit();
 }
 
 struct RunArgs {
@@ -396,6 +371,13 @@ int main(int argc, char** argv) {
   synth_cmd->add_option("--utc-offset", synth.utc_offset, "local time of months and stamps");
   synth_cmd->add_option("--out", synth.out, "file to write (default: standard output)");
 
+  FitArgs fit;
+  auto* fit_cmd = app.add_subcommand(
+      "fit", "fit the priming flow, running loss and nozzle coefficient to a bench log");
+  fit_cmd->add_option("scenario", fit.scenario, "scenario file (YAML)")->required();
+  fit_cmd->add_option("--bench", fit.bench, "bench log (CSV; see README, \"The bench test\")");
+  fit_cmd->add_option("--out", fit.out, "write the fitted scenario to this file");
+
   try {
     app.parse(argc, argv);
   } catch (const CLI::CallForHelp& e) {
@@ -420,6 +402,7 @@ int main(int argc, char** argv) {
     }
     if (*storm_cmd) return storm_command(storm);
     if (*synth_cmd) return synth_command(synth);
+    if (*fit_cmd) return fit_command(fit);
   } catch (const InputError& e) {
     spdlog::error("{}", describe(e));
     return kExitBadInput;

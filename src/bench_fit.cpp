@@ -1,0 +1,722 @@
+#include "gutterwatt/bench_fit.hpp"
+
+#include <Eigen/Dense>
+#include <algorithm>
+#include <atomic>
+#include <charconv>
+#include <cmath>
+#include <map>
+#include <string_view>
+
+#include "detail.hpp"
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/scenario_edit.hpp"
+#include "gutterwatt/simulation.hpp"
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+namespace {
+
+constexpr double kPerMinute_m3_per_s = kCubicMetresPerLitre / kSecondsPerMinute;
+
+/// The columns a bench log may have, each with what one unit of it is in SI.
+struct Column {
+  std::string_view name;
+  double si_per_unit;
+};
+
+constexpr Column kColumns[] = {
+    {"inflow_L_per_min", kPerMinute_m3_per_s},
+    {"inflow_gpm", kLitresPerUsGallon* kPerMinute_m3_per_s},
+    {"fill_volume_L", kCubicMetresPerLitre},
+    {"fill_volume_gal", kLitresPerUsGallon* kCubicMetresPerLitre},
+    {"fill_time_s", 1.0},
+    {"outcome", 1.0},
+    {"time_to_prime_s", 1.0},
+    {"drain_time_s", 1.0},
+    {"cycle_period_s", 1.0},
+    {"nozzle_volume_L", kCubicMetresPerLitre},
+    {"nozzle_volume_gal", kLitresPerUsGallon* kCubicMetresPerLitre},
+    {"nozzle_time_s", 1.0},
+    {"note", 1.0},
+};
+
+std::string column_list() {
+  std::string out;
+  for (const Column& c : kColumns) out += (out.empty() ? "" : ", ") + std::string(c.name);
+  return out;
+}
+
+double si_per_unit(std::string_view name) {
+  for (const Column& c : kColumns) {
+    if (c.name == name) return c.si_per_unit;
+  }
+  return 1.0;
+}
+
+/// One data row of the log by column name, with the checks every cell shares.
+class Cells {
+ public:
+  Cells(const std::string& file, int line, const std::vector<std::string>& header,
+        const std::vector<std::string_view>& fields)
+      : file_(file), line_(line) {
+    for (std::size_t i = 0; i < header.size(); ++i) {
+      if (!fields[i].empty()) cells_.emplace(header[i], fields[i]);
+    }
+  }
+
+  bool has(const std::string& name) const { return cells_.count(name) > 0; }
+
+  [[noreturn]] void fail(const std::string& column, const std::string& message) const {
+    throw InputError(file_, line_, column, message);
+  }
+
+  /// The positive number in `name` in SI, or nullopt when the cell is empty or absent.
+  std::optional<double> positive(const std::string& name) const {
+    const auto it = cells_.find(name);
+    if (it == cells_.end()) return std::nullopt;
+    const std::string_view text = it->second;
+    double x = 0.0;
+    const auto result = std::from_chars(text.data(), text.data() + text.size(), x);
+    if (result.ec != std::errc() || result.ptr != text.data() + text.size() || !std::isfinite(x)) {
+      fail(name, "expected a number, got \"" + std::string(text) + "\"");
+    }
+    if (!(x > 0.0)) fail(name, "must be > 0 (got " + std::string(text) + ")");
+    return x * si_per_unit(name);
+  }
+
+  std::string_view text(const std::string& name) const {
+    const auto it = cells_.find(name);
+    return it == cells_.end() ? std::string_view{} : it->second;
+  }
+
+  /// The one quantity given by whichever of `forms` the row fills: fails when two are filled.
+  /// Returns the name of the form used, or empty.
+  std::string one_of(std::initializer_list<std::string> forms, const std::string& what) const {
+    std::string used;
+    for (const std::string& form : forms) {
+      if (!has(form)) continue;
+      if (!used.empty()) {
+        fail(form,
+             what + " is given twice on this row (" + used + " and " + form + "); give it once");
+      }
+      used = form;
+    }
+    return used;
+  }
+
+  /// A volume over the time it took, both required together.
+  std::optional<double> timed(const std::string& volume_column, const std::string& time_column,
+                              const std::string& container) const {
+    if (volume_column.empty()) {
+      if (has(time_column)) fail(time_column, "missing: the volume of " + container);
+      return std::nullopt;
+    }
+    if (!has(time_column)) fail(time_column, "missing: the time " + container + " took to fill");
+    return *positive(volume_column) / *positive(time_column);
+  }
+
+ private:
+  std::string file_;
+  int line_;
+  std::map<std::string, std::string_view> cells_;
+};
+
+std::vector<std::string> read_header(std::string_view text, const std::string& file, int line) {
+  std::vector<std::string> header;
+  for (std::string_view field : detail::split_fields(text)) {
+    const std::string name(field);
+    const bool known = std::any_of(std::begin(kColumns), std::end(kColumns),
+                                   [&](const Column& c) { return c.name == name; });
+    if (!known) {
+      throw InputError(file, line, name, "unknown column; expected any of " + column_list());
+    }
+    if (std::find(header.begin(), header.end(), name) != header.end()) {
+      throw InputError(file, line, name, "column given twice");
+    }
+    header.push_back(name);
+  }
+  const auto has = [&](std::string_view name) {
+    return std::find(header.begin(), header.end(), name) != header.end();
+  };
+  if (!has("outcome")) {
+    throw InputError(file, line, "outcome", "missing column (primed or dribbled, per row)");
+  }
+  if (!has("inflow_L_per_min") && !has("inflow_gpm") && !has("fill_volume_L") &&
+      !has("fill_volume_gal")) {
+    throw InputError(file, line, "inflow_L_per_min",
+                     "missing column: give the inflow as inflow_L_per_min, inflow_gpm, or "
+                     "fill_volume_L with fill_time_s");
+  }
+  const auto pair = [&](std::string_view a, std::string_view b, std::string_view time) {
+    if ((has(a) || has(b)) && !has(time)) {
+      throw InputError(
+          file, line, std::string(time),
+          "missing column: " + std::string(has(a) ? a : b) + " needs " + std::string(time));
+    }
+    if (has(time) && !has(a) && !has(b)) {
+      throw InputError(file, line, std::string(a),
+                       "missing column: " + std::string(time) + " needs " + std::string(a));
+    }
+  };
+  pair("fill_volume_L", "fill_volume_gal", "fill_time_s");
+  pair("nozzle_volume_L", "nozzle_volume_gal", "nozzle_time_s");
+  return header;
+}
+
+BenchRow read_row(const Cells& cells, int line) {
+  BenchRow row;
+  row.line = line;
+  const std::string_view outcome = cells.text("outcome");
+  if (outcome == "primed" || outcome == "dribbled") {
+    row.primed = outcome == "primed";
+  } else if (outcome.empty()) {
+    cells.fail("outcome", "missing: primed or dribbled");
+  } else {
+    cells.fail("outcome", "expected primed or dribbled, got \"" + std::string(outcome) + "\"");
+  }
+  const std::string inflow = cells.one_of(
+      {"inflow_L_per_min", "inflow_gpm", "fill_volume_L", "fill_volume_gal"}, "the inflow");
+  if (inflow.empty()) cells.fail("inflow_L_per_min", "missing: the inflow of this test");
+  row.inflow_m3_per_s = inflow.starts_with("fill_")
+                            ? *cells.timed(inflow, "fill_time_s", "the hose container")
+                            : *cells.positive(inflow);
+  if (!inflow.starts_with("fill_") && cells.has("fill_time_s")) {
+    cells.fail("fill_time_s", "the inflow is given twice on this row (" + inflow +
+                                  " and a timed container); give it once");
+  }
+  row.time_to_prime_s = cells.positive("time_to_prime_s");
+  row.drain_time_s = cells.positive("drain_time_s");
+  row.cycle_period_s = cells.positive("cycle_period_s");
+  const std::string nozzle =
+      cells.one_of({"nozzle_volume_L", "nozzle_volume_gal"}, "the nozzle volume");
+  row.nozzle_flow_m3_per_s = cells.timed(nozzle, "nozzle_time_s", "the nozzle container");
+  if (!row.primed) {
+    for (const char* column : {"time_to_prime_s", "drain_time_s", "cycle_period_s",
+                               "nozzle_volume_L", "nozzle_volume_gal", "nozzle_time_s"}) {
+      if (cells.has(column)) {
+        cells.fail(column, "a test that only dribbled has no cycle to time; leave it empty");
+      }
+    }
+  }
+  return row;
+}
+
+}  // namespace
+
+std::vector<BenchRow> read_bench_log(std::istream& in, const std::string& file_label) {
+  std::vector<BenchRow> rows;
+  std::vector<std::string> header;
+  std::string line;
+  int line_number = 0;
+  std::string_view text;
+  while (detail::next_data_line(in, line, line_number, text)) {
+    if (header.empty()) {
+      header = read_header(text, file_label, line_number);
+      continue;
+    }
+    const std::vector<std::string_view> fields = detail::split_fields(text);
+    if (fields.size() != header.size()) {
+      throw InputError(file_label, line_number, "",
+                       "expected " + std::to_string(header.size()) +
+                           " fields, one per column (got " + std::to_string(fields.size()) + ")");
+    }
+    rows.push_back(read_row(Cells(file_label, line_number, header, fields), line_number));
+  }
+  if (in.bad()) throw InputError(file_label, line_number, "", "the bench log could not be read");
+  if (header.empty()) throw InputError(file_label, 0, "", "the bench log has no header");
+  if (rows.empty()) throw InputError(file_label, line_number, "", "the bench log has no tests");
+  return rows;
+}
+
+namespace {
+
+/// Keeps the first siphon cycle and asks the run to stop once it has ended.
+class FirstCycle : public Observer {
+ public:
+  explicit FirstCycle(std::atomic<bool>& stop) : stop_(stop) {}
+  void on_episode(const Episode& e) override {
+    if (e.kind != EpisodeKind::cycle || cycle) return;
+    cycle = e;
+    stop_.store(true);
+  }
+  std::optional<Episode> cycle;
+
+ private:
+  std::atomic<bool>& stop_;
+};
+
+}  // namespace
+
+BenchPrediction simulate_bench(const Scenario& scenario, double inflow_m3_per_s, double limit_s) {
+  // The hose fills the reservoir directly: a roof of 1 m2 that passes all its rain at once, with
+  // no first flush, so the reservoir's inflow is the rain intensity times 1 m2.
+  Scenario bench = scenario;
+  bench.roof.area_m2 = 1.0;
+  bench.roof.runoff_coefficient = 1.0;
+  bench.roof.initial_loss_m = 0.0;
+  bench.roof.lag_s = 0.0;
+  bench.first_flush.volume_m3 = 0.0;
+  bench.reservoir.initial_level_m = scenario.release.break_level_m;
+  bench.battery.load_W = 0.0;
+  bench.battery.load_profile_W.clear();
+  bench.simulation.rtol = std::min(scenario.simulation.rtol, 1e-8);
+  const Instant end = static_cast<Instant>(std::ceil(limit_s));
+  bench.simulation.start = 0;
+  bench.simulation.end = end;
+  bench.simulation.output_interval_s = static_cast<double>(end);
+  RainSeries hose;
+  hose.covered.push_back({0, end});
+  hose.step_s = end;
+  hose.pulses.push_back({0, end, inflow_m3_per_s * static_cast<double>(end)});
+  hose.total_depth_m = hose.pulses.back().depth_m;
+
+  std::atomic<bool> stop{false};
+  FirstCycle first(stop);
+  RunOptions options;
+  options.stop = &stop;
+  try {
+    simulate(bench, hose, first, options);
+  } catch (const Interrupted&) {
+    // The first cycle has ended: the rest of the run is not needed.
+  }
+  BenchPrediction p;
+  if (first.cycle) {
+    const Episode& c = *first.cycle;
+    p.time_to_prime_s = c.start_s;
+    p.drain_time_s = c.end_s - c.start_s;
+    if (*p.drain_time_s > 0.0) p.nozzle_flow_m3_per_s = c.volume_m3 / *p.drain_time_s;
+  }
+  return p;
+}
+
+namespace {
+
+/// One measurement of the log: a row's inflow and one of its timed quantities.
+struct Measurement {
+  const BenchRow* row;
+  std::string quantity;
+  double value;
+};
+
+std::vector<Measurement> measurements(const std::vector<BenchRow>& rows) {
+  std::vector<Measurement> out;
+  for (const BenchRow& row : rows) {
+    if (row.time_to_prime_s) out.push_back({&row, "time_to_prime_s", *row.time_to_prime_s});
+    if (row.drain_time_s) out.push_back({&row, "drain_time_s", *row.drain_time_s});
+    if (row.cycle_period_s) out.push_back({&row, "cycle_period_s", *row.cycle_period_s});
+    if (row.nozzle_flow_m3_per_s) {
+      out.push_back({&row, "nozzle_flow_L_per_min", *row.nozzle_flow_m3_per_s});
+    }
+  }
+  return out;
+}
+
+/// The model's value of a measured quantity, or nullopt.
+std::optional<double> predicted(const BenchPrediction& p, const std::string& quantity) {
+  if (quantity == "time_to_prime_s") return p.time_to_prime_s;
+  if (quantity == "drain_time_s") return p.drain_time_s;
+  if (quantity == "cycle_period_s" && p.time_to_prime_s && p.drain_time_s) {
+    return *p.time_to_prime_s + *p.drain_time_s;
+  }
+  if (quantity == "nozzle_flow_L_per_min") return p.nozzle_flow_m3_per_s;
+  return std::nullopt;
+}
+
+/// Longest bench run simulated for a row: five times its longest measured time, at least 2 h.
+double limit_for(const BenchRow& row) {
+  double longest = 0.0;
+  for (const auto& t : {row.time_to_prime_s, row.drain_time_s, row.cycle_period_s}) {
+    if (t) longest = std::max(longest, *t);
+  }
+  return std::max(2.0 * kSecondsPerHour, 5.0 * longest);
+}
+
+/// The fitted parameters in a fixed order.
+enum Parameter { kLoss = 0, kDischarge = 1 };
+
+const char* parameter_key(int p) {
+  return p == kLoss ? "drop_pipe.minor_loss_k" : "nozzle.discharge_coefficient";
+}
+
+/// Evaluates the model for a choice of parameter values: one bench run per row, the relative
+/// residual of every measurement; nullopt when the model misses a measured quantity.
+class BenchModel {
+ public:
+  BenchModel(Scenario base, const std::vector<Measurement>& data)
+      : base_(std::move(base)), data_(data) {}
+
+  Scenario with(const Eigen::VectorXd& theta, const std::vector<int>& params) const {
+    Scenario s = base_;
+    for (std::size_t j = 0; j < params.size(); ++j) {
+      if (params[j] == kLoss) s.drop_pipe.minor_loss_k = theta[static_cast<Eigen::Index>(j)];
+      if (params[j] == kDischarge)
+        s.nozzle.discharge_coefficient = theta[static_cast<Eigen::Index>(j)];
+    }
+    return s;
+  }
+
+  /// Model values, one per measurement (NaN where the model has none).
+  std::vector<double> values(const Scenario& s) const {
+    std::map<const BenchRow*, BenchPrediction> runs;
+    std::vector<double> out;
+    for (const Measurement& m : data_) {
+      auto it = runs.find(m.row);
+      if (it == runs.end()) {
+        it =
+            runs.emplace(m.row, simulate_bench(s, m.row->inflow_m3_per_s, limit_for(*m.row))).first;
+      }
+      const auto v = predicted(it->second, m.quantity);
+      out.push_back(v ? *v : std::nan(""));
+    }
+    return out;
+  }
+
+  std::optional<Eigen::VectorXd> residuals(const Eigen::VectorXd& theta,
+                                           const std::vector<int>& params) const {
+    const std::vector<double> v = values(with(theta, params));
+    Eigen::VectorXd r(static_cast<Eigen::Index>(v.size()));
+    for (std::size_t i = 0; i < v.size(); ++i) {
+      if (std::isnan(v[i])) return std::nullopt;
+      r[static_cast<Eigen::Index>(i)] = (v[i] - data_[i].value) / data_[i].value;
+    }
+    return r;
+  }
+
+ private:
+  Scenario base_;
+  const std::vector<Measurement>& data_;
+};
+
+/// The bounds of each parameter: K >= 0; 0 < Cd <= Cv.
+double clamp_parameter(int p, double x, const Scenario& s) {
+  if (p == kLoss) return std::max(0.0, x);
+  return std::clamp(x, 1e-3, s.nozzle.velocity_coefficient);
+}
+
+/// Forward-difference Jacobian of the residuals; a step that would leave the bounds is taken
+/// backwards instead. nullopt when a stepped model misses a quantity.
+std::optional<Eigen::MatrixXd> jacobian(const BenchModel& model, const Eigen::VectorXd& theta,
+                                        const Eigen::VectorXd& r, const std::vector<int>& params,
+                                        const Scenario& s) {
+  Eigen::MatrixXd J(r.size(), theta.size());
+  for (Eigen::Index j = 0; j < theta.size(); ++j) {
+    const int p = params[static_cast<std::size_t>(j)];
+    double h = 1e-4 * std::max(std::abs(theta[j]), 0.1);
+    if (clamp_parameter(p, theta[j] + h, s) != theta[j] + h) h = -h;
+    Eigen::VectorXd stepped = theta;
+    stepped[j] += h;
+    const auto rj = model.residuals(stepped, params);
+    if (!rj) return std::nullopt;
+    J.col(j) = (*rj - r) / h;
+  }
+  return J;
+}
+
+std::string litres_per_minute(double flow_m3_per_s) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.3g L/min", flow_m3_per_s / kPerMinute_m3_per_s);
+  return buf;
+}
+
+std::string show(double x) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.4g", x);
+  return buf;
+}
+
+/// The priming flow from the bracket; a warning and the value as it was where there is none.
+void fit_priming(const std::vector<BenchRow>& rows, BenchFit& fit) {
+  for (const BenchRow& row : rows) {
+    auto& bound = row.primed ? fit.primed_min_m3_per_s : fit.dribbled_max_m3_per_s;
+    const double q = row.inflow_m3_per_s;
+    if (!bound || (row.primed ? q < *bound : q > *bound)) bound = q;
+  }
+  const std::string kept =
+      "; release.priming_flow_L_per_min left at " + litres_per_minute(fit.priming_flow.before);
+  const auto& lo = fit.dribbled_max_m3_per_s;
+  const auto& hi = fit.primed_min_m3_per_s;
+  if (!lo) {
+    fit.warnings.push_back(
+        "every test primed: the priming flow is below the smallest inflow tried, " +
+        litres_per_minute(*hi) + ", but the log does not say how far" + kept +
+        " (add tests at smaller inflows until one only dribbles)");
+    return;
+  }
+  if (!hi) {
+    fit.warnings.push_back("no test primed: the priming flow is above the largest inflow tried, " +
+                           litres_per_minute(*lo) + kept +
+                           " (add tests at larger inflows until one primes)");
+    return;
+  }
+  if (*lo >= *hi) {
+    fit.warnings.push_back("the log contradicts itself: a test dribbled at " +
+                           litres_per_minute(*lo) + " but another primed at " +
+                           litres_per_minute(*hi) +
+                           " (did the build change, or did a test stop too early?)" + kept);
+    return;
+  }
+  fit.priming_flow.value = 0.5 * (*lo + *hi);
+  // The midpoint of a bracket with nothing known inside it: a rectangular distribution, whose
+  // standard uncertainty is the half-width over sqrt(3) (JCGM 100:2008, GUM, 4.3.7).
+  fit.priming_flow.sigma = 0.5 * (*hi - *lo) / std::sqrt(3.0);
+  fit.priming_flow.fitted = true;
+}
+
+}  // namespace
+
+BenchFit fit_bench(const Scenario& scenario, const std::vector<BenchRow>& rows,
+                   const std::string& log_label) {
+  if (scenario.release.kind != ReleaseKind::bell) {
+    throw InputError(scenario.file.string(), 0, "release.kind",
+                     "a bench log fits a bell siphon; this scenario's release is not one");
+  }
+  if (rows.empty()) throw InputError(log_label, 0, "", "the bench log has no tests");
+  BenchFit fit;
+  fit.priming_flow = {"release.priming_flow_L_per_min", scenario.release.priming_flow_m3_per_s,
+                      scenario.release.priming_flow_m3_per_s, std::nullopt, false};
+  fit.minor_loss_k = {parameter_key(kLoss), scenario.drop_pipe.minor_loss_k,
+                      scenario.drop_pipe.minor_loss_k, std::nullopt, false};
+  fit.discharge_coefficient = {parameter_key(kDischarge), scenario.nozzle.discharge_coefficient,
+                               scenario.nozzle.discharge_coefficient, std::nullopt, false};
+  fit_priming(rows, fit);
+
+  Scenario base = scenario;
+  base.release.priming_flow_m3_per_s = fit.priming_flow.value;
+  std::vector<Measurement> data = measurements(rows);
+  // Rows the model at the starting values cannot reproduce at all are left out, with a warning.
+  {
+    const std::vector<double> v = BenchModel(base, data).values(base);
+    std::vector<Measurement> kept;
+    for (std::size_t i = 0; i < data.size(); ++i) {
+      if (!std::isnan(v[i])) {
+        kept.push_back(data[i]);
+        continue;
+      }
+      fit.warnings.push_back("line " + std::to_string(data[i].row->line) + ": the model gives no " +
+                             data[i].quantity + " at " +
+                             litres_per_minute(data[i].row->inflow_m3_per_s) +
+                             " (it does not prime, or does not break, there); left out of the fit");
+    }
+    data = kept;
+  }
+  const BenchModel model(base, data);
+  const std::string no_times =
+      "no test carries a drain time, a cycle period or a nozzle container, so the log cannot "
+      "determine ";
+
+  // Which values the data can determine: a parameter the residuals do not move, or one that
+  // moves them only as another does, is left as it was.
+  std::vector<int> params = {kLoss, kDischarge};
+  Eigen::VectorXd theta(2);
+  theta << base.drop_pipe.minor_loss_k, base.nozzle.discharge_coefficient;
+  auto r = model.residuals(theta, params);
+  std::optional<Eigen::MatrixXd> J;
+  if (r && r->size() > 0) J = jacobian(model, theta, *r, params, base);
+  if (!J) {
+    fit.warnings.push_back(
+        no_times +
+        "drop_pipe.minor_loss_k or nozzle.discharge_coefficient; both left as they were");
+    return fit;
+  }
+  Eigen::VectorXd scaled(2);
+  for (Eigen::Index j = 0; j < 2; ++j)
+    scaled[j] = J->col(j).norm() * std::max(std::abs(theta[j]), 0.1);
+  const bool loss_moves = scaled[0] > 1e-6;
+  const bool nozzle_moves = scaled[1] > 1e-6;
+  const double cosine = loss_moves && nozzle_moves ? std::abs(J->col(0).dot(J->col(1))) /
+                                                         (J->col(0).norm() * J->col(1).norm())
+                                                   : 0.0;
+  std::vector<int> chosen;
+  if (loss_moves) chosen.push_back(kLoss);
+  if (nozzle_moves && cosine < 0.999) chosen.push_back(kDischarge);
+  if (!loss_moves) {
+    fit.warnings.push_back(no_times + "drop_pipe.minor_loss_k; left at " +
+                           show(fit.minor_loss_k.before));
+  }
+  if (nozzle_moves && cosine >= 0.999) {
+    fit.warnings.push_back(
+        "the times cannot tell the nozzle's discharge coefficient from the running loss (both "
+        "act as a loss on the square of the flow); fitted drop_pipe.minor_loss_k alone and left "
+        "nozzle.discharge_coefficient at " +
+        show(fit.discharge_coefficient.before));
+  } else if (!nozzle_moves) {
+    fit.warnings.push_back(
+        "nothing in the log depends on the nozzle's discharge coefficient (with a head "
+        "column the release does not see the nozzle); left at " +
+        show(fit.discharge_coefficient.before));
+  }
+  const auto record_residuals = [&](const Scenario& at) {
+    const std::vector<double> v = model.values(at);
+    double sum = 0.0;
+    for (std::size_t i = 0; i < data.size(); ++i) {
+      fit.residuals.push_back({data[i].row->line, data[i].quantity, data[i].value, v[i]});
+      sum += fit.residuals.back().relative() * fit.residuals.back().relative();
+    }
+    fit.rms_relative = std::sqrt(sum / static_cast<double>(data.size()));
+  };
+  if (chosen.empty()) {
+    record_residuals(base);
+    return fit;
+  }
+
+  // Levenberg-Marquardt (Marquardt 1963, J. SIAM 11(2), 431-441) on the chosen parameters,
+  // damping by the diagonal of J^T J, within the bounds.
+  params = chosen;
+  Eigen::VectorXd x(static_cast<Eigen::Index>(params.size()));
+  for (std::size_t j = 0; j < params.size(); ++j)
+    x[static_cast<Eigen::Index>(j)] = theta[params[j]];
+  r = model.residuals(x, params);
+  double cost = r->squaredNorm();
+  double lambda = 1e-3;
+  for (fit.iterations = 0; fit.iterations < 50; ++fit.iterations) {
+    const auto Jx = jacobian(model, x, *r, params, base);
+    if (!Jx) break;
+    const Eigen::MatrixXd A = Jx->transpose() * *Jx;
+    const Eigen::VectorXd g = Jx->transpose() * *r;
+    bool improved = false;
+    double step = 0.0;
+    while (lambda < 1e10) {
+      Eigen::MatrixXd damped = A;
+      damped.diagonal() += lambda * A.diagonal().cwiseMax(1e-12);
+      const Eigen::VectorXd delta = damped.ldlt().solve(-g);
+      Eigen::VectorXd trial = x + delta;
+      for (Eigen::Index j = 0; j < trial.size(); ++j) {
+        trial[j] = clamp_parameter(params[static_cast<std::size_t>(j)], trial[j], base);
+      }
+      const auto rt = model.residuals(trial, params);
+      if (rt && rt->squaredNorm() < cost) {
+        step = (trial - x).cwiseAbs().maxCoeff();
+        x = trial;
+        r = rt;
+        const double previous = cost;
+        cost = rt->squaredNorm();
+        lambda = std::max(lambda / 10.0, 1e-12);
+        improved = previous - cost > 1e-12 * (1.0 + previous);
+        break;
+      }
+      lambda *= 10.0;
+    }
+    if (!improved || step < 1e-9) break;
+  }
+
+  const Eigen::Index m = r->size();
+  const Eigen::Index p = x.size();
+  const auto Jfinal = jacobian(model, x, *r, params, base);
+  std::optional<Eigen::VectorXd> sigma;
+  if (m > p && Jfinal) {
+    const double s2 = cost / static_cast<double>(m - p);
+    const Eigen::MatrixXd cov = s2 * (Jfinal->transpose() * *Jfinal).inverse();
+    sigma = cov.diagonal().cwiseMax(0.0).cwiseSqrt();
+  } else {
+    fit.warnings.push_back("as many measurements as fitted values: no uncertainty can be given");
+  }
+  for (std::size_t j = 0; j < params.size(); ++j) {
+    FittedValue& v = params[j] == kLoss ? fit.minor_loss_k : fit.discharge_coefficient;
+    v.value = x[static_cast<Eigen::Index>(j)];
+    v.fitted = true;
+    if (sigma) v.sigma = (*sigma)[static_cast<Eigen::Index>(j)];
+  }
+  record_residuals(model.with(x, params));
+  return fit;
+}
+
+Scenario apply_fit(Scenario scenario, const BenchFit& fit) {
+  scenario.release.priming_flow_m3_per_s = fit.priming_flow.value;
+  scenario.drop_pipe.minor_loss_k = fit.minor_loss_k.value;
+  scenario.nozzle.discharge_coefficient = fit.discharge_coefficient.value;
+  return scenario;
+}
+
+namespace {
+
+/// `value` in the unit a person reads for `key`: L/min for the priming flow, as is otherwise.
+double shown(const FittedValue& v, double x) {
+  return v.key == "release.priming_flow_L_per_min" ? x / kPerMinute_m3_per_s : x;
+}
+
+/// `text` as a double-quoted YAML scalar.
+std::string yaml_quoted(const std::string& text) {
+  std::string out = "\"";
+  for (const char c : text) {
+    if (c == '"' || c == '\\') out += '\\';
+    out += c;
+  }
+  return out + "\"";
+}
+
+/// The text written into the scenario for a fitted value: four significant digits.
+std::string yaml_number(const FittedValue& v) { return show(shown(v, v.value)); }
+
+void write_value(std::ostream& out, const FittedValue& v) {
+  out << "  " << v.key << ": ";
+  if (!v.fitted) {
+    out << show(shown(v, v.value)) << " (kept: see the warnings)\n";
+    return;
+  }
+  out << show(shown(v, v.value));
+  if (v.sigma) {
+    char buf[32];
+    std::snprintf(buf, sizeof buf, "%.2g", shown(v, *v.sigma));
+    out << " +- " << buf;
+  }
+  out << " (was " << show(shown(v, v.before)) << ")\n";
+}
+
+}  // namespace
+
+void write_bench_fit(std::ostream& out, const BenchFit& fit) {
+  out << "Priming flow bracket\n";
+  out << "  largest inflow that only dribbled: "
+      << (fit.dribbled_max_m3_per_s ? litres_per_minute(*fit.dribbled_max_m3_per_s) : "none")
+      << "\n";
+  out << "  smallest inflow that primed:       "
+      << (fit.primed_min_m3_per_s ? litres_per_minute(*fit.primed_min_m3_per_s) : "none") << "\n";
+  out << "Fitted values (+- one standard uncertainty)\n";
+  write_value(out, fit.priming_flow);
+  write_value(out, fit.minor_loss_k);
+  write_value(out, fit.discharge_coefficient);
+  if (!fit.residuals.empty()) {
+    out << "Measurements against the fitted model\n";
+    char buf[160];
+    std::snprintf(buf, sizeof buf, "  %-6s %-22s %12s %12s %9s\n", "line", "quantity", "measured",
+                  "model", "residual");
+    out << buf;
+    for (const BenchResidual& r : fit.residuals) {
+      const bool flow = r.quantity == "nozzle_flow_L_per_min";
+      const double scale = flow ? 1.0 / kPerMinute_m3_per_s : 1.0;
+      std::snprintf(buf, sizeof buf, "  %-6d %-22s %12.4g %12.4g %8.1f%%\n", r.line,
+                    r.quantity.c_str(), r.measured * scale, r.model * scale, 100.0 * r.relative());
+      out << buf;
+    }
+    std::snprintf(buf, sizeof buf, "  root mean square of the residuals: %.1f%% (%d iterations)\n",
+                  100.0 * fit.rms_relative, fit.iterations);
+    out << buf;
+  }
+  if (!fit.warnings.empty()) {
+    out << "Warnings\n";
+    for (const std::string& w : fit.warnings) out << "  - " << w << "\n";
+  }
+  out << "As a build for release.builds:\n  - {name: NAME, priming_flow_L_per_min: "
+      << yaml_number(fit.priming_flow) << ", minor_loss_k: " << yaml_number(fit.minor_loss_k)
+      << ", nozzle_discharge_coefficient: " << yaml_number(fit.discharge_coefficient) << "}\n";
+}
+
+std::string fitted_scenario_text(std::string_view scenario_text, const BenchFit& fit,
+                                 const std::string& log_label, const std::string& scenario_label) {
+  std::string text(scenario_text);
+  std::string names;
+  for (const FittedValue* v : {&fit.priming_flow, &fit.minor_loss_k, &fit.discharge_coefficient}) {
+    if (!v->fitted) continue;
+    text = set_scenario_value(text, v->key, yaml_number(*v), scenario_label);
+    names += (names.empty() ? "" : ", ") + v->key;
+  }
+  if (fit.priming_flow.fitted) {
+    text = set_scenario_value(text, "release.priming_flow_measured_by", yaml_quoted(log_label),
+                              scenario_label);
+  }
+  return "# Fitted by gutterwatt fit to the bench log " + log_label + ": " +
+         (names.empty() ? "nothing could be fitted" : names) + ".\n" + text;
+}
+
+}  // namespace gutterwatt
