@@ -3,7 +3,6 @@
 #include <Eigen/Dense>
 #include <algorithm>
 #include <atomic>
-#include <charconv>
 #include <cmath>
 #include <map>
 #include <string_view>
@@ -76,13 +75,10 @@ class Cells {
     const auto it = cells_.find(name);
     if (it == cells_.end()) return std::nullopt;
     const std::string_view text = it->second;
-    double x = 0.0;
-    const auto result = std::from_chars(text.data(), text.data() + text.size(), x);
-    if (result.ec != std::errc() || result.ptr != text.data() + text.size() || !std::isfinite(x)) {
-      fail(name, "expected a number, got \"" + std::string(text) + "\"");
-    }
-    if (!(x > 0.0)) fail(name, "must be > 0 (got " + std::string(text) + ")");
-    return x * si_per_unit(name);
+    const std::optional<double> x = detail::to_number(text);
+    if (!x) fail(name, "expected a number, got \"" + std::string(text) + "\"");
+    if (!(*x > 0.0)) fail(name, "must be > 0 (got " + std::string(text) + ")");
+    return *x * si_per_unit(name);
   }
 
   std::string_view text(const std::string& name) const {
