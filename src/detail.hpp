@@ -108,4 +108,45 @@ inline bool next_data_line(std::istream& in, std::string& buffer, int& line_numb
   return false;
 }
 
+/// The length of the UTF-8 sequence starting at text[i] (1 for ASCII), or 0 when the bytes
+/// there are not one (a stray continuation byte, an overlong form, a surrogate, a cut sequence).
+inline std::size_t utf8_length(std::string_view text, std::size_t i) {
+  const auto byte = [&](std::size_t k) { return static_cast<unsigned char>(text[k]); };
+  const unsigned char lead = byte(i);
+  std::size_t n = 0;
+  unsigned char lo = 0x80;
+  unsigned char hi = 0xBF;
+  if (lead < 0x80) {
+    return 1;
+  } else if (lead >= 0xC2 && lead <= 0xDF) {
+    n = 2;
+  } else if (lead >= 0xE0 && lead <= 0xEF) {
+    n = 3;
+    if (lead == 0xE0) lo = 0xA0;
+    if (lead == 0xED) hi = 0x9F;
+  } else if (lead >= 0xF0 && lead <= 0xF4) {
+    n = 4;
+    if (lead == 0xF0) lo = 0x90;
+    if (lead == 0xF4) hi = 0x8F;
+  } else {
+    return 0;
+  }
+  if (i + n > text.size()) return 0;
+  for (std::size_t k = 1; k < n; ++k) {
+    const unsigned char c = byte(i + k);
+    if (c < (k == 1 ? lo : 0x80) || c > (k == 1 ? hi : 0xBF)) return 0;
+  }
+  return n;
+}
+
+/// Where the first byte of `text` that is not part of UTF-8 text lies, or nullopt.
+inline std::optional<std::size_t> first_non_utf8(std::string_view text) {
+  for (std::size_t i = 0; i < text.size();) {
+    const std::size_t n = utf8_length(text, i);
+    if (n == 0) return i;
+    i += n;
+  }
+  return std::nullopt;
+}
+
 }  // namespace gutterwatt::detail

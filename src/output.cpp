@@ -314,7 +314,8 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
   json years = json::array();
   for (const PeriodSummary& m : summary.years()) years.push_back(period_json(m, "year"));
   j["years"] = years;
-  out << j.dump(2) << '\n';
+  // File names and --set values may hold any bytes: those that are not UTF-8 are shown as U+FFFD.
+  out << j.dump(2, ' ', false, decltype(j)::error_handler_t::replace) << '\n';
 }
 
 void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries& rain,

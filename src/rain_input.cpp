@@ -206,15 +206,20 @@ class ExactSum {
 };
 
 // The index of each wanted column in a header line, found by name; `count` is set to the number
-// of columns the header names.
+// of columns the header names, and `unnamed` to the indexes of the columns without a name.
 std::vector<std::size_t> find_columns(std::string_view line, int line_number,
                                       const std::string& file_label,
-                                      const std::vector<std::string>& wanted, std::size_t& count) {
+                                      const std::vector<std::string>& wanted, std::size_t& count,
+                                      std::vector<std::size_t>& unnamed) {
   std::vector<std::string> names;
   std::string_view rest = line;
   bool more = true;
   while (more) names.push_back(unescape_quotes(next_field(rest, more)));
   count = names.size();
+  unnamed.clear();
+  for (std::size_t i = 0; i < names.size(); ++i) {
+    if (trim(names[i]).empty()) unnamed.push_back(i);
+  }
 
   const auto find_column = [&](const std::string& column) {
     std::size_t found = names.size();
@@ -243,12 +248,19 @@ std::vector<std::size_t> find_columns(std::string_view line, int line_number,
   return indexes;
 }
 
+bool is_digits(std::string_view text) {
+  return !text.empty() && text.find_first_not_of("0123456789") == std::string_view::npos;
+}
+
 // The fields of a row at `indexes` (header order of the wanted columns). Throws when the row is
 // too short, naming the first column it lacks, and when it has a value beyond the header's
-// `header_fields` columns (empty trailing fields are fine).
+// `header_fields` columns (empty trailing fields are fine). Throws too for a whole number in a
+// wanted column followed by digits in a column of the header without a name (`unnamed`): a
+// decimal comma ("1,5") that the spare column would otherwise hide.
 void take_fields(std::string_view line, int line_number, const std::string& file_label,
                  const std::vector<std::size_t>& indexes, const std::vector<std::string>& columns,
-                 std::size_t header_fields, std::vector<std::string_view>& fields) {
+                 std::size_t header_fields, const std::vector<std::size_t>& unnamed,
+                 std::vector<std::string_view>& fields) {
   const std::size_t last_index = indexes.size() == 2
                                      ? std::max(indexes[0], indexes[1])
                                      : *std::max_element(indexes.begin(), indexes.end());
@@ -256,16 +268,33 @@ void take_fields(std::string_view line, int line_number, const std::string& file
   std::string_view rest = line;
   bool more = true;
   std::size_t index = 0;
+  std::string_view previous;
+  const auto check_spare = [&](std::string_view field) {
+    if (unnamed.empty() || index == 0 || !is_digits(field) || !is_digits(previous)) return;
+    if (std::find(unnamed.begin(), unnamed.end(), index) == unnamed.end()) return;
+    for (std::size_t c = 0; c < indexes.size(); ++c) {
+      if (indexes[c] != index - 1) continue;
+      throw InputError(file_label, line_number, columns[c],
+                       quoted(previous) + " and then " + quoted(field) +
+                           " in the column without a name after it; a decimal comma (" +
+                           std::string(previous) + "," + std::string(field) +
+                           ")? write decimals with a point");
+    }
+  };
   for (; more && index <= last_index; ++index) {
     const std::string_view field = next_field(rest, more);
+    check_spare(field);
     for (std::size_t c = 0; c < indexes.size(); ++c) {
       if (indexes[c] == index) fields[c] = field;
     }
+    previous = field;
   }
   if (index > last_index) {
     // Most often a decimal comma ("0,2"), which would otherwise be read as its whole part.
     for (; more; ++index) {
       const std::string_view field = next_field(rest, more);
+      check_spare(field);
+      previous = field;
       if (index < header_fields || field.empty()) continue;
       throw InputError(file_label, line_number, "",
                        "the row has more fields than the " + std::to_string(header_fields) +
@@ -446,6 +475,7 @@ void scan_rows(std::istream& in, const std::string& file_label,
   int header_line = 0;
   std::vector<std::size_t> indexes;
   std::size_t header_fields = 0;
+  std::vector<std::size_t> unnamed;
   std::vector<std::string_view> fields;
   std::size_t rows = 0;
   while (reader.next(line)) {
@@ -456,11 +486,11 @@ void scan_rows(std::istream& in, const std::string& file_label,
     if (is_comment_or_blank(line)) continue;
     if (header_line == 0) {
       check_text(line, line_number, file_label);
-      indexes = find_columns(line, line_number, file_label, columns, header_fields);
+      indexes = find_columns(line, line_number, file_label, columns, header_fields, unnamed);
       header_line = line_number;
       continue;
     }
-    take_fields(line, line_number, file_label, indexes, columns, header_fields, fields);
+    take_fields(line, line_number, file_label, indexes, columns, header_fields, unnamed, fields);
     on_row(fields, line_number);
     ++rows;
   }

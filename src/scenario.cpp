@@ -1,5 +1,6 @@
 #include "gutterwatt/scenario.hpp"
 
+#include <yaml-cpp/depthguard.h>
 #include <yaml-cpp/yaml.h>
 
 #include <algorithm>
@@ -28,6 +29,15 @@ const std::string kOverrideLabel = "--set";
 /// Above a square kilometre a roof area is a unit mix-up, and much larger areas make the solver
 /// crawl (common practice, no source).
 constexpr double kMaxRoofArea_m2 = 1e6;
+
+/// Shortest roof lag other than 0 (no routing). Below it the runoff equation is so stiff that the
+/// solver makes no progress through a storm (0.01 s fails on the sweep test site); relax it once
+/// the solver takes stiff lags (#13).
+constexpr double kMinRoofLag_s = 1.0;
+
+/// Shortest reservoir. Below it the level answers a litre with metres and the solver makes no
+/// progress (1 mm fails on the sweep test site); relax it once the solver takes that (#13).
+constexpr double kMinReservoirLength_m = 0.1;
 
 /// Shortest text that reads back as `x` (40, 62.5, 1e-10).
 std::string show(double x) {
@@ -115,7 +125,20 @@ class Value {
     return *x;
   }
 
+  /// Text that is shown or written (a name, a column name): UTF-8, not empty.
   std::string text() const {
+    const std::string& s = path_text();
+    if (const auto at = detail::first_non_utf8(s)) {
+      char byte[8];
+      std::snprintf(byte, sizeof byte, "\\x%02X", static_cast<unsigned char>(s[*at]));
+      fail("not UTF-8 text (byte " + std::string(byte) + " after \"" + s.substr(0, *at) +
+           "\"); save the scenario as UTF-8");
+    }
+    return s;
+  }
+
+  /// A file name: any bytes the system takes, not empty.
+  std::string path_text() const {
     const std::string& s = scalar("a text");
     if (s.empty()) fail("must not be empty");
     return s;
@@ -179,9 +202,9 @@ class Value {
     return out;
   }
 
-  std::vector<std::string> texts() const {
+  std::vector<std::string> path_texts() const {
     std::vector<std::string> out;
-    for (const Value& item : items()) out.push_back(item.text());
+    for (const Value& item : items()) out.push_back(item.path_text());
     return out;
   }
 
@@ -243,6 +266,14 @@ Instant hours_as_seconds(const Value& v, const Limits& limits) {
 }
 
 std::string_view nearest(std::string_view name, const std::vector<std::string_view>& valid);
+
+/// A roof lag: 0 or at least kMinRoofLag_s.
+double roof_lag_s(const Value& v, double lag_s) {
+  v.expect(lag_s == 0.0 || lag_s >= kMinRoofLag_s,
+           "must be 0 (no routing) or at least " + show(kMinRoofLag_s) +
+               " s: a shorter lag makes the runoff equation too stiff for the solver");
+  return lag_s;
+}
 
 /// Fails on `item` when its key `name` is not one of `valid`, suggesting the nearest.
 void reject_unknown_key(const Value& item, const std::string& name,
@@ -377,10 +408,10 @@ const std::vector<Section>& schema() {
       {"rain",
        kRequired,
        {
-           {"file", kOptional, [](V v, S s) { s.rain.files = {v.text()}; }},
+           {"file", kOptional, [](V v, S s) { s.rain.files = {v.path_text()}; }},
            {"files", kOptional,
             [](V v, S s) {
-              const auto files = v.texts();
+              const auto files = v.path_texts();
               if (files.empty()) v.fail("must list at least one file");
               s.rain.files.assign(files.begin(), files.end());
             }},
@@ -436,8 +467,10 @@ const std::vector<Section>& schema() {
             [](V v, S s) {
               s.roof.drying_m_per_s = v.number(kNonNegative) * kMetresPerMm / kSecondsPerDay;
             }},
-           {"lag_s", kOptional, [](V v, S s) { s.roof.lag_s = v.number(kNonNegative); }},
-           {"lag", kOptional, [](V v, S s) { s.roof.lag_s = v.duration_s(kNonNegative); }},
+           {"lag_s", kOptional,
+            [](V v, S s) { s.roof.lag_s = roof_lag_s(v, v.number(kNonNegative)); }},
+           {"lag", kOptional,
+            [](V v, S s) { s.roof.lag_s = roof_lag_s(v, v.duration_s(kNonNegative)); }},
        }},
       {"first_flush",
        kOptional,
@@ -463,7 +496,14 @@ const std::vector<Section>& schema() {
             }},
            {"width_mm", kOptional,
             [](V v, S s) { s.reservoir.width_m = v.number(kPositive) * kMetresPerMm; }},
-           {"length_m", kOptional, [](V v, S s) { s.reservoir.length_m = v.number(kPositive); }},
+           {"length_m", kOptional,
+            [](V v, S s) {
+              s.reservoir.length_m = v.number(kPositive);
+              v.expect(s.reservoir.length_m >= kMinReservoirLength_m,
+                       "must be at least " + show(kMinReservoirLength_m) +
+                           " m: a shorter reservoir fills and empties faster than the solver can "
+                           "follow");
+            }},
            {"rim_mm", kRequired,
             [](V v, S s) { s.reservoir.rim_m = v.number(kPositive) * kMetresPerMm; }},
            {"overflow_coefficient", kOptional,
@@ -910,6 +950,37 @@ class Loader {
   std::set<std::string> overridden_;
 };
 
+/// Throws for a carriage return that ends a line alone (old Mac line ends): YAML would read the
+/// whole file as one line.
+void check_line_ends(std::string_view text, const std::string& file_label) {
+  for (std::size_t at = text.find('\r'); at != std::string_view::npos;
+       at = text.find('\r', at + 1)) {
+    if (at + 1 < text.size() && text[at + 1] == '\n') continue;
+    const auto line =
+        1 + std::count(text.begin(), text.begin() + static_cast<std::ptrdiff_t>(at), '\n');
+    throw InputError(file_label, static_cast<int>(line), "",
+                     "this line ends with a carriage return alone (CR line ends, as old Mac "
+                     "files have); save the file with LF or CRLF line ends");
+  }
+}
+
+/// The first line up to `last_line` (all lines when 0) whose indentation holds a tab, or 0.
+int tab_indented_line(std::string_view text, int last_line) {
+  int line = 1;
+  for (std::size_t begin = 0; begin < text.size() && (last_line == 0 || line <= last_line);
+       ++line) {
+    const std::size_t end = std::min(text.find('\n', begin), text.size());
+    const std::string_view row = text.substr(begin, end - begin);
+    const std::size_t content = row.find_first_not_of(" \t");
+    if (content != std::string_view::npos && row[content] != '#' &&
+        row.substr(0, content).find('\t') != std::string_view::npos) {
+      return line;
+    }
+    begin = end + 1;
+  }
+  return 0;
+}
+
 /// Splits `key.path=value`; throws for anything else.
 std::pair<std::vector<std::string>, std::string> split_override(const std::string& text) {
   const std::size_t eq = text.find('=');
@@ -990,12 +1061,21 @@ Scenario parse_scenario(std::string_view yaml_text, const std::string& file_labe
     throw InputError(file_label, static_cast<int>(line), "",
                      "binary data (a NUL byte on this line), not a YAML text file");
   }
+  check_line_ends(yaml_text, file_label);
   YAML::Node root;
   try {
     root = YAML::Load(std::string(yaml_text));
-  } catch (const YAML::ParserException& e) {
+  } catch (const YAML::DeepRecursion& e) {
     throw InputError(file_label, e.mark.is_null() ? 0 : e.mark.line + 1, "",
-                     "YAML syntax error: " + e.msg);
+                     "nested more than " + std::to_string(e.depth()) +
+                         " levels deep; a scenario's sections nest a few levels at most");
+  } catch (const YAML::ParserException& e) {
+    const int line = e.mark.is_null() ? 0 : e.mark.line + 1;
+    if (const int tab_line = tab_indented_line(yaml_text, line)) {
+      throw InputError(file_label, tab_line, "",
+                       "a tab in the indentation; YAML indents with spaces only");
+    }
+    throw InputError(file_label, line, "", "YAML syntax error: " + e.msg);
   }
   const std::set<std::string> overridden = apply_overrides(root, overrides);
   Scenario s = Loader(file_label, overridden).build(root);

@@ -510,7 +510,8 @@ void write_sweep_json(std::ostream& out, const SweepPlan& plan, const SweepResul
   j["ran"] = result.ranked.size();
   j["skipped"] = result.skipped;
   j["failed"] = result.failed;
-  out << j.dump(2) << '\n';
+  // File names and --set values may hold any bytes: those that are not UTF-8 are shown as U+FFFD.
+  out << j.dump(2, ' ', false, decltype(j)::error_handler_t::replace) << '\n';
 }
 
 void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResult& result,

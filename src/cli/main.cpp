@@ -63,34 +63,6 @@ Scenario load_scenario_unless_stopped(const std::string& file,
   return sc;
 }
 
-// A UTF-8 sequence starting at text[i]: its length, or 0 when the bytes are not one.
-std::size_t utf8_length(std::string_view text, std::size_t i) {
-  const auto byte = [&](std::size_t k) { return static_cast<unsigned char>(text[k]); };
-  const unsigned char lead = byte(i);
-  std::size_t n = 0;
-  unsigned char lo = 0x80;
-  unsigned char hi = 0xBF;
-  if (lead >= 0xC2 && lead <= 0xDF) {
-    n = 2;
-  } else if (lead >= 0xE0 && lead <= 0xEF) {
-    n = 3;
-    if (lead == 0xE0) lo = 0xA0;
-    if (lead == 0xED) hi = 0x9F;
-  } else if (lead >= 0xF0 && lead <= 0xF4) {
-    n = 4;
-    if (lead == 0xF0) lo = 0x90;
-    if (lead == 0xF4) hi = 0x8F;
-  } else {
-    return 0;
-  }
-  if (i + n > text.size()) return 0;
-  for (std::size_t k = 1; k < n; ++k) {
-    const unsigned char c = byte(i + k);
-    if (c < (k == 1 ? lo : 0x80) || c > (k == 1 ? hi : 0xBF)) return 0;
-  }
-  return n;
-}
-
 // Error text as one printable line: a message may quote a line of a binary file or a
 // multi-line YAML value, so control characters and bytes that are not UTF-8 become \xNN.
 std::string one_line(std::string_view text) {
@@ -98,7 +70,7 @@ std::string one_line(std::string_view text) {
   out.reserve(text.size());
   for (std::size_t i = 0; i < text.size();) {
     const auto c = static_cast<unsigned char>(text[i]);
-    const std::size_t n = c < 0x80 ? (c >= 0x20 && c != 0x7F) : utf8_length(text, i);
+    const std::size_t n = c < 0x80 ? (c >= 0x20 && c != 0x7F) : detail::utf8_length(text, i);
     if (n > 0) {
       out.append(text.substr(i, n));
       i += n;
