@@ -91,6 +91,8 @@ class Value {
   int line() const { return line_; }
   /// The text as written; empty unless the node is a scalar.
   const std::string& raw() const { return node_.IsScalar() ? node_.Scalar() : kEmpty; }
+  /// The key and its value as written, `reservoir.rim_mm = 62`, for messages about other keys.
+  std::string named() const { return path_ + " = " + raw(); }
 
   [[noreturn]] void fail(const std::string& message) const {
     throw InputError(label_, line_, path_, message);
@@ -491,11 +493,20 @@ const std::vector<Section>& schema() {
             [](V v, S s) {
               s.reservoir.shape =
                   v.choice<ReservoirShape>({{"half_round", ReservoirShape::half_round},
+                                            {"k_style", ReservoirShape::k_style},
+                                            {"box", ReservoirShape::box},
+                                            {"trapezoid", ReservoirShape::trapezoid},
                                             {"rectangular", ReservoirShape::rectangular},
                                             {"table", ReservoirShape::table}});
             }},
            {"width_mm", kOptional,
             [](V v, S s) { s.reservoir.width_m = v.number(kPositive) * kMetresPerMm; }},
+           {"size_mm", kOptional,
+            [](V v, S s) { s.reservoir.width_m = v.number(kPositive) * kMetresPerMm; }},
+           {"floor_width_mm", kOptional,
+            [](V v, S s) { s.reservoir.floor_width_m = v.number(kNonNegative) * kMetresPerMm; }},
+           {"depth_mm", kOptional,
+            [](V v, S s) { s.reservoir.depth_m = v.number(kPositive) * kMetresPerMm; }},
            {"length_m", kOptional,
             [](V v, S s) {
               s.reservoir.length_m = v.number(kPositive);
@@ -504,7 +515,9 @@ const std::vector<Section>& schema() {
                            " m: a shorter reservoir fills and empties faster than the solver can "
                            "follow");
             }},
-           {"rim_mm", kRequired,
+           {"fall_mm", kOptional,
+            [](V v, S s) { s.reservoir.fall_m = v.number(kNonNegative) * kMetresPerMm; }},
+           {"rim_mm", kOptional,
             [](V v, S s) { s.reservoir.rim_m = v.number(kPositive) * kMetresPerMm; }},
            {"overflow_coefficient", kOptional,
             [](V v, S s) { s.reservoir.overflow_coefficient = v.number(kPositive); }},
@@ -746,28 +759,72 @@ void check_level_table(const Seen& seen) {
              "must not be above the top of reservoir.levels_mm, " + levels.back().raw());
 }
 
+/// The rim as the checks of other keys name it: the key as written, or the depth it defaults to.
+std::string rim_text(const Seen& seen, const Scenario& s) {
+  if (seen.has("reservoir.rim_mm")) return seen.at("reservoir.rim_mm").named();
+  return "the rim, " + show(s.reservoir.rim_m / kMetresPerMm) +
+         " mm (the depth of shape: " + seen.text_or("reservoir.shape", "half_round") + ")";
+}
+
 void check_reservoir(const Seen& seen, Scenario& s) {
   ReservoirConfig& r = s.reservoir;
-  const std::string why = "needed by shape: " + seen.text_or("reservoir.shape", "half_round");
+  const std::string shape = seen.text_or("reservoir.shape", "half_round");
+  const std::string why = "needed by shape: " + shape;
+  const auto not_for_shape = [&](const std::string& key) {
+    if (seen.has(key)) seen.at(key).fail("not used by shape: " + shape);
+  };
   if (r.shape == ReservoirShape::table) {
     seen.require("reservoir.levels_mm", why);
     seen.require("reservoir.areas_m2", why);
     if (!seen.has("reservoir.length_m")) seen.require("reservoir.overflow_length_m", why);
+    seen.require("reservoir.rim_mm", why);
     check_level_table(seen);
+    not_for_shape("reservoir.fall_mm");
   } else {
-    seen.require("reservoir.width_mm", why);
     seen.require("reservoir.length_m", why);
   }
-  const Value& rim = seen.at("reservoir.rim_mm");
-  if (r.shape == ReservoirShape::half_round) {
-    const double half_width_mm = seen.number("reservoir.width_mm") / 2.0;
-    rim.expect(rim.number() <= half_width_mm, "must be <= reservoir.width_mm / 2 = " +
-                                                  show(half_width_mm) + " for shape: half_round");
+  seen.exclusive("reservoir.width_mm", "reservoir.size_mm");
+  if (r.shape == ReservoirShape::k_style) {
+    seen.require("reservoir.size_mm", why);
+    const Value& size = seen.at("reservoir.size_mm");
+    size.expect(k_style_section(r.width_m).has_value(),
+                "must be a trade size of shape: k_style, 5 or 6 in (127 or 152.4 mm) or 125 or "
+                "150 mm");
+  } else if (r.shape == ReservoirShape::half_round) {
+    if (!seen.has("reservoir.size_mm")) seen.require("reservoir.width_mm", why + " (or size_mm)");
+  } else if (r.shape != ReservoirShape::table) {
+    seen.require("reservoir.width_mm", why);
+    not_for_shape("reservoir.size_mm");
+  } else {
+    not_for_shape("reservoir.width_mm");
+    not_for_shape("reservoir.size_mm");
+  }
+  if (r.shape == ReservoirShape::trapezoid) {
+    seen.require("reservoir.floor_width_mm", why);
+    seen.require("reservoir.depth_mm", why);
+  } else {
+    not_for_shape("reservoir.floor_width_mm");
+    if (r.shape != ReservoirShape::box) not_for_shape("reservoir.depth_mm");
+  }
+  const bool has_depth = r.shape == ReservoirShape::half_round ||
+                         r.shape == ReservoirShape::k_style || seen.has("reservoir.depth_mm");
+  if (has_depth) {
+    const double depth_m = section_of(r).depth_m();
+    const double depth_mm = depth_m / kMetresPerMm;
+    if (seen.has("reservoir.rim_mm")) {
+      const Value& rim = seen.at("reservoir.rim_mm");
+      rim.expect(rim.number() <= depth_mm * (1.0 + 1e-12),
+                 "must be <= the depth of shape: " + shape + ", " + show(depth_mm) + " mm");
+    } else {
+      r.rim_m = depth_m;
+    }
+  } else {
+    seen.require("reservoir.rim_mm", why);
   }
   if (seen.has("reservoir.initial_level_mm")) {
     const Value& initial = seen.at("reservoir.initial_level_mm");
-    initial.expect(initial.number() <= rim.number(),
-                   "must not be above reservoir.rim_mm = " + rim.raw());
+    initial.expect(initial.number() * kMetresPerMm <= r.rim_m * (1.0 + 1e-12),
+                   "must not be above " + rim_text(seen, s));
   }
   if (!seen.has("reservoir.overflow_length_m")) r.overflow_length_m = r.length_m;
 }
@@ -790,9 +847,8 @@ void check_release(const Seen& seen, const Scenario& s) {
   const Value& brk = seen.at("release.break_level_mm");
   brk.expect(brk.number() < trigger.number(),
              "must be below release.trigger_level_mm = " + trigger.raw());
-  const Value& rim = seen.at("reservoir.rim_mm");
-  trigger.expect(trigger.number() <= rim.number(),
-                 "must not be above reservoir.rim_mm = " + rim.raw());
+  trigger.expect(trigger.number() * kMetresPerMm <= s.reservoir.rim_m * (1.0 + 1e-12),
+                 "must not be above " + rim_text(seen, s));
 }
 
 void check_conveyance(const Seen& seen) {

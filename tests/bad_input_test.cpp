@@ -669,8 +669,8 @@ TEST(BadScenario, CoefficientAboveOneIsRefused) {
 TEST(BadScenario, RimAboveAHalfRoundGutterIsImpossible) {
   const Site s = scenario_site("scenario-rim", "rim_mm: 62", "rim_mm: 80");
   expect_bad(check_scenario(s), s.scenario +
-                                    ":7: reservoir.rim_mm: must be <= reservoir.width_mm / 2 = "
-                                    "62.5 for shape: half_round (got 80)");
+                                    ":7: reservoir.rim_mm: must be <= the depth of shape: "
+                                    "half_round, 62.5 mm (got 80)");
 }
 
 TEST(BadScenario, NozzleWiderThanThePipeIsImpossible) {

@@ -150,5 +150,164 @@ TEST(Reservoir, BroadCrestedExampleFlow) {
   EXPECT_NEAR(g.overflow_m3_per_s(0.3), 26.95e-3, 0.005e-3);
 }
 
+// Square inches to square metres: (25.4 mm)^2 = 645.16 mm^2 (NIST Handbook 44, exact).
+constexpr double kSquareMetresPerSquareInch = 645.16e-6;
+
+TEST(CrossSection, TrapezoidAreaIsTheMeanWidthTimesTheDepth) {
+  // By hand: floor 60 mm, top 100 mm at 80 mm deep. At 40 mm the walls have spread by half of
+  // 40 mm, so the surface is 80 mm wide and the area (60 + 80) / 2 * 40 = 2800 mm^2; full:
+  // (60 + 100) / 2 * 80 = 6400 mm^2; each wall is the hypotenuse of 80 and 20 mm.
+  const CrossSection t = CrossSection::trapezoid(0.060, 0.100, 0.080);
+  EXPECT_NEAR(t.top_width_m(0.040), 0.080, 1e-15);
+  EXPECT_NEAR(t.area_m2(0.040), 2800e-6, 1e-17);
+  EXPECT_NEAR(t.area_m2(0.080), 6400e-6, 1e-17);
+  EXPECT_NEAR(t.wetted_perimeter_m(0.080), 0.060 + 2.0 * std::sqrt(0.080 * 0.080 + 0.020 * 0.020),
+              1e-15);
+  // Above the top the walls are vertical: 10 mm more adds 100 mm * 10 mm.
+  EXPECT_NEAR(t.area_m2(0.090), 6400e-6 + 1000e-6, 1e-17);
+  EXPECT_EQ(t.area_m2(0.0), 0.0);
+}
+
+TEST(CrossSection, BoxIsATrapezoidWithUprightWalls) {
+  // By hand: 100 mm wide, 30 mm of water: 3000 mm^2, wetted perimeter 100 + 2 * 30 mm.
+  const CrossSection b = CrossSection::box(0.100, 0.075);
+  EXPECT_NEAR(b.area_m2(0.030), 3000e-6, 1e-17);
+  EXPECT_NEAR(b.top_width_m(0.030), 0.100, 1e-15);
+  EXPECT_NEAR(b.wetted_perimeter_m(0.030), 0.160, 1e-15);
+}
+
+TEST(CrossSection, KStyleFiveInchArea) {
+  // By hand, the 5-inch profile (floor 3 1/2 in, top 5 in, 3 3/8 in deep): brim-full
+  // (3.5 + 5) / 2 * 3.375 = 14.34375 in^2; half full, 1.6875 in deep, the surface is
+  // 3.5 + 1.5 / 2 = 4.25 in wide and the area (3.5 + 4.25) / 2 * 1.6875 = 6.5390625 in^2.
+  const auto k = k_style_section(5.0 * kMetresPerInch);
+  ASSERT_TRUE(k.has_value());
+  EXPECT_NEAR(k->depth_m(), 3.375 * kMetresPerInch, 1e-15);
+  EXPECT_NEAR(k->area_m2(k->depth_m()), 14.34375 * kSquareMetresPerSquareInch, 1e-15);
+  EXPECT_NEAR(k->area_m2(1.6875 * kMetresPerInch), 6.5390625 * kSquareMetresPerSquareInch, 1e-15);
+}
+
+TEST(CrossSection, KStyleSixInchArea) {
+  // By hand, the 6-inch profile (floor 4 1/4 in, top 6 in, 4 1/2 in deep):
+  // (4.25 + 6) / 2 * 4.5 = 23.0625 in^2.
+  const auto k = k_style_section(6.0 * kMetresPerInch);
+  ASSERT_TRUE(k.has_value());
+  EXPECT_NEAR(k->area_m2(k->depth_m()), 23.0625 * kSquareMetresPerSquareInch, 1e-15);
+}
+
+TEST(CrossSection, KStyleMetricSizesKeepTheInchProportions) {
+  // By hand: 125 mm across, floor 125 * 3.5 / 5 = 87.5 mm, depth 125 * 3.375 / 5 = 84.375 mm:
+  // (87.5 + 125) / 2 * 84.375 = 8964.84375 mm^2; 150 mm: floor 106.25, depth 112.5 mm:
+  // (106.25 + 150) / 2 * 112.5 = 14414.0625 mm^2.
+  EXPECT_NEAR(k_style_section(0.125)->area_m2(0.084375), 8964.84375e-6, 1e-15);
+  EXPECT_NEAR(k_style_section(0.150)->area_m2(0.1125), 14414.0625e-6, 1e-15);
+}
+
+TEST(CrossSection, KStyleHasOnlyTradeSizes) {
+  EXPECT_FALSE(k_style_section(0.100).has_value());
+  EXPECT_FALSE(k_style_section(5.5 * kMetresPerInch).has_value());
+}
+
+TEST(CrossSection, HalfRoundByNominalSize) {
+  // By hand: a 5-inch half-round brim-full holds half a circle of radius 2.5 in,
+  // pi * 2.5^2 / 2 = 9.817477042 in^2, on a wetted arc of pi * 2.5 in; 6-inch: pi * 3^2 / 2.
+  const CrossSection five = CrossSection::half_round(5.0 * kMetresPerInch);
+  EXPECT_NEAR(five.area_m2(2.5 * kMetresPerInch), 9.817477042 * kSquareMetresPerSquareInch, 1e-12);
+  EXPECT_NEAR(five.wetted_perimeter_m(2.5 * kMetresPerInch), kPi * 2.5 * kMetresPerInch, 1e-15);
+  const CrossSection six = CrossSection::half_round(6.0 * kMetresPerInch);
+  EXPECT_NEAR(six.area_m2(3.0 * kMetresPerInch), kPi * 4.5 * kSquareMetresPerSquareInch, 1e-15);
+  EXPECT_NEAR(six.top_width_m(3.0 * kMetresPerInch), 6.0 * kMetresPerInch, 1e-15);
+}
+
+TEST(CrossSection, AreaIntegralOfATrapezoid) {
+  // By hand: the integral of 60 y + (40 / 80) y^2 / 2 (mm) from 0 to 80 mm is
+  // 60 * 80^2 / 2 + 0.5 * 80^3 / 6 = 192000 + 42666.67 mm^3 per mm of length.
+  const CrossSection t = CrossSection::trapezoid(0.060, 0.100, 0.080);
+  EXPECT_NEAR(t.area_integral_m3_per_m(0.080), (192000.0 + 0.5 * 512000.0 / 6.0) * 1e-9, 1e-18);
+}
+
+TEST(CrossSection, AreaIntegralOfAHalfRound) {
+  // By hand: A(y) is the integral of the chord w, so the integral of A from 0 to r is that of
+  // w(eta) (r - eta); with u = r - eta and w = 2 sqrt(r^2 - u^2) it is the integral of
+  // 2 u sqrt(r^2 - u^2) from 0 to r, (2/3) r^3.
+  const double r = 0.0635;
+  const CrossSection h = CrossSection::half_round(2.0 * r);
+  EXPECT_NEAR(h.area_integral_m3_per_m(r), 2.0 * r * r * r / 3.0, 1e-18);
+  // Part way up, against Simpson's rule on the segment area (independent of the closed form).
+  const double y = 0.3 * r;
+  const int n = 2000;
+  double sum = 0.0;
+  for (int i = 0; i <= n; ++i) {
+    const double weight = i == 0 || i == n ? 1.0 : (i % 2 == 1 ? 4.0 : 2.0);
+    sum += weight * segment_by_angle(r, y * i / n);
+  }
+  // Simpson's rule converges slowly on the y^1.5 start of the segment area: 1e-9 relative.
+  EXPECT_NEAR(h.area_integral_m3_per_m(y), sum * y / n / 3.0, 1e-9 * sum * y / n / 3.0);
+}
+
+TEST(Reservoir, KStyleGutterVolumeIsItsAreaTimesItsLength) {
+  ReservoirConfig c;
+  c.shape = ReservoirShape::k_style;
+  c.width_m = 5.0 * kMetresPerInch;
+  c.length_m = 40.0 * 0.3048;
+  c.rim_m = 3.375 * kMetresPerInch;
+  const ReservoirGeometry g(c);
+  // 14.34375 in^2 over 40 ft (480 in) = 6885 in^3 = 29.8052 US gal (231 in^3 each).
+  EXPECT_NEAR(g.volume_m3(c.rim_m), 6885.0 * 0.0254 * 0.0254 * 0.0254, 1e-15);
+  for (int k = 0; k <= 200; ++k) {
+    const double h = c.rim_m * k / 200.0;
+    EXPECT_NEAR(g.level_m(g.volume_m3(h)), h, 1e-14) << h;
+  }
+}
+
+// A box gutter 100 mm wide and 10 m long whose floor falls 20 mm towards the outlet.
+ReservoirConfig falling_box() {
+  ReservoirConfig c = rectangular(0.1, 10.0, 0.06);
+  c.shape = ReservoirShape::box;
+  c.fall_m = 0.02;
+  return c;
+}
+
+TEST(Reservoir, FallingBoxHoldsAWedge) {
+  const ReservoirGeometry g(falling_box());
+  // By hand. Level 10 mm at the outlet, below the fall: the water reaches back 10 / 20 of the
+  // 10 m, a wedge of 0.1 m * 5 m * 0.01 m / 2 = 2.5 L over 0.1 * 5 = 0.5 m^2.
+  EXPECT_NEAR(g.volume_m3(0.01), 2.5e-3, 1e-17);
+  EXPECT_NEAR(g.surface_area_m2(0.01), 0.5, 1e-15);
+  // Level 50 mm: 50 mm deep at the outlet, 30 mm at the far end, mean 40 mm over 1 m^2: 40 L.
+  EXPECT_NEAR(g.volume_m3(0.05), 40e-3, 1e-16);
+  EXPECT_NEAR(g.surface_area_m2(0.05), 1.0, 1e-15);
+}
+
+TEST(Reservoir, FallingGuttersRoundTrip) {
+  ReservoirConfig k;
+  k.shape = ReservoirShape::k_style;
+  k.width_m = 6.0 * kMetresPerInch;
+  k.length_m = 12.0;
+  k.fall_m = 0.03;
+  k.rim_m = 0.1;
+  ReservoirConfig h = half_round(0.125, 8.0, 0.0625);
+  h.fall_m = 0.01;
+  for (const ReservoirConfig& c : {falling_box(), k, h}) {
+    const ReservoirGeometry g(c);
+    for (int i = 0; i <= 400; ++i) {
+      const double level = c.rim_m * 1.1 * i / 400.0;
+      EXPECT_NEAR(g.level_m(g.volume_m3(level)), level, 1e-13) << level;
+    }
+  }
+}
+
+TEST(Reservoir, TinyFallApproachesTheLevelGutter) {
+  ReservoirConfig c = half_round(0.125, 8.0, 0.0625);
+  const ReservoirGeometry level(c);
+  c.fall_m = 1e-6;
+  const ReservoirGeometry sloped(c);
+  // The wedge loses half the fall in mean depth: about chord * L * F / 2 of volume (the
+  // difference of two close integrals keeps about 1e-10 of the volume).
+  EXPECT_NEAR(sloped.volume_m3(0.03),
+              level.volume_m3(0.03) - 0.5 * level.surface_area_m2(0.03) * 1e-6,
+              1e-10 * level.volume_m3(0.03));
+}
+
 }  // namespace
 }  // namespace gutterwatt

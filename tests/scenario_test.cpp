@@ -267,6 +267,51 @@ TEST(Scenario, ReadsALevelAreaTable) {
   EXPECT_DOUBLE_EQ(s.reservoir.overflow_length_m, 0.3);
 }
 
+TEST(Scenario, ReadsAKStyleGutterByItsSizeWithTheRimAtItsDepth) {
+  const Scenario s = parse(minimal_with("  width_mm: 100\n  length_m: 4\n  rim_mm: 50\n",
+                                        "  shape: k_style\n  size_mm: 127\n  length_m: 12\n"
+                                        "  fall_mm: 10\n"));
+  EXPECT_EQ(s.reservoir.shape, ReservoirShape::k_style);
+  EXPECT_DOUBLE_EQ(s.reservoir.width_m, 0.127);
+  EXPECT_DOUBLE_EQ(s.reservoir.fall_m, 0.010);
+  // The 5-inch profile is 3 3/8 in deep: 85.725 mm.
+  EXPECT_DOUBLE_EQ(s.reservoir.rim_m, 0.085725);
+}
+
+TEST(Scenario, RejectsAKStyleSizeWithoutAProfile) {
+  EXPECT_EQ(error_of(minimal_with("  width_mm: 100\n", "  shape: k_style\n  size_mm: 100\n")),
+            "demo.yaml:10: reservoir.size_mm: must be a trade size of shape: k_style, 5 or 6 in "
+            "(127 or 152.4 mm) or 125 or 150 mm (got 100)");
+}
+
+TEST(Scenario, ReadsATrapezoid) {
+  const Scenario s =
+      parse(minimal_with("  width_mm: 100\n  length_m: 4\n  rim_mm: 50\n",
+                         "  shape: trapezoid\n  width_mm: 100\n  floor_width_mm: 60\n"
+                         "  depth_mm: 80\n  length_m: 4\n"));
+  const CrossSection section = section_of(s.reservoir);
+  EXPECT_DOUBLE_EQ(section.area_m2(0.080), 6400e-6);
+  EXPECT_DOUBLE_EQ(s.reservoir.rim_m, 0.080);
+}
+
+TEST(Scenario, ATrapezoidNeedsItsFloorWidth) {
+  EXPECT_EQ(error_of(minimal_with("  width_mm: 100\n",
+                                  "  shape: trapezoid\n  width_mm: 100\n"
+                                  "  depth_mm: 80\n")),
+            "demo.yaml:8: reservoir.floor_width_mm: missing required key (needed by shape: "
+            "trapezoid)");
+}
+
+TEST(Scenario, RejectsAKeyTheShapeDoesNotUse) {
+  EXPECT_EQ(error_of(minimal_with("  width_mm: 100\n", "  width_mm: 100\n  floor_width_mm: 60\n")),
+            "demo.yaml:10: reservoir.floor_width_mm: not used by shape: half_round");
+}
+
+TEST(Scenario, ReadsAHalfRoundBySize) {
+  const Scenario s = parse(minimal_with("  width_mm: 100\n", "  size_mm: 150\n"));
+  EXPECT_DOUBLE_EQ(s.reservoir.width_m, 0.150);
+}
+
 TEST(Scenario, NeedsOnlyAnOrificeForAnOrificeRelease) {
   const Scenario s = parse(
       minimal_with("  trigger_level_mm: 40\n  break_level_mm: 5\n  standpipe_diameter_mm: 15\n"
@@ -348,7 +393,8 @@ TEST(Scenario, RejectsANumberOutOfRange) {
 
 TEST(Scenario, ListsTheAllowedValuesOfAChoice) {
   EXPECT_EQ(error_of(minimal_with("  width_mm: 100", "  shape: round\n  width_mm: 100")),
-            "demo.yaml:9: reservoir.shape: expected one of half_round, rectangular or table, got "
+            "demo.yaml:9: reservoir.shape: expected one of half_round, k_style, box, trapezoid, "
+            "rectangular or table, got "
             "\"round\"");
   EXPECT_EQ(error_of(minimal(), {"turbine.kind=crossflow"}),
             "--set: turbine.kind: expected impulse, got \"crossflow\"");
@@ -388,8 +434,8 @@ TEST(Scenario, RejectsATriggerAboveTheRim) {
 
 TEST(Scenario, RejectsARimAboveHalfTheWidthOfAHalfRound) {
   EXPECT_EQ(error_of(minimal_with("rim_mm: 50", "rim_mm: 60")),
-            "demo.yaml:11: reservoir.rim_mm: must be <= reservoir.width_mm / 2 = 50 for shape: "
-            "half_round (got 60)");
+            "demo.yaml:11: reservoir.rim_mm: must be <= the depth of shape: half_round, 50 mm (got "
+            "60)");
   EXPECT_NO_THROW(parse(minimal_with("rim_mm: 50", "rim_mm: 60"), {"reservoir.shape=rectangular"}));
 }
 

@@ -1,20 +1,66 @@
 #pragma once
 /// The reservoir (a gutter or small tank): level-volume relation and overflow over the rim, under
-/// the level-pool assumption (a flat water surface along the whole length).
+/// the level-pool assumption (a flat water surface along the whole length). A gutter's floor may
+/// fall towards its outlet; the level is then measured above the floor at the outlet and the
+/// water it holds is a wedge.
 
+#include <optional>
 #include <vector>
 
 #include "gutterwatt/interpolation.hpp"
 
 namespace gutterwatt {
 
-enum class ReservoirShape { half_round, rectangular, table };
+/// A gutter's cross-section: the wetted area, the water-surface (top) width and the wetted
+/// perimeter as functions of the depth of water above the floor. Above depth_m() the walls are
+/// taken as vertical, so every function accepts any depth >= 0.
+class CrossSection {
+ public:
+  /// A trapezoid, symmetric about its centre line: `floor_width_m` (>= 0) at the floor, widening
+  /// linearly to `top_width_m` (> 0) at `depth_m` (> 0). Equal widths make a box.
+  static CrossSection trapezoid(double floor_width_m, double top_width_m, double depth_m);
+  /// A rectangular section.
+  static CrossSection box(double width_m, double depth_m);
+  /// The lower half of a circle of diameter `diameter_m` (depth: the radius).
+  static CrossSection half_round(double diameter_m);
+
+  double depth_m() const { return depth_m_; }
+  /// Width of the water surface at `depth_m`.
+  double top_width_m(double depth_m) const;
+  /// Wetted cross-section area at `depth_m`.
+  double area_m2(double depth_m) const;
+  /// Length of the wetted boundary (floor and walls) at `depth_m`.
+  double wetted_perimeter_m(double depth_m) const;
+  /// The integral of area_m2 from 0 to `depth_m` (what a falling floor turns into volume).
+  double area_integral_m3_per_m(double depth_m) const;
+
+ private:
+  enum class Kind { trapezoid, circle };
+  CrossSection(Kind kind, double floor_width_m, double top_width_m, double depth_m)
+      : kind_(kind), floor_width_m_(floor_width_m), top_width_m_(top_width_m), depth_m_(depth_m) {}
+
+  Kind kind_;
+  double floor_width_m_;  ///< circle: 0
+  double top_width_m_;    ///< circle: the diameter
+  double depth_m_;        ///< circle: the radius
+};
+
+/// A K-style (ogee-fronted) gutter by its nominal size (the width across the top): the trade
+/// sizes 5 in and 6 in, and the metric 125 mm and 150 mm; nullopt for any other size. The section
+/// is the trapezoid with the profile's floor width, top width and depth.
+std::optional<CrossSection> k_style_section(double size_m);
+
+enum class ReservoirShape { half_round, k_style, box, trapezoid, rectangular, table };
 
 struct ReservoirConfig {
   ReservoirShape shape = ReservoirShape::half_round;
-  double width_m = 0.0;               ///< half_round: diameter; rectangular: inside width
-  double length_m = 0.0;              ///< half_round and rectangular
-  double rim_m = 0.0;                 ///< overflow rim above the floor
+  /// half_round: diameter; k_style: nominal size; box, rectangular: inside width; trapezoid: top
+  double width_m = 0.0;
+  double floor_width_m = 0.0;         ///< trapezoid: width at the floor
+  double depth_m = 0.0;               ///< trapezoid: depth at the top width; box: 0 = the rim
+  double length_m = 0.0;              ///< every shape but table
+  double fall_m = 0.0;                ///< drop of the floor over the length, towards the outlet
+  double rim_m = 0.0;                 ///< overflow rim above the floor (at the outlet)
   double overflow_coefficient = 1.7;  ///< weir C in Q = C L h^1.5, m^0.5/s
   double overflow_length_m = 0.0;     ///< weir length; defaults to length_m (0 for table: required)
   std::vector<double> table_level_m;  ///< table: levels above the floor, increasing from 0
@@ -22,9 +68,12 @@ struct ReservoirConfig {
   double initial_level_m = 0.0;
 };
 
-/// Level-volume geometry of a half-round or rectangular gutter, or of a level-area table. Above
-/// the rim the walls are taken as vertical with the rim's surface area, so an overflowing
-/// reservoir has a level. All functions accept any level >= 0 and any volume >= 0.
+/// The cross-section of every shape but table (a k_style of a size without a profile: a box).
+CrossSection section_of(const ReservoirConfig& config);
+
+/// Level-volume geometry of a gutter of any cross-section, level or falling, or of a level-area
+/// table. Above the rim the walls are taken as vertical with the rim's surface area, so an
+/// overflowing reservoir has a level. All functions accept any level >= 0 and any volume >= 0.
 class ReservoirGeometry {
  public:
   explicit ReservoirGeometry(const ReservoirConfig& config);
@@ -40,15 +89,18 @@ class ReservoirGeometry {
   double overflow_m3_per_s(double level_m) const;
 
  private:
-  /// The section's own geometry at level h in [0, rim], ignoring the vertical walls above the rim.
+  enum class Kind { level_half_round, level_trapezoid, sloped, table };
+
+  /// The reservoir's own geometry at level h in [0, rim], ignoring the vertical walls above it.
   double section_area_m2(double h) const;
   double section_volume_m3(double h) const;
-  /// Half-round: the level holding cross-section `area_m2`, by safeguarded Newton iteration.
-  double solve_half_round_level_m(double area_m2) const;
+  /// The level in [0, rim] holding `volume_m3`, by safeguarded Newton iteration from `guess`.
+  double solve_level_m(double volume_m3, double guess) const;
 
-  ReservoirShape shape_;
-  double width_m_;
+  Kind kind_;
+  CrossSection section_;
   double length_m_;
+  double fall_m_;
   double rim_m_;
   double weir_coefficient_;
   double weir_length_m_;
@@ -58,7 +110,7 @@ class ReservoirGeometry {
   double rim_volume_m3_;
   double rim_area_m2_;
   UniformTable shallow_table_;  ///< half-round: level against w = A^(2/3)
-  UniformTable volume_table_;   ///< half-round: level against volume above 10 % of the radius
+  UniformTable volume_table_;   ///< half-round, sloped: level against volume above 10 % of rim
 };
 
 /// Wetted cross-section of a circle of radius `radius_m` filled to depth `depth_m` (0..2r):
