@@ -104,11 +104,9 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
   const Plant plant(plant_config(sc));
   const ReleaseConfig& rel = sc.release;
   const bool has_set_points = rel.kind == ReleaseKind::bell || rel.kind == ReleaseKind::float_valve;
-  double top_m = has_set_points ? rel.trigger_level_m : geometry.rim_m();
+  const double top_m = design_level_m(sc);
   if (rel.kind == ReleaseKind::bell) {
-    const BellSiphon bell(rel);
-    d.priming_level_m = std::min(bell.priming_level_m(), geometry.rim_m());
-    top_m = *d.priming_level_m;
+    d.priming_level_m = top_m;
     d.priming_intensity_m_per_s = intensity_for_flow(sc, rel.priming_flow_m3_per_s);
   }
   const double bottom_m = has_set_points ? rel.break_level_m : 0.0;
@@ -137,6 +135,8 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
   d.jet_velocity_m_per_s = p.jet_velocity_m_per_s;
   d.jet_power_W = p.jet_W;
   d.electrical_power_W = p.electrical_W;
+  d.runner_speed_rpm = p.runner_speed_rpm;
+  d.speed_ratio = p.speed_ratio;
 
   if (has_set_points && d.running_flow_break_m3_per_s > 0.0) {
     // Drain time t = integral of A(h) dh / Q(h) from break to the set-point (level-pool).
@@ -228,6 +228,18 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
         "nozzle runs: the column overflows every cycle. A taller or wider column, "
         "or a larger nozzle, would keep that water.");
   }
+  if (plant.conduction_speed_rpm() > 0.0 && d.speed_ratio >= 1.0) {
+    d.warnings.push_back(
+        "The generator reaches the battery's voltage only at " +
+        fixed(plant.conduction_speed_rpm(), 0) +
+        " rpm, faster than the jet at the design head can drive the runner: it will not charge. "
+        "A generator with more volts per rpm, a smaller runner or more head would.");
+  }
+  if (sc.turbine.best_at_every_head) {
+    d.warnings.push_back(
+        "turbine.speed_rpm: best turns the runner at its best speed at every head, which no "
+        "runner on a fixed-voltage generator does: the energy is an upper bound.");
+  }
   if (sc.generator.cut_in_W > d.electrical_power_W) {
     d.warnings.push_back("The generator's cut-in power (" + fixed(sc.generator.cut_in_W, 2) +
                          " W) is above the design power (" + fixed(d.electrical_power_W, 2) +
@@ -265,6 +277,10 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
   line("nozzle flow at design head", lpm(d.nozzle_flow_m3_per_s), "L/min");
   line("jet velocity", fixed(d.jet_velocity_m_per_s, 2), "m/s");
   line("jet power", fixed(d.jet_power_W, 2), "W");
+  line(sc.turbine.best_at_every_head ? "runner speed at design head (best at every head)"
+                                     : "runner speed at design head",
+       fixed(d.runner_speed_rpm, 0), "rpm");
+  line("  speed ratio (bucket / jet speed)", fixed(d.speed_ratio, 3), "");
   line("electrical power at design head", fixed(d.electrical_power_W, 2), "W");
   line("rain that overflows the rim while the release runs", mmh(d.overflow_intensity_m_per_s),
        "mm/h");

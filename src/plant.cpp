@@ -3,6 +3,7 @@
 #include <algorithm>
 
 #include "gutterwatt/hydraulics.hpp"
+#include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -29,7 +30,7 @@ Plant::Plant(const PlantConfig& config)
       drop_m_(config.drop_m),
       column_(config.head_column),
       runner_diameter_m_(config.turbine.runner_diameter_m),
-      speed_rpm_(config.turbine.speed_rpm),
+      best_at_every_head_(config.turbine.best_at_every_head),
       peak_efficiency_(config.turbine.peak_efficiency),
       generator_efficiency_(config.generator.efficiency),
       cut_in_W_(config.generator.cut_in_W),
@@ -40,6 +41,36 @@ Plant::Plant(const PlantConfig& config)
   const double top = std::max(config.top_level_m, 1e-3) + 0.1;
   full_flow_table_ = UniformTable(0.0, top, 1024,
                                   [this](double level) { return solve_full_flow_m3_per_s(level); });
+  design_head_m_ = column_ ? column_->height_m
+                           : nozzle_head_for_flow_m(full_flow_m3_per_s(config.design_level_m));
+  // The speed ratio x = u / V_j that maximises the impulse runner's hydraulic efficiency
+  // 2x(1-x)(1 + k cos phi) is 0.5 for any bucket (Dixon and Hall, Fluid Mechanics and
+  // Thermodynamics of Turbomachinery, Pelton wheel; REFERENCES.md section 7).
+  held_speed_rpm_ = best_at_every_head_ ? 0.0
+                    : config.turbine.speed_rpm
+                        ? *config.turbine.speed_rpm
+                        : runner_speed_for_ratio_rpm(
+                              runner_diameter_m_, 0.5,
+                              jet_velocity_m_per_s(nozzle_.velocity_coefficient, design_head_m_));
+  // A permanent-magnet generator's open-circuit voltage is proportional to its speed, E = k N;
+  // no current flows into a battery of voltage V_b below N = V_b / k (Hughes, Electric Motors
+  // and Drives, permanent-magnet d.c. machine: E = k omega).
+  if (config.generator.volts_per_rpm > 0.0 && config.battery_voltage_V > 0.0) {
+    conduction_speed_rpm_ = config.battery_voltage_V / config.generator.volts_per_rpm;
+  }
+}
+
+double runner_speed_for_ratio_rpm(double runner_diameter_m, double speed_ratio,
+                                  double jet_velocity_m_per_s) {
+  // Inverse of the pitch-circle speed u = pi D N / 60.
+  return speed_ratio * jet_velocity_m_per_s * kSecondsPerMinute / (kPi * runner_diameter_m);
+}
+
+double Plant::runner_speed_rpm(double jet_velocity_m_per_s) const {
+  const double speed = best_at_every_head_ ? runner_speed_for_ratio_rpm(runner_diameter_m_, 0.5,
+                                                                        jet_velocity_m_per_s)
+                                           : held_speed_rpm_;
+  return std::max(speed, conduction_speed_rpm_);
 }
 
 double Plant::full_flow_m3_per_s(double level_m) const {
@@ -84,10 +115,13 @@ PlantPower Plant::power(double flow_m3_per_s, double head_m) const {
   p.head_m = head_m;
   p.jet_velocity_m_per_s = jet_velocity_m_per_s(nozzle_.velocity_coefficient, head_m);
   p.jet_W = jet_power_W(density_kg_per_m3_, flow_m3_per_s, p.jet_velocity_m_per_s);
-  // A runner at its best speed works at speed ratio 0.5, the peak of the ideal impulse curve.
-  const double x =
-      speed_rpm_ ? speed_ratio(runner_diameter_m_, *speed_rpm_, p.jet_velocity_m_per_s) : 0.5;
-  p.shaft_W = impulse_efficiency(x, peak_efficiency_) * p.jet_W;
+  // The runner held at one speed works off its best ratio as the head varies. Below the
+  // conduction speed the generator carries no load and the runner speeds up towards runaway
+  // (x = 1, no torque); it reaches the conduction speed only when x there is below 1, and the
+  // efficiency at that x is what it delivers.
+  p.runner_speed_rpm = runner_speed_rpm(p.jet_velocity_m_per_s);
+  p.speed_ratio = speed_ratio(runner_diameter_m_, p.runner_speed_rpm, p.jet_velocity_m_per_s);
+  p.shaft_W = impulse_efficiency(p.speed_ratio, peak_efficiency_) * p.jet_W;
   p.electrical_W = generator_efficiency_ * p.shaft_W;
   return p;
 }

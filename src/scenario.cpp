@@ -18,6 +18,7 @@
 
 #include "detail.hpp"
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/siphon.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
@@ -612,7 +613,10 @@ const std::vector<Section>& schema() {
            {"runner_diameter_mm", kRequired,
             [](V v, S s) { s.turbine.runner_diameter_m = v.number(kPositive) * kMetresPerMm; }},
            {"speed_rpm", kOptional,
-            [](V v, S s) { s.turbine.speed_rpm = v.number_or("best", kPositive); }},
+            [](V v, S s) {
+              s.turbine.speed_rpm = v.number_or("best", kPositive);
+              s.turbine.best_at_every_head = !s.turbine.speed_rpm;
+            }},
            {"peak_efficiency", kOptional,
             [](V v, S s) { s.turbine.peak_efficiency = v.number(kFraction); }},
        }},
@@ -622,6 +626,8 @@ const std::vector<Section>& schema() {
            {"efficiency", kOptional,
             [](V v, S s) { s.generator.efficiency = v.number(kFraction); }},
            {"cut_in_W", kOptional, [](V v, S s) { s.generator.cut_in_W = v.number(kNonNegative); }},
+           {"volts_per_rpm", kOptional,
+            [](V v, S s) { s.generator.volts_per_rpm = v.number(kPositive); }},
        }},
       {"battery",
        kRequired,
@@ -634,6 +640,7 @@ const std::vector<Section>& schema() {
            {"max_charge_W", kOptional,
             [](V v, S s) { s.battery.max_charge_W = v.number(kPositive); }},
            {"load_W", kOptional, [](V v, S s) { s.battery.load_W = v.number(kNonNegative); }},
+           {"voltage_V", kOptional, [](V v, S s) { s.battery.voltage_V = v.number(kPositive); }},
            {"load_profile_W", kOptional,
             [](V v, S s) {
               s.battery.load_profile_W = v.numbers(kNonNegative);
@@ -899,6 +906,12 @@ void check_priming_flow(const Seen& seen, const Scenario& s) {
                          show3(running * per_minute) + " L/min");
 }
 
+void check_generator(const Seen& seen) {
+  if (seen.has("generator.volts_per_rpm")) {
+    seen.require("battery.voltage_V", "needed by generator.volts_per_rpm");
+  }
+}
+
 void check_simulation(const Seen& seen, const Scenario& s) {
   const auto& sim = s.simulation;
   if (sim.start && sim.end) {
@@ -917,6 +930,7 @@ void check_combinations(const Seen& seen, Scenario& s) {
   check_conveyance(seen);
   check_nozzle(seen, s);
   check_priming_flow(seen, s);
+  check_generator(seen);
   check_simulation(seen, s);
 }
 
@@ -1097,6 +1111,20 @@ std::set<std::string> apply_overrides(YAML::Node& root, const std::vector<std::s
 
 }  // namespace
 
+double design_level_m(const Scenario& scenario) {
+  const ReleaseConfig& rel = scenario.release;
+  switch (rel.kind) {
+    case ReleaseKind::bell:
+      return std::min(BellSiphon(rel).priming_level_m(), scenario.reservoir.rim_m);
+    case ReleaseKind::float_valve:
+      return rel.trigger_level_m;
+    case ReleaseKind::orifice:
+    case ReleaseKind::none:
+      break;
+  }
+  return scenario.reservoir.rim_m;
+}
+
 PlantConfig plant_config(const Scenario& scenario) {
   return {scenario.drop_pipe,
           scenario.drop_m,
@@ -1105,7 +1133,9 @@ PlantConfig plant_config(const Scenario& scenario) {
           scenario.turbine,
           scenario.generator,
           scenario.site.temperature_C,
-          std::max(scenario.reservoir.rim_m, scenario.release.trigger_level_m)};
+          std::max(scenario.reservoir.rim_m, scenario.release.trigger_level_m),
+          design_level_m(scenario),
+          scenario.battery.voltage_V};
 }
 
 Scenario parse_scenario(std::string_view yaml_text, const std::string& file_label,

@@ -99,6 +99,32 @@ TEST(Design, EnergyPerCycleIsTheStoredWaterTimesHeadTimesTheChainEfficiency) {
               0.01 * *d.cycle_drain_s);
 }
 
+TEST(Design, RunnerSpeedAtTheDesignHeadIsTheHeldBestSpeed) {
+  // Hand computation: V_j = 0.97 sqrt(2 x 9.80665 x 3.0) = 7.440596 m/s, N = 60 x 0.5 x V_j /
+  // (pi x 0.070 m) = 1015.035 rpm at speed ratio 0.5 (REFERENCES.md section 7).
+  Scenario s = make_scenario();
+  s.head_column = HeadColumnConfig{0.12, 3.0};
+  const DesignFigures d = evaluate_design(s, nullptr);
+  EXPECT_NEAR(d.runner_speed_rpm, 1015.035, 0.001);
+  EXPECT_NEAR(d.speed_ratio, 0.5, 1e-12);
+}
+
+TEST(Design, WarnsWhenTheGeneratorNeverReachesTheBatteryVoltage) {
+  // 12 V / 0.005 V/rpm = 2400 rpm, above the runaway 2030 rpm of the 3.0 m jet.
+  Scenario s = make_scenario();
+  s.head_column = HeadColumnConfig{0.12, 3.0};
+  s.generator.volts_per_rpm = 0.005;
+  s.battery.voltage_V = 12.0;
+  const DesignFigures d = evaluate_design(s, nullptr);
+  EXPECT_EQ(d.electrical_power_W, 0.0);
+  bool warned = false;
+  for (const std::string& w : d.warnings) {
+    warned =
+        warned || w.rfind("The generator reaches the battery's voltage only at 2400 rpm", 0) == 0;
+  }
+  EXPECT_TRUE(warned);
+}
+
 TEST(Design, WarnsWhenCutInExceedsTheDesignPower) {
   Scenario s = make_scenario();
   s.generator.cut_in_W = 1000.0;
@@ -131,9 +157,9 @@ TEST(Design, PrintsEveryFigureOfASystemWithoutColumnOrRecordAndTheCautions) {
        {"storage between the set-points", "priming level (lip + head on the standpipe)",
         "priming flow as steady rain", "running flow at the set-point",
         "running flow at the break level", "running time per cycle", "design head",
-        "nozzle flow at design head", "jet velocity", "jet power",
-        "electrical power at design head", "rain that overflows the rim", "energy per cycle",
-        "Cautions", "Working at height"}) {
+        "nozzle flow at design head", "jet velocity", "jet power", "runner speed at design head",
+        "speed ratio (bucket / jet speed)", "electrical power at design head",
+        "rain that overflows the rim", "energy per cycle", "Cautions", "Working at height"}) {
     EXPECT_NE(text.find(label), std::string::npos) << label;
   }
 }

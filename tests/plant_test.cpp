@@ -112,7 +112,8 @@ TEST(Plant, JetPowerMatchesTheWorkedExample) {
 }
 
 TEST(Plant, BestSpeedEfficiencyIsThePeak) {
-  const Scenario s = make_scenario();
+  Scenario s = make_scenario();
+  s.turbine.best_at_every_head = true;
   const Plant p(plant_config(s));
   for (double head : {0.5, 4.0, 20.0}) {
     const PlantPower w = p.power(1e-4, head);
@@ -132,8 +133,69 @@ TEST(Plant, FixedSpeedFollowsTheIdealImpulseCurve) {
   EXPECT_NEAR(w.shaft_W / w.jet_W, 0.84 * s.turbine.peak_efficiency, 1e-12);
 }
 
+// The demo's runner under its head column: 70 mm pitch diameter, column 3.0 m, Cv 0.97.
+Scenario runner_under_a_column() {
+  Scenario s = make_scenario();
+  s.head_column = HeadColumnConfig{0.120, 3.0};
+  s.nozzle.velocity_coefficient = 0.97;
+  s.turbine.runner_diameter_m = 0.070;
+  return s;
+}
+
+TEST(Plant, RunnerIsHeldAtTheBestSpeedForTheDesignHead) {
+  // Hand computation: V_j = 0.97 sqrt(2 x 9.80665 x 3.0) = 7.440596 m/s; best at x = 0.5
+  // (Dixon and Hall, REFERENCES.md section 7): N = 60 x 0.5 x 7.440596 / (pi x 0.070)
+  // = 1015.035 rpm.
+  const Plant p(plant_config(runner_under_a_column()));
+  EXPECT_DOUBLE_EQ(p.design_head_m(), 3.0);
+  EXPECT_NEAR(p.held_speed_rpm(), 1015.035, 0.001);
+  const PlantPower w = p.power(1e-4, 3.0);
+  EXPECT_NEAR(w.runner_speed_rpm, 1015.035, 0.001);
+  EXPECT_NEAR(w.speed_ratio, 0.5, 1e-12);
+}
+
+TEST(Plant, HeldRunnerAtHalfTheDesignHeadLosesToTheSpeedRatio) {
+  // Hand computation: at half the head the jet is 1/sqrt(2) as fast, so the held runner works
+  // at x = 1/sqrt(2); the ideal curve 4x(1 - x) (REFERENCES.md section 7) gives 2 sqrt(2) - 2
+  // = 0.828427 of the peak.
+  const Scenario s = runner_under_a_column();
+  const Plant p(plant_config(s));
+  const PlantPower w = p.power(1e-4, 1.5);
+  EXPECT_NEAR(w.speed_ratio, 0.707107, 1e-6);
+  EXPECT_NEAR(w.shaft_W / w.jet_W, 0.828427 * s.turbine.peak_efficiency, 1e-6);
+}
+
+TEST(Plant, GeneratorLoadsTheRunnerOnlyAboveTheBatteryVoltage) {
+  // Hand computation: 12 V / 0.008 V/rpm = 1500 rpm, above the held 1015 rpm, so the runner
+  // turns at 1500 rpm: x = pi x 0.070 x 1500 / 60 / 7.440596 = 0.738891, and 4x(1 - x) =
+  // 0.771725 of the peak.
+  Scenario s = runner_under_a_column();
+  s.generator.volts_per_rpm = 0.008;
+  s.battery.voltage_V = 12.0;
+  const Plant p(plant_config(s));
+  EXPECT_DOUBLE_EQ(p.conduction_speed_rpm(), 1500.0);
+  const PlantPower w = p.power(1e-4, 3.0);
+  EXPECT_DOUBLE_EQ(w.runner_speed_rpm, 1500.0);
+  EXPECT_NEAR(w.speed_ratio, 0.738891, 1e-6);
+  EXPECT_NEAR(w.shaft_W / w.jet_W, 0.771725 * s.turbine.peak_efficiency, 1e-6);
+}
+
+TEST(Plant, GeneratorBelowTheBatteryVoltageAtRunawayChargesNothing) {
+  // Hand computation: runaway (x = 1) at 3.0 m is 60 x 7.440596 / (pi x 0.070) = 2030.07 rpm;
+  // 12 V / 0.005 V/rpm = 2400 rpm is never reached, so nothing is delivered.
+  Scenario s = runner_under_a_column();
+  s.generator.volts_per_rpm = 0.005;
+  s.battery.voltage_V = 12.0;
+  const Plant p(plant_config(s));
+  const PlantPower w = p.power(1e-4, 3.0);
+  EXPECT_GT(w.jet_W, 0.0);
+  EXPECT_EQ(w.shaft_W, 0.0);
+  EXPECT_EQ(w.electrical_W, 0.0);
+}
+
 TEST(Plant, PowerChainMultipliesTheEfficiencies) {
-  const Scenario s = make_scenario();
+  Scenario s = make_scenario();
+  s.turbine.best_at_every_head = true;
   const Plant p(plant_config(s));
   const double q = 1.5e-4;
   const double head = 3.0;

@@ -174,7 +174,10 @@ TEST(Scenario, FillsDefaultsForEveryOptionalKey) {
   EXPECT_DOUBLE_EQ(s.nozzle.discharge_coefficient, 0.95);
   EXPECT_DOUBLE_EQ(s.nozzle.velocity_coefficient, 0.97);
   EXPECT_FALSE(s.turbine.speed_rpm.has_value());
+  EXPECT_FALSE(s.turbine.best_at_every_head);
   EXPECT_DOUBLE_EQ(s.turbine.peak_efficiency, 0.7);
+  EXPECT_DOUBLE_EQ(s.generator.volts_per_rpm, 0.0);
+  EXPECT_DOUBLE_EQ(s.battery.voltage_V, 0.0);
   EXPECT_DOUBLE_EQ(s.generator.efficiency, 0.65);
   EXPECT_DOUBLE_EQ(s.generator.cut_in_W, 0.0);
   EXPECT_DOUBLE_EQ(s.battery.initial_soc, 0.5);
@@ -192,6 +195,16 @@ TEST(Scenario, ReadsBestAsTheBestRunnerSpeed) {
   const Scenario s = parse(
       minimal_with("  runner_diameter_mm: 60", "  runner_diameter_mm: 60\n  speed_rpm: best"));
   EXPECT_FALSE(s.turbine.speed_rpm.has_value());
+  EXPECT_TRUE(s.turbine.best_at_every_head);
+}
+
+TEST(Scenario, GeneratorVoltsPerRpmNeedTheBatteryVoltage) {
+  EXPECT_EQ(error_of(minimal(), {"generator.volts_per_rpm=0.01"}),
+            "demo.yaml:25: battery.voltage_V: missing required key (needed by "
+            "generator.volts_per_rpm)");
+  const Scenario s = parse(minimal(), {"generator.volts_per_rpm=0.01", "battery.voltage_V=12"});
+  EXPECT_DOUBLE_EQ(s.generator.volts_per_rpm, 0.01);
+  EXPECT_DOUBLE_EQ(s.battery.voltage_V, 12.0);
 }
 
 TEST(Scenario, RejectsARunnerSpeedThatIsNeitherANumberNorBest) {

@@ -400,6 +400,7 @@ TEST(Simulation, EnergyAccountsClose) {
   Scenario s = make_scenario(3.0 * 3600.0, 60.0);
   s.battery.capacity_J = 0.5 * kJoulesPerWh;  // small, so that it fills and curtails
   s.battery.load_W = 0.2;
+  s.turbine.best_at_every_head = true;
   const double inflow = 6.0 * kLitre_m3 * kPerMinute;
   RecordingObserver obs;
   const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
@@ -505,6 +506,7 @@ TEST(Simulation, RoofLagDelaysButKeepsTheRunoff) {
 
 TEST(Simulation, CutInDropsThePowerOfTheDribble) {
   Scenario s = make_scenario(3.0 * 3600.0, 60.0);
+  s.turbine.best_at_every_head = true;  // a held runner gives the dribble's low head nothing
   const double inflow = 6.0 * kLitre_m3 * kPerMinute;
   RecordingObserver all;
   const RunResult free_run = simulate(s, constant_inflow(s, inflow), all);

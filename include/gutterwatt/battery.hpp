@@ -12,6 +12,7 @@ struct BatteryConfig {
   double charge_efficiency = 0.9;
   double max_charge_W = 1e9;
   double load_W = 0.0;
+  double voltage_V = 0.0;  ///< nominal terminal voltage; 0: not given
   /// Optional 24 hourly loads (local time), replacing load_W when given.
   std::vector<double> load_profile_W;
 };

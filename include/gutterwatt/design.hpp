@@ -29,6 +29,8 @@ struct DesignFigures {
   double jet_velocity_m_per_s = 0.0;
   double jet_power_W = 0.0;
   double electrical_power_W = 0.0;
+  double runner_speed_rpm = 0.0;            ///< at the design head
+  double speed_ratio = 0.0;                 ///< bucket over jet speed at the design head
   double overflow_intensity_m_per_s = 0.0;  ///< steady rain that overflows the rim while running
   std::optional<double>
       energy_per_cycle_J;               ///< one release from the set-point, no inflow (simulated)

@@ -18,7 +18,11 @@ enum class TurbineKind { impulse };
 
 struct TurbineConfig {
   double runner_diameter_m = 0.0;
-  std::optional<double> speed_rpm;  ///< nullopt: the runner turns at the best speed
+  /// A runner speed held fixed. nullopt: the best speed at the design head, held fixed (a
+  /// permanent-magnet generator on a battery turns near one speed).
+  std::optional<double> speed_rpm;
+  /// `speed_rpm: best`: the best speed at every head, an upper bound no fixed runner reaches.
+  bool best_at_every_head = false;
   double peak_efficiency = 0.7;
   TurbineKind kind = TurbineKind::impulse;
 };
@@ -26,6 +30,9 @@ struct TurbineConfig {
 struct GeneratorConfig {
   double efficiency = 0.65;
   double cut_in_W = 0.0;
+  /// Open-circuit volts per rpm of a permanent-magnet generator; 0: not given. With the battery's
+  /// voltage it sets the speed below which no current flows into the battery.
+  double volts_per_rpm = 0.0;
 };
 
 /// Everything below the release, as Plant needs it.
@@ -39,6 +46,10 @@ struct PlantConfig {
   double temperature_C = 15.0;
   /// The highest reservoir level the full-flow table must cover (the rim or the trigger level).
   double top_level_m = 0.0;
+  /// The reservoir level at which the release starts to run: the design head is the nozzle's
+  /// head with the release running full from there (the column's height with a head column).
+  double design_level_m = 0.0;
+  double battery_voltage_V = 0.0;  ///< 0: not given
 };
 
 /// The flow the conveyance of `config` carries with the release running full and the reservoir
@@ -53,6 +64,8 @@ struct PlantPower {
   double jet_W = 0.0;         ///< rho Q V^2 / 2
   double shaft_W = 0.0;       ///< after the runner's hydraulic efficiency
   double electrical_W = 0.0;  ///< after the generator, before the cut-in test
+  double runner_speed_rpm = 0.0;
+  double speed_ratio = 0.0;  ///< bucket speed over jet speed
 };
 
 /// Column head below which the nozzle's flow is taken in proportion to head rather than to its
@@ -89,6 +102,18 @@ class Plant {
   /// Jet, shaft and electrical power for `flow` at nozzle head `head_m`.
   PlantPower power(double flow_m3_per_s, double head_m) const;
 
+  /// Head at the nozzle with the release running full from the design level (the column's height
+  /// with a head column).
+  double design_head_m() const { return design_head_m_; }
+  /// The speed the runner is held at (0 when it turns at the best speed at every head).
+  double held_speed_rpm() const { return held_speed_rpm_; }
+  /// Speed below which the generator's open-circuit voltage does not reach the battery's (0 when
+  /// volts per rpm or the battery's voltage is not given).
+  double conduction_speed_rpm() const { return conduction_speed_rpm_; }
+  /// The runner's speed under a jet of `jet_velocity_m_per_s`: the held speed (or the best one),
+  /// but never below the conduction speed, where the generator begins to load the runner.
+  double runner_speed_rpm(double jet_velocity_m_per_s) const;
+
   /// Generator output below this is not delivered.
   double cut_in_W() const { return cut_in_W_; }
   double density_kg_per_m3() const { return density_kg_per_m3_; }
@@ -100,13 +125,21 @@ class Plant {
   double drop_m_;
   std::optional<HeadColumnConfig> column_;
   double runner_diameter_m_;
-  std::optional<double> speed_rpm_;
+  bool best_at_every_head_;
   double peak_efficiency_;
   double generator_efficiency_;
   double cut_in_W_;
   double density_kg_per_m3_;
   double kinematic_viscosity_m2_per_s_;
   UniformTable full_flow_table_;
+  double design_head_m_ = 0.0;
+  double held_speed_rpm_ = 0.0;
+  double conduction_speed_rpm_ = 0.0;
 };
+
+/// Runner speed at which the bucket moves at `speed_ratio` times the jet velocity:
+/// N = 60 x V_j / (pi D) (pitch-circle speed u = pi D N / 60).
+double runner_speed_for_ratio_rpm(double runner_diameter_m, double speed_ratio,
+                                  double jet_velocity_m_per_s);
 
 }  // namespace gutterwatt

@@ -72,6 +72,10 @@ struct Scenario {
   SimulationConfig simulation;
 };
 
+/// The reservoir level at which the release starts to run: a bell's priming level (lip plus the
+/// weir head of the priming flow, at most the rim), a float valve's opening level, else the rim.
+double design_level_m(const Scenario& scenario);
+
 /// The plant's part of the scenario, for Plant.
 PlantConfig plant_config(const Scenario& scenario);
 
