@@ -861,11 +861,16 @@ void check_release(const Seen& seen, const Scenario& s) {
 void check_conveyance(const Seen& seen) {
   const Value& drop = seen.at("drop_pipe.drop_m");
   const Value& length = seen.at("drop_pipe.length_m");
-  length.expect(length.number() >= drop.number(), "must be >= drop_pipe.drop_m = " + drop.raw());
   if (seen.has("head_column.height_m")) {
+    // With a head column the drop pipe ends at the column's top, drop - height below the floor.
     const Value& height = seen.at("head_column.height_m");
     height.expect(height.number() < drop.number(),
                   "must be below drop_pipe.drop_m = " + drop.raw());
+    const double fall = drop.number() - height.number();
+    length.expect(length.number() >= fall, "must be >= drop_pipe.drop_m - head_column.height_m = " +
+                                               show(fall) + ", the fall to the column's top");
+  } else {
+    length.expect(length.number() >= drop.number(), "must be >= drop_pipe.drop_m = " + drop.raw());
   }
   const Value& pipe = seen.at("drop_pipe.diameter_mm");
   const Value& nozzle = seen.at("nozzle.diameter_mm");

@@ -492,6 +492,16 @@ TEST(Scenario, RejectsAHeadColumnTallerThanTheDrop) {
             "--set: head_column.height_m: must be below drop_pipe.drop_m = 2.5 (got 2.5)");
 }
 
+TEST(Scenario, DropPipeWithAHeadColumnNeedsOnlyReachTheColumnsTop) {
+  // drop 2.5 m, column 1.0 m: the pipe ends 1.5 m below the floor, so 2 m is enough.
+  const std::vector<std::string> column = {"head_column.diameter_mm=40", "head_column.height_m=1"};
+  const Scenario s = parse(minimal_with("length_m: 3", "length_m: 2"), column);
+  EXPECT_DOUBLE_EQ(s.drop_pipe.length_m, 2.0);
+  EXPECT_EQ(error_of(minimal_with("length_m: 3", "length_m: 1"), column),
+            "demo.yaml:19: drop_pipe.length_m: must be >= drop_pipe.drop_m - head_column.height_m "
+            "= 1.5, the fall to the column's top (got 1)");
+}
+
 TEST(Scenario, RejectsADropPipeShorterThanItsDrop) {
   EXPECT_EQ(error_of(minimal_with("length_m: 3", "length_m: 2")),
             "demo.yaml:19: drop_pipe.length_m: must be >= drop_pipe.drop_m = 2.5 (got 2)");
