@@ -8,6 +8,7 @@
 #include <charconv>
 #include <cmath>
 #include <cstdio>
+#include <cstdlib>
 #include <cstring>
 #include <fstream>
 #include <initializer_list>
@@ -79,12 +80,64 @@ constexpr Limits kShare{0.0, 1.0, false, false};    // [0, 1]: state of charge
 constexpr Limits kFraction{0.0, 1.0, true, false};  // (0, 1]: efficiencies and coefficients
 constexpr Limits between(double lo, double hi) { return {lo, hi, false, false}; }
 
+/// How a number given in a key's customary twin (`rim_in` for `rim_mm`) becomes a number in the
+/// unit of the key it stands for: x * factor + offset. Inches may be written as fractions.
+struct Conversion {
+  double factor = 1.0;
+  double offset = 0.0;
+  bool inches = false;
+
+  double to_key(double x) const { return x * factor + offset; }
+  /// To 12 significant digits, so that limits read as written (32 F, not 31.999999999999996).
+  double to_given(double x) const {
+    if (factor == 1.0 && offset == 0.0) return x;
+    char buf[32];
+    std::snprintf(buf, sizeof buf, "%.12g", (x - offset) / factor);
+    return std::strtod(buf, nullptr);
+  }
+};
+
+/// `3/4` or `1 1/4` (a whole number, a space and a proper fraction), or nullopt.
+std::optional<double> to_fraction(std::string_view text) {
+  const auto whole_number = [](std::string_view digits) -> std::optional<double> {
+    if (digits.empty() || digits.find_first_not_of("0123456789") != std::string_view::npos) {
+      return std::nullopt;
+    }
+    return to_number(digits);
+  };
+  const std::size_t slash = text.find('/');
+  if (slash == std::string_view::npos) return std::nullopt;
+  std::string_view left = text.substr(0, slash);
+  double whole = 0.0;
+  const std::size_t space = left.find(' ');
+  if (space != std::string_view::npos) {
+    const auto w = whole_number(left.substr(0, space));
+    if (!w) return std::nullopt;
+    whole = *w;
+    left = left.substr(space + 1);
+  }
+  const auto numerator = whole_number(left);
+  const auto denominator = whole_number(text.substr(slash + 1));
+  if (!numerator || !denominator || *denominator == 0.0) return std::nullopt;
+  return whole + *numerator / *denominator;
+}
+
 /// One node of the scenario tree with its dotted path and where it was written, so that every
-/// conversion reports its errors the same way.
+/// conversion reports its errors the same way. A node given in a customary twin carries the
+/// conversion to the unit of the key it stands for; its path is the key as written.
 class Value {
  public:
-  Value(YAML::Node node, std::string path, std::string label, int line)
-      : node_(std::move(node)), path_(std::move(path)), label_(std::move(label)), line_(line) {}
+  Value(YAML::Node node, std::string path, std::string label, int line, Conversion conversion = {})
+      : node_(std::move(node)),
+        path_(std::move(path)),
+        label_(std::move(label)),
+        line_(line),
+        conversion_(conversion) {}
+
+  /// The same node read in a customary twin's unit.
+  Value converted(const Conversion& conversion) const {
+    return Value(node_, path_, label_, line_, conversion);
+  }
 
   const YAML::Node& node() const { return node_; }
   const std::string& path() const { return path_; }
@@ -112,20 +165,20 @@ class Value {
     return "nothing";
   }
 
-  double number(const Limits& limits = kAny) const {
-    const auto x = to_number(scalar("a number"));
-    if (!x) fail("expected a number, got " + got());
-    check(*x, limits);
-    return *x;
-  }
+  /// The number in the unit of the key it is given for (converted from a twin's unit).
+  double number(const Limits& limits = kAny) const { return read_number("a number", limits); }
 
   /// A number, or nullopt when the text is `word`.
   std::optional<double> number_or(const std::string& word, const Limits& limits) const {
     if (raw() == word) return std::nullopt;
-    const auto x = to_number(scalar("a number or " + word));
-    if (!x) fail("expected a number or " + word + ", got " + got());
-    check(*x, limits);
-    return *x;
+    return read_number("a number or " + word, limits);
+  }
+
+  /// A number in the key's unit shown in the unit it was given in, for messages.
+  std::string shown(double key_value) const {
+    char buf[32];
+    std::snprintf(buf, sizeof buf, "%.12g", conversion_.to_given(key_value));
+    return buf;
   }
 
   /// Text that is shown or written (a name, a column name): UTF-8, not empty.
@@ -194,7 +247,7 @@ class Value {
       const YAML::Node item = node_[i];
       // A value from an override has no line; its elements have none either.
       const int line = line_ > 0 && !item.Mark().is_null() ? item.Mark().line + 1 : line_;
-      out.emplace_back(item, path_ + "[" + std::to_string(i) + "]", label_, line);
+      out.emplace_back(item, path_ + "[" + std::to_string(i) + "]", label_, line, conversion_);
     }
     return out;
   }
@@ -223,10 +276,31 @@ class Value {
     expect(limits.contains(x), limits.describe());
   }
 
+  /// Reads the text as a number (inches also as fractions), checks it against `limits` (in the
+  /// key's unit, shown in the unit given) and converts it to the key's unit.
+  double read_number(const std::string& expected, const Limits& limits) const {
+    const std::string& text = scalar(expected);
+    auto x = to_number(text);
+    if (!x && to_fraction(text)) {
+      if (!conversion_.inches) {
+        fail("expected " + expected + ", got " + got() +
+             " (fractions such as 3/4 are read only for inches, keys ending in _in)");
+      }
+      x = to_fraction(text);
+    }
+    if (!x) fail("expected " + expected + ", got " + got());
+    Limits given = limits;
+    if (given.lo) given.lo = conversion_.to_given(*given.lo);
+    if (given.hi) given.hi = conversion_.to_given(*given.hi);
+    check(*x, given);
+    return conversion_.to_key(*x);
+  }
+
   YAML::Node node_;
   std::string path_;
   std::string label_;
   int line_;
+  Conversion conversion_;
 };
 
 /// Converts one key's value into the scenario; checks that need only this value happen here.
@@ -278,10 +352,53 @@ double roof_lag_s(const Value& v, double lag_s) {
   return lag_s;
 }
 
+bool is_valid(std::string_view name, const std::vector<std::string_view>& valid) {
+  return std::find(valid.begin(), valid.end(), name) != valid.end();
+}
+
+/// Battery capacity in ampere-hours stands for watt-hours at the battery's nominal voltage.
+constexpr std::string_view kAmpereHours = "capacity_Ah";
+constexpr std::string_view kWattHours = "capacity_Wh";
+constexpr std::string_view kVoltage = "voltage_V";
+
+/// The key among `valid` that `name` is the customary twin of (`rim_in` of `rim_mm`,
+/// `capacity_Ah` of `capacity_Wh`), or an empty string.
+std::string twin_of(std::string_view name, const std::vector<std::string_view>& valid) {
+  if (name == kAmpereHours && is_valid(kWattHours, valid)) return std::string(kWattHours);
+  for (const UnitTwin& t : kUnitTwins) {
+    if (name.size() <= t.us.size() + 1 || !name.ends_with(t.us) ||
+        name[name.size() - t.us.size() - 1] != '_') {
+      continue;
+    }
+    std::string si(name.substr(0, name.size() - t.us.size()));
+    si += t.si;
+    if (is_valid(si, valid)) return si;
+  }
+  return "";
+}
+
+/// True when `a` and `b` name the same quantity in the two systems.
+bool are_twins(std::string_view a, std::string_view b) {
+  return a != b && (twin_of(a, {b}) == b || twin_of(b, {a}) == a);
+}
+
 /// Fails on `item` when its key `name` is not one of `valid`, suggesting the nearest.
 void reject_unknown_key(const Value& item, const std::string& name,
                         const std::vector<std::string_view>& valid) {
-  if (std::find(valid.begin(), valid.end(), name) != valid.end()) return;
+  if (is_valid(name, valid)) return;
+  for (std::string_view key : valid) {
+    const UnitTwin* t = si_unit_of(key);
+    if (t == nullptr) continue;
+    const std::string_view base = key.substr(0, key.size() - t->si.size());
+    // A short or per-something ending is a unit; longer words are names misspelt.
+    const std::string_view ending =
+        std::string_view(name).substr(std::min(name.size(), base.size()));
+    if (name.starts_with(base) && !ending.empty() &&
+        (ending.size() <= 4 || ending.find("_per_") != std::string_view::npos)) {
+      item.fail("unknown unit suffix _" + std::string(ending) + "; give " + std::string(key) +
+                " or " + std::string(base) + std::string(t->us));
+    }
+  }
   if (!name.empty() && name.find_first_not_of("0123456789") == std::string::npos) {
     // `{temperature_C: 12,5}` reads as a key `5` after the value 12.
     item.fail(
@@ -460,7 +577,7 @@ const std::vector<Section>& schema() {
             [](V v, S s) {
               s.roof.area_m2 = v.number(kPositive);
               v.expect(s.roof.area_m2 <= kMaxRoofArea_m2,
-                       "must be at most 1000000, a square kilometre");
+                       "must be at most " + v.shown(kMaxRoofArea_m2) + ", a square kilometre");
             }},
            {"runoff_coefficient", kOptional,
             [](V v, S s) { s.roof.runoff_coefficient = v.number(kFraction); }},
@@ -634,6 +751,7 @@ const std::vector<Section>& schema() {
        {
            {"capacity_Wh", kRequired,
             [](V v, S s) { s.battery.capacity_J = v.number(kPositive) * kJoulesPerWh; }},
+           {"voltage_V", kOptional, [](V v, S) { v.number(kPositive); }},
            {"initial_soc", kOptional, [](V v, S s) { s.battery.initial_soc = v.number(kShare); }},
            {"charge_efficiency", kOptional,
             [](V v, S s) { s.battery.charge_efficiency = v.number(kFraction); }},
@@ -697,7 +815,8 @@ std::string_view nearest(std::string_view name, const std::vector<std::string_vi
 /// Every key and section present in the tree, by dotted path, for the checks across keys.
 class Seen {
  public:
-  void add(const Value& v) { values_.emplace(v.path(), v); }
+  /// Adds a key or section under its path in SI units (the key a twin stands for).
+  void add(const std::string& path, const Value& v) { values_.emplace(path, v); }
   bool has(const std::string& path) const { return values_.count(path) > 0; }
   const Value& at(const std::string& path) const { return values_.at(path); }
   double number(const std::string& path) const { return at(path).number(); }
@@ -714,7 +833,9 @@ class Seen {
   }
 
   void exclusive(const std::string& a, const std::string& b) const {
-    if (has(a) && has(b)) at(b).fail("give either " + a + " or " + b + ", not both");
+    if (has(a) && has(b)) {
+      at(b).fail("give either " + at(a).path() + " or " + at(b).path() + ", not both");
+    }
   }
 
  private:
@@ -758,12 +879,12 @@ void check_level_table(const Seen& seen) {
   const Value& areas = seen.at("reservoir.areas_m2");
   const std::size_t n_areas = areas.items().size();
   if (n_areas != levels.size()) {
-    areas.fail("must have one value per level in reservoir.levels_mm, " +
+    areas.fail("must have one value per level in " + levels_key.path() + ", " +
                std::to_string(levels.size()) + " (got " + std::to_string(n_areas) + ")");
   }
   const Value& rim = seen.at("reservoir.rim_mm");
   rim.expect(rim.number() <= levels.back().number(),
-             "must not be above the top of reservoir.levels_mm, " + levels.back().raw());
+             "must not be above the top of " + levels_key.path() + ", " + levels.back().raw());
 }
 
 /// The rim as the checks of other keys name it: the key as written, or the depth it defaults to.
@@ -852,8 +973,7 @@ void check_release(const Seen& seen, const Scenario& s) {
   if (kind != ReleaseKind::bell && kind != ReleaseKind::float_valve) return;
   const Value& trigger = seen.at("release.trigger_level_mm");
   const Value& brk = seen.at("release.break_level_mm");
-  brk.expect(brk.number() < trigger.number(),
-             "must be below release.trigger_level_mm = " + trigger.raw());
+  brk.expect(brk.number() < trigger.number(), "must be below " + trigger.named());
   trigger.expect(trigger.number() * kMetresPerMm <= s.reservoir.rim_m * (1.0 + 1e-12),
                  "must not be above " + rim_text(seen, s));
 }
@@ -864,18 +984,16 @@ void check_conveyance(const Seen& seen) {
   if (seen.has("head_column.height_m")) {
     // With a head column the drop pipe ends at the column's top, drop - height below the floor.
     const Value& height = seen.at("head_column.height_m");
-    height.expect(height.number() < drop.number(),
-                  "must be below drop_pipe.drop_m = " + drop.raw());
+    height.expect(height.number() < drop.number(), "must be below " + drop.named());
     const double fall = drop.number() - height.number();
     length.expect(length.number() >= fall, "must be >= drop_pipe.drop_m - head_column.height_m = " +
                                                show(fall) + ", the fall to the column's top");
   } else {
-    length.expect(length.number() >= drop.number(), "must be >= drop_pipe.drop_m = " + drop.raw());
+    length.expect(length.number() >= drop.number(), "must be >= " + drop.named());
   }
   const Value& pipe = seen.at("drop_pipe.diameter_mm");
   const Value& nozzle = seen.at("nozzle.diameter_mm");
-  nozzle.expect(nozzle.number() < pipe.number(),
-                "must be smaller than drop_pipe.diameter_mm = " + pipe.raw());
+  nozzle.expect(nozzle.number() < pipe.number(), "must be smaller than " + pipe.named());
 }
 
 /// A number as a message shows a computed value: three significant digits.
@@ -969,7 +1087,7 @@ class Loader {
       if (!sec.node().IsMap() && !sec.node().IsNull()) {
         sec.fail("expected a section of keys, got " + sec.got());
       }
-      seen.add(sec);
+      seen.add(sec.path(), sec);
       std::vector<std::string_view> key_names;
       for (const Key& key : section.keys) key_names.push_back(key.name);
       const auto values = entries(sec, key_names);
@@ -977,7 +1095,7 @@ class Loader {
         const auto value = values.find(std::string(key.name));
         if (value != values.end()) {
           key.apply(value->second, s);
-          seen.add(value->second);
+          seen.add(sec.path() + "." + std::string(key.name), value->second);
         } else if (key.required) {
           throw InputError(sec.label(), sec.line(), sec.path() + "." + std::string(key.name),
                            "missing required key");
@@ -995,16 +1113,43 @@ class Loader {
     std::map<std::string, Value> out;
     if (!section.node().IsMap()) return out;
     for (auto it = section.node().begin(); it != section.node().end(); ++it) {
-      const Value item = child(section, it->first, it->second);
-      const std::string name = it->first.Scalar();
+      Value item = child(section, it->first, it->second);
+      std::string name = it->first.Scalar();
+      if (const std::string si = twin_of(name, valid); !si.empty() && !is_valid(name, valid)) {
+        item = item.converted(conversion(section, name, si, item));
+        name = si;
+      }
       reject_unknown_key(item, name, valid);
       const auto [first, inserted] = out.emplace(name, item);
-      if (!inserted) {
-        item.fail("duplicate key (first given on line " + std::to_string(first->second.line()) +
-                  ")");
+      if (inserted) continue;
+      const std::string first_line = std::to_string(first->second.line());
+      if (first->second.path() == item.path()) {
+        item.fail("duplicate key (first given on line " + first_line + ")");
       }
+      item.fail("give either " + first->second.path() + " (line " + first_line + ") or " +
+                item.path() + " (line " + std::to_string(item.line()) + "), not both");
     }
     return out;
+  }
+
+  /// The conversion of `item`, given as the customary twin `name` in `section`, to the unit of
+  /// the key it stands for.
+  Conversion conversion(const Value& section, std::string_view name, std::string_view si,
+                        const Value& item) const {
+    if (name == kAmpereHours) {
+      const YAML::Node& node = section.node();
+      const YAML::Node voltage = node[std::string(kVoltage)];
+      if (!voltage) {
+        item.fail("needs " + section.path() + "." + std::string(kVoltage) +
+                  " to turn ampere-hours into watt-hours");
+      }
+      const auto key = std::find_if(node.begin(), node.end(), [](const auto& entry) {
+        return entry.first.IsScalar() && entry.first.Scalar() == kVoltage;
+      });
+      return {child(section, key->first, key->second).number(kPositive), 0.0, false};
+    }
+    const UnitTwin* t = si_unit_of(si);
+    return {t->si_per_us, t->si_offset, t->us == "in"};
   }
 
   Value child(const Value& parent, const YAML::Node& key, const YAML::Node& value) const {
@@ -1108,6 +1253,14 @@ std::set<std::string> apply_overrides(YAML::Node& root, const std::vector<std::s
       }
       node.reset(next);
     }
+    // A value for one twin replaces one written for the other.
+    std::vector<std::string> twins;
+    for (auto it = node.begin(); it != node.end(); ++it) {
+      if (it->first.IsScalar() && are_twins(it->first.Scalar(), parts.back())) {
+        twins.push_back(it->first.Scalar());
+      }
+    }
+    for (const std::string& twin : twins) node.remove(twin);
     node[parts.back()] = value;
     written.insert(key);
   }

@@ -325,6 +325,105 @@ TEST(Scenario, ReadsAHalfRoundBySize) {
   EXPECT_DOUBLE_EQ(s.reservoir.width_m, 0.150);
 }
 
+// Each customary twin against its SI key: the SI value is the twin's by the exact factors of
+// NIST Handbook 44 (1 in = 25.4 mm, 1 ft = 0.3048 m, 1 US gal = 3.785411784 L), worked by hand.
+struct TwinCase {
+  std::string si;
+  std::string twin;
+  double (*field)(const Scenario&);
+};
+
+TEST(Scenario, EveryTwinGivesTheSiKeysResult) {
+  const std::vector<TwinCase> cases = {
+      {"site.temperature_C=10", "site.temperature_F=50",
+       [](const Scenario& s) { return s.site.temperature_C; }},
+      {"roof.area_m2=55.741824", "roof.area_ft2=600",
+       [](const Scenario& s) { return s.roof.area_m2; }},
+      {"roof.initial_loss_mm=12.7", "roof.initial_loss_in=1/2",
+       [](const Scenario& s) { return s.roof.initial_loss_m; }},
+      {"roof.drying_mm_per_day=2.54", "roof.drying_in_per_day=0.1",
+       [](const Scenario& s) { return s.roof.drying_m_per_s; }},
+      {"first_flush.volume_L=18.92705892", "first_flush.volume_gal=5",
+       [](const Scenario& s) { return s.first_flush.volume_m3; }},
+      {"reservoir.width_mm=127", "reservoir.width_in=5",
+       [](const Scenario& s) { return s.reservoir.width_m; }},
+      {"reservoir.length_m=12.192", "reservoir.length_ft=40",
+       [](const Scenario& s) { return s.reservoir.length_m; }},
+      {"reservoir.rim_mm=47.625", "reservoir.rim_in=1 7/8",
+       [](const Scenario& s) { return s.reservoir.rim_m; }},
+      {"reservoir.fall_mm=6.35", "reservoir.fall_in=1/4",
+       [](const Scenario& s) { return s.reservoir.fall_m; }},
+      {"release.trigger_level_mm=38.1", "release.trigger_level_in=1.5",
+       [](const Scenario& s) { return s.release.trigger_level_m; }},
+      {"release.break_level_mm=3.175", "release.break_level_in=1/8",
+       [](const Scenario& s) { return s.release.break_level_m; }},
+      {"release.standpipe_diameter_mm=19.05", "release.standpipe_diameter_in=3/4",
+       [](const Scenario& s) { return s.release.standpipe_diameter_m; }},
+      {"release.priming_flow_L_per_min=1.892705892", "release.priming_flow_gpm=0.5",
+       [](const Scenario& s) { return s.release.priming_flow_m3_per_s; }},
+      {"drop_pipe.diameter_mm=31.75", "drop_pipe.diameter_in=1 1/4",
+       [](const Scenario& s) { return s.drop_pipe.diameter_m; }},
+      {"drop_pipe.length_m=3.6576", "drop_pipe.length_ft=12",
+       [](const Scenario& s) { return s.drop_pipe.length_m; }},
+      {"drop_pipe.drop_m=2.4384", "drop_pipe.drop_ft=8",
+       [](const Scenario& s) { return s.drop_m; }},
+      {"nozzle.diameter_mm=6.35", "nozzle.diameter_in=1/4",
+       [](const Scenario& s) { return s.nozzle.diameter_m; }},
+      {"turbine.runner_diameter_mm=76.2", "turbine.runner_diameter_in=3",
+       [](const Scenario& s) { return s.turbine.runner_diameter_m; }},
+      {"battery.capacity_Wh=84", "battery.capacity_Ah=7",
+       [](const Scenario& s) { return s.battery.capacity_J; }},
+  };
+  for (const TwinCase& c : cases) {
+    const std::vector<std::string> extra = {"battery.voltage_V=12"};
+    std::vector<std::string> si = {c.si};
+    std::vector<std::string> twin = {c.twin, extra[0]};
+    const double expected = c.field(parse(minimal(), si));
+    EXPECT_NEAR(c.field(parse(minimal(), twin)), expected, 1e-12 * std::abs(expected)) << c.twin;
+  }
+}
+
+TEST(Scenario, ATwinInTheFileGivesTheSameScenario) {
+  const Scenario si = parse(minimal_with("  area_m2: 12", "  area_m2: 55.741824"));
+  const Scenario us = parse(minimal_with("  area_m2: 12", "  area_ft2: 600"));
+  EXPECT_NEAR(us.roof.area_m2, si.roof.area_m2, 1e-12 * si.roof.area_m2);
+}
+
+TEST(Scenario, RejectsBothTwinsNamingBothLines) {
+  EXPECT_EQ(error_of(minimal_with("  rim_mm: 50\n", "  rim_mm: 50\n  rim_in: 2\n")),
+            "demo.yaml:12: reservoir.rim_in: give either reservoir.rim_mm (line 11) or "
+            "reservoir.rim_in (line 12), not both");
+}
+
+TEST(Scenario, ATwinSetOnTheCommandLineReplacesTheFilesKey) {
+  const Scenario s = parse(minimal(), {"reservoir.rim_in=1 7/8"});
+  EXPECT_NEAR(s.reservoir.rim_m, 0.047625, 1e-15);
+}
+
+TEST(Scenario, RejectsAnUnknownUnitSuffix) {
+  EXPECT_EQ(error_of(minimal_with("  rim_mm: 50", "  rim_cm: 5")),
+            "demo.yaml:11: reservoir.rim_cm: unknown unit suffix _cm; give rim_mm or rim_in");
+}
+
+TEST(Scenario, RejectsAFractionWhereNoneBelongs) {
+  EXPECT_EQ(
+      error_of(minimal_with("  length_m: 3\n", "  length_m: 3/4\n")),
+      "demo.yaml:19: drop_pipe.length_m: expected a number, got \"3/4\" (fractions such as 3/4 "
+      "are read only for inches, keys ending in _in)");
+}
+
+TEST(Scenario, LimitsOfATwinAreShownInItsUnit) {
+  EXPECT_EQ(error_of(minimal_with("  name: Minimal shed\n",
+                                  "  name: Minimal shed\n  temperature_F: 120\n")),
+            "demo.yaml:4: site.temperature_F: must be between 32 and 104 (got 120)");
+}
+
+TEST(Scenario, AmpereHoursNeedTheBatteryVoltage) {
+  EXPECT_EQ(error_of(minimal_with("  capacity_Wh: 20", "  capacity_Ah: 7")),
+            "demo.yaml:26: battery.capacity_Ah: needs battery.voltage_V to turn ampere-hours into "
+            "watt-hours");
+}
+
 TEST(Scenario, NeedsOnlyAnOrificeForAnOrificeRelease) {
   const Scenario s = parse(
       minimal_with("  trigger_level_mm: 40\n  break_level_mm: 5\n  standpipe_diameter_mm: 15\n"

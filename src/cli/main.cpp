@@ -190,7 +190,7 @@ int check_command(const CheckArgs& args) {
 
 struct StormArgs {
   std::string kind;
-  double depth_mm = 0.0;
+  std::string depth;
   std::string duration;
   std::string step;
   std::string start = "2000-01-01T00:00";
@@ -209,10 +209,29 @@ double duration_option(const std::string& text, const std::string& option) {
   return *d;
 }
 
+/// `--depth`: a depth with its unit, 50mm or 2in (a bare number is millimetres); 0 when absent.
+double depth_option_m(const std::string& text) {
+  if (text.empty()) return 0.0;
+  std::string_view number = text;
+  double metres_per_unit = kMetresPerMm;
+  if (number.ends_with("mm")) {
+    number.remove_suffix(2);
+  } else if (number.ends_with("in")) {
+    number.remove_suffix(2);
+    metres_per_unit = kMetresPerInch;
+  }
+  const auto depth = detail::to_number(number);
+  if (!depth || *depth < 0.0) {
+    throw InputError("", 0, "--depth",
+                     "expected a depth with its unit such as 50mm or 2in (got \"" + text + "\")");
+  }
+  return *depth * metres_per_unit;
+}
+
 int storm_command(const StormArgs& a) {
   StormSpec spec;
   spec.kind = parse_storm_kind(a.kind);
-  spec.depth_m = a.depth_mm * kMetresPerMm;
+  spec.depth_m = depth_option_m(a.depth);
   spec.duration_s = duration_option(a.duration, "--duration");
   spec.step_s = duration_option(a.step, "--step");
   const auto start = parse_iso8601(a.start);
@@ -320,7 +339,8 @@ int main(int argc, char** argv) {
       ->add_option("--kind", storm.kind,
                    "nrcs-I, nrcs-IA, nrcs-II, nrcs-III, chicago, idf-block, block")
       ->required();
-  storm_cmd->add_option("--depth", storm.depth_mm, "total depth, mm (optional with an IDF curve)");
+  storm_cmd->add_option("--depth", storm.depth,
+                        "total depth with its unit, 50mm or 2in (optional with an IDF curve)");
   storm_cmd->add_option("--duration", storm.duration, "storm duration, e.g. 24h, 90min")
       ->required();
   storm_cmd->add_option("--step", storm.step, "time step, e.g. 5min")->required();

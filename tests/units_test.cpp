@@ -1,0 +1,61 @@
+#include "gutterwatt/units.hpp"
+
+#include <gtest/gtest.h>
+
+namespace gutterwatt {
+namespace {
+
+// The exact factors of NIST Handbook 44, Appendix C (1959 yard and pound agreement):
+// 1 in = 25.4 mm, 1 ft = 0.3048 m, 1 US gal = 231 in^3 = 3.785411784 L.
+TEST(Units, InchAndFootAreTheExactInternationalValues) {
+  EXPECT_EQ(kMillimetresPerInch, 25.4);
+  EXPECT_EQ(kMetresPerInch, 0.0254);
+  EXPECT_EQ(kMetresPerFoot, 0.3048);
+  EXPECT_DOUBLE_EQ(kMetresPerFoot, 12.0 * kMetresPerInch);
+}
+
+TEST(Units, SquareFootIsTheFootSquared) {
+  // 0.3048^2 = 0.09290304 m^2 exactly (REFERENCES.md section 11).
+  EXPECT_EQ(kSquareMetresPerSquareFoot, 0.09290304);
+  EXPECT_NEAR(kSquareMetresPerSquareFoot, kMetresPerFoot * kMetresPerFoot, 1e-17);
+}
+
+TEST(Units, UsGallonIs231CubicInches) {
+  EXPECT_EQ(kLitresPerUsGallon, 3.785411784);
+  // 231 in^3 with 1 in = 0.254 dm: 231 * 0.254^3 = 3.785411784 dm^3 (NIST Handbook 44).
+  EXPECT_NEAR(231.0 * 0.254 * 0.254 * 0.254, kLitresPerUsGallon, 1e-15);
+}
+
+TEST(Units, FahrenheitToCelsius) {
+  // t_C = (t_F - 32) * 5 / 9: 32 F = 0 C, 212 F = 100 C, 50 F = 10 C (definition).
+  const UnitTwin* t = si_unit_of("temperature_C");
+  ASSERT_NE(t, nullptr);
+  EXPECT_EQ(t->us, "F");
+  EXPECT_NEAR(32.0 * t->si_per_us + t->si_offset, 0.0, 1e-13);
+  EXPECT_NEAR(212.0 * t->si_per_us + t->si_offset, 100.0, 1e-13);
+  EXPECT_NEAR(50.0 * t->si_per_us + t->si_offset, 10.0, 1e-13);
+}
+
+TEST(Units, WorkedConversionsOfTheReferences) {
+  // REFERENCES.md section 11, worked: 600 ft^2 = 55.741824 m^2; 3/4 in = 19.05 mm;
+  // 12 ft = 3.6576 m; 0.5 gpm = 1.892705892 L/min.
+  EXPECT_NEAR(600.0 * si_unit_of("area_m2")->si_per_us, 55.741824, 1e-12);
+  EXPECT_NEAR(0.75 * si_unit_of("diameter_mm")->si_per_us, 19.05, 1e-12);
+  EXPECT_NEAR(12.0 * si_unit_of("drop_m")->si_per_us, 3.6576, 1e-12);
+  EXPECT_NEAR(0.5 * si_unit_of("priming_flow_L_per_min")->si_per_us, 1.892705892, 1e-12);
+  // 1 gpm = 3.785411784 / 60 L/s.
+  EXPECT_NEAR(si_unit_of("peak_flow_L_per_s")->si_per_us, 3.785411784 / 60.0, 1e-15);
+}
+
+TEST(Units, EachNameHasAtMostOneTwin) {
+  EXPECT_EQ(si_unit_of("rim_mm")->us, "in");
+  EXPECT_EQ(si_unit_of("length_m")->us, "ft");
+  EXPECT_EQ(si_unit_of("area_m2")->us, "ft2");
+  EXPECT_EQ(si_unit_of("volume_L")->us, "gal");
+  EXPECT_EQ(si_unit_of("drying_mm_per_day")->us, "in_per_day");
+  EXPECT_EQ(si_unit_of("power_W"), nullptr);
+  EXPECT_EQ(si_unit_of("mm"), nullptr);
+}
+
+}  // namespace
+}  // namespace gutterwatt
