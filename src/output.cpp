@@ -37,8 +37,33 @@ double json_watt_hours(double J) { return round_to(J / kJoulesPerWh, 6); }
 
 }  // namespace
 
-TimeseriesWriter::TimeseriesWriter(std::ostream& out, const Scenario& scenario)
-    : out_(out), area_m2_(scenario.roof.area_m2), offset_s_(scenario.site.utc_offset_s) {
+namespace {
+
+[[noreturn]] void refuse_output_size(const Scenario& sc, double rows, bool estimate) {
+  const double gb = rows * kTimeseriesRowBytes / 1e9;
+  throw InputError(sc.file.string(), 0, "simulation.output_interval",
+                   std::string(estimate ? "the run would write about " : "the run passed ") +
+                       detail::fixed_trimmed(gb, gb < 10.0 ? 1 : 0) + " GB of timeseries.csv (" +
+                       detail::fixed_trimmed(rows, 0) + " rows of " +
+                       format_duration(static_cast<Instant>(sc.simulation.output_interval_s)) +
+                       "); the limit is " + detail::fixed_trimmed(kMaxTimeseriesBytes / 1e9, 1) +
+                       " GB: give a longer output_interval or a shorter period, or run with "
+                       "--force");
+}
+
+}  // namespace
+
+void check_output_size(const Scenario& sc, Instant start, Instant end) {
+  const double rows = std::ceil(static_cast<double>(end - start) / sc.simulation.output_interval_s);
+  if (rows * kTimeseriesRowBytes > kMaxTimeseriesBytes) refuse_output_size(sc, rows, true);
+}
+
+TimeseriesWriter::TimeseriesWriter(std::ostream& out, const Scenario& scenario, bool limited)
+    : out_(out),
+      scenario_(scenario),
+      area_m2_(scenario.roof.area_m2),
+      offset_s_(scenario.site.utc_offset_s),
+      limited_(limited) {
   out_ << "time,rain_mm,roof_runoff_L,reservoir_level_mm,release_state,release_L,"
           "reservoir_overflow_L,column_overflow_L,nozzle_L,head_m,power_W,energy_Wh,battery_soc,"
           "cum_energy_Wh,cum_overflow_L\n";
@@ -48,6 +73,9 @@ void TimeseriesWriter::on_start(const Sample& s) { last_ = s; }
 
 void TimeseriesWriter::on_sample(const Sample& s) {
   if (!s.output) return;
+  if (limited_ && ++rows_ * kTimeseriesRowBytes > kMaxTimeseriesBytes) {
+    refuse_output_size(scenario_, rows_, false);
+  }
   const Accounts& a = s.totals;
   const Accounts& b = last_.totals;
   const double dt = static_cast<double>(s.time - last_.time);

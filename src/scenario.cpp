@@ -203,6 +203,7 @@ class Value {
   double duration_s(const Limits& limits) const {
     const auto d = parse_duration_s(scalar("a duration"));
     if (!d) fail("expected a duration with a unit such as 30s, 5min, 1h or 1d, got " + got());
+    expect(*d == std::floor(*d), std::string(kWholeSecondsRule));
     check(*d, limits);
     return *d;
   }

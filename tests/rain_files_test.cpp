@@ -311,8 +311,8 @@ TEST(RainScenario, RejectsIntensityForDailyTotals) {
 
 TEST(RainScenario, RejectsATipCapOfPartSeconds) {
   EXPECT_EQ(scenario_error_of("  file: t.csv\n  format: tips\n  tip_depth: 0.2\n  tip_cap: 1.5s\n"),
-            "demo.yaml:5: rain.tip_cap: must be a whole number of seconds from 1s to 1d (got "
-            "1.5s)");
+            "demo.yaml:5: rain.tip_cap: must be a whole number of seconds (time is kept in whole "
+            "seconds) (got 1.5s)");
 }
 
 }  // namespace

@@ -40,6 +40,11 @@ std::optional<int> parse_utc_offset(std::string_view text);
 /// unknown unit.
 std::optional<double> parse_duration_s(std::string_view text);
 
+/// The rule every duration a user gives follows (scenario keys and command-line options alike):
+/// time is kept in whole seconds, so `1.5s` is refused rather than rounded.
+inline constexpr std::string_view kWholeSecondsRule =
+    "must be a whole number of seconds (time is kept in whole seconds)";
+
 /// Formats a whole number of seconds for people: `2h 55min`, `1d 6h`, `30s`, `0s`; the parts that
 /// are zero are left out. A negative duration gets a leading `-`.
 std::string format_duration(std::int64_t seconds);

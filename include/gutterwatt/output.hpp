@@ -11,19 +11,34 @@
 
 namespace gutterwatt {
 
+/// Most bytes of timeseries.csv a run writes unless forced (`run --force`): a century of hourly
+/// rows is about 90 MB, a 1 s interval over ten years about 30 GB (a project choice, no source).
+inline constexpr double kMaxTimeseriesBytes = 1e9;
+
+/// Bytes of a timeseries.csv row with values in every column, for the estimate.
+inline constexpr double kTimeseriesRowBytes = 100.0;
+
+/// Throws InputError naming the scenario and `simulation.output_interval`, with the estimate,
+/// when a run over [start, end) would write more than kMaxTimeseriesBytes of timeseries.csv.
+void check_output_size(const Scenario& scenario, Instant start, Instant end);
+
 /// Writes one timeseries.csv row per output interval: interval sums (rain, runoff, flows,
 /// energy), end-of-interval state (level, release state, head, state of charge), the interval's
-/// mean electrical power and running totals.
+/// mean electrical power and running totals. With `limited`, throws the InputError of
+/// check_output_size once the rows pass kMaxTimeseriesBytes (for a period not known in advance).
 class TimeseriesWriter : public Observer {
  public:
-  TimeseriesWriter(std::ostream& out, const Scenario& scenario);
+  TimeseriesWriter(std::ostream& out, const Scenario& scenario, bool limited = false);
   void on_start(const Sample& s) override;
   void on_sample(const Sample& s) override;
 
  private:
   std::ostream& out_;
+  const Scenario& scenario_;
   double area_m2_;
   int offset_s_;
+  bool limited_;
+  double rows_ = 0.0;
   Sample last_;
 };
 

@@ -6,6 +6,7 @@
 
 #include <CLI/CLI.hpp>
 #include <atomic>
+#include <cmath>
 #include <csignal>
 #include <filesystem>
 #include <fstream>
@@ -119,6 +120,7 @@ struct RunArgs {
   std::string from;
   std::string to;
   bool quiet = false;
+  bool force = false;
 };
 
 // Applies --from/--to as overrides so they are checked like any scenario key.
@@ -131,6 +133,9 @@ std::vector<std::string> overrides_of(const RunArgs& a) {
 
 int run_command(const RunArgs& args) {
   const Scenario sc = load_scenario_unless_stopped(args.scenario, overrides_of(args));
+  // A period given in full is estimated before anything runs; an open one is watched as it runs.
+  const bool period_known = sc.simulation.start && sc.simulation.end;
+  if (!args.force && period_known) check_output_size(sc, *sc.simulation.start, *sc.simulation.end);
   const fs::path dir =
       args.out.empty() ? fs::path("out") / fs::path(args.scenario).stem() : fs::path(args.out);
   // A long record is simulated while it is read; the output folder is made once the record
@@ -144,7 +149,7 @@ int run_command(const RunArgs& args) {
       sc.rain, args.rain,
       [&](RainView& view) {
         folder.emplace(dir);
-        timeseries.emplace(folder->open("timeseries.csv"), sc);
+        timeseries.emplace(folder->open("timeseries.csv"), sc, !args.force && !period_known);
         events.emplace(folder->open("events.csv"), sc);
         ObserverList observers;
         observers.add(*timeseries);
@@ -205,6 +210,9 @@ double duration_option(const std::string& text, const std::string& option) {
     throw InputError(
         "", 0, option,
         "expected a duration with its unit such as 30min or 24h (got \"" + text + "\")");
+  }
+  if (*d != std::floor(*d)) {
+    throw InputError("", 0, option, std::string(kWholeSecondsRule) + " (got " + text + ")");
   }
   return *d;
 }
@@ -306,6 +314,7 @@ int main(int argc, char** argv) {
   run_cmd->add_option("--from", run.from, "start of the simulated period (ISO 8601)");
   run_cmd->add_option("--to", run.to, "end of the simulated period (ISO 8601)");
   run_cmd->add_flag("--quiet", run.quiet, "print nothing on success");
+  run_cmd->add_flag("--force", run.force, "write the output even past the size limit (1 GB)");
 
   CheckArgs check;
   auto* check_cmd = app.add_subcommand("check", "validate a scenario and print its design figures");

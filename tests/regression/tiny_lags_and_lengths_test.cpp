@@ -21,17 +21,6 @@ TEST(TinyLagsAndLengths, RoofLagOfAMillisecondIsRefusedAtLoad) {
   EXPECT_FALSE(fs::exists(site / "out"));
 }
 
-TEST(TinyLagsAndLengths, RoofLagAsADurationHasTheSameBound) {
-  const fs::path site = fixture_site("tiny-lag-duration");
-  std::string text = slurp(site / "shed.yaml");
-  text.replace(text.find("lag_s: 60"), 9, "lag: 0.5s");
-  write_file(site / "shed.yaml", text);
-  expect_bad(run("check --no-rain " + (site / "shed.yaml").string(), site),
-             (site / "shed.yaml").string() +
-                 ":9: roof.lag: must be 0 (no routing) or at least 1 s: a shorter lag makes the "
-                 "runoff equation too stiff for the solver (got 0.5s)");
-}
-
 TEST(TinyLagsAndLengths, NoRoutingAndOneSecondAreTaken) {
   const fs::path site = fixture_site("tiny-lag-ok");
   for (const char* lag : {"0", "1"}) {
