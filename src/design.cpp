@@ -297,6 +297,9 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
     out << "\nWarnings\n";
     for (const std::string& w : d.warnings) out << "  - " << w << '\n';
   }
+  if (sc.release.kind == ReleaseKind::bell && sc.release.priming_flow_measured_by.empty()) {
+    out << "\nBench test\n" << kBenchTestNote << '\n';
+  }
   out << "\nCautions\n" << kCautionsPreface << '\n';
   for (const Caution& c : safety_cautions()) out << "  - " << c.title << ": " << c.text << '\n';
 }

@@ -409,6 +409,73 @@ void reject_unknown_key(const Value& item, const std::string& name,
   item.fail("unknown key; did you mean " + std::string(nearest(name, valid)) + "?");
 }
 
+/// Reads the keys of a small section nested in a key's value (rain.disaggregate, an item of
+/// release.builds) against `keys`, with the same messages as the loader's; returns them by name.
+std::map<std::string, Value> apply_nested(const Value& v, const std::vector<Key>& keys,
+                                          Scenario& s) {
+  std::vector<std::string_view> names;
+  for (const Key& key : keys) names.push_back(key.name);
+  std::map<std::string, Value> given;
+  for (auto it = v.node().begin(); it != v.node().end(); ++it) {
+    if (!it->first.IsScalar()) v.fail("expected a key name, got a section or a list");
+    const std::string name = it->first.Scalar();
+    // Keys written by --set have no place in the file.
+    const bool from_override = v.label() == kOverrideLabel || it->first.Mark().is_null();
+    const Value item(it->second, v.path() + "." + name, from_override ? kOverrideLabel : v.label(),
+                     from_override ? 0 : it->first.Mark().line + 1);
+    reject_unknown_key(item, name, names);
+    const auto [first, inserted] = given.emplace(name, item);
+    if (!inserted) {
+      item.fail("duplicate key (first given on line " + std::to_string(first->second.line()) + ")");
+    }
+  }
+  for (const Key& key : keys) {
+    const auto found = given.find(std::string(key.name));
+    if (found != given.end()) {
+      key.apply(found->second, s);
+    } else if (key.required) {
+      throw InputError(v.label(), v.line(), v.path() + "." + std::string(key.name),
+                       "missing required key");
+    }
+  }
+  return given;
+}
+
+/// release.builds: a list of named, measured siphon builds.
+void apply_builds(const Value& v, Scenario& s) {
+  using V = const Value&;
+  using S = Scenario&;
+  static const std::vector<Key> kKeys = {
+      {"name", kRequired, [](V v, S s) { s.builds.back().name = v.text(); }},
+      {"priming_flow_L_per_min", kRequired,
+       [](V v, S s) {
+         s.builds.back().priming_flow_m3_per_s =
+             v.number(kPositive) * kCubicMetresPerLitre / kSecondsPerMinute;
+       }},
+      {"minor_loss_k", kOptional,
+       [](V v, S s) { s.builds.back().minor_loss_k = v.number(kNonNegative); }},
+      {"nozzle_diameter_mm", kOptional,
+       [](V v, S s) { s.builds.back().nozzle_diameter_m = v.number(kPositive) * kMetresPerMm; }},
+      {"nozzle_discharge_coefficient", kOptional,
+       [](V v, S s) { s.builds.back().nozzle_discharge_coefficient = v.number(kFraction); }},
+      {"measured_by", kOptional, [](V v, S s) { s.builds.back().measured_by = v.text(); }},
+  };
+  s.builds.clear();
+  for (const Value& item : v.items()) {
+    if (!item.node().IsMap()) {
+      item.fail("expected a build such as {name: open, priming_flow_L_per_min: 2.5}, got " +
+                item.got());
+    }
+    s.builds.emplace_back();
+    const auto given = apply_nested(item, kKeys, s);
+    for (std::size_t i = 0; i + 1 < s.builds.size(); ++i) {
+      given.at("name").expect(
+          s.builds[i].name != s.builds.back().name,
+          "names another build already (release.builds[" + std::to_string(i) + "])");
+    }
+  }
+}
+
 /// rain.disaggregate, a small section inside rain: its keys are read and checked here, with the
 /// same messages as the loader's.
 void apply_disaggregate(const Value& v, Scenario& s) {
@@ -448,31 +515,7 @@ void apply_disaggregate(const Value& v, Scenario& s) {
   if (!v.node().IsMap()) {
     v.fail("expected a section of keys such as {method: cascade, step: 5min}, got " + v.got());
   }
-  std::vector<std::string_view> names;
-  for (const Key& key : kKeys) names.push_back(key.name);
-  std::map<std::string, Value> given;
-  for (auto it = v.node().begin(); it != v.node().end(); ++it) {
-    if (!it->first.IsScalar()) v.fail("expected a key name, got a section or a list");
-    const std::string name = it->first.Scalar();
-    // Keys written by --set have no place in the file.
-    const bool from_override = v.label() == kOverrideLabel || it->first.Mark().is_null();
-    const Value item(it->second, v.path() + "." + name, from_override ? kOverrideLabel : v.label(),
-                     from_override ? 0 : it->first.Mark().line + 1);
-    reject_unknown_key(item, name, names);
-    const auto [first, inserted] = given.emplace(name, item);
-    if (!inserted) {
-      item.fail("duplicate key (first given on line " + std::to_string(first->second.line()) + ")");
-    }
-  }
-  for (const Key& key : kKeys) {
-    const auto found = given.find(std::string(key.name));
-    if (found != given.end()) {
-      key.apply(found->second, s);
-    } else if (key.required) {
-      throw InputError(v.label(), v.line(), v.path() + "." + std::string(key.name),
-                       "missing required key");
-    }
-  }
+  const std::map<std::string, Value> given = apply_nested(v, kKeys, s);
   const Disaggregation& d = s.rain.disaggregate;
   const auto at = [&](const std::string& name) { return given.find(name); };
   if (d.method == DisaggregationMethod::nrcs_ii) {
@@ -675,6 +718,8 @@ const std::vector<Section>& schema() {
               s.release.priming_flow_m3_per_s =
                   v.number(kPositive) * kCubicMetresPerLitre / kSecondsPerMinute;
             }},
+           {"builds", kOptional, apply_builds},
+           {"build", kOptional, [](V v, S s) { s.build = v.text(); }},
            {"priming_flow_measured_by", kOptional,
             [](V v, S s) { s.release.priming_flow_measured_by = v.text(); }},
            {"lip_coefficient", kOptional,
@@ -962,8 +1007,9 @@ void check_release(const Seen& seen, const Scenario& s) {
   const ReleaseKind kind = s.release.kind;
   std::vector<std::string> needs;
   if (kind == ReleaseKind::bell) {
-    needs = {"trigger_level_mm", "break_level_mm", "standpipe_diameter_mm",
-             "priming_flow_L_per_min"};
+    needs = {"trigger_level_mm", "break_level_mm", "standpipe_diameter_mm"};
+    // A picked build brings its own priming flow.
+    if (!seen.has("release.build")) needs.push_back("priming_flow_L_per_min");
   } else if (kind == ReleaseKind::float_valve) {
     needs = {"trigger_level_mm", "break_level_mm", "orifice_diameter_mm"};
   } else if (kind == ReleaseKind::orifice) {
@@ -1004,13 +1050,50 @@ std::string show3(double x) {
   return buf;
 }
 
+/// release.build: the named build's values in place of the scenario's.
+void apply_build(const Seen& seen, Scenario& s) {
+  if (!seen.has("release.build")) return;
+  const Value& v = seen.at("release.build");
+  std::string names;
+  for (const SiphonBuild& b : s.builds) {
+    names += (names.empty() ? "" : ", ") + b.name;
+    if (b.name != s.build) continue;
+    s.release.priming_flow_m3_per_s = b.priming_flow_m3_per_s;
+    if (b.minor_loss_k) s.drop_pipe.minor_loss_k = *b.minor_loss_k;
+    if (b.nozzle_diameter_m) s.nozzle.diameter_m = *b.nozzle_diameter_m;
+    if (b.nozzle_discharge_coefficient) {
+      s.nozzle.discharge_coefficient = *b.nozzle_discharge_coefficient;
+    }
+    s.release.priming_flow_measured_by = b.measured_by.empty() ? "build " + b.name : b.measured_by;
+    v.expect(s.nozzle.diameter_m < s.drop_pipe.diameter_m,
+             "the build's nozzle must be smaller than drop_pipe.diameter_mm");
+    return;
+  }
+  v.expect(false, names.empty() ? "names a build, but release.builds lists none"
+                                : "unknown build; expected one of " + names);
+}
+
+/// The key to blame for a value that a picked build may have set.
+const Value& blame(const Seen& seen, const Scenario& s, bool from_build, const std::string& key) {
+  return !s.build.empty() && from_build ? seen.at("release.build") : seen.at(key);
+}
+
+const SiphonBuild* picked_build(const Scenario& s) {
+  for (const SiphonBuild& b : s.builds) {
+    if (!s.build.empty() && b.name == s.build) return &b;
+  }
+  return nullptr;
+}
+
 void check_nozzle(const Seen& seen, const Scenario& s) {
   // Cd = Cc Cv with a contraction coefficient Cc <= 1 (REFERENCES.md section 5), so Cd <= Cv.
   const Nozzle& n = s.nozzle;
   if (n.discharge_coefficient <= n.velocity_coefficient) return;
-  if (seen.has("nozzle.discharge_coefficient")) {
-    seen.at("nozzle.discharge_coefficient")
-        .expect(false, "must not exceed nozzle.velocity_coefficient = " +
+  const SiphonBuild* build = picked_build(s);
+  if ((build && build->nozzle_discharge_coefficient) || seen.has("nozzle.discharge_coefficient")) {
+    blame(seen, s, build && build->nozzle_discharge_coefficient, "nozzle.discharge_coefficient")
+        .expect(false, "the discharge coefficient " + show(n.discharge_coefficient) +
+                           " must not exceed nozzle.velocity_coefficient = " +
                            show(n.velocity_coefficient) + ", as Cd = Cc Cv with Cc <= 1");
   }
   seen.at("nozzle.velocity_coefficient")
@@ -1025,8 +1108,9 @@ void check_priming_flow(const Seen& seen, const Scenario& s) {
   const double running = running_flow_m3_per_s(plant_config(s), s.release.trigger_level_m);
   if (s.release.priming_flow_m3_per_s < running) return;
   const double per_minute = kSecondsPerMinute / kCubicMetresPerLitre;
-  seen.at("release.priming_flow_L_per_min")
-      .expect(false, "must be below the running flow at release.trigger_level_mm, " +
+  blame(seen, s, true, "release.priming_flow_L_per_min")
+      .expect(false, "the priming flow " + show3(s.release.priming_flow_m3_per_s * per_minute) +
+                         " L/min must be below the running flow at release.trigger_level_mm, " +
                          show3(running * per_minute) + " L/min");
 }
 
@@ -1050,6 +1134,7 @@ void check_combinations(const Seen& seen, Scenario& s) {
   check_rain(seen, s);
   seen.exclusive("roof.lag_s", "roof.lag");
   check_reservoir(seen, s);
+  apply_build(seen, s);
   check_release(seen, s);
   check_conveyance(seen);
   check_nozzle(seen, s);

@@ -450,6 +450,41 @@ SweepResult run_sweep(const SweepPlan& plan, const RainSeries& rain, const Sweep
   return result;
 }
 
+std::vector<std::string> sweep_warnings(const SweepPlan& plan, const SweepResult& result) {
+  std::vector<std::string> out;
+  const auto varies = [&](std::string_view key) {
+    return std::any_of(plan.axes.begin(), plan.axes.end(),
+                       [&](const SweepAxis& a) { return a.key == key; });
+  };
+  if (varies("release.priming_flow_L_per_min") && !varies("release.build") &&
+      !varies("drop_pipe.minor_loss_k")) {
+    out.push_back(
+        "release.priming_flow_L_per_min is a property of a build: what makes a siphon prime at a "
+        "lower flow (a restriction at its outlet) also lowers its running flow, which this sweep "
+        "holds fixed. Measure builds on the bench (gutterwatt fit) and compare them with --vary "
+        "release.build=NAME,NAME (README, \"The bench test\")");
+  }
+  if (result.ranked.empty()) return out;
+  const SweepRow& best = result.rows[result.ranked.front()];
+  for (std::size_t a = 0; a < plan.axes.size(); ++a) {
+    const SweepAxis& axis = plan.axes[a];
+    if (axis.values.size() < 3) continue;
+    std::vector<double> numbers;
+    for (const std::string& v : axis.values) {
+      const std::optional<double> x = detail::to_number(v);
+      if (!x) break;
+      numbers.push_back(*x);
+    }
+    if (numbers.size() != axis.values.size()) continue;
+    const double value = *detail::to_number(best.values[a]);
+    const auto [lo, hi] = std::minmax_element(numbers.begin(), numbers.end());
+    if (value != *lo && value != *hi) continue;
+    out.push_back("the best " + axis.key + " is the " + (value == *hi ? "highest" : "lowest") +
+                  " tried (" + best.values[a] + "): extend the range");
+  }
+  return out;
+}
+
 std::vector<std::size_t> rank_rows(const std::vector<SweepRow>& rows, const SweepRank& rank) {
   std::vector<std::size_t> order;
   for (std::size_t i = 0; i < rows.size(); ++i) {

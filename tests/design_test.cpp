@@ -166,3 +166,21 @@ TEST(Design, PrintsEveryFigureOfASystemWithoutColumnOrRecordAndTheCautions) {
 
 }  // namespace
 }  // namespace gutterwatt
+
+namespace gutterwatt {
+namespace {
+
+TEST(Design, PointsToTheBenchTestUntilThePrimingFlowIsMeasured) {
+  Scenario s = test_support::make_scenario();
+  std::ostringstream guessed;
+  write_design(guessed, s, evaluate_design(s, nullptr));
+  EXPECT_NE(guessed.str().find("\nBench test\n" + std::string(kBenchTestNote) + "\n"),
+            std::string::npos);
+  s.release.priming_flow_measured_by = "bench.csv";
+  std::ostringstream measured;
+  write_design(measured, s, evaluate_design(s, nullptr));
+  EXPECT_EQ(measured.str().find("Bench test"), std::string::npos);
+}
+
+}  // namespace
+}  // namespace gutterwatt

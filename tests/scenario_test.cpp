@@ -219,20 +219,75 @@ TEST(Scenario, RejectsARunnerSpeedThatIsNeitherANumberNorBest) {
 // Cd 0.95: Q = 4.9596 L/min (Re 6162).
 TEST(Scenario, RejectsAPrimingFlowAtOrAboveTheRunningFlow) {
   EXPECT_EQ(error_of(minimal_with("priming_flow_L_per_min: 2", "priming_flow_L_per_min: 6")),
-            "demo.yaml:16: release.priming_flow_L_per_min: must be below the running flow at "
-            "release.trigger_level_mm, 4.96 L/min (got 6)");
+            "demo.yaml:16: release.priming_flow_L_per_min: the priming flow 6 L/min must be below "
+            "the running flow at release.trigger_level_mm, 4.96 L/min (got 6)");
   EXPECT_NO_THROW(parse(minimal_with("priming_flow_L_per_min: 2", "priming_flow_L_per_min: 4.9")));
 }
 
 TEST(Scenario, RejectsANozzleDischargeCoefficientAboveItsVelocityCoefficient) {
   EXPECT_EQ(
       error_of(minimal_with("  diameter_mm: 4", "  diameter_mm: 4\n  discharge_coefficient: 0.98")),
-      "demo.yaml:23: nozzle.discharge_coefficient: must not exceed "
-      "nozzle.velocity_coefficient = 0.97, as Cd = Cc Cv with Cc <= 1 (got 0.98)");
+      "demo.yaml:23: nozzle.discharge_coefficient: the discharge coefficient 0.98 must not "
+      "exceed nozzle.velocity_coefficient = 0.97, as Cd = Cc Cv with Cc <= 1 (got 0.98)");
   EXPECT_EQ(
       error_of(minimal_with("  diameter_mm: 4", "  diameter_mm: 4\n  velocity_coefficient: 0.9")),
       "demo.yaml:23: nozzle.velocity_coefficient: must be at least "
       "nozzle.discharge_coefficient = 0.95, as Cd = Cc Cv with Cc <= 1 (got 0.9)");
+}
+
+const char* kTwoBuilds =
+    "  priming_flow_L_per_min: 2\n"
+    "  builds:\n"
+    "    - {name: open, priming_flow_L_per_min: 3, measured_by: bench-a.csv}\n"
+    "    - name: restricted\n"
+    "      priming_flow_L_per_min: 1.2\n"
+    "      minor_loss_k: 6\n"
+    "      nozzle_discharge_coefficient: 0.9\n";
+
+TEST(Scenario, PutsThePickedBuildInPlace) {
+  const std::string text = minimal_with("  priming_flow_L_per_min: 2\n", kTwoBuilds);
+  const Scenario none = parse(text);
+  EXPECT_EQ(none.builds.size(), 2u);
+  EXPECT_DOUBLE_EQ(none.release.priming_flow_m3_per_s, 2e-3 / 60.0);
+  EXPECT_EQ(none.release.priming_flow_measured_by, "");
+  const Scenario open = parse(text, {"release.build=open"});
+  EXPECT_DOUBLE_EQ(open.release.priming_flow_m3_per_s, 3e-3 / 60.0);
+  EXPECT_DOUBLE_EQ(open.drop_pipe.minor_loss_k, 1.5);  // the default, as the build has none
+  EXPECT_EQ(open.release.priming_flow_measured_by, "bench-a.csv");
+  const Scenario restricted = parse(text, {"release.build=restricted"});
+  EXPECT_DOUBLE_EQ(restricted.release.priming_flow_m3_per_s, 1.2e-3 / 60.0);
+  EXPECT_DOUBLE_EQ(restricted.drop_pipe.minor_loss_k, 6.0);
+  EXPECT_DOUBLE_EQ(restricted.nozzle.discharge_coefficient, 0.9);
+  EXPECT_EQ(restricted.release.priming_flow_measured_by, "build restricted");
+}
+
+TEST(Scenario, RejectsAnUnknownBuild) {
+  const std::string text = minimal_with("  priming_flow_L_per_min: 2\n", kTwoBuilds);
+  EXPECT_EQ(error_of(text, {"release.build=tight"}),
+            "--set: release.build: unknown build; expected one of open, restricted (got tight)");
+  EXPECT_EQ(error_of(minimal(), {"release.build=open"}),
+            "--set: release.build: names a build, but release.builds lists none (got open)");
+}
+
+TEST(Scenario, RejectsABuildWithoutAPrimingFlowOrWithTwoNames) {
+  EXPECT_EQ(error_of(minimal_with("  priming_flow_L_per_min: 2\n",
+                                  "  priming_flow_L_per_min: 2\n  builds: [{name: a}]\n")),
+            "demo.yaml:17: release.builds[0].priming_flow_L_per_min: missing required key");
+  EXPECT_EQ(error_of(minimal_with("  priming_flow_L_per_min: 2\n",
+                                  "  priming_flow_L_per_min: 2\n  builds:\n"
+                                  "    - {name: a, priming_flow_L_per_min: 1}\n"
+                                  "    - {name: a, priming_flow_L_per_min: 2}\n")),
+            "demo.yaml:19: release.builds[1].name: names another build already "
+            "(release.builds[0]) (got a)");
+}
+
+TEST(Scenario, RejectsABuildThatPrimesAboveItsRunningFlow) {
+  // minimal.yaml runs at 4.96 L/min at the trigger level (see the test above).
+  const std::string text = minimal_with("  priming_flow_L_per_min: 2\n",
+                                        "  builds: [{name: big, priming_flow_L_per_min: 5.5}]\n");
+  EXPECT_EQ(error_of(text, {"release.build=big"}),
+            "--set: release.build: the priming flow 5.5 L/min must be below the running flow at "
+            "release.trigger_level_mm, 4.96 L/min (got big)");
 }
 
 TEST(Scenario, ReadsLagInSecondsOrAsADuration) {

@@ -433,3 +433,44 @@ TEST(SweepOutput, PrintsTheBestRowsAsATable) {
 
 }  // namespace
 }  // namespace gutterwatt
+
+namespace gutterwatt {
+namespace {
+
+// A plan and a result made by hand: the best row is the first ranked.
+SweepResult ranked_first(const std::vector<std::string>& best_values) {
+  SweepResult r;
+  SweepRow row;
+  row.values = best_values;
+  r.rows.push_back(row);
+  r.ranked.push_back(0);
+  return r;
+}
+
+TEST(SweepWarnings, BestAtTheEdgeOfANumericRangeAsksToExtendIt) {
+  SweepPlan plan;
+  plan.axes = {{"release.trigger_level_mm", {"40", "45", "50", "55"}},
+               {"battery.capacity_Wh", {"10", "20", "30"}},
+               {"release.kind", {"bell", "float_valve", "orifice"}}};
+  EXPECT_EQ(sweep_warnings(plan, ranked_first({"55", "20", "bell"})),
+            std::vector<std::string>{
+                "the best release.trigger_level_mm is the highest tried (55): extend the range"});
+  EXPECT_EQ(sweep_warnings(plan, ranked_first({"45", "10", "orifice"})),
+            std::vector<std::string>{
+                "the best battery.capacity_Wh is the lowest tried (10): extend the range"});
+  EXPECT_TRUE(sweep_warnings(plan, ranked_first({"45", "20", "bell"})).empty());
+}
+
+TEST(SweepWarnings, PrimingFlowAloneIsABuildProperty) {
+  SweepPlan plan;
+  plan.axes = {{"release.priming_flow_L_per_min", {"1", "2"}}};
+  const auto warnings = sweep_warnings(plan, ranked_first({"1"}));
+  ASSERT_EQ(warnings.size(), 1u);
+  EXPECT_EQ(warnings[0].substr(0, 60),
+            "release.priming_flow_L_per_min is a property of a build: wha");
+  plan.axes.push_back({"drop_pipe.minor_loss_k", {"1", "3"}});
+  EXPECT_TRUE(sweep_warnings(plan, ranked_first({"1", "3"})).empty());
+}
+
+}  // namespace
+}  // namespace gutterwatt

@@ -57,6 +57,16 @@ inline constexpr std::string_view kCautionsPreface =
     "These figures come from a simulation of the inputs it was given. They help compare designs; "
     "they do not show that any installation is safe or lawful.";
 
+/// What `check` says while a bell siphon's priming flow is a guess (no
+/// release.priming_flow_measured_by and no release.build): the bench test in brief.
+inline constexpr std::string_view kBenchTestNote =
+    "  The priming flow is a guess until measured, and it moves the estimate more than any other "
+    "input. Measure it on the built siphon at ground level: feed the reservoir a steady hose "
+    "flow in steps (start low, raise by about a fifth), wait at each step until the siphon "
+    "primes or the level settles (10-20 min), time a bucket to know the flow, and write down "
+    "primed or dribbled and the cycle times. Then `gutterwatt fit SCENARIO --bench LOG`. Keep "
+    "the hose and spills away from batteries and mains; see README, \"The bench test\".";
+
 /// The safety cautions printed by `check` and at the foot of the report.
 std::span<const Caution> safety_cautions();
 

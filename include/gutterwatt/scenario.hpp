@@ -54,6 +54,17 @@ struct SimulationConfig {
   double rtol = 1e-6;
 };
 
+/// A measured bell-siphon build (release.builds): its priming flow and, where measured, its
+/// running loss and nozzle. Picking it (release.build) puts these values in place.
+struct SiphonBuild {
+  std::string name;
+  double priming_flow_m3_per_s = 0.0;
+  std::optional<double> minor_loss_k;
+  std::optional<double> nozzle_diameter_m;
+  std::optional<double> nozzle_discharge_coefficient;
+  std::string measured_by;  ///< the log or test it comes from
+};
+
 struct Scenario {
   std::filesystem::path file;  ///< where it was loaded from (for messages)
   SiteConfig site;
@@ -70,6 +81,8 @@ struct Scenario {
   GeneratorConfig generator;
   BatteryConfig battery;
   SimulationConfig simulation;
+  std::vector<SiphonBuild> builds;  ///< release.builds
+  std::string build;                ///< release.build: the name of the build in place, or empty
 };
 
 /// The reservoir level at which the release starts to run: a bell's priming level (lip plus the

@@ -162,6 +162,13 @@ SweepResult run_sweep(const SweepPlan& plan, const RainSeries& rain,
 /// Indices of the rows that ran, best first by `rank`, ties in combination order.
 std::vector<std::size_t> rank_rows(const std::vector<SweepRow>& rows, const SweepRank& rank);
 
+/// What a person should hear about a finished sweep: once, when it varies
+/// release.priming_flow_L_per_min without release.build or drop_pipe.minor_loss_k (a priming
+/// flow is a property of a build, whose running loss changes with it); and, for every axis of at
+/// least three numbers, when the best row takes the axis's smallest or largest value ("the best
+/// KEY is the highest tried (V): extend the range").
+std::vector<std::string> sweep_warnings(const SweepPlan& plan, const SweepResult& result);
+
 /// sweep.csv: the varied keys, then the metrics, one row per combination that ran, best first.
 void write_sweep_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result);
 

@@ -98,6 +98,7 @@ int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop) {
                  result.skipped, total, result.failed, (dir / "skipped.csv").string());
     spdlog::warn("first reason: {}", first_failure->reason);
   }
+  for (const std::string& w : sweep_warnings(plan, result)) spdlog::warn("{}", w);
   if (!args.quiet) {
     print_sweep_table(std::cout, plan, result);
     std::cout << "wrote " << (dir / "sweep.csv").string() << ", " << (dir / "skipped.csv").string()
