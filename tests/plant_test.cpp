@@ -31,6 +31,12 @@ TEST(Plant, FullFlowIsNozzleControlledWithoutAColumn) {
     EXPECT_LT(relative_error(p.full_flow_m3_per_s(level), direct), kFullFlowTolerance) << level;
   }
   EXPECT_DOUBLE_EQ(p.full_flow_m3_per_s(-0.01), p.full_flow_m3_per_s(0.0));
+  // Hand computation (energy equation with Darcy-Weisbach and Colebrook, REFERENCES.md sections
+  // 3-5, iterated to convergence outside the code): level 0.05 m, H = 4.05 m, pipe D 19 mm,
+  // L 4.5 m, K 2.0, roughness 0.0015 mm, nozzle 5 mm at Cd 0.95, 15 C (nu 1.1386 mm2/s):
+  // H = Q^2 / (2 g) [1 / (Cd A_n)^2 + (K + f L/D) / A_p^2] -> Q 0.162958 L/s, Re 9591,
+  // f 0.03135, 3.891 m of it at the nozzle. nu +-0.5 % moves Q by 2e-5.
+  EXPECT_LT(relative_error(p.full_flow_m3_per_s(0.05), 0.162958e-3), 1e-4);
 }
 
 TEST(Plant, FullFlowIsAFreeOutfallIntoTheColumnTop) {
@@ -42,6 +48,11 @@ TEST(Plant, FullFlowIsAFreeOutfallIntoTheColumnTop) {
     const double direct = free_outfall_flow_m3_per_s(s.drop_pipe, level + 4.0 - 3.5, nu);
     EXPECT_LT(relative_error(p.full_flow_m3_per_s(level), direct), kFullFlowTolerance) << level;
   }
+  // Hand computation (free outfall, REFERENCES.md section 4: V = sqrt(2 g H / (1 + K + f L/D))
+  // with Colebrook, iterated outside the code): level 0.3 m, H = 0.3 + 4.0 - 3.5 = 0.8 m, pipe
+  // D 19 mm, L 4.5 m, K 2.0, roughness 0.0015 mm, 15 C (nu 1.1386 mm2/s) -> Q 0.373687 L/s,
+  // Re 21 993, f 0.02547. nu +-0.5 % moves Q by 4e-4.
+  EXPECT_LT(relative_error(p.full_flow_m3_per_s(0.3), 0.373687e-3), 1e-3);
 }
 
 TEST(Plant, FullBoreSiphonMatchesTheWorkedExample) {
@@ -76,6 +87,9 @@ TEST(Plant, ColumnNozzleIsAnOrificeAboveTheLinearHead) {
   const double nozzle_area = circle_area_m2(0.005);
   EXPECT_DOUBLE_EQ(p.column_nozzle_flow_m3_per_s(area * 2.0),
                    orifice_flow_m3_per_s(0.95, nozzle_area, 2.0));
+  // Hand computation, Q = Cd a sqrt(2 g h) (REFERENCES.md section 5): 0.95 x 1.963495e-5 m2 x
+  // sqrt(2 x 9.80665 x 2.0) = 0.95 x 1.963495e-5 x 6.263100 = 0.116827 L/s.
+  EXPECT_NEAR(p.column_nozzle_flow_m3_per_s(area * 2.0), 0.116827e-3, 1e-9);
   // Below kNozzleLinearHead_m the flow is linear in head, continuous at the threshold.
   const double at_threshold = orifice_flow_m3_per_s(0.95, nozzle_area, kNozzleLinearHead_m);
   EXPECT_NEAR(p.column_nozzle_flow_m3_per_s(area * kNozzleLinearHead_m), at_threshold,
@@ -96,6 +110,9 @@ TEST(Plant, NozzleHeadInvertsTheOrificeLaw) {
   const Plant p(plant_config(make_scenario()));
   const double head = p.nozzle_head_for_flow_m(1.2e-4);
   EXPECT_NEAR(orifice_flow_m3_per_s(0.95, circle_area_m2(0.005), head), 1.2e-4, 1e-18);
+  // Hand computation, h = (Q / (Cd a))^2 / (2 g): 1.2e-4 / (0.95 x 1.963495e-5) = 6.433210 m/s,
+  // squared over 2 x 9.80665 = 2.110109 m.
+  EXPECT_NEAR(head, 2.110109, 1e-6);
 }
 
 TEST(Plant, JetPowerMatchesTheWorkedExample) {
