@@ -159,6 +159,14 @@ Scenario runner_under_a_column() {
   return s;
 }
 
+// The same runner on a 12 V battery through a generator of `volts_per_rpm`.
+Scenario runner_on_a_12V_battery(double volts_per_rpm) {
+  Scenario s = runner_under_a_column();
+  s.generator.volts_per_rpm = volts_per_rpm;
+  s.battery.voltage_V = 12.0;
+  return s;
+}
+
 TEST(Plant, RunnerIsHeldAtTheBestSpeedForTheDesignHead) {
   // Hand computation: V_j = 0.97 sqrt(2 x 9.80665 x 3.0) = 7.440596 m/s; best at x = 0.5
   // (Dixon and Hall, REFERENCES.md section 7): N = 60 x 0.5 x 7.440596 / (pi x 0.070)
@@ -186,9 +194,7 @@ TEST(Plant, GeneratorLoadsTheRunnerOnlyAboveTheBatteryVoltage) {
   // Hand computation: 12 V / 0.008 V/rpm = 1500 rpm, above the held 1015 rpm, so the runner
   // turns at 1500 rpm: x = pi x 0.070 x 1500 / 60 / 7.440596 = 0.738891, and 4x(1 - x) =
   // 0.771725 of the peak.
-  Scenario s = runner_under_a_column();
-  s.generator.volts_per_rpm = 0.008;
-  s.battery.voltage_V = 12.0;
+  const Scenario s = runner_on_a_12V_battery(0.008);
   const Plant p(plant_config(s));
   EXPECT_DOUBLE_EQ(p.conduction_speed_rpm(), 1500.0);
   const PlantPower w = p.power(1e-4, 3.0);
@@ -200,9 +206,7 @@ TEST(Plant, GeneratorLoadsTheRunnerOnlyAboveTheBatteryVoltage) {
 TEST(Plant, GeneratorBelowTheBatteryVoltageAtRunawayChargesNothing) {
   // Hand computation: runaway (x = 1) at 3.0 m is 60 x 7.440596 / (pi x 0.070) = 2030.07 rpm;
   // 12 V / 0.005 V/rpm = 2400 rpm is never reached, so nothing is delivered.
-  Scenario s = runner_under_a_column();
-  s.generator.volts_per_rpm = 0.005;
-  s.battery.voltage_V = 12.0;
+  const Scenario s = runner_on_a_12V_battery(0.005);
   const Plant p(plant_config(s));
   const PlantPower w = p.power(1e-4, 3.0);
   EXPECT_GT(w.jet_W, 0.0);
