@@ -193,7 +193,7 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
   long segment_steps = 0;
   Guards g_prev{};
   while (t < span) {
-    if (coasted_to_end(span - t, f, t1)) return;
+    if (coasted_to_end(span - t, f)) return;
     if (fresh) {
       last = settle(f, g_prev, known_dxdt);
       ledger_.update_peaks(last);
@@ -286,15 +286,13 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     }
     last_step_s_ = std::max(1e-3, stepper.current_time_step());
   }
-  now_s_ = t1;
 }
 
-// Between steps: stops on request, and ends the segment in closed form once it is at rest.
-bool Stepper::coasted_to_end(double left_s, const Forcing& f, double t1) {
+// Before each step: stops on request, and ends the segment in closed form once it is at rest.
+bool Stepper::coasted_to_end(double left_s, const Forcing& f) {
   if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
   if (!system_.at_rest(x_, mode_, f, left_s)) return false;
   coast(left_s, f);
-  now_s_ = t1;
   return true;
 }
 
@@ -340,7 +338,7 @@ void Stepper::integrate_fixed(double t0, double t1, const Forcing& f) {
   bool fresh = true;
   Guards g_prev{};
   while (t < span) {
-    if (coasted_to_end(span - t, f, t1)) return;
+    if (coasted_to_end(span - t, f)) return;
     if (fresh) {
       ChainState dxdt;
       ledger_.update_peaks(settle(f, g_prev, dxdt));
@@ -383,7 +381,6 @@ void Stepper::integrate_fixed(double t0, double t1, const Forcing& f) {
       g_prev = g_end;
     }
   }
-  now_s_ = t1;
 }
 
 void Stepper::advance(Instant t0, Instant t1, const Forcing& f) {
@@ -391,9 +388,8 @@ void Stepper::advance(Instant t0, Instant t1, const Forcing& f) {
   ++stats_.segments;
   system_.start_segment(x_, mode_, f);
   now_s_ = static_cast<double>(t0);
-  if (system_.at_rest(x_, mode_, f, static_cast<double>(t1 - t0))) {
-    coast(static_cast<double>(t1 - t0), f);
-  } else if (options_.fixed_step_s > 0.0) {
+  // Both integrators coast a segment that is at rest from its start without taking a step.
+  if (options_.fixed_step_s > 0.0) {
     integrate_fixed(static_cast<double>(t0), static_cast<double>(t1), f);
   } else {
     integrate(static_cast<double>(t0), static_cast<double>(t1), f);

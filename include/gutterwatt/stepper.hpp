@@ -55,7 +55,7 @@ class Stepper {
   ChainRates settle(const Forcing& f, Guards& g, ChainState& dxdt);
   void integrate(double t0, double t1, const Forcing& f);
   void integrate_fixed(double t0, double t1, const Forcing& f);
-  bool coasted_to_end(double left_s, const Forcing& f, double t1);
+  bool coasted_to_end(double left_s, const Forcing& f);
   void accept_step(const ChainState& x_end, double dt, const ChainRates& r, int fired,
                    const Forcing& f, double t_abs);
   void switch_mode(int k, const Forcing& f, const ChainRates& r);
