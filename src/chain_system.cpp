@@ -61,8 +61,8 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
   // Reservoir, release and overflow.
   r.level_m = geometry_.level_m(x[kReservoir]);
   const bool needs_full_flow = m.release != ReleaseState::idle && m.release != ReleaseState::closed;
-  r.full_flow = needs_full_flow ? plant_.full_flow_m3_per_s(r.level_m) : 0.0;
-  r.release = release_->outflow_m3_per_s(m.release, r.level_m, r.full_flow);
+  const double full_flow = needs_full_flow ? plant_.full_flow_m3_per_s(r.level_m) : 0.0;
+  r.release = release_->outflow_m3_per_s(m.release, r.level_m, full_flow);
   r.overflow = m.overflowing ? geometry_.overflow_m3_per_s(r.level_m) : 0.0;
   d[kReservoir] = inflow - r.release - r.overflow;
   d[kReservoirOverflow] = r.overflow;
@@ -262,7 +262,8 @@ void ChainSystem::start_segment(const ChainState& x, ChainMode& m, const Forcing
 std::string ChainSystem::describe(const ChainState& x, const ChainMode& m) const {
   std::ostringstream msg;
   msg.precision(6);
-  msg << std::fixed << "mode: release " << release_state_name(m.release) << (m.overflowing ? ", overflowing" : "")
+  msg << std::fixed << "mode: release " << release_state_name(m.release)
+      << (m.overflowing ? ", overflowing" : "")
       << (m.column == ColumnMode::full ? ", column brim-full" : "") << "; state: level "
       << geometry_.level_m(x[kReservoir]) * 1e3 << " mm, reservoir " << x[kReservoir] * 1e3
       << " L, roof " << x[kRoof] * 1e3 << " L, column " << x[kColumn] * 1e3 << " L, battery "

@@ -65,10 +65,9 @@ struct Forcing {
 /// Every rate and intermediate value at one instant.
 struct ChainRates {
   double level_m = 0.0;
-  double full_flow = 0.0;  ///< m3/s the conveyance carries running full at this level
-  double release = 0.0;    ///< m3/s
-  double overflow = 0.0;   ///< m3/s over the reservoir's rim
-  double nozzle = 0.0;     ///< m3/s
+  double release = 0.0;   ///< m3/s
+  double overflow = 0.0;  ///< m3/s over the reservoir's rim
+  double nozzle = 0.0;    ///< m3/s
   double column_overflow = 0.0;
   double head_m = 0.0;
   PlantPower power;
@@ -133,7 +132,6 @@ class ChainSystem {
   std::string describe(const ChainState& x, const ChainMode& m) const;
 
   const Scenario& scenario() const { return sc_; }
-  const ReservoirGeometry& geometry() const { return geometry_; }
   const Plant& plant() const { return plant_; }
   const Release& release() const { return *release_; }
 
