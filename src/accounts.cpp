@@ -122,21 +122,18 @@ void Ledger::close_episode(EpisodeKind kind, const ChainState& x, double t) {
 void Ledger::switched(const ChainMode& before, const ChainMode& after, const ChainState& x,
                       double spilled_m3, double t) {
   tally_.column_overflow_m3 += spilled_m3;
+  // An episode of `kind` closes as its condition ends and opens as it begins.
+  const auto follow = [&](EpisodeKind kind, bool was, bool is) {
+    if (was && !is) close_episode(kind, x, t);
+    if (!was && is) open_episode(kind, x, t);
+  };
   const Release& release = system_.release();
-  const bool ran = release.is_running(before.release);
-  const bool runs = release.is_running(after.release);
-  if (ran && !runs) close_episode(EpisodeKind::cycle, x, t);
-  if (!ran && runs) open_episode(EpisodeKind::cycle, x, t);
-  const bool dribbled = before.release == ReleaseState::dribble;
-  const bool dribbles = after.release == ReleaseState::dribble;
-  if (dribbled && !dribbles) close_episode(EpisodeKind::dribble, x, t);
-  if (!dribbled && dribbles) open_episode(EpisodeKind::dribble, x, t);
-  if (before.overflowing && !after.overflowing) close_episode(EpisodeKind::overflow, x, t);
-  if (!before.overflowing && after.overflowing) open_episode(EpisodeKind::overflow, x, t);
-  const bool brim = before.column == ColumnMode::full;
-  const bool brims = after.column == ColumnMode::full;
-  if (brim && !brims) close_episode(EpisodeKind::column_overflow, x, t);
-  if (!brim && brims) open_episode(EpisodeKind::column_overflow, x, t);
+  follow(EpisodeKind::cycle, release.is_running(before.release), release.is_running(after.release));
+  follow(EpisodeKind::dribble, before.release == ReleaseState::dribble,
+         after.release == ReleaseState::dribble);
+  follow(EpisodeKind::overflow, before.overflowing, after.overflowing);
+  follow(EpisodeKind::column_overflow, before.column == ColumnMode::full,
+         after.column == ColumnMode::full);
 }
 
 void Ledger::update_peaks(const ChainRates& r) {
