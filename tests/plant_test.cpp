@@ -179,6 +179,18 @@ TEST(Plant, RunnerIsHeldAtTheBestSpeedForTheDesignHead) {
   EXPECT_NEAR(w.speed_ratio, 0.5, 1e-12);
 }
 
+TEST(Plant, RunnerWithoutAColumnIsHeldForTheNozzleHeadAtThePrimingLevel) {
+  // Hand computation, outside the code: the bell primes at 50 mm + (5e-5 / (1.77 pi 0.019))^(2/3)
+  // = 56.073 mm (below the 62 mm rim); the full flow from there (H = 4.056073 m; energy equation
+  // with Colebrook as in FullFlowIsNozzleControlledWithoutAColumn) is 0.163080 L/s, 3.89713 m of
+  // it at the nozzle, V_j = 0.97 sqrt(2 g 3.89713) = 8.48046 m/s, and the best speed at x = 0.5
+  // (REFERENCES.md section 7) N = 60 x 0.5 x 8.48046 / (pi x 0.070) = 1156.89 rpm. nu +-0.5 %
+  // moves N by 0.03 rpm.
+  const Plant p(plant_config(make_scenario()));
+  EXPECT_NEAR(p.design_head_m(), 3.89713, 2e-4);
+  EXPECT_NEAR(p.held_speed_rpm(), 1156.89, 0.05);
+}
+
 TEST(Plant, HeldRunnerAtHalfTheDesignHeadLosesToTheSpeedRatio) {
   // Hand computation: at half the head the jet is 1/sqrt(2) as fast, so the held runner works
   // at x = 1/sqrt(2); the ideal curve 4x(1 - x) (REFERENCES.md section 7) gives 2 sqrt(2) - 2
