@@ -20,6 +20,8 @@
 #include <thread>
 #include <vector>
 
+#include "gutterwatt/output_folder.hpp"
+
 extern char** environ;
 
 namespace gutterwatt::cli_support {
@@ -87,6 +89,33 @@ inline std::set<std::string> names_in(const fs::path& dir) {
     names.insert(entry.path().filename().string());
   }
   return names;
+}
+
+/// The one staging folder of an OutputFolder in `dir`, or an empty path when there is not
+/// exactly one.
+inline fs::path staging_folder(const fs::path& dir) {
+  fs::path found;
+  int count = 0;
+  for (const auto& entry : fs::directory_iterator(dir)) {
+    if (entry.path().filename().string().starts_with(kStagingPrefix)) {
+      found = entry.path();
+      ++count;
+    }
+  }
+  return count == 1 ? found : fs::path();
+}
+
+/// Waits up to 30 s until a writer into `dir` has staged `name` in its staging folder; true once
+/// it has. A test holding the folder's read lock (FolderReadLock) keeps the writer there, its
+/// set staged and not yet published.
+inline bool wait_until_staged(const fs::path& dir, const std::string& name) {
+  const auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(30);
+  while (std::chrono::steady_clock::now() < deadline) {
+    const fs::path stage = staging_folder(dir);
+    if (!stage.empty() && fs::exists(stage / name)) return true;
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+  }
+  return false;
 }
 
 /// A scratch folder holding a copy of the sweep fixtures (tests/data/sweep: shed.yaml, an

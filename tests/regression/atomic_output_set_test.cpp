@@ -48,15 +48,7 @@ TEST(AtomicOutputSet, PublishingWaitsForAReaderAndThenShowsTheWholeSet) {
   Child child({"run", (site / "shed.yaml").string(), "--quiet", "--out", out.string()}, site);
   ASSERT_TRUE(child.started());
   // Wait until the run has staged summary.json, its last file, then give it time to publish.
-  const auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(30);
-  bool staged = false;
-  while (!staged && std::chrono::steady_clock::now() < deadline) {
-    for (const auto& entry : fs::directory_iterator(out)) {
-      staged = staged || fs::exists(entry.path() / "summary.json");
-    }
-    std::this_thread::sleep_for(std::chrono::milliseconds(5));
-  }
-  ASSERT_TRUE(staged) << child.outcome().err;
+  ASSERT_TRUE(wait_until_staged(out, "summary.json")) << child.outcome().err;
   std::this_thread::sleep_for(std::chrono::milliseconds(300));
   EXPECT_FALSE(child.wait_for(std::chrono::milliseconds(0)));  // still waiting for the lock
   EXPECT_FALSE(fs::exists(out / "timeseries.csv"));

@@ -11,7 +11,6 @@
 #include <filesystem>
 #include <optional>
 #include <string>
-#include <thread>
 
 #include "cli_support.hpp"
 #include "gutterwatt/output_folder.hpp"
@@ -28,19 +27,6 @@ pid_t dead_pid() {
   if (pid == 0) ::_exit(0);
   ::waitpid(pid, nullptr, 0);
   return pid;
-}
-
-// The one staging folder in `dir` (empty path when there is not exactly one).
-fs::path staging_folder(const fs::path& dir) {
-  fs::path found;
-  int count = 0;
-  for (const auto& entry : fs::directory_iterator(dir)) {
-    if (entry.path().filename().string().starts_with(kStagingPrefix)) {
-      found = entry.path();
-      ++count;
-    }
-  }
-  return count == 1 ? found : fs::path();
 }
 
 }  // namespace
@@ -159,12 +145,7 @@ TEST(OutputTemporaries, KilledRunsTemporariesGoAtTheNextRun) {
   std::optional<FolderReadLock> reading(std::in_place, out);
   Child child({"run", (site / "shed.yaml").string(), "--quiet", "--out", out.string()}, site);
   ASSERT_TRUE(child.started());
-  const auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(30);
-  while ((staging_folder(out).empty() || !fs::exists(staging_folder(out) / "summary.json")) &&
-         std::chrono::steady_clock::now() < deadline) {
-    std::this_thread::sleep_for(std::chrono::milliseconds(5));
-  }
-  ASSERT_FALSE(staging_folder(out).empty()) << child.outcome().err;
+  ASSERT_TRUE(wait_until_staged(out, "summary.json")) << child.outcome().err;
   child.signal(SIGKILL);
   ASSERT_TRUE(child.wait_for(std::chrono::seconds(10)));
   EXPECT_FALSE(staging_folder(out).empty());  // left behind
