@@ -100,6 +100,18 @@ bool lock(int fd, int operation) {
   return true;
 }
 
+/// An flock on `fd` held for its lifetime.
+class FlockHeld {
+ public:
+  FlockHeld(int fd, int operation) : fd_(fd) { lock(fd_, operation); }
+  ~FlockHeld() { lock(fd_, LOCK_UN); }
+  FlockHeld(const FlockHeld&) = delete;
+  FlockHeld& operator=(const FlockHeld&) = delete;
+
+ private:
+  int fd_;
+};
+
 /// The process id a staging folder's name records, or 0 when the name is not one.
 pid_t staging_pid(const std::string& name) {
   if (name.compare(0, kStagingPrefix.size(), kStagingPrefix) != 0) return 0;
@@ -205,15 +217,16 @@ void OutputFolder::commit() {
     }
   }
   {
+    // The lock is taken before the signals are held back: a writer waiting for a reader can
+    // still be ended by a second signal (its staging folder goes at the next write).
+    const FlockHeld locked(dir_fd_, LOCK_EX);
     const SignalsHeld held;
-    lock(dir_fd_, LOCK_EX);
     // A folder in the way would stop its rename half-way through the set: look first.
     for (const auto& f : files_) {
       struct stat st {};
       if (::fstatat(dir_fd_, f->name.c_str(), &st, AT_SYMLINK_NOFOLLOW) == 0 &&
           S_ISDIR(st.st_mode)) {
         const std::string name = f->name;
-        lock(dir_fd_, LOCK_UN);
         discard();
         throw Error((dir_ / name).string() + ": is a folder; earlier results kept");
       }
@@ -222,13 +235,11 @@ void OutputFolder::commit() {
       if (::renameat(stage_fd_, f->name.c_str(), dir_fd_, f->name.c_str()) != 0) {
         const int error = errno;
         const std::string name = f->name;
-        lock(dir_fd_, LOCK_UN);
         discard();
         throw Error((dir_ / name).string() + ": cannot rename into place (" + errno_text(error) +
                     ")");
       }
     }
-    lock(dir_fd_, LOCK_UN);
   }
   files_.clear();
   ::close(stage_fd_);

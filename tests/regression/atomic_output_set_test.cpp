@@ -58,6 +58,27 @@ TEST(AtomicOutputSet, PublishingWaitsForAReaderAndThenShowsTheWholeSet) {
   expect_one_set(out);
 }
 
+TEST(AtomicOutputSet, WriterWaitingForAReaderCanStillBeEndedBySignals) {
+  // A second SIGINT ends the process at once (README, "Signals"), a writer waiting for the
+  // folder's lock too: it publishes nothing, and its staging folder stays for the next writer.
+  const fs::path site = fixture_site("atomic-stopped");
+  const fs::path out = site / "out";
+  fs::create_directories(out);
+  const FolderReadLock reading(out);
+  Child child({"run", (site / "shed.yaml").string(), "--quiet", "--out", out.string()}, site);
+  ASSERT_TRUE(child.started());
+  ASSERT_TRUE(wait_until_staged(out, "summary.json")) << child.outcome().err;
+  std::optional<int> status;
+  for (int i = 0; i < 100 && !status; ++i) {
+    child.signal(SIGINT);
+    status = child.wait_for(std::chrono::milliseconds(100));
+  }
+  ASSERT_TRUE(status) << "still waiting for the lock after 100 signals";
+  EXPECT_EQ(*status, -1);  // ended by the signal
+  EXPECT_EQ(names_in(out).count("timeseries.csv"), 0u);
+  EXPECT_FALSE(staging_folder(out).empty());
+}
+
 TEST(AtomicOutputSet, TwoConcurrentRunsIntoOneFolderLeaveOneRunsFiles) {
   const fs::path site = fixture_site("atomic-two-runs");
   const fs::path out = site / "out";
