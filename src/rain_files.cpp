@@ -93,8 +93,8 @@ std::ifstream open_rain_file(const std::filesystem::path& file) {
   return in;
 }
 
-// A stream buffer over another that ends the reading once `stop` is set, looking at it every
-// kStopCheckBytes: it then throws, which the stream takes for a read error.
+// A stream buffer over another that ends the input once `stop` is set, looking at it every
+// kStopCheckBytes; stopped() then tells a cut record from a whole one.
 class StoppableBuf : public std::streambuf {
  public:
   StoppableBuf(std::streambuf& source, const std::atomic<bool>* stop)
@@ -105,7 +105,7 @@ class StoppableBuf : public std::streambuf {
   int_type underflow() override {
     if (stop_ != nullptr && stop_->load()) {
       stopped_ = true;
-      throw Interrupted();
+      return traits_type::eof();
     }
     const std::streamsize n =
         source_.sgetn(buffer_.data(), static_cast<std::streamsize>(buffer_.size()));
