@@ -72,7 +72,15 @@ TEST(SweepKeepsEarlierResults, SweepWithOneGoodCombinationReplacesTheSet) {
                             " --quiet --vary roof.area_m2=-10,40 --out " + out.string(),
                         site);
   EXPECT_EQ(r.status, 0) << r.err;
+  EXPECT_EQ(r.err,
+            "gutterwatt: warning: 1 of 2 combinations skipped as invalid, 0 failed; "
+            "reasons in " +
+                (out / "skipped.csv").string() +
+                "\ngutterwatt: warning: first reason: --set: roof.area_m2: must be > 0 "
+                "(got -10)\n");
   for (const std::string& name : kSweepFiles) {
     EXPECT_NE(slurp(out / name), "earlier " + name + "\n") << name;
   }
+  EXPECT_EQ(slurp(out / "skipped.csv"),
+            "roof.area_m2,status,reason\n-10,skipped,--set: roof.area_m2: must be > 0 (got -10)\n");
 }
