@@ -6,10 +6,13 @@
 #include <gtest/gtest.h>
 #include <signal.h>
 #include <spawn.h>
+#include <sys/stat.h>
+#include <sys/sysmacros.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
 #include <chrono>
+#include <cstdio>
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
@@ -105,15 +108,41 @@ inline fs::path staging_folder(const fs::path& dir) {
   return count == 1 ? found : fs::path();
 }
 
+/// Waits up to 30 s until `done()`; true once it is.
+template <class Done>
+bool wait_until(Done done) {
+  const auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(30);
+  while (!done()) {
+    if (std::chrono::steady_clock::now() >= deadline) return false;
+    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+  }
+  return true;
+}
+
 /// Waits up to 30 s until a writer into `dir` has staged `name` in its staging folder; true once
 /// it has. A test holding the folder's read lock (FolderReadLock) keeps the writer there, its
 /// set staged and not yet published.
 inline bool wait_until_staged(const fs::path& dir, const std::string& name) {
-  const auto deadline = std::chrono::steady_clock::now() + std::chrono::seconds(30);
-  while (std::chrono::steady_clock::now() < deadline) {
+  return wait_until([&] {
     const fs::path stage = staging_folder(dir);
-    if (!stage.empty() && fs::exists(stage / name)) return true;
-    std::this_thread::sleep_for(std::chrono::milliseconds(5));
+    return !stage.empty() && fs::exists(stage / name);
+  });
+}
+
+/// Whether a process is blocked waiting for an flock on `dir`: /proc/locks lists each waiting
+/// request as `-> FLOCK ...` with the file's device and inode as `MAJOR:MINOR:INODE` (hex, hex,
+/// decimal; proc(5)).
+inline bool flock_awaited(const fs::path& dir) {
+  struct stat st {};
+  if (::stat(dir.c_str(), &st) != 0) return false;
+  char id[64];
+  std::snprintf(id, sizeof id, " %02x:%02x:%lu ", major(st.st_dev), minor(st.st_dev),
+                static_cast<unsigned long>(st.st_ino));
+  std::ifstream locks("/proc/locks");
+  for (std::string line; std::getline(locks, line);) {
+    if (line.find("-> FLOCK") != std::string::npos && line.find(id) != std::string::npos) {
+      return true;
+    }
   }
   return false;
 }

@@ -10,7 +10,6 @@
 #include <optional>
 #include <sstream>
 #include <string>
-#include <thread>
 
 #include "cli_support.hpp"
 #include "gutterwatt/output_folder.hpp"
@@ -47,9 +46,9 @@ TEST(AtomicOutputSet, PublishingWaitsForAReaderAndThenShowsTheWholeSet) {
   std::optional<FolderReadLock> reading(std::in_place, out);
   Child child({"run", (site / "shed.yaml").string(), "--quiet", "--out", out.string()}, site);
   ASSERT_TRUE(child.started());
-  // Wait until the run has staged summary.json, its last file, then give it time to publish.
+  // The run stages summary.json, its last file, then blocks on the folder's lock.
   ASSERT_TRUE(wait_until_staged(out, "summary.json")) << child.outcome().err;
-  std::this_thread::sleep_for(std::chrono::milliseconds(300));
+  ASSERT_TRUE(wait_until([&] { return flock_awaited(out); })) << child.outcome().err;
   EXPECT_FALSE(child.wait_for(std::chrono::milliseconds(0)));  // still waiting for the lock
   EXPECT_FALSE(fs::exists(out / "timeseries.csv"));
   reading.reset();
@@ -68,6 +67,7 @@ TEST(AtomicOutputSet, WriterWaitingForAReaderCanStillBeEndedBySignals) {
   Child child({"run", (site / "shed.yaml").string(), "--quiet", "--out", out.string()}, site);
   ASSERT_TRUE(child.started());
   ASSERT_TRUE(wait_until_staged(out, "summary.json")) << child.outcome().err;
+  ASSERT_TRUE(wait_until([&] { return flock_awaited(out); })) << child.outcome().err;
   std::optional<int> status;
   for (int i = 0; i < 100 && !status; ++i) {
     child.signal(SIGINT);
