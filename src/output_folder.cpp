@@ -124,7 +124,8 @@ pid_t staging_pid(const std::string& name) {
 }
 
 /// Removes the staging folders in `dir` (held open as `dir_fd`) of this user's processes that
-/// no longer run. Anything else by that prefix (a link, a file, another user's folder) stays.
+/// no longer run and that no writer holds locked. Anything else by that prefix (a link, a file,
+/// another user's folder) stays.
 void remove_dead_staging(const fs::path& dir, int dir_fd) {
   std::error_code ec;
   for (fs::directory_iterator it(dir, ec), end; !ec && it != end; it.increment(ec)) {
@@ -137,8 +138,15 @@ void remove_dead_staging(const fs::path& dir, int dir_fd) {
       continue;
     }
     if (::kill(pid, 0) == 0 || errno != ESRCH) continue;
-    std::error_code ignored;
-    fs::remove_all(it->path(), ignored);
+    // A live writer holds its staging folder locked, even one whose process id means nothing
+    // here (another PID namespace sharing the folder): only an unlocked one goes.
+    const int fd = ::openat(dir_fd, name.c_str(), O_RDONLY | O_DIRECTORY | O_NOFOLLOW | O_CLOEXEC);
+    if (fd < 0) continue;
+    if (::flock(fd, LOCK_EX | LOCK_NB) == 0) {
+      std::error_code ignored;
+      fs::remove_all(it->path(), ignored);
+    }
+    ::close(fd);
   }
 }
 
@@ -184,6 +192,7 @@ OutputFolder::OutputFolder(fs::path dir, std::string option)
       throw InputError(dir_.string(), 0, option_,
                        "cannot open the staging folder (" + errno_text(errno) + ")");
     }
+    lock(stage_fd_, LOCK_EX);  // held while this writer lives: see remove_dead_staging
   } catch (...) {
     discard();
     throw;

@@ -14,7 +14,8 @@
 /// - Without commit() (a failed or interrupted run) the staging folder goes, and so do the
 ///   folders the writer made; earlier results stay as they were.
 /// - Staging folders of processes that no longer run (killed with SIGKILL, say) are removed by
-///   the next writer into that folder.
+///   the next writer into that folder. A writer holds its own staging folder locked (flock), so
+///   one still in use is kept even when its process id names no process here.
 
 #include <filesystem>
 #include <memory>

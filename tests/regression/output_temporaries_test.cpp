@@ -117,6 +117,23 @@ TEST(OutputTemporaries, StagingFolderOfADeadProcessIsRemovedByTheNextWriter) {
   EXPECT_TRUE(fs::exists(live));
 }
 
+TEST(OutputTemporaries, StagingFolderInUseIsKeptWhateverItsProcessId) {
+  // A writer in another PID namespace sharing the folder: its process id names no process here,
+  // but it holds its staging folder locked (the test's lock stands in for it).
+  const fs::path dir = scratch("tmp-in-use");
+  const fs::path busy =
+      dir / (std::string(kStagingPrefix) + std::to_string(dead_pid()) + "-g7h8i9");
+  fs::create_directories(busy);
+  write_file(busy / "timeseries.csv", "a run still writing\n");
+  const FolderReadLock in_use(busy);
+  {
+    OutputFolder folder(dir);
+    folder.open("summary.json") << "{}\n";
+    folder.commit();
+  }
+  EXPECT_EQ(slurp(busy / "timeseries.csv"), "a run still writing\n");
+}
+
 TEST(OutputTemporaries, LinkNamedLikeADeadStagingFolderIsNotFollowed) {
   const fs::path dir = scratch("tmp-dead-link");
   const fs::path keep = dir / "keep";
