@@ -308,6 +308,14 @@ TEST(FitCommand, WritesAFittedScenarioThatLoadsAndRunsFromItsNewFolder) {
   ASSERT_EQ(r.status, 0) << r.err;
   EXPECT_NE(r.out.find("release.priming_flow_L_per_min: 1.6 +- "), std::string::npos) << r.out;
   EXPECT_NE(r.out.find("wrote fitted.yaml"), std::string::npos);
+  // With the demo's head column nothing on the bench depends on the nozzle: its coefficient is
+  // kept as the demo gives it (0.95), not fitted to the simulation's noise.
+  EXPECT_NE(r.out.find("nozzle.discharge_coefficient: 0.95 (kept: see the warnings)"),
+            std::string::npos)
+      << r.out;
+  EXPECT_NE(r.out.find("nothing in the log depends on the nozzle's discharge coefficient"),
+            std::string::npos)
+      << r.out;
   const Scenario s = load_scenario(dir / "fitted.yaml");
   EXPECT_NEAR(s.release.priming_flow_m3_per_s, 1.6 * kLPerMin, 1e-12);
   EXPECT_EQ(s.release.priming_flow_measured_by, source("data/demo/bench-demo.csv"));
@@ -315,6 +323,7 @@ TEST(FitCommand, WritesAFittedScenarioThatLoadsAndRunsFromItsNewFolder) {
   EXPECT_TRUE(fs::equivalent(s.rain.files[0], source("data/demo/rain-5min.csv")));
   // The invented build has a loss sum of 3.5 (tools/make_bench_log.py).
   EXPECT_NEAR(s.drop_pipe.minor_loss_k, 3.5, 0.35);
+  EXPECT_EQ(s.nozzle.discharge_coefficient, 0.95);
 }
 
 }  // namespace
