@@ -232,6 +232,10 @@ TEST(BenchFit, RecoversThePrimingFlowAndTheLossSumOfAReferenceBuild) {
   EXPECT_GT(*fit.primed_min_m3_per_s, 2.5 * kLPerMin);
   EXPECT_TRUE(fit.priming_flow.fitted);
   EXPECT_NEAR(fit.priming_flow.value, 2.5 * kLPerMin, 1e-12);
+  // The bracket 2.2 to 2.8 L/min as a rectangular distribution (GUM 4.3.7): half-width 0.3 L/min
+  // over sqrt(3) = 0.1732051 L/min = 2.886751e-6 m3/s.
+  ASSERT_TRUE(fit.priming_flow.sigma);
+  EXPECT_NEAR(*fit.priming_flow.sigma, 2.886751e-6, 1e-12);
   ASSERT_TRUE(fit.minor_loss_k.fitted);
   EXPECT_NEAR(fit.minor_loss_k.value, 3.0, 0.3);
   ASSERT_TRUE(fit.minor_loss_k.sigma);

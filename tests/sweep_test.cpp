@@ -466,8 +466,11 @@ TEST(SweepWarnings, PrimingFlowAloneIsABuildProperty) {
   plan.axes = {{"release.priming_flow_L_per_min", {"1", "2"}}};
   const auto warnings = sweep_warnings(plan, ranked_first({"1"}));
   ASSERT_EQ(warnings.size(), 1u);
-  EXPECT_EQ(warnings[0].substr(0, 60),
-            "release.priming_flow_L_per_min is a property of a build: wha");
+  EXPECT_EQ(warnings[0],
+            "release.priming_flow_L_per_min is a property of a build: what makes a siphon prime at "
+            "a lower flow (a restriction at its outlet) also lowers its running flow, which this "
+            "sweep holds fixed. Measure builds on the bench (gutterwatt fit) and compare them with "
+            "--vary release.build=NAME,NAME (README, \"The bench test\")");
   plan.axes.push_back({"drop_pipe.minor_loss_k", {"1", "3"}});
   EXPECT_TRUE(sweep_warnings(plan, ranked_first({"1", "3"})).empty());
 }
