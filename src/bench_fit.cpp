@@ -564,16 +564,17 @@ BenchFit fit_bench(const Scenario& scenario, const std::vector<BenchRow>& rows,
 
   // Levenberg-Marquardt (Marquardt 1963, J. SIAM 11(2), 431-441) on the chosen parameters,
   // damping by the diagonal of J^T J, within the bounds.
+  // At the starting values the residuals and the chosen columns of J are those already had.
+  Eigen::VectorXd x(static_cast<Eigen::Index>(chosen.size()));
+  std::optional<Eigen::MatrixXd> Jx = Eigen::MatrixXd(J->rows(), x.size());
+  for (std::size_t j = 0; j < chosen.size(); ++j) {
+    x[static_cast<Eigen::Index>(j)] = theta[chosen[j]];
+    Jx->col(static_cast<Eigen::Index>(j)) = J->col(chosen[j]);
+  }
   params = chosen;
-  Eigen::VectorXd x(static_cast<Eigen::Index>(params.size()));
-  for (std::size_t j = 0; j < params.size(); ++j)
-    x[static_cast<Eigen::Index>(j)] = theta[params[j]];
-  r = model.residuals(x, params);
   double cost = r->squaredNorm();
   double lambda = 1e-3;
-  for (fit.iterations = 0; fit.iterations < 50; ++fit.iterations) {
-    const auto Jx = jacobian(model, x, *r, params, base);
-    if (!Jx) break;
+  for (fit.iterations = 0; Jx && fit.iterations < 50; ++fit.iterations) {
     const Eigen::MatrixXd A = Jx->transpose() * *Jx;
     const Eigen::VectorXd g = Jx->transpose() * *r;
     bool improved = false;
@@ -595,6 +596,8 @@ BenchFit fit_bench(const Scenario& scenario, const std::vector<BenchRow>& rows,
         cost = rt->squaredNorm();
         lambda = std::max(lambda / 10.0, 1e-12);
         improved = previous - cost > 1e-12 * (1.0 + previous);
+        // J at the new values: for the next step, or for the uncertainty if this is the last.
+        Jx = jacobian(model, x, *r, params, base);
         break;
       }
       lambda *= 10.0;
@@ -604,11 +607,10 @@ BenchFit fit_bench(const Scenario& scenario, const std::vector<BenchRow>& rows,
 
   const Eigen::Index m = r->size();
   const Eigen::Index p = x.size();
-  const auto Jfinal = jacobian(model, x, *r, params, base);
   std::optional<Eigen::VectorXd> sigma;
-  if (m > p && Jfinal) {
+  if (m > p && Jx) {
     const double s2 = cost / static_cast<double>(m - p);
-    const Eigen::MatrixXd cov = s2 * (Jfinal->transpose() * *Jfinal).inverse();
+    const Eigen::MatrixXd cov = s2 * (Jx->transpose() * *Jx).inverse();
     sigma = cov.diagonal().cwiseMax(0.0).cwiseSqrt();
   } else {
     fit.warnings.push_back("as many measurements as fitted values: no uncertainty can be given");
