@@ -288,27 +288,27 @@ TEST(BenchFit, WritesTheFittedValuesIntoTheScenarioText) {
             "nozzle: {diameter_mm: 6}\n");
 }
 
+// `gutterwatt fit` of the demo scenario, run from `dir` (so file names in `args` are relative to
+// it) with `args` after the scenario.
+cli_support::Outcome fit_demo_in(const std::filesystem::path& dir, const std::string& args) {
+  return cli_support::shell("cd " + dir.string() + " && " + GUTTERWATT_EXE + " fit " +
+                                cli_support::source("scenarios/demo.yaml") + " " + args,
+                            dir);
+}
+
 TEST(FitCommand, BadLogIsOneLineExitTwoNamingFileLineAndColumn) {
   using namespace cli_support;
   const fs::path dir = scratch("fit-bad-log");
   write_file(dir / "bench.csv", "inflow_L_per_min,outcome\n1.5,dribbled\n2,prime\n");
-  const Outcome r = shell("cd " + dir.string() + " && " + GUTTERWATT_EXE + " fit " +
-                              source("scenarios/demo.yaml") + " --bench bench.csv",
-                          dir);
-  EXPECT_EQ(r.status, 2);
-  EXPECT_EQ(r.out, "");
-  EXPECT_EQ(r.err,
-            "gutterwatt: error: bench.csv:3: outcome: expected primed or dribbled, got "
-            "\"prime\"\n");
+  expect_bad(fit_demo_in(dir, "--bench bench.csv"),
+             "bench.csv:3: outcome: expected primed or dribbled, got \"prime\"");
 }
 
 TEST(FitCommand, WritesAFittedScenarioThatLoadsAndRunsFromItsNewFolder) {
   using namespace cli_support;
   const fs::path dir = scratch("fit-demo");
-  const Outcome r = shell("cd " + dir.string() + " && " + GUTTERWATT_EXE + " fit " +
-                              source("scenarios/demo.yaml") + " --bench " +
-                              source("data/demo/bench-demo.csv") + " --out fitted.yaml",
-                          dir);
+  const Outcome r =
+      fit_demo_in(dir, "--bench " + source("data/demo/bench-demo.csv") + " --out fitted.yaml");
   ASSERT_EQ(r.status, 0) << r.err;
   EXPECT_NE(r.out.find("release.priming_flow_L_per_min: 1.6 +- "), std::string::npos) << r.out;
   EXPECT_NE(r.out.find("wrote fitted.yaml"), std::string::npos);
