@@ -60,8 +60,9 @@ inline constexpr std::string_view kCautionsPreface =
 /// What `check` says while a bell siphon's priming flow is a guess (no
 /// release.priming_flow_measured_by and no release.build): the bench test in brief.
 inline constexpr std::string_view kBenchTestNote =
-    "  The priming flow is a guess until measured, and it moves the estimate more than any other "
-    "input. Measure it on the built siphon at ground level: feed the reservoir a steady hose "
+    "  The priming flow is a guess until measured, and the estimate depends strongly on it: it "
+    "decides how much light rain primes the siphon rather than dribbling away. Measure it on the "
+    "built siphon at ground level: feed the reservoir a steady hose "
     "flow in steps (start low, raise by about a fifth), wait at each step until the siphon "
     "primes or the level settles (10-20 min), time a bucket to know the flow, and write down "
     "primed or dribbled and the cycle times. Then `gutterwatt fit SCENARIO --bench LOG`. Keep "
