@@ -431,12 +431,6 @@ TEST(SweepOutput, PrintsTheBestRowsAsATable) {
             "  ... 1 more in sweep.csv\n");
 }
 
-}  // namespace
-}  // namespace gutterwatt
-
-namespace gutterwatt {
-namespace {
-
 // A plan and a result made by hand: the best row is the first ranked.
 SweepResult ranked_first(const std::vector<std::string>& best_values) {
   SweepResult r;
