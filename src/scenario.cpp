@@ -48,6 +48,7 @@ std::string show(double x) {
   return std::string(buf, result.ptr);
 }
 
+using detail::kDay_s;
 using detail::to_number;
 
 /// The interval a number must fall in; each end may be open, closed or absent.
@@ -498,7 +499,7 @@ void apply_disaggregate(const Value& v, Scenario& s) {
          s.rain.disaggregate.start_s = hours_as_seconds(v, {0.0, 24.0, false, true});
        }},
       {"step", kOptional,
-       [](V v, S s) { s.rain.disaggregate.step_s = whole_seconds(v, 1, 86400); }},
+       [](V v, S s) { s.rain.disaggregate.step_s = whole_seconds(v, 1, kDay_s); }},
       {"seed", kOptional,
        [](V v, S s) {
          std::uint64_t seed = 0;
@@ -522,20 +523,21 @@ void apply_disaggregate(const Value& v, Scenario& s) {
     // TR-55 gives the type II shape for 24 hours only; it is not stretched or cut here.
     if (at("duration_h") != given.end()) {
       at("duration_h")
-          ->second.expect(d.duration_s == 86400, "must be 24 for method: nrcs-II, a 24-hour shape");
+          ->second.expect(d.duration_s == kDay_s,
+                          "must be 24 for method: nrcs-II, a 24-hour shape");
     }
     if (at("start_hour") != given.end()) {
       at("start_hour")
           ->second.expect(d.start_s == 0, "must be 0 for method: nrcs-II, a 24-hour shape");
     }
   }
-  if (d.start_s + d.duration_s > 86400) {
+  if (d.start_s + d.duration_s > kDay_s) {
     // Each day's rain stays in its own day.
     if (at("duration_h") != given.end()) {
       at("duration_h")
           ->second.expect(false,
                           "must be <= 24 - rain.disaggregate.start_hour = " +
-                              show(static_cast<double>(86400 - d.start_s) / kSecondsPerHour) +
+                              show(static_cast<double>(kDay_s - d.start_s) / kSecondsPerHour) +
                               ", so that each day's rain stays in its day");
     }
     at("start_hour")
@@ -611,7 +613,8 @@ const std::vector<Section>& schema() {
             [](V v, S s) { s.rain.series.utc_offset_s = v.utc_offset_s(); }},
            {"tip_depth", kOptional,
             [](V v, S s) { s.rain.tips.tip_depth_m = v.number(kPositive) * s.rain.series.unit_m; }},
-           {"tip_cap", kOptional, [](V v, S s) { s.rain.tips.cap_s = whole_seconds(v, 1, 86400); }},
+           {"tip_cap", kOptional,
+            [](V v, S s) { s.rain.tips.cap_s = whole_seconds(v, 1, kDay_s); }},
            {"disaggregate", kOptional, apply_disaggregate},
        }},
       {"roof",

@@ -15,6 +15,7 @@
 #include "gutterwatt/rain_input.hpp"
 #include "gutterwatt/release.hpp"
 #include "gutterwatt/reservoir.hpp"
+#include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
 
@@ -38,7 +39,7 @@ struct RoofConfig {
   double area_m2 = 0.0;  ///< plan (horizontal) area
   double runoff_coefficient = 0.9;
   double initial_loss_m = 0.5e-3;
-  double drying_m_per_s = 3e-3 / 86400.0;
+  double drying_m_per_s = 3e-3 / kSecondsPerDay;  ///< 3 mm a day
   double lag_s = 60.0;  ///< linear-reservoir constant; 0 passes runoff straight through
 };
 
