@@ -800,7 +800,6 @@ const std::vector<Section>& schema() {
        {
            {"capacity_Wh", kRequired,
             [](V v, S s) { s.battery.capacity_J = v.number(kPositive) * kJoulesPerWh; }},
-           {"voltage_V", kOptional, [](V v, S) { v.number(kPositive); }},
            {"initial_soc", kOptional, [](V v, S s) { s.battery.initial_soc = v.number(kShare); }},
            {"charge_efficiency", kOptional,
             [](V v, S s) { s.battery.charge_efficiency = v.number(kFraction); }},
