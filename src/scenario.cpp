@@ -11,6 +11,7 @@
 #include <cstdlib>
 #include <cstring>
 #include <fstream>
+#include <functional>
 #include <initializer_list>
 #include <map>
 #include <set>
@@ -410,26 +411,71 @@ void reject_unknown_key(const Value& item, const std::string& name,
   item.fail("unknown key; did you mean " + std::string(nearest(name, valid)) + "?");
 }
 
+/// Makes the Value of one entry of a section from its key and value nodes.
+using MakeChild = std::function<Value(const Value&, const YAML::Node&, const YAML::Node&)>;
+
+/// The conversion of `item`, given as the customary twin `name` in `section`, to the unit of the
+/// key `si` it stands for.
+Conversion twin_conversion(const Value& section, std::string_view name, std::string_view si,
+                           const Value& item, const MakeChild& child) {
+  if (name == kAmpereHours) {
+    const YAML::Node& node = section.node();
+    const YAML::Node voltage = node[std::string(kVoltage)];
+    if (!voltage) {
+      item.fail("needs " + section.path() + "." + std::string(kVoltage) +
+                " to turn ampere-hours into watt-hours");
+    }
+    const auto key = std::find_if(node.begin(), node.end(), [](const auto& entry) {
+      return entry.first.IsScalar() && entry.first.Scalar() == kVoltage;
+    });
+    return {child(section, key->first, key->second).number(kPositive), 0.0, false};
+  }
+  const UnitTwin* t = si_unit_of(si);
+  return {t->si_per_us, t->si_offset, t->us == "in"};
+}
+
+/// The entries of a section by name, a customary twin under the name of the key it stands for,
+/// after rejecting unknown and repeated keys (and both twins of one key) in file order.
+std::map<std::string, Value> read_entries(const Value& section,
+                                          const std::vector<std::string_view>& valid,
+                                          const MakeChild& child) {
+  std::map<std::string, Value> out;
+  if (!section.node().IsMap()) return out;
+  for (auto it = section.node().begin(); it != section.node().end(); ++it) {
+    Value item = child(section, it->first, it->second);
+    std::string name = it->first.Scalar();
+    if (const std::string si = twin_of(name, valid); !si.empty() && !is_valid(name, valid)) {
+      item = item.converted(twin_conversion(section, name, si, item, child));
+      name = si;
+    }
+    reject_unknown_key(item, name, valid);
+    const auto [first, inserted] = out.emplace(name, item);
+    if (inserted) continue;
+    const std::string first_line = std::to_string(first->second.line());
+    if (first->second.path() == item.path()) {
+      item.fail("duplicate key (first given on line " + first_line + ")");
+    }
+    item.fail("give either " + first->second.path() + " (line " + first_line + ") or " +
+              item.path() + " (line " + std::to_string(item.line()) + "), not both");
+  }
+  return out;
+}
+
 /// Reads the keys of a small section nested in a key's value (rain.disaggregate, an item of
 /// release.builds) against `keys`, with the same messages as the loader's; returns them by name.
 std::map<std::string, Value> apply_nested(const Value& v, const std::vector<Key>& keys,
                                           Scenario& s) {
   std::vector<std::string_view> names;
   for (const Key& key : keys) names.push_back(key.name);
-  std::map<std::string, Value> given;
-  for (auto it = v.node().begin(); it != v.node().end(); ++it) {
-    if (!it->first.IsScalar()) v.fail("expected a key name, got a section or a list");
-    const std::string name = it->first.Scalar();
+  const auto child = [](const Value& parent, const YAML::Node& key, const YAML::Node& value) {
+    if (!key.IsScalar()) parent.fail("expected a key name, got a section or a list");
     // Keys written by --set have no place in the file.
-    const bool from_override = v.label() == kOverrideLabel || it->first.Mark().is_null();
-    const Value item(it->second, v.path() + "." + name, from_override ? kOverrideLabel : v.label(),
-                     from_override ? 0 : it->first.Mark().line + 1);
-    reject_unknown_key(item, name, names);
-    const auto [first, inserted] = given.emplace(name, item);
-    if (!inserted) {
-      item.fail("duplicate key (first given on line " + std::to_string(first->second.line()) + ")");
-    }
-  }
+    const bool from_override = parent.label() == kOverrideLabel || key.Mark().is_null();
+    return Value(value, parent.path() + "." + key.Scalar(),
+                 from_override ? kOverrideLabel : parent.label(),
+                 from_override ? 0 : key.Mark().line + 1);
+  };
+  const std::map<std::string, Value> given = read_entries(v, names, child);
   for (const Key& key : keys) {
     const auto found = given.find(std::string(key.name));
     if (found != given.end()) {
@@ -1195,49 +1241,12 @@ class Loader {
   }
 
  private:
-  /// The entries of a section by name, after rejecting unknown and repeated keys in file order.
+  /// The entries of a section by name (see read_entries).
   std::map<std::string, Value> entries(const Value& section,
                                        const std::vector<std::string_view>& valid) const {
-    std::map<std::string, Value> out;
-    if (!section.node().IsMap()) return out;
-    for (auto it = section.node().begin(); it != section.node().end(); ++it) {
-      Value item = child(section, it->first, it->second);
-      std::string name = it->first.Scalar();
-      if (const std::string si = twin_of(name, valid); !si.empty() && !is_valid(name, valid)) {
-        item = item.converted(conversion(section, name, si, item));
-        name = si;
-      }
-      reject_unknown_key(item, name, valid);
-      const auto [first, inserted] = out.emplace(name, item);
-      if (inserted) continue;
-      const std::string first_line = std::to_string(first->second.line());
-      if (first->second.path() == item.path()) {
-        item.fail("duplicate key (first given on line " + first_line + ")");
-      }
-      item.fail("give either " + first->second.path() + " (line " + first_line + ") or " +
-                item.path() + " (line " + std::to_string(item.line()) + "), not both");
-    }
-    return out;
-  }
-
-  /// The conversion of `item`, given as the customary twin `name` in `section`, to the unit of
-  /// the key it stands for.
-  Conversion conversion(const Value& section, std::string_view name, std::string_view si,
-                        const Value& item) const {
-    if (name == kAmpereHours) {
-      const YAML::Node& node = section.node();
-      const YAML::Node voltage = node[std::string(kVoltage)];
-      if (!voltage) {
-        item.fail("needs " + section.path() + "." + std::string(kVoltage) +
-                  " to turn ampere-hours into watt-hours");
-      }
-      const auto key = std::find_if(node.begin(), node.end(), [](const auto& entry) {
-        return entry.first.IsScalar() && entry.first.Scalar() == kVoltage;
-      });
-      return {child(section, key->first, key->second).number(kPositive), 0.0, false};
-    }
-    const UnitTwin* t = si_unit_of(si);
-    return {t->si_per_us, t->si_offset, t->us == "in"};
+    return read_entries(section, valid,
+                        [this](const Value& parent, const YAML::Node& key,
+                               const YAML::Node& value) { return child(parent, key, value); });
   }
 
   Value child(const Value& parent, const YAML::Node& key, const YAML::Node& value) const {

@@ -261,6 +261,25 @@ TEST(Scenario, PutsThePickedBuildInPlace) {
   EXPECT_EQ(restricted.release.priming_flow_measured_by, "build restricted");
 }
 
+TEST(Scenario, ReadsABuildGivenInUsUnits) {
+  // A build's keys take their customary twins as every other key does. By hand (NIST HB 44,
+  // appendix C): 0.5 gpm = 0.5 * 3.785411784 L = 1.892705892 L/min; 1/8 in = 3.175 mm.
+  const std::string text =
+      minimal_with("  priming_flow_L_per_min: 2\n",
+                   "  priming_flow_L_per_min: 2\n  builds:\n"
+                   "    - {name: us, priming_flow_gpm: 0.5, nozzle_diameter_in: 1/8}\n");
+  const Scenario s = parse(text, {"release.build=us"});
+  EXPECT_DOUBLE_EQ(s.release.priming_flow_m3_per_s, 1.892705892e-3 / 60.0);
+  EXPECT_DOUBLE_EQ(s.nozzle.diameter_m, 3.175e-3);
+  EXPECT_EQ(error_of(minimal_with("  priming_flow_L_per_min: 2\n",
+                                  "  priming_flow_L_per_min: 2\n  builds:\n"
+                                  "    - {name: a, priming_flow_L_per_min: 1,\n"
+                                  "       priming_flow_gpm: 0.3}\n")),
+            "demo.yaml:19: release.builds[0].priming_flow_gpm: give either "
+            "release.builds[0].priming_flow_L_per_min (line 18) or "
+            "release.builds[0].priming_flow_gpm (line 19), not both");
+}
+
 TEST(Scenario, RejectsAnUnknownBuild) {
   const std::string text = minimal_with("  priming_flow_L_per_min: 2\n", kTwoBuilds);
   EXPECT_EQ(error_of(text, {"release.build=tight"}),
