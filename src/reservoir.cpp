@@ -280,9 +280,16 @@ double ReservoirGeometry::level_m(double volume_m3) const {
       const double dh = 2.0 * dv / (a0 + std::sqrt(a0 * a0 + 2.0 * slope * dv));
       return levels_m_[k - 1] + dh;
     }
-    case Kind::sloped:
-      return solve_level_m(
-          v, volume_table_.covers(v) ? volume_table_(v) : rim_m_ * std::sqrt(v / rim_volume_m3_));
+    case Kind::sloped: {
+      if (!volume_table_.covers(v)) return solve_level_m(v, rim_m_ * std::sqrt(v / rim_volume_m3_));
+      // The table is close (cubic between nodes) but for the cells at a kink in V(h), where the
+      // water reaches the far end and at the rim: a small Newton step on V(h) = v ends it, as for
+      // the shallow half-round below; a large one is taken on by the safeguarded solve.
+      const double h = std::clamp(volume_table_(v), 0.0, rim_m_);
+      const double step = (section_volume_m3(h) - v) / section_area_m2(h);
+      if (std::abs(step) <= 1e-9 * rim_m_) return std::clamp(h - step, 0.0, rim_m_);
+      return solve_level_m(v, h - step);
+    }
     case Kind::level_half_round:
       break;
   }

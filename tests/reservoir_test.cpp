@@ -294,6 +294,13 @@ TEST(Reservoir, FallingGuttersRoundTrip) {
       const double level = c.rim_m * 1.1 * i / 400.0;
       EXPECT_NEAR(g.level_m(g.volume_m3(level)), level, 1e-13) << level;
     }
+    // Closely around the kinks in the volume: where the water reaches the far end, and the rim.
+    for (const double edge : {c.fall_m, c.rim_m}) {
+      for (int i = -200; i <= 200; ++i) {
+        const double level = edge * (1.0 + 1e-5 * i);
+        EXPECT_NEAR(g.level_m(g.volume_m3(level)), level, 1e-13) << level;
+      }
+    }
   }
 }
 
