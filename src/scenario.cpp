@@ -175,10 +175,10 @@ Conversion twin_conversion(const Value& section, std::string_view name, std::str
     const auto key = std::find_if(node.begin(), node.end(), [](const auto& entry) {
       return entry.first.IsScalar() && entry.first.Scalar() == kVoltage;
     });
-    return {child(section, key->first, key->second).number(kPositive), 0.0, false};
+    return {child(section, key->first, key->second).number(kPositive), 0.0, false, "Ah"};
   }
   const UnitTwin* t = si_unit_of(si);
-  return {t->si_per_us, t->si_offset, t->us == "in"};
+  return {t->si_per_us, t->si_offset, t->us == "in", t->us};
 }
 
 /// The entries of a section by name, a customary twin under the name of the key it stands for,
@@ -469,8 +469,8 @@ const std::vector<Section>& schema() {
             [](V v, S s) {
               s.reservoir.length_m = v.number(kPositive);
               v.expect(s.reservoir.length_m >= kMinReservoirLength_m,
-                       "must be at least " + show(kMinReservoirLength_m) +
-                           " m: a shorter reservoir fills and empties faster than the solver can "
+                       "must be at least " + v.shown_with_unit(kMinReservoirLength_m, "m") +
+                           ": a shorter reservoir fills and empties faster than the solver can "
                            "follow");
             }},
            {"fall_mm", kOptional,

@@ -112,8 +112,9 @@ void check_reservoir(const Seen& seen, Scenario& s) {
     const double depth_mm = depth_m / kMetresPerMm;
     if (seen.has("reservoir.rim_mm")) {
       const Value& rim = seen.at("reservoir.rim_mm");
-      rim.expect(rim.number() <= depth_mm * (1.0 + 1e-12),
-                 "must be <= the depth of shape: " + shape + ", " + show(depth_mm) + " mm");
+      rim.expect(
+          rim.number() <= depth_mm * (1.0 + 1e-12),
+          "must be <= the depth of shape: " + shape + ", " + rim.shown_with_unit(depth_mm, "mm"));
     } else {
       r.rim_m = depth_m;
     }

@@ -70,6 +70,7 @@ struct Conversion {
   double factor = 1.0;
   double offset = 0.0;
   bool inches = false;
+  std::string_view unit;  ///< the unit as given (`in` for `rim_in`); empty: the key's own
 
   double to_key(double x) const { return x * factor + offset; }
   /// To 12 significant digits, so that limits read as written (32 F, not 31.999999999999996).
@@ -163,6 +164,13 @@ class Value {
     char buf[32];
     std::snprintf(buf, sizeof buf, "%.12g", conversion_.to_given(key_value));
     return buf;
+  }
+
+  /// A number in the key's unit, whose name is `key_unit`, shown with its unit in the unit it
+  /// was given in: `0.1 m` for length_m, `0.328083989501 ft` for length_ft.
+  std::string shown_with_unit(double key_value, std::string_view key_unit) const {
+    if (conversion_.unit.empty()) return show(key_value) + " " + std::string(key_unit);
+    return shown(key_value) + " " + std::string(conversion_.unit);
   }
 
   /// Text that is shown or written (a name, a column name): UTF-8, not empty.

@@ -492,6 +492,20 @@ TEST(Scenario, LimitsOfATwinAreShownInItsUnit) {
             "demo.yaml:4: site.temperature_F: must be between 32 and 104 (got 120)");
 }
 
+TEST(Scenario, LimitsAcrossKeysOfATwinAreShownInItsUnit) {
+  // By hand: minimal.yaml's half-round is 100 mm across, 50 mm deep: 50 / 25.4 =
+  // 1.96850393701 in; the shortest reservoir, 0.1 m, is 0.1 / 0.3048 = 0.328083989501 ft.
+  EXPECT_EQ(error_of(minimal_with("  rim_mm: 50", "  rim_in: 5")),
+            "demo.yaml:11: reservoir.rim_in: must be <= the depth of shape: half_round, "
+            "1.96850393701 in (got 5)");
+  EXPECT_EQ(error_of(minimal_with("  length_m: 4", "  length_ft: 0.2")),
+            "demo.yaml:10: reservoir.length_ft: must be at least 0.328083989501 ft: a shorter "
+            "reservoir fills and empties faster than the solver can follow (got 0.2)");
+  EXPECT_EQ(error_of(minimal_with("  length_m: 4", "  length_m: 0.05")),
+            "demo.yaml:10: reservoir.length_m: must be at least 0.1 m: a shorter reservoir fills "
+            "and empties faster than the solver can follow (got 0.05)");
+}
+
 TEST(Scenario, AmpereHoursNeedTheBatteryVoltage) {
   EXPECT_EQ(error_of(minimal_with("  capacity_Wh: 20", "  capacity_Ah: 7")),
             "demo.yaml:26: battery.capacity_Ah: needs battery.voltage_V to turn ampere-hours into "
