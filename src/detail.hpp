@@ -1,8 +1,8 @@
 #pragma once
 // Small helpers the library and the command line share, written once: whitespace trimming,
-// plain comma-separated fields and data lines,
-// floor division, whole-text number parsing, fixed-point text, whole seconds of the calendar and
-// the exit statuses. Internal (not installed, not public API); tests in tests/detail_test.cpp.
+// plain comma-separated fields and data lines (past a UTF-8 byte-order mark), floor division,
+// whole-text number parsing, fixed-point text, whole seconds of the calendar and the exit statuses.
+// Internal (not installed, not public API); tests in tests/detail_test.cpp.
 
 #include <charconv>
 #include <cmath>
@@ -22,6 +22,9 @@ namespace gutterwatt::detail {
 inline constexpr std::int64_t kMinute_s = 60;
 inline constexpr std::int64_t kHour_s = 3600;
 inline constexpr std::int64_t kDay_s = 86400;
+
+/// The UTF-8 byte-order mark some editors put at the start of a text file.
+inline constexpr std::string_view kByteOrderMark = "\xEF\xBB\xBF";
 
 /// A quiet NaN, for a value that is missing.
 inline constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
@@ -101,7 +104,9 @@ inline bool next_data_line(std::istream& in, std::string& buffer, int& line_numb
   while (std::getline(in, buffer)) {
     ++line_number;
     text = buffer;
-    if (line_number == 1 && text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
+    if (line_number == 1 && text.starts_with(kByteOrderMark)) {
+      text.remove_prefix(kByteOrderMark.size());
+    }
     text = trim(text, " \t\r");
     if (!text.empty() && text.front() != '#') return true;
   }

@@ -52,7 +52,7 @@ std::size_t Csv::require(std::string_view name) const {
 Csv parse_csv(std::string_view text, const std::string& file) {
   Csv csv;
   csv.file = file;
-  if (text.substr(0, 3) == "\xEF\xBB\xBF") text.remove_prefix(3);
+  if (text.starts_with(kByteOrderMark)) text.remove_prefix(kByteOrderMark.size());
   std::size_t pos = 0;
   int line = 1;
   while (pos < text.size()) {
