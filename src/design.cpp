@@ -115,19 +115,16 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
   // Outflow with the release running, from the release itself (a valve's or orifice's opening
   // may limit it below what the conveyance carries; no release passes nothing).
   const std::unique_ptr<Release> release = make_release(rel);
-  const ReleaseState running =
-      release->is_running(ReleaseState::running) ? ReleaseState::running : ReleaseState::open;
   const auto release_flow = [&](double level_m) {
-    return release->outflow_m3_per_s(running, level_m, plant.full_flow_m3_per_s(level_m));
+    return running_outflow_m3_per_s(*release, level_m, plant.full_flow_m3_per_s(level_m));
   };
   d.running_flow_trigger_m3_per_s = release_flow(top_m);
   d.running_flow_break_m3_per_s = release_flow(bottom_m);
   d.overflow_intensity_m_per_s = intensity_for_flow(sc, release_flow(geometry.rim_m()));
 
-  const auto nozzle_head = [&](double flow) {
-    return plant.has_column() ? sc.head_column->height_m : plant.nozzle_head_for_flow_m(flow);
-  };
-  d.design_head_m = nozzle_head(d.running_flow_trigger_m3_per_s);
+  // The head the plant holds its runner for: the column's height, or the nozzle's head with the
+  // release running from the trigger (the same flow as running_flow_trigger_m3_per_s).
+  d.design_head_m = plant.design_head_m();
   d.nozzle_flow_m3_per_s = plant.has_column()
                                ? plant.column_nozzle_flow_m3_per_s(plant.column_capacity_m3())
                                : d.running_flow_trigger_m3_per_s;

@@ -41,8 +41,10 @@ Plant::Plant(const PlantConfig& config)
   const double top = std::max(config.top_level_m, 1e-3) + 0.1;
   full_flow_table_ = UniformTable(0.0, top, 1024,
                                   [this](double level) { return solve_full_flow_m3_per_s(level); });
-  design_head_m_ = column_ ? column_->height_m
-                           : nozzle_head_for_flow_m(full_flow_m3_per_s(config.design_level_m));
+  design_head_m_ = column_
+                       ? column_->height_m
+                       : nozzle_head_for_flow_m(std::min(full_flow_m3_per_s(config.design_level_m),
+                                                         config.design_release_limit_m3_per_s));
   // The speed ratio x = u / V_j that maximises the impulse runner's hydraulic efficiency
   // 2x(1-x)(1 + k cos phi) is 0.5 for any bucket (Dixon and Hall, Fluid Mechanics and
   // Thermodynamics of Turbomachinery, Pelton wheel; REFERENCES.md section 7).

@@ -30,6 +30,12 @@ double floor_orifice_flow_m3_per_s(double coefficient, double area_m2, double le
   return std::min(orifice_flow_m3_per_s(coefficient, area_m2, level_m), full_flow_m3_per_s);
 }
 
+double running_outflow_m3_per_s(const Release& release, double level_m, double full_flow_m3_per_s) {
+  const ReleaseState running =
+      release.is_running(ReleaseState::running) ? ReleaseState::running : ReleaseState::open;
+  return release.outflow_m3_per_s(running, level_m, full_flow_m3_per_s);
+}
+
 std::unique_ptr<Release> make_release(const ReleaseConfig& config) {
   switch (config.kind) {
     case ReleaseKind::bell:

@@ -13,6 +13,7 @@
 #include <fstream>
 #include <functional>
 #include <initializer_list>
+#include <limits>
 #include <map>
 #include <set>
 #include <sstream>
@@ -852,6 +853,8 @@ PlantConfig plant_config(const Scenario& scenario) {
           scenario.site.temperature_C,
           std::max(scenario.reservoir.rim_m, scenario.release.trigger_level_m),
           design_level_m(scenario),
+          running_outflow_m3_per_s(*make_release(scenario.release), design_level_m(scenario),
+                                   std::numeric_limits<double>::infinity()),
           scenario.battery.voltage_V};
 }
 

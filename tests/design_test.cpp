@@ -110,6 +110,22 @@ TEST(Design, RunnerSpeedAtTheDesignHeadIsTheHeldBestSpeed) {
   EXPECT_NEAR(d.speed_ratio, 0.5, 1e-12);
 }
 
+TEST(Design, AnOrificeReleaseHoldsTheRunnerForTheHeadItsOpeningAllows) {
+  // Regression: the held speed was set for the pipe's full flow, a head the nozzle never sees
+  // behind a small orifice (speed ratio 6, no power). Hand computation (REFERENCES.md section 5,
+  // Q = Cd a sqrt(2 g h)): a 6 mm orifice, Cd 0.61, under the 62 mm rim passes
+  // 0.61 x 2.827433e-5 m2 x sqrt(2 x 9.80665 x 0.062) = 1.901925e-5 m3/s; the 5 mm nozzle, Cd 0.95,
+  // passes it at H = (Q / (0.95 x 1.963495e-5 m2))^2 / (2 x 9.80665) = 0.0530065 m; held at speed
+  // ratio 0.5 (section 7): N = 60 x 0.5 x 0.97 sqrt(2 g H) / (pi x 0.070 m) = 134.9227 rpm.
+  Scenario s = make_scenario();
+  s.release.kind = ReleaseKind::orifice;
+  s.release.orifice_diameter_m = 0.006;
+  const DesignFigures d = evaluate_design(s, nullptr);
+  EXPECT_NEAR(d.design_head_m, 0.0530065, 1e-6);
+  EXPECT_NEAR(d.runner_speed_rpm, 134.9227, 1e-3);
+  EXPECT_NEAR(d.speed_ratio, 0.5, 1e-9);
+}
+
 TEST(Design, WarnsWhenTheGeneratorNeverReachesTheBatteryVoltage) {
   // 12 V / 0.005 V/rpm = 2400 rpm, above the runaway 2030 rpm of the 3.0 m jet.
   Scenario s = make_scenario();

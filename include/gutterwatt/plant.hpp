@@ -2,6 +2,7 @@
 /// The water-to-wire chain below the release: drop pipe, optional head column, nozzle, impulse
 /// turbine and generator, as seen from the simulation at one instant.
 
+#include <limits>
 #include <optional>
 
 #include "gutterwatt/hydraulics.hpp"
@@ -49,6 +50,9 @@ struct PlantConfig {
   /// The reservoir level at which the release starts to run: the design head is the nozzle's
   /// head with the release running full from there (the column's height with a head column).
   double design_level_m = 0.0;
+  /// The most the release itself passes running at design_level_m (an orifice's opening, say);
+  /// infinity where only the conveyance limits the flow.
+  double design_release_limit_m3_per_s = std::numeric_limits<double>::infinity();
   double battery_voltage_V = 0.0;  ///< 0: not given
 };
 

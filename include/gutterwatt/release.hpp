@@ -64,6 +64,11 @@ class Release {
 double floor_orifice_flow_m3_per_s(double coefficient, double area_m2, double level_m,
                                    double full_flow_m3_per_s);
 
+/// Outflow of `release` in whichever state it runs in (`running` for a siphon, `open` for a
+/// valve or orifice) at `level_m`, given what the conveyance carries running full there; pass
+/// infinity for the release's own limit alone.
+double running_outflow_m3_per_s(const Release& release, double level_m, double full_flow_m3_per_s);
+
 /// The release of the kind the configuration names.
 std::unique_ptr<Release> make_release(const ReleaseConfig& config);
 
