@@ -10,6 +10,7 @@
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/scenario.hpp"
 #include "gutterwatt/units.hpp"
+#include "test_support.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -313,6 +314,32 @@ TEST(RainScenario, RejectsATipCapOfPartSeconds) {
   EXPECT_EQ(scenario_error_of("  file: t.csv\n  format: tips\n  tip_depth: 0.2\n  tip_cap: 1.5s\n"),
             "demo.yaml:5: rain.tip_cap: must be a whole number of seconds (time is kept in whole "
             "seconds) (got 1.5s)");
+}
+
+// A real record as published: the daily series of a rainy maritime city, 2012-2015, from the
+// public npm package vega-datasets 3.2.1 (fetched by tools/setup). Each year's total as read
+// must equal the sum of the published column.
+// source: yearly sums of the `precipitation` column of data/seattle-weather.csv, summed with awk
+// outside gutterwatt (also stated in issue #11): 2012 1226.0, 2013 828.0, 2014 1232.8,
+// 2015 1139.2 mm.
+TEST(RainScenario, KeepsEachYearOfAPublicDailyRecord) {
+  const std::filesystem::path file =
+      test_support::public_data_file("vega-datasets-3.2.1/data/seattle-weather.csv");
+  const Scenario s = scenario("  file: " + file.string() +
+                                  "\n  format: daily\n  value_column: precipitation\n"
+                                  "  unit: mm\n  disaggregate: {method: block}\n",
+                              kFixtures);
+  const RainSeries rain = load_rain(s.rain);
+  // 2012-01-01T00:00Z ... 2016-01-01T00:00Z, worked by hand from POSIX.1-2017 4.16.
+  const Instant years[] = {1325376000, 1356998400, 1388534400, 1420070400, 1451606400};
+  const double expected_mm[] = {1226.0, 828.0, 1232.8, 1139.2};
+  for (int y = 0; y < 4; ++y) {
+    double sum_mm = 0.0;
+    for (const RainPulse& p : rain.pulses)
+      if (p.start >= years[y] && p.start < years[y + 1]) sum_mm += p.depth_m * 1e3;
+    EXPECT_NEAR(sum_mm, expected_mm[y], 1e-6) << "year " << 2012 + y;
+  }
+  EXPECT_TRUE(rain.gaps.empty());
 }
 
 }  // namespace

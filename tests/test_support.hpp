@@ -4,6 +4,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <filesystem>
+#include <stdexcept>
 #include <string>
 #include <vector>
 
@@ -14,6 +16,17 @@
 #include "gutterwatt/simulation.hpp"
 
 namespace gutterwatt::test_support {
+
+/// A file of the pinned public data that tools/setup fetches with `npm pack` into the build
+/// folder (never committed), e.g. "vega-datasets-3.2.1/data/seattle-weather.csv". Throws, naming
+/// the command that fetches it, when it is not there.
+inline std::filesystem::path public_data_file(const std::string& relative) {
+  const std::filesystem::path path = std::filesystem::path(GUTTERWATT_PUBLIC_DATA_DIR) / relative;
+  if (!std::filesystem::exists(path))
+    throw std::runtime_error(path.string() + " is missing: run tools/setup (it fetches the " +
+                             "pinned public data with npm pack)");
+  return path;
+}
 
 /// 2025-03-01T00:00Z, the start of every test run.
 inline constexpr Instant kStart = 1740787200;
