@@ -11,6 +11,7 @@
 #include <istream>
 #include <limits>
 #include <optional>
+#include <random>
 #include <string>
 #include <string_view>
 #include <system_error>
@@ -41,6 +42,12 @@ inline std::string_view trim(std::string_view text, std::string_view blanks = " 
   const std::size_t first = text.find_first_not_of(blanks);
   if (first == std::string_view::npos) return {};
   return text.substr(first, text.find_last_not_of(blanks) - first + 1);
+}
+
+// Uniform on (0, 1) from the top 53 bits of one draw; std::mt19937_64's sequence is fixed by the
+// standard, the standard distributions are not, so random draws that must repeat use this.
+inline double uniform_open(std::mt19937_64& rng) {
+  return (static_cast<double>(rng() >> 11) + 0.5) * 0x1.0p-53;
 }
 
 /// a / b rounded toward negative infinity (instants before 1970 fall on the right day). b != 0.

@@ -6,6 +6,7 @@
 #include <optional>
 #include <thread>
 
+#include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/error.hpp"
 
 namespace gutterwatt {
@@ -155,8 +156,8 @@ class RainFile {
 
 }  // namespace
 
-RainSeries load_rain(const RainConfig& config, const std::filesystem::path& override_file,
-                     const std::atomic<bool>* stop) {
+RainSeries load_rain_as_read(const RainConfig& config, const std::filesystem::path& override_file,
+                             const std::atomic<bool>* stop) {
   std::vector<std::filesystem::path> files = config.files;
   if (!override_file.empty()) files = {override_file};
   if (files.empty()) throw InputError("", 0, "rain.file", "no rain file given");
@@ -176,7 +177,8 @@ RainSeries load_rain(const RainConfig& config, const std::filesystem::path& over
   for (const std::filesystem::path& file : files) {
     parts.push_back(RainFile(file, stop).read([&](std::istream& in, const std::string& label) {
       return config.format == RainFormat::daily
-                 ? read_rain_daily(in, label, config.series, config.disaggregate)
+                 ? read_rain_daily(in, label, config.series,
+                                   config.disaggregate ? config.disaggregate->window : DayWindow{})
                  : read_rain_series(in, label, config.series);
     }));
     labels.push_back(file.string());
@@ -184,11 +186,18 @@ RainSeries load_rain(const RainConfig& config, const std::filesystem::path& over
   return join_rain(std::move(parts), labels);
 }
 
+RainSeries load_rain(const RainConfig& config, const std::filesystem::path& override_file,
+                     const std::atomic<bool>* stop) {
+  RainSeries as_read = load_rain_as_read(config, override_file, stop);
+  if (!config.disaggregate) return as_read;
+  return disaggregate(as_read, *config.disaggregate);
+}
+
 RainSeries load_rain_while(const RainConfig& config, const std::filesystem::path& override_file,
                            const std::function<void(RainView&)>& consume,
                            const std::atomic<bool>* stop) {
-  const bool one_series =
-      config.format == RainFormat::series && (!override_file.empty() || config.files.size() == 1);
+  const bool one_series = config.format == RainFormat::series && !config.disaggregate &&
+                          (!override_file.empty() || config.files.size() == 1);
   if (!one_series) {
     RainSeries whole = load_rain(config, override_file, stop);
     RainView view(whole);

@@ -9,14 +9,12 @@
 #include <cstdio>
 #include <cstring>
 #include <limits>
-#include <random>
 #include <string_view>
 #include <unordered_map>
 #include <utility>
 
 #include "detail.hpp"
 #include "gutterwatt/error.hpp"
-#include "gutterwatt/storm.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
@@ -626,81 +624,7 @@ void extend_covered(std::vector<TimeSpan>& covered, Instant start, Instant end) 
   }
 }
 
-using detail::floor_div;
 using detail::kDay_s;
-
-// One step of SplitMix64, used to turn (seed, day) into a generator seed: Steele, Lea & Flood
-// (2014), Fast splittable pseudorandom number generators, OOPSLA '14 (constants from memory).
-std::uint64_t split_mix(std::uint64_t x) {
-  x += 0x9e3779b97f4a7c15ULL;
-  x = (x ^ (x >> 30)) * 0xbf58476d1ce4e5b9ULL;
-  x = (x ^ (x >> 27)) * 0x94d049bb133111ebULL;
-  return x ^ (x >> 31);
-}
-
-// Uniform on (0, 1) from the top 53 bits of one draw; std::mt19937_64's sequence is fixed by the
-// standard, the standard distributions are not, so the cascade uses this instead.
-double uniform_open(std::mt19937_64& rng) {
-  return (static_cast<double>(rng() >> 11) + 0.5) * 0x1.0p-53;
-}
-
-// Box weights of a microcanonical binary cascade after `levels` halvings (2^levels boxes, summing
-// to 1 up to rounding). Structure after Olsson (1998), Hydrol. Earth Syst. Sci. 2, 19-30: each box
-// splits 0/1 or 1/0 (together with probability `intermittency`) or W/(1 - W) with W uniform.
-std::vector<double> cascade_weights(int levels, std::uint64_t seed, double intermittency) {
-  std::mt19937_64 rng(seed);
-  std::vector<double> weights{1.0};
-  for (int level = 0; level < levels; ++level) {
-    std::vector<double> next(weights.size() * 2, 0.0);
-    for (std::size_t i = 0; i < weights.size(); ++i) {
-      const double w = weights[i];
-      if (w == 0.0) continue;
-      if (uniform_open(rng) < intermittency) {
-        next[2 * i + (uniform_open(rng) < 0.5 ? 0 : 1)] = w;
-      } else {
-        const double left = uniform_open(rng) * w;
-        next[2 * i] = left;
-        next[2 * i + 1] = w - left;
-      }
-    }
-    weights = std::move(next);
-  }
-  return weights;
-}
-
-// Splits `depth_m` at the cumulative fractions (non-decreasing, 0 first, 1 last) into parts that
-// are whole multiples of u, the spacing of doubles at `depth_m`: depth_m = N u with N < 2^53,
-// so every partial sum is a multiple of u below 2^53 u and is exact, in any order.
-std::vector<double> split_exactly(double depth_m, const std::vector<double>& cumulative) {
-  const std::size_t parts = cumulative.size() - 1;
-  std::vector<double> out(parts, 0.0);
-  int exponent = 0;
-  const double mantissa = std::frexp(depth_m, &exponent);
-  const int unit_exponent = exponent - std::numeric_limits<double>::digits;
-  if (depth_m == 0.0) return out;
-  if (unit_exponent <
-      std::numeric_limits<double>::min_exponent - std::numeric_limits<double>::digits) {
-    // A depth far below anything a gauge reads (subnormal range): all of it in the wettest step.
-    std::size_t wettest = 0;
-    for (std::size_t j = 1; j < parts; ++j) {
-      if (cumulative[j + 1] - cumulative[j] > cumulative[wettest + 1] - cumulative[wettest]) {
-        wettest = j;
-      }
-    }
-    out[wettest] = depth_m;
-    return out;
-  }
-  const auto units =
-      static_cast<std::int64_t>(std::ldexp(mantissa, std::numeric_limits<double>::digits));
-  std::int64_t previous = 0;
-  for (std::size_t j = 0; j < parts; ++j) {
-    std::int64_t next = j + 1 == parts ? units : std::llround(cumulative[j + 1] * units);
-    next = std::clamp(next, previous, units);
-    out[j] = std::ldexp(static_cast<double>(next - previous), unit_exponent);
-    previous = next;
-  }
-  return out;
-}
 
 }  // namespace
 
@@ -881,83 +805,43 @@ RainSeries read_rain_tips(std::istream& in, const std::string& file_label, const
   return spread_tips({read_tip_log(in, file_label, fmt)}, tips, fmt.gaps);
 }
 
-std::vector<double> disaggregate_day(double depth_m, std::int64_t day, const Disaggregation& how) {
-  assert(how.duration_s >= 1 && how.start_s >= 0 && how.start_s + how.duration_s <= kDay_s);
-  if (how.method == DisaggregationMethod::block) return {depth_m};
-  assert(how.step_s >= 1 && how.duration_s % how.step_s == 0);
-  const Instant steps = how.duration_s / how.step_s;
-  std::vector<double> cumulative(static_cast<std::size_t>(steps) + 1, 0.0);
-  if (how.method == DisaggregationMethod::nrcs_ii) {
-    assert(how.duration_s == kDay_s && how.start_s == 0);
-    for (Instant j = 1; j <= steps; ++j) {
-      cumulative[j] =
-          nrcs_cumulative_fraction(StormKind::nrcs_ii, static_cast<double>(j * how.step_s));
-    }
-  } else {
-    int levels = 0;
-    while (how.duration_s > (how.step_s << levels)) ++levels;
-    const std::uint64_t seed = split_mix(how.seed ^ split_mix(static_cast<std::uint64_t>(day)));
-    const std::vector<double> weights = cascade_weights(levels, seed, how.intermittency);
-    std::vector<double> before(weights.size() + 1, 0.0);  // weight of the boxes before box i
-    for (std::size_t i = 0; i < weights.size(); ++i) before[i + 1] = before[i] + weights[i];
-    const auto boxes = static_cast<Instant>(weights.size());
-    for (Instant j = 1; j < steps; ++j) {
-      // Step boundary j falls in box i, a share r / duration into it (exact integers).
-      const Instant position = j * how.step_s * boxes;
-      const auto i = static_cast<std::size_t>(position / how.duration_s);
-      const Instant r = position % how.duration_s;
-      cumulative[j] =
-          before[i] + weights[i] * static_cast<double>(r) / static_cast<double>(how.duration_s);
-    }
-    cumulative.back() = 1.0;
-  }
-  return split_exactly(depth_m, cumulative);
-}
-
 RainSeries read_rain_daily(std::istream& in, const std::string& file_label, const SeriesFormat& fmt,
-                           const Disaggregation& how) {
+                           const DayWindow& window) {
   RainSeries series;
   series.policy = fmt.gaps;
   series.step_s = kDay_s;
   series.warnings.emplace_back(kDailyWarning);
   GapNotes gaps(file_label, fmt);
-  const bool blocks = how.method == DisaggregationMethod::block;
-  const Instant part_s = blocks ? how.duration_s : how.step_s;
   ExactSum total;
   int previous_offset_s = 0;
   StampReader dates(file_label, fmt.time_column, fmt.utc_offset_s, kDates);
-  scan_rows(in, file_label, {fmt.time_column, fmt.value_column},
-            [&](const std::vector<std::string_view>& fields, int line_number) {
-              const ParsedTime date = dates.read(fields[0], line_number);
-              const double value =
-                  parse_amount(fields[1], file_label, line_number, fmt.value_column);
-              const Instant start = date.instant;
-              const Instant end = start + kDay_s;
-              if (!series.covered.empty() && series.covered.back().end < start) {
-                gaps.note(series, series.covered.back().end, previous_offset_s, start,
-                          date.offset_s, line_number);
-              }
-              extend_covered(series.covered, start, end);
-              previous_offset_s = date.offset_s;
+  scan_rows(
+      in, file_label, {fmt.time_column, fmt.value_column},
+      [&](const std::vector<std::string_view>& fields, int line_number) {
+        const ParsedTime date = dates.read(fields[0], line_number);
+        const double value = parse_amount(fields[1], file_label, line_number, fmt.value_column);
+        const Instant start = date.instant;
+        const Instant end = start + kDay_s;
+        if (!series.covered.empty() && series.covered.back().end < start) {
+          gaps.note(series, series.covered.back().end, previous_offset_s, start, date.offset_s,
+                    line_number);
+        }
+        extend_covered(series.covered, start, end);
+        previous_offset_s = date.offset_s;
 
-              const double depth_m = value * fmt.unit_m;
-              const double intensity_mm_per_h =
-                  depth_m / kMetresPerMm * (kSecondsPerHour / static_cast<double>(how.duration_s));
-              if (intensity_mm_per_h > kMaxRainIntensity_mm_per_h) {
-                implausible_intensity(file_label, line_number, fmt.value_column, intensity_mm_per_h,
-                                      format_number(value) + " " + fmt.unit_name + " in " +
-                                          format_duration(how.duration_s));
-              }
-              if (depth_m == 0.0) return;
-              const Instant day = floor_div(start + date.offset_s, kDay_s);
-              const std::vector<double> parts = disaggregate_day(depth_m, day, how);
-              for (std::size_t j = 0; j < parts.size(); ++j) {
-                if (parts[j] == 0.0) continue;
-                const Instant part_start = start + how.start_s + static_cast<Instant>(j) * part_s;
-                series.pulses.push_back({part_start, part_start + part_s, parts[j]});
-                total.add(parts[j]);
-              }
-            });
+        const double depth_m = value * fmt.unit_m;
+        const double intensity_mm_per_h =
+            depth_m / kMetresPerMm * (kSecondsPerHour / static_cast<double>(window.duration_s));
+        if (intensity_mm_per_h > kMaxRainIntensity_mm_per_h) {
+          implausible_intensity(file_label, line_number, fmt.value_column, intensity_mm_per_h,
+                                format_number(value) + " " + fmt.unit_name + " in " +
+                                    format_duration(window.duration_s));
+        }
+        if (depth_m == 0.0) return;
+        const Instant rain_start = start + window.start_s;
+        series.pulses.push_back({rain_start, rain_start + window.duration_s, depth_m});
+        total.add(depth_m);
+      });
   gaps.finish(series);
   series.total_depth_m = total.value();
   return series;

@@ -20,6 +20,7 @@
 #include <utility>
 
 #include "detail.hpp"
+#include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/siphon.hpp"
 #include "gutterwatt/units.hpp"
@@ -271,29 +272,36 @@ void apply_builds(const Value& v, Scenario& s) {
   }
 }
 
+Disaggregation& disaggregation(Scenario& s) {
+  if (!s.rain.disaggregate) s.rain.disaggregate.emplace();
+  return *s.rain.disaggregate;
+}
+
 /// rain.disaggregate, a small section inside rain: its keys are read and checked here, with the
-/// same messages as the loader's.
+/// same messages as the loader's. rain.format comes before it in the schema, so it is known here.
 void apply_disaggregate(const Value& v, Scenario& s) {
   using V = const Value&;
   using S = Scenario&;
   static const std::vector<Key> kKeys = {
       {"method", kRequired,
        [](V v, S s) {
-         s.rain.disaggregate.method =
-             v.choice<DisaggregationMethod>({{"nrcs-II", DisaggregationMethod::nrcs_ii},
-                                             {"block", DisaggregationMethod::block},
+         disaggregation(s).method =
+             v.choice<DisaggregationMethod>({{"block", DisaggregationMethod::block},
+                                             {"nrcs-I", DisaggregationMethod::nrcs_i},
+                                             {"nrcs-IA", DisaggregationMethod::nrcs_ia},
+                                             {"nrcs-II", DisaggregationMethod::nrcs_ii},
+                                             {"nrcs-III", DisaggregationMethod::nrcs_iii},
                                              {"cascade", DisaggregationMethod::cascade}});
        }},
       {"duration_h", kOptional,
        [](V v, S s) {
-         s.rain.disaggregate.duration_s = hours_as_seconds(v, {0.0, 24.0, true, false});
+         disaggregation(s).window.duration_s = hours_as_seconds(v, {0.0, 24.0, true, false});
        }},
       {"start_hour", kOptional,
        [](V v, S s) {
-         s.rain.disaggregate.start_s = hours_as_seconds(v, {0.0, 24.0, false, true});
+         disaggregation(s).window.start_s = hours_as_seconds(v, {0.0, 24.0, false, true});
        }},
-      {"step", kOptional,
-       [](V v, S s) { s.rain.disaggregate.step_s = whole_seconds(v, 1, kDay_s); }},
+      {"step", kOptional, [](V v, S s) { disaggregation(s).step_s = whole_seconds(v, 1, kDay_s); }},
       {"seed", kOptional,
        [](V v, S s) {
          std::uint64_t seed = 0;
@@ -302,45 +310,65 @@ void apply_disaggregate(const Value& v, Scenario& s) {
          if (text.empty() || result.ec != std::errc() || result.ptr != text.data() + text.size()) {
            v.fail("expected a whole number from 0 to 18446744073709551615, got " + v.got());
          }
-         s.rain.disaggregate.seed = seed;
+         disaggregation(s).seed = seed;
        }},
       {"intermittency", kOptional,
-       [](V v, S s) { s.rain.disaggregate.intermittency = v.number(kShare); }},
+       [](V v, S s) { disaggregation(s).intermittency = v.number(kShare); }},
   };
   if (!v.node().IsMap()) {
     v.fail("expected a section of keys such as {method: cascade, step: 5min}, got " + v.got());
   }
+  if (s.rain.format == RainFormat::tips) {
+    v.fail("not used by format: tips (a tip log is spread by rain.tip_cap)");
+  }
+  disaggregation(s);
   const std::map<std::string, Value> given = apply_nested(v, kKeys, s);
-  const Disaggregation& d = s.rain.disaggregate;
+  const Disaggregation& d = *s.rain.disaggregate;
   const auto at = [&](const std::string& name) { return given.find(name); };
-  if (d.method == DisaggregationMethod::nrcs_ii) {
-    // TR-55 gives the type II shape for 24 hours only; it is not stretched or cut here.
+  const bool nrcs = d.method != DisaggregationMethod::block && !is_random(d.method);
+  const std::string method = "method: " + std::string(method_name(d.method));
+  if (s.rain.format == RainFormat::series) {
+    // A series interval is spread over itself: the day's window has no meaning there.
+    for (const char* key : {"start_hour", "duration_h"}) {
+      if (at(key) != given.end()) {
+        at(key)->second.fail(
+            "only for format: daily (an interval of a series is spread over "
+            "itself)");
+      }
+    }
+    at("method")->second.expect(!nrcs,
+                                "is a 24-hour shape, for format: daily only; use cascade "
+                                "or block for a series");
+    return;
+  }
+  if (nrcs) {
+    // TR-55 gives its shapes for 24 hours only; they are not stretched or cut here.
     if (at("duration_h") != given.end()) {
       at("duration_h")
-          ->second.expect(d.duration_s == kDay_s,
-                          "must be 24 for method: nrcs-II, a 24-hour shape");
+          ->second.expect(d.window.duration_s == kDay_s,
+                          "must be 24 for " + method + ", a 24-hour shape");
     }
     if (at("start_hour") != given.end()) {
       at("start_hour")
-          ->second.expect(d.start_s == 0, "must be 0 for method: nrcs-II, a 24-hour shape");
+          ->second.expect(d.window.start_s == 0, "must be 0 for " + method + ", a 24-hour shape");
     }
   }
-  if (d.start_s + d.duration_s > kDay_s) {
+  if (d.window.start_s + d.window.duration_s > kDay_s) {
     // Each day's rain stays in its own day.
     if (at("duration_h") != given.end()) {
       at("duration_h")
-          ->second.expect(false,
-                          "must be <= 24 - rain.disaggregate.start_hour = " +
-                              show(static_cast<double>(kDay_s - d.start_s) / kSecondsPerHour) +
-                              ", so that each day's rain stays in its day");
+          ->second.expect(
+              false, "must be <= 24 - rain.disaggregate.start_hour = " +
+                         show(static_cast<double>(kDay_s - d.window.start_s) / kSecondsPerHour) +
+                         ", so that each day's rain stays in its day");
     }
     at("start_hour")
         ->second.expect(false,
                         "must be 0 with the default duration_h of 24, so that each "
                         "day's rain stays in its day");
   }
-  if (d.method != DisaggregationMethod::block && d.duration_s % d.step_s != 0) {
-    const std::string duration = show(static_cast<double>(d.duration_s) / kSecondsPerHour);
+  if (d.method != DisaggregationMethod::block && d.window.duration_s % d.step_s != 0) {
+    const std::string duration = show(static_cast<double>(d.window.duration_s) / kSecondsPerHour);
     if (at("step") == given.end()) {
       v.fail("the default step of " + format_duration(d.step_s) + " does not divide duration_h = " +
              duration + " into whole steps; give rain.disaggregate.step");

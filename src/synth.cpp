@@ -15,10 +15,7 @@
 namespace gutterwatt {
 namespace {
 
-// Uniform on (0, 1) from the top 53 bits of one draw.
-double uniform_open(std::mt19937_64& rng) {
-  return (static_cast<double>(rng() >> 11) + 0.5) * 0x1.0p-53;
-}
+using detail::uniform_open;
 
 // Exponential with the given mean, by inversion.
 double exponential(std::mt19937_64& rng, double mean) {

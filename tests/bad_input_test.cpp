@@ -459,8 +459,8 @@ TEST(BadRainDaily, UnknownMethodListsTheMethods) {
   const Site s = rain_site("daily-method", "date,rain_mm\n2025-03-01,3\n",
                            "  format: daily\n  disaggregate: {method: nrcs}\n");
   expect_bad(check(s), s.scenario +
-                           ":6: rain.disaggregate.method: expected one of nrcs-II, block or "
-                           "cascade, got \"nrcs\"");
+                           ":6: rain.disaggregate.method: expected one of block, nrcs-I, "
+                           "nrcs-IA, nrcs-II, nrcs-III or cascade, got \"nrcs\"");
 }
 
 TEST(BadRainDaily, IntensityValuesAreRefused) {
@@ -499,10 +499,8 @@ TEST(BadRainReaders, EveryBadFileIsAnInputErrorNamingTheFileOnOneLine) {
        [](std::istream& in, const std::string& label, const SeriesFormat& f) {
          return read_rain_tips(in, label, f, TipSpreading{0.2e-3, kDefaultTipCap_s});
        }},
-      {"daily",
-       [](std::istream& in, const std::string& label, const SeriesFormat& f) {
-         return read_rain_daily(in, label, f, Disaggregation{});
-       }},
+      {"daily", [](std::istream& in, const std::string& label,
+                   const SeriesFormat& f) { return read_rain_daily(in, label, f); }},
   };
   for (const auto& [format, read] : readers) {
     for (const std::string& text : bad) {

@@ -225,11 +225,11 @@ TEST(RainScenario, LoadsDailyTotalsFromAScenario) {
       "  disaggregate: {method: cascade, step: 10min, seed: 42, intermittency: 0.5}\n",
       kFixtures);
   EXPECT_EQ(s.rain.series.time_column, "date");
-  EXPECT_EQ(s.rain.disaggregate.method, DisaggregationMethod::cascade);
-  EXPECT_EQ(s.rain.disaggregate.step_s, 600);
-  EXPECT_EQ(s.rain.disaggregate.seed, 42u);
-  EXPECT_EQ(s.rain.disaggregate.intermittency, 0.5);
-  EXPECT_EQ(s.rain.disaggregate.duration_s, kDay);
+  EXPECT_EQ(s.rain.disaggregate->method, DisaggregationMethod::cascade);
+  EXPECT_EQ(s.rain.disaggregate->step_s, 600);
+  EXPECT_EQ(s.rain.disaggregate->seed, 42u);
+  EXPECT_EQ(s.rain.disaggregate->intermittency, 0.5);
+  EXPECT_EQ(s.rain.disaggregate->window.duration_s, kDay);
   const RainSeries rain = load_rain(s.rain);
   EXPECT_EQ(rain.total_depth_m, sum_depths_m(rain.pulses));
   EXPECT_DOUBLE_EQ(rain.total_depth_m, (3.5 + 12.25 + 0.4) * 1e-3);
@@ -242,14 +242,49 @@ TEST(RainScenario, ReadsTheWindowOfABlock) {
       "  file: d.csv\n  format: daily\n"
       "  disaggregate: {method: block, start_hour: 14, duration_h: 2.5}\n",
       "base");
-  EXPECT_EQ(s.rain.disaggregate.start_s, 14 * 3600);
-  EXPECT_EQ(s.rain.disaggregate.duration_s, 9000);
+  EXPECT_EQ(s.rain.disaggregate->window.start_s, 14 * 3600);
+  EXPECT_EQ(s.rain.disaggregate->window.duration_s, 9000);
 }
 
 TEST(RainScenario, SetsTheMethodFromTheCommandLine) {
   const Scenario s = scenario("  file: d.csv\n  format: daily\n  disaggregate: {method: block}\n",
                               "base", {"rain.disaggregate.method=nrcs-II"});
-  EXPECT_EQ(s.rain.disaggregate.method, DisaggregationMethod::nrcs_ii);
+  EXPECT_EQ(s.rain.disaggregate->method, DisaggregationMethod::nrcs_ii);
+}
+
+TEST(RainScenario, DisaggregatesACoarseSeries) {
+  const Scenario s =
+      scenario("  file: station-5min.csv\n  disaggregate: {method: cascade, step: 1min, seed: 7}\n",
+               kFixtures);
+  ASSERT_TRUE(s.rain.disaggregate);
+  const RainSeries as_read = load_rain_as_read(s.rain);
+  const RainSeries rain = load_rain(s.rain);
+  EXPECT_EQ(as_read.step_s, 300);
+  EXPECT_EQ(rain.step_s, 60);
+  EXPECT_EQ(rain.total_depth_m, as_read.total_depth_m);
+  EXPECT_EQ(rain.total_depth_m, sum_depths_m(rain.pulses));
+  EXPECT_EQ(rain.warnings.back(),
+            "totals over 5min hide rain intensity, and whether the siphon primes depends on it: "
+            "the results follow the chosen rain.disaggregate method");
+}
+
+TEST(RainScenario, KeepsTheDayWindowToDailyRecords) {
+  EXPECT_EQ(scenario_error_of("  file: s.csv\n  disaggregate: {method: cascade, start_hour: 6}\n"),
+            "demo.yaml:3: rain.disaggregate.start_hour: only for format: daily (an interval of a "
+            "series is spread over itself)");
+}
+
+TEST(RainScenario, KeepsNrcsShapesToDailyRecords) {
+  EXPECT_EQ(scenario_error_of("  file: s.csv\n  disaggregate: {method: nrcs-III}\n"),
+            "demo.yaml:3: rain.disaggregate.method: is a 24-hour shape, for format: daily only; "
+            "use cascade or block for a series (got nrcs-III)");
+}
+
+TEST(RainScenario, RefusesToDisaggregateATipLog) {
+  EXPECT_EQ(scenario_error_of("  file: t.csv\n  format: tips\n  tip_depth: 0.2\n"
+                              "  disaggregate: {method: cascade}\n"),
+            "demo.yaml:5: rain.disaggregate: not used by format: tips (a tip log is spread by "
+            "rain.tip_cap)");
 }
 
 TEST(RainScenario, NeedsATipDepthForTips) {
@@ -272,8 +307,8 @@ TEST(RainScenario, SuggestsTheNearestDisaggregationKey) {
 
 TEST(RainScenario, RejectsAnUnknownMethod) {
   EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n  disaggregate: {method: nrcs}\n"),
-            "demo.yaml:4: rain.disaggregate.method: expected one of nrcs-II, block or cascade, "
-            "got \"nrcs\"");
+            "demo.yaml:4: rain.disaggregate.method: expected one of block, nrcs-I, nrcs-IA, "
+            "nrcs-II, nrcs-III or cascade, got \"nrcs\"");
 }
 
 TEST(RainScenario, KeepsNrcsToItsTwentyFourHours) {
@@ -281,6 +316,10 @@ TEST(RainScenario, KeepsNrcsToItsTwentyFourHours) {
                               "  disaggregate: {method: nrcs-II, duration_h: 12}\n"),
             "demo.yaml:4: rain.disaggregate.duration_h: must be 24 for method: nrcs-II, a "
             "24-hour shape (got 12)");
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n"
+                              "  disaggregate: {method: nrcs-IA, start_hour: 2}\n"),
+            "demo.yaml:4: rain.disaggregate.start_hour: must be 0 for method: nrcs-IA, a "
+            "24-hour shape (got 2)");
 }
 
 TEST(RainScenario, KeepsEachDaysRainInItsDay) {

@@ -746,12 +746,6 @@ TEST(RainTips, RejectsAnEmptyFileNamingTheOneColumn) {
 
 constexpr Instant kDay = 86400;
 
-Disaggregation method(DisaggregationMethod m) {
-  Disaggregation how;
-  how.method = m;
-  return how;
-}
-
 SeriesFormat daily_format(GapPolicy gaps = GapPolicy::error) {
   SeriesFormat fmt;
   fmt.time_column = "date";
@@ -759,55 +753,24 @@ SeriesFormat daily_format(GapPolicy gaps = GapPolicy::error) {
   return fmt;
 }
 
-RainSeries read_daily(const std::string& text, const Disaggregation& how,
-                      const SeriesFormat& fmt = daily_format()) {
+RainSeries read_daily(const std::string& text, const SeriesFormat& fmt = daily_format(),
+                      const DayWindow& window = {}) {
   std::istringstream in(text);
-  return read_rain_daily(in, "daily.csv", fmt, how);
+  return read_rain_daily(in, "daily.csv", fmt, window);
 }
 
 std::string daily_error_of(const std::string& text, const SeriesFormat& fmt = daily_format()) {
   try {
-    read_daily(text, method(DisaggregationMethod::block), fmt);
+    read_daily(text, fmt);
   } catch (const InputError& e) {
     return e.what();
   }
   return "no error";
 }
 
-// Invented daily totals, including awkward depths.
-const char* const kDaily =
-    "date,rain_mm\n"
-    "2025-03-01,12.3\n"
-    "2025-03-02,0\n"
-    "2025-03-03,0.1\n"
-    "2025-03-04,87.65\n"
-    "2025-03-05,1e-5\n"
-    "2025-03-06,0.7\n";
-const std::vector<double> kDailyDepths_m = {12.3e-3, 0.0, 0.1e-3, 87.65e-3, 1e-8, 0.7e-3};
-
-// The depths of the pulses in each day from kT0 on, added left to right in time order.
-std::vector<double> day_sums(const RainSeries& rain, std::size_t days) {
-  std::vector<double> sums(days, 0.0);
-  for (const RainPulse& p : rain.pulses) {
-    const auto day = static_cast<std::size_t>((p.start - kT0) / kDay);
-    EXPECT_EQ((p.end - 1 - kT0) / kDay, (p.start - kT0) / kDay) << "pulse crosses midnight";
-    if (day < days) sums[day] += p.depth_m;
-  }
-  return sums;
-}
-
-void expect_days_conserved(const RainSeries& rain) {
-  const std::vector<double> sums = day_sums(rain, kDailyDepths_m.size());
-  for (std::size_t d = 0; d < sums.size(); ++d) {
-    EXPECT_EQ(sums[d], kDailyDepths_m[d]) << "day " << d;
-  }
-}
-
 TEST(RainDaily, SpreadsADayAsOneBlockInsideItsWindow) {
-  Disaggregation how = method(DisaggregationMethod::block);
-  how.start_s = 6 * kHour;
-  how.duration_s = 6 * kHour;
-  const RainSeries rain = read_daily("date,rain_mm\n2025-03-01,12\n2025-03-02,0\n", how);
+  const RainSeries rain = read_daily("date,rain_mm\n2025-03-01,12\n2025-03-02,0\n", daily_format(),
+                                     {6 * kHour, 6 * kHour});
   ASSERT_EQ(rain.pulses.size(), 1u);
   expect_pulse(rain.pulses[0], kT0 + 6 * kHour, kT0 + 12 * kHour, 12e-3);
   ASSERT_EQ(rain.covered.size(), 1u);
@@ -816,122 +779,17 @@ TEST(RainDaily, SpreadsADayAsOneBlockInsideItsWindow) {
 }
 
 TEST(RainDaily, WarnsThatDailyTotalsHideIntensity) {
-  const RainSeries rain = read_daily(kDaily, method(DisaggregationMethod::block));
+  const RainSeries rain = read_daily("date,rain_mm\n2025-03-01,12.3\n");
   ASSERT_EQ(rain.warnings.size(), 1u);
   EXPECT_EQ(rain.warnings[0],
             "daily totals hide rain intensity, and whether the siphon primes depends on it: the "
             "results follow the chosen rain.disaggregate method");
 }
 
-TEST(RainDaily, ConservesEachDayExactlyForEveryMethod) {
-  for (const DisaggregationMethod m : {DisaggregationMethod::block, DisaggregationMethod::nrcs_ii,
-                                       DisaggregationMethod::cascade}) {
-    Disaggregation how = method(m);
-    how.step_s = 300;
-    const RainSeries rain = read_daily(kDaily, how);
-    expect_days_conserved(rain);
-    EXPECT_EQ(rain.total_depth_m, sum_depths_m(rain.pulses));
-  }
-}
-
-TEST(RainDaily, ConservesEachDayExactlyInAnyOrder) {
-  // Every part is a whole multiple of the spacing of doubles at the day's depth, so the sum
-  // does not depend on the order of addition.
-  Disaggregation how = method(DisaggregationMethod::cascade);
-  how.step_s = 60;
-  const double depth_m = 87.65e-3;
-  std::vector<double> parts = disaggregate_day(depth_m, 20148, how);
-  ASSERT_EQ(parts.size(), 1440u);
-  std::sort(parts.begin(), parts.end());
-  double rising = 0.0;
-  for (double part : parts) rising += part;
-  double falling = 0.0;
-  for (auto it = parts.rbegin(); it != parts.rend(); ++it) falling += *it;
-  EXPECT_EQ(rising, depth_m);
-  EXPECT_EQ(falling, depth_m);
-}
-
-TEST(RainDaily, FollowsTheNrcsTypeIIShape) {
-  Disaggregation how = method(DisaggregationMethod::nrcs_ii);
-  how.step_s = 1800;
-  const std::vector<double> parts = disaggregate_day(50e-3, 0, how);
-  ASSERT_EQ(parts.size(), 48u);
-  double by_hour = 0.0;
-  std::vector<double> fraction_at_hour(25, 0.0);
-  for (std::size_t j = 0; j < parts.size(); ++j) {
-    by_hour += parts[j];
-    if (j % 2 == 1) fraction_at_hour[(j + 1) / 2] = by_hour / 50e-3;
-  }
-  // source: TR-55 (1986) App. B type II, values from REFERENCES.md section 8 (tolerance 0.005)
-  EXPECT_NEAR(fraction_at_hour[6], 0.080, 0.005);
-  EXPECT_NEAR(fraction_at_hour[11], 0.235, 0.005);
-  EXPECT_NEAR(fraction_at_hour[12], 0.663, 0.005);
-  EXPECT_NEAR(fraction_at_hour[16], 0.880, 0.005);
-  EXPECT_NEAR(fraction_at_hour[20], 0.952, 0.005);
-  EXPECT_EQ(fraction_at_hour[24], 1.0);
-}
-
-TEST(RainDaily, RepeatsTheCascadeForTheSameSeedAndDate) {
-  Disaggregation how = method(DisaggregationMethod::cascade);
-  const RainSeries whole = read_daily(kDaily, how);
-  // The fourth day alone, in a file of its own, gets the same draw.
-  const RainSeries alone = read_daily("date,rain_mm\n2025-03-04,87.65\n", how);
-  std::vector<RainPulse> fourth;
-  for (const RainPulse& p : whole.pulses) {
-    if (p.start >= kT0 + 3 * kDay && p.start < kT0 + 4 * kDay) fourth.push_back(p);
-  }
-  ASSERT_EQ(fourth.size(), alone.pulses.size());
-  for (std::size_t k = 0; k < fourth.size(); ++k) {
-    EXPECT_EQ(fourth[k].start, alone.pulses[k].start);
-    EXPECT_EQ(fourth[k].depth_m, alone.pulses[k].depth_m);
-  }
-  how.seed = 2;
-  const RainSeries other = read_daily("date,rain_mm\n2025-03-04,87.65\n", how);
-  bool differs = other.pulses.size() != alone.pulses.size();
-  for (std::size_t k = 0; !differs && k < other.pulses.size(); ++k) {
-    differs = other.pulses[k].depth_m != alone.pulses[k].depth_m;
-  }
-  EXPECT_TRUE(differs);
-}
-
-TEST(RainDaily, PutsADayInOneStepWhenTheCascadeAlwaysSendsRainToOneHalf) {
-  Disaggregation how = method(DisaggregationMethod::cascade);
-  how.step_s = kDay / 128;  // seven halvings reach the step exactly
-  how.intermittency = 1.0;
-  const std::vector<double> parts = disaggregate_day(10e-3, 7, how);
-  ASSERT_EQ(parts.size(), 128u);
-  EXPECT_EQ(std::count(parts.begin(), parts.end(), 0.0), 127);
-  EXPECT_EQ(*std::max_element(parts.begin(), parts.end()), 10e-3);
-}
-
-TEST(RainDaily, WetsEveryStepWhenTheCascadeNeverSendsRainToOneHalf) {
-  Disaggregation how = method(DisaggregationMethod::cascade);
-  how.intermittency = 0.0;
-  const std::vector<double> parts = disaggregate_day(10e-3, 7, how);
-  ASSERT_EQ(parts.size(), 288u);
-  EXPECT_EQ(std::count(parts.begin(), parts.end(), 0.0), 0);
-}
-
-TEST(RainDaily, SharesRainEvenlyBetweenHalvesOnAverage) {
-  // Each halving splits W : 1 - W with W symmetric about 1/2, so over many days the first half
-  // of the day holds half of the rain. Over n days the share's standard deviation is about
-  // sqrt(1/12 (1 - p) + 1/4 p) / sqrt(n) = 0.0096 for p = 0.3, n = 2000; the tolerance is 4 sd.
-  Disaggregation how = method(DisaggregationMethod::cascade);
-  how.step_s = 3600;
-  double first_half = 0.0;
-  constexpr int kDays = 2000;
-  for (int day = 0; day < kDays; ++day) {
-    const std::vector<double> parts = disaggregate_day(1.0, day, how);
-    for (std::size_t j = 0; j < 12; ++j) first_half += parts[j];
-  }
-  EXPECT_NEAR(first_half / kDays, 0.5, 4 * 0.0096);
-}
-
 TEST(RainDaily, TakesDatesAtTheRecordsOffset) {
   SeriesFormat fmt = daily_format();
   fmt.utc_offset_s = 2 * 3600;
-  const RainSeries rain =
-      read_daily("date,rain_mm\n2025-03-01,5\n", method(DisaggregationMethod::block), fmt);
+  const RainSeries rain = read_daily("date,rain_mm\n2025-03-01,5\n", fmt);
   ASSERT_EQ(rain.covered.size(), 1u);
   expect_span(rain.covered[0], kT0 - 2 * kHour, kT0 + kDay - 2 * kHour);
 }
@@ -940,8 +798,7 @@ TEST(RainDaily, ConvertsInches) {
   SeriesFormat fmt = daily_format();
   fmt.unit_m = kMetresPerInch;
   fmt.unit_name = "in";
-  const RainSeries rain =
-      read_daily("date,rain_mm\n2025-03-01,1.5\n", method(DisaggregationMethod::block), fmt);
+  const RainSeries rain = read_daily("date,rain_mm\n2025-03-01,1.5\n", fmt);
   ASSERT_EQ(rain.pulses.size(), 1u);
   EXPECT_EQ(rain.pulses[0].depth_m, 1.5 * kMetresPerInch);
 }
@@ -955,8 +812,7 @@ TEST(RainDaily, StopsAtAMissingDayByDefault) {
 
 TEST(RainDaily, ListsAMissingDayAsAGapWhenAskedTo) {
   const RainSeries rain =
-      read_daily("date,rain_mm\n2025-03-01,5\n2025-03-03,1\n", method(DisaggregationMethod::block),
-                 daily_format(GapPolicy::skip));
+      read_daily("date,rain_mm\n2025-03-01,5\n2025-03-03,1\n", daily_format(GapPolicy::skip));
   ASSERT_EQ(rain.gaps.size(), 1u);
   expect_span(rain.gaps[0], kT0 + kDay, kT0 + 2 * kDay);
   ASSERT_EQ(rain.covered.size(), 2u);

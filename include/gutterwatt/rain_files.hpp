@@ -12,19 +12,25 @@
 
 namespace gutterwatt {
 
-/// Reads `config.files` (or `override_file` in their place when it is not empty). Throws
+/// The record as read: `config.files` (or `override_file` in their place when it is not empty),
+/// each day of a daily record one pulse over its window, nothing disaggregated. Throws
 /// InputError naming the file for one that is missing or unreadable, and naming both files for
 /// records that overlap in time. Throws Interrupted soon after `stop` (when given) is set: the
 /// files are read in pieces of 64 KiB and the flag looked at between them.
+RainSeries load_rain_as_read(const RainConfig& config,
+                             const std::filesystem::path& override_file = {},
+                             const std::atomic<bool>* stop = nullptr);
+
+/// load_rain_as_read, then disaggregated by `config.disaggregate` when it is given.
 RainSeries load_rain(const RainConfig& config, const std::filesystem::path& override_file = {},
                      const std::atomic<bool>* stop = nullptr);
 
 /// load_rain, with `consume` at work on the record while it is read. A record of one `series` file
-/// is read on a second thread and reaches `consume` through the view as it is read; any other
-/// record is read whole first. Returns the whole record once `consume` has returned and the
-/// reading has ended. When both fail, the reading error is thrown, as it would have been had the
-/// record been read first, except that an Interrupted from `consume` stops the reading at once.
-/// `stop` stops the reading as in load_rain.
+/// that is not disaggregated is read on a second thread and reaches `consume` through the view as
+/// it is read; any other record is read whole first. Returns the whole record once `consume` has
+/// returned and the reading has ended. When both fail, the reading error is thrown, as it would
+/// have been had the record been read first, except that an Interrupted from `consume` stops the
+/// reading at once. `stop` stops the reading as in load_rain.
 RainSeries load_rain_while(const RainConfig& config, const std::filesystem::path& override_file,
                            const std::function<void(RainView&)>& consume,
                            const std::atomic<bool>* stop = nullptr);

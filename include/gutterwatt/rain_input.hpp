@@ -11,6 +11,7 @@
 #include <vector>
 
 #include "gutterwatt/calendar.hpp"
+#include "gutterwatt/disaggregation_config.hpp"
 
 namespace gutterwatt {
 
@@ -142,45 +143,6 @@ RainSeries spread_tips(const std::vector<TipLog>& logs, const TipSpreading& tips
 RainSeries read_rain_tips(std::istream& in, const std::string& file_label, const SeriesFormat& fmt,
                           const TipSpreading& tips);
 
-enum class DisaggregationMethod { nrcs_ii, block, cascade };
-
-/// Default probability that a cascade box sends all its rain into one of its halves. A project
-/// default (common practice, no source); fit it to a local record at fine resolution if one
-/// exists.
-inline constexpr double kDefaultCascadeIntermittency = 0.3;
-
-/// How a day's total is spread over the day. The rain falls in the window
-/// [midnight + start_s, midnight + start_s + duration_s) of the local day; the window lies
-/// inside the day (start_s + duration_s <= 86400).
-/// - `block`: constant intensity over the window, one pulse (`step_s` is not used).
-/// - `nrcs_ii`: the NRCS (TR-55) type II 24-hour shape, in steps of `step_s`; only defined for a
-///   24-hour window from midnight (the TR-55 shapes are 24-hour shapes and are not stretched).
-/// - `cascade`: a microcanonical binary random cascade: the window is halved again and again
-///   until the boxes are no longer than `step_s`; at each halving a box sends all its depth into
-///   one half (either, with equal chance) with probability `intermittency`, otherwise it splits
-///   it W : 1 - W with W uniform on (0, 1). Structure after Olsson (1998), Evaluation of a
-///   scaling cascade model for temporal rain-sub-division, Hydrol. Earth Syst. Sci. 2, 19-30;
-///   the single intermittency probability and the uniform W are simplifications of this
-///   project (Olsson lets the probabilities depend on the box's position and volume). The seed
-///   and the date fix each day's draw, so a day disaggregates the same way whatever else the
-///   record holds.
-/// `duration_s` and `start_s` are whole seconds; for nrcs_ii and cascade, `step_s` divides
-/// `duration_s`.
-struct Disaggregation {
-  DisaggregationMethod method = DisaggregationMethod::block;
-  Instant duration_s = 86400;
-  Instant start_s = 0;  ///< after local midnight
-  Instant step_s = 300;
-  std::uint64_t seed = 1;
-  double intermittency = kDefaultCascadeIntermittency;  ///< cascade only, 0..1
-};
-
-/// The depths of one day's steps over the window, in time order (a single value for `block`).
-/// Every depth is a whole multiple of the spacing of doubles at `depth_m`, so the depths add up
-/// to `depth_m` exactly in any order. `day` numbers the day (days since 1970-01-01 of its local
-/// date) and, with the seed, picks the cascade's draw.
-std::vector<double> disaggregate_day(double depth_m, std::int64_t day, const Disaggregation& how);
-
 /// The warning a daily record always carries (once per record, however many files).
 inline constexpr std::string_view kDailyWarning =
     "daily totals hide rain intensity, and whether the siphon primes depends on it: the "
@@ -188,12 +150,13 @@ inline constexpr std::string_view kDailyWarning =
 
 /// Reads daily totals: a CSV with a date column (`fmt.time_column`, dates such as 2025-03-01,
 /// the local day at `fmt.utc_offset_s`) and a depth column (`fmt.value_column`, in `fmt.unit_m`;
-/// `fmt.value` must be depth). Each day covers its 24 hours and its depth is spread by `how`.
-/// Missing days are gaps, handled by `fmt.gaps` as in read_rain_series. Same file rules and
-/// messages as read_rain_series; a day's depth may imply at most kMaxRainIntensity_mm_per_h
-/// over the window. The series carries kDailyWarning; `step_s` is one day.
+/// `fmt.value` must be depth). Each day covers its 24 hours; its depth is one pulse over
+/// `window` (see disaggregate() for bringing it down to a finer step). Missing days are gaps,
+/// handled by `fmt.gaps` as in read_rain_series. Same file rules and messages as
+/// read_rain_series; a day's depth may imply at most kMaxRainIntensity_mm_per_h over the
+/// window. The series carries kDailyWarning; `step_s` is one day.
 RainSeries read_rain_daily(std::istream& in, const std::string& file_label, const SeriesFormat& fmt,
-                           const Disaggregation& how);
+                           const DayWindow& window = {});
 
 /// The share of one local calendar month (the part inside the period asked about) for which the
 /// record has data.

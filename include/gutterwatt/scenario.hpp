@@ -10,6 +10,7 @@
 
 #include "gutterwatt/battery.hpp"
 #include "gutterwatt/calendar.hpp"
+#include "gutterwatt/disaggregation_config.hpp"
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/plant.hpp"
 #include "gutterwatt/rain_input.hpp"
@@ -30,9 +31,11 @@ enum class RainFormat { series, tips, daily };
 struct RainConfig {
   std::vector<std::filesystem::path> files;  ///< resolved against the scenario file's folder
   RainFormat format = RainFormat::series;
-  SeriesFormat series;          ///< columns, value kind, unit, step, gaps, offset
-  TipSpreading tips;            ///< format tips: depth of one tip (rain.tip_depth), rain.tip_cap
-  Disaggregation disaggregate;  ///< format daily: rain.disaggregate
+  SeriesFormat series;  ///< columns, value kind, unit, step, gaps, offset
+  TipSpreading tips;    ///< format tips: depth of one tip (rain.tip_depth), rain.tip_cap
+  /// rain.disaggregate: required by format daily, optional for series (spreads intervals longer
+  /// than its step), not used by tips.
+  std::optional<Disaggregation> disaggregate;
 };
 
 struct RoofConfig {

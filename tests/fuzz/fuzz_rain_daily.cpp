@@ -1,4 +1,5 @@
-// libFuzzer target: the daily-totals reader (read_rain_daily) on arbitrary bytes.
+// libFuzzer target: the daily-totals reader (read_rain_daily) and the disaggregation of what it
+// reads, on arbitrary bytes.
 //
 // Input: a CSV of dates and depths. When the first byte is a control character other than tab,
 // LF or CR, its low five bits choose the disaggregation and the gap policy and the CSV follows
@@ -11,6 +12,7 @@
 #include <string>
 
 #include "fuzz_checks.hpp"
+#include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/rain_input.hpp"
 
 namespace {
@@ -23,8 +25,7 @@ gutterwatt::Disaggregation disaggregation(unsigned choice) {
   gutterwatt::Disaggregation how;
   switch (choice) {
     case 1:
-      how.start_s = 6 * 3600;
-      how.duration_s = 2 * 3600;
+      how.window = {6 * 3600, 2 * 3600};
       break;
     case 2:
       how.method = DisaggregationMethod::nrcs_ii;
@@ -40,8 +41,7 @@ gutterwatt::Disaggregation disaggregation(unsigned choice) {
       break;
     case 5:
       how.method = DisaggregationMethod::cascade;
-      how.start_s = 3600;
-      how.duration_s = 7200;
+      how.window = {3600, 7200};
       how.step_s = 600;
       how.seed = 12345;
       break;
@@ -79,9 +79,12 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
   const std::string label = "fuzz.csv";
   std::istringstream in(std::string(reinterpret_cast<const char*>(data), size));
   try {
-    const RainSeries rain = read_rain_daily(in, label, fmt, how);
+    const RainSeries as_read = read_rain_daily(in, label, fmt, how.window);
+    fuzz::check_series(as_read);
+    fuzz::require(as_read.step_s == 86400, "a daily record's step is one day");
+    const RainSeries rain = disaggregate(as_read, how);
     fuzz::check_series(rain);
-    fuzz::require(rain.step_s == 86400, "a daily record's step is one day");
+    fuzz::require(rain.total_depth_m == as_read.total_depth_m, "disaggregation keeps the total");
   } catch (const InputError& e) {
     fuzz::check_error(e, label);
   }

@@ -1,0 +1,52 @@
+#pragma once
+/// How a coarse rain record (daily totals, or a series with a long step) is brought down to a
+/// fine step: the settings of `rain.disaggregate`, in SI.
+
+#include <cstdint>
+
+#include "gutterwatt/calendar.hpp"
+
+namespace gutterwatt {
+
+/// `block` keeps each interval's rain at constant intensity; the NRCS methods spread a day by
+/// the TR-55 24-hour shape of their region; `cascade` by a random cascade.
+enum class DisaggregationMethod { block, nrcs_i, nrcs_ia, nrcs_ii, nrcs_iii, cascade };
+
+/// Where a daily record's total falls in its local day: [midnight + start_s,
+/// midnight + start_s + duration_s), inside the day (start_s + duration_s <= 86400). Whole
+/// seconds. Daily records only; a series interval is spread over itself.
+struct DayWindow {
+  Instant start_s = 0;  ///< after local midnight
+  Instant duration_s = 86400;
+};
+
+/// Default probability that a cascade box sends all its rain into one of its halves. A project
+/// default (common practice, no source); fit it to a local record at fine resolution if one
+/// exists.
+inline constexpr double kDefaultCascadeIntermittency = 0.3;
+
+/// rain.disaggregate. Every record interval with rain that is longer than `step_s` is spread
+/// over steps of `step_s` (the last one shorter when `step_s` does not divide it); shorter
+/// intervals stay as read.
+/// - `block`: constant intensity over the interval (a day's window), one pulse.
+/// - `nrcs_*`: the NRCS (TR-55) 24-hour shape of the type, over a 24-hour interval from its
+///   start; only for daily records with the whole day as window (the TR-55 shapes are 24-hour
+///   shapes and are not stretched).
+/// - `cascade`: a microcanonical binary random cascade: the interval is halved again and again
+///   until the boxes are no longer than `step_s`; at each halving a box sends all its depth into
+///   one half (either, with equal chance) with probability `intermittency`, otherwise it splits
+///   it W : 1 - W with W uniform on (0, 1). Structure after Olsson (1998), Evaluation of a
+///   scaling cascade model for temporal rain-sub-division, Hydrol. Earth Syst. Sci. 2, 19-30;
+///   the single intermittency probability and the uniform W are simplifications of this
+///   project's defaults (Olsson lets the probabilities depend on the box's position and volume).
+///   The seed and the interval's start fix its draw, so an interval disaggregates the same way
+///   whatever else the record holds.
+struct Disaggregation {
+  DisaggregationMethod method = DisaggregationMethod::block;
+  DayWindow window;  ///< daily records only
+  Instant step_s = 300;
+  std::uint64_t seed = 1;
+  double intermittency = kDefaultCascadeIntermittency;  ///< cascade only, 0..1
+};
+
+}  // namespace gutterwatt

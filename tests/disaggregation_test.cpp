@@ -1,0 +1,258 @@
+#include "gutterwatt/disaggregation.hpp"
+
+#include <gtest/gtest.h>
+
+#include <algorithm>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "gutterwatt/rain_input.hpp"
+
+namespace gutterwatt {
+namespace {
+
+// Seconds since the epoch of 2025-03-01T00:00Z.
+// source: POSIX.1-2017 Base Definitions 4.16 (Seconds Since the Epoch), formula worked by hand.
+constexpr Instant kT0 = 1740787200;
+constexpr Instant kHour = 3600;
+constexpr Instant kDay = 86400;
+
+Disaggregation method(DisaggregationMethod m, Instant step_s = 300) {
+  Disaggregation how;
+  how.method = m;
+  how.step_s = step_s;
+  return how;
+}
+
+constexpr DisaggregationMethod kAllMethods[] = {
+    DisaggregationMethod::block,   DisaggregationMethod::nrcs_i,   DisaggregationMethod::nrcs_ia,
+    DisaggregationMethod::nrcs_ii, DisaggregationMethod::nrcs_iii, DisaggregationMethod::cascade};
+
+RainSeries read_daily(const std::string& text) {
+  std::istringstream in(text);
+  SeriesFormat fmt;
+  fmt.time_column = "date";
+  return read_rain_daily(in, "daily.csv", fmt);
+}
+
+RainSeries read_series(const std::string& text) {
+  std::istringstream in(text);
+  return read_rain_series(in, "hourly.csv", SeriesFormat{});
+}
+
+// Invented daily totals, including awkward depths.
+const char* const kDaily =
+    "date,rain_mm\n"
+    "2025-03-01,12.3\n"
+    "2025-03-02,0\n"
+    "2025-03-03,0.1\n"
+    "2025-03-04,87.65\n"
+    "2025-03-05,1e-5\n"
+    "2025-03-06,0.7\n";
+const std::vector<double> kDailyDepths_m = {12.3e-3, 0.0, 0.1e-3, 87.65e-3, 1e-8, 0.7e-3};
+
+// Invented hourly totals: wet hours, a dry one, and a row 30 min after the one before (an
+// interval no longer than the step of 30 min below is kept as read).
+const char* const kHourly =
+    "time,rain_mm\n"
+    "2025-03-01T01:00,4.3\n"
+    "2025-03-01T02:00,0\n"
+    "2025-03-01T03:00,0.01\n"
+    "2025-03-01T04:00,17.77\n"
+    "2025-03-01T04:30,0.6\n"
+    "2025-03-01T05:30,2.2\n";
+
+// The depths of the pulses inside each span [starts[k], starts[k + 1]), added left to right.
+std::vector<double> sums_between(const RainSeries& rain, const std::vector<Instant>& starts) {
+  std::vector<double> sums(starts.size() - 1, 0.0);
+  for (const RainPulse& p : rain.pulses) {
+    const auto k = static_cast<std::size_t>(
+        std::upper_bound(starts.begin(), starts.end(), p.start) - starts.begin() - 1);
+    EXPECT_LT(k, sums.size());
+    EXPECT_LE(p.end, starts[k + 1]) << "pulse crosses the end of its interval";
+    sums[k] += p.depth_m;
+  }
+  return sums;
+}
+
+TEST(Disaggregation, ConservesEachDayExactlyForEveryMethod) {
+  const RainSeries as_read = read_daily(kDaily);
+  std::vector<Instant> days;
+  for (Instant d = 0; d <= 6; ++d) days.push_back(kT0 + d * kDay);
+  for (const DisaggregationMethod m : kAllMethods) {
+    const RainSeries rain = disaggregate(as_read, method(m));
+    EXPECT_EQ(sums_between(rain, days), kDailyDepths_m) << method_name(m);
+    EXPECT_EQ(rain.total_depth_m, sum_depths_m(rain.pulses)) << method_name(m);
+    EXPECT_EQ(rain.total_depth_m, as_read.total_depth_m) << method_name(m);
+    EXPECT_EQ(rain.covered.size(), 1u);
+  }
+}
+
+TEST(Disaggregation, ConservesEachIntervalOfACoarseSeriesExactly) {
+  const RainSeries as_read = read_series(kHourly);
+  ASSERT_EQ(as_read.step_s, kHour);
+  for (const Instant step_s : {Instant{300}, Instant{1800}, Instant{420}}) {
+    const RainSeries rain = disaggregate(as_read, method(DisaggregationMethod::cascade, step_s));
+    const std::vector<Instant> ends = {kT0,
+                                       kT0 + kHour,
+                                       kT0 + 2 * kHour,
+                                       kT0 + 3 * kHour,
+                                       kT0 + 4 * kHour,
+                                       kT0 + 4 * kHour + 1800,
+                                       kT0 + 5 * kHour + 1800};
+    const std::vector<double> sums = sums_between(rain, ends);
+    const std::vector<double> expected = {4.3e-3, 0.0, 0.01e-3, 17.77e-3, 0.6e-3, 2.2e-3};
+    EXPECT_EQ(sums, expected) << "step " << step_s;
+    EXPECT_EQ(rain.step_s, step_s);
+    for (const RainPulse& p : rain.pulses) {
+      EXPECT_LE(p.end - p.start, step_s) << "step " << step_s;
+      // Steps start at whole steps from their interval's start (7 min: 0, 7, ..., 56 min; the
+      // last one 4 min long).
+      const Instant interval_start = *(std::upper_bound(ends.begin(), ends.end(), p.start) - 1);
+      EXPECT_EQ((p.start - interval_start) % step_s, 0) << "step " << step_s;
+    }
+  }
+}
+
+TEST(Disaggregation, KeepsAnIntervalNoLongerThanTheStepAsRead) {
+  const RainSeries as_read = read_series(kHourly);
+  const RainSeries rain = disaggregate(as_read, method(DisaggregationMethod::cascade, 1800));
+  const auto half_hour =
+      std::find_if(rain.pulses.begin(), rain.pulses.end(),
+                   [](const RainPulse& p) { return p.start == kT0 + 4 * kHour; });
+  ASSERT_NE(half_hour, rain.pulses.end());
+  EXPECT_EQ(half_hour->end, kT0 + 4 * kHour + 1800);
+  EXPECT_EQ(half_hour->depth_m, 0.6e-3);
+  // A step as long as the record's leaves it as it is.
+  const RainSeries same = disaggregate(as_read, method(DisaggregationMethod::cascade, kHour));
+  EXPECT_EQ(same.pulses.size(), as_read.pulses.size());
+  EXPECT_EQ(same.step_s, kHour);
+}
+
+TEST(Disaggregation, KeepsABlockAsRead) {
+  const RainSeries as_read = read_series(kHourly);
+  const RainSeries rain = disaggregate(as_read, method(DisaggregationMethod::block));
+  ASSERT_EQ(rain.pulses.size(), as_read.pulses.size());
+  EXPECT_EQ(rain.step_s, kHour);
+}
+
+TEST(Disaggregation, ConservesEachDayExactlyInAnyOrder) {
+  // Every part is a whole multiple of the spacing of doubles at the day's depth, so the sum
+  // does not depend on the order of addition.
+  const double depth_m = 87.65e-3;
+  std::vector<double> parts =
+      disaggregate_interval(depth_m, kDay, 20148, method(DisaggregationMethod::cascade, 60));
+  ASSERT_EQ(parts.size(), 1440u);
+  std::sort(parts.begin(), parts.end());
+  double rising = 0.0;
+  for (double part : parts) rising += part;
+  double falling = 0.0;
+  for (auto it = parts.rbegin(); it != parts.rend(); ++it) falling += *it;
+  EXPECT_EQ(rising, depth_m);
+  EXPECT_EQ(falling, depth_m);
+}
+
+// The cumulative fraction of a 50 mm day at each whole hour, spread by `m` in half hours.
+std::vector<double> fraction_at_hours(DisaggregationMethod m) {
+  const std::vector<double> parts = disaggregate_interval(50e-3, kDay, 0, method(m, 1800));
+  EXPECT_EQ(parts.size(), 48u);
+  double by_hour = 0.0;
+  std::vector<double> fraction(25, 0.0);
+  for (std::size_t j = 0; j < parts.size(); ++j) {
+    by_hour += parts[j];
+    if (j % 2 == 1) fraction[(j + 1) / 2] = by_hour / 50e-3;
+  }
+  return fraction;
+}
+
+// source: TR-55 (1986) App. B, values from REFERENCES.md section 8 (tolerance 0.005; 0.01 for
+// the values that table marks as interpolated).
+TEST(Disaggregation, FollowsTheNrcsShapeOfEachRegion) {
+  struct Row {
+    DisaggregationMethod m;
+    double at6, at10, at12, at16, at20;
+  };
+  const Row rows[] = {
+      {DisaggregationMethod::nrcs_i, 0.125, 0.515, 0.682, 0.830, 0.926},
+      {DisaggregationMethod::nrcs_ia, 0.206, 0.577, 0.664, 0.800, 0.906},
+      {DisaggregationMethod::nrcs_ii, 0.080, 0.181, 0.663, 0.880, 0.952},
+      {DisaggregationMethod::nrcs_iii, 0.072, 0.189, 0.500, 0.886, 0.957},
+  };
+  for (const Row& r : rows) {
+    const std::vector<double> f = fraction_at_hours(r.m);
+    EXPECT_NEAR(f[6], r.at6, 0.005) << method_name(r.m);
+    EXPECT_NEAR(f[10], r.at10, 0.005) << method_name(r.m);
+    EXPECT_NEAR(f[12], r.at12, 0.005) << method_name(r.m);
+    EXPECT_NEAR(f[16], r.at16, 0.005) << method_name(r.m);
+    EXPECT_NEAR(f[20], r.at20, 0.005) << method_name(r.m);
+    EXPECT_EQ(f[24], 1.0) << method_name(r.m);
+  }
+}
+
+TEST(Disaggregation, RepeatsTheCascadeForTheSameSeedAndInterval) {
+  const Disaggregation how = method(DisaggregationMethod::cascade);
+  const RainSeries whole = disaggregate(read_daily(kDaily), how);
+  // The fourth day alone, in a file of its own, gets the same draw.
+  const RainSeries alone = disaggregate(read_daily("date,rain_mm\n2025-03-04,87.65\n"), how);
+  std::vector<RainPulse> fourth;
+  for (const RainPulse& p : whole.pulses) {
+    if (p.start >= kT0 + 3 * kDay && p.start < kT0 + 4 * kDay) fourth.push_back(p);
+  }
+  ASSERT_EQ(fourth.size(), alone.pulses.size());
+  for (std::size_t k = 0; k < fourth.size(); ++k) {
+    EXPECT_EQ(fourth[k].start, alone.pulses[k].start);
+    EXPECT_EQ(fourth[k].depth_m, alone.pulses[k].depth_m);
+  }
+  Disaggregation other_seed = how;
+  other_seed.seed = realization_seed(how.seed, 1);
+  const RainSeries other = disaggregate(read_daily("date,rain_mm\n2025-03-04,87.65\n"), other_seed);
+  bool differs = other.pulses.size() != alone.pulses.size();
+  for (std::size_t k = 0; !differs && k < other.pulses.size(); ++k) {
+    differs = other.pulses[k].depth_m != alone.pulses[k].depth_m;
+  }
+  EXPECT_TRUE(differs);
+}
+
+TEST(Disaggregation, PutsADayInOneStepWhenTheCascadeAlwaysSendsRainToOneHalf) {
+  Disaggregation how = method(DisaggregationMethod::cascade, kDay / 128);  // seven halvings
+  how.intermittency = 1.0;
+  const std::vector<double> parts = disaggregate_interval(10e-3, kDay, 7, how);
+  ASSERT_EQ(parts.size(), 128u);
+  EXPECT_EQ(std::count(parts.begin(), parts.end(), 0.0), 127);
+  EXPECT_EQ(*std::max_element(parts.begin(), parts.end()), 10e-3);
+}
+
+TEST(Disaggregation, WetsEveryStepWhenTheCascadeNeverSendsRainToOneHalf) {
+  Disaggregation how = method(DisaggregationMethod::cascade);
+  how.intermittency = 0.0;
+  const std::vector<double> parts = disaggregate_interval(10e-3, kDay, 7, how);
+  ASSERT_EQ(parts.size(), 288u);
+  EXPECT_EQ(std::count(parts.begin(), parts.end(), 0.0), 0);
+}
+
+TEST(Disaggregation, SharesRainEvenlyBetweenHalvesOnAverage) {
+  // Each halving splits W : 1 - W with W symmetric about 1/2, so over many days the first half
+  // of the day holds half of the rain. Over n days the share's standard deviation is about
+  // sqrt(1/12 (1 - p) + 1/4 p) / sqrt(n) = 0.0096 for p = 0.3, n = 2000; the tolerance is 4 sd.
+  const Disaggregation how = method(DisaggregationMethod::cascade, kHour);
+  double first_half = 0.0;
+  constexpr int kDays = 2000;
+  for (int day = 0; day < kDays; ++day) {
+    const std::vector<double> parts =
+        disaggregate_interval(1.0, kDay, static_cast<std::uint64_t>(day) * kDay, how);
+    for (std::size_t j = 0; j < 12; ++j) first_half += parts[j];
+  }
+  EXPECT_NEAR(first_half / kDays, 0.5, 4 * 0.0096);
+}
+
+TEST(Disaggregation, NumbersRealizationsFromTheGivenSeed) {
+  EXPECT_EQ(realization_seed(42, 0), 42u);
+  EXPECT_EQ(realization_seed(42, 19), 61u);
+  EXPECT_EQ(realization_seed(18446744073709551615ULL, 1), 0u);
+  EXPECT_TRUE(is_random(DisaggregationMethod::cascade));
+  EXPECT_FALSE(is_random(DisaggregationMethod::nrcs_ii));
+}
+
+}  // namespace
+}  // namespace gutterwatt
