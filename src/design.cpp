@@ -8,6 +8,7 @@
 #include <memory>
 
 #include "detail.hpp"
+#include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/plant.hpp"
 #include "gutterwatt/release.hpp"
@@ -98,7 +99,55 @@ std::span<const Caution> safety_cautions() {
   return kCautions;
 }
 
-DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
+RecordFigures record_figures(const RainSeries& rain,
+                             std::optional<double> priming_intensity_m_per_s, int utc_offset_s) {
+  RecordFigures f;
+  f.step_s = rain.step_s;
+  std::vector<std::pair<double, double>> wet;  // intensity, duration
+  double wet_s = 0.0;
+  std::map<int, double> annual_max;
+  for (const RainPulse& pulse : rain.pulses) {
+    const double dur = static_cast<double>(pulse.end - pulse.start);
+    wet.emplace_back(wet_intensity(pulse), dur);
+    wet_s += dur;
+    const int year = to_civil(pulse.start, utc_offset_s).year;
+    annual_max[year] = std::max(annual_max[year], wet_intensity(pulse));
+  }
+  std::sort(wet.begin(), wet.end());
+  double acc = 0.0;
+  for (const auto& [i, dur] : wet) {
+    acc += dur;
+    if (acc >= 0.5 * wet_s) {
+      f.median_intensity_m_per_s = i;
+      break;
+    }
+  }
+  // The 2-year event is the median of the annual maxima (return period 1/(1 - 0.5)).
+  std::vector<double> maxima;
+  for (const auto& [year, m] : annual_max) maxima.push_back(m);
+  std::sort(maxima.begin(), maxima.end());
+  const std::size_t n = maxima.size();
+  f.peak_intensity_m_per_s = n % 2 ? maxima[n / 2] : 0.5 * (maxima[n / 2 - 1] + maxima[n / 2]);
+  if (priming_intensity_m_per_s) {
+    double above_s = 0.0;
+    double below_m = 0.0;
+    double all_m = 0.0;
+    for (const auto& [i, dur] : wet) {
+      if (i >= *priming_intensity_m_per_s) {
+        above_s += dur;
+      } else {
+        below_m += i * dur;
+      }
+      all_m += i * dur;
+    }
+    f.priming_exceedance = above_s / wet_s;
+    f.volume_below_priming = below_m / all_m;
+  }
+  return f;
+}
+
+DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
+                              const RainSeries* as_read) {
   DesignFigures d;
   const ReservoirGeometry geometry(sc.reservoir);
   const Plant plant(plant_config(sc));
@@ -149,57 +198,29 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain) {
                 plant.column_capacity_m3());
   }
   if (rain && !rain->pulses.empty()) {
-    std::vector<std::pair<double, double>> wet;  // intensity, duration
-    double wet_s = 0.0;
-    std::map<int, double> annual_max;
-    for (const RainPulse& pulse : rain->pulses) {
-      const double dur = static_cast<double>(pulse.end - pulse.start);
-      wet.emplace_back(wet_intensity(pulse), dur);
-      wet_s += dur;
-      const int year = to_civil(pulse.start, sc.site.utc_offset_s).year;
-      annual_max[year] = std::max(annual_max[year], wet_intensity(pulse));
-    }
-    std::sort(wet.begin(), wet.end());
-    double acc = 0.0;
-    for (const auto& [i, dur] : wet) {
-      acc += dur;
-      if (acc >= 0.5 * wet_s) {
-        d.record_median_intensity_m_per_s = i;
-        break;
-      }
-    }
-    // The 2-year event is the median of the annual maxima (return period 1/(1 - 0.5)).
-    std::vector<double> maxima;
-    for (const auto& [year, m] : annual_max) maxima.push_back(m);
-    std::sort(maxima.begin(), maxima.end());
-    const std::size_t n = maxima.size();
-    d.record_peak_intensity_m_per_s =
-        n % 2 ? maxima[n / 2] : 0.5 * (maxima[n / 2 - 1] + maxima[n / 2]);
-    if (d.priming_intensity_m_per_s) {
-      double above = 0.0;
-      for (const auto& [i, dur] : wet) {
-        if (i >= *d.priming_intensity_m_per_s) above += dur;
-      }
-      d.priming_exceedance = above / wet_s;
+    d.record = record_figures(*rain, d.priming_intensity_m_per_s, sc.site.utc_offset_s);
+    if (as_read && !as_read->pulses.empty()) {
+      d.record_as_read =
+          record_figures(*as_read, d.priming_intensity_m_per_s, sc.site.utc_offset_s);
+      if (sc.rain.disaggregate) d.disaggregation = method_name(sc.rain.disaggregate->method);
     }
   }
 
   // Warnings in plain words.
   const auto mmh = [](double i) { return fixed(i * kMmPerHourPerMPerS, 1) + " mm/h"; };
-  if (d.priming_intensity_m_per_s && d.record_median_intensity_m_per_s &&
-      *d.priming_intensity_m_per_s > *d.record_median_intensity_m_per_s) {
+  if (d.priming_intensity_m_per_s && d.record &&
+      *d.priming_intensity_m_per_s > d.record->median_intensity_m_per_s) {
     d.warnings.push_back(
         "The siphon needs " + mmh(*d.priming_intensity_m_per_s) +
         " of rain to prime, more than the record's usual (median) wet intensity of " +
-        mmh(*d.record_median_intensity_m_per_s) +
+        mmh(d.record->median_intensity_m_per_s) +
         ": in most rain it will dribble without cycling. A lower priming flow, a "
         "larger roof or a float valve would help.");
   }
-  if (d.record_peak_intensity_m_per_s &&
-      d.overflow_intensity_m_per_s < *d.record_peak_intensity_m_per_s) {
+  if (d.record && d.overflow_intensity_m_per_s < d.record->peak_intensity_m_per_s) {
     d.warnings.push_back(
         "The release running full carries the runoff of " + mmh(d.overflow_intensity_m_per_s) +
-        " of rain, less than the record's 2-year peak of " + mmh(*d.record_peak_intensity_m_per_s) +
+        " of rain, less than the record's 2-year peak of " + mmh(d.record->peak_intensity_m_per_s) +
         " (median of the annual maxima at the record's step): the reservoir will "
         "overflow in heavy rain. Lead the overflow somewhere safe.");
   }
@@ -262,9 +283,6 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
   if (d.priming_intensity_m_per_s) {
     line("priming flow as steady rain on this roof", mmh(*d.priming_intensity_m_per_s), "mm/h");
   }
-  if (d.priming_exceedance) {
-    line("  wet record time at or above it", fixed(*d.priming_exceedance * 100.0, 1), "%");
-  }
   line("running flow at the set-point", lpm(d.running_flow_trigger_m3_per_s), "L/min");
   line("running flow at the break level", lpm(d.running_flow_break_m3_per_s), "L/min");
   if (d.cycle_drain_s) line("running time per cycle (no inflow)", fixed(*d.cycle_drain_s, 1), "s");
@@ -283,12 +301,24 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
        "mm/h");
   if (d.energy_per_cycle_J)
     line("energy per cycle", fixed(*d.energy_per_cycle_J / kJoulesPerWh, 4), "Wh");
-  if (d.record_median_intensity_m_per_s) {
-    line("record: median wet intensity", mmh(*d.record_median_intensity_m_per_s), "mm/h");
-  }
-  if (d.record_peak_intensity_m_per_s) {
-    line("record: 2-year peak intensity (median annual max)", mmh(*d.record_peak_intensity_m_per_s),
-         "mm/h");
+  const auto record = [&](const std::string& name, const RecordFigures& r) {
+    out << "  " << name << ", " << format_duration(r.step_s) << " steps\n";
+    line("  median wet intensity", mmh(r.median_intensity_m_per_s), "mm/h");
+    if (r.volume_below_priming) {
+      line("  rain volume below the priming intensity", fixed(*r.volume_below_priming * 100.0, 1),
+           "%");
+    }
+    if (r.priming_exceedance) {
+      line("  wet time at or above the priming intensity", fixed(*r.priming_exceedance * 100.0, 1),
+           "%");
+    }
+    line("  2-year peak intensity (median annual max)", mmh(r.peak_intensity_m_per_s), "mm/h");
+  };
+  if (d.record_as_read) {
+    record("record as read", *d.record_as_read);
+    record("record disaggregated by " + d.disaggregation, *d.record);
+  } else if (d.record) {
+    record("record", *d.record);
   }
   if (!d.warnings.empty()) {
     out << "\nWarnings\n";

@@ -50,6 +50,19 @@ TEST(Cli, DemoRunWritesThreeFilesWithEnergyAndAClosedBalance) {
   EXPECT_NE(ev.find("\noverflow,"), std::string::npos);
 }
 
+TEST(Cli, CheckShowsADailyRecordAsReadAndAsDisaggregated) {
+  const fs::path dir = scratch("cli-check-daily");
+  const Outcome r = run("check " + source("scenarios/daily-demo.yaml"), dir);
+  ASSERT_EQ(r.status, 0) << r.err;
+  // No day of the invented season averages the 3.33 mm/h that primes the siphon.
+  EXPECT_NE(r.out.find("  record as read, 1d steps\n"
+                       "    median wet intensity                                       0.20  mm/h\n"
+                       "    rain volume below the priming intensity                   100.0  %\n"),
+            std::string::npos)
+      << r.out;
+  EXPECT_NE(r.out.find("  record disaggregated by cascade, 5min steps\n"), std::string::npos);
+}
+
 TEST(Cli, CheckPrintsFiguresWarningsAndCautions) {
   const fs::path dir = scratch("cli-check");
   const Outcome r = run("check " + source("scenarios/demo.yaml"), dir);

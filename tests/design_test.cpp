@@ -157,11 +157,56 @@ TEST(Design, WarnsWhenPrimingNeedsMoreThanTheRecordsUsualRain) {
       test_support::kStart, test_support::kStart + 86400,
       {{test_support::kStart, test_support::kStart + 86400, 1e-3 / 3600.0}}, 300);
   const DesignFigures d = evaluate_design(s, &rain);
-  ASSERT_TRUE(d.priming_exceedance);
-  EXPECT_EQ(*d.priming_exceedance, 0.0);
+  ASSERT_TRUE(d.record && d.record->priming_exceedance);
+  EXPECT_EQ(*d.record->priming_exceedance, 0.0);
+  EXPECT_EQ(*d.record->volume_below_priming, 1.0);
   ASSERT_FALSE(d.warnings.empty());
   EXPECT_EQ(d.warnings.front().rfind("The siphon needs 4.5 mm/h of rain to prime", 0), 0u)
       << d.warnings.front();
+}
+
+TEST(Design, SharesTheRecordsRainVolumeAtThePrimingIntensity) {
+  // Invented: an hour at 1 mm/h, an hour at 2 mm/h, half an hour at 10 mm/h (1 + 2 + 5 mm).
+  const Instant t0 = test_support::kStart;
+  constexpr double kMmPerHour = 1e-3 / 3600.0;
+  const RainSeries rain = test_support::block_rain(t0, t0 + 86400,
+                                                   {{t0, t0 + 3600, 1.0 * kMmPerHour},
+                                                    {t0 + 3600, t0 + 7200, 2.0 * kMmPerHour},
+                                                    {t0 + 7200, t0 + 9000, 10.0 * kMmPerHour}},
+                                                   1800);
+  const RecordFigures f = record_figures(rain, 4.5 * kMmPerHour, 0);
+  // Hand-computed: below 4.5 mm/h fall 1 + 2 of the 8 mm (37.5 %); 0.5 h of the 2.5 wet hours
+  // are at or above it (20 %); half the wet time (1.25 h) is reached inside the 2 mm/h hour.
+  EXPECT_DOUBLE_EQ(*f.volume_below_priming, 0.375);
+  EXPECT_DOUBLE_EQ(*f.priming_exceedance, 0.2);
+  EXPECT_DOUBLE_EQ(f.median_intensity_m_per_s, 2.0 * kMmPerHour);
+  EXPECT_DOUBLE_EQ(f.peak_intensity_m_per_s, 10.0 * kMmPerHour);
+  EXPECT_EQ(f.step_s, 1800);
+  EXPECT_FALSE(record_figures(rain, std::nullopt, 0).volume_below_priming);
+}
+
+TEST(Design, PrintsTheRecordAsReadBesideItsDisaggregation) {
+  Scenario s = make_scenario();
+  s.rain.disaggregate.emplace();
+  s.rain.disaggregate->method = DisaggregationMethod::cascade;
+  const Instant t0 = test_support::kStart;
+  const RainSeries as_read =
+      test_support::block_rain(t0, t0 + 86400, {{t0, t0 + 86400, 0.5e-3 / 3600.0}}, 86400);
+  const RainSeries rain =
+      test_support::block_rain(t0, t0 + 86400, {{t0, t0 + 3600, 12e-3 / 3600.0}}, 300);
+  std::ostringstream out;
+  write_design(out, s, evaluate_design(s, &rain, &as_read));
+  const std::string text = out.str();
+  for (const char* line : {
+           "  record as read, 1d steps\n"
+           "    median wet intensity                                       0.50  mm/h\n"
+           "    rain volume below the priming intensity                   100.0  %\n",
+           "  record disaggregated by cascade, 5min steps\n"
+           "    median wet intensity                                      12.00  mm/h\n"
+           "    rain volume below the priming intensity                     0.0  %\n",
+       }) {
+    EXPECT_NE(text.find(line), std::string::npos) << text;
+  }
 }
 
 TEST(Design, PrintsEveryFigureOfASystemWithoutColumnOrRecordAndTheCautions) {

@@ -15,12 +15,26 @@
 
 namespace gutterwatt {
 
+/// What a rain record says about priming on this roof, in SI. Intensities are those of the
+/// record's intervals (constant over each).
+struct RecordFigures {
+  double median_intensity_m_per_s = 0.0;       ///< of wet record time
+  double peak_intensity_m_per_s = 0.0;         ///< median of the annual maxima (the 2-year event)
+  std::optional<double> priming_exceedance;    ///< share of wet time at or above priming
+  std::optional<double> volume_below_priming;  ///< share of the rain depth that falls below it
+  Instant step_s = 0;                          ///< the record's step
+};
+
+/// The figures of `rain` (with at least one pulse); the priming shares only when
+/// `priming_intensity_m_per_s` is given. Years are local at `utc_offset_s`.
+RecordFigures record_figures(const RainSeries& rain,
+                             std::optional<double> priming_intensity_m_per_s, int utc_offset_s);
+
 /// Figures in SI. Optional ones are absent where the release kind or the record has none.
 struct DesignFigures {
   std::optional<double> storage_m3;       ///< between the set-points (bell: priming level)
   std::optional<double> priming_level_m;  ///< bell: lip + standpipe head of the priming flow
   std::optional<double> priming_intensity_m_per_s;  ///< steady rain that just primes the bell
-  std::optional<double> priming_exceedance;         ///< share of wet record time at or above it
   double running_flow_trigger_m3_per_s = 0.0;       ///< release running full, level at trigger
   double running_flow_break_m3_per_s = 0.0;         ///< ... at the break level
   std::optional<double> cycle_drain_s;  ///< running time from the set-point to break, no inflow
@@ -35,13 +49,17 @@ struct DesignFigures {
   std::optional<double>
       energy_per_cycle_J;               ///< one release from the set-point, no inflow (simulated)
   std::optional<double> column_fill_s;  ///< head column: time to brim-full while running
-  std::optional<double> record_median_intensity_m_per_s;  ///< of wet record intervals
-  std::optional<double> record_peak_intensity_m_per_s;    ///< median annual maximum (2-year)
+  std::optional<RecordFigures> record;  ///< the record the simulation runs on
+  /// The record as read, when the simulation runs on a disaggregation of it.
+  std::optional<RecordFigures> record_as_read;
+  std::string disaggregation;  ///< how `record` was made from `record_as_read`, e.g. `cascade`
   std::vector<std::string> warnings;
 };
 
-/// Works out the figures; `rain` may be null (no record given or readable).
-DesignFigures evaluate_design(const Scenario& scenario, const RainSeries* rain);
+/// Works out the figures; `rain` may be null (no record given or readable). `as_read`, when
+/// given, is the record before rain.disaggregate made `rain` of it.
+DesignFigures evaluate_design(const Scenario& scenario, const RainSeries* rain,
+                              const RainSeries* as_read = nullptr);
 
 /// Writes the figures with their units, the warnings in plain words, then the cautions.
 void write_design(std::ostream& out, const Scenario& scenario, const DesignFigures& figures);

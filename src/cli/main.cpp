@@ -21,6 +21,7 @@
 #include "fit_command.hpp"
 #include "gutterwatt/calendar.hpp"
 #include "gutterwatt/design.hpp"
+#include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/output.hpp"
 #include "gutterwatt/output_folder.hpp"
@@ -184,12 +185,17 @@ struct CheckArgs {
 
 int check_command(const CheckArgs& args) {
   const Scenario sc = load_scenario_unless_stopped(args.scenario, args.set);
+  std::optional<RainSeries> as_read;
   std::optional<RainSeries> rain;
   if (!args.no_rain) {
-    rain = load_rain(sc.rain, args.rain, &g_stop);
+    as_read = load_rain_as_read(sc.rain, args.rain, &g_stop);
+    rain = sc.rain.disaggregate ? disaggregate(*as_read, *sc.rain.disaggregate) : *as_read;
     for (const std::string& w : rain->warnings) spdlog::warn("{}", w);
   }
-  write_design(std::cout, sc, evaluate_design(sc, rain ? &*rain : nullptr));
+  // The record as read is shown beside its disaggregation when the steps differ.
+  const bool spread = rain && rain->step_s < as_read->step_s;
+  write_design(std::cout, sc,
+               evaluate_design(sc, rain ? &*rain : nullptr, spread ? &*as_read : nullptr));
   return kExitOk;
 }
 
