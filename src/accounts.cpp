@@ -62,6 +62,8 @@ void Ledger::tally_step(const ChainState& x0, const ChainState& x1, double dt, c
     tally_.column_overflow_m3 += released - (x1[kNozzle] - x0[kNozzle]);
   }
   if (m.generator_on) tally_.electrical_J += sc.generator.efficiency * (x1[kShaft] - x0[kShaft]);
+  tally_.battery_below_half_s += below_half_s(x0[kBattery], x1[kBattery], dt, sc.battery);
+  if (m.battery == BatteryMode::empty) tally_.battery_empty_s += dt;
 }
 
 void Ledger::tally_roof(const RoofFlows& flows) {
@@ -69,6 +71,11 @@ void Ledger::tally_roof(const RoofFlows& flows) {
   tally_.roof_loss_m3 += flows.loss_m3;
   tally_.roof_runoff_m3 += flows.runoff_m3;
   tally_.first_flush_m3 += flows.diverted_m3;
+}
+
+void Ledger::tally_battery(const BatteryRest& rest) {
+  tally_.battery_below_half_s += rest.below_half_s;
+  tally_.battery_empty_s += rest.empty_s;
 }
 
 // The account an episode's volume is measured on.
@@ -170,10 +177,14 @@ Accounts Ledger::accounts(const ChainState& x) const {
   a.jet_J = x[kJet];
   a.shaft_J = x[kShaft];
   a.accepted_J = x[kAccepted];
-  a.stored_J = system_.scenario().battery.charge_efficiency * x[kAccepted];
+  const BatteryConfig& battery = system_.scenario().battery;
+  a.stored_J = battery.charge_efficiency * x[kAccepted];
   a.curtailed_J = x[kCurtailed];
   a.served_J = x[kServed];
   a.unmet_J = x[kUnmet];
+  a.drawn_J = x[kDrawn];
+  a.discharge_loss_J = (1.0 / battery.discharge_efficiency - 1.0) * x[kDrawn];
+  a.self_discharge_J = x[kSelfDischarge];
   return a;
 }
 

@@ -92,7 +92,7 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
   // Turbine, generator, battery.
   r.power = plant_.power(r.nozzle, r.head_m);
   r.electrical_W = m.generator_on ? r.power.electrical_W : 0.0;
-  r.battery = battery_flows(m.battery, r.electrical_W, f.load_W, sc_.battery);
+  r.battery = battery_flows(m.battery, r.electrical_W, f.load_W, x[kBattery], sc_.battery);
   d[kBattery] = r.battery.charge_W;
   d[kJet] = r.power.jet_W;
   d[kShaft] = r.power.shaft_W;
@@ -100,6 +100,8 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
   d[kCurtailed] = r.battery.curtailed_W;
   d[kServed] = r.battery.served_W;
   d[kUnmet] = r.battery.unmet_W;
+  d[kDrawn] = r.battery.drawn_W;
+  d[kSelfDischarge] = r.battery.self_discharge_W;
 }
 
 void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing& f,
@@ -141,14 +143,23 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
   const double cut_in = sc_.generator.cut_in_W;
   g[kGuardGenerator] =
       m.generator_on ? r.power.electrical_W - cut_in : cut_in - r.power.electrical_W;
+  // Normal ends at capacity while charging and at the minimum while serving the load; a battery
+  // below its minimum (self-discharged there while the generator carried the load) is cut as
+  // soon as the load exceeds the input. Full ends when the charge it can take no longer offsets
+  // its self-discharge; empty when the input covers the load.
+  const BatteryConfig& bat = sc_.battery;
   const double surplus = r.electrical_W - f.load_W;
   switch (m.battery) {
     case BatteryMode::normal:
-      g[kGuardBattery] =
-          r.battery.charge_W >= 0.0 ? sc_.battery.capacity_J - x[kBattery] : x[kBattery];
+      if (r.battery.charge_W >= 0.0) {
+        g[kGuardBattery] = bat.capacity_J - x[kBattery];
+      } else if (surplus < 0.0) {
+        g[kGuardBattery] = x[kBattery] - bat.min_soc * bat.capacity_J;
+      }
       break;
     case BatteryMode::full:
-      g[kGuardBattery] = surplus;
+      g[kGuardBattery] =
+          bat.charge_efficiency * std::min(surplus, bat.max_charge_W) - r.battery.self_discharge_W;
       break;
     case BatteryMode::empty:
       g[kGuardBattery] = -surplus;

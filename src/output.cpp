@@ -219,6 +219,12 @@ std::vector<PeriodSummary> SummaryBuilder::fold_months(
   return out;
 }
 
+std::optional<double> load_served_share(const Accounts& a) {
+  const double demand = a.served_J + a.unmet_J;
+  if (demand <= 0.0) return std::nullopt;
+  return a.served_J / demand;
+}
+
 double wettest_dry_intensity_m_per_s(const RainSeries& rain, Instant start, Instant end,
                                      const std::vector<Episode>& overflows) {
   double best = 0.0;
@@ -283,7 +289,10 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                     {"stored", Wh(a.stored_J)},
                     {"curtailed", Wh(a.curtailed_J)},
                     {"load_served", Wh(a.served_J)},
-                    {"unmet_load", Wh(a.unmet_J)}};
+                    {"unmet_load", Wh(a.unmet_J)},
+                    {"drawn_from_battery", Wh(a.drawn_J)},
+                    {"discharge_loss", Wh(a.discharge_loss_J)},
+                    {"self_discharge", Wh(a.self_discharge_J)}};
   j["siphon"] = {{"cycles", r.cycles},
                  {"energy_per_cycle_Wh", Wh(summary.energy_per_cycle_J())},
                  {"dribble_episodes", r.dribble_episodes},
@@ -314,10 +323,18 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
       {"break", has_set_points ? json(sc.release.break_level_m * kMmPerM) : json()},
       {"rim", sc.reservoir.rim_m * kMmPerM}};
   const double cap = sc.battery.capacity_J;
-  j["battery"] = {{"capacity_Wh", Wh(cap)},
-                  {"initial_soc", round_to(cap > 0 ? r.initial.battery_J / cap : 0.0, 6)},
-                  {"final_soc", round_to(cap > 0 ? r.final.battery_J / cap : 0.0, 6)},
-                  {"min_soc", round_to(summary.min_soc(), 6)}};
+  j["battery"] = {
+      {"capacity_Wh", Wh(cap)},
+      {"initial_soc", round_to(cap > 0 ? r.initial.battery_J / cap : 0.0, 6)},
+      {"final_soc", round_to(cap > 0 ? r.final.battery_J / cap : 0.0, 6)},
+      {"min_soc", round_to(summary.min_soc(), 6)},
+      {"chemistry",
+       sc.battery.chemistry ? json(battery_chemistry_name(*sc.battery.chemistry)) : json()},
+      {"cut_soc", sc.battery.min_soc},
+      {"hours_below_half", round_to(a.battery_below_half_s / kSecondsPerHour, 4)},
+      {"hours_empty", round_to(a.battery_empty_s / kSecondsPerHour, 4)},
+      {"load_served_share",
+       load_served_share(a) ? json(round_to(*load_served_share(a), 6)) : json()}};
   json coverage = json::array();
   for (const MonthCoverage& m : month_coverage(rain, r.start, r.end, off)) {
     coverage.push_back({{"month", m.month}, {"fraction", round_to(m.fraction, 6)}});
@@ -374,7 +391,9 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   row("stored in the battery", num(a.stored_J / kJoulesPerWh, 2), "Wh");
   row("curtailed (battery full)", num(a.curtailed_J / kJoulesPerWh, 2), "Wh");
   row("load served", num(a.served_J / kJoulesPerWh, 2), "Wh");
-  row("load unmet", num(a.unmet_J / kJoulesPerWh, 2), "Wh");
+  row("load unmet (cut at the minimum)", num(a.unmet_J / kJoulesPerWh, 2), "Wh");
+  row("battery discharge loss", num(a.discharge_loss_J / kJoulesPerWh, 2), "Wh");
+  row("battery self-discharge", num(a.self_discharge_J / kJoulesPerWh, 2), "Wh");
   out << " release and overflow\n";
   row("siphon cycles", std::to_string(r.cycles), "");
   row("energy per cycle", num(summary.energy_per_cycle_J() / kJoulesPerWh, 3), "Wh");
@@ -392,7 +411,12 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
               kSecondsPerHour * kMmPerM,
           1),
       "mm/h");
-  row("battery state of charge, lowest", num(summary.min_soc() * 100.0, 1), "%");
+  out << " battery\n";
+  row("state of charge, lowest", num(summary.min_soc() * 100.0, 1), "%");
+  row("time below half charge", num(a.battery_below_half_s / kSecondsPerHour, 1), "h");
+  row("time empty (load cut)", num(a.battery_empty_s / kSecondsPerHour, 1), "h");
+  const auto share = load_served_share(a);
+  row("share of the load served", share ? num(*share * 100.0, 1) : "-", share ? "%" : "");
   const auto periods = [&](const char* title, const std::vector<PeriodSummary>& list) {
     out << " by " << title << "\n";
     out << "  " << std::left << std::setw(10) << title << std::right

@@ -321,6 +321,11 @@ Summary read_summary(const fs::path& path) {
   s.trigger_mm = json_optional_number(root, "levels_mm.trigger", file);
   s.break_mm = json_optional_number(root, "levels_mm.break", file);
   s.rim_mm = json_optional_number(root, "levels_mm.rim", file);
+  s.discharge_loss_Wh = json_optional_number(root, "energy_Wh.discharge_loss", file);
+  s.self_discharge_Wh = json_optional_number(root, "energy_Wh.self_discharge", file);
+  s.battery_hours_below_half = json_optional_number(root, "battery.hours_below_half", file);
+  s.battery_hours_empty = json_optional_number(root, "battery.hours_empty", file);
+  s.load_served_share = json_optional_number(root, "battery.load_served_share", file);
   const Json* months = find_key(root, "months");
   if (months == nullptr) throw InputError(file, 0, "months", "missing");
   if (!months->is_array()) throw InputError(file, 0, "months", "expected an array");

@@ -85,6 +85,9 @@ struct Summary {
   double jet_Wh = 0, electrical_Wh = 0, stored_Wh = 0, curtailed_Wh = 0, unmet_load_Wh = 0;
   double cycles = 0, overflow_events = 0, overflow_hours = 0;
   std::optional<double> trigger_mm, break_mm, rim_mm;
+  /// Battery losses and times (absent from summaries written before they were kept).
+  std::optional<double> discharge_loss_Wh, self_discharge_Wh, battery_hours_below_half,
+      battery_hours_empty, load_served_share;
   std::vector<MonthRow> months;
 };
 

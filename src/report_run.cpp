@@ -321,6 +321,22 @@ std::string headline_section(const Run& run) {
                    with_unit(s.curtailed_Wh, "Wh"), "", true);
   body += row_html("Jet energy at the nozzle", with_unit(s.jet_Wh, "Wh"));
   body += row_html("Load not served", with_unit(s.unmet_load_Wh, "Wh"));
+  if (s.load_served_share) {
+    body +=
+        row_html("share of the load served", pretty(*s.load_served_share * 100.0) + " %", "", true);
+  }
+  if (s.discharge_loss_Wh) {
+    body += row_html("Battery discharge loss", with_unit(*s.discharge_loss_Wh, "Wh"));
+  }
+  if (s.self_discharge_Wh) {
+    body += row_html("Battery self-discharge", with_unit(*s.self_discharge_Wh, "Wh"));
+  }
+  if (s.battery_hours_below_half) {
+    body += row_html("Battery below half charge", with_unit(*s.battery_hours_below_half, "h"));
+  }
+  if (s.battery_hours_empty) {
+    body += row_html("Battery empty (load cut)", with_unit(*s.battery_hours_empty, "h"));
+  }
   body += row_html("Release cycles", pretty(s.cycles));
   body += row_html("Overflow episodes", pretty(s.overflow_events));
   body += row_html("hours overflowing", with_unit(s.overflow_hours, "h"), "", true);

@@ -48,6 +48,7 @@ using detail::kDay_s;
 using detail::kFraction;
 using detail::kNonNegative;
 using detail::kOverrideLabel;
+using detail::kPartShare;
 using detail::kPositive;
 using detail::kShare;
 using detail::Limits;
@@ -620,11 +621,23 @@ const std::vector<Section>& schema() {
       {"battery",
        kRequired,
        {
+           // First, so that the keys below override its presets.
+           {"chemistry", kOptional,
+            [](V v, S s) {
+              apply_chemistry(v.choice<BatteryChemistry>({{"lead_acid", BatteryChemistry::lead_acid},
+                                                          {"lifepo4", BatteryChemistry::lifepo4}}),
+                              s.battery);
+            }},
            {"capacity_Wh", kRequired,
             [](V v, S s) { s.battery.capacity_J = v.number(kPositive) * kJoulesPerWh; }},
            {"initial_soc", kOptional, [](V v, S s) { s.battery.initial_soc = v.number(kShare); }},
            {"charge_efficiency", kOptional,
             [](V v, S s) { s.battery.charge_efficiency = v.number(kFraction); }},
+           {"discharge_efficiency", kOptional,
+            [](V v, S s) { s.battery.discharge_efficiency = v.number(kFraction); }},
+           {"self_discharge_per_month", kOptional,
+            [](V v, S s) { s.battery.self_discharge_per_month = v.number(kPartShare); }},
+           {"min_soc", kOptional, [](V v, S s) { s.battery.min_soc = v.number(kPartShare); }},
            {"max_charge_W", kOptional,
             [](V v, S s) { s.battery.max_charge_W = v.number(kPositive); }},
            {"load_W", kOptional, [](V v, S s) { s.battery.load_W = v.number(kNonNegative); }},

@@ -60,8 +60,9 @@ struct Limits {
 inline constexpr Limits kAny{};
 inline constexpr Limits kPositive{0.0, std::nullopt, true, false};
 inline constexpr Limits kNonNegative{0.0, std::nullopt, false, false};
-inline constexpr Limits kShare{0.0, 1.0, false, false};    // [0, 1]: state of charge
-inline constexpr Limits kFraction{0.0, 1.0, true, false};  // (0, 1]: efficiencies and coefficients
+inline constexpr Limits kShare{0.0, 1.0, false, false};     // [0, 1]: state of charge
+inline constexpr Limits kFraction{0.0, 1.0, true, false};   // (0, 1]: efficiencies and coefficients
+inline constexpr Limits kPartShare{0.0, 1.0, false, true};  // [0, 1): a share lost or kept back
 constexpr Limits between(double lo, double hi) { return {lo, hi, false, false}; }
 
 /// How a number given in a key's customary twin (`rim_in` for `rim_mm`) becomes a number in the

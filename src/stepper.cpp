@@ -66,7 +66,7 @@ Stepper::Stepper(const ChainSystem& system, Ledger& ledger, const RunOptions& op
       x_(system.initial_state()),
       mode_(system.initial_mode(x_)) {
   error_scale_.fill(1e-3);  // m3 (1 L) for volumes, m (1 mm) for depth
-  for (std::size_t i = kJet; i <= kUnmet; ++i) error_scale_[i] = 1.0;  // J
+  for (std::size_t i = kJet; i <= kSelfDischarge; ++i) error_scale_[i] = 1.0;  // J
   error_scale_[kBattery] = 1.0;
 }
 
@@ -101,7 +101,8 @@ ChainRates Stepper::settle(const Forcing& f, Guards& g, ChainState& dxdt) {
 // A span at rest in closed form: the release passes nothing and cannot start to, so the rest of
 // the chain is linear. The initial loss fills at the rain rate (or dries at the drying rate), the
 // roof's linear reservoir takes C i A once it is full and empties exponentially, the diverter
-// takes the first of its runoff and the reservoir the rest, and the battery serves the load.
+// takes the first of its runoff and the reservoir the rest, and the battery serves the load
+// (battery_at_rest).
 void Stepper::coast(double dt, const Forcing& f) {
   const Scenario& sc = system_.scenario();
   ChainState& x = x_;
@@ -153,11 +154,13 @@ void Stepper::coast(double dt, const Forcing& f) {
   }
   ledger_.tally_roof(flows);
   x[kReservoir] += to_reservoir;
-  const double demand = f.load_W * dt;
-  const double drawn = std::min(std::max(0.0, x[kBattery]), demand);
-  x[kBattery] -= drawn;
-  x[kServed] += drawn;
-  x[kUnmet] += demand - drawn;
+  const BatteryRest rest = battery_at_rest(x[kBattery], f.load_W, dt, sc.battery);
+  x[kBattery] = rest.energy_J;
+  x[kServed] += rest.drawn_J;
+  x[kDrawn] += rest.drawn_J;
+  x[kUnmet] += rest.unmet_J;
+  x[kSelfDischarge] += rest.self_discharge_J;
+  ledger_.tally_battery(rest);
   mode_.battery = battery_mode(x[kBattery], 0.0, f.load_W, sc.battery);
   stats_.coasted_s += dt;
 }

@@ -182,6 +182,10 @@ TEST(Scenario, FillsDefaultsForEveryOptionalKey) {
   EXPECT_DOUBLE_EQ(s.generator.cut_in_W, 0.0);
   EXPECT_DOUBLE_EQ(s.battery.initial_soc, 0.5);
   EXPECT_DOUBLE_EQ(s.battery.charge_efficiency, 0.9);
+  EXPECT_DOUBLE_EQ(s.battery.discharge_efficiency, 0.9);
+  EXPECT_DOUBLE_EQ(s.battery.self_discharge_per_month, 0.0);
+  EXPECT_DOUBLE_EQ(s.battery.min_soc, 0.0);
+  EXPECT_FALSE(s.battery.chemistry.has_value());
   EXPECT_DOUBLE_EQ(s.battery.max_charge_W, 1e9);
   EXPECT_DOUBLE_EQ(s.battery.load_W, 0.0);
   EXPECT_TRUE(s.battery.load_profile_W.empty());
@@ -196,6 +200,19 @@ TEST(Scenario, ReadsBestAsTheBestRunnerSpeed) {
       minimal_with("  runner_diameter_mm: 60", "  runner_diameter_mm: 60\n  speed_rpm: best"));
   EXPECT_FALSE(s.turbine.speed_rpm.has_value());
   EXPECT_TRUE(s.turbine.best_at_every_head);
+}
+
+TEST(Scenario, BatteryChemistrySetsPresetsThatItsKeysOverride) {
+  const Scenario lead = parse(minimal(), {"battery.min_soc=0.4", "battery.chemistry=lead_acid"});
+  EXPECT_EQ(lead.battery.chemistry, BatteryChemistry::lead_acid);
+  EXPECT_DOUBLE_EQ(lead.battery.self_discharge_per_month, 0.03);
+  EXPECT_DOUBLE_EQ(lead.battery.min_soc, 0.4);  // given, whatever the order
+  const Scenario lfp = parse(minimal(), {"battery.chemistry=lifepo4"});
+  EXPECT_DOUBLE_EQ(lfp.battery.discharge_efficiency, 0.97);
+  EXPECT_EQ(error_of(minimal(), {"battery.chemistry=nickel"}),
+            "--set: battery.chemistry: expected one of lead_acid or lifepo4, got \"nickel\"");
+  EXPECT_EQ(error_of(minimal(), {"battery.self_discharge_per_month=1"}),
+            "--set: battery.self_discharge_per_month: must be >= 0 and < 1 (got 1)");
 }
 
 TEST(Scenario, GeneratorVoltsPerRpmNeedTheBatteryVoltage) {

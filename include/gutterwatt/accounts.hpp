@@ -30,8 +30,13 @@ struct Accounts {
   double accepted_J = 0.0;    ///< taken by the battery at its terminals
   double stored_J = 0.0;      ///< accepted times the charge efficiency
   double curtailed_J = 0.0;
-  double served_J = 0.0;  ///< load served
-  double unmet_J = 0.0;   ///< load not served
+  double served_J = 0.0;          ///< load served
+  double unmet_J = 0.0;           ///< load not served (cut at the battery's minimum)
+  double drawn_J = 0.0;           ///< delivered by the battery to the load
+  double discharge_loss_J = 0.0;  ///< drawn times (1 / discharge efficiency - 1)
+  double self_discharge_J = 0.0;
+  double battery_below_half_s = 0.0;  ///< time with less than half the capacity stored
+  double battery_empty_s = 0.0;       ///< time at the minimum with the load cut
 };
 
 /// Water and energy held at one instant.
@@ -119,8 +124,10 @@ struct RoofFlows {
 /// solver nothing: rain and roof loss at constant rates, roof runoff as what entered the roof
 /// store less its change, the diverter's take as its change while filling, dribble as release
 /// while the release is not running, column overflow as release less nozzle while brim-full,
-/// electrical energy as the generator efficiency times shaft energy while it runs. Stored energy
-/// is the charge efficiency times the accepted energy.
+/// electrical energy as the generator efficiency times shaft energy while it runs, the time at
+/// the battery's minimum as the step's length in the empty mode. Stored energy is the charge
+/// efficiency times the accepted energy. The time below half charge takes the stored energy as
+/// linear within a step (a step is at most 30 min).
 class Ledger {
  public:
   Ledger(const ChainSystem& system, Observer& observer);
@@ -132,6 +139,8 @@ class Ledger {
                   const Forcing& f);
   /// Adds what the roof stage made of a span advanced in closed form.
   void tally_roof(const RoofFlows& flows);
+  /// Adds the battery's times of a span advanced in closed form.
+  void tally_battery(const BatteryRest& rest);
   /// A switch at `t` from `before` to `after` (state `x` after it) that moved `spilled_m3` over
   /// a head column's brim: opens and closes episodes.
   void switched(const ChainMode& before, const ChainMode& after, const ChainState& x,

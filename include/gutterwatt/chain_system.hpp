@@ -34,6 +34,8 @@ enum Slot : std::size_t {
   kCurtailed,
   kServed,
   kUnmet,
+  kDrawn,          ///< J delivered by the battery to the load
+  kSelfDischarge,  ///< J lost by the battery's self-discharge
   kSlots
 };
 

@@ -2,6 +2,7 @@
 /// Writers of a run's records: timeseries.csv, events.csv, summary.json and the terminal table.
 
 #include <functional>
+#include <optional>
 #include <ostream>
 #include <string>
 #include <vector>
@@ -107,6 +108,9 @@ class SummaryBuilder : public Observer {
   double cycle_energy_J_ = 0.0;
   long cycle_count_ = 0;
 };
+
+/// The share of the load's energy served, served / (served + unmet); none without a load.
+std::optional<double> load_served_share(const Accounts& totals);
 
 /// Intensity of the wettest record interval in [start, end) during which the reservoir did not
 /// overflow (0 when every wet interval overflowed or there is none), m/s.
