@@ -258,7 +258,8 @@ nlohmann::json period_json(const PeriodSummary& p, const char* key) {
 }  // namespace
 
 void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries& rain,
-                        const RunResult& r, const SummaryBuilder& summary) {
+                        const RunResult& r, const SummaryBuilder& summary,
+                        const RealizationSpread* realizations) {
   using nlohmann::json;
   const Accounts& a = r.totals;
   const int off = sc.site.utc_offset_s;
@@ -359,12 +360,27 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
   json years = json::array();
   for (const PeriodSummary& m : summary.years()) years.push_back(period_json(m, "year"));
   j["years"] = years;
+  if (realizations) {
+    const auto spread = [](const Spread& x) {
+      return json{
+          {"p10", round_to(x.p10, 6)}, {"p50", round_to(x.p50, 6)}, {"p90", round_to(x.p90, 6)}};
+    };
+    const RealizationSpread& z = *realizations;
+    j["realizations"] = {{"n", z.n},
+                         {"seeds", {z.first_seed, z.first_seed + (z.n - 1)}},
+                         {"percentiles", kPercentileDefinition},
+                         {"energy_Wh", spread(z.energy_Wh)},
+                         {"cycles", spread(z.cycles)},
+                         {"reservoir_overflow_L", spread(z.reservoir_overflow_L)},
+                         {"dribble_L", spread(z.dribble_L)}};
+  }
   // File names and --set values may hold any bytes: those that are not UTF-8 are shown as U+FFFD.
   out << j.dump(2, ' ', false, decltype(j)::error_handler_t::replace) << '\n';
 }
 
 void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries& rain,
-                         const RunResult& r, const SummaryBuilder& summary) {
+                         const RunResult& r, const SummaryBuilder& summary,
+                         const RealizationSpread* realizations) {
   const Accounts& a = r.totals;
   const int off = sc.site.utc_offset_s;
   const auto row = [&](const std::string& label, const std::string& value,
@@ -417,6 +433,25 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   row("time empty (load cut)", num(a.battery_empty_s / kSecondsPerHour, 1), "h");
   const auto share = load_served_share(a);
   row("share of the load served", share ? num(*share * 100.0, 1) : "-", share ? "%" : "");
+  if (realizations) {
+    const RealizationSpread& z = *realizations;
+    const RealizationMetrics own = realization_metrics(r);
+    out << " realizations: " << z.n << " disaggregations of the record (seeds " << z.first_seed
+        << " to " << z.first_seed + (z.n - 1) << "; this run is the first)\n";
+    out << "  " << std::string(34, ' ') << "      this run    median      P10 to P90\n";
+    const auto spread_row = [&](const std::string& label, double own_value, const Spread& x,
+                                int decimals, const std::string& unit) {
+      const auto text = [&](double v) { return detail::fixed(v, decimals); };
+      out << "  " << std::left << std::setw(34) << label << std::right << std::setw(14)
+          << text(own_value) << std::setw(10) << text(x.p50) << std::setw(10) << text(x.p10)
+          << " to " << std::left << std::setw(9) << text(x.p90) << std::right << unit << '\n';
+    };
+    spread_row("electrical (generator out)", own.energy_Wh, z.energy_Wh, 2, "Wh");
+    spread_row("siphon cycles", own.cycles, z.cycles, 1, "");
+    spread_row("reservoir overflow", own.reservoir_overflow_L, z.reservoir_overflow_L, 1, "L");
+    spread_row("dribble", own.dribble_L, z.dribble_L, 1, "L");
+    out << "  (P10, median and P90 of the " << z.n << " runs: " << kPercentileDefinition << ")\n";
+  }
   const auto periods = [&](const char* title, const std::vector<PeriodSummary>& list) {
     out << " by " << title << "\n";
     out << "  " << std::left << std::setw(10) << title << std::right

@@ -2,6 +2,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <filesystem>
 #include <fstream>
 #include <nlohmann/json.hpp>
@@ -61,6 +62,65 @@ TEST(Cli, CheckShowsADailyRecordAsReadAndAsDisaggregated) {
             std::string::npos)
       << r.out;
   EXPECT_NE(r.out.find("  record disaggregated by cascade, 5min steps\n"), std::string::npos);
+}
+
+// The spread of three realizations against three single runs made with the seeds 1, 2, 3.
+// source: Hyndman & Fan (1996) definition 7 worked by hand for n = 3: h = 2p + 1, so
+// P10 = x1 + 0.2 (x2 - x1), P50 = x2, P90 = x2 + 0.8 (x3 - x2).
+TEST(Cli, RealizationsReportTheSpreadOfSeparateSeeds) {
+  const fs::path dir = scratch("cli-realizations");
+  const std::string scenario = source("scenarios/daily-demo.yaml");
+  const Outcome r =
+      run("run " + scenario + " --realizations 3 --out " + (dir / "all").string(), dir);
+  ASSERT_EQ(r.status, 0) << r.err;
+  EXPECT_NE(r.out.find(" realizations: 3 disaggregations of the record (seeds 1 to 3; this run "
+                       "is the first)\n"),
+            std::string::npos)
+      << r.out;
+  std::vector<double> energy;
+  for (int seed = 1; seed <= 3; ++seed) {
+    const std::string out = (dir / ("seed" + std::to_string(seed))).string();
+    const Outcome one =
+        run("run " + scenario + " --quiet --set rain.disaggregate.seed=" + std::to_string(seed) +
+                " --realizations 1 --out " + out,
+            dir);
+    ASSERT_EQ(one.status, 0) << one.err;
+    const auto summary = nlohmann::json::parse(slurp(fs::path(out) / "summary.json"));
+    EXPECT_FALSE(summary.contains("realizations"));
+    energy.push_back(summary["energy_Wh"]["electrical"].get<double>());
+  }
+  const auto all = nlohmann::json::parse(slurp(dir / "all" / "summary.json"));
+  // The written run is the first realization.
+  EXPECT_EQ(all["energy_Wh"]["electrical"].get<double>(), energy[0]);
+  std::sort(energy.begin(), energy.end());
+  const auto& z = all["realizations"];
+  EXPECT_EQ(z["n"].get<int>(), 3);
+  EXPECT_EQ(z["seeds"], nlohmann::json::parse("[1, 3]"));
+  EXPECT_EQ(z["percentiles"].get<std::string>(), "Hyndman & Fan (1996) definition 7");
+  EXPECT_NEAR(z["energy_Wh"]["p10"].get<double>(), energy[0] + 0.2 * (energy[1] - energy[0]), 2e-6);
+  EXPECT_NEAR(z["energy_Wh"]["p50"].get<double>(), energy[1], 2e-6);
+  EXPECT_NEAR(z["energy_Wh"]["p90"].get<double>(), energy[1] + 0.8 * (energy[2] - energy[1]), 2e-6);
+  for (const char* key : {"cycles", "reservoir_overflow_L", "dribble_L"}) {
+    EXPECT_LE(z[key]["p10"].get<double>(), z[key]["p50"].get<double>()) << key;
+    EXPECT_LE(z[key]["p50"].get<double>(), z[key]["p90"].get<double>()) << key;
+  }
+}
+
+TEST(Cli, RealizationsNeedARandomDisaggregation) {
+  const fs::path dir = scratch("cli-realizations-as-read");
+  expect_bad(run("run " + source("scenarios/demo.yaml") + " --realizations 5 --out " +
+                     (dir / "out").string(),
+                 dir),
+             "--realizations: the record is used as read (no rain.disaggregate), so every "
+             "realization would be the same run; leave --realizations out");
+  expect_bad(run("run " + source("scenarios/daily-demo.yaml") +
+                     " --set rain.disaggregate.method=nrcs-II --realizations 5 --out " +
+                     (dir / "out").string(),
+                 dir),
+             "--realizations: method: nrcs-II spreads the record the same way every time, so "
+             "every realization would be the same run; use method: cascade, or leave "
+             "--realizations out");
+  EXPECT_FALSE(fs::exists(dir / "out"));
 }
 
 TEST(Cli, CheckPrintsFiguresWarningsAndCautions) {

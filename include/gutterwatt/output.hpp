@@ -7,6 +7,7 @@
 #include <string>
 #include <vector>
 
+#include "gutterwatt/realizations.hpp"
 #include "gutterwatt/scenario.hpp"
 #include "gutterwatt/simulation.hpp"
 
@@ -117,12 +118,17 @@ std::optional<double> load_served_share(const Accounts& totals);
 double wettest_dry_intensity_m_per_s(const RainSeries& rain, Instant start, Instant end,
                                      const std::vector<Episode>& overflows);
 
-/// summary.json: water_L, energy_Wh, siphon, overflow, battery, months and more.
+/// summary.json: water_L, energy_Wh, siphon, overflow, battery, months and more; with
+/// `realizations` (the run being their first), `realizations: {n, seeds, percentiles,
+/// energy_Wh: {p10, p50, p90}, cycles, reservoir_overflow_L, dribble_L}`.
 void write_summary_json(std::ostream& out, const Scenario& scenario, const RainSeries& rain,
-                        const RunResult& result, const SummaryBuilder& summary);
+                        const RunResult& result, const SummaryBuilder& summary,
+                        const RealizationSpread* realizations = nullptr);
 
-/// The summary table printed after a run.
+/// The summary table printed after a run; with `realizations`, their median and P10 to P90
+/// beside the run's own figures.
 void print_summary_table(std::ostream& out, const Scenario& scenario, const RainSeries& rain,
-                         const RunResult& result, const SummaryBuilder& summary);
+                         const RunResult& result, const SummaryBuilder& summary,
+                         const RealizationSpread* realizations = nullptr);
 
 }  // namespace gutterwatt

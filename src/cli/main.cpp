@@ -26,6 +26,7 @@
 #include "gutterwatt/output.hpp"
 #include "gutterwatt/output_folder.hpp"
 #include "gutterwatt/rain_files.hpp"
+#include "gutterwatt/realizations.hpp"
 #include "gutterwatt/report.hpp"
 #include "gutterwatt/scenario.hpp"
 #include "gutterwatt/simulation.hpp"
@@ -122,6 +123,7 @@ struct RunArgs {
   std::string to;
   bool quiet = false;
   bool force = false;
+  int realizations = 0;  ///< 0: the default for the record
 };
 
 // Applies --from/--to as overrides so they are checked like any scenario key.
@@ -132,44 +134,81 @@ std::vector<std::string> overrides_of(const RunArgs& a) {
   return o;
 }
 
+// The number of realizations `run` makes: --realizations, else the default for the record.
+std::size_t realizations_of(const RunArgs& args, const Scenario& sc) {
+  if (args.realizations == 0) return default_realizations(sc.rain);
+  if (args.realizations > 1 && default_realizations(sc.rain) == 1) {
+    throw InputError(
+        "", 0, "--realizations",
+        sc.rain.disaggregate
+            ? "method: " + std::string(method_name(sc.rain.disaggregate->method)) +
+                  " spreads the record the same way every time, so every realization would be "
+                  "the same run; use method: cascade, or leave --realizations out"
+            : "the record is used as read (no rain.disaggregate), so every realization would be "
+              "the same run; leave --realizations out");
+  }
+  return static_cast<std::size_t>(args.realizations);
+}
+
 int run_command(const RunArgs& args) {
   const Scenario sc = load_scenario_unless_stopped(args.scenario, overrides_of(args));
+  const std::size_t n = realizations_of(args, sc);
   // A period given in full is estimated before anything runs; an open one is watched as it runs.
   const bool period_known = sc.simulation.start && sc.simulation.end;
   if (!args.force && period_known) check_output_size(sc, *sc.simulation.start, *sc.simulation.end);
   const fs::path dir =
       args.out.empty() ? fs::path("out") / fs::path(args.scenario).stem() : fs::path(args.out);
-  // A long record is simulated while it is read; the output folder is made once the record
-  // has opened.
+  // The output folder is made once the record has opened.
   std::optional<OutputFolder> folder;
   std::optional<TimeseriesWriter> timeseries;
   std::optional<EventsWriter> events;
   SummaryBuilder summary(sc);
   RunResult result;
-  const RainSeries rain = load_rain_while(
-      sc.rain, args.rain,
-      [&](RainView& view) {
-        folder.emplace(dir);
-        timeseries.emplace(folder->open("timeseries.csv"), sc, !args.force && !period_known);
-        events.emplace(folder->open("events.csv"), sc);
-        ObserverList observers;
-        observers.add(*timeseries);
-        observers.add(*events);
-        observers.add(summary);
-        RunOptions options;
-        options.stop = &g_stop;
-        result = simulate(sc, view, observers, options);
-      },
-      &g_stop);
+  // The run whose records are written: the only one, or the first realization.
+  const auto run_written = [&](auto& rain, const RunOptions& options) {
+    folder.emplace(dir);
+    timeseries.emplace(folder->open("timeseries.csv"), sc, !args.force && !period_known);
+    events.emplace(folder->open("events.csv"), sc);
+    ObserverList observers;
+    observers.add(*timeseries);
+    observers.add(*events);
+    observers.add(summary);
+    result = simulate(sc, rain, observers, options);
+    return result;
+  };
+  RunOptions options;
+  options.stop = &g_stop;
+  RainSeries rain;
+  std::optional<RealizationSpread> spread;
+  if (n == 1) {
+    // A long record is simulated while it is read.
+    rain = load_rain_while(
+        sc.rain, args.rain, [&](RainView& view) { run_written(view, options); }, &g_stop);
+  } else {
+    const RainSeries as_read = load_rain_as_read(sc.rain, args.rain, &g_stop);
+    RealizationOptions realization_options;
+    realization_options.stop = &g_stop;
+    realization_options.run = [&](std::size_t k, const RainSeries& record, const RunOptions& o) {
+      if (k > 0) {
+        Observer none;
+        return simulate(sc, record, none, o);
+      }
+      rain = record;
+      return run_written(record, o);
+    };
+    spread = spread_of(run_realizations(sc, as_read, n, realization_options),
+                       sc.rain.disaggregate->seed);
+  }
   for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
   for (const std::string& w :
        coverage_warnings(month_coverage(rain, result.start, result.end, sc.site.utc_offset_s))) {
     spdlog::warn("{}", w);
   }
-  write_summary_json(folder->open("summary.json"), sc, rain, result, summary);
+  const RealizationSpread* realizations = spread ? &*spread : nullptr;
+  write_summary_json(folder->open("summary.json"), sc, rain, result, summary, realizations);
   folder->commit();
   if (!args.quiet) {
-    print_summary_table(std::cout, sc, rain, result, summary);
+    print_summary_table(std::cout, sc, rain, result, summary, realizations);
     std::cout << "wrote " << (dir / "timeseries.csv").string() << ", "
               << (dir / "events.csv").string() << ", " << (dir / "summary.json").string() << '\n';
   }
@@ -321,6 +360,11 @@ int main(int argc, char** argv) {
   run_cmd->add_option("--to", run.to, "end of the simulated period (ISO 8601)");
   run_cmd->add_flag("--quiet", run.quiet, "print nothing on success");
   run_cmd->add_flag("--force", run.force, "write the output even past the size limit (1 GB)");
+  run_cmd
+      ->add_option("--realizations", run.realizations,
+                   "disaggregations of a coarse record to run, seeds seed to seed + N - 1 "
+                   "(default 20 for method: cascade, else 1)")
+      ->check(CLI::Range(1, 10000));
 
   CheckArgs check;
   auto* check_cmd = app.add_subcommand("check", "validate a scenario and print its design figures");

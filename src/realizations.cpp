@@ -1,0 +1,129 @@
+#include "gutterwatt/realizations.hpp"
+
+#include <algorithm>
+#include <cassert>
+#include <cmath>
+#include <exception>
+#include <thread>
+
+#include "gutterwatt/disaggregation.hpp"
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/units.hpp"
+
+namespace gutterwatt {
+
+std::size_t default_realizations(const RainConfig& rain) {
+  return rain.disaggregate && is_random(rain.disaggregate->method) ? kDefaultRealizations : 1;
+}
+
+RealizationMetrics realization_metrics(const RunResult& result) {
+  const Accounts& a = result.totals;
+  RealizationMetrics m;
+  m.energy_Wh = a.electrical_J / kJoulesPerWh;
+  m.cycles = static_cast<double>(result.cycles);
+  m.reservoir_overflow_L = a.reservoir_overflow_m3 / kCubicMetresPerLitre;
+  m.dribble_L = a.dribble_m3 / kCubicMetresPerLitre;
+  return m;
+}
+
+double percentile(std::vector<double> values, double p) {
+  assert(!values.empty() && p >= 0.0 && p <= 1.0);
+  std::sort(values.begin(), values.end());
+  // Hyndman & Fan (1996) definition 7, 0-based: h = (n - 1) p.
+  const double h = static_cast<double>(values.size() - 1) * p;
+  const auto below = static_cast<std::size_t>(std::floor(h));
+  if (below + 1 >= values.size()) return values.back();
+  return values[below] + (h - static_cast<double>(below)) * (values[below + 1] - values[below]);
+}
+
+Spread spread_of(const std::vector<double>& values) {
+  return {percentile(values, 0.1), percentile(values, 0.5), percentile(values, 0.9)};
+}
+
+RealizationSpread spread_of(const std::vector<RealizationMetrics>& runs, std::uint64_t first_seed) {
+  const auto column = [&](double RealizationMetrics::*field) {
+    std::vector<double> values;
+    values.reserve(runs.size());
+    for (const RealizationMetrics& m : runs) values.push_back(m.*field);
+    return spread_of(values);
+  };
+  RealizationSpread s;
+  s.n = runs.size();
+  s.first_seed = first_seed;
+  s.energy_Wh = column(&RealizationMetrics::energy_Wh);
+  s.cycles = column(&RealizationMetrics::cycles);
+  s.reservoir_overflow_L = column(&RealizationMetrics::reservoir_overflow_L);
+  s.dribble_L = column(&RealizationMetrics::dribble_L);
+  return s;
+}
+
+std::vector<RealizationMetrics> run_realizations(const Scenario& scenario,
+                                                 const RainSeries& as_read, std::size_t n,
+                                                 const RealizationOptions& options) {
+  assert(n >= 1);
+  const RealizationRun run =
+      options.run ? options.run
+                  : RealizationRun([&](std::size_t, const RainSeries& rain, const RunOptions& o) {
+                      Observer none;
+                      return simulate(scenario, rain, none, o);
+                    });
+  const auto record_of = [&](std::size_t k) {
+    if (!scenario.rain.disaggregate) return as_read;
+    Disaggregation how = *scenario.rain.disaggregate;
+    how.seed = realization_seed(how.seed, k);
+    return disaggregate(as_read, how);
+  };
+
+  const unsigned cores = std::max(1u, std::thread::hardware_concurrency());
+  const std::size_t jobs =
+      std::max<std::size_t>(1, std::min<std::size_t>(options.jobs > 0 ? options.jobs : cores, n));
+  // Workers take no more realizations once `halt` is set: for the user's stop and for any error.
+  // A realization under way stops only for the user's stop.
+  std::atomic<bool> halt{false};
+  std::atomic<std::size_t> next{0};
+  std::vector<RealizationMetrics> metrics(n);
+  std::vector<std::exception_ptr> errors(n);
+  const auto user_stop = [&] { return options.stop != nullptr && options.stop->load(); };
+  const auto worker = [&] {
+    RunOptions run_options;
+    run_options.stop = options.stop;
+    for (;;) {
+      if (user_stop()) halt.store(true);
+      if (halt.load()) return;
+      const std::size_t k = next.fetch_add(1);
+      if (k >= n) return;
+      try {
+        metrics[k] = realization_metrics(run(k, record_of(k), run_options));
+      } catch (...) {
+        errors[k] = std::current_exception();
+        halt.store(true);
+      }
+    }
+  };
+  std::vector<std::thread> threads;
+  try {
+    for (std::size_t j = 1; j < jobs; ++j) threads.emplace_back(worker);
+  } catch (...) {
+    halt.store(true);
+    for (std::thread& t : threads) t.join();
+    throw;
+  }
+  worker();
+  for (std::thread& t : threads) t.join();
+  // Any other error comes before an Interrupted.
+  std::exception_ptr interrupted;
+  for (const std::exception_ptr& e : errors) {
+    if (!e) continue;
+    try {
+      std::rethrow_exception(e);
+    } catch (const Interrupted&) {
+      if (!interrupted) interrupted = e;
+    } catch (...) {
+      throw;
+    }
+  }
+  if (interrupted || user_stop()) throw Interrupted();
+  return metrics;
+}
+
+}  // namespace gutterwatt

@@ -1,0 +1,141 @@
+#include "gutterwatt/realizations.hpp"
+
+#include <gtest/gtest.h>
+
+#include <atomic>
+#include <vector>
+
+#include "gutterwatt/disaggregation.hpp"
+#include "gutterwatt/error.hpp"
+#include "test_support.hpp"
+
+namespace gutterwatt {
+namespace {
+
+using test_support::kStart;
+
+// source: Hyndman & Fan (1996), definition 7, worked by hand: for 1..10, h = 9p + 1, so
+// P10 = x1 + 0.9 (x2 - x1) = 1.9, P50 = x5 + 0.5 = 5.5, P90 = x9 + 0.1 = 9.1 (also what R's
+// quantile() gives by default, from memory).
+TEST(Realizations, PercentilesFollowHyndmanAndFanDefinitionSeven) {
+  const std::vector<double> one_to_ten = {10, 9, 8, 7, 6, 5, 4, 3, 2, 1};
+  EXPECT_DOUBLE_EQ(percentile(one_to_ten, 0.1), 1.9);
+  EXPECT_DOUBLE_EQ(percentile(one_to_ten, 0.5), 5.5);
+  EXPECT_DOUBLE_EQ(percentile(one_to_ten, 0.9), 9.1);
+  EXPECT_DOUBLE_EQ(percentile(one_to_ten, 0.0), 1.0);
+  EXPECT_DOUBLE_EQ(percentile(one_to_ten, 1.0), 10.0);
+  // 3, 1, 4, 1, 5 sorted is 1, 1, 3, 4, 5: h = 4p + 1; P10 at h = 1.4 is 1, P90 at h = 4.6 is
+  // 4 + 0.6 (5 - 4) = 4.6.
+  const Spread s = spread_of(std::vector<double>{3, 1, 4, 1, 5});
+  EXPECT_DOUBLE_EQ(s.p10, 1.0);
+  EXPECT_DOUBLE_EQ(s.p50, 3.0);
+  EXPECT_DOUBLE_EQ(s.p90, 4.6);
+  const Spread single = spread_of(std::vector<double>{7.25});
+  EXPECT_EQ(single.p10, 7.25);
+  EXPECT_EQ(single.p90, 7.25);
+}
+
+TEST(Realizations, DefaultToTwentyForARandomDisaggregationOnly) {
+  RainConfig rain;
+  EXPECT_EQ(default_realizations(rain), 1u);
+  rain.disaggregate.emplace();
+  rain.disaggregate->method = DisaggregationMethod::nrcs_ii;
+  EXPECT_EQ(default_realizations(rain), 1u);
+  rain.disaggregate->method = DisaggregationMethod::cascade;
+  EXPECT_EQ(default_realizations(rain), 20u);
+}
+
+// An invented coarse record: three wet hours in a six-hour run, spread to 5 min by the cascade.
+Scenario hourly_scenario() {
+  Scenario s = test_support::make_scenario();
+  s.rain.disaggregate.emplace();
+  s.rain.disaggregate->method = DisaggregationMethod::cascade;
+  s.rain.disaggregate->seed = 11;
+  return s;
+}
+
+RainSeries hourly_record() {
+  RainSeries rain;
+  rain.covered = {{kStart, kStart + 6 * 3600}};
+  rain.step_s = 3600;
+  rain.pulses = {{kStart + 3600, kStart + 7200, 3e-3},
+                 {kStart + 7200, kStart + 10800, 6e-3},
+                 {kStart + 14400, kStart + 18000, 10e-3}};
+  rain.total_depth_m = sum_depths_m(rain.pulses);
+  return rain;
+}
+
+void expect_same(const RealizationMetrics& a, const RealizationMetrics& b) {
+  EXPECT_EQ(a.energy_Wh, b.energy_Wh);
+  EXPECT_EQ(a.cycles, b.cycles);
+  EXPECT_EQ(a.reservoir_overflow_L, b.reservoir_overflow_L);
+  EXPECT_EQ(a.dribble_L, b.dribble_L);
+}
+
+TEST(Realizations, GiveTheSameResultsWhateverTheNumberOfThreads) {
+  const Scenario s = hourly_scenario();
+  const RainSeries as_read = hourly_record();
+  RealizationOptions one;
+  one.jobs = 1;
+  RealizationOptions three;
+  three.jobs = 3;
+  const std::vector<RealizationMetrics> serial = run_realizations(s, as_read, 4, one);
+  const std::vector<RealizationMetrics> parallel = run_realizations(s, as_read, 4, three);
+  ASSERT_EQ(serial.size(), 4u);
+  ASSERT_EQ(parallel.size(), 4u);
+  for (std::size_t k = 0; k < 4; ++k) expect_same(serial[k], parallel[k]);
+  // Realization 0 is the single run with the scenario's seed; the others differ from it.
+  Observer none;
+  const RunResult single = simulate(s, disaggregate(as_read, *s.rain.disaggregate), none);
+  expect_same(serial[0], realization_metrics(single));
+  bool differs = false;
+  for (std::size_t k = 1; k < 4; ++k)
+    differs = differs || serial[k].energy_Wh != serial[0].energy_Wh;
+  EXPECT_TRUE(differs);
+}
+
+TEST(Realizations, RunEachRealizationOnItsOwnSeed) {
+  const Scenario s = hourly_scenario();
+  const RainSeries as_read = hourly_record();
+  RealizationOptions options;
+  options.jobs = 2;
+  std::vector<double> first_depth(3, 0.0);
+  options.run = [&](std::size_t k, const RainSeries& rain, const RunOptions&) {
+    first_depth[k] = rain.pulses.front().depth_m;
+    EXPECT_EQ(rain.total_depth_m, as_read.total_depth_m);
+    return RunResult{};
+  };
+  run_realizations(s, as_read, 3, options);
+  for (std::size_t k = 0; k < 3; ++k) {
+    Disaggregation how = *s.rain.disaggregate;
+    how.seed = 11 + k;
+    EXPECT_EQ(first_depth[k], disaggregate(as_read, how).pulses.front().depth_m) << k;
+  }
+}
+
+TEST(Realizations, ThrowTheErrorOfAFailedRealization) {
+  const Scenario s = hourly_scenario();
+  RealizationOptions options;
+  options.jobs = 2;
+  options.run = [](std::size_t k, const RainSeries&, const RunOptions&) {
+    if (k == 2) throw InputError("rain.csv", 3, "rain_mm", "invented failure");
+    return RunResult{};
+  };
+  try {
+    run_realizations(s, hourly_record(), 5, options);
+    FAIL() << "no error";
+  } catch (const InputError& e) {
+    EXPECT_STREQ(e.what(), "rain.csv:3: rain_mm: invented failure");
+  }
+}
+
+TEST(Realizations, StopWhenAsked) {
+  const Scenario s = hourly_scenario();
+  std::atomic<bool> stop{true};
+  RealizationOptions options;
+  options.stop = &stop;
+  EXPECT_THROW(run_realizations(s, hourly_record(), 3, options), Interrupted);
+}
+
+}  // namespace
+}  // namespace gutterwatt
