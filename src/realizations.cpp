@@ -4,6 +4,7 @@
 #include <cassert>
 #include <cmath>
 #include <exception>
+#include <string>
 #include <thread>
 
 #include "gutterwatt/disaggregation.hpp"
@@ -14,6 +15,21 @@ namespace gutterwatt {
 
 std::size_t default_realizations(const RainConfig& rain) {
   return rain.disaggregate && is_random(rain.disaggregate->method) ? kDefaultRealizations : 1;
+}
+
+std::size_t realization_count(std::size_t asked, const RainConfig& rain) {
+  if (asked == 0) return default_realizations(rain);
+  if (asked > 1 && default_realizations(rain) == 1) {
+    throw InputError(
+        "", 0, "--realizations",
+        rain.disaggregate
+            ? "method: " + std::string(method_name(rain.disaggregate->method)) +
+                  " spreads the record the same way every time, so every realization would be "
+                  "the same run; use method: cascade, or leave --realizations out"
+            : "the record is used as read (no rain.disaggregate), so every realization would be "
+              "the same run; leave --realizations out");
+  }
+  return asked;
 }
 
 RealizationMetrics realization_metrics(const RunResult& result) {

@@ -175,19 +175,40 @@ std::string status_name(SweepStatus status) {
   return "ok";
 }
 
-/// Runs one combination. Interrupted (and anything unexpected) propagates.
-SweepRow run_combination(const SweepPlan& plan, std::size_t index, const RainSeries& rain,
-                         const SweepOptions& options, const RunOptions& run_options) {
+/// The metrics of several runs: each metric's median (Hyndman & Fan type 7, as realizations).
+SweepMetrics median_metrics(const std::vector<SweepMetrics>& runs) {
+  SweepMetrics out;
+  for (const MetricColumn& m : kMetrics) {
+    std::vector<double> values;
+    for (const SweepMetrics& run : runs) values.push_back(run.*(m.member));
+    out.*(m.member) = percentile(values, 0.5);
+  }
+  return out;
+}
+
+/// Runs one combination on each record. Interrupted (and anything unexpected) propagates.
+SweepRow run_combination(const SweepPlan& plan, std::size_t index,
+                         std::span<const RainSeries> records, const SweepOptions& options,
+                         const RunOptions& run_options) {
   SweepRow row;
   row.values = plan.combinations[index];
   try {
     const Scenario scenario = parse_scenario(plan.scenario_text, plan.scenario_label, plan.base_dir,
                                              plan.overrides(index));
-    SummaryBuilder summary(scenario);
-    const RunResult result = options.simulate
-                                 ? options.simulate(scenario, rain, summary, run_options)
-                                 : simulate(scenario, rain, summary, run_options);
-    row.metrics = sweep_metrics(result, summary);
+    std::vector<SweepMetrics> runs;
+    for (const RainSeries& rain : records) {
+      SummaryBuilder summary(scenario);
+      const RunResult result = options.simulate
+                                   ? options.simulate(scenario, rain, summary, run_options)
+                                   : simulate(scenario, rain, summary, run_options);
+      runs.push_back(sweep_metrics(result, summary));
+    }
+    row.metrics = runs.size() == 1 ? runs.front() : median_metrics(runs);
+    if (runs.size() > 1) {
+      std::vector<double> ranked;
+      for (const SweepMetrics& run : runs) ranked.push_back(sweep_metric(run, plan.rank.metric));
+      row.rank_spread = spread_of(ranked);
+    }
   } catch (const InputError& e) {
     row.status = SweepStatus::skipped;
     row.reason = e.what();
@@ -355,11 +376,13 @@ SweepPlan plan_sweep(std::string scenario_text, const std::string& scenario_labe
   return plan;
 }
 
-SweepResult run_sweep(const SweepPlan& plan, const RainSeries& rain, const SweepOptions& options) {
+SweepResult run_sweep(const SweepPlan& plan, std::span<const RainSeries> realizations,
+                      const SweepOptions& options) {
   using Clock = std::chrono::steady_clock;
   const auto started = Clock::now();
   const std::size_t n = plan.combinations.size();
   SweepResult result;
+  result.realizations = realizations.size();
   result.rows.resize(n);
 
   const unsigned cores = std::max(1u, std::thread::hardware_concurrency());
@@ -384,7 +407,7 @@ SweepResult run_sweep(const SweepPlan& plan, const RainSeries& rain, const Sweep
       while (!halt.load() && !user_stop()) {
         const std::size_t i = next.fetch_add(1);
         if (i >= n) break;
-        SweepRow row = run_combination(plan, i, rain, options, run_options);
+        SweepRow row = run_combination(plan, i, realizations, options, run_options);
         const std::lock_guard<std::mutex> lock(mutex);
         result.rows[i] = std::move(row);
         ++done;
@@ -447,6 +470,13 @@ SweepResult run_sweep(const SweepPlan& plan, const RainSeries& rain, const Sweep
     if (row.status == SweepStatus::failed) ++result.failed;
   }
   result.ranked = rank_rows(result.rows, plan.rank);
+  if (!result.ranked.empty() && result.rows[result.ranked.front()].rank_spread) {
+    const Spread best = *result.rows[result.ranked.front()].rank_spread;
+    for (const std::size_t i : result.ranked) {
+      const double median = result.rows[i].rank_spread->p50;
+      result.rows[i].within_best = median >= best.p10 && median <= best.p90;
+    }
+  }
   return result;
 }
 
@@ -503,6 +533,10 @@ void write_sweep_csv(std::ostream& out, const SweepPlan& plan, const SweepResult
   std::string header;
   for (const SweepAxis& axis : plan.axes) header += csv_cell(axis.key) + ",";
   for (const MetricColumn& m : kMetrics) header += std::string(m.name) + ",";
+  const bool spread = result.realizations > 1;
+  if (spread) {
+    header += plan.rank.metric + "_p10," + plan.rank.metric + "_p90,within_best_range,";
+  }
   header.back() = '\n';
   out << header;
   for (const std::size_t i : result.ranked) {
@@ -510,6 +544,10 @@ void write_sweep_csv(std::ostream& out, const SweepPlan& plan, const SweepResult
     std::string line;
     for (const std::string& v : row.values) line += csv_cell(v) + ",";
     for (const MetricColumn& m : kMetrics) line += format_metric(row.metrics.*(m.member)) + ",";
+    if (spread) {
+      line += format_metric(row.rank_spread->p10) + "," + format_metric(row.rank_spread->p90) +
+              (row.within_best ? ",1," : ",0,");
+    }
     line.back() = '\n';
     out << line;
   }
@@ -545,6 +583,10 @@ void write_sweep_json(std::ostream& out, const SweepPlan& plan, const SweepResul
   j["ran"] = result.ranked.size();
   j["skipped"] = result.skipped;
   j["failed"] = result.failed;
+  if (result.realizations > 1) {
+    j["realizations"] = result.realizations;
+    j["percentiles"] = kPercentileDefinition;
+  }
   // File names and --set values may hold any bytes: those that are not UTF-8 are shown as U+FFFD.
   out << j.dump(2, ' ', false, decltype(j)::error_handler_t::replace) << '\n';
 }
@@ -556,9 +598,14 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
   const MetricColumn* rank = find_metric(plan.rank.metric);
   if (std::find(shown.begin(), shown.end(), rank) == shown.end()) shown.push_back(rank);
 
+  const bool spread = result.realizations > 1;
   std::vector<std::string> header{"#"};
   for (const SweepAxis& axis : plan.axes) header.push_back(axis.key);
   for (const MetricColumn* m : shown) header.emplace_back(m->name);
+  if (spread) {
+    header.push_back(plan.rank.metric + " P10 to P90");
+    header.emplace_back("~best");
+  }
   std::vector<std::vector<std::string>> cells;
   const std::size_t rows = std::min(top, result.ranked.size());
   for (std::size_t r = 0; r < rows; ++r) {
@@ -567,6 +614,11 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
     line.insert(line.end(), row.values.begin(), row.values.end());
     for (const MetricColumn* m : shown) {
       line.push_back(detail::fixed_trimmed(row.metrics.*(m->member), m->table_decimals));
+    }
+    if (spread) {
+      line.push_back(detail::fixed_trimmed(row.rank_spread->p10, rank->table_decimals) + " to " +
+                     detail::fixed_trimmed(row.rank_spread->p90, rank->table_decimals));
+      line.emplace_back(row.within_best ? "~" : "");
     }
     cells.push_back(std::move(line));
   }
@@ -589,6 +641,12 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
   out << plan.base.site.name << ": " << result.ranked.size() << " of " << result.rows.size()
       << " combinations ran, best first by " << plan.rank.metric << " ("
       << (plan.rank.descending ? "highest" : "lowest") << " first)\n";
+  if (spread) {
+    out << "  metrics are medians over " << result.realizations
+        << " realizations of the record; ~ marks rows whose median lies inside the best row's "
+           "P10 to P90 ("
+        << kPercentileDefinition << ")\n";
+  }
   print(header);
   for (const auto& line : cells) print(line);
   if (result.ranked.size() > rows) {
@@ -597,9 +655,9 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
 }
 
 SweepResult run_sweep_into(const std::filesystem::path& dir, const SweepPlan& plan,
-                           const RainSeries& rain, const SweepOptions& options) {
+                           std::span<const RainSeries> realizations, const SweepOptions& options) {
   OutputFolder folder(dir);
-  SweepResult result = run_sweep(plan, rain, options);
+  SweepResult result = run_sweep(plan, realizations, options);
   // Nothing ran: earlier results are worth more than an empty table.
   if (result.ranked.empty()) return result;
   write_sweep_csv(folder.open("sweep.csv"), plan, result);

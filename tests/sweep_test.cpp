@@ -4,6 +4,7 @@
 #include <unistd.h>
 
 #include <charconv>
+#include <cmath>
 #include <fstream>
 #include <nlohmann/json.hpp>
 #include <set>
@@ -361,6 +362,54 @@ TEST(Sweep, ListsACombinationWhoseSimulationFailsAndGoesOn) {
   EXPECT_EQ(read_file(dir / "skipped.csv"),
             "nozzle.diameter_mm,status,reason\n"
             "5,failed,\"simulation failed at 2025-06-01T06:00: invented failure, x\"\n");
+}
+
+// Three invented realizations per combination, energies chosen by hand; percentiles by Hyndman &
+// Fan (1996) definition 7 for n = 3 (h = 2p + 1): P10 = x1 + 0.2 (x2 - x1), P90 = x2 + 0.8 (x3 -
+// x2).
+TEST(Sweep, RanksRealizationsByTheMedianAndMarksRowsInsideTheBestRange) {
+  const SweepPlan plan = plan_of({"nozzle.diameter_mm=4,5,6"});
+  // Realization k is told apart by its total depth, k + 1.
+  std::vector<RainSeries> records(3);
+  for (std::size_t k = 0; k < 3; ++k) records[k].total_depth_m = static_cast<double>(k + 1);
+  SweepOptions options;
+  options.simulate = [](const Scenario& s, const RainSeries& rain, Observer&, const RunOptions&) {
+    const auto k = static_cast<std::size_t>(rain.total_depth_m) - 1;
+    const int mm = static_cast<int>(std::lround(s.nozzle.diameter_m * 1e3));
+    const double energy_Wh[3][3] = {{12, 10, 11}, {20, 9, 11.5}, {3, 1, 2}};  // 4, 5, 6 mm
+    RunResult r;
+    r.totals.electrical_J = energy_Wh[mm - 4][k] * kJoulesPerWh;
+    return r;
+  };
+  const TempDir temp("realizations");
+  const SweepResult result = run_sweep_into(temp.path(), plan, records, options);
+  ASSERT_EQ(result.ranked.size(), 3u);
+  EXPECT_EQ(result.realizations, 3u);
+  // Medians 11 (4 mm), 11.5 (5 mm), 2 (6 mm): 5 mm is best, its P10 to P90 is 9.5 to 18.3.
+  const SweepRow& best = result.rows[result.ranked[0]];
+  EXPECT_EQ(best.values[0], "5");
+  EXPECT_DOUBLE_EQ(best.metrics.energy_Wh, 11.5);
+  EXPECT_DOUBLE_EQ(best.rank_spread->p10, 9.5);
+  EXPECT_DOUBLE_EQ(best.rank_spread->p90, 18.3);
+  EXPECT_EQ(result.rows[result.ranked[1]].values[0], "4");
+  EXPECT_DOUBLE_EQ(result.rows[result.ranked[1]].rank_spread->p10, 10.2);
+  EXPECT_TRUE(best.within_best);
+  EXPECT_TRUE(result.rows[result.ranked[1]].within_best);
+  EXPECT_FALSE(result.rows[result.ranked[2]].within_best);
+  const std::vector<std::string> csv = lines_of(read_file(temp.path() / "sweep.csv"));
+  ASSERT_EQ(csv.size(), 4u);
+  EXPECT_TRUE(csv[0].ends_with(",energy_Wh_p10,energy_Wh_p90,within_best_range")) << csv[0];
+  EXPECT_TRUE(csv[1].starts_with("5,11.5,")) << csv[1];
+  EXPECT_TRUE(csv[1].ends_with(",9.5,18.3,1")) << csv[1];
+  EXPECT_TRUE(csv[3].ends_with(",0")) << csv[3];
+  const nlohmann::json j = nlohmann::json::parse(read_file(temp.path() / "sweep.json"));
+  EXPECT_EQ(j["realizations"], 3);
+  std::ostringstream table;
+  print_sweep_table(table, plan, result);
+  EXPECT_NE(table.str().find("metrics are medians over 3 realizations of the record; ~ marks rows "
+                             "whose median lies inside the best row's P10 to P90"),
+            std::string::npos)
+      << table.str();
 }
 
 TEST(Sweep, InterruptedSweepLeavesNoFilesAndKeepsEarlierResults) {

@@ -24,6 +24,11 @@ inline constexpr std::size_t kDefaultRealizations = 20;
 /// same every time.
 std::size_t default_realizations(const RainConfig& rain);
 
+/// The realizations to run when `asked` were asked for (0: not asked, the default). Throws
+/// InputError naming `--realizations` when more than one is asked of a record that comes out the
+/// same every time.
+std::size_t realization_count(std::size_t asked, const RainConfig& rain);
+
 /// What each realization reports.
 struct RealizationMetrics {
   double energy_Wh = 0.0;  ///< electrical, out of the generator

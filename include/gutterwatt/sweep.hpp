@@ -6,13 +6,16 @@
 #include <cstddef>
 #include <filesystem>
 #include <functional>
+#include <optional>
 #include <ostream>
+#include <span>
 #include <string>
 #include <string_view>
 #include <vector>
 
 #include "gutterwatt/output.hpp"
 #include "gutterwatt/rain_input.hpp"
+#include "gutterwatt/realizations.hpp"
 #include "gutterwatt/scenario.hpp"
 #include "gutterwatt/simulation.hpp"
 
@@ -90,8 +93,13 @@ enum class SweepStatus { ok, skipped, failed };
 struct SweepRow {
   std::vector<std::string> values;  ///< one per axis
   SweepStatus status = SweepStatus::ok;
-  SweepMetrics metrics;
+  SweepMetrics metrics;  ///< over several realizations, each metric's median
   std::string reason;
+  /// Several realizations: P10, median and P90 of the rank metric over them.
+  std::optional<Spread> rank_spread;
+  /// Several realizations: the rank metric's median lies inside the best row's P10 to P90, so
+  /// the row cannot be told from the best by this record.
+  bool within_best = false;
 };
 
 /// A checked sweep, ready to run: the scenario text is parsed once per combination with the
@@ -146,18 +154,29 @@ struct SweepOptions {
 /// The outcome of a sweep: `rows` in combination order, `ranked` the indices of the rows that
 /// ran, best first (ties in combination order).
 struct SweepResult {
+  std::size_t realizations = 1;  ///< records each combination ran on
   std::vector<SweepRow> rows;
   std::vector<std::size_t> ranked;
   std::size_t skipped = 0;
   std::size_t failed = 0;
 };
 
-/// Runs every combination of `plan` on `rain` (shared read-only by the workers). An InputError
+/// Runs every combination of `plan` on each record of `realizations` (at least one; shared
+/// read-only by the workers, which share out the combinations). With several records (the
+/// realizations of a disaggregated record) a row's metrics are the medians over them, it carries
+/// the P10 to P90 of the rank metric, rows are ranked by the median and those whose median lies
+/// inside the best row's P10 to P90 are marked `within_best` (the best row too). An InputError
 /// of one combination (at load or from the simulation) marks it skipped and a SimulationError
 /// failed; neither stops the sweep. Throws Interrupted soon after `options.stop` is set, and
 /// rethrows any other error of a worker once all workers have stopped.
-SweepResult run_sweep(const SweepPlan& plan, const RainSeries& rain,
+SweepResult run_sweep(const SweepPlan& plan, std::span<const RainSeries> realizations,
                       const SweepOptions& options = {});
+
+/// run_sweep on one record.
+inline SweepResult run_sweep(const SweepPlan& plan, const RainSeries& rain,
+                             const SweepOptions& options = {}) {
+  return run_sweep(plan, std::span<const RainSeries>(&rain, 1), options);
+}
 
 /// Indices of the rows that ran, best first by `rank`, ties in combination order.
 std::vector<std::size_t> rank_rows(const std::vector<SweepRow>& rows, const SweepRank& rank);
@@ -169,13 +188,15 @@ std::vector<std::size_t> rank_rows(const std::vector<SweepRow>& rows, const Swee
 /// KEY is the highest tried (V): extend the range").
 std::vector<std::string> sweep_warnings(const SweepPlan& plan, const SweepResult& result);
 
-/// sweep.csv: the varied keys, then the metrics, one row per combination that ran, best first.
+/// sweep.csv: the varied keys, then the metrics, one row per combination that ran, best first;
+/// after several realizations also `<rank>_p10`, `<rank>_p90` and `within_best_range` (1 or 0).
 void write_sweep_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result);
 
 /// skipped.csv: the varied keys, `status` (skipped or failed) and `reason`, in combination order.
 void write_skipped_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result);
 
-/// sweep.json: scenario, site, vary, set, rank, order, combinations, ran, skipped, failed.
+/// sweep.json: scenario, site, vary, set, rank, order, combinations, ran, skipped, failed, and
+/// after several realizations `realizations` and `percentiles`.
 void write_sweep_json(std::ostream& out, const SweepPlan& plan, const SweepResult& result);
 
 /// The best `top` rows as a short table for the terminal.
@@ -187,7 +208,14 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
 /// failed sweep, or one in which no combination ran, writes nothing and leaves earlier results
 /// untouched.
 SweepResult run_sweep_into(const std::filesystem::path& dir, const SweepPlan& plan,
-                           const RainSeries& rain, const SweepOptions& options = {});
+                           std::span<const RainSeries> realizations,
+                           const SweepOptions& options = {});
+
+/// run_sweep_into on one record.
+inline SweepResult run_sweep_into(const std::filesystem::path& dir, const SweepPlan& plan,
+                                  const RainSeries& rain, const SweepOptions& options = {}) {
+  return run_sweep_into(dir, plan, std::span<const RainSeries>(&rain, 1), options);
+}
 
 /// One line of progress for a terminal, e.g. `[#######.............]  12/40  30%  0:42 left`;
 /// no estimate before the first combination has finished.

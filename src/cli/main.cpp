@@ -123,7 +123,7 @@ struct RunArgs {
   std::string to;
   bool quiet = false;
   bool force = false;
-  int realizations = 0;  ///< 0: the default for the record
+  unsigned realizations = 0;  ///< 0: the default for the record
 };
 
 // Applies --from/--to as overrides so they are checked like any scenario key.
@@ -134,25 +134,9 @@ std::vector<std::string> overrides_of(const RunArgs& a) {
   return o;
 }
 
-// The number of realizations `run` makes: --realizations, else the default for the record.
-std::size_t realizations_of(const RunArgs& args, const Scenario& sc) {
-  if (args.realizations == 0) return default_realizations(sc.rain);
-  if (args.realizations > 1 && default_realizations(sc.rain) == 1) {
-    throw InputError(
-        "", 0, "--realizations",
-        sc.rain.disaggregate
-            ? "method: " + std::string(method_name(sc.rain.disaggregate->method)) +
-                  " spreads the record the same way every time, so every realization would be "
-                  "the same run; use method: cascade, or leave --realizations out"
-            : "the record is used as read (no rain.disaggregate), so every realization would be "
-              "the same run; leave --realizations out");
-  }
-  return static_cast<std::size_t>(args.realizations);
-}
-
 int run_command(const RunArgs& args) {
   const Scenario sc = load_scenario_unless_stopped(args.scenario, overrides_of(args));
-  const std::size_t n = realizations_of(args, sc);
+  const std::size_t n = realization_count(args.realizations, sc.rain);
   // A period given in full is estimated before anything runs; an open one is watched as it runs.
   const bool period_known = sc.simulation.start && sc.simulation.end;
   if (!args.force && period_known) check_output_size(sc, *sc.simulation.start, *sc.simulation.end);
@@ -386,6 +370,11 @@ int main(int argc, char** argv) {
                         "--rank=-KEY (highest first) or --rank=+KEY (lowest first)");
   sweep_cmd->add_option("--out", sweep.out, "output folder")->required();
   sweep_cmd->add_flag("--quiet", sweep.quiet, "print nothing on success");
+  sweep_cmd
+      ->add_option("--realizations", sweep.realizations,
+                   "disaggregations of a coarse record each combination runs on; rank by the "
+                   "median (default 20 for method: cascade, else 1)")
+      ->check(CLI::Range(1, 10000));
 
   std::string report_dir;
   auto* report_cmd =

@@ -8,6 +8,7 @@
 #include <iostream>
 
 #include "../detail.hpp"
+#include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/rain_files.hpp"
 #include "gutterwatt/sweep.hpp"
@@ -63,8 +64,20 @@ int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop) {
       plan_sweep(read_scenario_text(args.scenario), args.scenario,
                  fs::path(args.scenario).parent_path(), args.vary, args.set, args.rank);
   if (stop.load()) throw Interrupted();  // a signal while the scenario was parsed
-  const RainSeries rain = load_rain(plan.base.rain, {}, &stop);
-  for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
+  const std::size_t n = realization_count(args.realizations, plan.base.rain);
+  // The record is read once; realization k is its disaggregation with the seed seed + k.
+  const RainSeries as_read = load_rain_as_read(plan.base.rain, {}, &stop);
+  std::vector<RainSeries> records;
+  for (std::size_t k = 0; k < n; ++k) {
+    if (!plan.base.rain.disaggregate) {
+      records.push_back(as_read);
+      continue;
+    }
+    Disaggregation how = *plan.base.rain.disaggregate;
+    how.seed = realization_seed(how.seed, k);
+    records.push_back(disaggregate(as_read, how));
+  }
+  for (const std::string& w : records.front().warnings) spdlog::warn("{}", w);
 
   SweepOptions options;
   options.jobs = args.jobs;
@@ -73,7 +86,7 @@ int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop) {
   {
     ProgressBar bar;
     if (bar.enabled()) options.progress = [&bar](const SweepProgress& p) { bar.draw(p); };
-    result = run_sweep_into(args.out, plan, rain, options);
+    result = run_sweep_into(args.out, plan, records, options);
   }
 
   const fs::path dir(args.out);

@@ -15,6 +15,7 @@ struct SweepArgs {
   std::string rank = "energy_Wh";  ///< `--rank [-|+]METRIC`
   std::string out;                 ///< `--out DIR`, required
   bool quiet = false;              ///< `--quiet`: print nothing on stdout on success
+  unsigned realizations = 0;       ///< `--realizations N`; 0: the default for the record
 };
 
 /// Runs the sweep, writes DIR/sweep.csv, DIR/skipped.csv and DIR/sweep.json, reports skipped and
