@@ -5,6 +5,8 @@
 #include <charconv>
 #include <cmath>
 #include <cstdio>
+#include <sstream>
+#include <string>
 
 #include "detail.hpp"
 #include "gutterwatt/units.hpp"
@@ -145,9 +147,38 @@ std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offse
     parsed.has_offset = true;
     parsed.offset_s = *offset;
   }
-  const std::int64_t local = days * kDay_s + hour * 3600 + minute * 60 + second + round_up;
-  parsed.instant = local - parsed.offset_s;
+  parsed.local = days * kDay_s + hour * 3600 + minute * 60 + second + round_up;
+  parsed.instant = parsed.local - parsed.offset_s;
   return parsed;
+}
+
+std::optional<ParsedTime> parse_formatted(std::string_view text, const std::string& format,
+                                          int default_offset_s) {
+  // One stream per thread, reused: this runs once per row of a record.
+  thread_local std::istringstream in;
+  in.clear();
+  in.str(std::string(text));
+  date::local_seconds local{};
+  std::string* const no_abbreviation = nullptr;
+  std::chrono::minutes offset{0};
+  date::from_stream(in, format.c_str(), local, no_abbreviation, &offset);
+  if (in.fail() || in.peek() != std::char_traits<char>::eof()) return std::nullopt;
+  ParsedTime parsed;
+  parsed.local = local.time_since_epoch().count();
+  parsed.has_offset = format_has_offset(format);
+  parsed.offset_s = parsed.has_offset ? static_cast<int>(offset.count()) * 60 : default_offset_s;
+  parsed.instant = parsed.local - parsed.offset_s;
+  return parsed;
+}
+
+bool format_has_offset(std::string_view format) {
+  for (std::size_t i = 0; i + 1 < format.size(); ++i) {
+    if (format[i] != '%') continue;
+    const std::string_view rest = format.substr(i + 1);
+    if (rest.starts_with("z") || rest.starts_with("Ez") || rest.starts_with("Oz")) return true;
+    ++i;  // `%%` and every other conversion
+  }
+  return false;
 }
 
 std::string format_iso8601(Instant instant, int offset_s) {

@@ -278,6 +278,30 @@ Disaggregation& disaggregation(Scenario& s) {
   return *s.rain.disaggregate;
 }
 
+/// Most title lines rain.skip_lines passes over: a logger writes a few, never a thousand.
+constexpr double kMaxSkipLines = 1000.0;
+
+/// rain.where: a section of column names and the text each must hold for a row to be kept.
+void apply_where(const Value& v, Scenario& s) {
+  if (!v.node().IsMap() || v.node().size() == 0) {
+    v.fail("expected a section of columns and values such as {location: Seattle}, got " + v.got());
+  }
+  auto& where = s.rain.series.where;
+  where.clear();
+  for (auto it = v.node().begin(); it != v.node().end(); ++it) {
+    if (!it->first.IsScalar()) v.fail("expected a column name, got a section or a list");
+    const std::string& column = it->first.Scalar();
+    const bool from_override = v.label() == kOverrideLabel || it->first.Mark().is_null();
+    const Value item(it->second, v.path() + "." + column,
+                     from_override ? kOverrideLabel : v.label(),
+                     from_override ? 0 : it->first.Mark().line + 1);
+    for (const auto& [earlier, value] : where) {
+      if (earlier == column) item.fail("duplicate column");
+    }
+    where.emplace_back(column, item.text());
+  }
+}
+
 /// rain.disaggregate, a small section inside rain: its keys are read and checked here, with the
 /// same messages as the loader's. rain.format comes before it in the schema, so it is known here.
 void apply_disaggregate(const Value& v, Scenario& s) {
@@ -434,6 +458,31 @@ const std::vector<Section>& schema() {
            {"step", kOptional, [](V v, S s) { s.rain.series.step_s = v.duration_s(kPositive); }},
            {"utc_offset", kOptional,
             [](V v, S s) { s.rain.series.utc_offset_s = v.utc_offset_s(); }},
+           {"time_format", kOptional,
+            [](V v, S s) {
+              s.rain.series.time_format = v.text();
+              v.expect(s.rain.series.time_format.find('%') != std::string::npos,
+                       "expected a strftime-style format such as %m/%d/%Y %I:%M %p");
+            }},
+           {"delimiter", kOptional,
+            [](V v, S s) {
+              const std::string& text = v.raw();
+              if (text != "," && text != ";" && text != "tab") {
+                v.fail("expected \",\", \";\" or tab, got " + v.got());
+              }
+              s.rain.series.delimiter = text == "tab" ? '\t' : text.front();
+            }},
+           {"decimal", kOptional,
+            [](V v, S s) {
+              s.rain.series.decimal = v.choice<char>({{".", '.'}, {",", ','}});
+            }},
+           {"skip_lines", kOptional,
+            [](V v, S s) {
+              const double lines = v.number(between(0.0, kMaxSkipLines));
+              v.expect(lines == std::floor(lines), "must be a whole number of lines");
+              s.rain.series.skip_lines = static_cast<int>(lines);
+            }},
+           {"where", kOptional, apply_where},
            {"tip_depth", kOptional,
             [](V v, S s) { s.rain.tips.tip_depth_m = v.number(kPositive) * s.rain.series.unit_m; }},
            {"tip_cap", kOptional,

@@ -25,6 +25,12 @@ void check_rain(const Seen& seen, Scenario& s) {
   }
   if (series.value == RainValue::intensity && !per_hour) series.unit_name += "/h";
   if (!seen.has("rain.utc_offset")) series.utc_offset_s = s.site.utc_offset_s;
+  if (series.decimal == ',' && series.delimiter == ',') {
+    seen.at("rain.decimal")
+        .fail(
+            "a decimal comma needs fields separated by another character: set rain.delimiter "
+            "to ; or tab");
+  }
   if (s.rain.format == RainFormat::tips) seen.require("rain.tip_depth", "needed by format: tips");
   if (s.rain.format == RainFormat::daily) {
     seen.require("rain.disaggregate", "needed by format: daily");

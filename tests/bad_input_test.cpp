@@ -209,7 +209,9 @@ TEST(BadRainSeries, DecimalCommaIsNotReadAsItsWholePart) {
   const Site s = rain_site("series-comma", "time,rain_mm\n2025-03-01T00:05,0,2\n");
   expect_bad(check(s), s.rain +
                            ":2: the row has more fields than the 2 columns of the header (field "
-                           "3 is \"2\"); a decimal comma? write decimals with a point");
+                           "3 is \"2\"); a decimal comma? write decimals with a point, or separate "
+                           "the fields with another character and set "
+                           "rain.delimiter and rain.decimal: \",\"");
 }
 
 TEST(BadRainSeries, NonNumericValueIsQuoted) {

@@ -361,6 +361,41 @@ TEST(RainScenario, RejectsATipCapOfPartSeconds) {
 // source: yearly sums of the `precipitation` column of data/seattle-weather.csv, summed with awk
 // outside gutterwatt (also stated in issue #11): 2012 1226.0, 2013 828.0, 2014 1232.8,
 // 2015 1139.2 mm.
+TEST(RainScenario, ReadsTheKeysOfAFilesLayout) {
+  const Scenario s = scenario(
+      "  file: r.csv\n  delimiter: tab\n  decimal: \",\"\n  skip_lines: 3\n"
+      "  time_format: \"%m/%d/%Y %I:%M %p\"\n  where: {station: North 2, sensor: 7}\n",
+      "base");
+  EXPECT_EQ(s.rain.series.delimiter, '\t');
+  EXPECT_EQ(s.rain.series.decimal, ',');
+  EXPECT_EQ(s.rain.series.skip_lines, 3);
+  EXPECT_EQ(s.rain.series.time_format, "%m/%d/%Y %I:%M %p");
+  using Where = std::vector<std::pair<std::string, std::string>>;
+  EXPECT_EQ(s.rain.series.where, (Where{{"station", "North 2"}, {"sensor", "7"}}));
+  EXPECT_EQ(scenario("  file: r.csv\n  delimiter: \";\"\n", "base").rain.series.delimiter, ';');
+}
+
+TEST(RainScenario, RejectsADecimalCommaBetweenCommaSeparatedFields) {
+  EXPECT_EQ(scenario_error_of("  file: r.csv\n  decimal: \",\"\n"),
+            "demo.yaml:3: rain.decimal: a decimal comma needs fields separated by another "
+            "character: set rain.delimiter to ; or tab");
+}
+
+TEST(RainScenario, RejectsBadLayoutKeys) {
+  EXPECT_EQ(scenario_error_of("  file: r.csv\n  delimiter: \"|\"\n"),
+            "demo.yaml:3: rain.delimiter: expected \",\", \";\" or tab, got \"|\"");
+  EXPECT_EQ(scenario_error_of("  file: r.csv\n  skip_lines: 1.5\n"),
+            "demo.yaml:3: rain.skip_lines: must be a whole number of lines (got 1.5)");
+  EXPECT_EQ(scenario_error_of("  file: r.csv\n  where: Seattle\n"),
+            "demo.yaml:3: rain.where: expected a section of columns and values such as "
+            "{location: Seattle}, got \"Seattle\"");
+  EXPECT_EQ(scenario_error_of("  file: r.csv\n  where:\n    location: [a, b]\n"),
+            "demo.yaml:4: rain.where.location: expected a text, got a list");
+  EXPECT_EQ(scenario_error_of("  file: r.csv\n  time_format: ISO\n"),
+            "demo.yaml:3: rain.time_format: expected a strftime-style format such as %m/%d/%Y "
+            "%I:%M %p (got ISO)");
+}
+
 TEST(RainScenario, KeepsEachYearOfAPublicDailyRecord) {
   const std::filesystem::path file =
       test_support::public_data_file("vega-datasets-3.2.1/data/seattle-weather.csv");

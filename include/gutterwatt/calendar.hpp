@@ -15,6 +15,7 @@ using Instant = std::int64_t;
 /// A parsed ISO 8601 date-time. `has_offset` is false for a naive stamp (no `Z`, no `+hh:mm`).
 struct ParsedTime {
   Instant instant = 0;  ///< UTC, using the stamp's own offset or the default one for naive stamps
+  Instant local = 0;    ///< the stamp as written: seconds since 1970-01-01T00:00 on its own clock
   bool has_offset = false;
   int offset_s = 0;  ///< the offset that was applied (own or default)
 };
@@ -26,6 +27,19 @@ struct ParsedTime {
 /// an offset needs a time of day. Returns nullopt on anything else, including impossible dates
 /// (2025-02-30), times (24:01, 23:59:60) and offsets (+24:00).
 std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offset_s = 0);
+
+/// Parses `text` by a strftime-style `format` with the date library's `date::parse` (`%Y`, `%m`,
+/// `%d`, `%H`, `%I`, `%M`, `%S`, `%p`, `%b`, `%z`, ...; a blank in the format matches any run of
+/// blanks, `%p` and `%b` are read in the C locale). A format without `%z` gives naive stamps,
+/// taken at `default_offset_s`. Returns nullopt unless the format matches the whole text and the
+/// date and time exist.
+///
+/// Example: parse_formatted("06/01/2025 01:05 PM", "%m/%d/%Y %I:%M %p") is 2025-06-01T13:05Z.
+std::optional<ParsedTime> parse_formatted(std::string_view text, const std::string& format,
+                                          int default_offset_s = 0);
+
+/// Whether `format` (as for parse_formatted) reads a UTC offset (`%z`, `%Ez` or `%Oz`).
+bool format_has_offset(std::string_view format);
 
 /// Formats an instant as local time at `offset_s`: `YYYY-MM-DDThh:mm`, with `:ss` when the seconds
 /// are not zero, and the offset appended (`+hh:mm`) when `offset_s` is not zero.

@@ -8,6 +8,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 #include "gutterwatt/calendar.hpp"
@@ -49,6 +50,18 @@ struct SeriesFormat {
   GapPolicy gaps = GapPolicy::error;
   /// Offset applied to naive timestamps, seconds east of UTC.
   int utc_offset_s = 0;
+  /// How the time column is written: a strftime-style format read by parse_formatted (such as
+  /// `%m/%d/%Y %I:%M %p`); empty: ISO 8601.
+  std::string time_format;
+  /// The character between fields: `,`, `;` or a tab.
+  char delimiter = ',';
+  /// The decimal mark of the values: `.` or `,` (then the fields are not separated by commas).
+  char decimal = '.';
+  /// Lines at the top of the file passed over unread, before the header (a logger's titles).
+  int skip_lines = 0;
+  /// Keeps only the rows whose column (first) holds the text (second), all of them; other rows
+  /// are left out before their stamps and values are read (one station of a download of many).
+  std::vector<std::pair<std::string, std::string>> where;
 };
 
 /// A rain record as the simulation sees it. Only intervals with rain are stored, so a long
@@ -80,8 +93,10 @@ using SeriesProgress = std::function<void(const RainSeries& so_far)>;
 /// quoted header names and blank lines. Throws InputError naming `file_label`, the line and the
 /// column for anything it cannot take.
 ///
-/// Details: the header is the first line that is neither blank nor a `#` comment; columns are
-/// found by name and others are ignored; a quoted field may not span lines. The first row covers
+/// Details: the header is the first line past `fmt.skip_lines` that is neither blank nor a `#`
+/// comment; columns are found by name and others are ignored; fields are separated by
+/// `fmt.delimiter`; a quoted field may not span lines; rows that `fmt.where` leaves out are not
+/// read further. Stamps are ISO 8601, or in `fmt.time_format`. The first row covers
 /// (T0 - step, T0]. Timestamps must strictly increase; naive ones are taken at `fmt.utc_offset_s`,
 /// and a file may not mix naive stamps with stamps that carry an offset. Without `fmt.step_s` the
 /// step is the most common spacing of consecutive stamps among the first 4096 rows (ties: the

@@ -18,7 +18,9 @@ TEST(DecimalCommaInASpareColumn, IsRefusedWithTheHint) {
   expect_bad(run("check " + (site / "shed.yaml").string(), site),
              (site / "rain-10min.csv").string() +
                  ":3: rain_mm: \"1\" and then \"5\" in the column without a name after it; a "
-                 "decimal comma (1,5)? write decimals with a point");
+                 "decimal comma (1,5)? write decimals with a point, or separate the fields with "
+                 "another character and set "
+                 "rain.delimiter and rain.decimal: \",\"");
 }
 
 TEST(DecimalCommaInASpareColumn, NamedColumnAfterTheValueIsData) {

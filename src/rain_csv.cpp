@@ -1,0 +1,559 @@
+#include "rain_csv.hpp"
+
+#include <algorithm>
+#include <charconv>
+#include <cmath>
+#include <cstdint>
+#include <cstring>
+#include <optional>
+
+#include "detail.hpp"
+
+namespace gutterwatt::detail {
+namespace {
+
+constexpr std::size_t kChunkBytes = std::size_t{1} << 20;
+// Longest line a rain file may have: a record's rows are a few dozen bytes, and a file without
+// line ends (binary data, a file saved with CR only) must not grow the buffer without bound.
+constexpr std::size_t kMaxLineBytes = std::size_t{64} << 10;
+constexpr std::size_t kMaxQuotedChars = 40;
+// Values of a where column that a message lists, at most.
+constexpr std::size_t kMaxValuesShown = 8;
+
+// Hands out the lines of a stream, reading it in large chunks into one reused buffer. A line
+// stays valid until the next call. Line ends (LF or CRLF) are removed. A line longer than
+// kMaxLineBytes ends the reading, with too_long() set.
+class LineReader {
+ public:
+  explicit LineReader(std::istream& in) : in_(in), buffer_(kChunkBytes) {}
+
+  bool next(std::string_view& line) {
+    for (;;) {
+      const char* const first = buffer_.data() + begin_;
+      const void* newline = std::memchr(first, '\n', end_ - begin_);
+      const std::size_t length =
+          newline != nullptr ? static_cast<std::size_t>(static_cast<const char*>(newline) - first)
+                             : end_ - begin_;
+      if (length > kMaxLineBytes) {
+        too_long_ = true;
+        return false;
+      }
+      if (newline != nullptr) {
+        line = std::string_view(first, length);
+        begin_ += length + 1;
+        drop_carriage_return(line);
+        return true;
+      }
+      if (at_end_) {
+        if (begin_ == end_) return false;
+        line = std::string_view(first, end_ - begin_);
+        begin_ = end_;
+        drop_carriage_return(line);
+        return true;
+      }
+      refill();
+    }
+  }
+
+  bool failed() const { return in_.bad(); }
+  bool too_long() const { return too_long_; }
+
+ private:
+  static void drop_carriage_return(std::string_view& line) {
+    if (!line.empty() && line.back() == '\r') line.remove_suffix(1);
+  }
+
+  void refill() {
+    const std::size_t kept = end_ - begin_;
+    if (begin_ > 0) std::memmove(buffer_.data(), buffer_.data() + begin_, kept);
+    begin_ = 0;
+    end_ = kept;
+    in_.read(buffer_.data() + end_, static_cast<std::streamsize>(buffer_.size() - end_));
+    const auto got = static_cast<std::size_t>(in_.gcount());
+    end_ += got;
+    if (got == 0 || !in_) at_end_ = true;
+  }
+
+  std::istream& in_;
+  std::vector<char> buffer_;
+  std::size_t begin_ = 0;
+  std::size_t end_ = 0;
+  bool at_end_ = false;
+  bool too_long_ = false;
+};
+
+// Blanks around a field: spaces, and tabs unless they separate the fields.
+std::string_view blanks_for(char delimiter) { return delimiter == '\t' ? " " : " \t"; }
+
+// Takes the next field off the front of `rest`, fields separated by `delimiter`. The field comes
+// back without the blanks around it and without enclosing double quotes (a doubled quote inside
+// stays doubled). `more` turns false at the line's last field.
+std::string_view next_field(std::string_view& rest, bool& more, char delimiter) {
+  const std::string_view blanks = blanks_for(delimiter);
+  std::size_t start = 0;
+  while (start < rest.size() && blanks.find(rest[start]) != std::string_view::npos) ++start;
+  if (start < rest.size() && rest[start] == '"') {
+    std::size_t close = start + 1;
+    for (;;) {
+      close = rest.find('"', close);
+      if (close == std::string_view::npos || close + 1 >= rest.size() || rest[close + 1] != '"') {
+        break;
+      }
+      close += 2;
+    }
+    if (close == std::string_view::npos) {
+      const std::string_view field = rest.substr(start + 1);
+      rest = {};
+      more = false;
+      return field;
+    }
+    const std::string_view field = rest.substr(start + 1, close - start - 1);
+    const std::size_t separator = rest.find(delimiter, close + 1);
+    more = separator != std::string_view::npos;
+    rest = more ? rest.substr(separator + 1) : std::string_view{};
+    return field;
+  }
+  const std::size_t separator = rest.find(delimiter, start);
+  more = separator != std::string_view::npos;
+  const std::string_view field =
+      trim(rest.substr(start, more ? separator - start : rest.npos), blanks);
+  rest = more ? rest.substr(separator + 1) : std::string_view{};
+  return field;
+}
+
+std::string unescape_quotes(std::string_view field) {
+  std::string out;
+  out.reserve(field.size());
+  for (std::size_t i = 0; i < field.size(); ++i) {
+    out += field[i];
+    if (field[i] == '"' && i + 1 < field.size() && field[i + 1] == '"') ++i;
+  }
+  return out;
+}
+
+// Every field of a line, unquoted.
+std::vector<std::string> all_fields(std::string_view line, char delimiter) {
+  std::vector<std::string> out;
+  bool more = true;
+  while (more) out.push_back(unescape_quotes(next_field(line, more, delimiter)));
+  return out;
+}
+
+bool is_comment_or_blank(std::string_view line) {
+  const std::string_view trimmed = trim(line);
+  return trimmed.empty() || trimmed.front() == '#';
+}
+
+// What the user is told to do about a decimal comma the reader cannot take.
+constexpr const char* kDecimalCommaAdvice =
+    "write decimals with a point, or separate the fields with another character and set "
+    "rain.delimiter and rain.decimal: \",\"";
+
+// The index of each column of `wanted` in a header of `names`; `keys` names each wanted column
+// in messages (the column itself, or the scenario key that asks for it).
+std::vector<std::size_t> find_columns(const std::vector<std::string>& names, int line_number,
+                                      const std::string& file_label,
+                                      const std::vector<std::string>& wanted,
+                                      const std::vector<std::string>& keys) {
+  const auto find_column = [&](std::size_t c) {
+    const std::string& column = wanted[c];
+    std::size_t found = names.size();
+    for (std::size_t i = 0; i < names.size(); ++i) {
+      if (names[i] != column) continue;
+      if (found != names.size()) {
+        throw InputError(file_label, line_number, keys[c],
+                         "appears twice in the header (columns " + std::to_string(found + 1) +
+                             " and " + std::to_string(i + 1) + ")");
+      }
+      found = i;
+    }
+    if (found == names.size()) {
+      std::string list;
+      for (const std::string& name : names) {
+        if (!list.empty()) list += ", ";
+        list += quoted(name);
+      }
+      throw InputError(file_label, line_number, keys[c],
+                       "no such column in the header (found " + list + ")");
+    }
+    return found;
+  };
+  std::vector<std::size_t> indexes;
+  for (std::size_t c = 0; c < wanted.size(); ++c) indexes.push_back(find_column(c));
+  return indexes;
+}
+
+bool is_digits(std::string_view text) {
+  return !text.empty() && text.find_first_not_of("0123456789") == std::string_view::npos;
+}
+
+// The header of a file and where its wanted columns are.
+struct Header {
+  std::vector<std::string> names;
+  std::vector<std::size_t> indexes;  ///< of the wanted columns, then of the where columns
+  std::vector<std::size_t> unnamed;  ///< columns without a name
+  char delimiter = ',';
+};
+
+// The fields of a row at `h.indexes` (header order of the wanted columns). Throws when the row
+// is too short, naming the first column it lacks, and when it has a value beyond the header's
+// columns (empty trailing fields are fine). Throws too for a whole number in a wanted column
+// followed by digits in a column of the header without a name: a decimal comma ("1,5") that the
+// spare column would otherwise hide.
+void take_fields(std::string_view line, int line_number, const std::string& file_label,
+                 const Header& h, const std::vector<std::string>& columns,
+                 std::vector<std::string_view>& fields) {
+  const std::vector<std::size_t>& indexes = h.indexes;
+  const std::size_t header_fields = h.names.size();
+  const std::size_t last_index = indexes.size() == 2
+                                     ? std::max(indexes[0], indexes[1])
+                                     : *std::max_element(indexes.begin(), indexes.end());
+  fields.resize(indexes.size());
+  std::string_view rest = line;
+  bool more = true;
+  std::size_t index = 0;
+  std::string_view previous;
+  const bool comma_separated = h.delimiter == ',';
+  const auto check_spare = [&](std::string_view field) {
+    if (!comma_separated || h.unnamed.empty() || index == 0 || !is_digits(field) ||
+        !is_digits(previous)) {
+      return;
+    }
+    if (std::find(h.unnamed.begin(), h.unnamed.end(), index) == h.unnamed.end()) return;
+    for (std::size_t c = 0; c < indexes.size(); ++c) {
+      if (indexes[c] != index - 1) continue;
+      throw InputError(file_label, line_number, columns[c],
+                       quoted(previous) + " and then " + quoted(field) +
+                           " in the column without a name after it; a decimal comma (" +
+                           std::string(previous) + "," + std::string(field) + ")? " +
+                           kDecimalCommaAdvice);
+    }
+  };
+  for (; more && index <= last_index; ++index) {
+    const std::string_view field = next_field(rest, more, h.delimiter);
+    check_spare(field);
+    for (std::size_t c = 0; c < indexes.size(); ++c) {
+      if (indexes[c] == index) fields[c] = field;
+    }
+    previous = field;
+  }
+  if (index > last_index) {
+    // Most often a decimal comma ("0,2"), which would otherwise be read as its whole part.
+    for (; more; ++index) {
+      const std::string_view field = next_field(rest, more, h.delimiter);
+      check_spare(field);
+      previous = field;
+      if (index < header_fields || field.empty()) continue;
+      throw InputError(
+          file_label, line_number, "",
+          "the row has more fields than the " + std::to_string(header_fields) +
+              " columns of the header (field " + std::to_string(index + 1) + " is " +
+              quoted(field) + ")" +
+              (comma_separated ? std::string("; a decimal comma? ") + kDecimalCommaAdvice : ""));
+    }
+    return;
+  }
+  std::size_t missing = 0;
+  while (indexes[missing] < index) ++missing;
+  throw InputError(file_label, line_number, columns[missing],
+                   "missing (the row has " + std::to_string(index) +
+                       (index == 1 ? " field" : " fields") + ", the column is field " +
+                       std::to_string(indexes[missing] + 1) + ")");
+}
+
+// A depth or intensity as written: finite and not negative; too small for a double is no rain.
+// Plain decimals ("0", "0.25", "12.7") as most records write them, without from_chars: with at
+// most 15 digits the digits form an exact integer m and m / 10^k, one correctly rounded division
+// of exact operands, is the nearest double to the decimal (Clinger 1990, How to read floating
+// point numbers accurately, PLDI). Returns false for anything else.
+bool parse_plain_decimal(std::string_view text, double& value) {
+  static constexpr double kPowersOfTen[] = {1e0, 1e1, 1e2,  1e3,  1e4,  1e5,  1e6,  1e7,
+                                            1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15};
+  std::uint64_t mantissa = 0;
+  int digits = 0;
+  int decimals = -1;
+  for (const char c : text) {
+    if (c >= '0' && c <= '9') {
+      mantissa = mantissa * 10 + static_cast<std::uint64_t>(c - '0');
+      if (++digits > 15) return false;
+      if (decimals >= 0) ++decimals;
+    } else if (c == '.' && decimals < 0) {
+      decimals = 0;
+    } else {
+      return false;
+    }
+  }
+  if (digits == 0) return false;
+  value = static_cast<double>(mantissa) / kPowersOfTen[decimals < 0 ? 0 : decimals];
+  return true;
+}
+
+// Throws for a header line that shows the file is not text: UTF-16 (a spreadsheet's "Unicode
+// text"), or any other file with NUL bytes.
+void check_text(std::string_view line, int line_number, const std::string& file_label) {
+  if (line.starts_with("\xFF\xFE") || line.starts_with("\xFE\xFF")) {
+    throw InputError(file_label, line_number, "",
+                     "UTF-16 text, not UTF-8; save the file as CSV in UTF-8 (or plain ASCII)");
+  }
+  if (line.find('\0') != std::string_view::npos) {
+    throw InputError(file_label, line_number, "",
+                     "binary data (a NUL byte on this line), not a CSV text file");
+  }
+}
+
+// Values that may name a series: not a number (a station's name or code, a sensor's label).
+bool names_a_series(const std::string& value) { return !value.empty() && !to_number(value); }
+
+// The column that tells series apart at the row `current`: it held the same value on the first
+// and the previous kept row, and another one here. Empty when no column does.
+std::string series_column(const Header& h, std::size_t wanted, const std::string& first,
+                          const std::string& previous, std::string_view current) {
+  const std::vector<std::string> a = all_fields(first, h.delimiter);
+  const std::vector<std::string> b = all_fields(previous, h.delimiter);
+  const std::vector<std::string> c = all_fields(current, h.delimiter);
+  for (std::size_t i = 0; i < h.names.size() && i < a.size() && i < b.size() && i < c.size(); ++i) {
+    const auto asked = std::find(h.indexes.begin(), h.indexes.begin() + wanted, i);
+    if (asked != h.indexes.begin() + wanted || h.names[i].empty()) continue;
+    if (a[i] != b[i] || b[i] == c[i] || !names_a_series(b[i]) || !names_a_series(c[i])) continue;
+    return "; the column " + quoted(h.names[i]) + " changes here from " + quoted(b[i]) + " to " +
+           quoted(c[i]) + ": several series in one file? keep one with rain.where: {" + h.names[i] +
+           ": " + c[i] + "}";
+  }
+  return "";
+}
+
+}  // namespace
+
+std::string quoted(std::string_view text) {
+  if (text.size() > kMaxQuotedChars) {
+    return "\"" + std::string(text.substr(0, kMaxQuotedChars)) + "...\"";
+  }
+  return "\"" + std::string(text) + "\"";
+}
+
+std::string format_number(double value) {
+  char buffer[64];
+  const auto result =
+      std::to_chars(buffer, buffer + sizeof buffer, value, std::chars_format::general, 6);
+  return std::string(buffer, result.ptr);
+}
+
+double parse_amount(std::string_view text, const std::string& file_label, int line_number,
+                    const std::string& column, char decimal) {
+  double plain = 0.0;
+  std::array<char, 64> buffer;
+  if (decimal != '.') {
+    // A decimal comma becomes a point; a point in such a file is a thousands mark, refused.
+    if (text.size() > buffer.size() || text.find('.') != std::string_view::npos) {
+      throw InputError(
+          file_label, line_number, column,
+          "not a number with a decimal comma, rain.decimal: \",\" (got " + quoted(text) + ")");
+    }
+    std::replace_copy(text.begin(), text.end(), buffer.begin(), decimal, '.');
+    text = std::string_view(buffer.data(), text.size());
+  }
+  if (parse_plain_decimal(text, plain)) return plain;
+  std::string_view digits = text;
+  if (digits.size() > 1 && digits.front() == '+') digits.remove_prefix(1);
+  double value = 0.0;
+  const char* const end = digits.data() + digits.size();
+  const auto [stop, ec] = std::from_chars(digits.data(), end, value);
+  if (ec == std::errc::result_out_of_range && stop == end) {
+    // Too small for a double (1e-400) is no rain; too large (1e400) is not a finite amount.
+    const bool underflow = digits.find("e-") != digits.npos || digits.find("E-") != digits.npos;
+    if (underflow && digits.front() != '-') return 0.0;
+    throw InputError(file_label, line_number, column,
+                     (underflow ? "must not be negative (got " + std::string(text) + ")"
+                                : "not a finite number (got " + quoted(text) + ")"));
+  }
+  if (ec != std::errc{} || stop != end || digits.empty() || std::isnan(value)) {
+    const bool comma = decimal == '.' && text.find(',') != std::string_view::npos;
+    throw InputError(file_label, line_number, column,
+                     "not a number (got " + quoted(text) + ")" +
+                         (comma ? "; a decimal comma? set rain.decimal: \",\"" : ""));
+  }
+  if (std::isinf(value)) {
+    throw InputError(file_label, line_number, column,
+                     "not a finite number (got " + quoted(text) + ")");
+  }
+  if (value < 0.0) {
+    throw InputError(file_label, line_number, column,
+                     "must not be negative (got " + std::string(text) + ")");
+  }
+  return value == 0.0 ? 0.0 : value;  // -0 becomes 0
+}
+
+StampReader::StampReader(const std::string& file_label, const SeriesFormat& fmt,
+                         const StampWords& words)
+    : file_(file_label), fmt_(fmt), words_(words) {}
+
+std::optional<ParsedTime> StampReader::parse(std::string_view text) const {
+  if (fmt_.time_format.empty()) {
+    std::optional<ParsedTime> parsed = parse_iso8601(text, fmt_.utc_offset_s);
+    if (words_.dates_only && text.size() != 10) parsed.reset();
+    return parsed;
+  }
+  std::optional<ParsedTime> parsed = parse_formatted(text, fmt_.time_format, fmt_.utc_offset_s);
+  if (parsed && words_.dates_only && floor_div(parsed->local, kDay_s) * kDay_s != parsed->local) {
+    parsed.reset();
+  }
+  return parsed;
+}
+
+ParsedTime StampReader::read(std::string_view text, int line_number) {
+  const std::string& column = fmt_.time_column;
+  const std::optional<ParsedTime> parsed = parse(text);
+  if (!parsed && !fmt_.time_format.empty()) {
+    throw InputError(file_, line_number, column,
+                     "does not match rain.time_format " + quoted(fmt_.time_format) +
+                         (words_.dates_only ? " as a date, at midnight" : "") + " (got " +
+                         quoted(text) + ")");
+  }
+  if (!parsed) {
+    throw InputError(file_, line_number, column,
+                     std::string("not ") + words_.expected + " (got " + quoted(text) + ")");
+  }
+  if (count_ == 0) {
+    first_has_offset_ = parsed->has_offset;
+    first_line_ = line_number;
+  } else {
+    if (parsed->has_offset != first_has_offset_) {
+      throw InputError(file_, line_number, column,
+                       "mixed time zones: " + quoted(text) +
+                           (parsed->has_offset ? " has a UTC offset but the stamp on line " +
+                                                     std::to_string(first_line_) + " has none"
+                                               : " has no UTC offset but the stamp on line " +
+                                                     std::to_string(first_line_) + " has one"));
+    }
+    // Built only on the error paths: this runs once per row of records of millions.
+    const auto previous = [this] {
+      return quoted(std::string_view(previous_text_.data(), previous_size_)) + " (line " +
+             std::to_string(previous_line_) + ")";
+    };
+    if (parsed->instant == previous_ && !words_.repeats_allowed) {
+      throw OutOfOrder(
+          file_, line_number, column,
+          quoted(text) + " is " + words_.same + " the previous " + words_.noun + " " + previous());
+    }
+    if (parsed->instant < previous_) {
+      throw OutOfOrder(file_, line_number, column,
+                       quoted(text) + " is earlier than the previous " + words_.noun + " " +
+                           previous() + "; rows must be in time order");
+    }
+  }
+  ++count_;
+  previous_ = parsed->instant;
+  previous_line_ = line_number;
+  // A stamp longer than the buffer is cut in the message only; it parsed, so it is sane.
+  previous_size_ = std::min(text.size(), previous_text_.size());
+  std::memcpy(previous_text_.data(), text.data(), previous_size_);
+  return *parsed;
+}
+
+void scan_rows(std::istream& in, const std::string& file_label, const SeriesFormat& fmt,
+               const std::vector<std::string>& columns, const RowFunction& on_row) {
+  std::vector<std::string> wanted = columns;
+  std::vector<std::string> keys = columns;
+  for (const auto& [column, value] : fmt.where) {
+    wanted.push_back(column);
+    keys.push_back("rain.where." + column);
+  }
+  LineReader reader(in);
+  std::string_view line;
+  int line_number = 0;
+  int header_line = 0;
+  Header header;
+  header.delimiter = fmt.delimiter;
+  std::vector<std::string_view> fields;
+  std::size_t rows = 0;
+  std::size_t rows_left_out = 0;
+  // For the messages: the values of the first where column in rows it left out (a few), and
+  // the first and the previous kept rows.
+  std::vector<std::string> other_values;
+  std::string first_row;
+  std::string previous_row;
+  while (reader.next(line)) {
+    ++line_number;
+    if (line_number <= fmt.skip_lines) continue;
+    if (line_number == 1 && line.substr(0, kByteOrderMark.size()) == kByteOrderMark) {
+      line.remove_prefix(kByteOrderMark.size());
+    }
+    if (is_comment_or_blank(line)) continue;
+    if (header_line == 0) {
+      check_text(line, line_number, file_label);
+      header.names = all_fields(line, fmt.delimiter);
+      for (std::size_t i = 0; i < header.names.size(); ++i) {
+        if (trim(header.names[i]).empty()) header.unnamed.push_back(i);
+      }
+      header.indexes = find_columns(header.names, line_number, file_label, wanted, keys);
+      header_line = line_number;
+      continue;
+    }
+    take_fields(line, line_number, file_label, header, keys, fields);
+    bool kept = true;
+    for (std::size_t k = 0; k < fmt.where.size() && kept; ++k) {
+      const std::string_view field = fields[columns.size() + k];
+      kept = field == fmt.where[k].second || (field.find('"') != std::string_view::npos &&
+                                              unescape_quotes(field) == fmt.where[k].second);
+      if (!kept && k == 0 && other_values.size() < kMaxValuesShown &&
+          std::find(other_values.begin(), other_values.end(), field) == other_values.end()) {
+        other_values.emplace_back(field);
+      }
+    }
+    if (!kept) {
+      ++rows_left_out;
+      continue;
+    }
+    try {
+      on_row(fields, line_number);
+    } catch (const OutOfOrder& e) {
+      throw InputError(
+          e.file(), e.line(), e.field(),
+          e.message() + series_column(header, columns.size(), first_row, previous_row, line));
+    }
+    if (rows == 0) first_row.assign(line);
+    previous_row.assign(line);
+    ++rows;
+  }
+  if (reader.failed()) {
+    throw InputError(file_label, line_number, "",
+                     "the file could not be read past this line (an input/output error)");
+  }
+  if (reader.too_long()) {
+    throw InputError(file_label, line_number + 1, "",
+                     "a line longer than " + std::to_string(kMaxLineBytes >> 10) +
+                         " KiB; a rain record's lines are short (binary data, or line ends "
+                         "other than LF or CRLF?)");
+  }
+  if (header_line == 0 && fmt.skip_lines > 0 && line_number <= fmt.skip_lines) {
+    throw InputError(file_label, line_number, "rain.skip_lines",
+                     "the file ends within the " + std::to_string(fmt.skip_lines) +
+                         " lines it skips (it has " + std::to_string(line_number) + ")");
+  }
+  if (header_line == 0) {
+    std::string names;
+    for (std::size_t c = 0; c < columns.size(); ++c) {
+      if (c > 0) names += c + 1 == columns.size() ? " and " : ", ";
+      names += quoted(columns[c]);
+    }
+    throw InputError(file_label, fmt.skip_lines + 1, "",
+                     "empty file (expected a header row naming the column" +
+                         std::string(columns.size() > 1 ? "s " : " ") + names + ")");
+  }
+  if (rows == 0 && rows_left_out > 0 && fmt.where.size() > 1) {
+    throw InputError(file_label, header_line, "rain.where", "no row meets all its conditions");
+  }
+  if (rows == 0 && rows_left_out > 0) {
+    std::string found;
+    for (const std::string& value : other_values) {
+      found += (found.empty() ? "" : ", ") + quoted(value);
+    }
+    if (other_values.size() == kMaxValuesShown) found += ", ...";
+    throw InputError(file_label, header_line, keys[columns.size()],
+                     "no row holds " + quoted(fmt.where.front().second) +
+                         " in this column (found " + found + ")");
+  }
+  if (rows == 0) throw InputError(file_label, header_line, "", "no data rows");
+}
+
+}  // namespace gutterwatt::detail

@@ -1,0 +1,220 @@
+// The layouts of real rain files (src/rain_csv.cpp), read through the public readers: other field
+// separators and decimal marks, title lines above the header, stamps in a strftime-style format,
+// the rows of one series out of a file of several.
+
+#include <gtest/gtest.h>
+
+#include <sstream>
+#include <string>
+
+#include "gutterwatt/error.hpp"
+#include "gutterwatt/rain_input.hpp"
+
+namespace gutterwatt {
+namespace {
+
+// Seconds since the epoch of 2025-03-01T00:00Z.
+// source: POSIX.1-2017 Base Definitions 4.16 (Seconds Since the Epoch), formula worked by hand.
+constexpr Instant kT0 = 1740787200;
+constexpr Instant kMinute = 60;
+
+RainSeries read(const std::string& text, const SeriesFormat& fmt) {
+  std::istringstream in(text);
+  return read_rain_series(in, "rain.csv", fmt);
+}
+
+std::string error_of(const std::string& text, const SeriesFormat& fmt) {
+  try {
+    read(text, fmt);
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "no error";
+}
+
+SeriesFormat daily() {
+  SeriesFormat fmt;
+  fmt.time_column = "date";
+  fmt.value_column = "precipitation";
+  return fmt;
+}
+
+RainSeries read_daily(const std::string& text, const SeriesFormat& fmt) {
+  std::istringstream in(text);
+  return read_rain_daily(in, "daily.csv", fmt);
+}
+
+std::string daily_error_of(const std::string& text, const SeriesFormat& fmt) {
+  try {
+    read_daily(text, fmt);
+  } catch (const InputError& e) {
+    return e.what();
+  }
+  return "no error";
+}
+
+// The pulses of the same invented 5-minute record as written with a point and commas.
+void expect_five_minute_record(const RainSeries& rain) {
+  ASSERT_EQ(rain.pulses.size(), 2u);
+  EXPECT_EQ(rain.pulses[0].start, kT0);
+  EXPECT_EQ(rain.pulses[0].end, kT0 + 5 * kMinute);
+  EXPECT_EQ(rain.pulses[0].depth_m, 0.2e-3);
+  EXPECT_EQ(rain.pulses[1].start, kT0 + 10 * kMinute);
+  EXPECT_EQ(rain.pulses[1].depth_m, 1.25e-3);
+}
+
+TEST(RainCsv, ReadsSemicolonsAndDecimalCommas) {
+  SeriesFormat fmt;
+  fmt.delimiter = ';';
+  fmt.decimal = ',';
+  expect_five_minute_record(
+      read("time;rain_mm\n2025-03-01T00:05;0,2\n2025-03-01T00:10;0\n2025-03-01T00:15;1,25\n", fmt));
+}
+
+TEST(RainCsv, ReadsTabsBetweenFields) {
+  SeriesFormat fmt;
+  fmt.delimiter = '\t';
+  // A blank after a tab is still trimmed; an empty trailing field is fine.
+  expect_five_minute_record(
+      read("time\train_mm\n2025-03-01T00:05\t 0.2\n2025-03-01T00:10\t0\t\n2025-03-01T00:15\t1.25\n",
+           fmt));
+}
+
+TEST(RainCsv, SkipsTitleLinesAboveTheHeader) {
+  SeriesFormat fmt;
+  fmt.skip_lines = 2;
+  // Title lines a logger writes, with commas that would make a header of their own.
+  expect_five_minute_record(
+      read("Logger 7, firmware 1.2\nsite: roof, north\ntime,rain_mm\n2025-03-01T00:05,0.2\n"
+           "2025-03-01T00:10,0\n2025-03-01T00:15,1.25\n",
+           fmt));
+}
+
+TEST(RainCsv, CountsSkippedLinesInMessages) {
+  SeriesFormat fmt;
+  fmt.skip_lines = 1;
+  EXPECT_EQ(error_of("Logger 7\ntime,rain_mm\n2025-03-01T00:05,x\n", fmt),
+            "rain.csv:3: rain_mm: not a number (got \"x\")");
+  EXPECT_EQ(error_of("Logger 7\n", fmt),
+            "rain.csv:1: rain.skip_lines: the file ends within the 1 lines it skips (it has 1)");
+}
+
+TEST(RainCsv, ReadsStampsInATimeFormat) {
+  SeriesFormat fmt;
+  fmt.time_format = "%m/%d/%Y %I:%M %p";
+  // 06/01/2025 01:05 PM is 2025-06-01T13:05Z: 92 days after 2025-03-01 (31 + 30 + 31), 13 h 5 min.
+  const RainSeries rain = read(
+      "time,rain_mm\n06/01/2025 01:00 PM,0\n06/01/2025 01:05 PM,0.4\n06/01/2025 01:10 PM,0\n", fmt);
+  ASSERT_EQ(rain.pulses.size(), 1u);
+  EXPECT_EQ(rain.pulses[0].end, kT0 + 92 * 86400 + 13 * 3600 + 5 * kMinute);
+  EXPECT_EQ(rain.pulses[0].end - rain.pulses[0].start, 5 * kMinute);
+}
+
+TEST(RainCsv, TakesATimeFormatsOffset) {
+  SeriesFormat fmt;
+  fmt.time_format = "%d.%m.%Y %H:%M %z";
+  fmt.utc_offset_s = 3600;  // not used: the stamps carry their own
+  const RainSeries rain =
+      read("time,rain_mm\n01.03.2025 02:05 +0200,0.2\n01.03.2025 02:10 +0200,0\n", fmt);
+  ASSERT_EQ(rain.pulses.size(), 1u);
+  EXPECT_EQ(rain.pulses[0].end, kT0 + 5 * kMinute);
+}
+
+TEST(RainCsv, NamesTheLineATimeFormatDoesNotMatch) {
+  SeriesFormat fmt;
+  fmt.time_format = "%m/%d/%Y %I:%M %p";
+  EXPECT_EQ(error_of("time,rain_mm\n06/01/2025 01:00 PM,0\n06/01/2025 13:05,0.4\n", fmt),
+            "rain.csv:3: time: does not match rain.time_format \"%m/%d/%Y %I:%M %p\" (got "
+            "\"06/01/2025 13:05\")");
+  EXPECT_EQ(error_of("time,rain_mm\n02/30/2025 01:00 PM,0\n", fmt),
+            "rain.csv:2: time: does not match rain.time_format \"%m/%d/%Y %I:%M %p\" (got "
+            "\"02/30/2025 01:00 PM\")");
+}
+
+TEST(RainCsv, ReadsDatesInATimeFormat) {
+  SeriesFormat fmt = daily();
+  fmt.time_format = "%d/%m/%Y";
+  const RainSeries rain = read_daily("date,precipitation\n01/03/2025,2\n02/03/2025,0\n", fmt);
+  ASSERT_EQ(rain.pulses.size(), 1u);
+  EXPECT_EQ(rain.pulses[0].start, kT0);
+  fmt.time_format = "%d/%m/%Y %H:%M";
+  EXPECT_EQ(daily_error_of("date,precipitation\n01/03/2025 06:00,2\n", fmt),
+            "daily.csv:2: date: does not match rain.time_format \"%d/%m/%Y %H:%M\" as a date, at "
+            "midnight (got \"01/03/2025 06:00\")");
+}
+
+// Two invented stations in one daily file, the second starting over at the first date.
+const char* const kTwoStations =
+    "station,date,precipitation\n"
+    "Hilltop,2025-03-01,1.5\n"
+    "Hilltop,2025-03-02,0\n"
+    "Valley,2025-03-01,4\n"
+    "Valley,2025-03-02,2.5\n";
+
+TEST(RainCsv, KeepsTheRowsOfOneStation) {
+  SeriesFormat fmt = daily();
+  fmt.where = {{"station", "Valley"}};
+  const RainSeries rain = read_daily(kTwoStations, fmt);
+  ASSERT_EQ(rain.pulses.size(), 2u);
+  EXPECT_EQ(rain.pulses[0].depth_m, 4e-3);
+  EXPECT_EQ(rain.pulses[1].depth_m, 2.5e-3);
+  EXPECT_EQ(rain.pulses[1].start, kT0 + 86400);
+}
+
+TEST(RainCsv, LeavesOutOtherStationsBeforeReadingTheirValues) {
+  SeriesFormat fmt = daily();
+  fmt.where = {{"station", "Hilltop"}};
+  const RainSeries rain =
+      read_daily("station,date,precipitation\nHilltop,2025-03-01,1\nValley,bad,n/a\n", fmt);
+  EXPECT_EQ(rain.total_depth_m, 1e-3);
+}
+
+TEST(RainCsv, NamesTheColumnThatTellsSeriesApart) {
+  EXPECT_EQ(daily_error_of(kTwoStations, daily()),
+            "daily.csv:4: date: \"2025-03-01\" is earlier than the previous date \"2025-03-02\" "
+            "(line 3); rows must be in time order; the column \"station\" changes here from "
+            "\"Hilltop\" to \"Valley\": several series in one file? keep one with rain.where: "
+            "{station: Valley}");
+}
+
+TEST(RainCsv, NamesTheColumnWhenSeriesAreInterleaved) {
+  EXPECT_EQ(error_of("time,gauge,rain_mm\n2025-03-01T00:05,north,0\n2025-03-01T00:05,south,0\n",
+                     SeriesFormat{}),
+            "rain.csv:3: time: \"2025-03-01T00:05\" is the same instant as the previous stamp "
+            "\"2025-03-01T00:05\" (line 2); the column \"gauge\" changes here from \"north\" to "
+            "\"south\": several series in one file? keep one with rain.where: {gauge: south}");
+}
+
+TEST(RainCsv, RejectsAnUnknownWhereColumn) {
+  SeriesFormat fmt = daily();
+  fmt.where = {{"location", "Valley"}};
+  EXPECT_EQ(daily_error_of(kTwoStations, fmt),
+            "daily.csv:1: rain.where.location: no such column in the header (found \"station\", "
+            "\"date\", \"precipitation\")");
+}
+
+TEST(RainCsv, ListsTheValuesFoundWhenNoRowMatches) {
+  SeriesFormat fmt = daily();
+  fmt.where = {{"station", "valley"}};
+  EXPECT_EQ(daily_error_of(kTwoStations, fmt),
+            "daily.csv:1: rain.where.station: no row holds \"valley\" in this column (found "
+            "\"Hilltop\", \"Valley\")");
+  fmt.where = {{"station", "Valley"}, {"date", "2025-04-01"}};
+  EXPECT_EQ(daily_error_of(kTwoStations, fmt),
+            "daily.csv:1: rain.where: no row meets all its conditions");
+}
+
+TEST(RainCsv, PointsADecimalCommaToRainDecimal) {
+  SeriesFormat fmt;
+  fmt.delimiter = ';';
+  EXPECT_EQ(error_of("time;rain_mm\n2025-03-01T00:05;0,2\n", fmt),
+            "rain.csv:2: rain_mm: not a number (got \"0,2\"); a decimal comma? set rain.decimal: "
+            "\",\"");
+  fmt.decimal = ',';
+  EXPECT_EQ(error_of("time;rain_mm\n2025-03-01T00:05;1.500\n", fmt),
+            "rain.csv:2: rain_mm: not a number with a decimal comma, rain.decimal: \",\" (got "
+            "\"1.500\")");
+}
+
+}  // namespace
+}  // namespace gutterwatt
