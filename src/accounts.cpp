@@ -36,6 +36,22 @@ void Ledger::start(const ChainState& x, const ChainMode& m, double t) {
   if (system_.release().is_running(m.release)) open_episode(EpisodeKind::cycle, x, t);
   if (m.release == ReleaseState::dribble) open_episode(EpisodeKind::dribble, x, t);
   if (m.overflowing) open_episode(EpisodeKind::overflow, x, t);
+  follow_standing(system_.level_m(x), m, t);
+}
+
+void Ledger::follow_standing(double level_m, const ChainMode& m, double t) {
+  const bool standing = !system_.release().is_running(m.release) &&
+                        level_m > system_.drained_level_m() + kStandingDepth_m;
+  if (standing == standing_) return;
+  standing_ = standing;
+  if (standing) {
+    standing_since_s_ = t;
+    return;
+  }
+  const double spell_s = t - standing_since_s_;
+  counts_.standing_s += spell_s;
+  counts_.standing_longest_s = std::max(counts_.standing_longest_s, spell_s);
+  if (spell_s > kMosquitoSpell_s) ++counts_.standing_spells_over_week;
 }
 
 void Ledger::tally_step(const ChainState& x0, const ChainState& x1, double dt, const ChainMode& m,
@@ -158,6 +174,7 @@ void Ledger::close_all(const ChainState& x, double t) {
   for (std::size_t k = 0; k < episodes_.size(); ++k) {
     close_episode(static_cast<EpisodeKind>(k), x, t);
   }
+  if (standing_) follow_standing(0.0, ChainMode{}, t);  // the spell ends with the run
 }
 
 Storage Ledger::storage(const ChainState& x) {
@@ -174,6 +191,7 @@ Accounts Ledger::accounts(const ChainState& x) const {
   a.reservoir_overflow_m3 = x[kReservoirOverflow];
   a.release_m3 = x[kRelease];
   a.nozzle_m3 = x[kNozzle];
+  a.evaporation_m3 = x[kEvaporation];
   a.jet_J = x[kJet];
   a.shaft_J = x[kShaft];
   a.accepted_J = x[kAccepted];

@@ -13,7 +13,15 @@ ChainSystem::ChainSystem(const Scenario& scenario)
       geometry_(scenario.reservoir),
       plant_(plant_config(scenario)),
       release_(make_release(scenario.release)),
-      trickle_volume_m3_(plant_.column_area_m2() * kTrickleHead_m) {}
+      trickle_volume_m3_(plant_.column_area_m2() * kTrickleHead_m),
+      drained_level_m_(gutterwatt::drained_level_m(scenario.release)) {}
+
+double ChainSystem::evaporation_m3_per_s(double volume_m3, const Forcing& f) const {
+  if (f.evaporation_m_per_s <= 0.0) return 0.0;
+  const double level = geometry_.level_m(std::max(0.0, volume_m3));
+  return gutterwatt::evaporation_m3_per_s(f.evaporation_m_per_s, geometry_.surface_area_m2(level),
+                                          level);
+}
 
 ChainRates ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& f) const {
   ChainRates r;
@@ -64,7 +72,12 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
   const double full_flow = needs_full_flow ? plant_.full_flow_m3_per_s(r.level_m) : 0.0;
   r.release = release_->outflow_m3_per_s(m.release, r.level_m, full_flow);
   r.overflow = m.overflowing ? geometry_.overflow_m3_per_s(r.level_m) : 0.0;
-  d[kReservoir] = inflow - r.release - r.overflow;
+  r.evaporation = f.evaporation_m_per_s > 0.0
+                      ? gutterwatt::evaporation_m3_per_s(
+                            f.evaporation_m_per_s, geometry_.surface_area_m2(r.level_m), r.level_m)
+                      : 0.0;
+  d[kReservoir] = inflow - r.release - r.overflow - r.evaporation;
+  d[kEvaporation] = r.evaporation;
   d[kReservoirOverflow] = r.overflow;
   d[kRelease] = r.release;
 

@@ -88,9 +88,10 @@ std::span<const Caution> safety_cautions() {
        "pipework hung from it, carries far more than one that only drains. Check that brackets, "
        "fascia and fixings are rated for the full load, plus debris and ice."},
       {"Standing water and mosquitoes",
-       "Water that stands for more than a few days can breed mosquitoes. Screen every opening, "
-       "keep debris out, keep children and animals away from open tanks, and make sure "
-       "reservoirs can drain fully."},
+       "Water that stands for about a week can breed mosquitoes (7 days, common practice): a "
+       "gutter or tank held as a reservoir keeps water between storms, which `run` counts under "
+       "standing water. Screen every opening, keep debris out, keep children and animals away "
+       "from open tanks, and make sure reservoirs can drain fully."},
       {"Codes and practitioners",
        "Local building, plumbing and electrical codes and permits govern rainwater collection, "
        "roof work and electrical installations in many places. Follow local codes, and engage "
@@ -252,6 +253,33 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
         fixed(plant.conduction_speed_rpm(), 0) +
         " rpm, faster than the jet at the design head can drive the runner: it will not charge. "
         "A generator with more volts per rpm, a smaller runner or more head would.");
+  }
+  if (has_set_points) {
+    // A level pool loses depth at the evaporation rate whatever its section (dV = A dh), so the
+    // water held above the drained level lasts (trigger - drained) / E at rate E.
+    const auto& e = sc.reservoir.evaporation_m_per_s;
+    const double fastest = e.empty() ? 0.0 : *std::max_element(e.begin(), e.end());
+    const double held_m = rel.trigger_level_m - drained_level_m(rel);
+    const std::string where =
+        rel.kind == ReleaseKind::bell ? "the standpipe lip (" : "the valve's opening level (";
+    const std::string above = rel.kind == ReleaseKind::bell ? " above the bell rim"
+                                                            : " above its "
+                                                              "closing level";
+    const std::string lead = "Between storms the reservoir holds water up to " + where +
+                             fixed(rel.trigger_level_m / kMetresPerMm, 0) + " mm), " +
+                             fixed(held_m / kMetresPerMm, 0) + " mm" + above +
+                             ", which only evaporation lowers";
+    const std::string tail =
+        ". Mosquitoes breed in standing water in about 7 days (common practice): screen every "
+        "opening or empty it weekly.";
+    if (fastest <= 0.0) {
+      d.warnings.push_back(lead + ", and none is given (reservoir.evaporation_mm_per_day)" + tail);
+    } else if (held_m / fastest > kMosquitoSpell_s) {
+      d.warnings.push_back(lead + ": even at the highest evaporation given (" +
+                           fixed(fastest / kMetresPerMm * kSecondsPerDay, 1) +
+                           " mm/day) that takes " + fixed(held_m / fastest / kSecondsPerDay, 1) +
+                           " days" + tail);
+    }
   }
   if (sc.turbine.best_at_every_head) {
     d.warnings.push_back(

@@ -280,6 +280,7 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                   {"column_overflow", L(a.column_overflow_m3)},
                   {"dribble", L(a.dribble_m3)},
                   {"through_nozzle", L(a.nozzle_m3)},
+                  {"evaporation", L(a.evaporation_m3)},
                   {"storage_change", L(stored)},
                   {"balance_error", r.balance_error_m3 * kLitresPerM3},
                   {"balance_relative_error", r.balance_relative_error}};
@@ -294,6 +295,9 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                     {"drawn_from_battery", Wh(a.drawn_J)},
                     {"discharge_loss", Wh(a.discharge_loss_J)},
                     {"self_discharge", Wh(a.self_discharge_J)}};
+  j["standing_water"] = {{"longest_days", round_to(r.standing_longest_s / kSecondsPerDay, 4)},
+                         {"spells_over_7_days", r.standing_spells_over_week},
+                         {"days_total", round_to(r.standing_s / kSecondsPerDay, 4)}};
   j["siphon"] = {{"cycles", r.cycles},
                  {"energy_per_cycle_Wh", Wh(summary.energy_per_cycle_J())},
                  {"dribble_episodes", r.dribble_episodes},
@@ -399,6 +403,7 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   if (sc.head_column) row("head column overflow", L(a.column_overflow_m3), "L");
   row("through the nozzle", L(a.nozzle_m3), "L");
   row("  of which dribble", L(a.dribble_m3), "L");
+  row("evaporated", L(a.evaporation_m3), "L");
   row("storage change", L(r.final.water_m3() - r.initial.water_m3()), "L");
   row("balance error (relative)", num(r.balance_relative_error * 1e9, 3) + "e-9", "");
   out << " energy\n";
@@ -427,6 +432,10 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
               kSecondsPerHour * kMmPerM,
           1),
       "mm/h");
+  out << " standing water (above the drained level, release not running)\n";
+  row("longest spell", num(r.standing_longest_s / kSecondsPerDay, 1), "days");
+  row("spells over 7 days", std::to_string(r.standing_spells_over_week), "");
+  row("days in all", num(r.standing_s / kSecondsPerDay, 1), "days");
   out << " battery\n";
   row("state of charge, lowest", num(summary.min_soc() * 100.0, 1), "%");
   row("time below half charge", num(a.battery_below_half_s / kSecondsPerHour, 1), "h");

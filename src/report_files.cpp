@@ -326,6 +326,11 @@ Summary read_summary(const fs::path& path) {
   s.battery_hours_below_half = json_optional_number(root, "battery.hours_below_half", file);
   s.battery_hours_empty = json_optional_number(root, "battery.hours_empty", file);
   s.load_served_share = json_optional_number(root, "battery.load_served_share", file);
+  s.evaporation_L = json_optional_number(root, "water_L.evaporation", file);
+  s.standing_longest_days = json_optional_number(root, "standing_water.longest_days", file);
+  s.standing_spells_over_7_days =
+      json_optional_number(root, "standing_water.spells_over_7_days", file);
+  s.standing_days_total = json_optional_number(root, "standing_water.days_total", file);
   const Json* months = find_key(root, "months");
   if (months == nullptr) throw InputError(file, 0, "months", "missing");
   if (!months->is_array()) throw InputError(file, 0, "months", "expected an array");

@@ -88,6 +88,9 @@ struct Summary {
   /// Battery losses and times (absent from summaries written before they were kept).
   std::optional<double> discharge_loss_Wh, self_discharge_Wh, battery_hours_below_half,
       battery_hours_empty, load_served_share;
+  /// Evaporation and standing water (absent from summaries written before they were kept).
+  std::optional<double> evaporation_L, standing_longest_days, standing_spells_over_7_days,
+      standing_days_total;
   std::vector<MonthRow> months;
 };
 

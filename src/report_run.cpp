@@ -340,6 +340,18 @@ std::string headline_section(const Run& run) {
   body += row_html("Release cycles", pretty(s.cycles));
   body += row_html("Overflow episodes", pretty(s.overflow_events));
   body += row_html("hours overflowing", with_unit(s.overflow_hours, "h"), "", true);
+  if (s.evaporation_L) body += row_html("Evaporated", with_unit(*s.evaporation_L, "L"));
+  if (s.standing_days_total) {
+    body +=
+        row_html("Water standing (release not running)", with_unit(*s.standing_days_total, "days"));
+  }
+  if (s.standing_longest_days) {
+    body += row_html("longest spell", with_unit(*s.standing_longest_days, "days"), "", true);
+  }
+  if (s.standing_spells_over_7_days) {
+    body += row_html("spells over 7 days (mosquitoes breed in about 7)",
+                     pretty(*s.standing_spells_over_7_days), "", true);
+  }
   if (s.trigger_mm) body += row_html("Trigger level", with_unit(*s.trigger_mm, "mm"));
   if (s.break_mm) body += row_html("Break level", with_unit(*s.break_mm, "mm"));
   if (s.rim_mm) body += row_html("Rim level", with_unit(*s.rim_mm, "mm"));

@@ -318,4 +318,18 @@ double ReservoirGeometry::overflow_m3_per_s(double level_m) const {
   return weir_flow_m3_per_s(weir_coefficient_, weir_length_m_, level_m - rim_m_);
 }
 
+double evaporation_rate_m_per_s(const ReservoirConfig& config, int month) {
+  const std::vector<double>& e = config.evaporation_m_per_s;
+  if (e.empty()) return 0.0;
+  if (e.size() == 1) return e.front();
+  return e[static_cast<std::size_t>(std::clamp(month, 1, 12) - 1)];
+}
+
+double evaporation_m3_per_s(double rate_m_per_s, double surface_m2, double level_m) {
+  // Open-water evaporation as a depth per time over the exposed surface (FAO Irrigation and
+  // Drainage Paper 56, Allen et al. 1998: evaporation expressed as mm/day of water depth).
+  const double film = std::clamp(level_m / kEvaporationFilm_m, 0.0, 1.0);
+  return rate_m_per_s * surface_m2 * film;
+}
+
 }  // namespace gutterwatt

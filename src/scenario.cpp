@@ -562,6 +562,17 @@ const std::vector<Section>& schema() {
             [](V v, S s) { s.reservoir.overflow_length_m = v.number(kPositive); }},
            {"initial_level_mm", kOptional,
             [](V v, S s) { s.reservoir.initial_level_m = v.number(kNonNegative) * kMetresPerMm; }},
+           {"evaporation_mm_per_day", kOptional,
+            [](V v, S s) {
+              std::vector<double> e = v.node().IsSequence() ? v.numbers(kNonNegative)
+                                                            : std::vector{v.number(kNonNegative)};
+              if (e.size() != 1 && e.size() != 12) {
+                v.fail("must be one number or twelve, January to December (got " +
+                       std::to_string(e.size()) + ")");
+              }
+              for (double& x : e) x *= kMetresPerMm / kSecondsPerDay;
+              s.reservoir.evaporation_m_per_s = std::move(e);
+            }},
            {"levels_mm", kOptional,
             [](V v, S s) {
               s.reservoir.table_level_m.clear();

@@ -145,6 +145,7 @@ RunResult Engine::run() {
     } else {
       f.load_W = sc_.battery.load_W;
     }
+    f.evaporation_m_per_s = evaporation_rate_m_per_s(sc_.reservoir, month);
     rain_.need(next);
     learn_end();
     if (end) next = std::min(next, *end);
@@ -228,10 +229,13 @@ RunResult Engine::run() {
   result_.overflow_s = counts.overflow_s;
   result_.dribble_episodes = counts.dribble_episodes;
   result_.dribble_s = counts.dribble_s;
+  result_.standing_s = counts.standing_s;
+  result_.standing_longest_s = counts.standing_longest_s;
+  result_.standing_spells_over_week = counts.standing_spells_over_week;
   result_.stats = stepper_.stats();
   const Accounts& a = result_.totals;
   const double out = a.roof_loss_m3 + a.first_flush_m3 + a.reservoir_overflow_m3 +
-                     a.column_overflow_m3 + a.nozzle_m3;
+                     a.column_overflow_m3 + a.nozzle_m3 + a.evaporation_m3;
   const double stored = result_.final.water_m3() - result_.initial.water_m3();
   result_.balance_error_m3 = a.rain_m3 - out - stored;
   const double scale = std::max({a.rain_m3, std::abs(result_.initial.water_m3()), 1e-9});

@@ -32,7 +32,9 @@ TEST(Cli, DemoRunWritesThreeFilesWithEnergyAndAClosedBalance) {
   const double closing = w["rain"].get<double>() - w["roof_loss"].get<double>() -
                          w["first_flush"].get<double>() - w["reservoir_overflow"].get<double>() -
                          w["column_overflow"].get<double>() - w["through_nozzle"].get<double>() -
-                         w["storage_change"].get<double>();
+                         w["evaporation"].get<double>() - w["storage_change"].get<double>();
+  EXPECT_GT(w["evaporation"].get<double>(), 0.0);
+  EXPECT_GT(summary["standing_water"]["days_total"].get<double>(), 0.0);
   EXPECT_NEAR(closing, 0.0, 1e-3);  // the printed accounts are rounded to 1e-6 L each
   EXPECT_EQ(summary["months"].size(), 9u);
   const std::string ts = slurp(dir / "out" / "timeseries.csv");

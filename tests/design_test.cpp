@@ -141,6 +141,24 @@ TEST(Design, WarnsWhenTheGeneratorNeverReachesTheBatteryVoltage) {
   EXPECT_NE(std::find(d.warnings.begin(), d.warnings.end(), expected), d.warnings.end());
 }
 
+TEST(Design, WarnsWhenWaterStandsAboveTheBellRimLongerThanAWeek) {
+  // Lip 50 mm, rim 8 mm: 42 mm held, which a level pool loses at the evaporation rate whatever
+  // its section: 42 / 4.5 = 9.33 days (> 7); at 7 mm/day, 6 days (no warning).
+  Scenario s = make_scenario();
+  s.reservoir.evaporation_m_per_s = {4.5e-3 / 86400.0};
+  const std::string expected =
+      "Between storms the reservoir holds water up to the standpipe lip (50 mm), 42 mm above the "
+      "bell rim, which only evaporation lowers: even at the highest evaporation given (4.5 "
+      "mm/day) that takes 9.3 days. Mosquitoes breed in standing water in about 7 days (common "
+      "practice): screen every opening or empty it weekly.";
+  const DesignFigures d = evaluate_design(s, nullptr);
+  EXPECT_NE(std::find(d.warnings.begin(), d.warnings.end(), expected), d.warnings.end());
+  s.reservoir.evaporation_m_per_s = {7e-3 / 86400.0};
+  const DesignFigures quick = evaluate_design(s, nullptr);
+  for (const std::string& w : quick.warnings)
+    EXPECT_EQ(w.find("Between storms"), std::string::npos);
+}
+
 TEST(Design, WarnsWhenCutInExceedsTheDesignPower) {
   Scenario s = make_scenario();
   s.generator.cut_in_W = 1000.0;

@@ -46,6 +46,24 @@ double segment_by_angle(double r, double h) {
   return 0.5 * r * r * (theta - std::sin(theta));
 }
 
+TEST(Reservoir, EvaporationIsTheRateTimesTheSurfaceAboveTheFilm) {
+  // 3 mm/day over 2 m2 is 6 L/day = 6.944444e-8 m3/s; at half the 1 mm film, half of it.
+  const double rate = 3e-3 / 86400.0;
+  EXPECT_NEAR(evaporation_m3_per_s(rate, 2.0, 0.05), 6.944444444e-8, 1e-16);
+  EXPECT_NEAR(evaporation_m3_per_s(rate, 2.0, 0.0005), 3.472222222e-8, 1e-16);
+  EXPECT_EQ(evaporation_m3_per_s(rate, 2.0, 0.0), 0.0);
+}
+
+TEST(Reservoir, EvaporationRateIsOneForTheYearOrOneAMonth) {
+  ReservoirConfig c;
+  EXPECT_EQ(evaporation_rate_m_per_s(c, 7), 0.0);
+  c.evaporation_m_per_s = {2.0};
+  EXPECT_EQ(evaporation_rate_m_per_s(c, 7), 2.0);
+  c.evaporation_m_per_s = {1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12};
+  EXPECT_EQ(evaporation_rate_m_per_s(c, 1), 1.0);
+  EXPECT_EQ(evaporation_rate_m_per_s(c, 12), 12.0);
+}
+
 TEST(Reservoir, HalfFullSegmentIsHalfTheCircle) {
   // Half a circle of radius r: pi r^2 / 2 (plane geometry, exact).
   const double r = 0.0625;

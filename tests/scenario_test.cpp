@@ -215,6 +215,19 @@ TEST(Scenario, BatteryChemistrySetsPresetsThatItsKeysOverride) {
             "--set: battery.self_discharge_per_month: must be >= 0 and < 1 (got 1)");
 }
 
+TEST(Scenario, EvaporationIsOneNumberOrTwelve) {
+  const Scenario one = parse(minimal(), {"reservoir.evaporation_mm_per_day=3"});
+  ASSERT_EQ(one.reservoir.evaporation_m_per_s.size(), 1u);
+  EXPECT_DOUBLE_EQ(one.reservoir.evaporation_m_per_s[0], 3e-3 / 86400.0);
+  const Scenario twelve = parse(
+      minimal(), {"reservoir.evaporation_mm_per_day=[0.5, 1, 1.5, 2, 3, 4, 5, 4, 3, 2, 1, 0.5]"});
+  ASSERT_EQ(twelve.reservoir.evaporation_m_per_s.size(), 12u);
+  EXPECT_DOUBLE_EQ(twelve.reservoir.evaporation_m_per_s[6], 5e-3 / 86400.0);
+  EXPECT_EQ(error_of(minimal(), {"reservoir.evaporation_mm_per_day=[1, 2, 3]"}),
+            "--set: reservoir.evaporation_mm_per_day: must be one number or twelve, January to "
+            "December (got 3)");
+}
+
 TEST(Scenario, GeneratorVoltsPerRpmNeedTheBatteryVoltage) {
   EXPECT_EQ(error_of(minimal(), {"generator.volts_per_rpm=0.01"}),
             "demo.yaml:25: battery.voltage_V: missing required key (needed by "

@@ -493,6 +493,38 @@ TEST(Simulation, DryRecordLeavesLoadUnmetOnceTheBatteryIsEmpty) {
   EXPECT_EQ(obs.samples.back().soc, 0.0);
 }
 
+TEST(Simulation, StandingWaterEvaporatesFromATankAtRest) {
+  // A 0.1 x 8 m box (0.8 m2) holding 50 mm (40 L), no release, no rain, 5 mm/day: the level
+  // falls 5 mm a day and reaches the 1 mm film after 49 / 5 = 9.8 days; below it the film
+  // decays as exp(-5 t / 1 mm per day), 1e-3 x exp(-11) of a metre left after 12 days. So 40 L
+  // evaporate (less 1.3e-5 mL), and the water stands 9.8 days, timed to the next output hour.
+  Scenario s = make_scenario(12.0 * 86400.0, 3600.0);
+  s.release.kind = ReleaseKind::none;
+  s.reservoir.initial_level_m = 0.050;
+  s.reservoir.evaporation_m_per_s = {5e-3 / 86400.0};
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_rain(kStart, kStart + 12 * 86400, 0.0), obs);
+  EXPECT_NEAR(r.totals.evaporation_m3 * 1e3, 40.0, 1e-4);
+  EXPECT_GE(r.standing_s, 9.8 * 86400.0);
+  EXPECT_LE(r.standing_s, 9.8 * 86400.0 + 3600.0);
+  EXPECT_EQ(r.standing_longest_s, r.standing_s);
+  EXPECT_EQ(r.standing_spells_over_week, 1);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
+TEST(Simulation, EvaporationWhileCyclingIsTheRateTimesTheSurface) {
+  // The bell cycles between 50 and 8 mm in the 0.8 m2 box, never below the 1 mm film: at
+  // 5 mm/day for 6 h, 5 x 0.25 x 0.8 = 1.0 L evaporates, whatever the cycles do.
+  Scenario s = make_scenario(6.0 * 3600.0, 60.0);
+  s.reservoir.initial_level_m = 0.008;
+  s.reservoir.evaporation_m_per_s = {5e-3 / 86400.0};
+  RecordingObserver obs;
+  const RunResult r = simulate(s, constant_inflow(s, 4.0 * kLitre_m3 * kPerMinute), obs);
+  EXPECT_GT(r.cycles, 0);
+  EXPECT_NEAR(r.totals.evaporation_m3 * 1e3, 1.0, 1e-6);
+  EXPECT_LT(r.balance_relative_error, kBalance);
+}
+
 // A switch is located to 1e-7 s; at the storms' 0.11 L/s that leaves 1e-11 m3 on either side.
 constexpr double kSwitchVolume = 1e-10;
 

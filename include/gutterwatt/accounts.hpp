@@ -24,6 +24,7 @@ struct Accounts {
   double release_m3 = 0.0;  ///< out of the reservoir into the drop pipe
   double dribble_m3 = 0.0;  ///< the part of release_m3 that left while not running
   double nozzle_m3 = 0.0;
+  double evaporation_m3 = 0.0;  ///< from the reservoir's water surface
   double jet_J = 0.0;
   double shaft_J = 0.0;
   double electrical_J = 0.0;  ///< delivered by the generator (above cut-in)
@@ -108,7 +109,17 @@ struct EpisodeCounts {
   double overflow_s = 0.0;
   long dribble_episodes = 0;
   double dribble_s = 0.0;
+  double standing_s = 0.0;  ///< total time with water standing
+  double standing_longest_s = 0.0;
+  long standing_spells_over_week = 0;  ///< spells longer than kMosquitoSpell_s
 };
+
+/// Water stands when it is held more than this above the level the release drains to (a film
+/// under a millimetre dries within hours): a project choice, no source.
+inline constexpr double kStandingDepth_m = 1e-3;
+/// Standing water breeds mosquitoes from egg to adult in about 7-10 days in warm weather; public
+/// health guidance is to empty it at least weekly (REFERENCES.md section 13; common practice).
+inline constexpr double kMosquitoSpell_s = 7.0 * 86400.0;
 
 /// What the roof stage made of a span in closed form, m3.
 struct RoofFlows {
@@ -145,6 +156,11 @@ class Ledger {
   /// a head column's brim: opens and closes episodes.
   void switched(const ChainMode& before, const ChainMode& after, const ChainState& x,
                 double spilled_m3, double t);
+  /// Follows standing water at `t` with the reservoir at `level_m` in mode `m`: water held more
+  /// than kStandingDepth_m above the drained level while the release does not run. Called at the
+  /// end of every step and span at rest, so a spell is timed to a step (at most 30 min) or to a
+  /// span at rest (at most an output interval), and exactly where a release starts.
+  void follow_standing(double level_m, const ChainMode& m, double t);
   /// Raises the open episodes' peaks to the flows in `r`.
   void update_peaks(const ChainRates& r);
   /// Closes every open episode at the end of the run.
@@ -175,6 +191,8 @@ class Ledger {
   Accounts tally_;  // the accounts tallied outside the state; the others stay zero
   std::array<OpenEpisode, 4> episodes_{};
   EpisodeCounts counts_;
+  bool standing_ = false;
+  double standing_since_s_ = 0.0;
 };
 
 }  // namespace gutterwatt

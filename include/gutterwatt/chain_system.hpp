@@ -34,6 +34,7 @@ enum Slot : std::size_t {
   kCurtailed,
   kServed,
   kUnmet,
+  kEvaporation,    ///< m3 evaporated from the reservoir
   kDrawn,          ///< J delivered by the battery to the load
   kSelfDischarge,  ///< J lost by the battery's self-discharge
   kSlots
@@ -62,14 +63,16 @@ struct ChainMode {
 struct Forcing {
   double rain_m_per_s = 0.0;
   double load_W = 0.0;
+  double evaporation_m_per_s = 0.0;  ///< open-water evaporation of the segment's month
 };
 
 /// Every rate and intermediate value at one instant.
 struct ChainRates {
   double level_m = 0.0;
-  double release = 0.0;   ///< m3/s
-  double overflow = 0.0;  ///< m3/s over the reservoir's rim
-  double nozzle = 0.0;    ///< m3/s
+  double release = 0.0;      ///< m3/s
+  double overflow = 0.0;     ///< m3/s over the reservoir's rim
+  double evaporation = 0.0;  ///< m3/s from the reservoir's water surface
+  double nozzle = 0.0;       ///< m3/s
   double column_overflow = 0.0;
   double head_m = 0.0;
   PlantPower power;
@@ -124,6 +127,13 @@ class ChainSystem {
   /// overflows and the head column is empty or passes a trickle: the chain is then linear.
   bool at_rest(const ChainState& x, const ChainMode& m, const Forcing& f, double span_s) const;
 
+  /// Evaporation from the reservoir holding `volume_m3` under `f`, m3/s.
+  double evaporation_m3_per_s(double volume_m3, const Forcing& f) const;
+  /// The reservoir's level in state `x`.
+  double level_m(const ChainState& x) const { return geometry_.level_m(x[kReservoir]); }
+  /// The level the release drains the reservoir down to (see drained_level_m).
+  double drained_level_m() const { return drained_level_m_; }
+
   /// The state and mode at the start of a run.
   ChainState initial_state() const;
   ChainMode initial_mode(const ChainState& x) const;
@@ -143,6 +153,7 @@ class ChainSystem {
   Plant plant_;
   std::unique_ptr<Release> release_;
   double trickle_volume_m3_;  // head column: volume at kTrickleHead_m
+  double drained_level_m_;
 };
 
 }  // namespace gutterwatt

@@ -66,7 +66,22 @@ struct ReservoirConfig {
   std::vector<double> table_level_m;  ///< table: levels above the floor, increasing from 0
   std::vector<double> table_area_m2;  ///< table: plan (water-surface) area at each level
   double initial_level_m = 0.0;
+  /// Open-water evaporation from the exposed surface, m/s: none, one value for the year, or twelve
+  /// for January to December (local months).
+  std::vector<double> evaporation_m_per_s;
 };
+
+/// The evaporation rate of local `month` (1..12), m/s; 0 when none is given.
+double evaporation_rate_m_per_s(const ReservoirConfig& config, int month);
+
+/// Depth below which evaporation slows in proportion to the depth left (a film held in the
+/// roughness of the floor), so that a flat-floored reservoir dries towards empty without passing
+/// it: a project choice, no source.
+inline constexpr double kEvaporationFilm_m = 1e-3;
+
+/// Evaporation from a reservoir at `level_m` whose water surface has plan area `surface_m2`, at
+/// rate `rate_m_per_s`: E A, times level / kEvaporationFilm_m below the film depth, m3/s.
+double evaporation_m3_per_s(double rate_m_per_s, double surface_m2, double level_m);
 
 /// The cross-section of every shape but table (a k_style of a size without a profile: a box).
 CrossSection section_of(const ReservoirConfig& config);

@@ -18,13 +18,17 @@ struct RunResult {
   Accounts totals;
   Storage initial;
   Storage final;
-  double balance_error_m3 = 0.0;  ///< rain - losses - overflows - nozzle - storage change
+  double balance_error_m3 =
+      0.0;  ///< rain - losses - overflows - nozzle - evaporation - storage change
   double balance_relative_error = 0.0;
   long cycles = 0;
   long overflow_events = 0;
   double overflow_s = 0.0;
   long dribble_episodes = 0;
   double dribble_s = 0.0;
+  double standing_s = 0.0;  ///< water standing (see Ledger::follow_standing), in all
+  double standing_longest_s = 0.0;
+  long standing_spells_over_week = 0;
   SolverStats stats;
 };
 

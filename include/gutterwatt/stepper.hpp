@@ -60,6 +60,7 @@ class Stepper {
                    const Forcing& f, double t_abs);
   void switch_mode(int k, const Forcing& f, const ChainRates& r);
   void coast(double dt, const Forcing& f);
+  void evaporate_at_rest(double dt, const Forcing& f);
 
   const ChainSystem& system_;
   Ledger& ledger_;
