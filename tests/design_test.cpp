@@ -32,10 +32,10 @@ TEST(Design, BellStorageRunsToThePrimingLevel) {
   const Scenario s = make_scenario();
   const DesignFigures d = evaluate_design(s, nullptr);
   ASSERT_TRUE(d.priming_level_m);
-  // Weir head of the priming flow over the lip, h = (Q / (C pi d))^(2/3).
-  const double head = std::pow(s.release.priming_flow_m3_per_s / (1.77 * M_PI * 0.019), 2.0 / 3.0);
-  EXPECT_NEAR(*d.priming_level_m, 0.050 + head, 1e-12);
-  EXPECT_NEAR(*d.storage_m3, 0.1 * 8.0 * (0.050 + head - 0.008), 1e-12);
+  // Weir head of the priming flow over the lip (ISO 1438 form), by hand h = (Q / (C pi d))^(2/3)
+  // = (5e-5 / (1.77 pi 0.019))^(2/3) = 6.072891 mm; storage 0.8 m2 x 48.072891 mm = 38.458313 L.
+  EXPECT_NEAR(*d.priming_level_m, 0.056072891, 1e-9);
+  EXPECT_NEAR(*d.storage_m3, 38.458313e-3, 1e-9);
 }
 
 TEST(Design, PrimingFlowAsRainIntensityFollowsTheRationalMethod) {
@@ -45,7 +45,7 @@ TEST(Design, PrimingFlowAsRainIntensityFollowsTheRationalMethod) {
   const DesignFigures d = evaluate_design(s, nullptr);
   // Rational method Q = C i A (ASCE/WPCF 1969 as in Chow et al. 1988): i = Q / (C A);
   // 2 L/min on 0.9 x 40 m2 is 3.333 mm/h.
-  EXPECT_NEAR(*d.priming_intensity_m_per_s * 3.6e6, 2.0 * 60.0 / (0.9 * 40.0), 1e-9);
+  EXPECT_NEAR(*d.priming_intensity_m_per_s * 3.6e6, 3.3333333333, 1e-9);
 }
 
 TEST(Design, HeadColumnRunningFlowMatchesTheFullBoreSiphonWorkedCheck) {
@@ -68,16 +68,16 @@ TEST(Design, NozzleFiguresAtTheColumnHeadFollowTorricelli) {
   s.head_column = HeadColumnConfig{0.12, 3.0};
   const DesignFigures d = evaluate_design(s, nullptr);
   EXPECT_DOUBLE_EQ(d.design_head_m, 3.0);
-  // Q = Cd A sqrt(2 g H), V = Cv sqrt(2 g H): Torricelli with coefficients (REFERENCES.md 5).
-  const double area = M_PI * 0.005 * 0.005 / 4.0;
-  EXPECT_NEAR(d.nozzle_flow_m3_per_s, 0.95 * area * std::sqrt(2.0 * kG * 3.0), 1e-12);
-  EXPECT_NEAR(d.jet_velocity_m_per_s, 0.97 * std::sqrt(2.0 * kG * 3.0), 1e-12);
-  // Jet power rho Q V^2 / 2; electrical = best-speed peak efficiency x generator efficiency.
-  const double rho = water_density_kg_per_m3(15.0);
-  const double jet =
-      0.5 * rho * d.nozzle_flow_m3_per_s * d.jet_velocity_m_per_s * d.jet_velocity_m_per_s;
-  EXPECT_NEAR(d.jet_power_W, jet, 1e-9);
-  EXPECT_NEAR(d.electrical_power_W, jet * 0.7 * 0.65, 1e-9);
+  // Q = Cd A sqrt(2 g H), V = Cv sqrt(2 g H): Torricelli with coefficients (REFERENCES.md 5), by
+  // hand for the 5 mm nozzle under 3 m: Q = 0.95 x 1.963495e-5 x 7.670720 = 0.1430835 L/s,
+  // V = 0.97 x 7.670720 = 7.440596 m/s.
+  EXPECT_NEAR(d.nozzle_flow_m3_per_s, 0.1430835e-3, 1e-10);
+  EXPECT_NEAR(d.jet_velocity_m_per_s, 7.440596, 1e-6);
+  // Jet power rho Q V^2 / 2 at 15 C (rho 999.101 kg/m3, REFERENCES.md section 2, 0.05 %) =
+  // 3.957166 W; electrical = best-speed peak efficiency x generator efficiency, 0.7 x 0.65 of it
+  // = 1.800510 W.
+  EXPECT_NEAR(d.jet_power_W, 3.957166, 3.957166 * 5e-4);
+  EXPECT_NEAR(d.electrical_power_W, 1.800510, 1.800510 * 5e-4);
 }
 
 TEST(Design, EnergyPerCycleIsTheStoredWaterTimesHeadTimesTheChainEfficiency) {
@@ -91,7 +91,7 @@ TEST(Design, EnergyPerCycleIsTheStoredWaterTimesHeadTimesTheChainEfficiency) {
   s.drop_pipe = Pipe{0.05, 20.0, 0.0015e-3, 0.5};
   const DesignFigures d = evaluate_design(s, nullptr);
   ASSERT_TRUE(d.energy_per_cycle_J);
-  const double rho = water_density_kg_per_m3(15.0);
+  const double rho = 999.101;  // 15 C, REFERENCES.md section 2
   const double eta = 0.97 * 0.97 * 0.7 * 0.65;
   const double e = rho * kG * *d.storage_m3 * d.design_head_m * eta;
   EXPECT_NEAR(*d.energy_per_cycle_J, e, 0.01 * e);

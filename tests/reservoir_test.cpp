@@ -84,15 +84,17 @@ TEST(Reservoir, HalfRoundVolumeIsSegmentAreaTimesLength) {
   const ReservoirGeometry g(half_round(0.125, 8.0, 0.0625));
   // Brim-full half-round: pi r^2 L / 2 (plane geometry).
   EXPECT_NEAR(g.volume_m3(0.0625), 0.5 * kPi * 0.0625 * 0.0625 * 8.0, 1e-15);
-  EXPECT_NEAR(g.volume_m3(0.02), segment_by_angle(0.0625, 0.02) * 8.0, 1e-14);
+  // By hand at 20 mm: theta = 2 acos(42.5 / 62.5) = 1.6045 rad, segment 0.5 r^2 (theta -
+  // sin theta) = 1.267381e-3 m2, times 8 m = 10.139046 L.
+  EXPECT_NEAR(g.volume_m3(0.02), 10.139046e-3, 1e-9);
   EXPECT_EQ(g.volume_m3(0.0), 0.0);
 }
 
 TEST(Reservoir, HalfRoundSurfaceIsTheChordTimesLength) {
   const ReservoirGeometry g(half_round(0.125, 8.0, 0.0625));
   // Chord of a circle at depth h: 2 sqrt(2 r h - h^2) (plane geometry).
-  const double h = 0.02;
-  EXPECT_NEAR(g.surface_area_m2(h), 2.0 * std::sqrt(2.0 * 0.0625 * h - h * h) * 8.0, 1e-14);
+  // By hand at 20 mm: 2 sqrt(2 x 0.0625 x 0.02 - 0.02^2) x 8 = 0.733212 m2.
+  EXPECT_NEAR(g.surface_area_m2(0.02), 0.7332121, 1e-7);
   EXPECT_NEAR(g.surface_area_m2(0.0625), 0.125 * 8.0, 1e-14);
 }
 
@@ -138,9 +140,10 @@ TEST(Reservoir, TableLevelAndVolumeRoundTrip) {
 
 TEST(Reservoir, WallsAreVerticalAboveTheRim) {
   const ReservoirGeometry g(half_round(0.125, 8.0, 0.05));
-  const double rim_area = g.surface_area_m2(0.05);
-  EXPECT_NEAR(g.volume_m3(0.06) - g.volume_m3(0.05), 0.01 * rim_area, 1e-15);
-  EXPECT_EQ(g.surface_area_m2(0.3), rim_area);
+  // The rim's chord at 50 mm of a 62.5 mm radius, by hand: 2 sqrt(2 x 0.0625 x 0.05 - 0.05^2)
+  // = 0.122474 m, so 0.979796 m2 over 8 m, and 10 mm above the rim 9.797959 L.
+  EXPECT_NEAR(g.volume_m3(0.06) - g.volume_m3(0.05), 9.797959e-3, 1e-9);
+  EXPECT_NEAR(g.surface_area_m2(0.3), 0.9797959, 1e-7);
 }
 
 TEST(Reservoir, OverflowsAsAWeirAboveTheRimOnly) {
@@ -149,14 +152,14 @@ TEST(Reservoir, OverflowsAsAWeirAboveTheRimOnly) {
   EXPECT_EQ(g.overflow_m3_per_s(0.062), 0.0);
   // Weir Q = C L h^1.5 on the head over the rim: source: ISO 3846 broad-crested form, REFERENCES.md
   // section 6 (lumped C = 1.7 m^0.5/s, from Cd 1.0 the 1.7046 of that section).
-  const double head = 0.01;
-  EXPECT_NEAR(g.overflow_m3_per_s(0.062 + head), 1.7 * 8.0 * std::pow(head, 1.5), 1e-15);
+  // By hand: 1.7 x 8 x 0.01^1.5 = 0.0136 m3/s.
+  EXPECT_NEAR(g.overflow_m3_per_s(0.062 + 0.01), 0.0136, 1e-15);
 }
 
 TEST(Reservoir, OverflowUsesTheGivenWeirLength) {
   const ReservoirGeometry g(table());
-  const double head = 0.02;
-  EXPECT_NEAR(g.overflow_m3_per_s(0.3 + head), 1.7 * 0.5 * std::pow(head, 1.5), 1e-15);
+  // By hand: 1.7 x 0.5 x 0.02^1.5 = 2.404163e-3 m3/s.
+  EXPECT_NEAR(g.overflow_m3_per_s(0.3 + 0.02), 2.404163e-3, 1e-9);
 }
 
 TEST(Reservoir, BroadCrestedExampleFlow) {

@@ -159,51 +159,31 @@ TEST(Simulation, InflowBelowThePrimingFlowOnlyDribbles) {
   EXPECT_EQ(r.totals.dribble_m3, r.totals.release_m3);
   EXPECT_EQ(r.totals.nozzle_m3, r.totals.release_m3);
   EXPECT_EQ(r.totals.reservoir_overflow_m3, 0.0);
-  // The level settles at lip + weir head of the inflow, h = (q / (C pi d))^(2/3).
-  const double head = std::pow(
-      inflow / (s.release.lip_coefficient * kPi * s.release.standpipe_diameter_m), 2.0 / 3.0);
-  EXPECT_LT(relative_error(obs.samples.back().level_m, s.release.trigger_level_m + head), 1e-6);
+  // The level settles at lip + weir head of the inflow, by hand h = (q / (C pi d))^(2/3) =
+  // (3.333333e-5 / (1.77 pi 0.019))^(2/3) = 4.634483 mm (ISO 1438 weir form).
+  EXPECT_NEAR(obs.samples.back().level_m * 1e3, 54.634483, 1e-5);
   EXPECT_LT(r.balance_relative_error, kBalance);
 }
 
 // Closed-form cycle of a bell siphon under constant inflow q, starting idle at the bell rim: fill
 // at q to the lip plus the hold head (no outflow), then fill against the lip's weir flow to the
 // priming level, then drain at Q_run(h) - q down to the rim; dV = A(h) dh with A the surface.
+// Each is computed by hand outside the code (Simpson's rule on the published forms: weir law
+// ISO 1438 form with C_w 1.77; Q_run from the energy equation with Darcy-Weisbach and Colebrook,
+// REFERENCES.md sections 3-5, at 15 C with nu 1.1386 mm2/s from section 2). The viscosity's
+// +-0.5 % moves a drain by at most 0.03 s; the integrator's own accuracy is accuracy_test's.
 struct BellCycle {
   double fill_s;
   double drain_s;
   double period_s() const { return fill_s + drain_s; }
 };
 
-BellCycle bell_cycle(const Scenario& s, double inflow) {
-  const BellSiphon bell(s.release);
-  const Plant plant(plant_config(s));
-  const ReservoirGeometry geometry(s.reservoir);
-  const double lip = s.release.trigger_level_m;
-  const double rim = s.release.break_level_m;
-  const double weir = s.release.lip_coefficient * kPi * s.release.standpipe_diameter_m;
-  const double idle_s = (geometry.volume_m3(lip + kHoldHead_m) - geometry.volume_m3(rim)) / inflow;
-  // With h = lip + u^2, dh = 2 u du removes the square-root kink of the weir law at the lip.
-  const auto against_lip = [&](double u) {
-    return 2.0 * u * geometry.surface_area_m2(lip + u * u) / (inflow - weir * u * u * u);
-  };
-  const double u_prime = std::sqrt(bell.priming_level_m() - lip);
-  const double dribble_s = simpson(against_lip, std::sqrt(kHoldHead_m), u_prime, 20000);
-  const auto running = [&](double h) {
-    return geometry.surface_area_m2(h) / (plant.full_flow_m3_per_s(h) - inflow);
-  };
-  const double drain_s = simpson(running, rim, bell.priming_level_m(), 2000);
-  return {idle_s + dribble_s, drain_s};
-}
-
-// Runs `s` under constant `inflow` from the bell rim and checks the cycles against bell_cycle.
-void expect_closed_form_cycles(Scenario s, double inflow) {
+// Runs `s` under constant `inflow` from the bell rim and checks the cycles against `cycle`.
+void expect_closed_form_cycles(Scenario s, double inflow, const BellCycle& cycle) {
   const double duration_s = static_cast<double>(*s.simulation.end - *s.simulation.start);
   s.reservoir.initial_level_m = s.release.break_level_m;
   s.simulation.rtol = 1e-9;
   ASSERT_GT(inflow, s.release.priming_flow_m3_per_s);
-  ASSERT_LT(inflow, Plant(plant_config(s)).full_flow_m3_per_s(s.release.break_level_m));
-  const BellCycle cycle = bell_cycle(s, inflow);
 
   RecordingObserver obs;
   const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
@@ -215,11 +195,10 @@ void expect_closed_form_cycles(Scenario s, double inflow) {
   ASSERT_EQ(static_cast<long>(cycles.size()), r.cycles);
   ASSERT_GE(cycles.size(), 3u);
   // The switch times are located, not rounded to a step.
-  EXPECT_NEAR(cycles[0].start_s - static_cast<double>(kStart), cycle.fill_s, 1e-3);
-  EXPECT_NEAR(cycles[0].end_s - cycles[0].start_s, cycle.drain_s, 1e-3);
+  EXPECT_NEAR(cycles[0].start_s - static_cast<double>(kStart), cycle.fill_s, 2e-3);
+  EXPECT_NEAR(cycles[0].end_s - cycles[0].start_s, cycle.drain_s, 0.05);
   for (std::size_t n = 1; n < cycles.size(); ++n) {
-    EXPECT_LT(relative_error(cycles[n].start_s - cycles[n - 1].start_s, cycle.period_s()), 1e-6)
-        << n;
+    EXPECT_NEAR(cycles[n].start_s - cycles[n - 1].start_s, cycle.period_s(), 0.05) << n;
   }
   // One dribble before each priming, and perhaps one still under way at the end.
   EXPECT_GE(r.dribble_episodes, r.cycles);
@@ -228,27 +207,24 @@ void expect_closed_form_cycles(Scenario s, double inflow) {
   EXPECT_LT(r.balance_relative_error, kBalance);
 }
 
+// The default chain's box (0.1 m x 8 m = 0.8 m2) at q = 0.1 L/s, lip 50 mm, rim 8 mm, by hand:
+// idle fill 0.8 (0.050 + 1e-5 - 0.008) / 1e-4 = 336.08 s; priming head (5e-5 / (1.77 pi
+// 0.019))^(2/3) = 6.0729 mm (above the drowned mouth's 4.26 mm), dribble fill to it 63.108 s;
+// drain from the priming level to the rim 614.420 s (Q_run 0.162958 L/s at 50 mm).
+constexpr BellCycle kBoxCycle{399.1883, 614.4202};
+
 TEST(Simulation, InflowAbovePrimingCyclesWithTheClosedFormPeriod) {
-  const Scenario s = make_scenario(6.0 * 3600.0, 60.0);
-  const double inflow = 6.0 * kLitre_m3 * kPerMinute;
-  // Hand computation of the closed form, outside the code, for the default chain: plan area
-  // 0.1 m x 8 m = 0.8 m2, q = 0.1 L/s, lip 50 mm, rim 8 mm. Idle fill 0.8 (0.050 + 1e-5 - 0.008)
-  // / 1e-4 = 336.08 s. Priming head (q_p / (C_w pi d))^(2/3) = (5e-5 / (1.77 pi 0.019))^(2/3) =
-  // 6.073 mm (weir law, ISO 1438 form; above the drowned mouth's 4.26 mm); dribble fill
-  // integral of A dh / (q - C_w pi d (h - lip)^1.5) to there 63.11 s. Drain integral of
-  // A dh / (Q_run(h) - q) from the priming level to the rim, Q_run nozzle-controlled (the hand
-  // computation in plant_test: Darcy-Weisbach, Colebrook, 15 C) = 614.42 s (nu +-0.5 %: 0.03 s).
-  const BellCycle cycle = bell_cycle(s, inflow);
-  EXPECT_NEAR(cycle.fill_s, 399.19, 0.01);
-  EXPECT_NEAR(cycle.drain_s, 614.42, 0.05);
-  expect_closed_form_cycles(s, inflow);
+  expect_closed_form_cycles(make_scenario(6.0 * 3600.0, 60.0), 6.0 * kLitre_m3 * kPerMinute,
+                            kBoxCycle);
 }
 
 TEST(Simulation, HalfRoundGutterCyclesWithTheClosedFormPeriod) {
+  // The 125 mm half-round, 8 m, at 7 L/min, by hand as above with A(h) = 2 sqrt(2 r h - h^2) L
+  // and V(h) the circular segment times L: fill 355.4216 s, drain 870.6574 s.
   Scenario s = make_scenario(6.0 * 3600.0, 60.0);
   s.reservoir.shape = ReservoirShape::half_round;
   s.reservoir.width_m = 0.125;
-  expect_closed_form_cycles(s, 7.0 * kLitre_m3 * kPerMinute);
+  expect_closed_form_cycles(s, 7.0 * kLitre_m3 * kPerMinute, BellCycle{355.4216, 870.6574});
 }
 
 TEST(Simulation, EachCycleReleasesTheStorageBetweenSetPointsPlusTheInflow) {
@@ -256,38 +232,17 @@ TEST(Simulation, EachCycleReleasesTheStorageBetweenSetPointsPlusTheInflow) {
   s.reservoir.initial_level_m = s.release.break_level_m;
   s.simulation.rtol = 1e-9;
   const double inflow = 6.0 * kLitre_m3 * kPerMinute;
-  const BellCycle cycle = bell_cycle(s, inflow);
   RecordingObserver obs;
   simulate(s, constant_inflow(s, inflow), obs);
   const auto cycles = obs.of_kind(EpisodeKind::cycle);
   ASSERT_GE(cycles.size(), 2u);
-  // Volume from the priming level down to the rim, plus what flows in meanwhile.
-  const double storage =
-      plan_area(s) * (BellSiphon(s.release).priming_level_m() - s.release.break_level_m);
-  // Every cycle that ended before the run did.
+  // By hand: 0.8 m2 x (56.072891 - 8) mm = 38.458313 L between the priming level and the rim,
+  // plus 0.1 L/s over the 614.4202 s drain (kBoxCycle): 99.900335 L.
   for (std::size_t k = 0; k + 1 < cycles.size(); ++k) {
-    EXPECT_LT(relative_error(cycles[k].volume_m3, storage + inflow * cycle.drain_s), 1e-6) << k;
+    EXPECT_NEAR(cycles[k].volume_m3 * 1e3, 99.900335, 5e-3) << k;
     EXPECT_GT(cycles[k].energy_J, 0.0) << k;
     EXPECT_GT(cycles[k].peak_flow_m3_per_s, inflow) << k;
   }
-}
-
-// Level where the overflow over the rim carries what the running siphon cannot: bisection on
-// C_w L (h - rim)^1.5 = q - Q_run(h).
-double overflow_level(const Scenario& s, double inflow) {
-  const Plant plant(plant_config(s));
-  const ReservoirGeometry geometry(s.reservoir);
-  double lo = s.reservoir.rim_m;
-  double hi = s.reservoir.rim_m + 0.1;
-  for (int k = 0; k < 200; ++k) {
-    const double mid = 0.5 * (lo + hi);
-    if (geometry.overflow_m3_per_s(mid) > inflow - plant.full_flow_m3_per_s(mid)) {
-      hi = mid;
-    } else {
-      lo = mid;
-    }
-  }
-  return 0.5 * (lo + hi);
 }
 
 TEST(Simulation, InflowAboveTheRunningFlowOverflowsTheDifference) {
@@ -298,8 +253,10 @@ TEST(Simulation, InflowAboveTheRunningFlowOverflowsTheDifference) {
   ASSERT_GT(inflow, plant.full_flow_m3_per_s(s.reservoir.rim_m));
   RecordingObserver obs;
   const RunResult r = simulate(s, constant_inflow(s, inflow), obs);
-  const double level = overflow_level(s, inflow);
-  EXPECT_LT(relative_error(obs.samples.back().level_m, level), 1e-6);
+  // By hand (bisection outside the code on 1.7 x 8 (h - 0.062)^1.5 = q - Q_run(h), ISO 3846 weir
+  // form and the Q_run of the cycles above): the level settles at 62.194167 mm, where the siphon
+  // runs 0.1632038 L/s and 0.0367962 L/s overflows.
+  EXPECT_NEAR(obs.samples.back().level_m * 1e3, 62.194167, 1e-4);
   EXPECT_EQ(obs.samples.back().release, ReleaseState::running);
   // Steady state over the last hour: overflow = inflow - running flow.
   const Sample& a = obs.samples[obs.samples.size() - 61];
@@ -307,8 +264,8 @@ TEST(Simulation, InflowAboveTheRunningFlowOverflowsTheDifference) {
   const double span = static_cast<double>(b.time - a.time);
   const double overflow = (b.totals.reservoir_overflow_m3 - a.totals.reservoir_overflow_m3) / span;
   const double running = (b.totals.release_m3 - a.totals.release_m3) / span;
-  EXPECT_LT(relative_error(running, plant.full_flow_m3_per_s(level)), 1e-6);
-  EXPECT_LT(relative_error(overflow, inflow - running), 1e-6);
+  EXPECT_NEAR(running * 1e3, 0.1632038, 1e-5);
+  EXPECT_NEAR(overflow * 1e3, 0.0367962, 1e-5);
   EXPECT_EQ(r.cycles, 1);
   EXPECT_EQ(r.overflow_events, 1);
   EXPECT_EQ(obs.of_kind(EpisodeKind::overflow).size(), 1u);

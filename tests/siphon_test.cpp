@@ -27,10 +27,10 @@ constexpr double kFullFlow = 1.5e-4;  // m3/s, what the conveyance carries (inve
 
 TEST(Siphon, LipIsACircularWeir) {
   const BellSiphon s(bell());
-  // Weir Q = C L h^1.5 over the lip circumference L = pi d: source: ISO 1438 thin-plate form,
-  // REFERENCES.md section 6, with the lumped C of this project.
-  const double head = 0.004;
-  EXPECT_NEAR(s.lip_flow_m3_per_s(0.050 + head), 1.77 * kPi * 0.019 * std::pow(head, 1.5), 1e-18);
+  // Weir Q = C L h^1.5 over the lip circumference L = pi d (ISO 1438 thin-plate form,
+  // REFERENCES.md section 6, lumped C 1.77), by hand: 1.77 x pi x 0.019 x 0.004^1.5
+  // = 2.672802e-5 m3/s (4 mm, below the drowned mouth's 7.25 mm).
+  EXPECT_NEAR(s.lip_flow_m3_per_s(0.054), 2.672802e-5, 1e-11);
   EXPECT_EQ(s.lip_flow_m3_per_s(0.050), 0.0);
   EXPECT_EQ(s.lip_flow_m3_per_s(0.02), 0.0);
 }
@@ -78,9 +78,9 @@ TEST(Siphon, PrimingAboveTheTransitionWaitsForTheDrownedMouth) {
 
 TEST(Siphon, PrimingLevelIsLipPlusWeirHeadOfThePrimingFlow) {
   const BellSiphon s(bell());
-  // Inverse of the weir law: h = (Q / (C pi d))^(2/3).
-  const double head = std::pow(5e-5 / (1.77 * kPi * 0.019), 2.0 / 3.0);
-  EXPECT_NEAR(s.priming_level_m(), 0.050 + head, 1e-15);
+  // Inverse of the weir law (ISO 1438 form), by hand: h = (Q / (C pi d))^(2/3)
+  // = (5e-5 / (1.77 x pi x 0.019))^(2/3) = 6.072891 mm above the 50 mm lip.
+  EXPECT_NEAR(s.priming_level_m(), 0.056072891, 1e-9);
   EXPECT_NEAR(s.lip_flow_m3_per_s(s.priming_level_m()), 5e-5, 1e-17);
 }
 
@@ -98,8 +98,8 @@ TEST(Siphon, IdlePassesNoWater) {
 
 TEST(Siphon, DribbleIsTheLipFlowCappedByTheConveyance) {
   const BellSiphon s(bell());
-  EXPECT_EQ(s.outflow_m3_per_s(ReleaseState::dribble, 0.054, kFullFlow),
-            s.lip_flow_m3_per_s(0.054));
+  // 4 mm over the lip: 2.672802e-5 m3/s by hand (LipIsACircularWeir).
+  EXPECT_NEAR(s.outflow_m3_per_s(ReleaseState::dribble, 0.054, kFullFlow), 2.672802e-5, 1e-11);
   EXPECT_EQ(s.outflow_m3_per_s(ReleaseState::dribble, 0.054, 1e-6), 1e-6);
   EXPECT_EQ(s.outflow_m3_per_s(ReleaseState::dribble, 0.049, kFullFlow), 0.0);
 }
