@@ -52,6 +52,8 @@ constexpr MetricColumn kMetrics[] = {
     {"dribble_share", &SweepMetrics::dribble_share, true, 4},
     {"overflow_days", &SweepMetrics::overflow_days, true, 0},
     {"largest_overflow_L", &SweepMetrics::largest_overflow_L, true, 1},
+    {"standing_longest_days", &SweepMetrics::standing_longest_days, true, 2},
+    {"standing_spells_over_7_days", &SweepMetrics::standing_spells_over_7_days, true, 0},
 };
 
 // The columns the terminal table shows besides the varied keys and the rank metric.
@@ -289,6 +291,8 @@ SweepMetrics sweep_metrics(const RunResult& r, const SummaryBuilder& summary) {
   m.dribble_share = a.roof_runoff_m3 > 0.0 ? a.dribble_m3 / a.roof_runoff_m3 : 0.0;
   m.overflow_days = static_cast<double>(summary.overflow_days());
   m.largest_overflow_L = summary.largest_overflow_m3() * kLitresPerM3;
+  m.standing_longest_days = r.standing_longest_s / kSecondsPerDay;
+  m.standing_spells_over_7_days = static_cast<double>(r.standing_spells_over_week);
   return m;
 }
 

@@ -210,11 +210,12 @@ TEST(SweepRanking, TakesASignToForceTheOrder) {
 }
 
 TEST(SweepRanking, RejectsAnUnknownMetric) {
-  EXPECT_EQ(error_of([] { parse_rank("energy"); }),
-            "--rank: unknown metric \"energy\"; expected one of energy_Wh, overflow_L, dribble_L, "
-            "cycles, overflow_events, overflow_hours, curtailed_Wh, jet_Wh, stored_Wh, "
-            "unmet_load_Wh, dribble_share, overflow_days, largest_overflow_L (with - or + in "
-            "front to force descending or ascending)");
+  EXPECT_EQ(
+      error_of([] { parse_rank("energy"); }),
+      "--rank: unknown metric \"energy\"; expected one of energy_Wh, overflow_L, dribble_L, "
+      "cycles, overflow_events, overflow_hours, curtailed_Wh, jet_Wh, stored_Wh, "
+      "unmet_load_Wh, dribble_share, overflow_days, largest_overflow_L, standing_longest_days, "
+      "standing_spells_over_7_days (with - or + in front to force descending or ascending)");
 }
 
 TEST(SweepRanking, PutsTheBestFirstAndKeepsCombinationOrderForTies) {

@@ -60,6 +60,8 @@ struct SweepMetrics {
   double dribble_share = 0.0;  ///< dribble over roof runoff (0 without runoff)
   double overflow_days = 0.0;  ///< local days with a reservoir overflow episode
   double largest_overflow_L = 0.0;
+  double standing_longest_days = 0.0;        ///< longest spell of standing water
+  double standing_spells_over_7_days = 0.0;  ///< spells long enough to breed mosquitoes
 };
 
 /// The metrics of a finished run; `summary` must have observed that run.
