@@ -1,11 +1,14 @@
 #include "gutterwatt/calendar.hpp"
 
 #include <date/date.h>
+#include <date/tz.h>
 
 #include <charconv>
 #include <cmath>
 #include <cstdio>
+#include <limits>
 #include <sstream>
+#include <stdexcept>
 #include <string>
 
 #include "detail.hpp"
@@ -283,6 +286,81 @@ std::string month_label(Instant instant, int offset_s) {
   out += '-';
   append_padded(out, t.month, 2);
   return out;
+}
+
+CivilTime to_civil(Instant instant, const TimeZone& zone) {
+  return to_civil(instant, zone.offset_s(instant));
+}
+
+Instant month_start(int year, int month, const TimeZone& zone) {
+  if (zone.fixed()) return month_start(year, month, zone.offset_s(0));
+  return zone.from_local(month_start(year, month, 0)).first;
+}
+
+std::string month_label(Instant instant, const TimeZone& zone) {
+  return month_label(instant, zone.offset_s(instant));
+}
+
+std::string format_iso8601(Instant instant, const TimeZone& zone) {
+  return format_iso8601(instant, zone.offset_s(instant));
+}
+
+std::optional<TimeZone> TimeZone::named(const std::string& name) {
+  TimeZone zone;
+  try {
+    zone.zone_ = date::locate_zone(name);
+  } catch (const std::runtime_error&) {
+    return std::nullopt;
+  }
+  zone.name_ = name;
+  return zone;
+}
+
+namespace {
+
+using Seconds = std::chrono::seconds;
+
+date::sys_info info_at(const date::time_zone& zone, Instant t) {
+  return zone.get_info(date::sys_seconds{Seconds{t}});
+}
+
+Instant to_instant(const date::sys_seconds& t) { return t.time_since_epoch().count(); }
+
+}  // namespace
+
+int TimeZone::offset_s(Instant t, Instant* until) const {
+  if (zone_ == nullptr) {
+    if (until != nullptr) *until = std::numeric_limits<Instant>::max();
+    return offset_s_;
+  }
+  const date::sys_info info = info_at(*zone_, t);
+  if (until != nullptr) *until = to_instant(info.end);
+  return static_cast<int>(info.offset.count());
+}
+
+int TimeZone::standard_offset_s(Instant t) const {
+  if (zone_ == nullptr) return offset_s_;
+  // Read from the system's zone files, `save` only tells daylight time (non-zero) from standard
+  // time, not its size: the standard offset is that of the nearest period before without it.
+  date::sys_info info = info_at(*zone_, t);
+  for (int k = 0; k < 4 && info.save != std::chrono::minutes{0}; ++k) {
+    info = info_at(*zone_, to_instant(info.begin) - 1);
+  }
+  return static_cast<int>(info.offset.count());
+}
+
+LocalInstants TimeZone::from_local(Instant local) const {
+  if (zone_ == nullptr) return {1, local - offset_s_, local - offset_s_};
+  const date::local_info info = zone_->get_info(date::local_seconds{Seconds{local}});
+  const Instant first = local - info.first.offset.count();
+  switch (info.result) {
+    case date::local_info::unique:
+      return {1, first, first};
+    case date::local_info::ambiguous:
+      return {2, first, local - info.second.offset.count()};
+    default:
+      return {0, to_instant(info.first.end), to_instant(info.first.end)};
+  }
 }
 
 }  // namespace gutterwatt

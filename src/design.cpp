@@ -101,7 +101,8 @@ std::span<const Caution> safety_cautions() {
 }
 
 RecordFigures record_figures(const RainSeries& rain,
-                             std::optional<double> priming_intensity_m_per_s, int utc_offset_s) {
+                             std::optional<double> priming_intensity_m_per_s,
+                             const TimeZone& zone) {
   RecordFigures f;
   f.step_s = rain.step_s;
   std::vector<std::pair<double, double>> wet;  // intensity, duration
@@ -111,7 +112,7 @@ RecordFigures record_figures(const RainSeries& rain,
     const double dur = static_cast<double>(pulse.end - pulse.start);
     wet.emplace_back(wet_intensity(pulse), dur);
     wet_s += dur;
-    const int year = to_civil(pulse.start, utc_offset_s).year;
+    const int year = to_civil(pulse.start, zone).year;
     annual_max[year] = std::max(annual_max[year], wet_intensity(pulse));
   }
   std::sort(wet.begin(), wet.end());
@@ -199,10 +200,9 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
                 plant.column_capacity_m3());
   }
   if (rain && !rain->pulses.empty()) {
-    d.record = record_figures(*rain, d.priming_intensity_m_per_s, sc.site.utc_offset_s);
+    d.record = record_figures(*rain, d.priming_intensity_m_per_s, sc.site.zone);
     if (as_read && !as_read->pulses.empty()) {
-      d.record_as_read =
-          record_figures(*as_read, d.priming_intensity_m_per_s, sc.site.utc_offset_s);
+      d.record_as_read = record_figures(*as_read, d.priming_intensity_m_per_s, sc.site.zone);
       if (sc.rain.disaggregate) d.disaggregation = method_name(sc.rain.disaggregate->method);
     }
   }

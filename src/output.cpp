@@ -62,7 +62,7 @@ TimeseriesWriter::TimeseriesWriter(std::ostream& out, const Scenario& scenario, 
     : out_(out),
       scenario_(scenario),
       area_m2_(scenario.roof.area_m2),
-      offset_s_(scenario.site.utc_offset_s),
+      zone_(scenario.site.zone),
       limited_(limited) {
   out_ << "time,rain_mm,roof_runoff_L,reservoir_level_mm,release_state,release_L,"
           "reservoir_overflow_L,column_overflow_L,nozzle_L,head_m,power_W,energy_Wh,battery_soc,"
@@ -80,7 +80,7 @@ void TimeseriesWriter::on_sample(const Sample& s) {
   const Accounts& b = last_.totals;
   const double dt = static_cast<double>(s.time - last_.time);
   const double energy_J = a.electrical_J - b.electrical_J;
-  out_ << format_iso8601(s.time, offset_s_) << ','
+  out_ << format_iso8601(s.time, zone_) << ','
        << num((a.rain_m3 - b.rain_m3) / area_m2_ * kMmPerM, 3) << ','
        << num((a.roof_runoff_m3 - b.roof_runoff_m3) * kLitresPerM3, 3) << ','
        << num(s.level_m * kMmPerM, 3) << ',' << release_state_name(s.release) << ','
@@ -95,16 +95,15 @@ void TimeseriesWriter::on_sample(const Sample& s) {
 }
 
 EventsWriter::EventsWriter(std::ostream& out, const Scenario& scenario)
-    : out_(out), offset_s_(scenario.site.utc_offset_s) {
+    : out_(out), zone_(scenario.site.zone) {
   out_ << "kind,start,end,duration_s,volume_L,peak_flow_L_per_s,energy_Wh\n";
 }
 
 void EventsWriter::on_episode(const Episode& e) {
-  out_ << episode_kind_name(e.kind) << ',' << format_iso8601(floor_instant(e.start_s), offset_s_)
-       << ',' << format_iso8601(floor_instant(e.end_s), offset_s_) << ','
-       << num(e.end_s - e.start_s, 1) << ',' << num(e.volume_m3 * kLitresPerM3, 3) << ','
-       << num(e.peak_flow_m3_per_s * kLitresPerM3, 4) << ',' << num(e.energy_J / kJoulesPerWh, 5)
-       << '\n';
+  out_ << episode_kind_name(e.kind) << ',' << format_iso8601(floor_instant(e.start_s), zone_) << ','
+       << format_iso8601(floor_instant(e.end_s), zone_) << ',' << num(e.end_s - e.start_s, 1) << ','
+       << num(e.volume_m3 * kLitresPerM3, 3) << ',' << num(e.peak_flow_m3_per_s * kLitresPerM3, 4)
+       << ',' << num(e.energy_J / kJoulesPerWh, 5) << '\n';
 }
 
 SummaryBuilder::SummaryBuilder(const Scenario& scenario) : scenario_(scenario) {}
@@ -115,7 +114,7 @@ void SummaryBuilder::on_start(const Sample& s) {
 }
 
 PeriodSummary& SummaryBuilder::month_of(double time_s) {
-  const std::string label = month_label(floor_instant(time_s), scenario_.site.utc_offset_s);
+  const std::string label = month_label(floor_instant(time_s), scenario_.site.zone);
   auto it =
       std::lower_bound(months_.begin(), months_.end(), label,
                        [](const PeriodSummary& m, const std::string& l) { return m.label < l; });
@@ -167,7 +166,7 @@ double SummaryBuilder::largest_overflow_m3() const {
 
 long SummaryBuilder::overflow_days() const {
   std::vector<std::string> days;
-  const int off = scenario_.site.utc_offset_s;
+  const TimeZone& off = scenario_.site.zone;
   for (const Episode& e : overflows_) {
     for (double t = e.start_s;; t += kSecondsPerDay) {
       const double at = std::min(t, e.end_s);
@@ -262,7 +261,7 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                         const RealizationSpread* realizations) {
   using nlohmann::json;
   const Accounts& a = r.totals;
-  const int off = sc.site.utc_offset_s;
+  const TimeZone& off = sc.site.zone;
   const auto L = json_litres;
   const auto Wh = json_watt_hours;
   json j;
@@ -386,7 +385,7 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
                          const RunResult& r, const SummaryBuilder& summary,
                          const RealizationSpread* realizations) {
   const Accounts& a = r.totals;
-  const int off = sc.site.utc_offset_s;
+  const TimeZone& off = sc.site.zone;
   const auto row = [&](const std::string& label, const std::string& value,
                        const std::string& unit) {
     out << "  " << std::left << std::setw(34) << label << std::right << std::setw(14) << value

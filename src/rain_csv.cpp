@@ -388,21 +388,48 @@ StampReader::StampReader(const std::string& file_label, const SeriesFormat& fmt,
     : file_(file_label), fmt_(fmt), words_(words) {}
 
 std::optional<ParsedTime> StampReader::parse(std::string_view text) const {
+  // A zone with daylight saving reads the stamp as written first, then places it (place()).
+  const int offset_s = fmt_.zone.fixed() ? fmt_.zone.offset_s(0) : 0;
   if (fmt_.time_format.empty()) {
-    std::optional<ParsedTime> parsed = parse_iso8601(text, fmt_.utc_offset_s);
+    std::optional<ParsedTime> parsed = parse_iso8601(text, offset_s);
     if (words_.dates_only && text.size() != 10) parsed.reset();
     return parsed;
   }
-  std::optional<ParsedTime> parsed = parse_formatted(text, fmt_.time_format, fmt_.utc_offset_s);
+  std::optional<ParsedTime> parsed = parse_formatted(text, fmt_.time_format, offset_s);
   if (parsed && words_.dates_only && floor_div(parsed->local, kDay_s) * kDay_s != parsed->local) {
     parsed.reset();
   }
   return parsed;
 }
 
+void StampReader::place(ParsedTime& parsed, std::string_view text, int line_number) const {
+  const TimeZone& zone = fmt_.zone;
+  if (parsed.has_offset || zone.fixed()) return;
+  if (words_.dates_only) {
+    // Days of a daily record are 24 hours long: midnight to midnight of standard time.
+    parsed.offset_s = zone.standard_offset_s(parsed.local - zone.offset_s(parsed.local));
+    parsed.instant = parsed.local - parsed.offset_s;
+    return;
+  }
+  const LocalInstants at = zone.from_local(parsed.local);
+  if (at.count == 0) {
+    throw InputError(file_, line_number, fmt_.time_column,
+                     quoted(text) + " is not a time in " + zone.name() +
+                         ": the clocks skip that hour when daylight saving begins");
+  }
+  // In the hour the clocks repeat, the rows' order tells the two apart: the first reading that
+  // does not go back in time.
+  parsed.instant = at.first;
+  if (at.count == 2 && count_ > 0 &&
+      (at.first < previous_ || (at.first == previous_ && !words_.repeats_allowed))) {
+    parsed.instant = at.second;
+  }
+  parsed.offset_s = static_cast<int>(parsed.local - parsed.instant);
+}
+
 ParsedTime StampReader::read(std::string_view text, int line_number) {
   const std::string& column = fmt_.time_column;
-  const std::optional<ParsedTime> parsed = parse(text);
+  std::optional<ParsedTime> parsed = parse(text);
   if (!parsed && !fmt_.time_format.empty()) {
     throw InputError(file_, line_number, column,
                      "does not match rain.time_format " + quoted(fmt_.time_format) +
@@ -413,6 +440,7 @@ ParsedTime StampReader::read(std::string_view text, int line_number) {
     throw InputError(file_, line_number, column,
                      std::string("not ") + words_.expected + " (got " + quoted(text) + ")");
   }
+  place(*parsed, text, line_number);
   if (count_ == 0) {
     first_has_offset_ = parsed->has_offset;
     first_line_ = line_number;

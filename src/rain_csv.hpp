@@ -52,8 +52,10 @@ inline constexpr StampWords kTipStamps{"an ISO 8601 date-time such as 2025-03-01
 inline constexpr StampWords kDates{"a date such as 2025-03-01", "the same day as", "date", false,
                                    true};
 
-/// Parses the time column row by row (ISO 8601, or `fmt.time_format` when given) and checks what
-/// holds across rows: one time-zone style per file, and time order (OutOfOrder otherwise).
+/// Parses the time column row by row (ISO 8601, or `fmt.time_format` when given), reads naive
+/// stamps on the clock of `fmt.zone` (dates at its standard time; in an hour the clocks repeat,
+/// the first reading not earlier than the row before) and checks what holds across rows: one
+/// time-zone style per file, and time order (OutOfOrder otherwise).
 class StampReader {
  public:
   StampReader(const std::string& file_label, const SeriesFormat& fmt, const StampWords& words);
@@ -62,6 +64,8 @@ class StampReader {
 
  private:
   std::optional<ParsedTime> parse(std::string_view text) const;
+  /// Puts a naive stamp on the zone's clock: throws for a time the clocks skip.
+  void place(ParsedTime& parsed, std::string_view text, int line_number) const;
 
   const std::string& file_;
   const SeriesFormat& fmt_;

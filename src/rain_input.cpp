@@ -410,18 +410,18 @@ RainSeries read_rain_daily(std::istream& in, const std::string& file_label, cons
 }
 
 std::vector<MonthCoverage> month_coverage(const RainSeries& rain, Instant start, Instant end,
-                                          int utc_offset_s) {
+                                          const TimeZone& zone) {
   std::vector<MonthCoverage> out;
   if (end <= start) return out;
-  const CivilTime first = to_civil(start, utc_offset_s);
+  const CivilTime first = to_civil(start, zone);
   auto span = rain.covered.begin();
   for (int k = 0;; ++k) {
-    const Instant month_begin = month_start(first.year, first.month + k, utc_offset_s);
+    const Instant month_begin = month_start(first.year, first.month + k, zone);
     if (month_begin >= end) break;
     MonthCoverage m;
-    m.month = month_label(month_begin, utc_offset_s);
+    m.month = month_label(month_begin, zone);
     m.start = std::max(start, month_begin);
-    m.end = std::min(end, month_start(first.year, first.month + k + 1, utc_offset_s));
+    m.end = std::min(end, month_start(first.year, first.month + k + 1, zone));
     m.covered_s = 0;
     while (span != rain.covered.end() && span->end <= m.start) ++span;
     for (auto s = span; s != rain.covered.end() && s->start < m.end; ++s) {

@@ -416,7 +416,8 @@ const std::vector<Section>& schema() {
            {"name", kRequired, [](V v, S s) { s.site.name = v.text(); }},
            {"temperature_C", kOptional,
             [](V v, S s) { s.site.temperature_C = v.number(between(0.0, 40.0)); }},
-           {"utc_offset", kOptional, [](V v, S s) { s.site.utc_offset_s = v.utc_offset_s(); }},
+           {"utc_offset", kOptional, [](V v, S s) { s.site.zone = v.utc_offset_s(); }},
+           {"time_zone", kOptional, [](V v, S s) { s.site.zone = v.time_zone(); }},
        }},
       {"rain",
        kRequired,
@@ -457,7 +458,7 @@ const std::vector<Section>& schema() {
             }},
            {"step", kOptional, [](V v, S s) { s.rain.series.step_s = v.duration_s(kPositive); }},
            {"utc_offset", kOptional,
-            [](V v, S s) { s.rain.series.utc_offset_s = v.utc_offset_s(); }},
+            [](V v, S s) { s.rain.series.zone = v.utc_offset_s(); }},
            {"time_format", kOptional,
             [](V v, S s) {
               s.rain.series.time_format = v.text();
@@ -714,8 +715,8 @@ const std::vector<Section>& schema() {
       {"simulation",
        kOptional,
        {
-           {"start", kOptional, [](V v, S s) { s.simulation.start = v.time(s.site.utc_offset_s); }},
-           {"end", kOptional, [](V v, S s) { s.simulation.end = v.time(s.site.utc_offset_s); }},
+           {"start", kOptional, [](V v, S s) { s.simulation.start = v.time(s.site.zone); }},
+           {"end", kOptional, [](V v, S s) { s.simulation.end = v.time(s.site.zone); }},
            {"output_interval", kOptional,
             [](V v, S s) { s.simulation.output_interval_s = v.duration_s(kPositive); }},
            {"rtol", kOptional,

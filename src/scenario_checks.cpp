@@ -14,6 +14,7 @@ namespace gutterwatt::detail {
 namespace {
 
 void check_rain(const Seen& seen, Scenario& s) {
+  seen.exclusive("site.utc_offset", "site.time_zone");
   seen.exclusive("rain.file", "rain.files");
   if (!seen.has("rain.files")) seen.require("rain.file", "or give rain.files");
   SeriesFormat& series = s.rain.series;
@@ -24,7 +25,7 @@ void check_rain(const Seen& seen, Scenario& s) {
                 "must be mm or in with value: depth");
   }
   if (series.value == RainValue::intensity && !per_hour) series.unit_name += "/h";
-  if (!seen.has("rain.utc_offset")) series.utc_offset_s = s.site.utc_offset_s;
+  if (!seen.has("rain.utc_offset")) series.zone = s.site.zone;
   if (series.decimal == ',' && series.delimiter == ',') {
     seen.at("rain.decimal")
         .fail(

@@ -207,11 +207,27 @@ class Value {
     return *offset;
   }
 
-  /// An ISO 8601 date-time; a naive stamp is local time at `default_offset_s`.
-  Instant time(int default_offset_s) const {
-    const auto t = parse_iso8601(scalar("a date-time"), default_offset_s);
+  /// An IANA time zone name the system's tz database holds.
+  TimeZone time_zone() const {
+    const auto zone = TimeZone::named(scalar("a time zone name"));
+    if (!zone) {
+      fail("unknown time zone " + got() +
+           "; give an IANA name such as America/Los_Angeles (the system's tz database)");
+    }
+    return *zone;
+  }
+
+  /// An ISO 8601 date-time; a naive stamp is local time on the clock of `zone` (in an hour the
+  /// clocks repeat, the first time it is shown; one they skip is refused).
+  Instant time(const TimeZone& zone) const {
+    const auto t = parse_iso8601(scalar("a date-time"), zone.fixed() ? zone.offset_s(0) : 0);
     if (!t) fail("expected an ISO 8601 date-time such as 2025-03-01T00:00, got " + got());
-    return t->instant;
+    if (t->has_offset || zone.fixed()) return t->instant;
+    const LocalInstants at = zone.from_local(t->local);
+    if (at.count == 0) {
+      fail("is not a time in " + zone.name() + ": the clocks skip it (got " + raw() + ")");
+    }
+    return at.first;
   }
 
   template <class T>

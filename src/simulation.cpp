@@ -7,6 +7,7 @@
 #include <span>
 #include <sstream>
 
+#include "detail.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/stepper.hpp"
 
@@ -64,7 +65,7 @@ TimeSpan Engine::missing_from(Instant from, std::optional<Instant> end) {
 
 void Engine::missing_data(const TimeSpan& gap, Instant start, Instant end) const {
   const std::vector<TimeSpan>& covered = rain_.covered();
-  const int off = sc_.site.utc_offset_s;
+  const TimeZone& off = sc_.site.zone;
   const bool before = gap.start == start && gap.start < covered.front().start;
   const bool after = gap.end == end && gap.start >= covered.back().end;
   const std::string field = before ? "simulation.start" : after ? "simulation.end" : "rain";
@@ -87,7 +88,7 @@ RunResult Engine::run() {
     if (end && *end <= start) {
       throw InputError(
           sc_.file.string(), 0, "simulation.end",
-          "must be after simulation.start (" + format_iso8601(start, sc_.site.utc_offset_s) + ")");
+          "must be after simulation.start (" + format_iso8601(start, sc_.site.zone) + ")");
     }
   };
   learn_end();
@@ -110,7 +111,7 @@ RunResult Engine::run() {
   result_.initial = Ledger::storage(x);
   observer_.on_start(ledger_.sample(start, x, mode, false, false));
 
-  const int off = sc_.site.utc_offset_s;
+  const TimeZone& off = sc_.site.zone;
   const Instant output_step = std::max<Instant>(1, std::llround(sc_.simulation.output_interval_s));
   Instant next_output = start + output_step;
   const CivilTime c0 = to_civil(start, off);
@@ -139,8 +140,12 @@ RunResult Engine::run() {
     if (end) next = std::min(next, *end);
     Forcing f;
     if (hourly_load) {
-      const Instant hour = (t + off) - ((t + off) % 3600 + 3600) % 3600 + 3600 - off;
-      next = std::min(next, hour);
+      // The next full hour on the local clock, or the next change of its offset if sooner.
+      Instant offset_until = 0;
+      const Instant o = off.offset_s(t, &offset_until);
+      const Instant hour =
+          detail::floor_div(t + o, detail::kHour_s) * detail::kHour_s + detail::kHour_s - o;
+      next = std::min({next, hour, offset_until});
       f.load_W = battery_load_W(sc_.battery, to_civil(t, off).hour);
     } else {
       f.load_W = sc_.battery.load_W;

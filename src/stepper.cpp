@@ -74,7 +74,7 @@ void Stepper::fail(const std::string& what, double t) const {
   std::ostringstream msg;
   msg.precision(6);
   msg << "simulation failed at "
-      << format_iso8601(static_cast<Instant>(std::floor(t)), system_.scenario().site.utc_offset_s)
+      << format_iso8601(static_cast<Instant>(std::floor(t)), system_.scenario().site.zone)
       << " (t = " << std::fixed << t << " s): " << what << "; " << system_.describe(x_, mode_);
   throw SimulationError(msg.str());
 }

@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 
 #include <optional>
+#include <stdexcept>
 #include <string>
 #include <thread>
 
@@ -210,6 +211,79 @@ TEST(Calendar, RollsMonthStartsIntoNeighbouringYears) {
 TEST(Calendar, LabelsMonthsInLocalTime) {
   EXPECT_EQ(month_label(kMarch2025 - 3600), "2025-02");
   EXPECT_EQ(month_label(kMarch2025 - 3600, 7200), "2025-03");
+}
+
+// ---- time zones with daylight saving ----
+
+// 2025-03-01T00:00Z, worked by hand from POSIX.1-2017 Base Definitions 4.16.
+constexpr Instant kMarch1 = 1740787200;
+constexpr Instant kHour = 3600;
+constexpr Instant kDay = 86400;
+// The two US changes of 2025 (Energy Policy Act of 2005, sec. 110: from the second Sunday of
+// March to the first Sunday of November, at 2:00 local time). In Los Angeles (PST = UTC-8,
+// PDT = UTC-7): 2025-03-09T02:00 PST = 10:00Z and 2025-11-02T02:00 PDT = 09:00Z.
+constexpr Instant kSpringForward = kMarch1 + 8 * kDay + 10 * kHour;
+constexpr Instant kFallBack = kMarch1 + 246 * kDay + 9 * kHour;  // 31+30+31+30+31+31+30+31+1 days
+
+TimeZone los_angeles() {
+  const std::optional<TimeZone> zone = TimeZone::named("America/Los_Angeles");
+  if (!zone) throw std::runtime_error("the tz database lacks America/Los_Angeles");
+  return *zone;
+}
+
+TEST(TimeZones, FollowBothUsChangesOf2025) {
+  const TimeZone la = los_angeles();
+  EXPECT_EQ(la.name(), "America/Los_Angeles");
+  EXPECT_FALSE(la.fixed());
+  Instant until = 0;
+  EXPECT_EQ(la.offset_s(kSpringForward - 1, &until), -8 * 3600);
+  EXPECT_EQ(until, kSpringForward);
+  EXPECT_EQ(la.offset_s(kSpringForward), -7 * 3600);
+  EXPECT_EQ(la.offset_s(kFallBack - 1), -7 * 3600);
+  EXPECT_EQ(la.offset_s(kFallBack), -8 * 3600);
+  EXPECT_EQ(la.standard_offset_s(kFallBack - 1), -8 * 3600);
+}
+
+TEST(TimeZones, FindNoInstantInTheSkippedHourAndTwoInTheRepeatedOne) {
+  const TimeZone la = los_angeles();
+  // 2025-03-09T02:30 local does not exist; the clocks jumped at kSpringForward.
+  const Instant spring_0230 = kMarch1 + 8 * kDay + 2 * kHour + 1800;
+  const LocalInstants skipped = la.from_local(spring_0230);
+  EXPECT_EQ(skipped.count, 0);
+  EXPECT_EQ(skipped.first, kSpringForward);
+  // 2025-11-02T01:30 local happens at 08:30Z (PDT) and again at 09:30Z (PST).
+  const Instant fall_0130 = kMarch1 + 246 * kDay + kHour + 1800;
+  const LocalInstants repeated = la.from_local(fall_0130);
+  EXPECT_EQ(repeated.count, 2);
+  EXPECT_EQ(repeated.first, kFallBack - 1800);
+  EXPECT_EQ(repeated.second, kFallBack + 1800);
+  const LocalInstants plain = la.from_local(fall_0130 + 2 * kHour);  // 03:30 PST, 11:30Z
+  EXPECT_EQ(plain.count, 1);
+  EXPECT_EQ(plain.first, kFallBack + 2 * kHour + 1800);
+}
+
+TEST(TimeZones, PutMonthsAndStampsOnTheLocalClock) {
+  const TimeZone la = los_angeles();
+  // April starts at 2025-04-01T00:00 PDT = 07:00Z; March at 2025-03-01T00:00 PST = 08:00Z.
+  EXPECT_EQ(month_start(2025, 4, la), kMarch1 + 31 * kDay + 7 * kHour);
+  EXPECT_EQ(month_start(2025, 3, la), kMarch1 + 8 * kHour);
+  EXPECT_EQ(month_label(kMarch1 + 31 * kDay + 6 * kHour, la), "2025-03");
+  EXPECT_EQ(to_civil(kFallBack, la).hour, 1);
+  EXPECT_EQ(format_iso8601(kFallBack - 1800, la), "2025-11-02T01:30-07:00");
+  EXPECT_EQ(format_iso8601(kFallBack + 1800, la), "2025-11-02T01:30-08:00");
+}
+
+TEST(TimeZones, RefuseAnUnknownName) {
+  EXPECT_FALSE(TimeZone::named("America/Los Angeles"));
+  EXPECT_FALSE(TimeZone::named("PDT8"));
+}
+
+TEST(TimeZones, KeepFixedOffsetsAsTheyWere) {
+  const TimeZone plus2(7200);
+  EXPECT_TRUE(plus2.fixed());
+  EXPECT_EQ(plus2.offset_s(kFallBack), 7200);
+  EXPECT_EQ(month_start(2025, 4, plus2), month_start(2025, 4, 7200));
+  EXPECT_EQ(plus2.from_local(kMarch1).first, kMarch1 - 7200);
 }
 
 }  // namespace

@@ -17,6 +17,7 @@ namespace {
 // source: POSIX.1-2017 Base Definitions 4.16 (Seconds Since the Epoch), formula worked by hand.
 constexpr Instant kT0 = 1740787200;
 constexpr Instant kMinute = 60;
+constexpr Instant kHour = 3600;
 
 RainSeries read(const std::string& text, const SeriesFormat& fmt) {
   std::istringstream in(text);
@@ -113,7 +114,7 @@ TEST(RainCsv, ReadsStampsInATimeFormat) {
 TEST(RainCsv, TakesATimeFormatsOffset) {
   SeriesFormat fmt;
   fmt.time_format = "%d.%m.%Y %H:%M %z";
-  fmt.utc_offset_s = 3600;  // not used: the stamps carry their own
+  fmt.zone = 3600;  // not used: the stamps carry their own
   const RainSeries rain =
       read("time,rain_mm\n01.03.2025 02:05 +0200,0.2\n01.03.2025 02:10 +0200,0\n", fmt);
   ASSERT_EQ(rain.pulses.size(), 1u);
@@ -214,6 +215,80 @@ TEST(RainCsv, PointsADecimalCommaToRainDecimal) {
   EXPECT_EQ(error_of("time;rain_mm\n2025-03-01T00:05;1.500\n", fmt),
             "rain.csv:2: rain_mm: not a number with a decimal comma, rain.decimal: \",\" (got "
             "\"1.500\")");
+}
+
+// ---- naive stamps in a zone with daylight saving ----
+
+// The US changes of 2025 in Los Angeles (Energy Policy Act of 2005, sec. 110: second Sunday of
+// March and first Sunday of November at 2:00 local): 2025-03-09T02:00 PST = 10:00Z and
+// 2025-11-02T02:00 PDT = 09:00Z, worked by hand from kT0.
+constexpr Instant kSpringForward = kT0 + 8 * 86400 + 10 * 3600;
+constexpr Instant kFallBack = kT0 + 246 * 86400 + 9 * 3600;
+
+SeriesFormat in_los_angeles() {
+  SeriesFormat fmt;
+  fmt.zone = *TimeZone::named("America/Los_Angeles");
+  return fmt;
+}
+
+TEST(RainCsvZones, ReadsStampsAcrossTheSpringChange) {
+  // 01:55 PST and 03:00 PDT are five minutes apart: no gap, one 5-minute interval each.
+  const RainSeries rain = read(
+      "time,rain_mm\n2025-03-09T01:50,0\n2025-03-09T01:55,0.2\n2025-03-09T03:00,0.3\n"
+      "2025-03-09T03:05,0\n",
+      in_los_angeles());
+  ASSERT_EQ(rain.pulses.size(), 2u);
+  EXPECT_EQ(rain.pulses[0].end, kSpringForward - 5 * kMinute);
+  EXPECT_EQ(rain.pulses[1].start, kSpringForward - 5 * kMinute);
+  EXPECT_EQ(rain.pulses[1].end, kSpringForward);
+  EXPECT_TRUE(rain.gaps.empty());
+  ASSERT_EQ(rain.covered.size(), 1u);
+}
+
+TEST(RainCsvZones, NamesAStampInTheSkippedHour) {
+  EXPECT_EQ(error_of("time,rain_mm\n2025-03-09T01:55,0\n2025-03-09T02:00,0.2\n", in_los_angeles()),
+            "rain.csv:3: time: \"2025-03-09T02:00\" is not a time in America/Los_Angeles: the "
+            "clocks skip that hour when daylight saving begins");
+}
+
+TEST(RainCsvZones, ResolvesTheRepeatedHourByTheOrderOfTheRows) {
+  // 01:00 PST comes five minutes after 01:55 PDT.
+  const RainSeries rain = read(
+      "time,rain_mm\n2025-11-02T01:50,0\n2025-11-02T01:55,0.1\n2025-11-02T01:00,0.2\n"
+      "2025-11-02T01:05,0.4\n2025-11-02T01:10,0\n",
+      in_los_angeles());
+  ASSERT_EQ(rain.pulses.size(), 3u);
+  EXPECT_EQ(rain.pulses[0].end, kFallBack - 5 * kMinute);  // 01:55 PDT
+  EXPECT_EQ(rain.pulses[1].end, kFallBack);                // 01:00 PST
+  EXPECT_EQ(rain.pulses[1].start, kFallBack - 5 * kMinute);
+  EXPECT_EQ(rain.pulses[2].end, kFallBack + 5 * kMinute);  // 01:05 PST
+  EXPECT_TRUE(rain.gaps.empty());
+}
+
+TEST(RainCsvZones, ReadsTheFirstPassageOfTheRepeatedHourFirst) {
+  // Through the whole repeated hour twice: 01:00 .. 01:55 PDT, then 01:00 .. 01:55 PST.
+  std::string csv = "time,rain_mm\n2025-11-02T00:55,0\n";
+  for (int pass = 0; pass < 2; ++pass) {
+    for (int m = 0; m < 60; m += 5) {
+      csv += "2025-11-02T01:" + std::string(m < 10 ? "0" : "") + std::to_string(m) + ",0.1\n";
+    }
+  }
+  const RainSeries rain = read(csv, in_los_angeles());
+  ASSERT_EQ(rain.pulses.size(), 24u);
+  EXPECT_EQ(rain.pulses.front().end, kFallBack - kHour);
+  EXPECT_EQ(rain.pulses.back().end, kFallBack + 55 * kMinute);
+  EXPECT_TRUE(rain.gaps.empty());
+}
+
+TEST(RainCsvZones, ReadsDatesAtStandardTime) {
+  SeriesFormat fmt = in_los_angeles();
+  fmt.time_column = "date";
+  fmt.value_column = "precipitation";
+  // 2025-07-01 is a local day of standard time: from 08:00Z (PST, UTC-8), 24 hours long.
+  const RainSeries rain = read_daily("date,precipitation\n2025-07-01,3\n2025-07-02,1\n", fmt);
+  ASSERT_EQ(rain.pulses.size(), 2u);
+  EXPECT_EQ(rain.pulses[0].start, kT0 + 122 * 86400 + 8 * 3600);  // 31+30+31+30 days
+  EXPECT_EQ(rain.pulses[0].end - rain.pulses[0].start, 86400);
 }
 
 }  // namespace

@@ -453,7 +453,7 @@ TEST(RainInput, AcceptsChangingOffsetsWhileInstantsIncrease) {
 
 TEST(RainInput, TakesNaiveStampsAtTheDefaultOffset) {
   SeriesFormat fmt;
-  fmt.utc_offset_s = 7200;
+  fmt.zone = 7200;
   const RainSeries rain = read("time,rain_mm\n2025-03-01T00:05,0.2\n2025-03-01T00:10,0\n", fmt);
   ASSERT_EQ(rain.pulses.size(), 1u);
   expect_pulse(rain.pulses[0], kT0 - 7200, kT0 + 5 * kMinute - 7200, 0.2e-3);
@@ -788,7 +788,7 @@ TEST(RainDaily, WarnsThatDailyTotalsHideIntensity) {
 
 TEST(RainDaily, TakesDatesAtTheRecordsOffset) {
   SeriesFormat fmt = daily_format();
-  fmt.utc_offset_s = 2 * 3600;
+  fmt.zone = 2 * 3600;
   const RainSeries rain = read_daily("date,rain_mm\n2025-03-01,5\n", fmt);
   ASSERT_EQ(rain.covered.size(), 1u);
   expect_span(rain.covered[0], kT0 - 2 * kHour, kT0 + kDay - 2 * kHour);

@@ -2,6 +2,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <fstream>
 #include <sstream>
 
@@ -50,7 +51,7 @@ TEST(Scenario, LoadsEveryKeyOfACompleteFileInSiUnits) {
   EXPECT_EQ(s.file, kFixtures / "complete.yaml");
   EXPECT_EQ(s.site.name, "Test shed");
   EXPECT_DOUBLE_EQ(s.site.temperature_C, 20.0);
-  EXPECT_EQ(s.site.utc_offset_s, 7200);
+  EXPECT_EQ(s.site.zone.offset_s(0), 7200);
 
   EXPECT_EQ(s.rain.format, RainFormat::series);
   EXPECT_EQ(s.rain.series.time_column, "stamp");
@@ -60,7 +61,7 @@ TEST(Scenario, LoadsEveryKeyOfACompleteFileInSiUnits) {
   EXPECT_EQ(s.rain.series.unit_name, "in/h");
   EXPECT_EQ(s.rain.series.gaps, GapPolicy::zero);
   EXPECT_EQ(s.rain.series.step_s, 300.0);
-  EXPECT_EQ(s.rain.series.utc_offset_s, -18000);
+  EXPECT_EQ(s.rain.series.zone.offset_s(0), -18000);
 
   EXPECT_DOUBLE_EQ(s.roof.area_m2, 40.0);
   EXPECT_DOUBLE_EQ(s.roof.runoff_coefficient, 0.8);
@@ -143,7 +144,7 @@ TEST(Scenario, KeepsAnAbsoluteRainPath) {
 TEST(Scenario, FillsDefaultsForEveryOptionalKey) {
   const Scenario s = load_scenario(kFixtures / "minimal.yaml");
   EXPECT_DOUBLE_EQ(s.site.temperature_C, 15.0);
-  EXPECT_EQ(s.site.utc_offset_s, 0);
+  EXPECT_EQ(s.site.zone.offset_s(0), 0);
   ASSERT_EQ(s.rain.files.size(), 1u);
   EXPECT_EQ(s.rain.files[0], kFixtures / "rain.csv");
   EXPECT_EQ(s.rain.format, RainFormat::series);
@@ -363,8 +364,8 @@ TEST(Scenario, RejectsAnIntensityUnitForDepths) {
 
 TEST(Scenario, RainOffsetDefaultsToTheSiteOffset) {
   const Scenario s = parse(minimal(), {"site.utc_offset=+05:30"});
-  EXPECT_EQ(s.site.utc_offset_s, 19800);
-  EXPECT_EQ(s.rain.series.utc_offset_s, 19800);
+  EXPECT_EQ(s.site.zone.offset_s(0), 19800);
+  EXPECT_EQ(s.rain.series.zone.offset_s(0), 19800);
 }
 
 TEST(Scenario, KeepsAnOffsetWrittenInASimulationStamp) {
@@ -794,6 +795,44 @@ TEST(Scenario, ReportsAScenarioFileThatCannotBeRead) {
   } catch (const InputError& e) {
     EXPECT_EQ(std::string(e.what()), missing.string() + ": no such scenario file");
   }
+}
+
+TEST(Scenario, ReadsATimeZoneAndTimesOnItsClock) {
+  const Scenario s =
+      parse(minimal_with("  name: Minimal shed\n",
+                         "  name: Minimal shed\n  time_zone: America/Los_Angeles\n") +
+            "simulation: {start: 2025-03-09T03:00, end: 2025-11-02T01:30}\n");
+  EXPECT_EQ(s.site.zone.name(), "America/Los_Angeles");
+  EXPECT_EQ(s.rain.series.zone.name(), "America/Los_Angeles");
+  // 2025-03-09T03:00 PDT = 10:00Z; 2025-11-02T01:30 first happens at 08:30Z (PDT). Worked by
+  // hand from 2025-03-01T00:00Z = 1740787200 (POSIX.1-2017 4.16) and the US rule (Energy Policy
+  // Act of 2005, sec. 110).
+  EXPECT_EQ(*s.simulation.start, 1740787200 + 8 * 86400 + 10 * 3600);
+  EXPECT_EQ(*s.simulation.end, 1740787200 + 246 * 86400 + 8 * 3600 + 1800);
+}
+
+TEST(Scenario, RejectsAnUnknownTimeZone) {
+  EXPECT_EQ(error_of(minimal_with("  name: Minimal shed\n",
+                                  "  name: Minimal shed\n  time_zone: Pacific/Atlantis\n")),
+            "demo.yaml:4: site.time_zone: unknown time zone \"Pacific/Atlantis\"; give an IANA "
+            "name such as America/Los_Angeles (the system's tz database)");
+}
+
+TEST(Scenario, RejectsATimeZoneBesideAnOffset) {
+  EXPECT_EQ(error_of(minimal_with("  name: Minimal shed\n",
+                                  "  name: Minimal shed\n  utc_offset: \"-08:00\"\n"
+                                  "  time_zone: America/Los_Angeles\n")),
+            "demo.yaml:5: site.time_zone: give either site.utc_offset or site.time_zone, not both");
+}
+
+TEST(Scenario, RejectsAStartTheClocksSkip) {
+  const std::string text = minimal();
+  EXPECT_EQ(error_of(minimal_with("  name: Minimal shed\n",
+                                  "  name: Minimal shed\n  time_zone: America/Los_Angeles\n") +
+                     "simulation: {start: 2025-03-09T02:30}\n"),
+            "demo.yaml:" + std::to_string(std::count(text.begin(), text.end(), '\n') + 2) +
+                ": simulation.start: is not a time in America/Los_Angeles: the clocks skip it "
+                "(got 2025-03-09T02:30)");
 }
 
 }  // namespace

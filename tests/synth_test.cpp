@@ -175,7 +175,7 @@ TEST(Synth, WritesARainSeriesAScenarioCanRead) {
   EXPECT_EQ(text.substr(0, 35), "time,rain_mm\n2000-01-01T01:05+01:00");
   std::istringstream in(text);
   SeriesFormat fmt;
-  fmt.utc_offset_s = 3600;
+  fmt.zone = 3600;
   const RainSeries rain = read_rain_series(in, "synth.csv", fmt);
   EXPECT_EQ(rain.step_s, 300);
   ASSERT_EQ(rain.covered.size(), 1u);

@@ -7,10 +7,55 @@
 #include <string>
 #include <string_view>
 
+namespace date {
+class time_zone;
+}  // namespace date
+
 namespace gutterwatt {
 
 /// Seconds since 1970-01-01T00:00:00Z.
 using Instant = std::int64_t;
+
+/// The instants at which a local clock shows a given reading: one; two in the hour repeated when
+/// daylight saving ends (earlier first); none in the hour skipped when it begins, and then
+/// `first` is the instant the clocks jumped.
+struct LocalInstants {
+  int count = 1;
+  Instant first = 0;
+  Instant second = 0;
+};
+
+/// Local civil time of a site: a fixed offset from UTC, or an IANA time zone (such as
+/// America/Los_Angeles) with its daylight-saving changes, from the system's tz database
+/// (/usr/share/zoneinfo, read by the date library's tz part). Cheap to copy.
+class TimeZone {
+ public:
+  /// A fixed offset, seconds east of UTC (0: UTC).
+  TimeZone(int offset_s = 0) : offset_s_(offset_s) {}  // NOLINT: an offset is a zone
+
+  /// The zone of an IANA name; nullopt when the tz database does not hold it.
+  static std::optional<TimeZone> named(const std::string& name);
+
+  /// The IANA name; empty for a fixed offset.
+  const std::string& name() const { return name_; }
+  bool fixed() const { return zone_ == nullptr; }
+
+  /// Seconds east of UTC in force at `t`. `until`, when given, is set to the instant the offset
+  /// next changes (a far future for a fixed offset).
+  int offset_s(Instant t, Instant* until = nullptr) const;
+
+  /// The offset of the zone's standard time (without daylight saving) at `t`.
+  int standard_offset_s(Instant t) const;
+
+  /// The instants at which the local clock reads `local` (seconds since 1970-01-01T00:00 on
+  /// that clock).
+  LocalInstants from_local(Instant local) const;
+
+ private:
+  int offset_s_ = 0;
+  const date::time_zone* zone_ = nullptr;
+  std::string name_;
+};
 
 /// A parsed ISO 8601 date-time. `has_offset` is false for a naive stamp (no `Z`, no `+hh:mm`).
 struct ParsedTime {
@@ -44,6 +89,8 @@ bool format_has_offset(std::string_view format);
 /// Formats an instant as local time at `offset_s`: `YYYY-MM-DDThh:mm`, with `:ss` when the seconds
 /// are not zero, and the offset appended (`+hh:mm`) when `offset_s` is not zero.
 std::string format_iso8601(Instant instant, int offset_s = 0);
+/// As above at the offset the zone has at `instant`.
+std::string format_iso8601(Instant instant, const TimeZone& zone);
 
 /// Parses a UTC offset: `Z`, `+hh:mm`, `-hh:mm`, `+hhmm`, `+hh`, `UTC+hh:mm` or a bare `UTC`.
 /// Seconds east of UTC; hours up to 23.
@@ -73,13 +120,18 @@ struct CivilTime {
   int second;
 };
 CivilTime to_civil(Instant instant, int offset_s = 0);
+/// Civil date parts of an instant on the zone's clock.
+CivilTime to_civil(Instant instant, const TimeZone& zone);
 
 /// The instant of local midnight starting `year`-`month`-01 at `offset_s`. A month outside 1..12
 /// rolls over into the neighbouring years (month 13 is January of the next year, 0 is December of
 /// the year before), so `month_start(y, m + 1)` is the end of month `m`.
 Instant month_start(int year, int month, int offset_s = 0);
+/// As above on the zone's clock; a midnight the clocks skip starts the month when they jump.
+Instant month_start(int year, int month, const TimeZone& zone);
 
 /// `YYYY-MM` for an instant at `offset_s`.
 std::string month_label(Instant instant, int offset_s = 0);
+std::string month_label(Instant instant, const TimeZone& zone);
 
 }  // namespace gutterwatt

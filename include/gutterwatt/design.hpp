@@ -26,9 +26,9 @@ struct RecordFigures {
 };
 
 /// The figures of `rain` (with at least one pulse); the priming shares only when
-/// `priming_intensity_m_per_s` is given. Years are local at `utc_offset_s`.
+/// `priming_intensity_m_per_s` is given. Years are local on the clock of `zone`.
 RecordFigures record_figures(const RainSeries& rain,
-                             std::optional<double> priming_intensity_m_per_s, int utc_offset_s);
+                             std::optional<double> priming_intensity_m_per_s, const TimeZone& zone);
 
 /// Figures in SI. Optional ones are absent where the release kind or the record has none.
 struct DesignFigures {

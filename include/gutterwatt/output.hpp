@@ -38,7 +38,7 @@ class TimeseriesWriter : public Observer {
   std::ostream& out_;
   const Scenario& scenario_;
   double area_m2_;
-  int offset_s_;
+  TimeZone zone_;
   bool limited_;
   double rows_ = 0.0;
   Sample last_;
@@ -52,7 +52,7 @@ class EventsWriter : public Observer {
 
  private:
   std::ostream& out_;
-  int offset_s_;
+  TimeZone zone_;
 };
 
 /// One calendar month (local time), one meteorological season, or one calendar year.

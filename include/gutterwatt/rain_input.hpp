@@ -48,8 +48,8 @@ struct SeriesFormat {
   /// Nominal record step; when absent, the most common spacing of the first 4096 timestamps.
   std::optional<double> step_s;
   GapPolicy gaps = GapPolicy::error;
-  /// Offset applied to naive timestamps, seconds east of UTC.
-  int utc_offset_s = 0;
+  /// The clock of naive timestamps: a fixed offset or a time zone with daylight saving.
+  TimeZone zone;
   /// How the time column is written: a strftime-style format read by parse_formatted (such as
   /// `%m/%d/%Y %I:%M %p`); empty: ISO 8601.
   std::string time_format;
@@ -97,12 +97,12 @@ using SeriesProgress = std::function<void(const RainSeries& so_far)>;
 /// comment; columns are found by name and others are ignored; fields are separated by
 /// `fmt.delimiter`; a quoted field may not span lines; rows that `fmt.where` leaves out are not
 /// read further. Stamps are ISO 8601, or in `fmt.time_format`. The first row covers
-/// (T0 - step, T0]. Timestamps must strictly increase; naive ones are taken at `fmt.utc_offset_s`,
-/// and a file may not mix naive stamps with stamps that carry an offset. Without `fmt.step_s` the
-/// step is the most common spacing of consecutive stamps among the first 4096 rows (ties: the
-/// smallest), which needs at least two rows. Rows stream through once the step is known: memory
-/// holds the wet intervals, not every row. Values must be finite, not negative, and imply at most
-/// kMaxRainIntensity_mm_per_h over their interval. `progress`, when given, is called every
+/// (T0 - step, T0]. Timestamps must strictly increase; naive ones are read on the clock of
+/// `fmt.zone`, and a file may not mix naive stamps with stamps that carry an offset. Without
+/// `fmt.step_s` the step is the most common spacing of consecutive stamps among the first 4096 rows
+/// (ties: the smallest), which needs at least two rows. Rows stream through once the step is known:
+/// memory holds the wet intervals, not every row. Values must be finite, not negative, and imply at
+/// most kMaxRainIntensity_mm_per_h over their interval. `progress`, when given, is called every
 /// kProgressRows rows once the step is known.
 ///
 /// Example:
@@ -164,9 +164,9 @@ inline constexpr std::string_view kDailyWarning =
     "results follow the chosen rain.disaggregate method";
 
 /// Reads daily totals: a CSV with a date column (`fmt.time_column`, dates such as 2025-03-01,
-/// the local day at `fmt.utc_offset_s`) and a depth column (`fmt.value_column`, in `fmt.unit_m`;
-/// `fmt.value` must be depth). Each day covers its 24 hours; its depth is one pulse over
-/// `window` (see disaggregate() for bringing it down to a finer step). Missing days are gaps,
+/// the local day of `fmt.zone`, at its standard time) and a depth column (`fmt.value_column`, in
+/// `fmt.unit_m`; `fmt.value` must be depth). Each day covers its 24 hours; its depth is one pulse
+/// over `window` (see disaggregate() for bringing it down to a finer step). Missing days are gaps,
 /// handled by `fmt.gaps` as in read_rain_series. Same file rules and messages as
 /// read_rain_series; a day's depth may imply at most kMaxRainIntensity_mm_per_h over the
 /// window. The series carries kDailyWarning; `step_s` is one day.
@@ -186,10 +186,10 @@ struct MonthCoverage {
 /// Months below this share of data get a warning: 90 % (common practice, no source).
 inline constexpr double kMinMonthCoverage = 0.9;
 
-/// Coverage of every local month (at `utc_offset_s`) that overlaps [start, end), in order;
+/// Coverage of every local month (on the clock of `zone`) that overlaps [start, end), in order;
 /// empty when end <= start.
 std::vector<MonthCoverage> month_coverage(const RainSeries& rain, Instant start, Instant end,
-                                          int utc_offset_s);
+                                          const TimeZone& zone);
 
 /// One warning per month below kMinMonthCoverage, e.g. `rain data cover 85.2 % of 2025-04
 /// (below 90 %): that month's rain and yield are understated`.

@@ -23,7 +23,7 @@ namespace gutterwatt {
 struct SiteConfig {
   std::string name;
   double temperature_C = 15.0;
-  int utc_offset_s = 0;  ///< local time for months, seasons and output stamps
+  TimeZone zone;  ///< local time for months, seasons, load hours and output stamps
 };
 
 enum class RainFormat { series, tips, daily };

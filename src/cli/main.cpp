@@ -185,7 +185,7 @@ int run_command(const RunArgs& args) {
   }
   for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
   for (const std::string& w :
-       coverage_warnings(month_coverage(rain, result.start, result.end, sc.site.utc_offset_s))) {
+       coverage_warnings(month_coverage(rain, result.start, result.end, sc.site.zone))) {
     spdlog::warn("{}", w);
   }
   const RealizationSpread* realizations = spread ? &*spread : nullptr;

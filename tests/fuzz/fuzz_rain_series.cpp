@@ -35,7 +35,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     if (o & 16u) {
       fmt.unit_m = 0.0254;
       fmt.unit_name = fmt.value == RainValue::intensity ? "in/h" : "in";
-      fmt.utc_offset_s = -5 * 3600;
+      fmt.zone = -5 * 3600;
     }
     ++data;
     --size;
