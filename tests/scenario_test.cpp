@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <fstream>
+#include <regex>
 #include <sstream>
 
 #include "gutterwatt/error.hpp"
@@ -833,6 +834,21 @@ TEST(Scenario, RejectsAStartTheClocksSkip) {
             "demo.yaml:" + std::to_string(std::count(text.begin(), text.end(), '\n') + 2) +
                 ": simulation.start: is not a time in America/Los_Angeles: the clocks skip it "
                 "(got 2025-03-09T02:30)");
+}
+
+TEST(Scenario, TheUsDemoIsWrittenWhollyInUsUnits) {
+  const std::filesystem::path file =
+      std::filesystem::path(GUTTERWATT_SOURCE_DIR) / "scenarios" / "us-demo.yaml";
+  const std::string text = read_file(file);
+  // No key in an SI unit: every unit suffix is a customary one (or W, Wh, V, s, rpm).
+  const std::regex si_key(R"((^|[{,\s])\w+_(mm|m|m2|L|L_per_min|C|Wh|mm_per_h|mm_per_day)\s*:)");
+  EXPECT_FALSE(std::regex_search(text, si_key));
+  const Scenario s = load_scenario(file);
+  // 430 ft2 = 430 x 0.09290304 m2 (NIST Handbook 44: 1 ft = 0.3048 m); 1 Ah at 12 V = 12 Wh.
+  EXPECT_NEAR(s.roof.area_m2, 39.9483072, 1e-12);
+  EXPECT_EQ(s.site.zone.name(), "America/Chicago");
+  EXPECT_EQ(s.rain.series.skip_lines, 2);
+  EXPECT_EQ(s.rain.tips.tip_depth_m, 0.01 * 0.0254);
 }
 
 }  // namespace
