@@ -50,6 +50,17 @@ inline double uniform_open(std::mt19937_64& rng) {
   return (static_cast<double>(rng() >> 11) + 0.5) * 0x1.0p-53;
 }
 
+/// The p-quantile (0 <= p <= 1) of `sorted` (ascending, not empty) by Hyndman & Fan (1996),
+/// Sample quantiles in statistical packages, The American Statistician 50(4), 361-365,
+/// definition 7: h = (n - 1) p (0-based), Q = x[floor h] + (h - floor h)(x[floor h + 1] - x[floor
+/// h]).
+inline double quantile_of_sorted(const std::vector<double>& sorted, double p) {
+  const double h = static_cast<double>(sorted.size() - 1) * p;
+  const auto below = static_cast<std::size_t>(std::floor(h));
+  if (below + 1 >= sorted.size()) return sorted.back();
+  return sorted[below] + (h - static_cast<double>(below)) * (sorted[below + 1] - sorted[below]);
+}
+
 /// a / b rounded toward negative infinity (instants before 1970 fall on the right day). b != 0.
 inline constexpr std::int64_t floor_div(std::int64_t a, std::int64_t b) {
   return a / b - ((a % b != 0) && ((a < 0) != (b < 0)) ? 1 : 0);

@@ -186,11 +186,52 @@ RainSeries load_rain_as_read(const RainConfig& config, const std::filesystem::pa
   return join_rain(std::move(parts), labels);
 }
 
+std::optional<Disaggregation> calibrated_disaggregation(const RainConfig& config,
+                                                        const RainSeries& as_read,
+                                                        const std::atomic<bool>* stop) {
+  if (!config.disaggregate || !config.calibrate_with) return config.disaggregate;
+  Disaggregation how = *config.disaggregate;
+  const CalibrationRecord& c = *config.calibrate_with;
+  const std::string key = "rain.disaggregate.calibrate_with";
+  std::error_code ec;
+  if (!std::filesystem::is_regular_file(c.file, ec)) {
+    throw InputError(c.file.string(), 0, key + ".file", "no such file");
+  }
+  const RainSeries fine =
+      RainFile(c.file, stop).read([&](std::istream& in, const std::string& label) {
+        return read_rain_series(in, label, c.format);
+      });
+  const std::string label = c.file.string();
+  if (fine.step_s > how.step_s) {
+    throw InputError(label, 0, key,
+                     "the record's step (" + format_duration(fine.step_s) +
+                         ") is coarser than rain.disaggregate.step (" +
+                         format_duration(how.step_s) +
+                         "): a calibration record must have the target step or a finer one");
+  }
+  if (fine.pulses.empty()) {
+    throw InputError(label, 0, key,
+                     "no interval with rain: a dry record cannot calibrate the "
+                     "cascade");
+  }
+  Instant longest_s = 0;
+  for (const RainPulse& p : as_read.pulses) longest_s = std::max(longest_s, p.end - p.start);
+  how.levels = estimate_cascade(fine, std::max(longest_s, 2 * fine.step_s));
+  if (how.levels.empty()) {
+    throw InputError(label, 0, key,
+                     "too few wet intervals: fewer than " + std::to_string(kMinCalibrationBoxes) +
+                         " wet boxes of " + format_duration(2 * fine.step_s) +
+                         " to estimate the cascade from; give a longer record");
+  }
+  return how;
+}
+
 RainSeries load_rain(const RainConfig& config, const std::filesystem::path& override_file,
                      const std::atomic<bool>* stop) {
   RainSeries as_read = load_rain_as_read(config, override_file, stop);
-  if (!config.disaggregate) return as_read;
-  return disaggregate(as_read, *config.disaggregate);
+  const std::optional<Disaggregation> how = calibrated_disaggregation(config, as_read, stop);
+  if (!how) return as_read;
+  return disaggregate(as_read, *how);
 }
 
 RainSeries load_rain_while(const RainConfig& config, const std::filesystem::path& override_file,

@@ -7,6 +7,7 @@
 #include <string>
 #include <thread>
 
+#include "detail.hpp"
 #include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/units.hpp"
@@ -45,11 +46,7 @@ RealizationMetrics realization_metrics(const RunResult& result) {
 double percentile(std::vector<double> values, double p) {
   assert(!values.empty() && p >= 0.0 && p <= 1.0);
   std::sort(values.begin(), values.end());
-  // Hyndman & Fan (1996) definition 7, 0-based: h = (n - 1) p.
-  const double h = static_cast<double>(values.size() - 1) * p;
-  const auto below = static_cast<std::size_t>(std::floor(h));
-  if (below + 1 >= values.size()) return values.back();
-  return values[below] + (h - static_cast<double>(below)) * (values[below + 1] - values[below]);
+  return detail::quantile_of_sorted(values, p);
 }
 
 Spread spread_of(const std::vector<double>& values) {

@@ -302,6 +302,32 @@ void apply_where(const Value& v, Scenario& s) {
   }
 }
 
+/// rain.disaggregate.calibrate_with: the fine record's file and columns.
+void apply_calibrate_with(const Value& v, Scenario& s) {
+  using V = const Value&;
+  using S = Scenario&;
+  static const std::vector<Key> kKeys = {
+      {"file", kRequired, [](V v, S s) { s.rain.calibrate_with->file = v.path_text(); }},
+      {"time_column", kOptional,
+       [](V v, S s) { s.rain.calibrate_with->format.time_column = v.text(); }},
+      {"value_column", kOptional,
+       [](V v, S s) { s.rain.calibrate_with->format.value_column = v.text(); }},
+      {"unit", kOptional,
+       [](V v, S s) {
+         s.rain.calibrate_with->format.unit_m =
+             v.choice<double>({{"mm", kMetresPerMm}, {"in", kMetresPerInch}});
+         s.rain.calibrate_with->format.unit_name = v.raw();
+       }},
+  };
+  if (!v.node().IsMap()) {
+    v.fail("expected a section of keys such as {file: gauge-5min.csv}, got " + v.got());
+  }
+  s.rain.calibrate_with.emplace();
+  s.rain.calibrate_with->line = v.line();
+  s.rain.calibrate_with->label = v.label();
+  apply_nested(v, kKeys, s);
+}
+
 /// rain.disaggregate, a small section inside rain: its keys are read and checked here, with the
 /// same messages as the loader's. rain.format comes before it in the schema, so it is known here.
 void apply_disaggregate(const Value& v, Scenario& s) {
@@ -339,6 +365,7 @@ void apply_disaggregate(const Value& v, Scenario& s) {
        }},
       {"intermittency", kOptional,
        [](V v, S s) { disaggregation(s).intermittency = v.number(kShare); }},
+      {"calibrate_with", kOptional, apply_calibrate_with},
   };
   if (!v.node().IsMap()) {
     v.fail("expected a section of keys such as {method: cascade, step: 5min}, got " + v.got());
@@ -352,6 +379,9 @@ void apply_disaggregate(const Value& v, Scenario& s) {
   const auto at = [&](const std::string& name) { return given.find(name); };
   const bool nrcs = d.method != DisaggregationMethod::block && !is_random(d.method);
   const std::string method = "method: " + std::string(method_name(d.method));
+  if (at("calibrate_with") != given.end() && !is_random(d.method)) {
+    at("calibrate_with")->second.fail("is for method: cascade only (got " + method + ")");
+  }
   if (s.rain.format == RainFormat::series) {
     // A series interval is spread over itself: the day's window has no meaning there.
     for (const char* key : {"start_hour", "duration_h"}) {
@@ -990,6 +1020,9 @@ Scenario parse_scenario(std::string_view yaml_text, const std::string& file_labe
   s.file = file_label;
   for (std::filesystem::path& rain_file : s.rain.files) {
     rain_file = (base_dir / rain_file).lexically_normal();
+  }
+  if (s.rain.calibrate_with) {
+    s.rain.calibrate_with->file = (base_dir / s.rain.calibrate_with->file).lexically_normal();
   }
   return s;
 }

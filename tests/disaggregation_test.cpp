@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <cmath>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -244,6 +245,106 @@ TEST(Disaggregation, SharesRainEvenlyBetweenHalvesOnAverage) {
     for (std::size_t j = 0; j < 12; ++j) first_half += parts[j];
   }
   EXPECT_NEAR(first_half / kDays, 0.5, 4 * 0.0096);
+}
+
+// ---- calibration (Olsson 1998) ----
+
+// A known cascade, the same at every box duration: P(1/0) 0.15, P(0/1) 0.25, and W uniform on
+// (0.2, 0.8) in the x/(1-x) splits.
+CascadeLevel known_level(double box_s) {
+  CascadeLevel level;
+  level.box_s = box_s;
+  level.p10 = 0.15;
+  level.p01 = 0.25;
+  for (std::size_t k = 0; k < kWQuantiles; ++k) {
+    level.w_quantiles.push_back(0.2 + 0.6 * static_cast<double>(k) / (kWQuantiles - 1));
+  }
+  return level;
+}
+
+// `intervals` wet intervals of 76800 s (2^8 steps of 5 min) in a row, each of 10 mm, brought down
+// to 5 min by the known cascade: a fine record made by a known cascade.
+RainSeries known_cascade_record(int intervals) {
+  Disaggregation how = method(DisaggregationMethod::cascade, 300);
+  how.seed = 2024;
+  for (double box_s = 600; box_s <= 76800; box_s *= 2) how.levels.push_back(known_level(box_s));
+  RainSeries coarse;
+  coarse.step_s = 76800;
+  coarse.covered = {{kT0, kT0 + intervals * Instant{76800}}};
+  for (int k = 0; k < intervals; ++k) {
+    const Instant start = kT0 + k * Instant{76800};
+    coarse.pulses.push_back({start, start + 76800, 10e-3});
+  }
+  coarse.total_depth_m = sum_depths_m(coarse.pulses);
+  return disaggregate(coarse, how);
+}
+
+TEST(Disaggregation, RecoversTheParametersOfAKnownCascade) {
+  const RainSeries fine = known_cascade_record(400);
+  ASSERT_EQ(fine.step_s, 300);
+  const std::vector<CascadeLevel> levels = estimate_cascade(fine, 76800);
+  ASSERT_GE(levels.size(), 8u);
+  for (std::size_t j = 0; j < 8; ++j) {
+    const CascadeLevel& got = levels[j];
+    EXPECT_EQ(got.box_s, 600.0 * (1 << j));
+    // Within 4 standard errors of the estimate from got.boxes wet boxes: binomial for the
+    // probabilities; for the quartiles and median of W (uniform on 0.2..0.8, density 1/0.6),
+    // sqrt(p (1 - p)) * 0.6 / sqrt(n).
+    const auto n = static_cast<double>(got.boxes);
+    const double n_split = n * (1.0 - 0.15 - 0.25);
+    EXPECT_NEAR(got.p10, 0.15, 4.0 * std::sqrt(0.15 * 0.85 / n)) << got.box_s;
+    EXPECT_NEAR(got.p01, 0.25, 4.0 * std::sqrt(0.25 * 0.75 / n)) << got.box_s;
+    ASSERT_EQ(got.w_quantiles.size(), kWQuantiles);
+    for (const double p : {0.25, 0.5, 0.75}) {
+      const auto k = static_cast<std::size_t>(p * (kWQuantiles - 1));
+      EXPECT_NEAR(got.w_quantiles[k], 0.2 + 0.6 * p,
+                  4.0 * std::sqrt(p * (1 - p)) * 0.6 / std::sqrt(n_split))
+          << got.box_s << " P" << p;
+    }
+    EXPECT_GE(got.w_quantiles.front(), 0.2 - 1e-9);
+    EXPECT_LE(got.w_quantiles.back(), 0.8 + 1e-9);
+  }
+  // The top level rests on the 400 intervals, every one wet.
+  EXPECT_EQ(levels[7].boxes, 400u);
+}
+
+TEST(Disaggregation, InterpolatesCalibratedLevelsInLogDuration) {
+  CascadeLevel a = known_level(600);
+  CascadeLevel b = known_level(2400);
+  b.p10 = 0.35;
+  const std::vector<CascadeLevel> levels = {a, b};
+  // 1200 s lies halfway between 600 and 2400 in log duration.
+  EXPECT_DOUBLE_EQ(cascade_level_at(levels, 1200).p10, 0.25);
+  EXPECT_EQ(cascade_level_at(levels, 100).p10, 0.15);
+  EXPECT_EQ(cascade_level_at(levels, 1e6).p10, 0.35);
+}
+
+TEST(Disaggregation, NeedsEnoughWetBoxesToCalibrate) {
+  EXPECT_TRUE(estimate_cascade(known_cascade_record(0), 76800).empty());
+  // A single wet interval gives at most 19 wet boxes of 10 min in 200 min of rain.
+  RainSeries fine;
+  fine.step_s = 300;
+  fine.covered = {{kT0, kT0 + 86400}};
+  for (Instant k = 0; k < 19; ++k)
+    fine.pulses.push_back({kT0 + 600 * k, kT0 + 600 * k + 300, 1e-3});
+  EXPECT_TRUE(estimate_cascade(fine, 86400).empty());
+  fine.pulses.push_back({kT0 + 600 * 19, kT0 + 600 * 19 + 300, 1e-3});
+  const std::vector<CascadeLevel> levels = estimate_cascade(fine, 86400);
+  ASSERT_EQ(levels.size(), 1u);
+  EXPECT_EQ(levels[0].p10, 1.0);
+}
+
+TEST(Disaggregation, WarnsOnlyOfAnUncalibratedCascade) {
+  const RainSeries as_read = read_series(kHourly);
+  const RainSeries by_default = disaggregate(as_read, method(DisaggregationMethod::cascade));
+  EXPECT_NE(std::find(by_default.warnings.begin(), by_default.warnings.end(), kUncalibratedWarning),
+            by_default.warnings.end());
+  Disaggregation calibrated = method(DisaggregationMethod::cascade);
+  calibrated.levels = {known_level(600)};
+  const RainSeries rain = disaggregate(as_read, calibrated);
+  EXPECT_EQ(std::find(rain.warnings.begin(), rain.warnings.end(), kUncalibratedWarning),
+            rain.warnings.end());
+  EXPECT_EQ(rain.total_depth_m, as_read.total_depth_m);
 }
 
 TEST(Disaggregation, NumbersRealizationsFromTheGivenSeed) {

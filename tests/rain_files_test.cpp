@@ -3,10 +3,13 @@
 #include <gtest/gtest.h>
 #include <unistd.h>
 
+#include <algorithm>
+#include <cstdio>
 #include <fstream>
 #include <string>
 #include <vector>
 
+#include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/scenario.hpp"
 #include "gutterwatt/units.hpp"
@@ -414,6 +417,106 @@ TEST(RainScenario, KeepsEachYearOfAPublicDailyRecord) {
     EXPECT_NEAR(sum_mm, expected_mm[y], 1e-6) << "year " << 2012 + y;
   }
   EXPECT_TRUE(rain.gaps.empty());
+}
+
+// ---- calibration of the cascade by a fine record ----
+
+// An invented fine record: `days` days of 5-minute depths, wet in alternating half-hours from
+// 06:00 to 12:00 (12 wet steps an hour-pair), dry otherwise; `step` minutes apart.
+std::string fine_record(int days, int step_min = 5, double mm = 0.4) {
+  std::string text = "time,rain_mm\n";
+  for (int d = 0; d < days; ++d) {
+    for (int m = step_min; m <= 24 * 60; m += step_min) {
+      const int minute = m - step_min;
+      const bool wet = minute >= 360 && minute < 720 && (minute / 30) % 2 == 0;
+      char row[64];
+      std::snprintf(row, sizeof row, "2025-04-%02dT%02d:%02d,%s\n", 1 + d + m / (24 * 60),
+                    m / 60 % 24, m % 60, wet ? std::to_string(mm).c_str() : "0");
+      text += row;
+    }
+  }
+  return text;
+}
+
+class RainCalibration : public RainFiles {
+ protected:
+  Scenario scenario_with(const std::string& calibrate_with) {
+    write("daily.csv", "date,rain_mm\n2025-03-01,12\n2025-03-02,3\n");
+    return parse_scenario(
+        "rain:\n  file: daily.csv\n  format: daily\n"
+        "  disaggregate:\n    method: cascade\n    calibrate_with: " +
+            calibrate_with + "\n" + kScenarioRest,
+        "demo.yaml", dir_);
+  }
+
+  std::string error_with(const std::string& calibrate_with) {
+    try {
+      load_rain(scenario_with(calibrate_with).rain);
+    } catch (const InputError& e) {
+      return e.what();
+    }
+    return "no error";
+  }
+};
+
+TEST_F(RainCalibration, EstimatesTheCascadeFromAFineRecord) {
+  write("gauge.csv", fine_record(3));
+  const Scenario s = scenario_with("{file: gauge.csv}");
+  ASSERT_TRUE(s.rain.calibrate_with);
+  EXPECT_EQ(s.rain.calibrate_with->file, dir_ / "gauge.csv");
+  const RainSeries as_read = load_rain_as_read(s.rain);
+  const std::optional<Disaggregation> how = calibrated_disaggregation(s.rain, as_read);
+  ASSERT_TRUE(how);
+  ASSERT_FALSE(how->levels.empty());
+  // Boxes of 10 min: a wet step is always followed by a wet one inside each wet half-hour
+  // (06:00-06:30 holds 6 steps), so no 10-minute box sends its rain to one half.
+  EXPECT_EQ(how->levels.front().box_s, 600.0);
+  EXPECT_EQ(how->levels.front().p10, 0.0);
+  EXPECT_EQ(how->levels.front().p01, 0.0);
+  const RainSeries rain = load_rain(s.rain);
+  EXPECT_EQ(rain.total_depth_m, as_read.total_depth_m);
+  EXPECT_EQ(std::find(rain.warnings.begin(), rain.warnings.end(), kUncalibratedWarning),
+            rain.warnings.end());
+}
+
+TEST_F(RainCalibration, RefusesARecordCoarserThanTheTargetStep) {
+  write("hourly.csv", fine_record(3, 60));
+  EXPECT_EQ(error_with("{file: hourly.csv}"),
+            label("hourly.csv") +
+                ": rain.disaggregate.calibrate_with: the record's step (1h) is coarser than "
+                "rain.disaggregate.step (5min): a calibration record must have the target step or "
+                "a finer one");
+}
+
+TEST_F(RainCalibration, RefusesADryRecord) {
+  write("dry.csv", fine_record(1, 5, 0.0));
+  EXPECT_EQ(error_with("{file: dry.csv}"),
+            label("dry.csv") +
+                ": rain.disaggregate.calibrate_with: no interval with rain: a dry record cannot "
+                "calibrate the cascade");
+}
+
+TEST_F(RainCalibration, RefusesARecordWithTooFewWetIntervals) {
+  write("short.csv", "time,rain_mm\n2025-04-01T00:05,1\n2025-04-01T00:10,0\n");
+  EXPECT_EQ(error_with("{file: short.csv}"),
+            label("short.csv") +
+                ": rain.disaggregate.calibrate_with: too few wet intervals: fewer than 20 wet "
+                "boxes of 10min to estimate the cascade from; give a longer record");
+}
+
+TEST_F(RainCalibration, RefusesAnEmptyRecordNamingIt) {
+  write("empty.csv", "");
+  EXPECT_EQ(error_with("{file: empty.csv}"),
+            label("empty.csv") +
+                ":1: empty file (expected a header row naming the columns \"time\" and "
+                "\"rain_mm\")");
+}
+
+TEST_F(RainCalibration, NamesAMissingCalibrationFile) {
+  EXPECT_EQ(error_with("{file: none.csv}"),
+            label("none.csv") + ": rain.disaggregate.calibrate_with.file: no such file");
+  EXPECT_EQ(error_with("{time_column: t}"),
+            "demo.yaml:6: rain.disaggregate.calibrate_with.file: missing required key");
 }
 
 }  // namespace

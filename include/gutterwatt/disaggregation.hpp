@@ -20,12 +20,37 @@ namespace gutterwatt {
 std::vector<double> disaggregate_interval(double depth_m, Instant length_s, std::uint64_t key,
                                           const Disaggregation& how);
 
+/// The warning of a record spread by the cascade with its default parameters.
+inline constexpr std::string_view kUncalibratedWarning =
+    "the cascade's parameters are uncalibrated defaults (intermittency 0.3, W uniform), which "
+    "may make the rain far burstier or smoother than it is where you are; calibrate them with "
+    "rain.disaggregate.calibrate_with (a short fine record from a nearby gauge)";
+
 /// The record with every pulse longer than `how.step_s` spread by disaggregate_interval (the
 /// pulse's start instant is its key); coverage, gaps, warnings and the total depth are those of
 /// `as_read`, and `step_s` becomes `how.step_s` when a pulse was spread. Each pulse's depth is
 /// conserved exactly. A record that is not daily (step other than 1 d) gains a warning like
-/// kDailyWarning when a pulse was spread.
+/// kDailyWarning when a pulse was spread, and an uncalibrated cascade kUncalibratedWarning.
 RainSeries disaggregate(const RainSeries& as_read, const Disaggregation& how);
+
+/// Quantiles of W kept per calibrated level (at probabilities 0, 0.05, ..., 1).
+inline constexpr std::size_t kWQuantiles = 21;
+
+/// Fewest wet boxes of one duration a calibrated level may rest on: durations with fewer are
+/// left to the nearest estimated one (a project choice, common practice, no source).
+inline constexpr std::size_t kMinCalibrationBoxes = 20;
+
+/// The cascade's parameters estimated from a fine record by the method of Olsson (1998): for
+/// boxes of 2, 4, 8, ... record steps up to twice `longest_s`, P(1/0), P(0/1) and the quantiles
+/// of W over the wet boxes (see CascadeLevel). The boxes start at the record's first covered
+/// instant; a pulse counts in the step it starts in, and time without data counts as dry.
+/// Stops at the first duration with fewer than kMinCalibrationBoxes wet boxes; empty when even
+/// the shortest has fewer.
+std::vector<CascadeLevel> estimate_cascade(const RainSeries& fine, Instant longest_s);
+
+/// The parameters for boxes of `box_s` from `levels` (not empty, ascending by duration): linear
+/// in log duration between the two around it, the nearest beyond the ends.
+CascadeLevel cascade_level_at(const std::vector<CascadeLevel>& levels, double box_s);
 
 /// True when the method draws at random (the cascade): its realizations differ by seed.
 bool is_random(DisaggregationMethod method);

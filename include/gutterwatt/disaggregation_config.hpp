@@ -2,7 +2,9 @@
 /// How a coarse rain record (daily totals, or a series with a long step) is brought down to a
 /// fine step: the settings of `rain.disaggregate`, in SI.
 
+#include <cstddef>
 #include <cstdint>
+#include <vector>
 
 #include "gutterwatt/calendar.hpp"
 
@@ -24,6 +26,19 @@ struct DayWindow {
 /// default (common practice, no source); fit it to a local record at fine resolution if one
 /// exists.
 inline constexpr double kDefaultCascadeIntermittency = 0.3;
+
+/// The cascade's parameters for boxes of one duration, as estimated from a fine record by the
+/// method of Olsson (1998): the chances that a wet box sends all its rain into its first half,
+/// P(1/0), or into its second, P(0/1), and otherwise (P(x/(1-x)) = 1 - P(1/0) - P(0/1)) the
+/// distribution of W, the first half's share.
+struct CascadeLevel {
+  double box_s = 0.0;  ///< duration of the box that is halved
+  double p10 = 0.0;
+  double p01 = 0.0;
+  /// W at the probabilities 0, 1/(m - 1), ..., 1 (m values, ascending); empty: uniform on (0, 1).
+  std::vector<double> w_quantiles;
+  std::size_t boxes = 0;  ///< wet boxes the estimate rests on
+};
 
 /// rain.disaggregate. Every record interval with rain that is longer than `step_s` is spread
 /// over steps of `step_s` (the last one shorter when `step_s` does not divide it); shorter
@@ -47,6 +62,10 @@ struct Disaggregation {
   Instant step_s = 300;
   std::uint64_t seed = 1;
   double intermittency = kDefaultCascadeIntermittency;  ///< cascade only, 0..1
+  /// Calibrated cascade parameters by box duration (ascending); empty: `intermittency` at every
+  /// level, an even chance for either half, and W uniform. Between two durations the
+  /// parameters are interpolated in log duration; beyond the ends the nearest is used.
+  std::vector<CascadeLevel> levels;
 };
 
 }  // namespace gutterwatt

@@ -4,6 +4,7 @@
 #include <atomic>
 #include <filesystem>
 #include <functional>
+#include <optional>
 #include <vector>
 
 #include "gutterwatt/rain_feed.hpp"
@@ -21,7 +22,16 @@ RainSeries load_rain_as_read(const RainConfig& config,
                              const std::filesystem::path& override_file = {},
                              const std::atomic<bool>* stop = nullptr);
 
-/// load_rain_as_read, then disaggregated by `config.disaggregate` when it is given.
+/// `config.disaggregate` (nullopt without one) with its cascade calibrated when the scenario
+/// asks: by rain.disaggregate.calibrate_with, the fine record read and its parameters estimated
+/// (estimate_cascade) for intervals up to the longest of `as_read`. Throws InputError naming the
+/// calibration file and `rain.disaggregate.calibrate_with` for a record coarser than
+/// rain.disaggregate.step, one without rain or one with too few wet intervals to estimate from.
+std::optional<Disaggregation> calibrated_disaggregation(const RainConfig& config,
+                                                        const RainSeries& as_read,
+                                                        const std::atomic<bool>* stop = nullptr);
+
+/// load_rain_as_read, then disaggregated by calibrated_disaggregation when there is one.
 RainSeries load_rain(const RainConfig& config, const std::filesystem::path& override_file = {},
                      const std::atomic<bool>* stop = nullptr);
 

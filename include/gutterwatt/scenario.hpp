@@ -28,6 +28,15 @@ struct SiteConfig {
 
 enum class RainFormat { series, tips, daily };
 
+/// rain.disaggregate.calibrate_with: a short fine record whose cascade parameters are estimated
+/// (estimate_cascade) and used for the coarse one.
+struct CalibrationRecord {
+  std::filesystem::path file;  ///< resolved against the scenario file's folder
+  SeriesFormat format;         ///< time_column, value_column, unit; depth values
+  int line = 0;                ///< of the key, for messages
+  std::string label;           ///< the scenario file, for messages
+};
+
 struct RainConfig {
   std::vector<std::filesystem::path> files;  ///< resolved against the scenario file's folder
   RainFormat format = RainFormat::series;
@@ -36,6 +45,7 @@ struct RainConfig {
   /// rain.disaggregate: required by format daily, optional for series (spreads intervals longer
   /// than its step), not used by tips.
   std::optional<Disaggregation> disaggregate;
+  std::optional<CalibrationRecord> calibrate_with;  ///< rain.disaggregate.calibrate_with
 };
 
 struct RoofConfig {

@@ -135,7 +135,7 @@ std::vector<std::string> overrides_of(const RunArgs& a) {
 }
 
 int run_command(const RunArgs& args) {
-  const Scenario sc = load_scenario_unless_stopped(args.scenario, overrides_of(args));
+  Scenario sc = load_scenario_unless_stopped(args.scenario, overrides_of(args));
   const std::size_t n = realization_count(args.realizations, sc.rain);
   // A period given in full is estimated before anything runs; an open one is watched as it runs.
   const bool period_known = sc.simulation.start && sc.simulation.end;
@@ -170,6 +170,7 @@ int run_command(const RunArgs& args) {
         sc.rain, args.rain, [&](RainView& view) { run_written(view, options); }, &g_stop);
   } else {
     const RainSeries as_read = load_rain_as_read(sc.rain, args.rain, &g_stop);
+    sc.rain.disaggregate = calibrated_disaggregation(sc.rain, as_read, &g_stop);
     RealizationOptions realization_options;
     realization_options.stop = &g_stop;
     realization_options.run = [&](std::size_t k, const RainSeries& record, const RunOptions& o) {
@@ -207,11 +208,12 @@ struct CheckArgs {
 };
 
 int check_command(const CheckArgs& args) {
-  const Scenario sc = load_scenario_unless_stopped(args.scenario, args.set);
+  Scenario sc = load_scenario_unless_stopped(args.scenario, args.set);
   std::optional<RainSeries> as_read;
   std::optional<RainSeries> rain;
   if (!args.no_rain) {
     as_read = load_rain_as_read(sc.rain, args.rain, &g_stop);
+    sc.rain.disaggregate = calibrated_disaggregation(sc.rain, *as_read, &g_stop);
     rain = sc.rain.disaggregate ? disaggregate(*as_read, *sc.rain.disaggregate) : *as_read;
     for (const std::string& w : rain->warnings) spdlog::warn("{}", w);
   }

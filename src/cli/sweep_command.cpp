@@ -67,13 +67,15 @@ int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop) {
   const std::size_t n = realization_count(args.realizations, plan.base.rain);
   // The record is read once; realization k is its disaggregation with the seed seed + k.
   const RainSeries as_read = load_rain_as_read(plan.base.rain, {}, &stop);
+  const std::optional<Disaggregation> calibrated =
+      calibrated_disaggregation(plan.base.rain, as_read, &stop);
   std::vector<RainSeries> records;
   for (std::size_t k = 0; k < n; ++k) {
-    if (!plan.base.rain.disaggregate) {
+    if (!calibrated) {
       records.push_back(as_read);
       continue;
     }
-    Disaggregation how = *plan.base.rain.disaggregate;
+    Disaggregation how = *calibrated;
     how.seed = realization_seed(how.seed, k);
     records.push_back(disaggregate(as_read, how));
   }
