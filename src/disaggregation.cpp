@@ -24,9 +24,9 @@ std::uint64_t split_mix(std::uint64_t x) {
   return x ^ (x >> 31);
 }
 
-// W at the probabilities 0, 1/(m - 1), ..., 1 of a level; uniform when it has none.
-std::vector<double> w_quantiles_of(const CascadeLevel& level) {
-  if (!level.w_quantiles.empty()) return level.w_quantiles;
+// W at the probabilities 0, 1/(m - 1), ..., 1; uniform when none are given.
+std::vector<double> w_quantiles_of(const std::vector<double>& given) {
+  if (!given.empty()) return given;
   std::vector<double> q(kWQuantiles);
   for (std::size_t i = 0; i < q.size(); ++i) {
     q[i] = static_cast<double>(i) / static_cast<double>(q.size() - 1);
@@ -41,33 +41,67 @@ double draw_w(const std::vector<double>& q, double u) {
   return q[i] + (position - static_cast<double>(i)) * (q[i + 1] - q[i]);
 }
 
+BoxPosition position_of(bool wet_before, bool wet_after) {
+  if (wet_before && wet_after) return BoxPosition::enclosed;
+  if (wet_after) return BoxPosition::starting;
+  if (wet_before) return BoxPosition::ending;
+  return BoxPosition::isolated;
+}
+
+std::size_t class_of(BoxPosition position, double volume_m, double median_volume_m) {
+  return 2 * static_cast<std::size_t>(position) + (volume_m > median_volume_m ? 1 : 0);
+}
+
+// The split of a wet box of one level: its class's when that rests on enough boxes, else the
+// level's pooled one. W quantiles are filled in (uniform when none were estimated).
+CascadeSplit split_for(const CascadeLevel& at, BoxPosition position, double volume_m) {
+  CascadeSplit split{at.p10, at.p01, at.w_quantiles, at.boxes};
+  if (!at.classes.empty()) {
+    const CascadeSplit& c = at.classes[class_of(position, volume_m, at.median_volume_m)];
+    if (c.boxes >= kMinCalibrationBoxes) split = c;
+  }
+  split.w_quantiles = w_quantiles_of(split.w_quantiles);
+  return split;
+}
+
 // Box weights of a microcanonical binary cascade after `levels` halvings of an interval of
-// `length_s` (2^levels boxes, summing to 1 up to rounding). Structure after Olsson (1998), Hydrol.
-// Earth Syst. Sci. 2, 19-30: each box splits 1/0, 0/1 or W/(1 - W). Uncalibrated: 1/0 and 0/1
-// together with probability `intermittency`, either with equal chance, W uniform.
+// `length_s` holding `depth_m` (2^levels boxes, summing to 1 up to rounding). Structure after
+// Olsson (1998), Hydrol. Earth Syst. Sci. 2, 19-30: each box splits 1/0, 0/1 or W/(1 - W).
+// Uncalibrated: 1/0 and 0/1 together with probability `intermittency`, either with equal chance,
+// W uniform. Calibrated: by the box's duration, position among its neighbours (the boxes at the
+// interval's ends see the neighbouring intervals as `wet_before`, `wet_after`) and volume.
 std::vector<double> cascade_weights(int levels, std::uint64_t seed, const Disaggregation& how,
-                                    Instant length_s) {
+                                    Instant length_s, double depth_m, bool wet_before,
+                                    bool wet_after) {
   std::mt19937_64 rng(seed);
   std::vector<double> weights{1.0};
+  const bool calibrated = !how.levels.empty();
   for (int level = 0; level < levels; ++level) {
-    const bool calibrated = !how.levels.empty();
     const CascadeLevel at =
         calibrated ? cascade_level_at(how.levels, std::ldexp(static_cast<double>(length_s), -level))
                    : CascadeLevel{};
-    const std::vector<double> q = calibrated ? w_quantiles_of(at) : std::vector<double>{};
     std::vector<double> next(weights.size() * 2, 0.0);
     for (std::size_t i = 0; i < weights.size(); ++i) {
       const double w = weights[i];
       if (w == 0.0) continue;
       const double u = detail::uniform_open(rng);
-      if (!calibrated && u < how.intermittency) {
-        next[2 * i + (detail::uniform_open(rng) < 0.5 ? 0 : 1)] = w;
-      } else if (calibrated && u < at.p10 + at.p01) {
-        next[2 * i + (u < at.p10 ? 0 : 1)] = w;
+      if (!calibrated) {
+        if (u < how.intermittency) {
+          next[2 * i + (detail::uniform_open(rng) < 0.5 ? 0 : 1)] = w;
+        } else {
+          const double left = detail::uniform_open(rng) * w;
+          next[2 * i] = left;
+          next[2 * i + 1] = w - left;
+        }
+        continue;
+      }
+      const bool before = i > 0 ? weights[i - 1] > 0.0 : wet_before;
+      const bool after = i + 1 < weights.size() ? weights[i + 1] > 0.0 : wet_after;
+      const CascadeSplit split = split_for(at, position_of(before, after), w * depth_m);
+      if (u < split.p10 + split.p01) {
+        next[2 * i + (u < split.p10 ? 0 : 1)] = w;
       } else {
-        const double share =
-            calibrated ? draw_w(q, detail::uniform_open(rng)) : detail::uniform_open(rng);
-        const double left = share * w;
+        const double left = draw_w(split.w_quantiles, detail::uniform_open(rng)) * w;
         next[2 * i] = left;
         next[2 * i + 1] = w - left;
       }
@@ -76,6 +110,57 @@ std::vector<double> cascade_weights(int levels, std::uint64_t seed, const Disagg
   }
   return weights;
 }
+
+// The two splits mixed: `f` of the way from `a` to `b`.
+CascadeSplit mix_splits(const CascadeSplit& a, const CascadeSplit& b, double f) {
+  const auto mix = [f](double x, double y) { return x + f * (y - x); };
+  CascadeSplit out;
+  out.p10 = mix(a.p10, b.p10);
+  out.p01 = mix(a.p01, b.p01);
+  const std::vector<double> qa = w_quantiles_of(a.w_quantiles);
+  const std::vector<double> qb = w_quantiles_of(b.w_quantiles);
+  out.w_quantiles.resize(qa.size());
+  for (std::size_t i = 0; i < qa.size(); ++i) out.w_quantiles[i] = mix(qa[i], qb[i]);
+  out.boxes = std::min(a.boxes, b.boxes);
+  return out;
+}
+
+// The split of a list of wet parent boxes (first half, second half), in order of `index`: the
+// counts of 1/0 and 0/1 and the quantiles of W of the others.
+struct SplitCount {
+  std::size_t n10 = 0;
+  std::size_t n01 = 0;
+  std::vector<double> w;
+
+  void add(double first, double second) {
+    if (second == 0.0) {
+      ++n10;
+    } else if (first == 0.0) {
+      ++n01;
+    } else {
+      w.push_back(first / (first + second));
+    }
+  }
+
+  // Olsson (1998): P(1/0) = n(1/0) / n, P(0/1) = n(0/1) / n; W by its quantiles (Hyndman & Fan
+  // definition 7).
+  CascadeSplit estimate() {
+    CascadeSplit split;
+    split.boxes = n10 + n01 + w.size();
+    if (split.boxes == 0) return split;
+    split.p10 = static_cast<double>(n10) / static_cast<double>(split.boxes);
+    split.p01 = static_cast<double>(n01) / static_cast<double>(split.boxes);
+    if (w.size() >= 2) {
+      std::sort(w.begin(), w.end());
+      split.w_quantiles.resize(kWQuantiles);
+      for (std::size_t k = 0; k < kWQuantiles; ++k) {
+        split.w_quantiles[k] = detail::quantile_of_sorted(
+            w, static_cast<double>(k) / static_cast<double>(kWQuantiles - 1));
+      }
+    }
+    return split;
+  }
+};
 
 // Splits `depth_m` at the cumulative fractions (non-decreasing, 0 first, 1 last) into parts that
 // are whole multiples of u, the spacing of doubles at `depth_m`: depth_m = N u with N < 2^53,
@@ -135,16 +220,23 @@ CascadeLevel cascade_level_at(const std::vector<CascadeLevel>& levels, double bo
   const CascadeLevel& a = levels[k - 1];
   const CascadeLevel& b = levels[k];
   const double f = std::log(box_s / a.box_s) / std::log(b.box_s / a.box_s);
-  const auto mix = [f](double x, double y) { return x + f * (y - x); };
+  const CascadeSplit pooled =
+      mix_splits({a.p10, a.p01, a.w_quantiles, a.boxes}, {b.p10, b.p01, b.w_quantiles, b.boxes}, f);
   CascadeLevel out;
   out.box_s = box_s;
-  out.p10 = mix(a.p10, b.p10);
-  out.p01 = mix(a.p01, b.p01);
-  const std::vector<double> qa = w_quantiles_of(a);
-  const std::vector<double> qb = w_quantiles_of(b);
-  out.w_quantiles.resize(qa.size());
-  for (std::size_t i = 0; i < qa.size(); ++i) out.w_quantiles[i] = mix(qa[i], qb[i]);
-  out.boxes = std::min(a.boxes, b.boxes);
+  out.p10 = pooled.p10;
+  out.p01 = pooled.p01;
+  out.w_quantiles = pooled.w_quantiles;
+  out.boxes = pooled.boxes;
+  // Volumes grow about in proportion to duration: interpolated in log volume.
+  out.median_volume_m = a.median_volume_m > 0.0 && b.median_volume_m > 0.0
+                            ? a.median_volume_m * std::pow(b.median_volume_m / a.median_volume_m, f)
+                            : 0.0;
+  if (a.classes.size() == kCascadeClasses && b.classes.size() == kCascadeClasses) {
+    for (std::size_t c = 0; c < kCascadeClasses; ++c) {
+      out.classes.push_back(mix_splits(a.classes[c], b.classes[c], f));
+    }
+  }
   return out;
 }
 
@@ -163,47 +255,50 @@ std::vector<CascadeLevel> estimate_cascade(const RainSeries& fine, Instant longe
     }
   }
   // Olsson (1998), section 3 (from memory): the record is aggregated to boxes of duration
-  // 2^j steps; each wet box of 2^j steps is seen as the parent of its two halves. Over the
-  // wet parents of one duration, P(1/0) = n(1/0) / n, P(0/1) = n(0/1) / n and
-  // P(x/(1-x)) = n(x/(1-x)) / n, and W = V(first half) / V(parent) of the x/(1-x) splits gives
-  // the distribution of W, kept here as its quantiles (Hyndman & Fan definition 7).
+  // 2^j steps; each wet box of 2^j steps is seen as the parent of its two halves, and classed by
+  // its position among its wet or dry neighbours of the same duration and by its volume (at
+  // most or above the median of the wet boxes).
+  struct Parent {
+    std::int64_t index;
+    double first;
+    double second;
+  };
   for (Instant box_s = 2 * fine.step_s; box_s <= 2 * longest_s; box_s *= 2) {
-    std::vector<std::pair<std::int64_t, double>> parents;
-    CascadeLevel level;
-    level.box_s = static_cast<double>(box_s);
-    std::vector<double> w;
-    std::size_t n10 = 0;
-    std::size_t n01 = 0;
+    std::vector<Parent> parents;
     for (std::size_t i = 0; i < boxes.size();) {
       const std::int64_t parent = detail::floor_div(boxes[i].first, 2);
-      double first = 0.0;
-      double second = 0.0;
+      Parent p{parent, 0.0, 0.0};
       for (; i < boxes.size() && detail::floor_div(boxes[i].first, 2) == parent; ++i) {
-        (boxes[i].first - 2 * parent == 0 ? first : second) += boxes[i].second;
+        (boxes[i].first - 2 * parent == 0 ? p.first : p.second) += boxes[i].second;
       }
-      parents.emplace_back(parent, first + second);
-      if (second == 0.0) {
-        ++n10;
-      } else if (first == 0.0) {
-        ++n01;
-      } else {
-        w.push_back(first / (first + second));
-      }
+      parents.push_back(p);
     }
-    boxes = std::move(parents);
-    const std::size_t n = n10 + n01 + w.size();
-    if (n < kMinCalibrationBoxes) break;
-    level.boxes = n;
-    level.p10 = static_cast<double>(n10) / static_cast<double>(n);
-    level.p01 = static_cast<double>(n01) / static_cast<double>(n);
-    if (w.size() >= 2) {
-      std::sort(w.begin(), w.end());
-      level.w_quantiles.resize(kWQuantiles);
-      for (std::size_t k = 0; k < kWQuantiles; ++k) {
-        level.w_quantiles[k] = detail::quantile_of_sorted(
-            w, static_cast<double>(k) / static_cast<double>(kWQuantiles - 1));
-      }
+    std::vector<double> volumes;
+    for (const Parent& p : parents) volumes.push_back(p.first + p.second);
+    std::sort(volumes.begin(), volumes.end());
+    const double median_volume_m = detail::quantile_of_sorted(volumes, 0.5);
+    SplitCount pooled;
+    std::vector<SplitCount> classes(kCascadeClasses);
+    for (std::size_t i = 0; i < parents.size(); ++i) {
+      const Parent& p = parents[i];
+      const bool before = i > 0 && parents[i - 1].index == p.index - 1;
+      const bool after = i + 1 < parents.size() && parents[i + 1].index == p.index + 1;
+      pooled.add(p.first, p.second);
+      classes[class_of(position_of(before, after), p.first + p.second, median_volume_m)].add(
+          p.first, p.second);
     }
+    boxes.clear();
+    for (const Parent& p : parents) boxes.emplace_back(p.index, p.first + p.second);
+    const CascadeSplit all = pooled.estimate();
+    if (all.boxes < kMinCalibrationBoxes) break;
+    CascadeLevel level;
+    level.box_s = static_cast<double>(box_s);
+    level.p10 = all.p10;
+    level.p01 = all.p01;
+    level.w_quantiles = all.w_quantiles;
+    level.boxes = all.boxes;
+    level.median_volume_m = median_volume_m;
+    for (SplitCount& c : classes) level.classes.push_back(c.estimate());
     out.push_back(std::move(level));
   }
   return out;
@@ -232,7 +327,8 @@ std::string_view method_name(DisaggregationMethod method) {
 }
 
 std::vector<double> disaggregate_interval(double depth_m, Instant length_s, std::uint64_t key,
-                                          const Disaggregation& how) {
+                                          const Disaggregation& how, bool wet_before,
+                                          bool wet_after) {
   assert(length_s >= 1 && how.step_s >= 1);
   const bool nrcs = how.method != DisaggregationMethod::block && !is_random(how.method);
   if (how.method == DisaggregationMethod::block || length_s <= how.step_s ||
@@ -252,7 +348,8 @@ std::vector<double> disaggregate_interval(double depth_m, Instant length_s, std:
     int levels = 0;
     while (length_s > (how.step_s << levels)) ++levels;
     const std::uint64_t seed = split_mix(how.seed ^ split_mix(key));
-    const std::vector<double> weights = cascade_weights(levels, seed, how, length_s);
+    const std::vector<double> weights =
+        cascade_weights(levels, seed, how, length_s, depth_m, wet_before, wet_after);
     std::vector<double> before(weights.size() + 1, 0.0);  // weight of the boxes before box i
     for (std::size_t i = 0; i < weights.size(); ++i) before[i + 1] = before[i] + weights[i];
     const auto boxes = static_cast<Instant>(weights.size());
@@ -265,8 +362,7 @@ std::vector<double> disaggregate_interval(double depth_m, Instant length_s, std:
       const auto i = static_cast<std::size_t>(position / length_s);
       const Instant r = position % length_s;
       cumulative[j] =
-          (before[i] + weights[i] * static_cast<double>(r) / static_cast<double>(length_s)) /
-          total;
+          (before[i] + weights[i] * static_cast<double>(r) / static_cast<double>(length_s)) / total;
     }
   }
   cumulative.back() = 1.0;
@@ -283,10 +379,15 @@ RainSeries disaggregate(const RainSeries& as_read, const Disaggregation& how) {
   out.warnings = as_read.warnings;
   out.pulses.reserve(as_read.pulses.size());
   bool spread = false;
-  for (const RainPulse& p : as_read.pulses) {
+  const std::vector<RainPulse>& pulses = as_read.pulses;
+  for (std::size_t k = 0; k < pulses.size(); ++k) {
+    const RainPulse& p = pulses[k];
     const Instant length_s = p.end - p.start;
-    const std::vector<double> parts =
-        disaggregate_interval(p.depth_m, length_s, static_cast<std::uint64_t>(p.start), how);
+    // A wet interval right before or after: the storm goes on across the interval's ends.
+    const bool wet_before = k > 0 && pulses[k - 1].end == p.start;
+    const bool wet_after = k + 1 < pulses.size() && pulses[k + 1].start == p.end;
+    const std::vector<double> parts = disaggregate_interval(
+        p.depth_m, length_s, static_cast<std::uint64_t>(p.start), how, wet_before, wet_after);
     if (parts.size() == 1) {
       out.pulses.push_back(p);
       continue;

@@ -308,6 +308,49 @@ TEST(Disaggregation, RecoversTheParametersOfAKnownCascade) {
   EXPECT_EQ(levels[7].boxes, 400u);
 }
 
+TEST(Disaggregation, EstimatesTheSplitsByPositionAndVolume) {
+  // Invented: in every 2-hour block, 5-minute steps 1 to 6 are wet (0.2, 1, 1, 1, 1, 0.2 mm).
+  // Of the 10-minute boxes, steps 0-1 start a run and send all to their second half (0/1),
+  // steps 6-7 end it (1/0), and the two between split evenly; the ends hold 0.2 mm, at most the
+  // median of the wet boxes (1.1 mm), the middle ones 2 mm, above it.
+  RainSeries fine;
+  fine.step_s = 300;
+  fine.covered = {{kT0, kT0 + 3 * kDay}};
+  const double mm[] = {0.0, 0.2, 1, 1, 1, 1, 0.2};
+  for (Instant block = 0; block < 36; ++block) {
+    for (Instant k = 1; k <= 6; ++k) {
+      const Instant start = kT0 + block * 7200 + k * 300;
+      fine.pulses.push_back({start, start + 300, mm[k] * 1e-3});
+    }
+  }
+  const std::vector<CascadeLevel> levels = estimate_cascade(fine, 86400);
+  ASSERT_FALSE(levels.empty());
+  const CascadeLevel& ten = levels.front();
+  ASSERT_EQ(ten.classes.size(), kCascadeClasses);
+  const auto at = [&](BoxPosition position, bool above) -> const CascadeSplit& {
+    return ten.classes[2 * static_cast<std::size_t>(position) + (above ? 1 : 0)];
+  };
+  EXPECT_EQ(at(BoxPosition::starting, false).boxes, 36u);
+  EXPECT_EQ(at(BoxPosition::starting, false).p01, 1.0);
+  EXPECT_EQ(at(BoxPosition::ending, false).p10, 1.0);
+  EXPECT_EQ(at(BoxPosition::enclosed, true).boxes, 72u);
+  EXPECT_EQ(at(BoxPosition::enclosed, true).p10 + at(BoxPosition::enclosed, true).p01, 0.0);
+  EXPECT_DOUBLE_EQ(at(BoxPosition::enclosed, true).w_quantiles[10], 0.5);
+  EXPECT_EQ(at(BoxPosition::isolated, false).boxes, 0u);
+  EXPECT_DOUBLE_EQ(ten.median_volume_m, 1.1e-3);
+  // Pooled: 36 of 144 boxes each way.
+  EXPECT_EQ(ten.p10, 0.25);
+  EXPECT_EQ(ten.p01, 0.25);
+  // A cascade calibrated on it sends the rain of a small 10-minute box that starts a storm (the
+  // next interval wet) into its second half, and of one that ends a storm into its first.
+  Disaggregation how = method(DisaggregationMethod::cascade, 300);
+  how.levels = {ten};
+  const std::vector<double> starting = disaggregate_interval(0.2e-3, 600, 0, how, false, true);
+  EXPECT_EQ(starting, (std::vector<double>{0.0, 0.2e-3}));
+  const std::vector<double> ending = disaggregate_interval(0.2e-3, 600, 0, how, true, false);
+  EXPECT_EQ(ending, (std::vector<double>{0.2e-3, 0.0}));
+}
+
 TEST(Disaggregation, InterpolatesCalibratedLevelsInLogDuration) {
   CascadeLevel a = known_level(600);
   CascadeLevel b = known_level(2400);

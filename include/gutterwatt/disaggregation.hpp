@@ -16,9 +16,12 @@ namespace gutterwatt {
 /// as one value when it is no longer than a step or the method is `block`. Every depth is a
 /// whole multiple of the spacing of doubles at `depth_m`, so the depths add up to `depth_m`
 /// exactly in any order. `key` (with `how.seed`) picks the cascade's draw. An NRCS method needs
-/// `length_s` of 24 h; another length is returned as one value.
+/// `length_s` of 24 h; another length is returned as one value. A calibrated cascade takes the
+/// intervals before and after as wet or dry (`wet_before`, `wet_after`) for the position of the
+/// boxes at its ends.
 std::vector<double> disaggregate_interval(double depth_m, Instant length_s, std::uint64_t key,
-                                          const Disaggregation& how);
+                                          const Disaggregation& how, bool wet_before = false,
+                                          bool wet_after = false);
 
 /// The warning of a record spread by the cascade with its default parameters.
 inline constexpr std::string_view kUncalibratedWarning =
@@ -42,7 +45,9 @@ inline constexpr std::size_t kMinCalibrationBoxes = 20;
 
 /// The cascade's parameters estimated from a fine record by the method of Olsson (1998): for
 /// boxes of 2, 4, 8, ... record steps up to twice `longest_s`, P(1/0), P(0/1) and the quantiles
-/// of W over the wet boxes (see CascadeLevel). The boxes start at the record's first covered
+/// of W over all wet boxes and by class (position among the neighbours, volume at most or above
+/// the median; see CascadeLevel). A class with fewer than kMinCalibrationBoxes boxes is left to
+/// the pooled values when the cascade runs. The boxes start at the record's first covered
 /// instant; a pulse counts in the step it starts in, and time without data counts as dry.
 /// Stops at the first duration with fewer than kMinCalibrationBoxes wet boxes; empty when even
 /// the shortest has fewer.

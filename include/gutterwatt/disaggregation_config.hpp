@@ -27,17 +27,35 @@ struct DayWindow {
 /// exists.
 inline constexpr double kDefaultCascadeIntermittency = 0.3;
 
-/// The cascade's parameters for boxes of one duration, as estimated from a fine record by the
-/// method of Olsson (1998): the chances that a wet box sends all its rain into its first half,
-/// P(1/0), or into its second, P(0/1), and otherwise (P(x/(1-x)) = 1 - P(1/0) - P(0/1)) the
-/// distribution of W, the first half's share.
-struct CascadeLevel {
-  double box_s = 0.0;  ///< duration of the box that is halved
+/// How a wet box of one duration splits into its halves: the chances that it sends all its rain
+/// into its first half, P(1/0), or into its second, P(0/1), and otherwise
+/// (P(x/(1-x)) = 1 - P(1/0) - P(0/1)) the distribution of W, the first half's share.
+struct CascadeSplit {
   double p10 = 0.0;
   double p01 = 0.0;
   /// W at the probabilities 0, 1/(m - 1), ..., 1 (m values, ascending); empty: uniform on (0, 1).
   std::vector<double> w_quantiles;
   std::size_t boxes = 0;  ///< wet boxes the estimate rests on
+};
+
+/// Where a wet box sits among its neighbours of the same duration (Olsson 1998): alone (both
+/// neighbours dry), starting a run of wet boxes, enclosed in one, or ending one.
+enum class BoxPosition { isolated = 0, starting = 1, enclosed = 2, ending = 3 };
+
+/// Classes of wet boxes: 4 positions times 2 volume classes (at most / above the median volume of
+/// the wet boxes of that duration): index 2 * position + (above median ? 1 : 0).
+inline constexpr std::size_t kCascadeClasses = 8;
+
+/// The cascade's parameters for boxes of one duration, as estimated from a fine record by the
+/// method of Olsson (1998): all wet boxes together, and by position and volume class.
+struct CascadeLevel {
+  double box_s = 0.0;  ///< duration of the box that is halved
+  double p10 = 0.0;    ///< of all wet boxes of this duration
+  double p01 = 0.0;
+  std::vector<double> w_quantiles;  ///< as CascadeSplit::w_quantiles
+  std::size_t boxes = 0;
+  double median_volume_m = 0.0;       ///< of the wet boxes
+  std::vector<CascadeSplit> classes;  ///< kCascadeClasses, or empty (pooled values only)
 };
 
 /// rain.disaggregate. Every record interval with rain that is longer than `step_s` is spread
