@@ -4,6 +4,7 @@
 #include <cassert>
 #include <cmath>
 #include <limits>
+#include <map>
 #include <random>
 #include <utility>
 
@@ -304,6 +305,55 @@ std::vector<CascadeLevel> estimate_cascade(const RainSeries& fine, Instant longe
   return out;
 }
 
+double median_annual_max_intensity_m_per_s(const RainSeries& rain, Instant duration_s) {
+  if (rain.pulses.empty() || rain.step_s < 1) return 0.0;
+  const Instant t0 = rain.covered.empty() ? rain.pulses.front().start : rain.covered.front().start;
+  const Instant steps = std::max<Instant>(1, duration_s / rain.step_s);
+  std::map<int, double> annual_max;
+  // A window's largest sum starts at a wet step: slide over the wet steps only.
+  const std::vector<RainPulse>& p = rain.pulses;
+  double sum = 0.0;
+  std::size_t end = 0;
+  for (std::size_t first = 0; first < p.size(); ++first) {
+    const Instant first_step = detail::floor_div(p[first].start - t0, rain.step_s);
+    while (end < p.size() &&
+           detail::floor_div(p[end].start - t0, rain.step_s) < first_step + steps) {
+      sum += p[end++].depth_m;
+    }
+    const int year = to_civil(p[first].start, 0).year;
+    annual_max[year] = std::max(annual_max[year], sum);
+    sum -= p[first].depth_m;
+  }
+  std::vector<double> maxima;
+  for (const auto& [year, depth] : annual_max) maxima.push_back(depth);
+  std::sort(maxima.begin(), maxima.end());
+  return detail::quantile_of_sorted(maxima, 0.5) / static_cast<double>(steps * rain.step_s);
+}
+
+double fit_intermittency(const RainSeries& as_read, const Disaggregation& how,
+                         const IdfCurve& idf) {
+  double best = how.intermittency;
+  double best_misfit = std::numeric_limits<double>::infinity();
+  for (int k = 0; k <= 38; ++k) {
+    Disaggregation trial = how;
+    trial.levels.clear();
+    trial.intermittency = 0.025 * k;
+    const RainSeries rain = disaggregate(as_read, trial);
+    double misfit = 0.0;
+    for (const Instant d : kIdfCheckDurations_s) {
+      if (d < how.step_s) continue;
+      const double got = median_annual_max_intensity_m_per_s(rain, d);
+      const double want = idf_intensity_m_per_s(idf, static_cast<double>(d));
+      misfit += got > 0.0 ? std::pow(std::log(got / want), 2) : 1e9;
+    }
+    if (misfit < best_misfit) {
+      best_misfit = misfit;
+      best = trial.intermittency;
+    }
+  }
+  return best;
+}
+
 bool is_random(DisaggregationMethod method) { return method == DisaggregationMethod::cascade; }
 
 std::uint64_t realization_seed(std::uint64_t seed, std::uint64_t k) { return seed + k; }
@@ -400,7 +450,7 @@ RainSeries disaggregate(const RainSeries& as_read, const Disaggregation& how) {
       out.pulses.push_back({start, std::min(start + how.step_s, p.end), parts[j]});
     }
   }
-  if (spread && is_random(how.method) && how.levels.empty()) {
+  if (spread && is_random(how.method) && how.levels.empty() && !how.idf) {
     out.warnings.emplace_back(kUncalibratedWarning);
   }
   // A daily record says so when it is read.

@@ -189,8 +189,13 @@ RainSeries load_rain_as_read(const RainConfig& config, const std::filesystem::pa
 std::optional<Disaggregation> calibrated_disaggregation(const RainConfig& config,
                                                         const RainSeries& as_read,
                                                         const std::atomic<bool>* stop) {
-  if (!config.disaggregate || !config.calibrate_with) return config.disaggregate;
+  if (!config.disaggregate) return config.disaggregate;
   Disaggregation how = *config.disaggregate;
+  if (how.idf && is_random(how.method)) {
+    how.intermittency = fit_intermittency(as_read, how, *how.idf);
+    return how;
+  }
+  if (!config.calibrate_with) return how;
   const CalibrationRecord& c = *config.calibrate_with;
   const std::string key = "rain.disaggregate.calibrate_with";
   std::error_code ec;

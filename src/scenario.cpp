@@ -328,6 +328,25 @@ void apply_calibrate_with(const Value& v, Scenario& s) {
   apply_nested(v, kKeys, s);
 }
 
+/// rain.disaggregate.idf: {a, b, c} of i = a / (t + b)^c, mm/h and minutes, each > 0, c <= 1.
+void apply_idf(const Value& v, Scenario& s) {
+  using V = const Value&;
+  using S = Scenario&;
+  static const std::vector<Key> kKeys = {
+      {"a", kRequired, [](V v, S s) { disaggregation(s).idf->a = v.number(kPositive); }},
+      {"b", kRequired, [](V v, S s) { disaggregation(s).idf->b_min = v.number(kPositive); }},
+      {"c", kRequired,
+       [](V v, S s) {
+         disaggregation(s).idf->c = v.number(Limits{0.0, 1.0, true, false});
+       }},
+  };
+  if (!v.node().IsMap()) {
+    v.fail("expected a section of keys such as {a: 1500, b: 10, c: 0.75}, got " + v.got());
+  }
+  disaggregation(s).idf.emplace(IdfCurve{0.0, 0.0, 0.0});
+  apply_nested(v, kKeys, s);
+}
+
 /// rain.disaggregate, a small section inside rain: its keys are read and checked here, with the
 /// same messages as the loader's. rain.format comes before it in the schema, so it is known here.
 void apply_disaggregate(const Value& v, Scenario& s) {
@@ -366,6 +385,7 @@ void apply_disaggregate(const Value& v, Scenario& s) {
       {"intermittency", kOptional,
        [](V v, S s) { disaggregation(s).intermittency = v.number(kShare); }},
       {"calibrate_with", kOptional, apply_calibrate_with},
+      {"idf", kOptional, apply_idf},
   };
   if (!v.node().IsMap()) {
     v.fail("expected a section of keys such as {method: cascade, step: 5min}, got " + v.got());
@@ -379,8 +399,15 @@ void apply_disaggregate(const Value& v, Scenario& s) {
   const auto at = [&](const std::string& name) { return given.find(name); };
   const bool nrcs = d.method != DisaggregationMethod::block && !is_random(d.method);
   const std::string method = "method: " + std::string(method_name(d.method));
-  if (at("calibrate_with") != given.end() && !is_random(d.method)) {
-    at("calibrate_with")->second.fail("is for method: cascade only (got " + method + ")");
+  for (const char* key : {"calibrate_with", "idf"}) {
+    if (at(key) != given.end() && !is_random(d.method)) {
+      at(key)->second.fail("is for method: cascade only (got " + method + ")");
+    }
+  }
+  if (at("calibrate_with") != given.end() && at("idf") != given.end()) {
+    at("idf")->second.fail(
+        "give either rain.disaggregate.calibrate_with or "
+        "rain.disaggregate.idf, not both");
   }
   if (s.rain.format == RainFormat::series) {
     // A series interval is spread over itself: the day's window has no meaning there.

@@ -390,6 +390,46 @@ TEST(Disaggregation, WarnsOnlyOfAnUncalibratedCascade) {
   EXPECT_EQ(rain.total_depth_m, as_read.total_depth_m);
 }
 
+TEST(Disaggregation, TakesTheMedianOfTheAnnualMaximaOverAWindow) {
+  // Invented: 1, 3, 2 mm in three 5-minute steps of 2025, 1 mm in one of 2026. Worked by hand:
+  // 2025's largest 5-minute depth 3 mm (36 mm/h), 15-minute 6 mm (24 mm/h); 2026's 1 mm. The
+  // median of two maxima (definition 7) is their mean.
+  RainSeries rain;
+  rain.step_s = 300;
+  rain.covered = {{kT0, kT0 + 400 * kDay}};
+  rain.pulses = {{kT0 + 600, kT0 + 900, 1e-3},
+                 {kT0 + 900, kT0 + 1200, 3e-3},
+                 {kT0 + 1200, kT0 + 1500, 2e-3},
+                 {kT0 + 365 * kDay, kT0 + 365 * kDay + 300, 1e-3}};
+  constexpr double kMmPerHour = 1e-3 / 3600.0;
+  EXPECT_NEAR(median_annual_max_intensity_m_per_s(rain, 300), (36.0 + 12.0) / 2 * kMmPerHour,
+              1e-15);
+  EXPECT_NEAR(median_annual_max_intensity_m_per_s(rain, 900), (24.0 + 4.0) / 2 * kMmPerHour, 1e-15);
+}
+
+TEST(Disaggregation, FitsABurstierCascadeToASteeperIdfCurve) {
+  // Invented daily totals: 60 wet days of 10 mm. Two invented curves with the same hourly
+  // intensity: the steeper one asks for more rain in 5 minutes, so a more intermittent cascade.
+  RainSeries daily;
+  daily.step_s = kDay;
+  daily.covered = {{kT0, kT0 + 60 * kDay}};
+  for (Instant d = 0; d < 60; ++d)
+    daily.pulses.push_back({kT0 + d * kDay, kT0 + (d + 1) * kDay, 10e-3});
+  daily.total_depth_m = sum_depths_m(daily.pulses);
+  const Disaggregation how = method(DisaggregationMethod::cascade);
+  // i(60) = a / (60 + b)^c: steep a 400, b 5, c 0.9 gives 9.9 mm/h; flat a 14.2, b 5, c 0.1.
+  const double steep = fit_intermittency(daily, how, IdfCurve{400, 5, 0.9});
+  const double flat = fit_intermittency(daily, how, IdfCurve{14.2, 5, 0.1});
+  EXPECT_GT(steep, flat);
+  Disaggregation fitted = how;
+  fitted.intermittency = steep;
+  fitted.idf = IdfCurve{400, 5, 0.9};
+  const RainSeries rain = disaggregate(daily, fitted);
+  EXPECT_EQ(rain.total_depth_m, daily.total_depth_m);
+  EXPECT_EQ(std::find(rain.warnings.begin(), rain.warnings.end(), kUncalibratedWarning),
+            rain.warnings.end());
+}
+
 TEST(Disaggregation, NumbersRealizationsFromTheGivenSeed) {
   EXPECT_EQ(realization_seed(42, 0), 42u);
   EXPECT_EQ(realization_seed(42, 19), 61u);

@@ -419,6 +419,45 @@ TEST(RainScenario, KeepsEachYearOfAPublicDailyRecord) {
   EXPECT_TRUE(rain.gaps.empty());
 }
 
+// The same public record disaggregated by a cascade fitted to an IDF curve (invented for the
+// test, not a published curve of that city) keeps each year's total.
+TEST(RainScenario, KeepsEachYearOfAPublicDailyRecordDisaggregatedByAnIdfCurve) {
+  const std::filesystem::path file =
+      test_support::public_data_file("vega-datasets-3.2.1/data/seattle-weather.csv");
+  const Scenario s = scenario("  file: " + file.string() +
+                                  "\n  format: daily\n  value_column: precipitation\n"
+                                  "  unit: mm\n  disaggregate:\n    method: cascade\n"
+                                  "    idf: {a: 200, b: 8, c: 0.7}\n",
+                              kFixtures);
+  ASSERT_TRUE(s.rain.disaggregate && s.rain.disaggregate->idf);
+  const RainSeries rain = load_rain(s.rain);
+  EXPECT_EQ(rain.step_s, 300);
+  const Instant years[] = {1325376000, 1356998400, 1388534400, 1420070400, 1451606400};
+  const double expected_mm[] = {1226.0, 828.0, 1232.8, 1139.2};
+  for (int y = 0; y < 4; ++y) {
+    double sum_mm = 0.0;
+    for (const RainPulse& p : rain.pulses)
+      if (p.start >= years[y] && p.start < years[y + 1]) sum_mm += p.depth_m * 1e3;
+    EXPECT_NEAR(sum_mm, expected_mm[y], 1e-6) << "year " << 2012 + y;
+  }
+  EXPECT_EQ(std::find(rain.warnings.begin(), rain.warnings.end(), kUncalibratedWarning),
+            rain.warnings.end());
+}
+
+TEST(RainScenario, RefusesAnIdfCurveWithANonPositiveParameter) {
+  EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n"
+                              "  disaggregate: {method: cascade, idf: {a: 0, b: 10, c: 0.75}}\n"),
+            "demo.yaml:4: rain.disaggregate.idf.a: must be > 0 (got 0)");
+  EXPECT_EQ(
+      scenario_error_of("  file: d.csv\n  format: daily\n"
+                        "  disaggregate: {method: cascade, idf: {a: 1500, b: -1, c: 0.75}}\n"),
+      "demo.yaml:4: rain.disaggregate.idf.b: must be > 0 (got -1)");
+  EXPECT_EQ(
+      scenario_error_of("  file: d.csv\n  format: daily\n"
+                        "  disaggregate: {method: nrcs-II, idf: {a: 1500, b: 10, c: 0.75}}\n"),
+      "demo.yaml:4: rain.disaggregate.idf: is for method: cascade only (got method: nrcs-II)");
+}
+
 // ---- calibration of the cascade by a fine record ----
 
 // An invented fine record: `days` days of 5-minute depths, wet in alternating half-hours from

@@ -57,6 +57,20 @@ std::vector<CascadeLevel> estimate_cascade(const RainSeries& fine, Instant longe
 /// in log duration between the two around it, the nearest beyond the ends.
 CascadeLevel cascade_level_at(const std::vector<CascadeLevel>& levels, double box_s);
 
+/// The median over the calendar years (UTC) of the largest depth `rain` holds in any window of
+/// `duration_s` (a whole number of the record's steps, windows starting at a step), as an
+/// intensity, m/s; 0 for a dry record. With a record of two years or more, the 2-year event.
+double median_annual_max_intensity_m_per_s(const RainSeries& rain, Instant duration_s);
+
+/// Durations, seconds, at which fit_intermittency compares a disaggregation with the IDF curve.
+inline constexpr Instant kIdfCheckDurations_s[] = {300, 900, 3600};
+
+/// The uncalibrated cascade's intermittency (0, 0.025, ..., 0.95) whose disaggregation of
+/// `as_read` by `how` puts the median annual maxima at 5, 15 and 60 min closest to `idf` (least
+/// squares of the log intensities), taking `idf` as the 2-year curve. Durations shorter than
+/// `how.step_s` are left out. A project method (common practice, no source).
+double fit_intermittency(const RainSeries& as_read, const Disaggregation& how, const IdfCurve& idf);
+
 /// True when the method draws at random (the cascade): its realizations differ by seed.
 bool is_random(DisaggregationMethod method);
 

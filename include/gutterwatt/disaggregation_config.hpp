@@ -4,9 +4,11 @@
 
 #include <cstddef>
 #include <cstdint>
+#include <optional>
 #include <vector>
 
 #include "gutterwatt/calendar.hpp"
+#include "gutterwatt/storm.hpp"
 
 namespace gutterwatt {
 
@@ -84,6 +86,9 @@ struct Disaggregation {
   /// level, an even chance for either half, and W uniform. Between two durations the
   /// parameters are interpolated in log duration; beyond the ends the nearest is used.
   std::vector<CascadeLevel> levels;
+  /// rain.disaggregate.idf: the 2-year IDF curve the cascade's intermittency is fitted to
+  /// (fit_intermittency), when there is no fine record to calibrate with.
+  std::optional<IdfCurve> idf;
 };
 
 }  // namespace gutterwatt

@@ -24,7 +24,8 @@ RainSeries load_rain_as_read(const RainConfig& config,
 
 /// `config.disaggregate` (nullopt without one) with its cascade calibrated when the scenario
 /// asks: by rain.disaggregate.calibrate_with, the fine record read and its parameters estimated
-/// (estimate_cascade) for intervals up to the longest of `as_read`. Throws InputError naming the
+/// (estimate_cascade) for intervals up to the longest of `as_read`; by rain.disaggregate.idf, the
+/// intermittency fitted to the curve (fit_intermittency on `as_read`). Throws InputError naming the
 /// calibration file and `rain.disaggregate.calibrate_with` for a record coarser than
 /// rain.disaggregate.step, one without rain or one with too few wet intervals to estimate from.
 std::optional<Disaggregation> calibrated_disaggregation(const RainConfig& config,
