@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <nlohmann/json.hpp>
@@ -106,6 +107,32 @@ TEST(Cli, RealizationsReportTheSpreadOfSeparateSeeds) {
     EXPECT_LE(z[key]["p10"].get<double>(), z[key]["p50"].get<double>()) << key;
     EXPECT_LE(z[key]["p50"].get<double>(), z[key]["p90"].get<double>()) << key;
   }
+}
+
+TEST(Cli, UncalibratedCascadeSaysHowFarApartTheMethodsAre) {
+  const fs::path dir = scratch("cli-method-spread");
+  const std::string scenario = source("scenarios/daily-demo.yaml");
+  const Outcome r =
+      run("run " + scenario + " --quiet --realizations 2 --out " + (dir / "all").string(), dir);
+  ASSERT_EQ(r.status, 0) << r.err;
+  const Outcome nrcs =
+      run("run " + scenario + " --quiet --set rain.disaggregate.method=nrcs-II --out " +
+              (dir / "nrcs").string(),
+          dir);
+  ASSERT_EQ(nrcs.status, 0) << nrcs.err;
+  const double nrcs_Wh =
+      nlohmann::json::parse(slurp(dir / "nrcs" / "summary.json"))["energy_Wh"]["electrical"]
+          .get<double>();
+  char expected[64];
+  std::snprintf(expected, sizeof expected, "nrcs-II %.2f Wh,", nrcs_Wh);
+  EXPECT_NE(r.err.find("warning: for this design the methods give block 0.00 Wh, " +
+                       std::string(expected) + " cascade "),
+            std::string::npos)
+      << r.err;
+  EXPECT_NE(r.err.find("(median of 2 realizations): with uncalibrated defaults the answer is a "
+                       "guess within this span\n"),
+            std::string::npos)
+      << r.err;
 }
 
 TEST(Cli, RealizationsNeedARandomDisaggregation) {

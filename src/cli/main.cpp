@@ -134,6 +134,33 @@ std::vector<std::string> overrides_of(const RunArgs& a) {
   return o;
 }
 
+// How far apart the methods put this design's energy, for an uncalibrated cascade: block (and
+// nrcs-II for a day spread over the whole day) run once on the record as read, beside the
+// cascade's median.
+std::string method_spread(const Scenario& sc, const RainSeries& as_read, double cascade_Wh,
+                          std::size_t n) {
+  std::string text = "for this design the methods give";
+  std::vector<DisaggregationMethod> methods{DisaggregationMethod::block};
+  const Disaggregation& given = *sc.rain.disaggregate;
+  if (sc.rain.format == RainFormat::daily && given.window.start_s == 0 &&
+      given.window.duration_s == detail::kDay_s) {
+    methods.push_back(DisaggregationMethod::nrcs_ii);
+  }
+  for (const DisaggregationMethod m : methods) {
+    Disaggregation how = given;
+    how.method = m;
+    Observer none;
+    RunOptions options;
+    options.stop = &g_stop;
+    const RunResult r = simulate(sc, disaggregate(as_read, how), none, options);
+    text += " " + std::string(method_name(m)) + " " +
+            detail::fixed(realization_metrics(r).energy_Wh, 2) + " Wh,";
+  }
+  return text + " cascade " + detail::fixed(cascade_Wh, 2) + " Wh (median of " + std::to_string(n) +
+         " realizations): with uncalibrated defaults the answer is a guess "
+         "within this span";
+}
+
 int run_command(const RunArgs& args) {
   Scenario sc = load_scenario_unless_stopped(args.scenario, overrides_of(args));
   const std::size_t n = realization_count(args.realizations, sc.rain);
@@ -163,13 +190,15 @@ int run_command(const RunArgs& args) {
   RunOptions options;
   options.stop = &g_stop;
   RainSeries rain;
+  RainSeries rain_as_read;  // several realizations only
   std::optional<RealizationSpread> spread;
   if (n == 1) {
     // A long record is simulated while it is read.
     rain = load_rain_while(
         sc.rain, args.rain, [&](RainView& view) { run_written(view, options); }, &g_stop);
   } else {
-    const RainSeries as_read = load_rain_as_read(sc.rain, args.rain, &g_stop);
+    rain_as_read = load_rain_as_read(sc.rain, args.rain, &g_stop);
+    const RainSeries& as_read = rain_as_read;
     sc.rain.disaggregate = calibrated_disaggregation(sc.rain, as_read, &g_stop);
     RealizationOptions realization_options;
     realization_options.stop = &g_stop;
@@ -185,6 +214,9 @@ int run_command(const RunArgs& args) {
                        sc.rain.disaggregate->seed);
   }
   for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
+  if (spread && sc.rain.disaggregate->levels.empty() && !sc.rain.disaggregate->idf) {
+    spdlog::warn("{}", method_spread(sc, rain_as_read, spread->energy_Wh.p50, spread->n));
+  }
   for (const std::string& w :
        coverage_warnings(month_coverage(rain, result.start, result.end, sc.site.zone))) {
     spdlog::warn("{}", w);
