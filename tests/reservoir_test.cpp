@@ -84,7 +84,7 @@ TEST(Reservoir, HalfRoundVolumeIsSegmentAreaTimesLength) {
   const ReservoirGeometry g(half_round(0.125, 8.0, 0.0625));
   // Brim-full half-round: pi r^2 L / 2 (plane geometry).
   EXPECT_NEAR(g.volume_m3(0.0625), 0.5 * kPi * 0.0625 * 0.0625 * 8.0, 1e-15);
-  // By hand at 20 mm: theta = 2 acos(42.5 / 62.5) = 1.6045 rad, segment 0.5 r^2 (theta -
+  // By hand at 20 mm: theta = 2 acos(42.5 / 62.5) = 1.6461 rad, segment 0.5 r^2 (theta -
   // sin theta) = 1.267381e-3 m2, times 8 m = 10.139046 L.
   EXPECT_NEAR(g.volume_m3(0.02), 10.139046e-3, 1e-9);
   EXPECT_EQ(g.volume_m3(0.0), 0.0);
