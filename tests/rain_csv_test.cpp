@@ -9,6 +9,7 @@
 
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/rain_input.hpp"
+#include "test_support.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -25,12 +26,7 @@ RainSeries read(const std::string& text, const SeriesFormat& fmt) {
 }
 
 std::string error_of(const std::string& text, const SeriesFormat& fmt) {
-  try {
-    read(text, fmt);
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  return "no error";
+  return test_support::input_error_of([&] { read(text, fmt); });
 }
 
 SeriesFormat daily() {
@@ -46,12 +42,7 @@ RainSeries read_daily(const std::string& text, const SeriesFormat& fmt) {
 }
 
 std::string daily_error_of(const std::string& text, const SeriesFormat& fmt) {
-  try {
-    read_daily(text, fmt);
-  } catch (const InputError& e) {
-    return e.what();
-  }
-  return "no error";
+  return test_support::input_error_of([&] { read_daily(text, fmt); });
 }
 
 // The pulses of the same invented 5-minute record as written with a point and commas.
