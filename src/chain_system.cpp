@@ -16,11 +16,21 @@ ChainSystem::ChainSystem(const Scenario& scenario)
       trickle_volume_m3_(plant_.column_area_m2() * kTrickleHead_m),
       drained_level_m_(gutterwatt::drained_level_m(scenario.release)) {}
 
+namespace {
+
+// Evaporation from the reservoir's water surface at `level_m` under forcing `f` (none without a
+// rate): the one place rates() and the spans at rest take it from.
+double evaporation_at_m3_per_s(const ReservoirGeometry& geometry, double level_m,
+                               const Forcing& f) {
+  if (f.evaporation_m_per_s <= 0.0) return 0.0;
+  return evaporation_m3_per_s(f.evaporation_m_per_s, geometry.surface_area_m2(level_m), level_m);
+}
+
+}  // namespace
+
 double ChainSystem::evaporation_m3_per_s(double volume_m3, const Forcing& f) const {
   if (f.evaporation_m_per_s <= 0.0) return 0.0;
-  const double level = geometry_.level_m(std::max(0.0, volume_m3));
-  return gutterwatt::evaporation_m3_per_s(f.evaporation_m_per_s, geometry_.surface_area_m2(level),
-                                          level);
+  return evaporation_at_m3_per_s(geometry_, geometry_.level_m(std::max(0.0, volume_m3)), f);
 }
 
 ChainRates ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& f) const {
@@ -72,10 +82,7 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
   const double full_flow = needs_full_flow ? plant_.full_flow_m3_per_s(r.level_m) : 0.0;
   r.release = release_->outflow_m3_per_s(m.release, r.level_m, full_flow);
   r.overflow = m.overflowing ? geometry_.overflow_m3_per_s(r.level_m) : 0.0;
-  r.evaporation = f.evaporation_m_per_s > 0.0
-                      ? gutterwatt::evaporation_m3_per_s(
-                            f.evaporation_m_per_s, geometry_.surface_area_m2(r.level_m), r.level_m)
-                      : 0.0;
+  r.evaporation = evaporation_at_m3_per_s(geometry_, r.level_m, f);
   d[kReservoir] = inflow - r.release - r.overflow - r.evaporation;
   d[kEvaporation] = r.evaporation;
   d[kReservoirOverflow] = r.overflow;
