@@ -33,6 +33,14 @@ std::size_t realization_count(std::size_t asked, const RainConfig& rain) {
   return asked;
 }
 
+RainSeries realization_record(const RainSeries& as_read, const std::optional<Disaggregation>& how,
+                              std::size_t k) {
+  if (!how) return as_read;
+  Disaggregation seeded = *how;
+  seeded.seed = realization_seed(how->seed, k);
+  return disaggregate(as_read, seeded);
+}
+
 RealizationMetrics realization_metrics(const RunResult& result) {
   const Accounts& a = result.totals;
   RealizationMetrics m;
@@ -80,12 +88,6 @@ std::vector<RealizationMetrics> run_realizations(const Scenario& scenario,
                       Observer none;
                       return simulate(scenario, rain, none, o);
                     });
-  const auto record_of = [&](std::size_t k) {
-    if (!scenario.rain.disaggregate) return as_read;
-    Disaggregation how = *scenario.rain.disaggregate;
-    how.seed = realization_seed(how.seed, k);
-    return disaggregate(as_read, how);
-  };
 
   const unsigned cores = std::max(1u, std::thread::hardware_concurrency());
   const std::size_t jobs =
@@ -106,7 +108,8 @@ std::vector<RealizationMetrics> run_realizations(const Scenario& scenario,
       const std::size_t k = next.fetch_add(1);
       if (k >= n) return;
       try {
-        metrics[k] = realization_metrics(run(k, record_of(k), run_options));
+        metrics[k] = realization_metrics(
+            run(k, realization_record(as_read, scenario.rain.disaggregate, k), run_options));
       } catch (...) {
         errors[k] = std::current_exception();
         halt.store(true);

@@ -113,6 +113,27 @@ TEST(Realizations, RunEachRealizationOnItsOwnSeed) {
   }
 }
 
+TEST(Realizations, RecordOfRealizationKIsTheDisaggregationWithTheSeedPlusK) {
+  const Scenario s = hourly_scenario();
+  const RainSeries as_read = hourly_record();
+  // Seed 11, realization 2: the cascade drawn with seed 13; every depth kept.
+  Disaggregation how = *s.rain.disaggregate;
+  how.seed = 13;
+  const RainSeries expected = disaggregate(as_read, how);
+  const RainSeries record = realization_record(as_read, s.rain.disaggregate, 2);
+  ASSERT_EQ(record.pulses.size(), expected.pulses.size());
+  for (std::size_t i = 0; i < record.pulses.size(); ++i) {
+    EXPECT_EQ(record.pulses[i].start, expected.pulses[i].start) << i;
+    EXPECT_EQ(record.pulses[i].depth_m, expected.pulses[i].depth_m) << i;
+  }
+  EXPECT_EQ(record.step_s, 300);
+  // A record used as read is every realization's record.
+  const RainSeries plain = realization_record(as_read, std::nullopt, 5);
+  ASSERT_EQ(plain.pulses.size(), 3u);
+  EXPECT_EQ(plain.pulses[1].depth_m, 6e-3);
+  EXPECT_EQ(plain.step_s, 3600);
+}
+
 TEST(Realizations, ThrowTheErrorOfAFailedRealization) {
   const Scenario s = hourly_scenario();
   RealizationOptions options;

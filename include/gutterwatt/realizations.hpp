@@ -6,6 +6,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <functional>
+#include <optional>
 #include <vector>
 
 #include "gutterwatt/rain_input.hpp"
@@ -28,6 +29,12 @@ std::size_t default_realizations(const RainConfig& rain);
 /// InputError naming `--realizations` when more than one is asked of a record that comes out the
 /// same every time.
 std::size_t realization_count(std::size_t asked, const RainConfig& rain);
+
+/// The record realization `k` runs on: `as_read` disaggregated by `how` with the seed
+/// realization_seed(how->seed, k), or `as_read` itself when there is no `how` (a record used as
+/// read). The one rule for run and sweep.
+RainSeries realization_record(const RainSeries& as_read, const std::optional<Disaggregation>& how,
+                              std::size_t k);
 
 /// What each realization reports.
 struct RealizationMetrics {

@@ -8,7 +8,6 @@
 #include <iostream>
 
 #include "../detail.hpp"
-#include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/rain_files.hpp"
 #include "gutterwatt/sweep.hpp"
@@ -70,15 +69,7 @@ int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop) {
   const std::optional<Disaggregation> calibrated =
       calibrated_disaggregation(plan.base.rain, as_read, &stop);
   std::vector<RainSeries> records;
-  for (std::size_t k = 0; k < n; ++k) {
-    if (!calibrated) {
-      records.push_back(as_read);
-      continue;
-    }
-    Disaggregation how = *calibrated;
-    how.seed = realization_seed(how.seed, k);
-    records.push_back(disaggregate(as_read, how));
-  }
+  for (std::size_t k = 0; k < n; ++k) records.push_back(realization_record(as_read, calibrated, k));
   for (const std::string& w : records.front().warnings) spdlog::warn("{}", w);
 
   SweepOptions options;
