@@ -280,6 +280,9 @@ Disaggregation& disaggregation(Scenario& s) {
 
 /// Most title lines rain.skip_lines passes over: a logger writes a few, never a thousand.
 constexpr double kMaxSkipLines = 1000.0;
+/// Most open-water evaporation a scenario may give, mm/day: twice the 10-15 mm/day of the
+/// hottest, driest places (from memory, no source), so a larger value is a unit mix-up.
+constexpr double kMaxEvaporation_mm_per_day = 30.0;
 
 /// rain.where: a section of column names and the text each must hold for a row to be kept.
 void apply_where(const Value& v, Scenario& s) {
@@ -622,8 +625,9 @@ const std::vector<Section>& schema() {
             [](V v, S s) { s.reservoir.initial_level_m = v.number(kNonNegative) * kMetresPerMm; }},
            {"evaporation_mm_per_day", kOptional,
             [](V v, S s) {
-              std::vector<double> e = v.node().IsSequence() ? v.numbers(kNonNegative)
-                                                            : std::vector{v.number(kNonNegative)};
+              const Limits limits = between(0.0, kMaxEvaporation_mm_per_day);
+              std::vector<double> e =
+                  v.node().IsSequence() ? v.numbers(limits) : std::vector{v.number(limits)};
               if (e.size() != 1 && e.size() != 12) {
                 v.fail("must be one number or twelve, January to December (got " +
                        std::to_string(e.size()) + ")");

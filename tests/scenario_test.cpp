@@ -228,6 +228,12 @@ TEST(Scenario, EvaporationIsOneNumberOrTwelve) {
   EXPECT_EQ(error_of(minimal(), {"reservoir.evaporation_mm_per_day=[1, 2, 3]"}),
             "--set: reservoir.evaporation_mm_per_day: must be one number or twelve, January to "
             "December (got 3)");
+  // Open water evaporates some mm a day at most (REFERENCES.md section 13): 300 is a unit slip.
+  EXPECT_EQ(error_of(minimal(), {"reservoir.evaporation_mm_per_day=300"}),
+            "--set: reservoir.evaporation_mm_per_day: must be between 0 and 30 (got 300)");
+  EXPECT_EQ(error_of(minimal(), {"reservoir.evaporation_mm_per_day=[1, 2, 3, 4, 5, 6, 7, 8, 9, 10, "
+                                 "11, 1e9]"}),
+            "--set: reservoir.evaporation_mm_per_day[11]: must be between 0 and 30 (got 1e9)");
 }
 
 TEST(Scenario, GeneratorVoltsPerRpmNeedTheBatteryVoltage) {
