@@ -16,217 +16,6 @@
 namespace gutterwatt {
 namespace {
 
-constexpr double kPerMinute_m3_per_s = kCubicMetresPerLitre / kSecondsPerMinute;
-
-/// The columns a bench log may have, each with what one unit of it is in SI.
-struct Column {
-  std::string_view name;
-  double si_per_unit;
-};
-
-constexpr Column kColumns[] = {
-    {"inflow_L_per_min", kPerMinute_m3_per_s},
-    {"inflow_gpm", kLitresPerUsGallon* kPerMinute_m3_per_s},
-    {"fill_volume_L", kCubicMetresPerLitre},
-    {"fill_volume_gal", kLitresPerUsGallon* kCubicMetresPerLitre},
-    {"fill_time_s", 1.0},
-    {"outcome", 1.0},
-    {"time_to_prime_s", 1.0},
-    {"drain_time_s", 1.0},
-    {"cycle_period_s", 1.0},
-    {"nozzle_volume_L", kCubicMetresPerLitre},
-    {"nozzle_volume_gal", kLitresPerUsGallon* kCubicMetresPerLitre},
-    {"nozzle_time_s", 1.0},
-    {"note", 1.0},
-};
-
-std::string column_list() {
-  std::string out;
-  for (const Column& c : kColumns) out += (out.empty() ? "" : ", ") + std::string(c.name);
-  return out;
-}
-
-double si_per_unit(std::string_view name) {
-  for (const Column& c : kColumns) {
-    if (c.name == name) return c.si_per_unit;
-  }
-  return 1.0;
-}
-
-/// One data row of the log by column name, with the checks every cell shares.
-class Cells {
- public:
-  Cells(const std::string& file, int line, const std::vector<std::string>& header,
-        const std::vector<std::string_view>& fields)
-      : file_(file), line_(line) {
-    for (std::size_t i = 0; i < header.size(); ++i) {
-      if (!fields[i].empty()) cells_.emplace(header[i], fields[i]);
-    }
-  }
-
-  bool has(const std::string& name) const { return cells_.count(name) > 0; }
-
-  [[noreturn]] void fail(const std::string& column, const std::string& message) const {
-    throw InputError(file_, line_, column, message);
-  }
-
-  /// The positive number in `name` in SI, or nullopt when the cell is empty or absent.
-  std::optional<double> positive(const std::string& name) const {
-    const auto it = cells_.find(name);
-    if (it == cells_.end()) return std::nullopt;
-    const std::string_view text = it->second;
-    const std::optional<double> x = detail::to_number(text);
-    if (!x) fail(name, "expected a number, got \"" + std::string(text) + "\"");
-    if (!(*x > 0.0)) fail(name, "must be > 0 (got " + std::string(text) + ")");
-    return *x * si_per_unit(name);
-  }
-
-  std::string_view text(const std::string& name) const {
-    const auto it = cells_.find(name);
-    return it == cells_.end() ? std::string_view{} : it->second;
-  }
-
-  /// The one quantity given by whichever of `forms` the row fills: fails when two are filled.
-  /// Returns the name of the form used, or empty.
-  std::string one_of(std::initializer_list<std::string> forms, const std::string& what) const {
-    std::string used;
-    for (const std::string& form : forms) {
-      if (!has(form)) continue;
-      if (!used.empty()) {
-        fail(form,
-             what + " is given twice on this row (" + used + " and " + form + "); give it once");
-      }
-      used = form;
-    }
-    return used;
-  }
-
-  /// A volume over the time it took, both required together.
-  std::optional<double> timed(const std::string& volume_column, const std::string& time_column,
-                              const std::string& container) const {
-    if (volume_column.empty()) {
-      if (has(time_column)) fail(time_column, "missing: the volume of " + container);
-      return std::nullopt;
-    }
-    if (!has(time_column)) fail(time_column, "missing: the time " + container + " took to fill");
-    return *positive(volume_column) / *positive(time_column);
-  }
-
- private:
-  std::string file_;
-  int line_;
-  std::map<std::string, std::string_view> cells_;
-};
-
-std::vector<std::string> read_header(std::string_view text, const std::string& file, int line) {
-  std::vector<std::string> header;
-  for (std::string_view field : detail::split_fields(text)) {
-    const std::string name(field);
-    const bool known = std::any_of(std::begin(kColumns), std::end(kColumns),
-                                   [&](const Column& c) { return c.name == name; });
-    if (!known) {
-      throw InputError(file, line, name, "unknown column; expected any of " + column_list());
-    }
-    if (std::find(header.begin(), header.end(), name) != header.end()) {
-      throw InputError(file, line, name, "column given twice");
-    }
-    header.push_back(name);
-  }
-  const auto has = [&](std::string_view name) {
-    return std::find(header.begin(), header.end(), name) != header.end();
-  };
-  if (!has("outcome")) {
-    throw InputError(file, line, "outcome", "missing column (primed or dribbled, per row)");
-  }
-  if (!has("inflow_L_per_min") && !has("inflow_gpm") && !has("fill_volume_L") &&
-      !has("fill_volume_gal")) {
-    throw InputError(file, line, "inflow_L_per_min",
-                     "missing column: give the inflow as inflow_L_per_min, inflow_gpm, or "
-                     "fill_volume_L with fill_time_s");
-  }
-  const auto pair = [&](std::string_view a, std::string_view b, std::string_view time) {
-    if ((has(a) || has(b)) && !has(time)) {
-      throw InputError(
-          file, line, std::string(time),
-          "missing column: " + std::string(has(a) ? a : b) + " needs " + std::string(time));
-    }
-    if (has(time) && !has(a) && !has(b)) {
-      throw InputError(file, line, std::string(a),
-                       "missing column: " + std::string(time) + " needs " + std::string(a));
-    }
-  };
-  pair("fill_volume_L", "fill_volume_gal", "fill_time_s");
-  pair("nozzle_volume_L", "nozzle_volume_gal", "nozzle_time_s");
-  return header;
-}
-
-BenchRow read_row(const Cells& cells, int line) {
-  BenchRow row;
-  row.line = line;
-  const std::string_view outcome = cells.text("outcome");
-  if (outcome == "primed" || outcome == "dribbled") {
-    row.primed = outcome == "primed";
-  } else if (outcome.empty()) {
-    cells.fail("outcome", "missing: primed or dribbled");
-  } else {
-    cells.fail("outcome", "expected primed or dribbled, got \"" + std::string(outcome) + "\"");
-  }
-  const std::string inflow = cells.one_of(
-      {"inflow_L_per_min", "inflow_gpm", "fill_volume_L", "fill_volume_gal"}, "the inflow");
-  if (inflow.empty()) cells.fail("inflow_L_per_min", "missing: the inflow of this test");
-  row.inflow_m3_per_s = inflow.starts_with("fill_")
-                            ? *cells.timed(inflow, "fill_time_s", "the hose container")
-                            : *cells.positive(inflow);
-  if (!inflow.starts_with("fill_") && cells.has("fill_time_s")) {
-    cells.fail("fill_time_s", "the inflow is given twice on this row (" + inflow +
-                                  " and a timed container); give it once");
-  }
-  row.time_to_prime_s = cells.positive("time_to_prime_s");
-  row.drain_time_s = cells.positive("drain_time_s");
-  row.cycle_period_s = cells.positive("cycle_period_s");
-  const std::string nozzle =
-      cells.one_of({"nozzle_volume_L", "nozzle_volume_gal"}, "the nozzle volume");
-  row.nozzle_flow_m3_per_s = cells.timed(nozzle, "nozzle_time_s", "the nozzle container");
-  if (!row.primed) {
-    for (const char* column : {"time_to_prime_s", "drain_time_s", "cycle_period_s",
-                               "nozzle_volume_L", "nozzle_volume_gal", "nozzle_time_s"}) {
-      if (cells.has(column)) {
-        cells.fail(column, "a test that only dribbled has no cycle to time; leave it empty");
-      }
-    }
-  }
-  return row;
-}
-
-}  // namespace
-
-std::vector<BenchRow> read_bench_log(std::istream& in, const std::string& file_label) {
-  std::vector<BenchRow> rows;
-  std::vector<std::string> header;
-  std::string line;
-  int line_number = 0;
-  std::string_view text;
-  while (detail::next_data_line(in, line, line_number, text)) {
-    if (header.empty()) {
-      header = read_header(text, file_label, line_number);
-      continue;
-    }
-    const std::vector<std::string_view> fields = detail::split_fields(text);
-    if (fields.size() != header.size()) {
-      throw InputError(file_label, line_number, "",
-                       "expected " + std::to_string(header.size()) +
-                           " fields, one per column (got " + std::to_string(fields.size()) + ")");
-    }
-    rows.push_back(read_row(Cells(file_label, line_number, header, fields), line_number));
-  }
-  if (in.bad()) throw InputError(file_label, line_number, "", "the bench log could not be read");
-  if (header.empty()) throw InputError(file_label, 0, "", "the bench log has no header");
-  if (rows.empty()) throw InputError(file_label, line_number, "", "the bench log has no tests");
-  return rows;
-}
-
-namespace {
-
 /// Keeps the first siphon cycle and asks the run to stop once it has ended.
 class FirstCycle : public Observer {
  public:
@@ -411,7 +200,7 @@ std::optional<Eigen::MatrixXd> jacobian(const BenchModel& model, const Eigen::Ve
 
 std::string litres_per_minute(double flow_m3_per_s) {
   char buf[32];
-  std::snprintf(buf, sizeof buf, "%.3g L/min", flow_m3_per_s / kPerMinute_m3_per_s);
+  std::snprintf(buf, sizeof buf, "%.3g L/min", flow_m3_per_s / kLitrePerMinute_m3_per_s);
   return buf;
 }
 
@@ -636,7 +425,7 @@ namespace {
 
 /// `value` in the unit a person reads for `key`: L/min for the priming flow, as is otherwise.
 double shown(const FittedValue& v, double x) {
-  return v.key == "release.priming_flow_L_per_min" ? x / kPerMinute_m3_per_s : x;
+  return v.key == "release.priming_flow_L_per_min" ? x / kLitrePerMinute_m3_per_s : x;
 }
 
 /// `text` as a double-quoted YAML scalar.
@@ -649,10 +438,11 @@ std::string yaml_quoted(const std::string& text) {
   return out + "\"";
 }
 
-/// The text written into the scenario for a fitted value: four significant digits.
-std::string yaml_number(const FittedValue& v) { return show(shown(v, v.value)); }
+}  // namespace
 
-void write_value(std::ostream& out, const FittedValue& v) {
+std::string fitted_value_text(const FittedValue& v) { return show(shown(v, v.value)); }
+
+void write_fitted_value(std::ostream& out, const FittedValue& v) {
   out << "  " << v.key << ": ";
   if (!v.fitted) {
     out << show(shown(v, v.value)) << " (kept: see the warnings)\n";
@@ -667,8 +457,6 @@ void write_value(std::ostream& out, const FittedValue& v) {
   out << " (was " << show(shown(v, v.before)) << ")\n";
 }
 
-}  // namespace
-
 void write_bench_fit(std::ostream& out, const BenchFit& fit) {
   out << "Priming flow bracket\n";
   out << "  largest inflow that only dribbled: "
@@ -677,9 +465,9 @@ void write_bench_fit(std::ostream& out, const BenchFit& fit) {
   out << "  smallest inflow that primed:       "
       << (fit.primed_min_m3_per_s ? litres_per_minute(*fit.primed_min_m3_per_s) : "none") << "\n";
   out << "Fitted values (+- one standard uncertainty)\n";
-  write_value(out, fit.priming_flow);
-  write_value(out, fit.minor_loss_k);
-  write_value(out, fit.discharge_coefficient);
+  write_fitted_value(out, fit.priming_flow);
+  write_fitted_value(out, fit.minor_loss_k);
+  write_fitted_value(out, fit.discharge_coefficient);
   if (!fit.residuals.empty()) {
     out << "Measurements against the fitted model\n";
     char buf[160];
@@ -688,7 +476,7 @@ void write_bench_fit(std::ostream& out, const BenchFit& fit) {
     out << buf;
     for (const BenchResidual& r : fit.residuals) {
       const bool flow = r.quantity == "nozzle_flow_L_per_min";
-      const double scale = flow ? 1.0 / kPerMinute_m3_per_s : 1.0;
+      const double scale = flow ? 1.0 / kLitrePerMinute_m3_per_s : 1.0;
       std::snprintf(buf, sizeof buf, "  %-6d %-22s %12.4g %12.4g %8.1f%%\n", r.line,
                     r.quantity.c_str(), r.measured * scale, r.model * scale, 100.0 * r.relative());
       out << buf;
@@ -702,25 +490,36 @@ void write_bench_fit(std::ostream& out, const BenchFit& fit) {
     for (const std::string& w : fit.warnings) out << "  - " << w << "\n";
   }
   out << "As a build for release.builds:\n  - {name: NAME, priming_flow_L_per_min: "
-      << yaml_number(fit.priming_flow) << ", minor_loss_k: " << yaml_number(fit.minor_loss_k)
-      << ", nozzle_discharge_coefficient: " << yaml_number(fit.discharge_coefficient) << "}\n";
+      << fitted_value_text(fit.priming_flow)
+      << ", minor_loss_k: " << fitted_value_text(fit.minor_loss_k)
+      << ", nozzle_discharge_coefficient: " << fitted_value_text(fit.discharge_coefficient)
+      << "}\n";
+}
+
+std::string fitted_scenario_text(std::string_view scenario_text,
+                                 const std::vector<FittedValue>& values,
+                                 const std::string& log_name, const std::string& log_label,
+                                 const std::string& scenario_label) {
+  std::string text(scenario_text);
+  std::string names;
+  for (const FittedValue& v : values) {
+    if (!v.fitted) continue;
+    text = set_scenario_value(text, v.key, fitted_value_text(v), scenario_label);
+    names += (names.empty() ? "" : ", ") + v.key;
+    if (v.key == "release.priming_flow_L_per_min") {
+      text = set_scenario_value(text, "release.priming_flow_measured_by", yaml_quoted(log_label),
+                                scenario_label);
+    }
+  }
+  return "# Fitted by gutterwatt fit to the " + log_name + " " + log_label + ": " +
+         (names.empty() ? "nothing could be fitted" : names) + ".\n" + text;
 }
 
 std::string fitted_scenario_text(std::string_view scenario_text, const BenchFit& fit,
                                  const std::string& log_label, const std::string& scenario_label) {
-  std::string text(scenario_text);
-  std::string names;
-  for (const FittedValue* v : {&fit.priming_flow, &fit.minor_loss_k, &fit.discharge_coefficient}) {
-    if (!v->fitted) continue;
-    text = set_scenario_value(text, v->key, yaml_number(*v), scenario_label);
-    names += (names.empty() ? "" : ", ") + v->key;
-  }
-  if (fit.priming_flow.fitted) {
-    text = set_scenario_value(text, "release.priming_flow_measured_by", yaml_quoted(log_label),
-                              scenario_label);
-  }
-  return "# Fitted by gutterwatt fit to the bench log " + log_label + ": " +
-         (names.empty() ? "nothing could be fitted" : names) + ".\n" + text;
+  return fitted_scenario_text(scenario_text,
+                              {fit.priming_flow, fit.minor_loss_k, fit.discharge_coefficient},
+                              "bench log", log_label, scenario_label);
 }
 
 }  // namespace gutterwatt

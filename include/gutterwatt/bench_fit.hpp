@@ -1,8 +1,8 @@
 #pragma once
-/// The siphon as built: a bench log of hose tests read, and the model fitted to it. The priming
-/// flow comes from the bracket between the largest inflow that only dribbled and the smallest
-/// that primed; the running loss (drop_pipe.minor_loss_k) and the nozzle's discharge coefficient
-/// come from least squares (Levenberg-Marquardt) over the timed rows, each prediction a
+/// The siphon as built: the model fitted to a bench log of hose tests (read by fit_logs). The
+/// priming flow comes from the bracket between the largest inflow that only dribbled and the
+/// smallest that primed; the running loss (drop_pipe.minor_loss_k) and the nozzle's discharge
+/// coefficient come from least squares (Levenberg-Marquardt) over the timed rows, each prediction a
 /// simulated bench run of the same scenario.
 
 #include <istream>
@@ -12,30 +12,10 @@
 #include <string_view>
 #include <vector>
 
+#include "gutterwatt/fit_logs.hpp"
 #include "gutterwatt/scenario.hpp"
 
 namespace gutterwatt {
-
-/// One hose test: a steady inflow into the reservoir and what was seen. Every value in SI.
-struct BenchRow {
-  int line = 0;  ///< in the log, for messages
-  double inflow_m3_per_s = 0.0;
-  bool primed = false;
-  std::optional<double> time_to_prime_s;       ///< from a break (level at the bell rim) to priming
-  std::optional<double> drain_time_s;          ///< from priming to the break
-  std::optional<double> cycle_period_s;        ///< from one priming to the next
-  std::optional<double> nozzle_flow_m3_per_s;  ///< a container held under the nozzle, running
-};
-
-/// Reads a bench log: a CSV with a header naming its columns (units in the names), one row per
-/// test, `#` comments and blank lines skipped. The inflow is `inflow_L_per_min`, `inflow_gpm` or
-/// a timed container (`fill_volume_L` or `fill_volume_gal` with `fill_time_s`); `outcome` is
-/// `primed` or `dribbled`; optional `time_to_prime_s`, `drain_time_s`, `cycle_period_s`,
-/// `nozzle_volume_L` or `nozzle_volume_gal` with `nozzle_time_s`, and a free `note`. Throws
-/// InputError naming `file_label`, the line and the column for an unknown or missing column, an
-/// unknown outcome, a missing, non-numeric or non-positive value, a quantity given twice on one
-/// row (in two units, or as a rate and a timed container), and times on a row that dribbled.
-std::vector<BenchRow> read_bench_log(std::istream& in, const std::string& file_label);
 
 /// What one simulated bench run gives at one inflow: the first cycle from a break (nullopt
 /// where the model does not prime, or does not break within the time allowed).
@@ -99,9 +79,23 @@ Scenario apply_fit(Scenario scenario, const BenchFit& fit);
 /// `release.builds`.
 void write_bench_fit(std::ostream& out, const BenchFit& fit);
 
-/// `scenario_text` with the fitted values written in place of the old ones (everything else as
-/// written) and a first comment line naming the log; a fitted priming flow also sets
-/// `release.priming_flow_measured_by` to the log's name.
+/// Prints one value for a person, in the unit a person reads (L/min for the priming flow):
+/// `  key: value +- sigma (was before)`, or `  key: value (kept: see the warnings)`.
+void write_fitted_value(std::ostream& out, const FittedValue& v);
+
+/// The text written into a scenario for a fitted value: four significant digits, in the key's
+/// unit.
+std::string fitted_value_text(const FittedValue& v);
+
+/// `scenario_text` with the fitted ones of `values` written in place of the old ones (everything
+/// else as written) and a first comment line naming the log (`log_name` says what kind of log);
+/// a fitted priming flow also sets `release.priming_flow_measured_by` to the log's name.
+std::string fitted_scenario_text(std::string_view scenario_text,
+                                 const std::vector<FittedValue>& values,
+                                 const std::string& log_name, const std::string& log_label,
+                                 const std::string& scenario_label);
+
+/// The same for a bench fit.
 std::string fitted_scenario_text(std::string_view scenario_text, const BenchFit& fit,
                                  const std::string& log_label, const std::string& scenario_label);
 

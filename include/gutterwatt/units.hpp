@@ -20,6 +20,8 @@ inline constexpr double kCubicMetresPerLitre = 1e-3;
 inline constexpr double kLitresPerUsGallon = 3.785411784;
 inline constexpr double kJoulesPerWh = 3600.0;
 inline constexpr double kSecondsPerMinute = 60.0;
+/// One litre per minute in m3/s.
+inline constexpr double kLitrePerMinute_m3_per_s = kCubicMetresPerLitre / kSecondsPerMinute;
 inline constexpr double kSecondsPerHour = 3600.0;
 inline constexpr double kSecondsPerDay = 86400.0;
 inline constexpr double kZeroCelsius_K = 273.15;

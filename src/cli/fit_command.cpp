@@ -1,12 +1,17 @@
 #include "fit_command.hpp"
 
+#include <spdlog/spdlog.h>
+
 #include <filesystem>
 #include <fstream>
 #include <iostream>
 
 #include "../detail.hpp"
 #include "gutterwatt/bench_fit.hpp"
+#include "gutterwatt/cycle_fit.hpp"
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/fit_logs.hpp"
+#include "gutterwatt/rain_files.hpp"
 #include "gutterwatt/scenario.hpp"
 #include "gutterwatt/scenario_edit.hpp"
 #include "output_file.hpp"
@@ -34,16 +39,33 @@ std::ifstream open_log(const std::string& file, const std::string& option) {
 }  // namespace
 
 int fit_command(const FitArgs& args) {
-  if (args.bench.empty()) throw InputError("", 0, "--bench", "give the bench log to fit to");
+  if (args.bench.empty() == args.cycles.empty()) {
+    throw InputError("", 0, args.bench.empty() ? "--bench" : "--cycles",
+                     args.bench.empty()
+                         ? "give the bench log (--bench) or the field log of cycles (--cycles)"
+                         : "give one log: --bench or --cycles, not both");
+  }
   const std::string text = read_scenario_text(args.scenario);
   const Scenario scenario = parse_scenario(text, args.scenario, folder_of(args.scenario));
-  std::ifstream in = open_log(args.bench, "--bench");
-  const BenchFit fit = fit_bench(scenario, read_bench_log(in, args.bench), args.bench);
-  write_bench_fit(std::cout, fit);
+  std::string fitted;
+  if (!args.bench.empty()) {
+    std::ifstream in = open_log(args.bench, "--bench");
+    const BenchFit fit = fit_bench(scenario, read_bench_log(in, args.bench), args.bench);
+    write_bench_fit(std::cout, fit);
+    fitted = fitted_scenario_text(text, fit, args.bench, args.scenario);
+  } else {
+    std::ifstream in = open_log(args.cycles, "--cycles");
+    const CycleLog log = read_cycle_log(in, args.cycles, scenario.rain.series.utc_offset_s);
+    const RainSeries rain = load_rain(scenario.rain);
+    for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
+    const CycleFit fit = fit_cycles(scenario, rain, log, args.cycles);
+    write_cycle_fit(std::cout, fit, scenario.site.utc_offset_s);
+    fitted = fitted_scenario_text(text, {fit.priming_flow, fit.minor_loss_k}, "cycle log",
+                                  args.cycles, args.scenario);
+  }
   if (args.out.empty()) return detail::kExitOk;
-  const std::string fitted =
-      relocate_scenario_text(fitted_scenario_text(text, fit, args.bench, args.scenario),
-                             folder_of(args.scenario), folder_of(args.out), args.scenario);
+  fitted =
+      relocate_scenario_text(fitted, folder_of(args.scenario), folder_of(args.out), args.scenario);
   // The written scenario must load as it stands (a fitted priming flow at or above the running
   // flow, say, is reported against the new file instead of being written).
   parse_scenario(fitted, args.out, folder_of(args.out));

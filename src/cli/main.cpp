@@ -4,7 +4,6 @@
 #include <spdlog/sinks/stdout_sinks.h>
 #include <spdlog/spdlog.h>
 
-#include <CLI/CLI.hpp>
 #include <atomic>
 #include <cmath>
 #include <csignal>
@@ -18,6 +17,7 @@
 #include <vector>
 
 #include "../detail.hpp"
+#include "command_line.hpp"
 #include "fit_command.hpp"
 #include "gutterwatt/calendar.hpp"
 #include "gutterwatt/design.hpp"
@@ -66,65 +66,8 @@ Scenario load_scenario_unless_stopped(const std::string& file,
   return sc;
 }
 
-// Error text as one printable line: a message may quote a line of a binary file or a
-// multi-line YAML value, so control characters and bytes that are not UTF-8 become \xNN.
-std::string one_line(std::string_view text) {
-  std::string out;
-  out.reserve(text.size());
-  for (std::size_t i = 0; i < text.size();) {
-    const auto c = static_cast<unsigned char>(text[i]);
-    const std::size_t n = c < 0x80 ? (c >= 0x20 && c != 0x7F) : detail::utf8_length(text, i);
-    if (n > 0) {
-      out.append(text.substr(i, n));
-      i += n;
-      continue;
-    }
-    static constexpr char kHex[] = "0123456789ABCDEF";
-    out += "\\x";
-    out += kHex[c >> 4];
-    out += kHex[c & 0xF];
-    ++i;
-  }
-  return out;
-}
-
 // An input error's text from its parts: what() ends at the first NUL byte a message quotes.
 std::string describe(const InputError& e) { return one_line(e.text()); }
-
-// A parse error in words: CLI11 reports an unknown command as a missing one.
-std::string describe(const CLI::ParseError& e, CLI::App& app, int argc, char** argv) {
-  const std::vector<CLI::App*> parsed = app.get_subcommands();
-  if (!parsed.empty()) {
-    return one_line(std::string(e.what()) + " (see gutterwatt " + parsed.front()->get_name() +
-                    " --help)");
-  }
-  std::string names;
-  const std::vector<CLI::App*> commands = app.get_subcommands([](CLI::App*) { return true; });
-  for (std::size_t i = 0; i < commands.size(); ++i) {
-    if (i > 0) names += i + 1 == commands.size() ? " or " : ", ";
-    names += commands[i]->get_name();
-  }
-  if (argc < 2) return "no command given; expected " + names + " (see gutterwatt --help)";
-  const std::string first = argv[1];
-  if (first.starts_with("-")) {
-    return one_line("unknown option " + first + "; expected a command first: " + names +
-                    " (see gutterwatt --help)");
-  }
-  return one_line("unknown command \"" + first + "\"; expected " + names +
-                  " (see gutterwatt --help)");
-}
-
-struct RunArgs {
-  std::string scenario;
-  std::string out;
-  std::vector<std::string> set;
-  std::string rain;
-  std::string from;
-  std::string to;
-  bool quiet = false;
-  bool force = false;
-  unsigned realizations = 0;  ///< 0: the default for the record
-};
 
 // Applies --from/--to as overrides so they are checked like any scenario key.
 std::vector<std::string> overrides_of(const RunArgs& a) {
@@ -232,13 +175,6 @@ int run_command(const RunArgs& args) {
   return kExitOk;
 }
 
-struct CheckArgs {
-  std::string scenario;
-  std::vector<std::string> set;
-  std::string rain;
-  bool no_rain = false;
-};
-
 int check_command(const CheckArgs& args) {
   Scenario sc = load_scenario_unless_stopped(args.scenario, args.set);
   std::optional<RainSeries> as_read;
@@ -255,17 +191,6 @@ int check_command(const CheckArgs& args) {
                evaluate_design(sc, rain ? &*rain : nullptr, spread ? &*as_read : nullptr));
   return kExitOk;
 }
-
-struct StormArgs {
-  std::string kind;
-  std::string depth;
-  std::string duration;
-  std::string step;
-  std::string start = "2000-01-01T00:00";
-  std::vector<double> idf;
-  double peak = 0.5;
-  std::string out;
-};
 
 double duration_option(const std::string& text, const std::string& option) {
   const auto d = parse_duration_s(text);
@@ -318,16 +243,6 @@ int storm_command(const StormArgs& a) {
   return kExitOk;
 }
 
-struct SynthArgs {
-  std::string params;
-  std::string start;
-  std::string end;
-  std::string step = "1h";
-  std::uint64_t seed = 1;
-  std::string utc_offset = "+00:00";
-  std::string out;
-};
-
 int synth_command(const SynthArgs& a) {
   std::ifstream in(a.params, std::ios::binary);
   if (!in) throw InputError(a.params, 0, "--params", "cannot be read");
@@ -361,122 +276,35 @@ int main(int argc, char** argv) {
   std::signal(SIGINT, on_signal);
   std::signal(SIGTERM, on_signal);
 
-  CLI::App app{
-      "gutterwatt: energy from rain on a roof, through a reservoir, a release, a drop "
-      "pipe and an impulse turbine into a battery"};
-  app.require_subcommand(1);
-  app.set_version_flag("--version", "gutterwatt 0.1.0");
-
-  RunArgs run;
-  auto* run_cmd = app.add_subcommand(
-      "run", "simulate a scenario; write timeseries.csv, events.csv, summary.json");
-  run_cmd->add_option("scenario", run.scenario, "scenario file (YAML)")->required();
-  run_cmd->add_option("--out", run.out, "output folder (default out/<scenario name>)");
-  run_cmd->add_option("--set", run.set, "override a scenario key: key.path=value (repeatable)");
-  run_cmd->add_option("--rain", run.rain, "rain file to use instead of the scenario's");
-  run_cmd->add_option("--from", run.from, "start of the simulated period (ISO 8601)");
-  run_cmd->add_option("--to", run.to, "end of the simulated period (ISO 8601)");
-  run_cmd->add_flag("--quiet", run.quiet, "print nothing on success");
-  run_cmd->add_flag("--force", run.force, "write the output even past the size limit (1 GB)");
-  run_cmd
-      ->add_option("--realizations", run.realizations,
-                   "disaggregations of a coarse record to run, seeds seed to seed + N - 1 "
-                   "(default 20 for method: cascade, else 1)")
-      ->check(CLI::Range(1, 10000));
-
-  CheckArgs check;
-  auto* check_cmd = app.add_subcommand("check", "validate a scenario and print its design figures");
-  check_cmd->add_option("scenario", check.scenario, "scenario file (YAML)")->required();
-  check_cmd->add_option("--set", check.set, "override a scenario key: key.path=value (repeatable)");
-  check_cmd->add_option("--rain", check.rain, "rain file to use instead of the scenario's");
-  check_cmd->add_flag("--no-rain", check.no_rain, "do not read the rain record");
-
-  SweepArgs sweep;
-  auto* sweep_cmd =
-      app.add_subcommand("sweep", "run every combination of varied keys; write DIR/sweep.csv");
-  sweep_cmd->add_option("scenario", sweep.scenario, "scenario file (YAML)")->required();
-  sweep_cmd->add_option("--vary", sweep.vary, "KEY=FROM:TO:STEP or KEY=v1,v2,... (repeatable)")
-      ->required();
-  sweep_cmd->add_option("--set", sweep.set, "override a scenario key in every run (repeatable)");
-  sweep_cmd->add_option("--jobs", sweep.jobs, "worker threads (default: one per core)");
-  sweep_cmd->add_option("--rank", sweep.rank,
-                        "metric to rank by (default energy_Wh); force the order with "
-                        "--rank=-KEY (highest first) or --rank=+KEY (lowest first)");
-  sweep_cmd->add_option("--out", sweep.out, "output folder")->required();
-  sweep_cmd->add_flag("--quiet", sweep.quiet, "print nothing on success");
-  sweep_cmd
-      ->add_option("--realizations", sweep.realizations,
-                   "disaggregations of a coarse record each combination runs on; rank by the "
-                   "median (default 20 for method: cascade, else 1)")
-      ->check(CLI::Range(1, 10000));
-
-  std::string report_dir;
-  auto* report_cmd =
-      app.add_subcommand("report", "write DIR/report.html from a run or sweep folder");
-  report_cmd->add_option("dir", report_dir, "output folder of a run or sweep")->required();
-
-  StormArgs storm;
-  auto* storm_cmd = app.add_subcommand("storm", "write a design-storm hyetograph as a rain CSV");
-  storm_cmd
-      ->add_option("--kind", storm.kind,
-                   "nrcs-I, nrcs-IA, nrcs-II, nrcs-III, chicago, idf-block, block")
-      ->required();
-  storm_cmd->add_option("--depth", storm.depth,
-                        "total depth with its unit, 50mm or 2in (optional with an IDF curve)");
-  storm_cmd->add_option("--duration", storm.duration, "storm duration, e.g. 24h, 90min")
-      ->required();
-  storm_cmd->add_option("--step", storm.step, "time step, e.g. 5min")->required();
-  storm_cmd->add_option("--start", storm.start, "start time (ISO 8601), default 2000-01-01T00:00");
-  storm_cmd->add_option("--idf", storm.idf, "IDF curve i = a/(t+b)^c as a,b,c (mm/h, minutes)")
-      ->delimiter(',');
-  storm_cmd->add_option("--peak", storm.peak,
-                        "peak position 0..1 (chicago, idf-block), default 0.5");
-  storm_cmd->add_option("--out", storm.out, "file to write (default: standard output)");
-
-  SynthArgs synth;
-  auto* synth_cmd = app.add_subcommand(
-      "synth",
-      "write a long synthetic rain record (Poisson rectangular pulses, monthly parameters)");
-  synth_cmd->add_option("--params", synth.params, "monthly parameter CSV (see README)")->required();
-  synth_cmd->add_option("--start", synth.start, "first instant (ISO 8601)")->required();
-  synth_cmd->add_option("--end", synth.end, "end instant (ISO 8601)")->required();
-  synth_cmd->add_option("--step", synth.step, "record step, e.g. 5min (default 1h)");
-  synth_cmd->add_option("--seed", synth.seed, "random seed (default 1)");
-  synth_cmd->add_option("--utc-offset", synth.utc_offset, "local time of months and stamps");
-  synth_cmd->add_option("--out", synth.out, "file to write (default: standard output)");
-
-  FitArgs fit;
-  auto* fit_cmd = app.add_subcommand(
-      "fit", "fit the priming flow, running loss and nozzle coefficient to a bench log");
-  fit_cmd->add_option("scenario", fit.scenario, "scenario file (YAML)")->required();
-  fit_cmd->add_option("--bench", fit.bench, "bench log (CSV; see README, \"The bench test\")");
-  fit_cmd->add_option("--out", fit.out, "write the fitted scenario to this file");
-
-  try {
-    app.parse(argc, argv);
-  } catch (const CLI::CallForHelp& e) {
-    return app.exit(e);
-  } catch (const CLI::CallForAllHelp& e) {
-    return app.exit(e);
-  } catch (const CLI::CallForVersion& e) {
-    return app.exit(e);
-  } catch (const CLI::ParseError& e) {
-    spdlog::error("{}", describe(e, app, argc, argv));
-    return kExitBadInput;
+  const CommandLine cl = parse_command_line(argc, argv);
+  if (cl.command == Command::none) {
+    std::cout << cl.out;
+    if (!cl.error.empty()) spdlog::error("{}", cl.error);
+    return cl.status;
   }
 
   try {
-    if (*run_cmd) return run_command(run);
-    if (*check_cmd) return check_command(check);
-    if (*sweep_cmd) return sweep_command(sweep, g_stop);
-    if (*report_cmd) {
-      const fs::path page = write_report(report_dir);
-      std::cout << "wrote " << page.string() << '\n';
-      return kExitOk;
+    switch (cl.command) {
+      case Command::run:
+        return run_command(cl.run);
+      case Command::check:
+        return check_command(cl.check);
+      case Command::sweep:
+        return sweep_command(cl.sweep, g_stop);
+      case Command::report: {
+        const fs::path page = write_report(cl.report_dir);
+        std::cout << "wrote " << page.string() << '\n';
+        return kExitOk;
+      }
+      case Command::storm:
+        return storm_command(cl.storm);
+      case Command::synth:
+        return synth_command(cl.synth);
+      case Command::fit:
+        return fit_command(cl.fit);
+      case Command::none:
+        break;
     }
-    if (*storm_cmd) return storm_command(storm);
-    if (*synth_cmd) return synth_command(synth);
-    if (*fit_cmd) return fit_command(fit);
   } catch (const InputError& e) {
     spdlog::error("{}", describe(e));
     return kExitBadInput;
