@@ -219,12 +219,14 @@ std::vector<BenchRow> read_bench_log(std::istream& in, const std::string& file_l
   return rows;
 }
 
-CycleLog read_cycle_log(std::istream& in, const std::string& file_label, int utc_offset_s) {
+CycleLog read_cycle_log(std::istream& in, const std::string& file_label,
+                        const SeriesFormat& rain_format) {
   // The rows are read as a tipping-bucket log is (one stamp a row, the same file rules and
   // messages); two cycles cannot start in the same second, which a tip log allows.
   SeriesFormat fmt;
   fmt.time_column = "time";
-  fmt.utc_offset_s = utc_offset_s;
+  fmt.utc_offset_s = rain_format.utc_offset_s;
+  fmt.time_format = rain_format.time_format;
   const TipLog tips = read_tip_log(in, file_label, fmt);
   for (std::size_t k = 1; k < tips.times.size(); ++k) {
     if (tips.times[k] == tips.times[k - 1]) {

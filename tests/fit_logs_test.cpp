@@ -78,9 +78,13 @@ TEST(BenchLog, RejectsAnUnknownColumn) {
             "note");
 }
 
-CycleLog read_cycles(const std::string& text, int utc_offset_s = 0) {
+CycleLog read_cycles(const std::string& text, int utc_offset_s = 0,
+                     const std::string& time_format = "") {
   std::istringstream in(text);
-  return read_cycle_log(in, "cycles.csv", utc_offset_s);
+  SeriesFormat rain_format;
+  rain_format.utc_offset_s = utc_offset_s;
+  rain_format.time_format = time_format;
+  return read_cycle_log(in, "cycles.csv", rain_format);
 }
 
 std::string cycle_error_of(const std::string& text) {
@@ -95,6 +99,14 @@ TEST(CycleLog, ReadsStartsAsARainRecordTakesItsStamps) {
   EXPECT_EQ(log.starts[0], 1740787200);  // 2025-03-01T00:00Z
   EXPECT_EQ(log.starts[1], 1740787200 + 12 * 60 + 30);
   EXPECT_EQ(log.lines, (std::vector<int>{3, 4}));
+}
+
+TEST(CycleLog, ReadsStampsInTheRainRecordsTimeFormat) {
+  const CycleLog log =
+      read_cycles("time\n03/01/2025 01:20 AM\n03/01/2025 02:05 PM\n", 0, "%m/%d/%Y %I:%M %p");
+  ASSERT_EQ(log.starts.size(), 2u);
+  EXPECT_EQ(log.starts[0], 1740787200 + 80 * 60);             // 2025-03-01T01:20Z
+  EXPECT_EQ(log.starts[1], 1740787200 + (14 * 60 + 5) * 60);  // 2025-03-01T14:05Z
 }
 
 TEST(CycleLog, RejectsAStampThatIsNotATime) {

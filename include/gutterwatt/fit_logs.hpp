@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "gutterwatt/calendar.hpp"
+#include "gutterwatt/rain_input.hpp"
 
 namespace gutterwatt {
 
@@ -41,10 +42,12 @@ struct CycleLog {
 };
 
 /// Reads a cycle log: a CSV with a `time` column (other columns, a note say, are ignored), one
-/// cycle start per row, ISO 8601 stamps as a rain record takes them (naive stamps at
-/// `utc_offset_s`; one time-zone style per file), `#` comments and blank lines skipped. Throws
-/// InputError naming `file_label`, the line and the column for a missing column, a stamp that is
-/// not a time, one earlier than or equal to the one before, and a log without rows.
-CycleLog read_cycle_log(std::istream& in, const std::string& file_label, int utc_offset_s);
+/// cycle start per row, stamps as the rain record takes them: `rain_format`'s time format
+/// (ISO 8601 when it has none) and UTC offset for naive stamps (one time-zone style per file);
+/// `#` comments and blank lines skipped. Throws InputError naming `file_label`, the line and the
+/// column for a missing column, a stamp that is not a time, one earlier than or equal to the one
+/// before, and a log without rows.
+CycleLog read_cycle_log(std::istream& in, const std::string& file_label,
+                        const SeriesFormat& rain_format);
 
 }  // namespace gutterwatt

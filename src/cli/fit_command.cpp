@@ -55,7 +55,7 @@ int fit_command(const FitArgs& args) {
     fitted = fitted_scenario_text(text, fit, args.bench, args.scenario);
   } else {
     std::ifstream in = open_log(args.cycles, "--cycles");
-    const CycleLog log = read_cycle_log(in, args.cycles, scenario.rain.series.utc_offset_s);
+    const CycleLog log = read_cycle_log(in, args.cycles, scenario.rain.series);
     const RainSeries rain = load_rain(scenario.rain);
     for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
     const CycleFit fit = fit_cycles(scenario, rain, log, args.cycles);

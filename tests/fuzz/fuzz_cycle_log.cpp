@@ -15,7 +15,9 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
   const std::string label = "fuzz-cycles.csv";
   std::istringstream in(std::string(reinterpret_cast<const char*>(data), size));
   try {
-    const CycleLog log = read_cycle_log(in, label, 3600);
+    SeriesFormat rain_format;
+    rain_format.utc_offset_s = 3600;
+    const CycleLog log = read_cycle_log(in, label, rain_format);
     fuzz::require(!log.starts.empty(), "a cycle log read has cycles");
     fuzz::require(log.starts.size() == log.lines.size(), "every start has its line");
     for (std::size_t k = 1; k < log.starts.size(); ++k) {
