@@ -417,18 +417,22 @@ CycleFit fit_cycles(const Scenario& scenario, const RainSeries& rain, const Cycl
   }
   double p = fine[bp];
   double k = kLossGrid[bk];
-  // The loss is read from the timing of paired starts: it must move them by more than a clock
-  // can tell, among the losses that leave as many cycles unpaired, and must not sit at the top
-  // of the grid.
+  // The loss is told by the log where it moves the counts, or moves the timing of paired starts
+  // by more than a clock can tell among the losses that leave as many cycles unpaired; it must
+  // not sit at the top of the grid.
   const CycleMatch& best = grid[bp][bk];
   double lowest = std::numeric_limits<double>::infinity();
   double highest = 0.0;
+  bool counts_move = false;
   for (const CycleMatch& m : grid[bp]) {
+    if (m.unmatched == std::numeric_limits<int>::max()) continue;  // refused by the loader
+    if (m.unmatched != best.unmatched) counts_move = true;
     if (m.unmatched != best.unmatched || m.pairs == 0) continue;
     lowest = std::min(lowest, m.rms_s());
     highest = std::max(highest, m.rms_s());
   }
-  const bool loss_determined = best.pairs > 0 && highest - lowest >= kTimingResolution_s;
+  const bool loss_determined =
+      best.pairs > 0 && (counts_move || highest - lowest >= kTimingResolution_s);
   const std::size_t last = std::size(kLossGrid) - 1;
   const bool loss_at_top = loss_determined && bk == last;
   if (!loss_determined || loss_at_top) k = k0;
@@ -506,8 +510,9 @@ CycleFit fit_cycles(const Scenario& scenario, const RainSeries& rain, const Cycl
   }
   if (!loss_determined) {
     fit.warnings.push_back(
-        "the timing of the cycle starts does not move by " + show(kTimingResolution_s, "%g") +
-        " s over losses from 0 to 32 (or no cycle could be paired), so the log cannot determine "
+        "neither the cycle counts nor the timing of the cycle starts move (by " +
+        show(kTimingResolution_s, "%g") +
+        " s) over losses from 0 to 32, or no cycle could be paired, so the log cannot determine "
         "drop_pipe.minor_loss_k; left at " +
         show(k0, "%.4g"));
   } else if (loss_at_top) {
