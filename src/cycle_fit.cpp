@@ -362,10 +362,10 @@ CycleFit fit_cycles(const Scenario& scenario, const RainSeries& rain, const Cycl
   for (std::size_t k = 0; k < log.starts.size(); ++k) {
     if (log.starts[k] >= fit.start && log.starts[k] < fit.end) continue;
     throw InputError(log_label, log.lines[k], "time",
-                     "the cycle at " + format_iso8601(log.starts[k], scenario.site.utc_offset_s) +
+                     "the cycle at " + format_iso8601(log.starts[k], scenario.site.zone) +
                          " is outside the simulated period, " +
-                         format_iso8601(fit.start, scenario.site.utc_offset_s) + " to " +
-                         format_iso8601(fit.end, scenario.site.utc_offset_s) +
+                         format_iso8601(fit.start, scenario.site.zone) + " to " +
+                         format_iso8601(fit.end, scenario.site.zone) +
                          "; set simulation.start and simulation.end to the time the log covers");
   }
   const CycleModel model(scenario, rain, log, rain_event_windows(rain, fit.start, fit.end),
@@ -547,9 +547,9 @@ CycleFit fit_cycles(const Scenario& scenario, const RainSeries& rain, const Cycl
   return fit;
 }
 
-void write_cycle_fit(std::ostream& out, const CycleFit& fit, int utc_offset_s) {
-  out << "Cycle log against the simulated period " << format_iso8601(fit.start, utc_offset_s)
-      << " to " << format_iso8601(fit.end, utc_offset_s) << " (" << fit.runs << " runs)\n";
+void write_cycle_fit(std::ostream& out, const CycleFit& fit, const TimeZone& zone) {
+  out << "Cycle log against the simulated period " << format_iso8601(fit.start, zone) << " to "
+      << format_iso8601(fit.end, zone) << " (" << fit.runs << " runs)\n";
   out << "Priming flows that reproduce the cycle counts best\n  from "
       << (fit.priming_low_m3_per_s ? litres_per_minute(*fit.priming_low_m3_per_s)
                                    : "(the smallest tried)")
@@ -567,8 +567,8 @@ void write_cycle_fit(std::ostream& out, const CycleFit& fit, int utc_offset_s) {
   out << buf;
   for (const CycleEvent& e : fit.events) {
     std::snprintf(buf, sizeof buf, "  %-18s %8.1f %9d %10d %10d\n",
-                  format_iso8601(e.window.start, utc_offset_s).c_str(), e.rain_m / kMetresPerMm,
-                  e.observed, e.simulated_before, e.simulated);
+                  format_iso8601(e.window.start, zone).c_str(), e.rain_m / kMetresPerMm, e.observed,
+                  e.simulated_before, e.simulated);
     out << buf;
   }
   std::snprintf(buf, sizeof buf, "  %-18s %8s %9d %10d %10d\n", "total", "", fit.observed,

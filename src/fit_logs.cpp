@@ -225,7 +225,7 @@ CycleLog read_cycle_log(std::istream& in, const std::string& file_label,
   // messages); two cycles cannot start in the same second, which a tip log allows.
   SeriesFormat fmt;
   fmt.time_column = "time";
-  fmt.utc_offset_s = rain_format.utc_offset_s;
+  fmt.zone = rain_format.zone;
   fmt.time_format = rain_format.time_format;
   const TipLog tips = read_tip_log(in, file_label, fmt);
   for (std::size_t k = 1; k < tips.times.size(); ++k) {

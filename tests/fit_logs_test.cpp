@@ -82,7 +82,7 @@ CycleLog read_cycles(const std::string& text, int utc_offset_s = 0,
                      const std::string& time_format = "") {
   std::istringstream in(text);
   SeriesFormat rain_format;
-  rain_format.utc_offset_s = utc_offset_s;
+  rain_format.zone = utc_offset_s;
   rain_format.time_format = time_format;
   return read_cycle_log(in, "cycles.csv", rain_format);
 }

@@ -90,8 +90,8 @@ CycleFit fit_cycles(const Scenario& scenario, const RainSeries& rain, const Cycl
                     const std::string& log_label);
 
 /// Prints the fit for a person: the values with their uncertainty or range, cycles observed
-/// against simulated (in total and by rain event), the timing of the paired starts, the warnings,
-/// and a build entry to paste into `release.builds`.
-void write_cycle_fit(std::ostream& out, const CycleFit& fit, int utc_offset_s);
+/// against simulated (in total and by rain event, stamps on `zone`'s clock), the timing of the
+/// paired starts, the warnings, and a build entry to paste into `release.builds`.
+void write_cycle_fit(std::ostream& out, const CycleFit& fit, const TimeZone& zone);
 
 }  // namespace gutterwatt

@@ -43,7 +43,7 @@ struct CycleLog {
 
 /// Reads a cycle log: a CSV with a `time` column (other columns, a note say, are ignored), one
 /// cycle start per row, stamps as the rain record takes them: `rain_format`'s time format
-/// (ISO 8601 when it has none) and UTC offset for naive stamps (one time-zone style per file);
+/// (ISO 8601 when it has none) and clock (zone) for naive stamps (one time-zone style per file);
 /// `#` comments and blank lines skipped. Throws InputError naming `file_label`, the line and the
 /// column for a missing column, a stamp that is not a time, one earlier than or equal to the one
 /// before, and a log without rows.

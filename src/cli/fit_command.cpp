@@ -59,7 +59,7 @@ int fit_command(const FitArgs& args) {
     const RainSeries rain = load_rain(scenario.rain);
     for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
     const CycleFit fit = fit_cycles(scenario, rain, log, args.cycles);
-    write_cycle_fit(std::cout, fit, scenario.site.utc_offset_s);
+    write_cycle_fit(std::cout, fit, scenario.site.zone);
     fitted = fitted_scenario_text(text, {fit.priming_flow, fit.minor_loss_k}, "cycle log",
                                   args.cycles, args.scenario);
   }

@@ -16,7 +16,7 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
   std::istringstream in(std::string(reinterpret_cast<const char*>(data), size));
   try {
     SeriesFormat rain_format;
-    rain_format.utc_offset_s = 3600;
+    rain_format.zone = 3600;
     const CycleLog log = read_cycle_log(in, label, rain_format);
     fuzz::require(!log.starts.empty(), "a cycle log read has cycles");
     fuzz::require(log.starts.size() == log.lines.size(), "every start has its line");
