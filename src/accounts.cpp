@@ -19,6 +19,18 @@ std::string_view episode_kind_name(EpisodeKind kind) {
   return "cycle";
 }
 
+std::optional<EpisodeKind> episode_kind_from_name(std::string_view name) {
+  for (const EpisodeKind kind : {EpisodeKind::cycle, EpisodeKind::overflow, EpisodeKind::dribble,
+                                 EpisodeKind::column_overflow}) {
+    if (episode_kind_name(kind) == name) return kind;
+  }
+  return std::nullopt;
+}
+
+bool episode_makes_energy(EpisodeKind kind) {
+  return kind == EpisodeKind::cycle || kind == EpisodeKind::dribble;
+}
+
 void ObserverList::on_start(const Sample& s) {
   for (Observer* o : observers_) o->on_start(s);
 }

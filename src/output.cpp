@@ -103,7 +103,7 @@ void EventsWriter::on_episode(const Episode& e) {
   out_ << episode_kind_name(e.kind) << ',' << format_iso8601(floor_instant(e.start_s), zone_) << ','
        << format_iso8601(floor_instant(e.end_s), zone_) << ',' << num(e.end_s - e.start_s, 1) << ','
        << num(e.volume_m3 * kLitresPerM3, 3) << ',' << num(e.peak_flow_m3_per_s * kLitresPerM3, 4)
-       << ',' << num(e.energy_J / kJoulesPerWh, 5) << '\n';
+       << ',' << (episode_makes_energy(e.kind) ? num(e.energy_J / kJoulesPerWh, 5) : "") << '\n';
 }
 
 SummaryBuilder::SummaryBuilder(const Scenario& scenario) : scenario_(scenario) {}

@@ -13,6 +13,7 @@
 #include <utility>
 
 #include "detail.hpp"
+#include "gutterwatt/accounts.hpp"
 #include "gutterwatt/calendar.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/sweep.hpp"
@@ -217,8 +218,8 @@ std::vector<Event> read_events(const fs::path& path) {
     const int line = csv.lines[r];
     Event e;
     e.kind = row[c_kind];
-    if (e.kind != "cycle" && e.kind != "overflow" && e.kind != "dribble" &&
-        e.kind != "column_overflow") {
+    const std::optional<EpisodeKind> kind = episode_kind_from_name(e.kind);
+    if (!kind) {
       throw InputError(
           file, line, "kind",
           "unknown kind \"" + e.kind + "\" (expected cycle, overflow, dribble or column_overflow)");
@@ -228,7 +229,10 @@ std::vector<Event> read_events(const fs::path& path) {
     e.duration_s = parse_number(row[c_duration], file, line, "duration_s");
     e.volume_L = parse_number(row[c_volume], file, line, "volume_L");
     e.peak_flow_L_per_s = parse_number(row[c_peak], file, line, "peak_flow_L_per_s");
-    e.energy_Wh = parse_number(row[c_energy], file, line, "energy_Wh");
+    // An overflow makes no energy: its cell is empty (a number there, from an older run, is
+    // energy made by a cycle at the same time, and is not the overflow's).
+    e.energy_Wh = episode_makes_energy(*kind) ? parse_number(row[c_energy], file, line, "energy_Wh")
+                                              : std::numeric_limits<double>::quiet_NaN();
     events.push_back(std::move(e));
   }
   return events;

@@ -59,7 +59,7 @@ struct Timeseries {
 /// Reads timeseries.csv; at least one row, times strictly increasing.
 Timeseries read_timeseries(const std::filesystem::path& path);
 
-/// One row of events.csv.
+/// One row of events.csv; energy_Wh is NaN for a kind that makes none (an overflow).
 struct Event {
   std::string kind;
   std::int64_t start = 0;

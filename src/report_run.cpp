@@ -11,6 +11,7 @@
 
 #include "chart.hpp"
 #include "detail.hpp"
+#include "gutterwatt/accounts.hpp"
 #include "report_files.hpp"
 #include "report_format.hpp"
 #include "report_page.hpp"
@@ -559,7 +560,7 @@ std::string events_section(const Run& run) {
     EventStats& st = by_kind[e.kind];
     ++st.count;
     st.volume_L += e.volume_L;
-    st.energy_Wh += e.energy_Wh;
+    if (!std::isnan(e.energy_Wh)) st.energy_Wh += e.energy_Wh;
     st.longest_s = std::max(st.longest_s, e.duration_s);
     st.largest_L = std::max(st.largest_L, e.volume_L);
   }
@@ -574,11 +575,13 @@ std::string events_section(const Run& run) {
       "<th class=\"n\">longest</th><th class=\"n\">energy, Wh</th></tr></thead>\n<tbody>\n";
   for (const auto& [kind, label] : kinds) {
     const EventStats st = by_kind.count(kind) ? by_kind.at(kind) : EventStats{};
-    body += std::string("<tr><td>") + label + "</td><td class=\"n\">" + std::to_string(st.count) +
-            "</td><td class=\"n\">" + pretty(st.volume_L) + "</td><td class=\"n\">" +
-            pretty(st.largest_L) + "</td><td class=\"n\">" +
-            (st.count > 0 ? duration_text(st.longest_s) : "&ndash;") + "</td><td class=\"n\">" +
-            pretty(st.energy_Wh) + "</td></tr>\n";
+    body +=
+        std::string("<tr><td>") + label + "</td><td class=\"n\">" + std::to_string(st.count) +
+        "</td><td class=\"n\">" + pretty(st.volume_L) + "</td><td class=\"n\">" +
+        pretty(st.largest_L) + "</td><td class=\"n\">" +
+        (st.count > 0 ? duration_text(st.longest_s) : "&ndash;") + "</td><td class=\"n\">" +
+        (episode_makes_energy(*episode_kind_from_name(kind)) ? pretty(st.energy_Wh) : "&ndash;") +
+        "</td></tr>\n";
   }
   body += "</tbody>\n</table>\n</section>\n";
   return body;

@@ -7,6 +7,7 @@
 #include <filesystem>
 #include <fstream>
 #include <nlohmann/json.hpp>
+#include <sstream>
 #include <string>
 
 #include "cli_support.hpp"
@@ -52,6 +53,11 @@ TEST(Cli, DemoRunWritesThreeFilesWithEnergyAndAClosedBalance) {
   EXPECT_NE(ev.find("\ncycle,"), std::string::npos);
   EXPECT_NE(ev.find("\ndribble,"), std::string::npos);
   EXPECT_NE(ev.find("\noverflow,"), std::string::npos);
+  // An overflow makes no energy: its energy_Wh cell is empty.
+  std::istringstream rows(ev);
+  for (std::string row; std::getline(rows, row);) {
+    if (row.rfind("overflow,", 0) == 0) EXPECT_EQ(row.back(), ',') << row;
+  }
 }
 
 TEST(Cli, CheckShowsADailyRecordAsReadAndAsDisaggregated) {

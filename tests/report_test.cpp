@@ -130,6 +130,19 @@ TEST(Report, RunPageHasTheHeadlineFigures) {
             std::string::npos);
 }
 
+TEST(Report, OverflowEpisodesCarryNoEnergy) {
+  ScratchDir scratch;
+  const fs::path run = scratch.copy_of("run");
+  // An older run wrote the energy of the cycles running at the same time on its overflow rows.
+  replace_line(run / "events.csv", 72,
+               "overflow,2025-04-01T06:25,2025-04-01T06:50,1500,288.0,0.168,51.5");
+  const std::string page = render_report(run);
+  EXPECT_NE(page.find("<tr><td>overflow at the reservoir rim</td><td class=\"n\">1</td><td "
+                      "class=\"n\">288</td><td class=\"n\">288</td><td "
+                      "class=\"n\">25\xC2\xA0min</td><td class=\"n\">&ndash;</td></tr>"),
+            std::string::npos);
+}
+
 TEST(Report, MarksCycleStartsAlongTheLevelCharts) {
   ScratchDir scratch;
   const std::string page = render_report(scratch.copy_of("run"));

@@ -4,6 +4,7 @@
 /// What a step made of each account follows from the step's start and end state and its mode.
 
 #include <array>
+#include <optional>
 #include <string_view>
 #include <vector>
 
@@ -68,9 +69,17 @@ enum class EpisodeKind { cycle, overflow, dribble, column_overflow };
 /// `cycle`, `overflow`, `dribble`, `column_overflow`.
 std::string_view episode_kind_name(EpisodeKind kind);
 
+/// The kind named `name` (as episode_kind_name writes it), or nothing.
+std::optional<EpisodeKind> episode_kind_from_name(std::string_view name);
+
+/// Whether what flows in an episode of `kind` makes energy: a cycle's or a dribble's water
+/// passes the nozzle; an overflow's does not, so it carries no energy figure.
+bool episode_makes_energy(EpisodeKind kind);
+
 /// One siphon cycle (or valve opening), overflow episode or dribble episode. Times in seconds
 /// since the epoch (UTC), not rounded; volume of what flowed in the episode (release, overflow
-/// or dribble); peak flow as seen at the solver's steps and switches; electrical energy.
+/// or dribble); peak flow as seen at the solver's steps and switches; electrical energy made
+/// during the episode, which means something only where episode_makes_energy(kind).
 struct Episode {
   EpisodeKind kind;
   double start_s;
