@@ -16,9 +16,13 @@
 #include "gutterwatt/simulation.hpp"
 #include "gutterwatt/siphon.hpp"
 #include "gutterwatt/units.hpp"
+#include "report_format.hpp"
 
 namespace gutterwatt {
 namespace {
+
+// A number in the text of a figure or a warning, by the report's one rule.
+std::string shown(double v) { return detail::pretty(v, detail::Medium::terminal); }
 
 constexpr double kMmPerHourPerMPerS = 3.6e6;
 constexpr double kLitresPerMinutePerM3PerS = 6e4;
@@ -40,8 +44,6 @@ double intensity_for_flow(const Scenario& sc, double flow_m3_per_s) {
 double wet_intensity(const RainPulse& p) {
   return p.depth_m / static_cast<double>(p.end - p.start);
 }
-
-using detail::fixed;
 
 // Electrical energy of one release from the set-point with no inflow, simulated by the same
 // engine as a run: the reservoir starts just above the set-point, the release runs to its break
@@ -208,7 +210,7 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
   }
 
   // Warnings in plain words.
-  const auto mmh = [](double i) { return fixed(i * kMmPerHourPerMPerS, 1) + " mm/h"; };
+  const auto mmh = [](double i) { return shown(i * kMmPerHourPerMPerS) + " mm/h"; };
   if (d.priming_intensity_m_per_s && d.record &&
       *d.priming_intensity_m_per_s > d.record->median_intensity_m_per_s) {
     d.warnings.push_back(
@@ -229,16 +231,16 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
     const double total = top_m + sc.drop_m;
     const double loss = total - d.design_head_m;
     if (loss > 0.2 * total) {
-      d.warnings.push_back("The drop pipe loses " + fixed(100.0 * loss / total, 0) +
+      d.warnings.push_back("The drop pipe loses " + shown(100.0 * loss / total) +
                            " % of the head to friction and fittings: it starves the nozzle. A "
                            "wider pipe or a smaller nozzle would deliver more.");
     }
   }
   if (plant.has_column() && d.running_flow_trigger_m3_per_s < d.nozzle_flow_m3_per_s) {
     d.warnings.push_back("The drop pipe carries " +
-                         fixed(d.running_flow_trigger_m3_per_s * kLitresPerMinutePerM3PerS, 1) +
+                         shown(d.running_flow_trigger_m3_per_s * kLitresPerMinutePerM3PerS) +
                          " L/min, less than the nozzle passes at the column's top (" +
-                         fixed(d.nozzle_flow_m3_per_s * kLitresPerMinutePerM3PerS, 1) +
+                         shown(d.nozzle_flow_m3_per_s * kLitresPerMinutePerM3PerS) +
                          " L/min): the head column never fills and the nozzle runs starved.");
   }
   if (d.column_fill_s && d.cycle_drain_s && *d.column_fill_s < *d.cycle_drain_s) {
@@ -250,7 +252,7 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
   if (plant.conduction_speed_rpm() > 0.0 && d.speed_ratio >= 1.0) {
     d.warnings.push_back(
         "The generator reaches the battery's voltage only at " +
-        fixed(plant.conduction_speed_rpm(), 0) +
+        shown(plant.conduction_speed_rpm()) +
         " rpm, faster than the jet at the design head can drive the runner: it will not charge. "
         "A generator with more volts per rpm, a smaller runner or more head would.");
   }
@@ -266,8 +268,8 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
                                                             : " above its "
                                                               "closing level";
     const std::string lead = "Between storms the reservoir holds water up to " + where +
-                             fixed(rel.trigger_level_m / kMetresPerMm, 0) + " mm), " +
-                             fixed(held_m / kMetresPerMm, 0) + " mm" + above +
+                             shown(rel.trigger_level_m / kMetresPerMm) + " mm), " +
+                             shown(held_m / kMetresPerMm) + " mm" + above +
                              ", which only evaporation lowers";
     const std::string tail =
         ". Mosquitoes breed in standing water in about 7 days (common practice): screen every "
@@ -276,9 +278,8 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
       d.warnings.push_back(lead + ", and none is given (reservoir.evaporation_mm_per_day)" + tail);
     } else if (held_m / fastest > kMosquitoSpell_s) {
       d.warnings.push_back(lead + ": even at the highest evaporation given (" +
-                           fixed(fastest / kMetresPerMm * kSecondsPerDay, 1) +
-                           " mm/day) that takes " + fixed(held_m / fastest / kSecondsPerDay, 1) +
-                           " days" + tail);
+                           shown(fastest / kMetresPerMm * kSecondsPerDay) + " mm/day) that takes " +
+                           shown(held_m / fastest / kSecondsPerDay) + " days" + tail);
     }
   }
   if (sc.turbine.best_at_every_head) {
@@ -287,8 +288,8 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
         "runner on a fixed-voltage generator does: the energy is an upper bound.");
   }
   if (sc.generator.cut_in_W > d.electrical_power_W) {
-    d.warnings.push_back("The generator's cut-in power (" + fixed(sc.generator.cut_in_W, 2) +
-                         " W) is above the design power (" + fixed(d.electrical_power_W, 2) +
+    d.warnings.push_back("The generator's cut-in power (" + shown(sc.generator.cut_in_W) +
+                         " W) is above the design power (" + shown(d.electrical_power_W) +
                          " W): it will deliver little or nothing.");
   }
   return d;
@@ -302,42 +303,42 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
                   unit.c_str());
     out << buf;
   };
-  const auto lpm = [](double q) { return fixed(q * kLitresPerMinutePerM3PerS, 2); };
-  const auto mmh = [](double i) { return fixed(i * kMmPerHourPerMPerS, 2); };
+  const auto lpm = [](double q) { return shown(q * kLitresPerMinutePerM3PerS); };
+  const auto mmh = [](double i) { return shown(i * kMmPerHourPerMPerS); };
   out << "Design figures for " << sc.site.name << " (" << sc.file.filename().string() << ")\n";
-  if (d.storage_m3) line("storage between the set-points", fixed(*d.storage_m3 * 1e3, 2), "L");
+  if (d.storage_m3) line("storage between the set-points", shown(*d.storage_m3 * 1e3), "L");
   if (d.priming_level_m)
-    line("priming level (lip + head on the standpipe)", fixed(*d.priming_level_m * 1e3, 2), "mm");
+    line("priming level (lip + head on the standpipe)", shown(*d.priming_level_m * 1e3), "mm");
   if (d.priming_intensity_m_per_s) {
     line("priming flow as steady rain on this roof", mmh(*d.priming_intensity_m_per_s), "mm/h");
   }
   line("running flow at the set-point", lpm(d.running_flow_trigger_m3_per_s), "L/min");
   line("running flow at the break level", lpm(d.running_flow_break_m3_per_s), "L/min");
-  if (d.cycle_drain_s) line("running time per cycle (no inflow)", fixed(*d.cycle_drain_s, 1), "s");
-  if (d.column_fill_s) line("head column brim-full after", fixed(*d.column_fill_s, 1), "s");
+  if (d.cycle_drain_s) line("running time per cycle (no inflow)", shown(*d.cycle_drain_s), "s");
+  if (d.column_fill_s) line("head column brim-full after", shown(*d.column_fill_s), "s");
   line(sc.head_column ? "design head (head column brim-full)" : "design head at the nozzle",
-       fixed(d.design_head_m, 3), "m");
+       shown(d.design_head_m), "m");
   line("nozzle flow at design head", lpm(d.nozzle_flow_m3_per_s), "L/min");
-  line("jet velocity", fixed(d.jet_velocity_m_per_s, 2), "m/s");
-  line("jet power", fixed(d.jet_power_W, 2), "W");
+  line("jet velocity", shown(d.jet_velocity_m_per_s), "m/s");
+  line("jet power", shown(d.jet_power_W), "W");
   line(sc.turbine.best_at_every_head ? "runner speed at design head (best at every head)"
                                      : "runner speed at design head",
-       fixed(d.runner_speed_rpm, 0), "rpm");
-  line("  speed ratio (bucket / jet speed)", fixed(d.speed_ratio, 3), "");
-  line("electrical power at design head", fixed(d.electrical_power_W, 2), "W");
+       shown(d.runner_speed_rpm), "rpm");
+  line("  speed ratio (bucket / jet speed)", shown(d.speed_ratio), "");
+  line("electrical power at design head", shown(d.electrical_power_W), "W");
   line("rain that overflows the rim while the release runs", mmh(d.overflow_intensity_m_per_s),
        "mm/h");
   if (d.energy_per_cycle_J)
-    line("energy per cycle", fixed(*d.energy_per_cycle_J / kJoulesPerWh, 4), "Wh");
+    line("energy per cycle", shown(*d.energy_per_cycle_J / kJoulesPerWh), "Wh");
   const auto record = [&](const std::string& name, const RecordFigures& r) {
     out << "  " << name << ", " << format_duration(r.step_s) << " steps\n";
     line("  median wet intensity", mmh(r.median_intensity_m_per_s), "mm/h");
     if (r.volume_below_priming) {
-      line("  rain volume below the priming intensity", fixed(*r.volume_below_priming * 100.0, 1),
+      line("  rain volume below the priming intensity", shown(*r.volume_below_priming * 100.0),
            "%");
     }
     if (r.priming_exceedance) {
-      line("  wet time at or above the priming intensity", fixed(*r.priming_exceedance * 100.0, 1),
+      line("  wet time at or above the priming intensity", shown(*r.priming_exceedance * 100.0),
            "%");
     }
     line("  2-year peak intensity (median annual max)", mmh(r.peak_intensity_m_per_s), "mm/h");

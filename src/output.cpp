@@ -11,6 +11,7 @@
 #include "detail.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/units.hpp"
+#include "report_format.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -23,6 +24,9 @@ std::string num(double v, int decimals) {
   if (!std::isfinite(v)) return "nan";
   return detail::fixed_trimmed(v, decimals);
 }
+
+// A number in the terminal table, by the report's one rule.
+std::string shown(double v) { return detail::pretty(v, detail::Medium::terminal); }
 
 double round_to(double v, int decimals) {
   const double f = std::pow(10.0, decimals);
@@ -391,7 +395,7 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
     out << "  " << std::left << std::setw(34) << label << std::right << std::setw(14) << value
         << "  " << unit << '\n';
   };
-  const auto L = [](double m3) { return num(m3 * kLitresPerM3, 1); };
+  const auto L = [](double m3) { return shown(m3 * kLitresPerM3); };
   out << sc.site.name << ": " << format_iso8601(r.start, off) << " to "
       << format_iso8601(r.end, off) << '\n';
   out << " water\n";
@@ -404,43 +408,42 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   row("  of which dribble", L(a.dribble_m3), "L");
   row("evaporated", L(a.evaporation_m3), "L");
   row("storage change", L(r.final.water_m3() - r.initial.water_m3()), "L");
-  row("balance error (relative)", num(r.balance_relative_error * 1e9, 3) + "e-9", "");
+  row("balance error (relative)", shown(r.balance_relative_error), "");
   out << " energy\n";
-  row("jet", num(a.jet_J / kJoulesPerWh, 2), "Wh");
-  row("electrical (generator out)", num(a.electrical_J / kJoulesPerWh, 2), "Wh");
-  row("stored in the battery", num(a.stored_J / kJoulesPerWh, 2), "Wh");
-  row("curtailed (battery full)", num(a.curtailed_J / kJoulesPerWh, 2), "Wh");
-  row("load served", num(a.served_J / kJoulesPerWh, 2), "Wh");
-  row("load unmet (cut at the minimum)", num(a.unmet_J / kJoulesPerWh, 2), "Wh");
-  row("battery discharge loss", num(a.discharge_loss_J / kJoulesPerWh, 2), "Wh");
-  row("battery self-discharge", num(a.self_discharge_J / kJoulesPerWh, 2), "Wh");
+  row("jet", shown(a.jet_J / kJoulesPerWh), "Wh");
+  row("electrical (generator out)", shown(a.electrical_J / kJoulesPerWh), "Wh");
+  row("stored in the battery", shown(a.stored_J / kJoulesPerWh), "Wh");
+  row("curtailed (battery full)", shown(a.curtailed_J / kJoulesPerWh), "Wh");
+  row("load served", shown(a.served_J / kJoulesPerWh), "Wh");
+  row("load unmet (cut at the minimum)", shown(a.unmet_J / kJoulesPerWh), "Wh");
+  row("battery discharge loss", shown(a.discharge_loss_J / kJoulesPerWh), "Wh");
+  row("battery self-discharge", shown(a.self_discharge_J / kJoulesPerWh), "Wh");
   out << " release and overflow\n";
   row("siphon cycles", std::to_string(r.cycles), "");
-  row("energy per cycle", num(summary.energy_per_cycle_J() / kJoulesPerWh, 3), "Wh");
+  row("energy per cycle", shown(summary.energy_per_cycle_J() / kJoulesPerWh), "Wh");
   row("dribble episodes", std::to_string(r.dribble_episodes), "");
-  row("dribble time", num(r.dribble_s / kSecondsPerHour, 1), "h");
+  row("dribble time", shown(r.dribble_s / kSecondsPerHour), "h");
   row("overflow episodes", std::to_string(r.overflow_events), "");
-  row("overflow time", num(r.overflow_s / kSecondsPerHour, 2), "h");
+  row("overflow time", shown(r.overflow_s / kSecondsPerHour), "h");
   row("days with overflow", std::to_string(summary.overflow_days()), "");
   const double runoff = a.roof_runoff_m3 > 0.0 ? a.roof_runoff_m3 : 1.0;
-  row("share of roof runoff overflowing", num(100.0 * a.reservoir_overflow_m3 / runoff, 1), "%");
-  row("share of roof runoff dribbling", num(100.0 * a.dribble_m3 / runoff, 1), "%");
+  row("share of roof runoff overflowing", shown(100.0 * a.reservoir_overflow_m3 / runoff), "%");
+  row("share of roof runoff dribbling", shown(100.0 * a.dribble_m3 / runoff), "%");
   row("largest overflow episode", L(summary.largest_overflow_m3()), "L");
   row("wettest interval without overflow",
-      num(wettest_dry_intensity_m_per_s(rain, r.start, r.end, summary.overflows()) *
-              kSecondsPerHour * kMmPerM,
-          1),
+      shown(wettest_dry_intensity_m_per_s(rain, r.start, r.end, summary.overflows()) *
+            kSecondsPerHour * kMmPerM),
       "mm/h");
   out << " standing water (above the drained level, release not running)\n";
-  row("longest spell", num(r.standing_longest_s / kSecondsPerDay, 1), "days");
+  row("longest spell", shown(r.standing_longest_s / kSecondsPerDay), "days");
   row("spells over 7 days", std::to_string(r.standing_spells_over_week), "");
-  row("days in all", num(r.standing_s / kSecondsPerDay, 1), "days");
+  row("days in all", shown(r.standing_s / kSecondsPerDay), "days");
   out << " battery\n";
-  row("state of charge, lowest", num(summary.min_soc() * 100.0, 1), "%");
-  row("time below half charge", num(a.battery_below_half_s / kSecondsPerHour, 1), "h");
-  row("time empty (load cut)", num(a.battery_empty_s / kSecondsPerHour, 1), "h");
+  row("state of charge, lowest", shown(summary.min_soc() * 100.0), "%");
+  row("time below half charge", shown(a.battery_below_half_s / kSecondsPerHour), "h");
+  row("time empty (load cut)", shown(a.battery_empty_s / kSecondsPerHour), "h");
   const auto share = load_served_share(a);
-  row("share of the load served", share ? num(*share * 100.0, 1) : "-", share ? "%" : "");
+  row("share of the load served", share ? shown(*share * 100.0) : "-", share ? "%" : "");
   if (realizations) {
     const RealizationSpread& z = *realizations;
     const RealizationMetrics own = realization_metrics(r);
@@ -448,16 +451,15 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
         << " to " << z.first_seed + (z.n - 1) << "; this run is the first)\n";
     out << "  " << std::string(34, ' ') << "      this run    median      P10 to P90\n";
     const auto spread_row = [&](const std::string& label, double own_value, const Spread& x,
-                                int decimals, const std::string& unit) {
-      const auto text = [&](double v) { return detail::fixed(v, decimals); };
+                                const std::string& unit) {
       out << "  " << std::left << std::setw(34) << label << std::right << std::setw(14)
-          << text(own_value) << std::setw(10) << text(x.p50) << std::setw(10) << text(x.p10)
-          << " to " << std::left << std::setw(9) << text(x.p90) << std::right << unit << '\n';
+          << shown(own_value) << std::setw(10) << shown(x.p50) << std::setw(10) << shown(x.p10)
+          << " to " << std::left << std::setw(9) << shown(x.p90) << std::right << unit << '\n';
     };
-    spread_row("electrical (generator out)", own.energy_Wh, z.energy_Wh, 2, "Wh");
-    spread_row("siphon cycles", own.cycles, z.cycles, 1, "");
-    spread_row("reservoir overflow", own.reservoir_overflow_L, z.reservoir_overflow_L, 1, "L");
-    spread_row("dribble", own.dribble_L, z.dribble_L, 1, "L");
+    spread_row("electrical (generator out)", own.energy_Wh, z.energy_Wh, "Wh");
+    spread_row("siphon cycles", own.cycles, z.cycles, "");
+    spread_row("reservoir overflow", own.reservoir_overflow_L, z.reservoir_overflow_L, "L");
+    spread_row("dribble", own.dribble_L, z.dribble_L, "L");
     out << "  (P10, median and P90 of the " << z.n << " runs: " << kPercentileDefinition << ")\n";
   }
   const auto periods = [&](const char* title, const std::vector<PeriodSummary>& list) {
@@ -466,10 +468,10 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
         << "  rain mm  energy Wh   cycles  overflows   overflow L   dribble L\n";
     for (const PeriodSummary& m : list) {
       out << "  " << std::left << std::setw(10) << m.label << std::right << std::setw(9)
-          << num(m.rain_depth_m * kMmPerM, 1) << std::setw(11)
-          << num(m.electrical_J / kJoulesPerWh, 2) << std::setw(9) << m.cycles << std::setw(11)
-          << m.overflow_events << std::setw(13) << num(m.overflow_m3 * kLitresPerM3, 1)
-          << std::setw(12) << num(m.dribble_m3 * kLitresPerM3, 1) << '\n';
+          << shown(m.rain_depth_m * kMmPerM) << std::setw(11)
+          << shown(m.electrical_J / kJoulesPerWh) << std::setw(9) << m.cycles << std::setw(11)
+          << m.overflow_events << std::setw(13) << shown(m.overflow_m3 * kLitresPerM3)
+          << std::setw(12) << shown(m.dribble_m3 * kLitresPerM3) << '\n';
     }
   };
   // A long run's months would fill the screen: they stay in summary.json.

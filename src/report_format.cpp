@@ -2,6 +2,7 @@
 
 #include "report_format.hpp"
 
+#include <algorithm>
 #include <array>
 #include <cmath>
 #include <cstdio>
@@ -38,28 +39,40 @@ std::string escape(std::string_view s) {
   return out;
 }
 
-std::string grouped(double v, int decimals) {
-  std::string out = fixed(v, decimals);
-  const std::size_t start = out[0] == '-' ? 1 : 0;
-  std::size_t point = out.find('.');
-  if (point == std::string::npos) point = out.size();
-  for (std::size_t i = point; i > start + 3; i -= 3) out.insert(i - 3, "\xE2\x80\xAF");
-  return out;
+namespace {
+
+/// `text` (a fixed-point number) with the digits before the point grouped in threes.
+std::string group_thousands(std::string text) {
+  const std::size_t start = text[0] == '-' ? 1 : 0;
+  std::size_t point = text.find('.');
+  if (point == std::string::npos) point = text.size();
+  for (std::size_t i = point; i > start + 3; i -= 3) text.insert(i - 3, "\xE2\x80\xAF");
+  return text;
 }
 
-std::string pretty(double v, bool html) {
-  if (std::isnan(v)) return html ? "&ndash;" : "-";
+}  // namespace
+
+std::string grouped(double v, int decimals) { return group_thousands(fixed(v, decimals)); }
+
+std::string pretty(double v, Medium medium) {
+  constexpr int kFigures = 3;
+  if (std::isnan(v)) return medium == Medium::html ? "&ndash;" : "-";
+  if (std::isinf(v)) return v > 0.0 ? "inf" : "-inf";
   const double a = std::fabs(v);
   if (a == 0.0) return "0";
-  if (a >= 1000.0 || (a < 1e15 && v == std::round(v))) return grouped(v, 0);
-  if (a >= 100.0) return fixed(v, 0);
-  if (a >= 10.0) return fixed(v, 1);
-  if (a >= 1.0) return fixed(v, 2);
-  if (a >= 0.001) return fixed(v, 2 - static_cast<int>(std::floor(std::log10(a))));
-  const int exponent = static_cast<int>(std::floor(std::log10(a)));
-  const std::string mantissa = fixed(v / std::pow(10.0, exponent), 1);
-  if (!html) return mantissa + "e" + std::to_string(exponent);
-  return mantissa + "&times;10<sup>" + std::to_string(exponent) + "</sup>";
+  int exponent = static_cast<int>(std::floor(std::log10(a)));
+  if (a < 0.001) {
+    // Rounding the mantissa can carry it to 10 (9.996e-4 -> 1e-3): one more power of ten then.
+    if (std::fabs(std::round(v / std::pow(10.0, exponent - kFigures + 1))) >=
+        std::pow(10.0, kFigures)) {
+      ++exponent;
+    }
+    const std::string mantissa = fixed_trimmed(v / std::pow(10.0, exponent), kFigures - 1);
+    if (medium != Medium::html) return mantissa + "e" + std::to_string(exponent);
+    return mantissa + "&times;10<sup>" + std::to_string(exponent) + "</sup>";
+  }
+  const std::string text = fixed_trimmed(v, std::max(0, kFigures - 1 - exponent));
+  return medium == Medium::terminal ? text : group_thousands(text);
 }
 
 std::string px(double v) { return fixed(v, 1); }
@@ -103,11 +116,6 @@ std::string clock_label(std::int64_t t) {
 
 std::string stamp_label(std::int64_t t) { return date_label(t) + " " + clock_label(t); }
 
-std::string number_label(double v) {
-  if (std::fabs(v - std::round(v)) < 1e-9 && std::fabs(v) < 1e15) return fixed(v, 0);
-  return pretty(v, false);
-}
-
 std::vector<std::string> shared_decimal_labels(const std::vector<double>& values) {
   int decimals = 0;
   for (; decimals < 6; ++decimals) {
@@ -117,7 +125,8 @@ std::vector<std::string> shared_decimal_labels(const std::vector<double>& values
     if (exact) break;
   }
   std::vector<std::string> labels;
-  for (double v : values) labels.push_back(decimals < 6 ? fixed(v, decimals) : number_label(v));
+  for (double v : values)
+    labels.push_back(decimals < 6 ? fixed(v, decimals) : pretty(v, Medium::svg));
   return labels;
 }
 

@@ -18,10 +18,15 @@ std::string escape(std::string_view s);
 /// Fixed-point text with digits grouped in threes by a narrow no-break space (U+202F).
 std::string grouped(double v, int decimals);
 
-/// A value to read, not to compute with: three or four significant figures, whole numbers
-/// grouped. `html` allows a power of ten with <sup> for very small values; in SVG text `e`
-/// notation is used instead. NaN prints as a dash.
-std::string pretty(double v, bool html = true);
+/// Where a number is shown: in HTML text, in SVG text on the page, or in a terminal table.
+enum class Medium { html, svg, terminal };
+
+/// The one rule for a number a person reads, on the page and in the terminal: three significant
+/// figures (whole numbers from 100 up), no trailing zeros (`0.9`, not `0.900`), never `-0`; zero
+/// prints `0`. Below 0.001 a power of ten: `1.2e-9` in SVG and terminal text,
+/// `1.2&times;10<sup>-9</sup>` in HTML. On the page digits are grouped in threes by a narrow
+/// no-break space; in the terminal they are not, so columns line up. NaN prints as a dash.
+std::string pretty(double v, Medium medium = Medium::html);
 
 /// An SVG coordinate: one decimal.
 std::string px(double v);
@@ -40,9 +45,6 @@ std::string day_label(std::int64_t t);
 std::string date_label(std::int64_t t);
 std::string clock_label(std::int64_t t);
 std::string stamp_label(std::int64_t t);
-
-/// A whole number without decimals, else pretty(v) for SVG text.
-std::string number_label(double v);
 
 /// Labels for the values of a varied key with the decimals they share (1, 1.5, 2 print as 1.0,
 /// 1.5, 2.0), so an axis reads evenly.

@@ -178,7 +178,7 @@ std::string monthly_svg(const std::vector<MonthRow>& months) {
       const double x0 = h.left + slot * static_cast<double>(i);
       svg_rect(out, x0 + slot * 0.17, ys(v), slot * 0.66, bottom - ys(v), h.colour);
       if (slot >= 34.0) {
-        svg_text(out, x0 + slot / 2.0, ys(v) - 5.0, pretty(v, false), "middle", "val");
+        svg_text(out, x0 + slot / 2.0, ys(v) - 5.0, pretty(v, Medium::svg), "middle", "val");
       }
       if (i % every == 0) {
         const MonthLabel label = month_label_of(months[i].month);
@@ -263,13 +263,14 @@ void add_rain_and_level(TimeFigure& fig, const Timeseries& ts, const Summary& s,
   l.mark_colour = kGreen;
   if (!l.marks.empty()) l.legend.push_back({LegendEntry::kMark, kGreen, "", "cycle start"});
   if (s.rim_mm)
-    l.refs.push_back({*s.rim_mm, kVermillion, "", "rim " + pretty(*s.rim_mm, false) + " mm"});
+    l.refs.push_back({*s.rim_mm, kVermillion, "", "rim " + pretty(*s.rim_mm, Medium::svg) + " mm"});
   if (s.trigger_mm) {
     l.refs.push_back(
-        {*s.trigger_mm, kGreen, "7 4", "trigger " + pretty(*s.trigger_mm, false) + " mm"});
+        {*s.trigger_mm, kGreen, "7 4", "trigger " + pretty(*s.trigger_mm, Medium::svg) + " mm"});
   }
   if (s.break_mm) {
-    l.refs.push_back({*s.break_mm, kOrange, "3 3", "break " + pretty(*s.break_mm, false) + " mm"});
+    l.refs.push_back(
+        {*s.break_mm, kOrange, "3 3", "break " + pretty(*s.break_mm, Medium::svg) + " mm"});
   }
 }
 

@@ -27,9 +27,8 @@ struct HeatGrid {
   std::size_t best_x = 0, best_y = 0;
 };
 
-/// `decimals`: for the values written in the cells.
 std::string heat_svg(const std::string& id, const std::string& title, const std::string& unit,
-                     const HeatGrid& grid, const Ramp& ramp, int decimals) {
+                     const HeatGrid& grid, const Ramp& ramp) {
   const std::vector<std::string> x_labels = shared_decimal_labels(grid.xs);
   const std::vector<std::string> y_labels = shared_decimal_labels(grid.ys);
   const std::size_t nx = grid.xs.size();
@@ -78,7 +77,7 @@ std::string heat_svg(const std::string& id, const std::string& title, const std:
       if (values) {
         out += "<text x=\"" + px(x0 + cell_w / 2.0) + "\" y=\"" + px(y0 + cell_h / 2.0 + 4.0) +
                "\" text-anchor=\"middle\" class=\"" + (is_dark(c) ? "cell light" : "cell") + "\">" +
-               grouped(v, decimals) + "</text>";
+               pretty(v, Medium::svg) + "</text>";
       }
     }
   }
@@ -117,7 +116,7 @@ std::string heat_svg(const std::string& id, const std::string& title, const std:
       svg_text(out, kx + 27.0, ky(v) + 4.0, grouped(v, kt.decimals), "start", "tick");
     }
   } else {
-    svg_text(out, kx + 27.0, top + key_h / 2.0 + 4.0, pretty(lo, false), "start", "tick");
+    svg_text(out, kx + 27.0, top + key_h / 2.0 + 4.0, pretty(lo, Medium::svg), "start", "tick");
   }
   out += "</svg>\n";
   return out;
@@ -191,24 +190,6 @@ std::string sweep_line_svg(const std::string& key, const std::vector<double>& x,
   return out;
 }
 
-// Decimals for a table column: none when every value is whole, else four significant figures at
-// the column's median magnitude (enough to tell close-ranked rows apart), so the digits of one
-// column line up.
-int column_decimals(const Sweep& sw, std::size_t c) {
-  std::vector<double> magnitudes;
-  bool whole = true;
-  for (const auto& row : sw.num) {
-    if (std::isnan(row[c])) continue;
-    whole = whole && row[c] == std::round(row[c]);
-    if (row[c] != 0.0) magnitudes.push_back(std::fabs(row[c]));
-  }
-  if (whole || magnitudes.empty()) return 0;
-  std::nth_element(magnitudes.begin(),
-                   magnitudes.begin() + static_cast<long>(magnitudes.size() / 2), magnitudes.end());
-  const double median = magnitudes[magnitudes.size() / 2];
-  return std::clamp(3 - static_cast<int>(std::floor(std::log10(median))), 0, 4);
-}
-
 // The class attribute of a ranked-table cell: numbers align right, the rank column is shaded.
 std::string cell_class(bool number, bool rank) {
   if (!number && !rank) return "";
@@ -226,15 +207,14 @@ std::string breakable(const std::string& name) {
   return out;
 }
 
-/// A sweep folder, read once, and the decimals of each column of its table.
+/// A sweep folder, read once.
 struct SweepPage {
   Sweep sweep;
-  std::vector<int> decimals;
   std::string title;
 
-  /// The cell as the table shows it: a number grouped to its column's decimals, else the text.
+  /// The cell as the table shows it: a number by the one rule (pretty), else the text.
   std::string cell_text(std::size_t r, std::size_t c) const {
-    if (!std::isnan(sweep.num[r][c])) return grouped(sweep.num[r][c], decimals[c]);
+    if (!std::isnan(sweep.num[r][c])) return pretty(sweep.num[r][c]);
     const std::string& text = sweep.csv.rows[r][c];
     return text.empty() ? std::string("&ndash;") : escape(text);
   }
@@ -286,7 +266,6 @@ std::string maps_section(const SweepPage& page, std::vector<std::string>& charts
   const Sweep& sw = page.sweep;
   const Csv& csv = page.sweep.csv;
   const std::size_t n = page.sweep.csv.rows.size();
-  const std::vector<int>& decimals = page.decimals;
   std::string body;
   std::vector<std::size_t> numeric;
   for (std::size_t k = 0; k < sw.keys.size(); ++k) {
@@ -345,16 +324,16 @@ std::string maps_section(const SweepPage& page, std::vector<std::string>& charts
             escape(grid.y_name) + "</h2>\n";
     grid.value = grid_of(c_energy);
     charts.push_back("chart-heat-energy");
-    body += figure(heat_svg("chart-heat-energy", "Electrical energy, Wh", "energy, Wh", grid,
-                            kEnergyRamp, decimals[c_energy]),
-                   "Season electrical energy for each pair of values; brighter is more." + note);
+    body += figure(
+        heat_svg("chart-heat-energy", "Electrical energy, Wh", "energy, Wh", grid, kEnergyRamp),
+        "Season electrical energy for each pair of values; brighter is more." + note);
     grid.value = grid_of(c_overflow);
     charts.push_back("chart-heat-overflow");
-    body += figure(heat_svg("chart-heat-overflow", "Overflow, L", "overflow, L", grid,
-                            kOverflowRamp, decimals[c_overflow]),
-                   "Water lost over the rim (and the head column) for each pair of values; darker "
-                   "is more." +
-                       note);
+    body +=
+        figure(heat_svg("chart-heat-overflow", "Overflow, L", "overflow, L", grid, kOverflowRamp),
+               "Water lost over the rim (and the head column) for each pair of values; darker "
+               "is more." +
+                   note);
     body += "</section>\n";
   } else if (numeric.size() == 1 && sw.keys.size() == 1) {
     std::vector<std::size_t> order(n);
@@ -419,12 +398,9 @@ std::string ranked_section(const SweepPage& page) {
 }  // namespace
 
 std::string render_sweep(const fs::path& dir) {
-  SweepPage page{read_sweep(dir), {}, ""};
+  SweepPage page{read_sweep(dir), ""};
   const Sweep& sw = page.sweep;
   page.title = (sw.scenario.empty() ? std::string("Sweep") : sw.scenario) + ": sweep report";
-  for (std::size_t c = 0; c < sw.csv.header.size(); ++c) {
-    page.decimals.push_back(column_decimals(sw, c));
-  }
   std::vector<std::string> charts;
   std::string body = title_section(page);
   body += best_section(page);

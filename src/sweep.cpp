@@ -19,6 +19,7 @@
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/output_folder.hpp"
 #include "gutterwatt/units.hpp"
+#include "report_format.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -30,30 +31,29 @@ constexpr double kRangeTolerance = 1e-9;
 // More decimals than a range spec can sensibly ask for.
 constexpr int kMaxRangeDecimals = 30;
 
-/// One metric column: its name, where it lives, its natural order and its decimals in the table.
+/// One metric column: its name, where it lives and its natural order.
 struct MetricColumn {
   std::string_view name;
   double SweepMetrics::*member;
   bool lower_is_better;
-  int table_decimals;
 };
 
 constexpr MetricColumn kMetrics[] = {
-    {"energy_Wh", &SweepMetrics::energy_Wh, false, 3},
-    {"overflow_L", &SweepMetrics::overflow_L, true, 1},
-    {"dribble_L", &SweepMetrics::dribble_L, true, 1},
-    {"cycles", &SweepMetrics::cycles, false, 0},
-    {"overflow_events", &SweepMetrics::overflow_events, true, 0},
-    {"overflow_hours", &SweepMetrics::overflow_hours, true, 2},
-    {"curtailed_Wh", &SweepMetrics::curtailed_Wh, true, 3},
-    {"jet_Wh", &SweepMetrics::jet_Wh, false, 3},
-    {"stored_Wh", &SweepMetrics::stored_Wh, false, 3},
-    {"unmet_load_Wh", &SweepMetrics::unmet_load_Wh, true, 3},
-    {"dribble_share", &SweepMetrics::dribble_share, true, 4},
-    {"overflow_days", &SweepMetrics::overflow_days, true, 0},
-    {"largest_overflow_L", &SweepMetrics::largest_overflow_L, true, 1},
-    {"standing_longest_days", &SweepMetrics::standing_longest_days, true, 2},
-    {"standing_spells_over_7_days", &SweepMetrics::standing_spells_over_7_days, true, 0},
+    {"energy_Wh", &SweepMetrics::energy_Wh, false},
+    {"overflow_L", &SweepMetrics::overflow_L, true},
+    {"dribble_L", &SweepMetrics::dribble_L, true},
+    {"cycles", &SweepMetrics::cycles, false},
+    {"overflow_events", &SweepMetrics::overflow_events, true},
+    {"overflow_hours", &SweepMetrics::overflow_hours, true},
+    {"curtailed_Wh", &SweepMetrics::curtailed_Wh, true},
+    {"jet_Wh", &SweepMetrics::jet_Wh, false},
+    {"stored_Wh", &SweepMetrics::stored_Wh, false},
+    {"unmet_load_Wh", &SweepMetrics::unmet_load_Wh, true},
+    {"dribble_share", &SweepMetrics::dribble_share, true},
+    {"overflow_days", &SweepMetrics::overflow_days, true},
+    {"largest_overflow_L", &SweepMetrics::largest_overflow_L, true},
+    {"standing_longest_days", &SweepMetrics::standing_longest_days, true},
+    {"standing_spells_over_7_days", &SweepMetrics::standing_spells_over_7_days, true},
 };
 
 // The columns the terminal table shows besides the varied keys and the rank metric.
@@ -617,11 +617,11 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
     std::vector<std::string> line{std::to_string(r + 1)};
     line.insert(line.end(), row.values.begin(), row.values.end());
     for (const MetricColumn* m : shown) {
-      line.push_back(detail::fixed_trimmed(row.metrics.*(m->member), m->table_decimals));
+      line.push_back(detail::pretty(row.metrics.*(m->member), detail::Medium::terminal));
     }
     if (spread) {
-      line.push_back(detail::fixed_trimmed(row.rank_spread->p10, rank->table_decimals) + " to " +
-                     detail::fixed_trimmed(row.rank_spread->p90, rank->table_decimals));
+      line.push_back(detail::pretty(row.rank_spread->p10, detail::Medium::terminal) + " to " +
+                     detail::pretty(row.rank_spread->p90, detail::Medium::terminal));
       line.emplace_back(row.within_best ? "~" : "");
     }
     cells.push_back(std::move(line));

@@ -477,7 +477,7 @@ TEST(SweepOutput, PrintsTheBestRowsAsATable) {
   EXPECT_EQ(out.str(),
             "Invented shed: 2 of 2 combinations ran, best first by energy_Wh (highest first)\n"
             "  #  release.kind  energy_Wh  overflow_L  dribble_L  cycles  overflow_events\n"
-            "  1  bell              1.235          10          0       0                0\n"
+            "  1  bell               1.23          10          0       0                0\n"
             "  ... 1 more in sweep.csv\n");
 }
 
