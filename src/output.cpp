@@ -401,6 +401,7 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   out << " water\n";
   row("rain on the roof", L(a.rain_m3), "L");
   row("roof losses", L(a.roof_loss_m3), "L");
+  row("roof runoff", L(a.roof_runoff_m3), "L");
   row("first flush diverted", L(a.first_flush_m3), "L");
   row("reservoir overflow", L(a.reservoir_overflow_m3), "L");
   if (sc.head_column) row("head column overflow", L(a.column_overflow_m3), "L");
@@ -409,6 +410,13 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   row("evaporated", L(a.evaporation_m3), "L");
   row("storage change", L(r.final.water_m3() - r.initial.water_m3()), "L");
   row("balance error (relative)", shown(r.balance_relative_error), "");
+  // Every share is of roof runoff, as on the report page.
+  const double runoff = a.roof_runoff_m3 > 0.0 ? a.roof_runoff_m3 : 1.0;
+  out << " shares of roof runoff\n";
+  row("through the nozzle", shown(100.0 * a.nozzle_m3 / runoff), "%");
+  row("  of which dribble", shown(100.0 * a.dribble_m3 / runoff), "%");
+  row("overflow (rim and head column)",
+      shown(100.0 * (a.reservoir_overflow_m3 + a.column_overflow_m3) / runoff), "%");
   out << " energy\n";
   row("jet", shown(a.jet_J / kJoulesPerWh), "Wh");
   row("electrical (generator out)", shown(a.electrical_J / kJoulesPerWh), "Wh");
@@ -426,9 +434,6 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   row("overflow episodes", std::to_string(r.overflow_events), "");
   row("overflow time", shown(r.overflow_s / kSecondsPerHour), "h");
   row("days with overflow", std::to_string(summary.overflow_days()), "");
-  const double runoff = a.roof_runoff_m3 > 0.0 ? a.roof_runoff_m3 : 1.0;
-  row("share of roof runoff overflowing", shown(100.0 * a.reservoir_overflow_m3 / runoff), "%");
-  row("share of roof runoff dribbling", shown(100.0 * a.dribble_m3 / runoff), "%");
   row("largest overflow episode", L(summary.largest_overflow_m3()), "L");
   row("wettest interval without overflow",
       shown(wettest_dry_intensity_m_per_s(rain, r.start, r.end, summary.overflows()) *

@@ -307,6 +307,7 @@ Summary read_summary(const fs::path& path) {
   s.end = json_string(root, "end", file);
   s.rain_L = json_number(root, "water_L.rain", file);
   s.roof_loss_L = json_number(root, "water_L.roof_loss", file);
+  s.roof_runoff_L = json_number(root, "water_L.roof_runoff", file);
   s.first_flush_L = json_number(root, "water_L.first_flush", file);
   s.reservoir_overflow_L = json_number(root, "water_L.reservoir_overflow", file);
   s.column_overflow_L = json_number(root, "water_L.column_overflow", file);

@@ -79,9 +79,9 @@ struct MonthRow {
 /// The keys of summary.json the page shows.
 struct Summary {
   std::string scenario, site, start, end;
-  double rain_L = 0, roof_loss_L = 0, first_flush_L = 0, reservoir_overflow_L = 0,
-         column_overflow_L = 0, dribble_L = 0, through_nozzle_L = 0, storage_change_L = 0,
-         balance_error_L = 0;
+  double rain_L = 0, roof_loss_L = 0, roof_runoff_L = 0, first_flush_L = 0,
+         reservoir_overflow_L = 0, column_overflow_L = 0, dribble_L = 0, through_nozzle_L = 0,
+         storage_change_L = 0, balance_error_L = 0;
   double jet_Wh = 0, electrical_Wh = 0, stored_Wh = 0, curtailed_Wh = 0, unmet_load_Wh = 0;
   double cycles = 0, overflow_events = 0, overflow_hours = 0;
   std::optional<double> trigger_mm, break_mm, rim_mm;

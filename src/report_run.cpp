@@ -305,17 +305,19 @@ std::string headline_section(const Run& run) {
   const Summary& s = run.summary;
   std::string body;
   const double overflow_L = s.reservoir_overflow_L + s.column_overflow_L;
-  const double reached_L = s.rain_L - s.roof_loss_L - s.first_flush_L;
+  const double reached_L = s.roof_runoff_L - s.first_flush_L;
+  // Every share on the page is of roof runoff, as in the terminal's table.
+  const auto share = [&](double litres) { return percent_of(litres, s.roof_runoff_L); };
   body +=
       "<section class=\"first\" id=\"headline\">\n<h2>Headline</h2>\n<p class=\"lead\">The "
       "system delivered <strong>" +
       with_unit(s.electrical_Wh, "Wh") + "</strong> of electrical energy in <strong>" +
       pretty(s.cycles) + "</strong> release cycles. Of " + with_unit(s.rain_L, "L") +
-      " of rain on the roof, " + with_unit(s.through_nozzle_L, "L") + " (" +
-      percent_of(s.through_nozzle_L, s.rain_L) + ") passed the nozzle, " +
-      with_unit(overflow_L, "L") + " (" + percent_of(overflow_L, s.rain_L) + ") overflowed and " +
-      with_unit(s.dribble_L, "L") + " (" + percent_of(s.dribble_L, s.rain_L) +
-      ") dribbled through at low head.</p>\n";
+      " of rain on the roof, " + with_unit(s.roof_runoff_L, "L") +
+      " ran off it. Of that roof runoff, " + with_unit(s.through_nozzle_L, "L") + " (" +
+      share(s.through_nozzle_L) + ") passed the nozzle, " + with_unit(overflow_L, "L") + " (" +
+      share(overflow_L) + ") overflowed and " + with_unit(s.dribble_L, "L") + " (" +
+      share(s.dribble_L) + ") dribbled through at low head.</p>\n";
   body += "<div class=\"tables\">\n<table>\n<caption>Energy</caption>\n<tbody>\n";
   body += row_html("Electrical energy generated", with_unit(s.electrical_Wh, "Wh"));
   body += row_html("stored in the battery", with_unit(s.stored_Wh, "Wh"), "", true);
@@ -359,26 +361,25 @@ std::string headline_section(const Run& run) {
   if (s.rim_mm) body += row_html("Rim level", with_unit(*s.rim_mm, "mm"));
   body +=
       "</tbody>\n</table>\n<table>\n<caption>Water</caption>\n<thead><tr><th></th><th "
-      "class=\"n\">volume</th><th class=\"n\">of rain</th></tr></thead>\n<tbody>\n";
-  body += row_html("Rain on the roof", with_unit(s.rain_L, "L"), "100&nbsp;%");
-  body += row_html("roof loss (wetting, drying)", with_unit(s.roof_loss_L, "L"),
-                   percent_of(s.roof_loss_L, s.rain_L), true);
-  body += row_html("first flush diverted", with_unit(s.first_flush_L, "L"),
-                   percent_of(s.first_flush_L, s.rain_L), true);
-  body += row_html("reached the reservoir", with_unit(reached_L, "L"),
-                   percent_of(reached_L, s.rain_L), true);
-  body += row_html("Through the nozzle", with_unit(s.through_nozzle_L, "L"),
-                   percent_of(s.through_nozzle_L, s.rain_L));
+      "class=\"n\">volume</th><th class=\"n\">share of roof runoff</th></tr></thead>\n"
+      "<tbody>\n";
+  body += row_html("Rain on the roof", with_unit(s.rain_L, "L"));
+  body += row_html("roof loss (wetting, drying)", with_unit(s.roof_loss_L, "L"), "", true);
+  body += row_html("Roof runoff", with_unit(s.roof_runoff_L, "L"), share(s.roof_runoff_L));
+  body += row_html("first flush diverted", with_unit(s.first_flush_L, "L"), share(s.first_flush_L),
+                   true);
+  body += row_html("reached the reservoir", with_unit(reached_L, "L"), share(reached_L), true);
+  body +=
+      row_html("Through the nozzle", with_unit(s.through_nozzle_L, "L"), share(s.through_nozzle_L));
   body += row_html("of which dribble (release not running)", with_unit(s.dribble_L, "L"),
-                   percent_of(s.dribble_L, s.rain_L), true);
+                   share(s.dribble_L), true);
   body += row_html("Overflow at the reservoir rim", with_unit(s.reservoir_overflow_L, "L"),
-                   percent_of(s.reservoir_overflow_L, s.rain_L));
+                   share(s.reservoir_overflow_L));
   body += row_html("Overflow at the head column", with_unit(s.column_overflow_L, "L"),
-                   percent_of(s.column_overflow_L, s.rain_L));
-  body += row_html("Change in storage", with_unit(s.storage_change_L, "L"),
-                   percent_of(s.storage_change_L, s.rain_L));
-  body += row_html("Balance error", with_unit(s.balance_error_L, "L"),
-                   s.rain_L > 0.0 ? pretty(s.balance_error_L / s.rain_L) + " of rain" : "");
+                   share(s.column_overflow_L));
+  body +=
+      row_html("Change in storage", with_unit(s.storage_change_L, "L"), share(s.storage_change_L));
+  body += row_html("Balance error", with_unit(s.balance_error_L, "L"), share(s.balance_error_L));
   body += "</tbody>\n</table>\n</div>\n</section>\n";
   return body;
 }

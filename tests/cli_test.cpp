@@ -7,6 +7,7 @@
 #include <filesystem>
 #include <fstream>
 #include <nlohmann/json.hpp>
+#include <regex>
 #include <sstream>
 #include <string>
 
@@ -59,6 +60,27 @@ TEST(Cli, DemoRunWritesThreeFilesWithEnergyAndAClosedBalance) {
     if (row.rfind("overflow,", 0) == 0) {
       EXPECT_EQ(row.back(), ',') << row;
     }
+  }
+}
+
+TEST(Cli, TerminalAndPageShowTheSameSharesOfRoofRunoff) {
+  const fs::path dir = scratch("cli-shares");
+  const Outcome r =
+      run("run " + source("scenarios/demo.yaml") + " --out " + (dir / "out").string(), dir);
+  ASSERT_EQ(r.status, 0) << r.err;
+  ASSERT_EQ(run("report " + (dir / "out").string(), dir).status, 0);
+  const std::string page = slurp(dir / "out" / "report.html");
+  std::smatch term, html;
+  for (const auto& [row, words] :
+       {std::pair<std::string, std::string>{"through the nozzle", "passed the nozzle"},
+        {"overflow \\(rim and head column\\)", "overflowed"},
+        {"  of which dribble", "dribbled through"}}) {
+    // The terminal's share row comes after its litres row of the same name.
+    const std::string shares = r.out.substr(r.out.find(" shares of roof runoff"));
+    ASSERT_TRUE(std::regex_search(shares, term, std::regex(" " + row + " +(\\S+)  %"))) << row;
+    ASSERT_TRUE(std::regex_search(page, html, std::regex("\\(([^()]+)\xC2\xA0%\\) " + words)))
+        << words;
+    EXPECT_EQ(term[1].str(), html[1].str()) << row;
   }
 }
 

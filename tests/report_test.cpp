@@ -130,6 +130,19 @@ TEST(Report, RunPageHasTheHeadlineFigures) {
             std::string::npos);
 }
 
+TEST(Report, SharesAreOfRoofRunoffAndSaySo) {
+  ScratchDir scratch;
+  const std::string page = render_report(scratch.copy_of("run"));
+  // The fixture's 4320.8 L of roof runoff: 3990.45 / 4320.8 = 92.35 %, 288 / 4320.8 = 6.665 %,
+  // 451.25 / 4320.8 = 10.44 % (by hand).
+  EXPECT_NE(page.find("Of that roof runoff, 3\xE2\x80\xAF"
+                      "990\xC2\xA0L (92.4\xC2\xA0%) passed the nozzle, 288\xC2\xA0L "
+                      "(6.67\xC2\xA0%) overflowed and 451\xC2\xA0L (10.4\xC2\xA0%) dribbled"),
+            std::string::npos);
+  EXPECT_NE(page.find("<th class=\"n\">share of roof runoff</th>"), std::string::npos);
+  EXPECT_EQ(page.find(">of rain</th>"), std::string::npos);
+}
+
 TEST(Report, OverflowEpisodesCarryNoEnergy) {
   ScratchDir scratch;
   const fs::path run = scratch.copy_of("run");
