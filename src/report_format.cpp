@@ -116,6 +116,32 @@ std::string clock_label(std::int64_t t) {
 
 std::string stamp_label(std::int64_t t) { return date_label(t) + " " + clock_label(t); }
 
+std::string period_label(std::int64_t start, std::int64_t end) {
+  const std::string dash = "\xE2\x80\x93";  // an en dash, as in 2012–2015
+  const std::int64_t last = std::max(start, end - 1);
+  const CivilTime a = to_civil(start);
+  const CivilTime b = to_civil(last);
+  const std::string ya = std::to_string(a.year);
+  const std::string yb = std::to_string(b.year);
+  const bool whole_months = a.day == 1 && to_civil(last + kDay_s).day == 1;
+  if (whole_months && a.month == 1 && b.month == 12) {
+    return a.year == b.year ? ya : ya + dash + yb;
+  }
+  if (b.year > a.year + 1 || (b.year > a.year && end - start > 366 * kDay_s)) {
+    return ya + dash + yb;
+  }
+  if (whole_months) {
+    const std::string ma(month_name(static_cast<unsigned>(a.month)));
+    const std::string mb(month_name(static_cast<unsigned>(b.month)));
+    if (a.year != b.year) return ma + " " + ya + " " + dash + " " + mb + " " + yb;
+    return (a.month == b.month ? ma : ma + dash + mb) + " " + ya;
+  }
+  if (a.year != b.year) return date_label(start) + " " + dash + " " + date_label(last);
+  if (a.month != b.month) return day_label(start) + " " + dash + " " + date_label(last);
+  if (a.day != b.day) return std::to_string(a.day) + dash + date_label(last);
+  return date_label(start);
+}
+
 std::vector<std::string> shared_decimal_labels(const std::vector<double>& values) {
   int decimals = 0;
   for (; decimals < 6; ++decimals) {

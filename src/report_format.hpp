@@ -46,6 +46,12 @@ std::string date_label(std::int64_t t);
 std::string clock_label(std::int64_t t);
 std::string stamp_label(std::int64_t t);
 
+/// The period from `start` to `end` (wall-clock seconds, `end` not included) as a title names it:
+/// `2025`, `2012–2015`, `Mar 2025`, `Mar–Nov 2025`, `Dec 2024 – Feb 2025` for whole months and
+/// years, else by days: `30 Mar – 1 Apr 2025`. A run over more than a year in several years is
+/// named by its years.
+std::string period_label(std::int64_t start, std::int64_t end);
+
 /// Labels for the values of a varied key with the decimals they share (1, 1.5, 2 print as 1.0,
 /// 1.5, 2.0), so an axis reads evenly.
 std::vector<std::string> shared_decimal_labels(const std::vector<double>& values);

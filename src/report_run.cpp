@@ -288,6 +288,7 @@ struct Run {
   Window all;        ///< every row
   bool thinned;      ///< more rows than display columns
   std::string folder;
+  std::string title;  ///< the scenario and the period it covers
 };
 
 std::string title_section(const Run& run) {
@@ -295,9 +296,9 @@ std::string title_section(const Run& run) {
   const Summary& s = run.summary;
   const std::string& step = run.step;
   std::string body;
-  body += "<header>\n<h1>" + escape(s.scenario) + ": season report</h1>\n<p>" + escape(s.site) +
-          " &middot; " + escape(s.start) + " to " + escape(s.end) + " &middot; " +
-          std::to_string(ts.size()) + " rows of " + step + "</p>\n</header>\n";
+  body += "<header>\n<h1>" + escape(run.title) + "</h1>\n<p>" + escape(s.site) + " &middot; " +
+          escape(s.start) + " to " + escape(s.end) + " &middot; " + std::to_string(ts.size()) +
+          " rows of " + step + "</p>\n</header>\n";
   return body;
 }
 
@@ -629,12 +630,15 @@ std::string render_run(const fs::path& dir) {
           "",
           {},
           false,
-          dir.filename().string()};
+          dir.filename().string(),
+          ""};
   const Timeseries& ts = run.ts;
   run.step = duration_text(*std::max_element(ts.dt_s.begin(), ts.dt_s.end()));
   run.all = {0, ts.size(), static_cast<double>(ts.t.front()) - ts.dt_s.front(),
              static_cast<double>(ts.t.back())};
   run.thinned = ts.size() > kBuckets;
+  run.title = run.summary.scenario + ": " +
+              period_label(static_cast<std::int64_t>(run.all.t_lo), ts.t.back());
 
   std::vector<std::string> charts;
   std::string body = title_section(run);
@@ -645,7 +649,7 @@ std::string render_run(const fs::path& dir) {
   body += closeups_section(run, charts);
   body += events_section(run);
   body += reading_section(run);
-  return page_open(run.summary.scenario + ": season report", charts) + body + page_close();
+  return page_open(run.title, charts) + body + page_close();
 }
 
 }  // namespace gutterwatt::detail

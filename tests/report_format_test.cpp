@@ -9,7 +9,13 @@
 #include <cmath>
 #include <limits>
 
+#include "detail.hpp"
+#include "gutterwatt/calendar.hpp"
+
+using gutterwatt::month_start;
+using gutterwatt::detail::kDay_s;
 using gutterwatt::detail::Medium;
+using gutterwatt::detail::period_label;
 using gutterwatt::detail::pretty;
 
 namespace {
@@ -57,4 +63,35 @@ TEST(ReportFormat, MissingIsADash) {
   const double nan = std::numeric_limits<double>::quiet_NaN();
   EXPECT_EQ(pretty(nan), "&ndash;");
   EXPECT_EQ(pretty(nan, Medium::terminal), "-");
+}
+
+TEST(ReportFormat, PeriodOfWholeYearsIsItsYears) {
+  EXPECT_EQ(period_label(month_start(2025, 1), month_start(2026, 1)), "2025");
+  EXPECT_EQ(period_label(month_start(2012, 1), month_start(2016, 1)),
+            "2012\xE2\x80\x93"
+            "2015");
+  // Over a year and in several years: by its years, whole or not.
+  EXPECT_EQ(period_label(month_start(2012, 3) + 3 * kDay_s, month_start(2015, 7)),
+            "2012\xE2\x80\x93"
+            "2015");
+}
+
+TEST(ReportFormat, PeriodOfWholeMonthsNamesThem) {
+  EXPECT_EQ(period_label(month_start(2025, 3), month_start(2025, 4)), "Mar 2025");
+  // The demo's season ends at 23:55 on its last day, as a run's last row may.
+  EXPECT_EQ(period_label(month_start(2025, 3), month_start(2025, 12) - 300),
+            "Mar\xE2\x80\x93Nov 2025");
+  EXPECT_EQ(period_label(month_start(2024, 12), month_start(2025, 3)),
+            "Dec 2024 \xE2\x80\x93 Feb 2025");
+}
+
+TEST(ReportFormat, PeriodOfPartMonthsNamesItsDays) {
+  const std::int64_t mar30 = month_start(2025, 3) + 29 * kDay_s;
+  EXPECT_EQ(period_label(mar30, mar30 + 3 * kDay_s), "30 Mar \xE2\x80\x93 1 Apr 2025");
+  EXPECT_EQ(period_label(mar30 - 9 * kDay_s, mar30),
+            "21\xE2\x80\x93"
+            "29 Mar 2025");
+  EXPECT_EQ(period_label(mar30, mar30 + kDay_s), "30 Mar 2025");
+  EXPECT_EQ(period_label(month_start(2024, 12) + 20 * kDay_s, month_start(2025, 1) + 5 * kDay_s),
+            "21 Dec 2024 \xE2\x80\x93 5 Jan 2025");
 }

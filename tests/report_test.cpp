@@ -102,7 +102,9 @@ TEST(Report, WritesTheRunPageIntoTheRunFolder) {
   EXPECT_EQ(written, run / "report.html");
   const std::string page = read_file(written);
   EXPECT_EQ(page.rfind("<!DOCTYPE html>", 0), 0u);
-  EXPECT_NE(page.find("Invented fixture shed: season report"), std::string::npos);
+  // Titled by its period (2025-03-30T00:00 to 2025-04-02T00:00), not as a season.
+  EXPECT_NE(page.find("<h1>Invented fixture shed: 30 Mar \xE2\x80\x93 1 Apr 2025</h1>"),
+            std::string::npos);
   EXPECT_NE(page.find("</html>"), std::string::npos);
 }
 
