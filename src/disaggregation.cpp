@@ -362,18 +362,11 @@ std::string_view method_name(DisaggregationMethod method) {
   switch (method) {
     case DisaggregationMethod::block:
       return "block";
-    case DisaggregationMethod::nrcs_i:
-      return "nrcs-I";
-    case DisaggregationMethod::nrcs_ia:
-      return "nrcs-IA";
-    case DisaggregationMethod::nrcs_ii:
-      return "nrcs-II";
-    case DisaggregationMethod::nrcs_iii:
-      return "nrcs-III";
     case DisaggregationMethod::cascade:
       return "cascade";
+    default:
+      return storm_kind_name(nrcs_kind(method));  // the NRCS shapes share storm's names
   }
-  return "";
 }
 
 std::vector<double> disaggregate_interval(double depth_m, Instant length_s, std::uint64_t key,
