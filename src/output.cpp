@@ -373,13 +373,11 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
           {"p10", round_to(x.p10, 6)}, {"p50", round_to(x.p50, 6)}, {"p90", round_to(x.p90, 6)}};
     };
     const RealizationSpread& z = *realizations;
-    j["realizations"] = {{"n", z.n},
-                         {"seeds", {z.first_seed, z.first_seed + (z.n - 1)}},
-                         {"percentiles", kPercentileDefinition},
-                         {"energy_Wh", spread(z.energy_Wh)},
-                         {"cycles", spread(z.cycles)},
-                         {"reservoir_overflow_L", spread(z.reservoir_overflow_L)},
-                         {"dribble_L", spread(z.dribble_L)}};
+    json& block = j["realizations"];
+    block = {{"n", z.n},
+             {"seeds", {z.first_seed, z.first_seed + (z.n - 1)}},
+             {"percentiles", kPercentileDefinition}};
+    for (const RealizationColumn& c : kRealizationColumns) block[c.key] = spread(z.*(c.spread));
   }
   // File names and --set values may hold any bytes: those that are not UTF-8 are shown as U+FFFD.
   out << j.dump(2, ' ', false, decltype(j)::error_handler_t::replace) << '\n';
@@ -455,16 +453,12 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
     out << " realizations: " << z.n << " disaggregations of the record (seeds " << z.first_seed
         << " to " << z.first_seed + (z.n - 1) << "; this run is the first)\n";
     out << "  " << std::string(34, ' ') << "      this run    median      P10 to P90\n";
-    const auto spread_row = [&](const std::string& label, double own_value, const Spread& x,
-                                const std::string& unit) {
-      out << "  " << std::left << std::setw(34) << label << std::right << std::setw(14)
-          << shown(own_value) << std::setw(10) << shown(x.p50) << std::setw(10) << shown(x.p10)
-          << " to " << std::left << std::setw(9) << shown(x.p90) << std::right << unit << '\n';
-    };
-    spread_row("electrical (generator out)", own.energy_Wh, z.energy_Wh, "Wh");
-    spread_row("siphon cycles", own.cycles, z.cycles, "");
-    spread_row("reservoir overflow", own.reservoir_overflow_L, z.reservoir_overflow_L, "L");
-    spread_row("dribble", own.dribble_L, z.dribble_L, "L");
+    for (const RealizationColumn& c : kRealizationColumns) {
+      const Spread& x = z.*(c.spread);
+      out << "  " << std::left << std::setw(34) << c.label << std::right << std::setw(14)
+          << shown(own.*(c.value)) << std::setw(10) << shown(x.p50) << std::setw(10) << shown(x.p10)
+          << " to " << std::left << std::setw(9) << shown(x.p90) << std::right << c.unit << '\n';
+    }
     out << "  (P10, median and P90 of the " << z.n << " runs: " << kPercentileDefinition << ")\n";
   }
   const auto periods = [&](const char* title, const std::vector<PeriodSummary>& list) {

@@ -62,19 +62,15 @@ Spread spread_of(const std::vector<double>& values) {
 }
 
 RealizationSpread spread_of(const std::vector<RealizationMetrics>& runs, std::uint64_t first_seed) {
-  const auto column = [&](double RealizationMetrics::*field) {
-    std::vector<double> values;
-    values.reserve(runs.size());
-    for (const RealizationMetrics& m : runs) values.push_back(m.*field);
-    return spread_of(values);
-  };
   RealizationSpread s;
   s.n = runs.size();
   s.first_seed = first_seed;
-  s.energy_Wh = column(&RealizationMetrics::energy_Wh);
-  s.cycles = column(&RealizationMetrics::cycles);
-  s.reservoir_overflow_L = column(&RealizationMetrics::reservoir_overflow_L);
-  s.dribble_L = column(&RealizationMetrics::dribble_L);
+  for (const RealizationColumn& c : kRealizationColumns) {
+    std::vector<double> values;
+    values.reserve(runs.size());
+    for (const RealizationMetrics& m : runs) values.push_back(m.*(c.value));
+    s.*(c.spread) = spread_of(values);
+  }
   return s;
 }
 

@@ -35,6 +35,27 @@ TEST(Realizations, PercentilesFollowHyndmanAndFanDefinitionSeven) {
   EXPECT_EQ(single.p90, 7.25);
 }
 
+// Each metric's spread is of its own column. Worked by hand (definition 7, n = 3: P10 at
+// h = 0.2, P90 at h = 1.8, 0-based): energy 1, 2, 3 gives 1.2, 2, 2.8; cycles 10, 20, 30 gives
+// 12, 20, 28; overflow 0, 0, 6 gives 0, 0, 4.8; dribble 5, 5, 5 gives 5 throughout.
+TEST(Realizations, SpreadsEachMetricOverTheRuns) {
+  const std::vector<RealizationMetrics> runs = {{1, 10, 0, 5}, {2, 30, 0, 5}, {3, 20, 6, 5}};
+  const RealizationSpread z = spread_of(runs, 7);
+  EXPECT_EQ(z.n, 3u);
+  EXPECT_EQ(z.first_seed, 7u);
+  EXPECT_DOUBLE_EQ(z.energy_Wh.p10, 1.2);
+  EXPECT_DOUBLE_EQ(z.energy_Wh.p50, 2.0);
+  EXPECT_DOUBLE_EQ(z.energy_Wh.p90, 2.8);
+  EXPECT_DOUBLE_EQ(z.cycles.p10, 12.0);
+  EXPECT_DOUBLE_EQ(z.cycles.p50, 20.0);
+  EXPECT_DOUBLE_EQ(z.cycles.p90, 28.0);
+  EXPECT_DOUBLE_EQ(z.reservoir_overflow_L.p10, 0.0);
+  EXPECT_DOUBLE_EQ(z.reservoir_overflow_L.p50, 0.0);
+  EXPECT_DOUBLE_EQ(z.reservoir_overflow_L.p90, 4.8);
+  EXPECT_DOUBLE_EQ(z.dribble_L.p10, 5.0);
+  EXPECT_DOUBLE_EQ(z.dribble_L.p90, 5.0);
+}
+
 TEST(Realizations, DefaultToTwentyForARandomDisaggregationOnly) {
   RainConfig rain;
   EXPECT_EQ(default_realizations(rain), 1u);

@@ -7,6 +7,7 @@
 #include <cstdint>
 #include <functional>
 #include <optional>
+#include <string_view>
 #include <vector>
 
 #include "gutterwatt/rain_input.hpp"
@@ -74,6 +75,26 @@ struct RealizationSpread {
   Spread cycles;
   Spread reservoir_overflow_L;
   Spread dribble_L;
+};
+
+/// One metric a set of realizations reports: its key in summary.json, its row label and unit in
+/// the terminal table, its value in each realization and its spread. The one definition of the
+/// realizations' outputs.
+struct RealizationColumn {
+  std::string_view key;
+  std::string_view label;
+  std::string_view unit;
+  double RealizationMetrics::*value;
+  Spread RealizationSpread::*spread;
+};
+
+inline constexpr RealizationColumn kRealizationColumns[] = {
+    {"energy_Wh", "electrical (generator out)", "Wh", &RealizationMetrics::energy_Wh,
+     &RealizationSpread::energy_Wh},
+    {"cycles", "siphon cycles", "", &RealizationMetrics::cycles, &RealizationSpread::cycles},
+    {"reservoir_overflow_L", "reservoir overflow", "L", &RealizationMetrics::reservoir_overflow_L,
+     &RealizationSpread::reservoir_overflow_L},
+    {"dribble_L", "dribble", "L", &RealizationMetrics::dribble_L, &RealizationSpread::dribble_L},
 };
 
 /// The spread of `runs` (at least one), realization k having used seed `first_seed + k`.
