@@ -61,6 +61,11 @@ Spread spread_of(const std::vector<double>& values) {
   return {percentile(values, 0.1), percentile(values, 0.5), percentile(values, 0.9)};
 }
 
+std::size_t worker_threads(unsigned asked, std::size_t tasks) {
+  const unsigned cores = std::max(1u, std::thread::hardware_concurrency());
+  return std::max<std::size_t>(1, std::min<std::size_t>(asked > 0 ? asked : cores, tasks));
+}
+
 RealizationSpread spread_of(const std::vector<RealizationMetrics>& runs, std::uint64_t first_seed) {
   RealizationSpread s;
   s.n = runs.size();
@@ -85,9 +90,7 @@ std::vector<RealizationMetrics> run_realizations(const Scenario& scenario,
                       return simulate(scenario, rain, none, o);
                     });
 
-  const unsigned cores = std::max(1u, std::thread::hardware_concurrency());
-  const std::size_t jobs =
-      std::max<std::size_t>(1, std::min<std::size_t>(options.jobs > 0 ? options.jobs : cores, n));
+  const std::size_t jobs = worker_threads(options.jobs, n);
   // Workers take no more realizations once `halt` is set: for the user's stop and for any error.
   // A realization under way stops only for the user's stop.
   std::atomic<bool> halt{false};

@@ -389,9 +389,7 @@ SweepResult run_sweep(const SweepPlan& plan, std::span<const RainSeries> realiza
   result.realizations = realizations.size();
   result.rows.resize(n);
 
-  const unsigned cores = std::max(1u, std::thread::hardware_concurrency());
-  const std::size_t jobs =
-      std::max<std::size_t>(1, std::min<std::size_t>(options.jobs > 0 ? options.jobs : cores, n));
+  const std::size_t jobs = worker_threads(options.jobs, n);
   const auto user_stop = [&] { return options.stop != nullptr && options.stop->load(); };
 
   // Workers stop on `halt`: set for the user's stop and for an unexpected error.

@@ -2,7 +2,9 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <atomic>
+#include <thread>
 #include <vector>
 
 #include "gutterwatt/disaggregation.hpp"
@@ -54,6 +56,15 @@ TEST(Realizations, SpreadsEachMetricOverTheRuns) {
   EXPECT_DOUBLE_EQ(z.reservoir_overflow_L.p90, 4.8);
   EXPECT_DOUBLE_EQ(z.dribble_L.p10, 5.0);
   EXPECT_DOUBLE_EQ(z.dribble_L.p90, 5.0);
+}
+
+TEST(Realizations, TakeTheThreadsAskedButNoMoreThanTheTasks) {
+  EXPECT_EQ(worker_threads(3, 10), 3u);
+  EXPECT_EQ(worker_threads(8, 2), 2u);
+  EXPECT_EQ(worker_threads(0, 1), 1u);
+  const std::size_t per_core = worker_threads(0, 1000);
+  EXPECT_GE(per_core, 1u);
+  EXPECT_LE(per_core, std::max(1u, std::thread::hardware_concurrency()));
 }
 
 TEST(Realizations, DefaultToTwentyForARandomDisaggregationOnly) {

@@ -105,6 +105,10 @@ RealizationSpread spread_of(const std::vector<RealizationMetrics>& runs, std::ui
 using RealizationRun =
     std::function<RunResult(std::size_t k, const RainSeries& rain, const RunOptions& run_options)>;
 
+/// Worker threads for `tasks` tasks (at least one) when `asked` were asked for (0: one per
+/// core): never more than the tasks, never none. The one rule for realizations and sweep.
+std::size_t worker_threads(unsigned asked, std::size_t tasks);
+
 struct RealizationOptions {
   unsigned jobs = 0;  ///< worker threads; 0: one per core
   /// Checked between realizations and (through RunOptions) between rain intervals.
