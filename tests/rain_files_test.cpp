@@ -512,7 +512,7 @@ TEST_F(RainCalibration, EstimatesTheCascadeFromAFineRecord) {
   EXPECT_EQ(how->levels.front().p10, 0.0);
   EXPECT_EQ(how->levels.front().p01, 0.0);
   const RainSeries rain = load_rain(s.rain);
-  EXPECT_EQ(rain.total_depth_m, as_read.total_depth_m);
+  EXPECT_EQ(sum_depths_m(rain.pulses), as_read.total_depth_m);
   EXPECT_EQ(std::find(rain.warnings.begin(), rain.warnings.end(), kUncalibratedWarning),
             rain.warnings.end());
 }

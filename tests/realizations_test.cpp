@@ -134,7 +134,7 @@ TEST(Realizations, RunEachRealizationOnItsOwnSeed) {
   std::vector<double> first_depth(3, 0.0);
   options.run = [&](std::size_t k, const RainSeries& rain, const RunOptions&) {
     first_depth[k] = rain.pulses.front().depth_m;
-    EXPECT_EQ(rain.total_depth_m, as_read.total_depth_m);
+    EXPECT_EQ(sum_depths_m(rain.pulses), as_read.total_depth_m);
     return RunResult{};
   };
   run_realizations(s, as_read, 3, options);
