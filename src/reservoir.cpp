@@ -326,8 +326,10 @@ double evaporation_rate_m_per_s(const ReservoirConfig& config, int month) {
 }
 
 double evaporation_m3_per_s(double rate_m_per_s, double surface_m2, double level_m) {
-  // Open-water evaporation as a depth per time over the exposed surface (FAO Irrigation and
-  // Drainage Paper 56, Allen et al. 1998: evaporation expressed as mm/day of water depth).
+  // A depth per time over the exposed surface, dV/dt = -E A: the definition of an evaporation
+  // depth rate (geometry, no source needed). E is the scenario's open-water figure; the typical
+  // values in REFERENCES.md section 13 are from memory. The taper below the film depth is a
+  // project choice.
   const double film = std::clamp(level_m / kEvaporationFilm_m, 0.0, 1.0);
   return rate_m_per_s * surface_m2 * film;
 }
