@@ -94,7 +94,7 @@ void TimeseriesWriter::on_sample(const Sample& s) {
        << num((a.nozzle_m3 - b.nozzle_m3) * kLitresPerM3, 3) << ',' << num(s.head_m, 4) << ','
        << num(dt > 0.0 ? energy_J / dt : 0.0, 4) << ',' << num(energy_J / kJoulesPerWh, 5) << ','
        << num(s.soc, 5) << ',' << num(a.electrical_J / kJoulesPerWh, 4) << ','
-       << num((a.reservoir_overflow_m3 + a.column_overflow_m3) * kLitresPerM3, 3) << '\n';
+       << num(a.overflow_m3() * kLitresPerM3, 3) << '\n';
   last_ = s;
 }
 
@@ -135,8 +135,7 @@ void SummaryBuilder::on_sample(const Sample& s) {
   const Accounts& b = month_start_.totals;
   m.rain_depth_m += (a.rain_m3 - b.rain_m3) / scenario_.roof.area_m2;
   m.electrical_J += a.electrical_J - b.electrical_J;
-  m.overflow_m3 += a.reservoir_overflow_m3 - b.reservoir_overflow_m3 + a.column_overflow_m3 -
-                   b.column_overflow_m3;
+  m.overflow_m3 += a.overflow_m3() - b.overflow_m3();
   m.dribble_m3 += a.dribble_m3 - b.dribble_m3;
   m.nozzle_m3 += a.nozzle_m3 - b.nozzle_m3;
   month_start_ = s;
@@ -322,7 +321,7 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
        round_to(wettest_dry_intensity_m_per_s(rain, r.start, r.end, summary.overflows()) *
                     kSecondsPerHour * kMmPerM,
                 4)},
-      {"share_of_runoff", round_to(a.reservoir_overflow_m3 / runoff, 6)},
+      {"share_of_runoff", round_to(a.overflow_m3() / runoff, 6)},
       {"dribble_share_of_runoff", round_to(a.dribble_m3 / runoff, 6)}};
   const bool has_set_points =
       sc.release.kind == ReleaseKind::bell || sc.release.kind == ReleaseKind::float_valve;
@@ -413,8 +412,7 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   out << " shares of roof runoff\n";
   row("through the nozzle", shown(100.0 * a.nozzle_m3 / runoff), "%");
   row("  of which dribble", shown(100.0 * a.dribble_m3 / runoff), "%");
-  row("overflow (rim and head column)",
-      shown(100.0 * (a.reservoir_overflow_m3 + a.column_overflow_m3) / runoff), "%");
+  row("overflow (rim and head column)", shown(100.0 * a.overflow_m3() / runoff), "%");
   out << " energy\n";
   row("jet", shown(a.jet_J / kJoulesPerWh), "Wh");
   row("electrical (generator out)", shown(a.electrical_J / kJoulesPerWh), "Wh");

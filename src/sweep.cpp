@@ -279,7 +279,7 @@ SweepMetrics sweep_metrics(const RunResult& r, const SummaryBuilder& summary) {
   const Accounts& a = r.totals;
   SweepMetrics m;
   m.energy_Wh = a.electrical_J / kJoulesPerWh;
-  m.overflow_L = (a.reservoir_overflow_m3 + a.column_overflow_m3) * kLitresPerM3;
+  m.overflow_L = a.overflow_m3() * kLitresPerM3;
   m.dribble_L = a.dribble_m3 * kLitresPerM3;
   m.cycles = static_cast<double>(r.cycles);
   m.overflow_events = static_cast<double>(r.overflow_events);

@@ -82,6 +82,14 @@ TEST(Cli, TerminalAndPageShowTheSameSharesOfRoofRunoff) {
         << words;
     EXPECT_EQ(term[1].str(), html[1].str()) << row;
   }
+  // summary.json's overflow share counts the same water: the rim and the head column.
+  const auto summary = nlohmann::json::parse(slurp(dir / "out" / "summary.json"));
+  const auto& w = summary["water_L"];
+  EXPECT_GT(w["column_overflow"].get<double>(), 0.0);
+  EXPECT_NEAR(summary["overflow"]["share_of_runoff"].get<double>(),
+              (w["reservoir_overflow"].get<double>() + w["column_overflow"].get<double>()) /
+                  w["roof_runoff"].get<double>(),
+              1e-6);
 }
 
 TEST(Cli, CheckShowsADailyRecordAsReadAndAsDisaggregated) {

@@ -39,6 +39,10 @@ struct Accounts {
   double self_discharge_J = 0.0;
   double battery_below_half_s = 0.0;  ///< time with less than half the capacity stored
   double battery_empty_s = 0.0;       ///< time at the minimum with the load cut
+
+  /// All overflow, at the reservoir rim and the head column: the one definition every output
+  /// counts as overflow.
+  double overflow_m3() const { return reservoir_overflow_m3 + column_overflow_m3; }
 };
 
 /// Water and energy held at one instant.
