@@ -1,13 +1,13 @@
 // The scenario's checks across keys (see scenario_value.hpp): each reads the keys it needs from
 // what the loader saw and fails on the key to blame.
 
-#include <cstdio>
 #include <string>
 #include <vector>
 
 #include "gutterwatt/plant.hpp"
 #include "gutterwatt/reservoir.hpp"
 #include "gutterwatt/units.hpp"
+#include "report_format.hpp"
 #include "scenario_value.hpp"
 
 namespace gutterwatt::detail {
@@ -176,13 +176,6 @@ void check_conveyance(const Seen& seen) {
   nozzle.expect(nozzle.number() < pipe.number(), "must be smaller than " + pipe.named());
 }
 
-/// A number as a message shows a computed value: three significant digits.
-std::string show3(double x) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.3g", x);
-  return buf;
-}
-
 /// release.build: the named build's values in place of the scenario's.
 void apply_build(const Seen& seen, Scenario& s) {
   if (!seen.has("release.build")) return;
@@ -242,9 +235,10 @@ void check_priming_flow(const Seen& seen, const Scenario& s) {
   if (s.release.priming_flow_m3_per_s < running) return;
   const double per_minute = kSecondsPerMinute / kCubicMetresPerLitre;
   blame(seen, s, true, "release.priming_flow_L_per_min")
-      .expect(false, "the priming flow " + show3(s.release.priming_flow_m3_per_s * per_minute) +
+      .expect(false, "the priming flow " +
+                         pretty(s.release.priming_flow_m3_per_s * per_minute, Medium::terminal) +
                          " L/min must be below the running flow at release.trigger_level_mm, " +
-                         show3(running * per_minute) + " L/min");
+                         pretty(running * per_minute, Medium::terminal) + " L/min");
 }
 
 void check_generator(const Seen& seen) {
