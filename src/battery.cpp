@@ -10,27 +10,24 @@ std::string_view battery_chemistry_name(BatteryChemistry chemistry) {
 }
 
 void apply_chemistry(BatteryChemistry chemistry, BatteryConfig& config) {
+  struct Preset {
+    double efficiency;  // charge and discharge alike
+    double self_discharge_per_month;
+    double min_soc;
+  };
+  // Lead-acid: round trip 0.9 x 0.9 = 0.81, inside the 0.70-0.85 of REFERENCES.md section 10
+  // (M, vendor data); self-discharge 3 %/month, the middle of its 2-5 % (M); kept above half
+  // charge (50 % depth of discharge) for its cycle life: common practice, no source.
+  // LiFePO4: round trip 0.97 x 0.97 = 0.9409, inside the 0.92-0.97 of REFERENCES.md section 10
+  // (M); self-discharge 2 %/month, the middle of its 1-3 % (M); cut at 10 % (90 % depth of
+  // discharge): common practice, no source.
+  const Preset p =
+      chemistry == BatteryChemistry::lead_acid ? Preset{0.9, 0.03, 0.5} : Preset{0.97, 0.02, 0.1};
   config.chemistry = chemistry;
-  switch (chemistry) {
-    case BatteryChemistry::lead_acid:
-      // Round trip 0.9 x 0.9 = 0.81, inside the 0.70-0.85 of REFERENCES.md section 10 (M,
-      // vendor data); self-discharge 3 %/month, the middle of its 2-5 % (M); kept above half
-      // charge (50 % depth of discharge) for its cycle life: common practice, no source.
-      config.charge_efficiency = 0.9;
-      config.discharge_efficiency = 0.9;
-      config.self_discharge_per_month = 0.03;
-      config.min_soc = 0.5;
-      break;
-    case BatteryChemistry::lifepo4:
-      // Round trip 0.97 x 0.97 = 0.9409, inside the 0.92-0.97 of REFERENCES.md section 10 (M);
-      // self-discharge 2 %/month, the middle of its 1-3 % (M); cut at 10 % (90 % depth of
-      // discharge): common practice, no source.
-      config.charge_efficiency = 0.97;
-      config.discharge_efficiency = 0.97;
-      config.self_discharge_per_month = 0.02;
-      config.min_soc = 0.1;
-      break;
-  }
+  config.charge_efficiency = p.efficiency;
+  config.discharge_efficiency = p.efficiency;
+  config.self_discharge_per_month = p.self_discharge_per_month;
+  config.min_soc = p.min_soc;
 }
 
 double self_discharge_rate_per_s(const BatteryConfig& config) {
