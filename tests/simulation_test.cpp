@@ -454,7 +454,8 @@ TEST(Simulation, StandingWaterEvaporatesFromATankAtRest) {
   // A 0.1 x 8 m box (0.8 m2) holding 50 mm (40 L), no release, no rain, 5 mm/day: the level
   // falls 5 mm a day and reaches the 1 mm film after 49 / 5 = 9.8 days; below it the film
   // decays as exp(-5 t / 1 mm per day), 1e-3 x exp(-11) of a metre left after 12 days. So 40 L
-  // evaporate (less 1.3e-5 mL), and the water stands 9.8 days, timed to the next output hour.
+  // evaporate (less 0.8 m2 x 1e-3 m x exp(-11) = 1.3e-5 L), and the water stands 9.8 days, timed to
+  // the next output hour.
   Scenario s = make_scenario(12.0 * 86400.0, 3600.0);
   s.release.kind = ReleaseKind::none;
   s.reservoir.initial_level_m = 0.050;
