@@ -1,7 +1,8 @@
 #pragma once
 // The scenario loader's internal parts shared by its source files (scenario.cpp reads the tree,
-// scenario_checks.cpp checks keys against each other): a value with its path and line, the
-// limits a number must fall in, the conversion from a customary twin and the keys seen.
+// scenario_checks.cpp checks keys against each other, scenario_keys.cpp reads key names): a
+// value with its path and line, the limits a number must fall in, the conversion from a
+// customary twin and the keys seen.
 // Internal (not installed, not public API).
 
 #include <yaml-cpp/yaml.h>
@@ -10,6 +11,7 @@
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
+#include <functional>
 #include <map>
 #include <optional>
 #include <string>
@@ -345,5 +347,23 @@ class Seen {
 
 /// Checks that involve several keys, and defaults that depend on other keys (scenario_checks.cpp).
 void check_combinations(const Seen& seen, Scenario& s);
+
+// Key names (scenario_keys.cpp).
+
+/// True when `a` and `b` name the same quantity in the two systems (`rim_mm` and `rim_in`).
+bool are_twins(std::string_view a, std::string_view b);
+
+/// Fails on `item` when its key `name` is not one of `valid`, suggesting the nearest.
+void reject_unknown_key(const Value& item, const std::string& name,
+                        const std::vector<std::string_view>& valid);
+
+/// Makes the Value of one entry of a section from its key and value nodes.
+using MakeChild = std::function<Value(const Value&, const YAML::Node&, const YAML::Node&)>;
+
+/// The entries of a section by name, a customary twin under the name of the key it stands for,
+/// after rejecting unknown and repeated keys (and both twins of one key) in file order.
+std::map<std::string, Value> read_entries(const Value& section,
+                                          const std::vector<std::string_view>& valid,
+                                          const MakeChild& child);
 
 }  // namespace gutterwatt::detail
