@@ -725,6 +725,11 @@ TEST(Scenario, DropPipeWithAHeadColumnNeedsOnlyReachTheColumnsTop) {
   EXPECT_EQ(error_of(minimal_with("length_m: 3", "length_m: 1"), column),
             "demo.yaml:19: drop_pipe.length_m: must be >= drop_pipe.drop_m - head_column.height_m "
             "= 1.5, the fall to the column's top (got 1)");
+  // A pipe exactly as long as the fall passes, though 3.1 - 0.7 is 2.4000000000000004 in binary.
+  const Scenario exact =
+      parse(minimal(), {"drop_pipe.drop_m=3.1", "drop_pipe.length_m=2.4",
+                        "head_column.diameter_mm=40", "head_column.height_m=0.7"});
+  EXPECT_DOUBLE_EQ(exact.drop_pipe.length_m, 2.4);
 }
 
 TEST(Scenario, RejectsADropPipeShorterThanItsDrop) {
