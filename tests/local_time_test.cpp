@@ -9,6 +9,7 @@
 #include <string>
 
 #include "cli_support.hpp"
+#include "test_support.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -18,16 +19,9 @@ using namespace cli_support;
 // An invented small system in Los Angeles time; `battery` and `period` complete it.
 std::string la_site(const std::string& battery, const std::string& period) {
   return "site: {name: Local time check (invented), time_zone: America/Los_Angeles}\n"
-         "rain: {file: rain.csv, step: 5min, gaps: zero}\n"
-         "roof: {area_m2: 12}\n"
-         "reservoir: {width_mm: 100, length_m: 4, rim_mm: 50}\n"
-         "release: {trigger_level_mm: 40, break_level_mm: 5, standpipe_diameter_mm: 15,\n"
-         "          priming_flow_L_per_min: 2}\n"
-         "drop_pipe: {diameter_mm: 15, length_m: 3, drop_m: 2.5}\n"
-         "nozzle: {diameter_mm: 4}\n"
-         "turbine: {runner_diameter_mm: 60}\n"
-         "battery: " +
-         battery + "\nsimulation: " + period + "\n";
+         "rain: {file: rain.csv, step: 5min, gaps: zero}\n" +
+         std::string(test_support::kMinimalSystemYaml) + "battery: " + battery +
+         "\nsimulation: " + period + "\n";
 }
 
 nlohmann::json run_site(const fs::path& dir, const std::string& scenario, const std::string& rain) {

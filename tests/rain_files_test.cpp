@@ -183,16 +183,8 @@ TEST_F(RainFiles, NamesAMissingFile) {
 // ---- the scenario keys of each format, end to end ----
 
 // Only the required keys besides rain, with invented values (not a real site).
-const char* const kScenarioRest =
-    "site: {name: Test shed}\n"
-    "roof: {area_m2: 12}\n"
-    "reservoir: {width_mm: 100, length_m: 4, rim_mm: 50}\n"
-    "release: {trigger_level_mm: 40, break_level_mm: 5, standpipe_diameter_mm: 15,\n"
-    "          priming_flow_L_per_min: 2}\n"
-    "drop_pipe: {diameter_mm: 15, length_m: 3, drop_m: 2.5}\n"
-    "nozzle: {diameter_mm: 4}\n"
-    "turbine: {runner_diameter_mm: 60}\n"
-    "battery: {capacity_Wh: 20}\n";
+const std::string kScenarioRest = std::string("site: {name: Test shed}\n") +
+                                  test_support::kMinimalSystemYaml + "battery: {capacity_Wh: 20}\n";
 
 Scenario scenario(const std::string& rain, const std::filesystem::path& base_dir,
                   const std::vector<std::string>& overrides = {}) {

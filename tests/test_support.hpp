@@ -28,6 +28,18 @@ inline std::filesystem::path public_data_file(const std::string& relative) {
   return path;
 }
 
+/// The required keys of an invented system from the roof to the turbine (those of
+/// tests/data/scenario/minimal.yaml), for tests that write the rest of a scenario: site, rain
+/// and battery.
+inline constexpr const char* kMinimalSystemYaml =
+    "roof: {area_m2: 12}\n"
+    "reservoir: {width_mm: 100, length_m: 4, rim_mm: 50}\n"
+    "release: {trigger_level_mm: 40, break_level_mm: 5, standpipe_diameter_mm: 15,\n"
+    "          priming_flow_L_per_min: 2}\n"
+    "drop_pipe: {diameter_mm: 15, length_m: 3, drop_m: 2.5}\n"
+    "nozzle: {diameter_mm: 4}\n"
+    "turbine: {runner_diameter_mm: 60}\n";
+
 /// 2025-03-01T00:00Z, the start of every test run.
 inline constexpr Instant kStart = 1740787200;
 
