@@ -16,6 +16,8 @@
 namespace gutterwatt {
 namespace {
 
+using detail::litres_per_minute;
+
 /// Keeps the first siphon cycle and asks the run to stop once it has ended.
 class FirstCycle : public Observer {
  public:
@@ -196,12 +198,6 @@ std::optional<Eigen::MatrixXd> jacobian(const BenchModel& model, const Eigen::Ve
     J.col(j) = (*rj - r) / h;
   }
   return J;
-}
-
-std::string litres_per_minute(double flow_m3_per_s) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.3g L/min", flow_m3_per_s / kLitrePerMinute_m3_per_s);
-  return buf;
 }
 
 std::string show(double x) {
@@ -485,15 +481,22 @@ void write_bench_fit(std::ostream& out, const BenchFit& fit) {
                   100.0 * fit.rms_relative, fit.iterations);
     out << buf;
   }
-  if (!fit.warnings.empty()) {
+  write_warnings_and_build(out, fit.warnings,
+                           {{"priming_flow_L_per_min", fit.priming_flow},
+                            {"minor_loss_k", fit.minor_loss_k},
+                            {"nozzle_discharge_coefficient", fit.discharge_coefficient}});
+}
+
+void write_warnings_and_build(std::ostream& out, const std::vector<std::string>& warnings,
+                              std::initializer_list<BuildValue> values) {
+  if (!warnings.empty()) {
     out << "Warnings\n";
-    for (const std::string& w : fit.warnings) out << "  - " << w << "\n";
+    for (const std::string& w : warnings) out << "  - " << w << "\n";
   }
-  out << "As a build for release.builds:\n  - {name: NAME, priming_flow_L_per_min: "
-      << fitted_value_text(fit.priming_flow)
-      << ", minor_loss_k: " << fitted_value_text(fit.minor_loss_k)
-      << ", nozzle_discharge_coefficient: " << fitted_value_text(fit.discharge_coefficient)
-      << "}\n";
+  out << "As a build for release.builds:\n  - {name: NAME";
+  for (const BuildValue& v : values)
+    out << ", " << v.build_key << ": " << fitted_value_text(v.value);
+  out << "}\n";
 }
 
 std::string fitted_scenario_text(std::string_view scenario_text,

@@ -6,6 +6,7 @@
 #include <functional>
 #include <limits>
 
+#include "detail.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/plant.hpp"
 #include "gutterwatt/simulation.hpp"
@@ -13,6 +14,8 @@
 
 namespace gutterwatt {
 namespace {
+
+using detail::litres_per_minute;
 
 /// Collects the start of every siphon cycle of a run.
 class CycleStarts : public Observer {
@@ -38,12 +41,6 @@ double least_squares_pairing(const std::vector<double>& a, const std::vector<dou
     best = std::move(next);
   }
   return best.back();
-}
-
-std::string litres_per_minute(double flow_m3_per_s) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.3g L/min", flow_m3_per_s / kLitrePerMinute_m3_per_s);
-  return buf;
 }
 
 std::string show(double x, const char* format = "%.3g") {
@@ -581,13 +578,9 @@ void write_cycle_fit(std::ostream& out, const CycleFit& fit, const TimeZone& zon
         m.unmatched, m.pairs, m.rms_s());
     out << buf;
   }
-  if (!fit.warnings.empty()) {
-    out << "Warnings\n";
-    for (const std::string& w : fit.warnings) out << "  - " << w << "\n";
-  }
-  out << "As a build for release.builds:\n  - {name: NAME, priming_flow_L_per_min: "
-      << fitted_value_text(fit.priming_flow)
-      << ", minor_loss_k: " << fitted_value_text(fit.minor_loss_k) << "}\n";
+  write_warnings_and_build(
+      out, fit.warnings,
+      {{"priming_flow_L_per_min", fit.priming_flow}, {"minor_loss_k", fit.minor_loss_k}});
 }
 
 }  // namespace gutterwatt

@@ -17,6 +17,8 @@
 #include <system_error>
 #include <vector>
 
+#include "gutterwatt/units.hpp"
+
 namespace gutterwatt::detail {
 
 /// Whole seconds, for calendar arithmetic on instants.
@@ -91,6 +93,13 @@ inline std::string fixed(double v, int decimals) {
   std::string out = buf;
   if (out.find_first_not_of("-0.") == std::string::npos && out[0] == '-') out.erase(0, 1);
   return out;
+}
+
+/// A flow in m3/s as a person reads it: `12.3 L/min` (three significant figures, printf `%.3g`).
+inline std::string litres_per_minute(double flow_m3_per_s) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.3g L/min", flow_m3_per_s / kLitrePerMinute_m3_per_s);
+  return buf;
 }
 
 /// As fixed, without trailing zeros after the point (and without a bare point).

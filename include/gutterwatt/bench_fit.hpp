@@ -5,6 +5,7 @@
 /// coefficient come from least squares (Levenberg-Marquardt) over the timed rows, each prediction a
 /// simulated bench run of the same scenario.
 
+#include <initializer_list>
 #include <istream>
 #include <optional>
 #include <ostream>
@@ -82,6 +83,17 @@ void write_bench_fit(std::ostream& out, const BenchFit& fit);
 /// Prints one value for a person, in the unit a person reads (L/min for the priming flow):
 /// `  key: value +- sigma (was before)`, or `  key: value (kept: see the warnings)`.
 void write_fitted_value(std::ostream& out, const FittedValue& v);
+
+/// One value of a build entry: its key in `release.builds` and the value fitted for it.
+struct BuildValue {
+  std::string_view build_key;
+  const FittedValue& value;
+};
+
+/// Prints how a fit's printout ends: its warnings (when there are any), then a build entry with
+/// `values` to paste into `release.builds`: `  - {name: NAME, key: value, ...}`.
+void write_warnings_and_build(std::ostream& out, const std::vector<std::string>& warnings,
+                              std::initializer_list<BuildValue> values);
 
 /// The text written into a scenario for a fitted value: four significant digits, in the key's
 /// unit.
