@@ -17,6 +17,7 @@
 #include <vector>
 
 #include "../detail.hpp"
+#include "../report_format.hpp"
 #include "command_line.hpp"
 #include "fit_command.hpp"
 #include "gutterwatt/calendar.hpp"
@@ -97,9 +98,10 @@ std::string method_spread(const Scenario& sc, const RainSeries& as_read, double 
     options.stop = &g_stop;
     const RunResult r = simulate(sc, disaggregate(as_read, how), none, options);
     text += " " + std::string(method_name(m)) + " " +
-            detail::fixed(realization_metrics(r).energy_Wh, 2) + " Wh,";
+            detail::pretty(realization_metrics(r).energy_Wh, detail::Medium::terminal) + " Wh,";
   }
-  return text + " cascade " + detail::fixed(cascade_Wh, 2) + " Wh (median of " + std::to_string(n) +
+  return text + " cascade " + detail::pretty(cascade_Wh, detail::Medium::terminal) +
+         " Wh (median of " + std::to_string(n) +
          " realizations): with uncalibrated defaults the answer is a guess "
          "within this span";
 }
