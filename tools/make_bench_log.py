@@ -31,7 +31,8 @@ import os
 import random
 
 G = 9.80665
-NU_12C = 1.2271e-6  # m2/s, water at 12 C (IAPWS 2008 viscosity over density)
+NU_12C = 1.2347e-6  # m2/s, water at 12 C: IAPWS 2008 viscosity 1.2340 mPa s (no critical term)
+# over density 999.497 kg/m3 (IAPWS-95, from memory); REFERENCES.md section 2 gives the method
 
 GUTTER_D, GUTTER_L = 0.125, 8.0
 LIP, RIM = 0.050, 0.008
