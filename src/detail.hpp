@@ -8,6 +8,7 @@
 #include <cmath>
 #include <cstdint>
 #include <cstdio>
+#include <cstring>
 #include <istream>
 #include <limits>
 #include <optional>
@@ -17,6 +18,7 @@
 #include <system_error>
 #include <vector>
 
+#include "gutterwatt/error.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt::detail {
@@ -123,14 +125,98 @@ inline std::vector<std::string_view> split_fields(std::string_view line) {
   }
 }
 
-/// Reads lines from `in` up to the next one that holds data, skipping blank lines and `#`
-/// comments and a UTF-8 byte-order mark on line 1. Sets `text` to that line, trimmed (it views
-/// `buffer`), counts lines in `line_number`; false at the end of the input.
-inline bool next_data_line(std::istream& in, std::string& buffer, int& line_number,
-                           std::string_view& text) {
-  while (std::getline(in, buffer)) {
+/// Longest line a text input may have: a record's rows are a few dozen bytes, and a file without
+/// line ends (binary data, a file saved with CR only) must not grow a buffer without bound.
+inline constexpr std::size_t kMaxLineBytes = std::size_t{64} << 10;
+
+/// Hands out the lines of a stream, reading it in large chunks into one reused buffer. A line
+/// stays valid until the next call. Line ends (LF or CRLF) are removed. A line longer than
+/// kMaxLineBytes ends the reading, with too_long() set.
+class LineReader {
+ public:
+  explicit LineReader(std::istream& in) : in_(in), buffer_(kChunkBytes) {}
+
+  bool next(std::string_view& line) {
+    for (;;) {
+      const char* const first = buffer_.data() + begin_;
+      const void* newline = std::memchr(first, '\n', end_ - begin_);
+      const std::size_t length =
+          newline != nullptr ? static_cast<std::size_t>(static_cast<const char*>(newline) - first)
+                             : end_ - begin_;
+      if (length > kMaxLineBytes) {
+        too_long_ = true;
+        return false;
+      }
+      if (newline != nullptr) {
+        line = std::string_view(first, length);
+        begin_ += length + 1;
+        drop_carriage_return(line);
+        return true;
+      }
+      if (at_end_) {
+        if (begin_ == end_) return false;
+        line = std::string_view(first, end_ - begin_);
+        begin_ = end_;
+        drop_carriage_return(line);
+        return true;
+      }
+      refill();
+    }
+  }
+
+  bool failed() const { return in_.bad(); }
+  bool too_long() const { return too_long_; }
+
+ private:
+  static constexpr std::size_t kChunkBytes = std::size_t{1} << 20;
+
+  static void drop_carriage_return(std::string_view& line) {
+    if (!line.empty() && line.back() == '\r') line.remove_suffix(1);
+  }
+
+  void refill() {
+    const std::size_t kept = end_ - begin_;
+    if (begin_ > 0) std::memmove(buffer_.data(), buffer_.data() + begin_, kept);
+    begin_ = 0;
+    end_ = kept;
+    in_.read(buffer_.data() + end_, static_cast<std::streamsize>(buffer_.size() - end_));
+    const auto got = static_cast<std::size_t>(in_.gcount());
+    end_ += got;
+    if (got == 0 || !in_) at_end_ = true;
+  }
+
+  std::istream& in_;
+  std::vector<char> buffer_;
+  std::size_t begin_ = 0;
+  std::size_t end_ = 0;
+  bool at_end_ = false;
+  bool too_long_ = false;
+};
+
+/// Throws InputError naming `file_label` when `reader` stopped before the end of its input: at
+/// a read error after line `line_number`, or at the line after it, past kMaxLineBytes (`what`
+/// names the input in the message: `a rain record`, `a bench log`).
+inline void check_read_to_end(const LineReader& reader, const std::string& file_label,
+                              int line_number, std::string_view what) {
+  if (reader.failed()) {
+    throw InputError(file_label, line_number, "",
+                     "the file could not be read past this line (an input/output error)");
+  }
+  if (reader.too_long()) {
+    throw InputError(file_label, line_number + 1, "",
+                     "a line longer than " + std::to_string(kMaxLineBytes >> 10) + " KiB; " +
+                         std::string(what) +
+                         "'s lines are short (binary data, or line ends other than LF or CRLF?)");
+  }
+}
+
+/// Reads lines from `reader` up to the next one that holds data, skipping blank lines and `#`
+/// comments and a UTF-8 byte-order mark on line 1. Sets `text` to that line, trimmed (valid
+/// until the next call), counts lines in `line_number`; false at the end of the input, or at a
+/// line past kMaxLineBytes (reader.too_long()) or a read error (reader.failed()).
+inline bool next_data_line(LineReader& reader, int& line_number, std::string_view& text) {
+  while (reader.next(text)) {
     ++line_number;
-    text = buffer;
     if (line_number == 1 && text.starts_with(kByteOrderMark)) {
       text.remove_prefix(kByteOrderMark.size());
     }

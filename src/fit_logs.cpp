@@ -197,10 +197,10 @@ BenchRow read_row(const Cells& cells, int line) {
 std::vector<BenchRow> read_bench_log(std::istream& in, const std::string& file_label) {
   std::vector<BenchRow> rows;
   std::vector<std::string> header;
-  std::string line;
+  detail::LineReader reader(in);
   int line_number = 0;
   std::string_view text;
-  while (detail::next_data_line(in, line, line_number, text)) {
+  while (detail::next_data_line(reader, line_number, text)) {
     if (header.empty()) {
       header = read_header(text, file_label, line_number);
       continue;
@@ -213,7 +213,7 @@ std::vector<BenchRow> read_bench_log(std::istream& in, const std::string& file_l
     }
     rows.push_back(read_row(Cells(file_label, line_number, header, fields), line_number));
   }
-  if (in.bad()) throw InputError(file_label, line_number, "", "the bench log could not be read");
+  detail::check_read_to_end(reader, file_label, line_number, "a bench log");
   if (header.empty()) throw InputError(file_label, 0, "", "the bench log has no header");
   if (rows.empty()) throw InputError(file_label, line_number, "", "the bench log has no tests");
   return rows;

@@ -12,75 +12,9 @@
 namespace gutterwatt::detail {
 namespace {
 
-constexpr std::size_t kChunkBytes = std::size_t{1} << 20;
-// Longest line a rain file may have: a record's rows are a few dozen bytes, and a file without
-// line ends (binary data, a file saved with CR only) must not grow the buffer without bound.
-constexpr std::size_t kMaxLineBytes = std::size_t{64} << 10;
 constexpr std::size_t kMaxQuotedChars = 40;
 // Values of a where column that a message lists, at most.
 constexpr std::size_t kMaxValuesShown = 8;
-
-// Hands out the lines of a stream, reading it in large chunks into one reused buffer. A line
-// stays valid until the next call. Line ends (LF or CRLF) are removed. A line longer than
-// kMaxLineBytes ends the reading, with too_long() set.
-class LineReader {
- public:
-  explicit LineReader(std::istream& in) : in_(in), buffer_(kChunkBytes) {}
-
-  bool next(std::string_view& line) {
-    for (;;) {
-      const char* const first = buffer_.data() + begin_;
-      const void* newline = std::memchr(first, '\n', end_ - begin_);
-      const std::size_t length =
-          newline != nullptr ? static_cast<std::size_t>(static_cast<const char*>(newline) - first)
-                             : end_ - begin_;
-      if (length > kMaxLineBytes) {
-        too_long_ = true;
-        return false;
-      }
-      if (newline != nullptr) {
-        line = std::string_view(first, length);
-        begin_ += length + 1;
-        drop_carriage_return(line);
-        return true;
-      }
-      if (at_end_) {
-        if (begin_ == end_) return false;
-        line = std::string_view(first, end_ - begin_);
-        begin_ = end_;
-        drop_carriage_return(line);
-        return true;
-      }
-      refill();
-    }
-  }
-
-  bool failed() const { return in_.bad(); }
-  bool too_long() const { return too_long_; }
-
- private:
-  static void drop_carriage_return(std::string_view& line) {
-    if (!line.empty() && line.back() == '\r') line.remove_suffix(1);
-  }
-
-  void refill() {
-    const std::size_t kept = end_ - begin_;
-    if (begin_ > 0) std::memmove(buffer_.data(), buffer_.data() + begin_, kept);
-    begin_ = 0;
-    end_ = kept;
-    in_.read(buffer_.data() + end_, static_cast<std::streamsize>(buffer_.size() - end_));
-    const auto got = static_cast<std::size_t>(in_.gcount());
-    end_ += got;
-    if (got == 0 || !in_) at_end_ = true;
-  }
-
-  std::istream& in_;
-  std::vector<char> buffer_;
-  std::size_t begin_ = 0;
-  std::size_t end_ = 0;
-  bool at_end_ = false;
-  bool too_long_ = false;
-};
 
 // Blanks around a field: spaces, and tabs unless they separate the fields.
 std::string_view blanks_for(char delimiter) { return delimiter == '\t' ? " " : " \t"; }
@@ -543,16 +477,7 @@ void scan_rows(std::istream& in, const std::string& file_label, const SeriesForm
     previous_row.assign(line);
     ++rows;
   }
-  if (reader.failed()) {
-    throw InputError(file_label, line_number, "",
-                     "the file could not be read past this line (an input/output error)");
-  }
-  if (reader.too_long()) {
-    throw InputError(file_label, line_number + 1, "",
-                     "a line longer than " + std::to_string(kMaxLineBytes >> 10) +
-                         " KiB; a rain record's lines are short (binary data, or line ends "
-                         "other than LF or CRLF?)");
-  }
+  check_read_to_end(reader, file_label, line_number, "a rain record");
   if (header_line == 0 && fmt.skip_lines > 0 && line_number <= fmt.skip_lines) {
     throw InputError(file_label, line_number, "rain.skip_lines",
                      "the file ends within the " + std::to_string(fmt.skip_lines) +

@@ -221,13 +221,13 @@ std::string joined(const std::vector<std::string>& names) {
 }  // namespace
 
 PrpParameters read_prp_parameters(std::istream& in, const std::string& file_label) {
-  std::string line;
+  detail::LineReader reader(in);
   int line_number = 0;
   std::vector<std::string> columns;
   std::array<int, 12> line_of_month{};
   PrpParameters parameters;
   std::string_view text;
-  while (detail::next_data_line(in, line, line_number, text)) {
+  while (detail::next_data_line(reader, line_number, text)) {
     const std::vector<std::string_view> fields = detail::split_fields(text);
     if (columns.empty()) {
       const std::vector<std::string> names(fields.begin(), fields.end());
@@ -289,10 +289,7 @@ PrpParameters read_prp_parameters(std::istream& in, const std::string& file_labe
                               values[3] * kSecondsPerHour);
     }
   }
-  if (in.bad()) {
-    throw InputError(file_label, line_number, "",
-                     "the file could not be read past this line (an input/output error)");
-  }
+  detail::check_read_to_end(reader, file_label, line_number, "a parameter file");
   if (columns.empty()) {
     throw InputError(file_label, 1, "",
                      "empty file (expected the header " + joined(kModelColumns) + " or " +

@@ -66,16 +66,16 @@ TEST(Detail, SplitsPlainFieldsTrimmed) {
 
 TEST(Detail, SkipsCommentsBlankLinesAndAByteOrderMark) {
   std::istringstream in("\xEF\xBB\xBF# note\n\n  x,y \r\n# more\nz\n");
-  std::string buffer;
+  LineReader reader(in);
   int line = 0;
   std::string_view text;
-  ASSERT_TRUE(next_data_line(in, buffer, line, text));
+  ASSERT_TRUE(next_data_line(reader, line, text));
   EXPECT_EQ(text, "x,y");
   EXPECT_EQ(line, 3);
-  ASSERT_TRUE(next_data_line(in, buffer, line, text));
+  ASSERT_TRUE(next_data_line(reader, line, text));
   EXPECT_EQ(text, "z");
   EXPECT_EQ(line, 5);
-  EXPECT_FALSE(next_data_line(in, buffer, line, text));
+  EXPECT_FALSE(next_data_line(reader, line, text));
 }
 
 }  // namespace

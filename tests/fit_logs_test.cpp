@@ -58,6 +58,13 @@ TEST(BenchLog, RejectsAMissingOutcomeColumn) {
             "bench.csv:1: outcome: missing column (primed or dribbled, per row)");
 }
 
+TEST(BenchLog, RejectsALinePastSixtyFourKibNamingIt) {
+  // One test, then 8 MiB without a line end: refused after 64 KiB, not read whole.
+  EXPECT_EQ(error_of("inflow_L_per_min,outcome\n3,primed\n" + std::string(8 << 20, '7')),
+            "bench.csv:3: a line longer than 64 KiB; a bench log's lines are short (binary data, "
+            "or line ends other than LF or CRLF?)");
+}
+
 TEST(BenchLog, RejectsTheInflowGivenTwiceInTwoUnits) {
   EXPECT_EQ(error_of("inflow_L_per_min,inflow_gpm,outcome\n3,0.8,primed\n"),
             "bench.csv:2: inflow_gpm: the inflow is given twice on this row (inflow_L_per_min "
