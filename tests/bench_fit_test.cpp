@@ -150,9 +150,7 @@ TEST(BenchFit, WritesTheFittedValuesIntoTheScenarioText) {
 // `gutterwatt fit` of the demo scenario, run from `dir` (so file names in `args` are relative to
 // it) with `args` after the scenario.
 cli_support::Outcome fit_demo_in(const std::filesystem::path& dir, const std::string& args) {
-  return cli_support::shell("cd " + dir.string() + " && " + GUTTERWATT_EXE + " fit " +
-                                cli_support::source("scenarios/demo.yaml") + " " + args,
-                            dir);
+  return cli_support::run_in(dir, "fit " + cli_support::source("scenarios/demo.yaml") + " " + args);
 }
 
 TEST(FitCommand, BadLogIsOneLineExitTwoNamingFileLineAndColumn) {

@@ -172,6 +172,11 @@ inline Outcome run(const std::string& args, const fs::path& dir) {
   return shell(std::string(GUTTERWATT_EXE) + " " + args, dir);
 }
 
+/// The same, run from `dir` (so file names in `args` are relative to it).
+inline Outcome run_in(const fs::path& dir, const std::string& args) {
+  return shell("cd " + dir.string() + " && " + GUTTERWATT_EXE + " " + args, dir);
+}
+
 /// A file of the source tree, by its path relative to the top.
 inline std::string source(const std::string& rel) {
   return std::string(GUTTERWATT_SOURCE_DIR) + "/" + rel;

@@ -271,9 +271,8 @@ TEST(CycleFit, RainEventsEndAfterSixDryHours) {
 }
 
 cli_support::Outcome fit_field_demo_in(const std::filesystem::path& dir, const std::string& args) {
-  return cli_support::shell("cd " + dir.string() + " && " + GUTTERWATT_EXE + " fit " +
-                                cli_support::source("scenarios/field-demo.yaml") + " " + args,
-                            dir);
+  return cli_support::run_in(
+      dir, "fit " + cli_support::source("scenarios/field-demo.yaml") + " " + args);
 }
 
 TEST(FitCommand, BadCycleLogIsOneLineExitTwoNamingFileLineAndColumn) {
