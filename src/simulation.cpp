@@ -228,15 +228,7 @@ RunResult Engine::run() {
 
   result_.totals = ledger_.accounts(x);
   result_.final = Ledger::storage(x);
-  const EpisodeCounts& counts = ledger_.counts();
-  result_.cycles = counts.cycles;
-  result_.overflow_events = counts.overflow_events;
-  result_.overflow_s = counts.overflow_s;
-  result_.dribble_episodes = counts.dribble_episodes;
-  result_.dribble_s = counts.dribble_s;
-  result_.standing_s = counts.standing_s;
-  result_.standing_longest_s = counts.standing_longest_s;
-  result_.standing_spells_over_week = counts.standing_spells_over_week;
+  static_cast<EpisodeCounts&>(result_) = ledger_.counts();
   result_.stats = stepper_.stats();
   const Accounts& a = result_.totals;
   const double out = a.roof_loss_m3 + a.first_flush_m3 + a.reservoir_overflow_m3 +

@@ -122,7 +122,7 @@ struct EpisodeCounts {
   double overflow_s = 0.0;
   long dribble_episodes = 0;
   double dribble_s = 0.0;
-  double standing_s = 0.0;  ///< total time with water standing
+  double standing_s = 0.0;  ///< total time with water standing (see Ledger::follow_standing)
   double standing_longest_s = 0.0;
   long standing_spells_over_week = 0;  ///< spells longer than kMosquitoSpell_s
 };

@@ -12,7 +12,9 @@
 
 namespace gutterwatt {
 
-struct RunResult {
+/// A run's outcome: its episode counts (cycles, overflow, dribble, standing water; the ledger's
+/// EpisodeCounts as they stood at the end), its accounts and storage, and the balance.
+struct RunResult : EpisodeCounts {
   Instant start = 0;
   Instant end = 0;
   Accounts totals;
@@ -21,14 +23,6 @@ struct RunResult {
   double balance_error_m3 =
       0.0;  ///< rain - losses - overflows - nozzle - evaporation - storage change
   double balance_relative_error = 0.0;
-  long cycles = 0;
-  long overflow_events = 0;
-  double overflow_s = 0.0;
-  long dribble_episodes = 0;
-  double dribble_s = 0.0;
-  double standing_s = 0.0;  ///< water standing (see Ledger::follow_standing), in all
-  double standing_longest_s = 0.0;
-  long standing_spells_over_week = 0;
   SolverStats stats;
 };
 
