@@ -1,9 +1,9 @@
 #pragma once
 // The scenario loader's internal parts shared by its source files (scenario.cpp reads the tree,
-// scenario_checks.cpp checks keys against each other, scenario_keys.cpp reads key names): a
-// value with its path and line, the limits a number must fall in, the conversion from a
-// customary twin and the keys seen.
-// Internal (not installed, not public API).
+// scenario_checks.cpp checks keys against each other, scenario_keys.cpp reads key names,
+// scenario_text.cpp the text before the tree): a value with its path and line, the limits a number
+// must fall in, the conversion from a customary twin and the keys seen. Internal (not installed,
+// not public API).
 
 #include <yaml-cpp/yaml.h>
 
@@ -14,6 +14,7 @@
 #include <functional>
 #include <map>
 #include <optional>
+#include <set>
 #include <string>
 #include <string_view>
 #include <utility>
@@ -347,6 +348,19 @@ class Seen {
 
 /// Checks that involve several keys, and defaults that depend on other keys (scenario_checks.cpp).
 void check_combinations(const Seen& seen, Scenario& s);
+
+// The text before the tree (scenario_text.cpp).
+
+/// Throws for a carriage return that ends a line alone (old Mac line ends): YAML would read the
+/// whole file as one line.
+void check_line_ends(std::string_view text, const std::string& file_label);
+
+/// The first line up to `last_line` (all lines when 0) whose indentation holds a tab, or 0.
+int tab_indented_line(std::string_view text, int last_line);
+
+/// Applies each `key.path=value` to the tree, creating missing sections; returns the paths of
+/// every key and section an override wrote or created.
+std::set<std::string> apply_overrides(YAML::Node& root, const std::vector<std::string>& overrides);
 
 // Key names (scenario_keys.cpp).
 
