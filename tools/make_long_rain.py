@@ -95,11 +95,24 @@ def storm_weights(rng, minutes, convective):
     return [(1.0 - share) * w + share * c / cell_total for w, c in zip(weights, cells)]
 
 
-def make_storms(rng, n_minutes):
+# The demo climate (tools/make_demo_rain.py); tools/accuracy passes others of the same form:
+# the largest daily storm rate, the rate and the convective share by day of the year, and the
+# two storm kinds.
+DEMO_CLIMATE = {
+    "max_storms_per_day": demo.RATE_MEAN_PER_DAY + demo.RATE_SWING_PER_DAY,
+    "storms_per_day": demo.storms_per_day,
+    "convective_share": demo.convective_share,
+    "frontal": demo.FRONTAL,
+    "convective": demo.CONVECTIVE,
+}
+
+
+def make_storms(rng, n_minutes, climate=None):
     """Continuous depth per minute (mm) and the storm count by kind."""
+    climate = climate or DEMO_CLIMATE
     depth = array.array("d", bytes(8 * n_minutes))
     kinds = {"frontal": 0, "convective": 0}
-    max_rate = (demo.RATE_MEAN_PER_DAY + demo.RATE_SWING_PER_DAY) / MINUTES_PER_DAY
+    max_rate = climate["max_storms_per_day"] / MINUTES_PER_DAY
     start_doy = FIRST_DAY.timetuple().tm_yday
     minute = 0.0
     while True:
@@ -108,10 +121,10 @@ def make_storms(rng, n_minutes):
         if minute >= n_minutes:
             break
         doy = (start_doy - 1 + minute / MINUTES_PER_DAY) % 365.25 + 1
-        if rng.random() * max_rate > demo.storms_per_day(doy) / MINUTES_PER_DAY:
+        if rng.random() * max_rate > climate["storms_per_day"](doy) / MINUTES_PER_DAY:
             continue
-        convective = rng.random() < demo.convective_share(doy)
-        kind = demo.CONVECTIVE if convective else demo.FRONTAL
+        convective = rng.random() < climate["convective_share"](doy)
+        kind = climate["convective" if convective else "frontal"]
         u_duration, u_depth = demo.correlated_uniforms(rng, kind["rho"])
         duration_h = kind["min_duration_h"] + demo.exponential_quantile(u_duration,
                                                                         kind["duration_h"])
@@ -147,13 +160,13 @@ def gauge_counts(depth_mm):
     return counts
 
 
-def write_record(path, counts, first_day, seed):
-    """Writes the CSV through a temporary name, one stamp-day at a time."""
+def write_record(path, counts, first_day, comment):
+    """Writes the CSV through a temporary name, one stamp-day at a time, after `comment`."""
     n = len(counts)
     clock = [f"T{m // 60:02d}:{m % 60:02d}," for m in range(MINUTES_PER_DAY)]
     temporary = path + ".tmp"
     with open(temporary, "w", encoding="ascii", newline="\n") as out:
-        out.write(f"# invented rain, not measured: {SITE}, tools/make_long_rain.py seed {seed}\n")
+        out.write(f"# {comment}\n")
         out.write("time,rain_mm\n")
         # Row r (1-based) is stamped r minutes after the start and holds counts[r - 1]; the rows
         # stamped on day j are r = 1440 j + m for the minutes of the day m.
@@ -197,7 +210,8 @@ def main():
     depth, kinds = make_storms(rng, n_minutes)
     counts = gauge_counts(depth)
     os.makedirs(os.path.dirname(os.path.abspath(args.out)), exist_ok=True)
-    write_record(args.out, counts, FIRST_DAY, args.seed)
+    write_record(args.out, counts, FIRST_DAY,
+                 f"invented rain, not measured: {SITE}, tools/make_long_rain.py seed {args.seed}")
     print(f"wrote {args.out} (invented, seed {args.seed})")
     print_summary(counts, kinds, args.years)
     return 0
