@@ -24,6 +24,13 @@ namespace {
 // A number in the text of a figure or a warning, by the report's one rule.
 std::string shown(double v) { return detail::pretty(v, detail::Medium::terminal); }
 
+// A quantity given in SI (`si_unit` as in column names: L, mm_per_h) as a figure or a warning
+// shows it, in `units`: `12.5 mm/h` or `0.492 in/h`.
+std::string shown(UnitSystem units, double in_si, std::string_view si_unit) {
+  const InUnits v = in_units(units, in_si, si_unit);
+  return shown(v.value) + " " + unit_label(v.unit);
+}
+
 constexpr double kMmPerHourPerMPerS = 3.6e6;
 constexpr double kLitresPerMinutePerM3PerS = 6e4;
 
@@ -213,7 +220,8 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
   }
 
   // Warnings in plain words.
-  const auto mmh = [](double i) { return shown(i * kMmPerHourPerMPerS) + " mm/h"; };
+  const UnitSystem units = sc.site.units;
+  const auto mmh = [&](double i) { return shown(units, i * kMmPerHourPerMPerS, "mm_per_h"); };
   if (d.priming_intensity_m_per_s && d.record &&
       *d.priming_intensity_m_per_s > d.record->median_intensity_m_per_s) {
     d.warnings.push_back(
@@ -240,11 +248,12 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
     }
   }
   if (plant.has_column() && d.running_flow_trigger_m3_per_s < d.nozzle_flow_m3_per_s) {
-    d.warnings.push_back("The drop pipe carries " +
-                         shown(d.running_flow_trigger_m3_per_s * kLitresPerMinutePerM3PerS) +
-                         " L/min, less than the nozzle passes at the column's top (" +
-                         shown(d.nozzle_flow_m3_per_s * kLitresPerMinutePerM3PerS) +
-                         " L/min): the head column never fills and the nozzle runs starved.");
+    d.warnings.push_back(
+        "The drop pipe carries " +
+        shown(units, d.running_flow_trigger_m3_per_s * kLitresPerMinutePerM3PerS, "L_per_min") +
+        ", less than the nozzle passes at the column's top (" +
+        shown(units, d.nozzle_flow_m3_per_s * kLitresPerMinutePerM3PerS, "L_per_min") +
+        "): the head column never fills and the nozzle runs starved.");
   }
   if (d.column_fill_s && d.cycle_drain_s && *d.column_fill_s < *d.cycle_drain_s) {
     d.warnings.push_back(
@@ -271,8 +280,8 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
                                                             : " above its "
                                                               "closing level";
     const std::string lead = "Between storms the reservoir holds water up to " + where +
-                             shown(rel.trigger_level_m / kMetresPerMm) + " mm), " +
-                             shown(held_m / kMetresPerMm) + " mm" + above +
+                             shown(units, rel.trigger_level_m / kMetresPerMm, "mm") + "), " +
+                             shown(units, held_m / kMetresPerMm, "mm") + above +
                              ", which only evaporation lowers";
     const std::string tail =
         ". Mosquitoes breed in standing water in about 7 days (common practice): screen every "
@@ -281,8 +290,9 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
       d.warnings.push_back(lead + ", and none is given (reservoir.evaporation_mm_per_day)" + tail);
     } else if (held_m / fastest > kMosquitoSpell_s) {
       d.warnings.push_back(lead + ": even at the highest evaporation given (" +
-                           shown(fastest / kMetresPerMm * kSecondsPerDay) + " mm/day) that takes " +
-                           shown(held_m / fastest / kSecondsPerDay) + " days" + tail);
+                           shown(units, fastest / kMetresPerMm * kSecondsPerDay, "mm_per_day") +
+                           ") that takes " + shown(held_m / fastest / kSecondsPerDay) + " days" +
+                           tail);
     }
   }
   if (sc.turbine.best_at_every_head) {
@@ -306,36 +316,44 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
                   unit.c_str());
     out << buf;
   };
-  const auto lpm = [](double q) { return shown(q * kLitresPerMinutePerM3PerS); };
-  const auto mmh = [](double i) { return shown(i * kMmPerHourPerMPerS); };
+  // A figure given in SI (`si_unit` as in column names), in the scenario's units.
+  const auto figure = [&](const std::string& label, double in_si, std::string_view si_unit) {
+    const InUnits v = in_units(sc.site.units, in_si, si_unit);
+    line(label, shown(v.value), unit_label(v.unit));
+  };
+  const auto lpm = [&](const std::string& label, double q) {
+    figure(label, q * kLitresPerMinutePerM3PerS, "L_per_min");
+  };
+  const auto mmh = [&](const std::string& label, double i) {
+    figure(label, i * kMmPerHourPerMPerS, "mm_per_h");
+  };
   out << "Design figures for " << sc.site.name << " (" << sc.file.filename().string() << ")\n";
-  if (d.storage_m3) line("storage between the set-points", shown(*d.storage_m3 * 1e3), "L");
+  if (d.storage_m3) figure("storage between the set-points", *d.storage_m3 * 1e3, "L");
   if (d.priming_level_m)
-    line("priming level (lip + head on the standpipe)", shown(*d.priming_level_m * 1e3), "mm");
+    figure("priming level (lip + head on the standpipe)", *d.priming_level_m * 1e3, "mm");
   if (d.priming_intensity_m_per_s) {
-    line("priming flow as steady rain on this roof", mmh(*d.priming_intensity_m_per_s), "mm/h");
+    mmh("priming flow as steady rain on this roof", *d.priming_intensity_m_per_s);
   }
-  line("running flow at the set-point", lpm(d.running_flow_trigger_m3_per_s), "L/min");
-  line("running flow at the break level", lpm(d.running_flow_break_m3_per_s), "L/min");
+  lpm("running flow at the set-point", d.running_flow_trigger_m3_per_s);
+  lpm("running flow at the break level", d.running_flow_break_m3_per_s);
   if (d.cycle_drain_s) line("running time per cycle (no inflow)", shown(*d.cycle_drain_s), "s");
   if (d.column_fill_s) line("head column brim-full after", shown(*d.column_fill_s), "s");
-  line(sc.head_column ? "design head (head column brim-full)" : "design head at the nozzle",
-       shown(d.design_head_m), "m");
-  line("nozzle flow at design head", lpm(d.nozzle_flow_m3_per_s), "L/min");
-  line("jet velocity", shown(d.jet_velocity_m_per_s), "m/s");
+  figure(sc.head_column ? "design head (head column brim-full)" : "design head at the nozzle",
+         d.design_head_m, "m");
+  lpm("nozzle flow at design head", d.nozzle_flow_m3_per_s);
+  figure("jet velocity", d.jet_velocity_m_per_s, "m_per_s");
   line("jet power", shown(d.jet_power_W), "W");
   line(sc.turbine.best_at_every_head ? "runner speed at design head (best at every head)"
                                      : "runner speed at design head",
        shown(d.runner_speed_rpm), "rpm");
   line("  speed ratio (bucket / jet speed)", shown(d.speed_ratio), "");
   line("electrical power at design head", shown(d.electrical_power_W), "W");
-  line("rain that overflows the rim while the release runs", mmh(d.overflow_intensity_m_per_s),
-       "mm/h");
+  mmh("rain that overflows the rim while the release runs", d.overflow_intensity_m_per_s);
   if (d.energy_per_cycle_J)
     line("energy per cycle", shown(*d.energy_per_cycle_J / kJoulesPerWh), "Wh");
   const auto record = [&](const std::string& name, const RecordFigures& r) {
     out << "  " << name << ", " << format_duration(r.step_s) << " steps\n";
-    line("  median wet intensity", mmh(r.median_intensity_m_per_s), "mm/h");
+    mmh("  median wet intensity", r.median_intensity_m_per_s);
     if (r.volume_below_priming) {
       line("  rain volume below the priming intensity", shown(*r.volume_below_priming * 100.0),
            "%");
@@ -344,7 +362,7 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
       line("  wet time at or above the priming intensity", shown(*r.priming_exceedance * 100.0),
            "%");
     }
-    line("  2-year peak intensity (median annual max)", mmh(r.peak_intensity_m_per_s), "mm/h");
+    mmh("  2-year peak intensity (median annual max)", r.peak_intensity_m_per_s);
   };
   if (d.record_as_read) {
     record("record as read", *d.record_as_read);

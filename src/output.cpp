@@ -62,15 +62,105 @@ void check_output_size(const Scenario& sc, Instant start, Instant end) {
   if (rows * kTimeseriesRowBytes > kMaxTimeseriesBytes) refuse_output_size(sc, rows, true);
 }
 
+namespace {
+
+using TsColumn = OutputColumn<TimeseriesRow>;
+using TsRow = TimeseriesRow;
+
+// The interval's change in one account.
+template <double Accounts::*member>
+double change(const TsRow& r) {
+  return r.to.totals.*member - r.from.totals.*member;
+}
+
+template <double Accounts::*member>
+double change_L(const TsRow& r) {
+  return change<member>(r) * kLitresPerM3;
+}
+
+constexpr TsColumn kTimeseriesColumns[] = {
+    {"time", 0, nullptr, [](const TsRow& r) { return format_iso8601(r.to.time, r.zone); }},
+    {"rain_mm", 3,
+     [](const TsRow& r) { return change<&Accounts::rain_m3>(r) / r.roof_area_m2 * kMmPerM; }},
+    {"roof_runoff_L", 3, change_L<&Accounts::roof_runoff_m3>},
+    {"reservoir_level_mm", 3, [](const TsRow& r) { return r.to.level_m * kMmPerM; }},
+    {"release_state", 0, nullptr,
+     [](const TsRow& r) { return std::string(release_state_name(r.to.release)); }},
+    {"release_L", 3, change_L<&Accounts::release_m3>},
+    {"reservoir_overflow_L", 3, change_L<&Accounts::reservoir_overflow_m3>},
+    {"column_overflow_L", 3, change_L<&Accounts::column_overflow_m3>},
+    {"nozzle_L", 3, change_L<&Accounts::nozzle_m3>},
+    {"head_m", 4, [](const TsRow& r) { return r.to.head_m; }},
+    {"power_W", 4,
+     [](const TsRow& r) {
+       const double dt = static_cast<double>(r.to.time - r.from.time);
+       return dt > 0.0 ? change<&Accounts::electrical_J>(r) / dt : 0.0;
+     }},
+    {"energy_Wh", 5,
+     [](const TsRow& r) { return change<&Accounts::electrical_J>(r) / kJoulesPerWh; }},
+    {"battery_soc", 5, [](const TsRow& r) { return r.to.soc; }},
+    {"cum_energy_Wh", 4, [](const TsRow& r) { return r.to.totals.electrical_J / kJoulesPerWh; }},
+    {"cum_overflow_L", 3, [](const TsRow& r) { return r.to.totals.overflow_m3() * kLitresPerM3; }},
+};
+
+using EvColumn = OutputColumn<EventRow>;
+
+constexpr EvColumn kEventsColumns[] = {
+    {"kind", 0, nullptr,
+     [](const EventRow& r) { return std::string(episode_kind_name(r.episode.kind)); }},
+    {"start", 0, nullptr,
+     [](const EventRow& r) { return format_iso8601(floor_instant(r.episode.start_s), r.zone); }},
+    {"end", 0, nullptr,
+     [](const EventRow& r) { return format_iso8601(floor_instant(r.episode.end_s), r.zone); }},
+    {"duration_s", 1, [](const EventRow& r) { return r.episode.end_s - r.episode.start_s; }},
+    {"volume_L", 3, [](const EventRow& r) { return r.episode.volume_m3 * kLitresPerM3; }},
+    {"peak_flow_L_per_s", 4,
+     [](const EventRow& r) { return r.episode.peak_flow_m3_per_s * kLitresPerM3; }},
+    {"energy_Wh", 5,
+     [](const EventRow& r) {
+       return episode_makes_energy(r.episode.kind) ? r.episode.energy_J / kJoulesPerWh
+                                                   : detail::kNaN;
+     }},
+};
+
+template <class Row>
+void write_header(std::ostream& out, std::span<const OutputColumn<Row>> columns, UnitSystem units) {
+  std::string line;
+  for (const OutputColumn<Row>& c : columns) line += column_name(units, c.name) + ',';
+  line.back() = '\n';
+  out << line;
+}
+
+template <class Row>
+void write_row(std::ostream& out, std::span<const OutputColumn<Row>> columns, const Row& row,
+               UnitSystem units) {
+  std::string line;
+  for (const OutputColumn<Row>& c : columns) {
+    if (c.text != nullptr) {
+      line += c.text(row);
+    } else if (const double v = c.value(row); !std::isnan(v)) {
+      line += num(column_value(units, c.name, v), column_decimals(units, c.name, c.decimals));
+    }
+    line += ',';
+  }
+  line.back() = '\n';
+  out << line;
+}
+
+}  // namespace
+
+std::span<const OutputColumn<TimeseriesRow>> timeseries_columns() { return kTimeseriesColumns; }
+
+std::span<const OutputColumn<EventRow>> events_columns() { return kEventsColumns; }
+
 TimeseriesWriter::TimeseriesWriter(std::ostream& out, const Scenario& scenario, bool limited)
     : out_(out),
       scenario_(scenario),
       area_m2_(scenario.roof.area_m2),
       zone_(scenario.site.zone),
+      units_(scenario.site.units),
       limited_(limited) {
-  out_ << "time,rain_mm,roof_runoff_L,reservoir_level_mm,release_state,release_L,"
-          "reservoir_overflow_L,column_overflow_L,nozzle_L,head_m,power_W,energy_Wh,battery_soc,"
-          "cum_energy_Wh,cum_overflow_L\n";
+  write_header(out_, timeseries_columns(), units_);
 }
 
 void TimeseriesWriter::on_start(const Sample& s) { last_ = s; }
@@ -80,34 +170,17 @@ void TimeseriesWriter::on_sample(const Sample& s) {
   if (limited_ && ++rows_ * kTimeseriesRowBytes > kMaxTimeseriesBytes) {
     refuse_output_size(scenario_, rows_, false);
   }
-  const Accounts& a = s.totals;
-  const Accounts& b = last_.totals;
-  const double dt = static_cast<double>(s.time - last_.time);
-  const double energy_J = a.electrical_J - b.electrical_J;
-  out_ << format_iso8601(s.time, zone_) << ','
-       << num((a.rain_m3 - b.rain_m3) / area_m2_ * kMmPerM, 3) << ','
-       << num((a.roof_runoff_m3 - b.roof_runoff_m3) * kLitresPerM3, 3) << ','
-       << num(s.level_m * kMmPerM, 3) << ',' << release_state_name(s.release) << ','
-       << num((a.release_m3 - b.release_m3) * kLitresPerM3, 3) << ','
-       << num((a.reservoir_overflow_m3 - b.reservoir_overflow_m3) * kLitresPerM3, 3) << ','
-       << num((a.column_overflow_m3 - b.column_overflow_m3) * kLitresPerM3, 3) << ','
-       << num((a.nozzle_m3 - b.nozzle_m3) * kLitresPerM3, 3) << ',' << num(s.head_m, 4) << ','
-       << num(dt > 0.0 ? energy_J / dt : 0.0, 4) << ',' << num(energy_J / kJoulesPerWh, 5) << ','
-       << num(s.soc, 5) << ',' << num(a.electrical_J / kJoulesPerWh, 4) << ','
-       << num(a.overflow_m3() * kLitresPerM3, 3) << '\n';
+  write_row(out_, timeseries_columns(), TimeseriesRow{last_, s, area_m2_, zone_}, units_);
   last_ = s;
 }
 
 EventsWriter::EventsWriter(std::ostream& out, const Scenario& scenario)
-    : out_(out), zone_(scenario.site.zone) {
-  out_ << "kind,start,end,duration_s,volume_L,peak_flow_L_per_s,energy_Wh\n";
+    : out_(out), zone_(scenario.site.zone), units_(scenario.site.units) {
+  write_header(out_, events_columns(), units_);
 }
 
 void EventsWriter::on_episode(const Episode& e) {
-  out_ << episode_kind_name(e.kind) << ',' << format_iso8601(floor_instant(e.start_s), zone_) << ','
-       << format_iso8601(floor_instant(e.end_s), zone_) << ',' << num(e.end_s - e.start_s, 1) << ','
-       << num(e.volume_m3 * kLitresPerM3, 3) << ',' << num(e.peak_flow_m3_per_s * kLitresPerM3, 4)
-       << ',' << (episode_makes_energy(e.kind) ? num(e.energy_J / kJoulesPerWh, 5) : "") << '\n';
+  write_row(out_, events_columns(), EventRow{e, zone_}, units_);
 }
 
 SummaryBuilder::SummaryBuilder(const Scenario& scenario) : scenario_(scenario) {}
@@ -392,20 +465,27 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
     out << "  " << std::left << std::setw(34) << label << std::right << std::setw(14) << value
         << "  " << unit << '\n';
   };
-  const auto L = [](double m3) { return shown(m3 * kLitresPerM3); };
+  // A quantity given in SI (`unit` as in a column name: L, mm_per_h), shown in the scenario's
+  // units.
+  const UnitSystem units = sc.site.units;
+  const auto qty = [&](const std::string& label, double in_si, std::string_view si_unit) {
+    const InUnits v = in_units(units, in_si, si_unit);
+    row(label, shown(v.value), unit_label(v.unit));
+  };
+  const auto L = [&](const std::string& label, double m3) { qty(label, m3 * kLitresPerM3, "L"); };
   out << sc.site.name << ": " << format_iso8601(r.start, off) << " to "
       << format_iso8601(r.end, off) << '\n';
   out << " water\n";
-  row("rain on the roof", L(a.rain_m3), "L");
-  row("roof losses", L(a.roof_loss_m3), "L");
-  row("roof runoff", L(a.roof_runoff_m3), "L");
-  row("first flush diverted", L(a.first_flush_m3), "L");
-  row("reservoir overflow", L(a.reservoir_overflow_m3), "L");
-  if (sc.head_column) row("head column overflow", L(a.column_overflow_m3), "L");
-  row("through the nozzle", L(a.nozzle_m3), "L");
-  row("  of which dribble", L(a.dribble_m3), "L");
-  row("evaporated", L(a.evaporation_m3), "L");
-  row("storage change", L(r.final.water_m3() - r.initial.water_m3()), "L");
+  L("rain on the roof", a.rain_m3);
+  L("roof losses", a.roof_loss_m3);
+  L("roof runoff", a.roof_runoff_m3);
+  L("first flush diverted", a.first_flush_m3);
+  L("reservoir overflow", a.reservoir_overflow_m3);
+  if (sc.head_column) L("head column overflow", a.column_overflow_m3);
+  L("through the nozzle", a.nozzle_m3);
+  L("  of which dribble", a.dribble_m3);
+  L("evaporated", a.evaporation_m3);
+  L("storage change", r.final.water_m3() - r.initial.water_m3());
   row("balance error (relative)", shown(r.balance_relative_error), "");
   // Every share is of roof runoff, as on the report page.
   const double runoff = a.roof_runoff_m3 > 0.0 ? a.roof_runoff_m3 : 1.0;
@@ -430,11 +510,11 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   row("overflow episodes", std::to_string(r.overflow_events), "");
   row("overflow time", shown(r.overflow_s / kSecondsPerHour), "h");
   row("days with overflow", std::to_string(summary.overflow_days()), "");
-  row("largest overflow episode", L(summary.largest_overflow_m3()), "L");
-  row("wettest interval without overflow",
-      shown(wettest_dry_intensity_m_per_s(rain, r.start, r.end, summary.overflows()) *
-            kSecondsPerHour * kMmPerM),
-      "mm/h");
+  L("largest overflow episode", summary.largest_overflow_m3());
+  qty("wettest interval without overflow",
+      wettest_dry_intensity_m_per_s(rain, r.start, r.end, summary.overflows()) * kSecondsPerHour *
+          kMmPerM,
+      "mm_per_h");
   out << " standing water (above the drained level, release not running)\n";
   row("longest spell", shown(r.standing_longest_s / kSecondsPerDay), "days");
   row("spells over 7 days", std::to_string(r.standing_spells_over_week), "");
@@ -453,22 +533,38 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
     out << "  " << std::string(34, ' ') << "      this run    median      P10 to P90\n";
     for (const RealizationColumn& c : kRealizationColumns) {
       const Spread& x = z.*(c.spread);
+      const auto in = [&](double v) { return shown(column_value(units, c.key, v)); };
       out << "  " << std::left << std::setw(34) << c.label << std::right << std::setw(14)
-          << shown(own.*(c.value)) << std::setw(10) << shown(x.p50) << std::setw(10) << shown(x.p10)
-          << " to " << std::left << std::setw(9) << shown(x.p90) << std::right << c.unit << '\n';
+          << in(own.*(c.value)) << std::setw(10) << in(x.p50) << std::setw(10) << in(x.p10)
+          << " to " << std::left << std::setw(9) << in(x.p90) << std::right
+          << unit_label(in_units(units, 0.0, c.unit).unit) << '\n';
     }
     out << "  (P10, median and P90 of the " << z.n << " runs: " << kPercentileDefinition << ")\n";
   }
   const auto periods = [&](const char* title, const std::vector<PeriodSummary>& list) {
     out << " by " << title << "\n";
-    out << "  " << std::left << std::setw(10) << title << std::right
-        << "  rain mm  energy Wh   cycles  overflows   overflow L   dribble L\n";
+    const auto in = [&](double in_si, std::string_view si_unit) {
+      return shown(in_units(units, in_si, si_unit).value);
+    };
+    const std::string rain = "rain " + unit_label(in_units(units, 0.0, "mm").unit);
+    const std::string litres = unit_label(in_units(units, 0.0, "L").unit);
+    const std::string overflow = "overflow " + litres;
+    const std::string dribble = "dribble " + litres;
+    // At least two spaces before a heading.
+    const auto width = [](const std::string& heading, std::size_t least) {
+      return static_cast<int>(std::max(least, heading.size() + 2));
+    };
+    const int w_overflow = width(overflow, 13);
+    const int w_dribble = width(dribble, 12);
+    out << "  " << std::left << std::setw(10) << title << std::right << std::setw(9) << rain
+        << "  energy Wh   cycles  overflows" << std::setw(w_overflow) << overflow
+        << std::setw(w_dribble) << dribble << '\n';
     for (const PeriodSummary& m : list) {
       out << "  " << std::left << std::setw(10) << m.label << std::right << std::setw(9)
-          << shown(m.rain_depth_m * kMmPerM) << std::setw(11)
+          << in(m.rain_depth_m * kMmPerM, "mm") << std::setw(11)
           << shown(m.electrical_J / kJoulesPerWh) << std::setw(9) << m.cycles << std::setw(11)
-          << m.overflow_events << std::setw(13) << shown(m.overflow_m3 * kLitresPerM3)
-          << std::setw(12) << shown(m.dribble_m3 * kLitresPerM3) << '\n';
+          << m.overflow_events << std::setw(w_overflow) << in(m.overflow_m3 * kLitresPerM3, "L")
+          << std::setw(w_dribble) << in(m.dribble_m3 * kLitresPerM3, "L") << '\n';
     }
   };
   // A long run's months would fill the screen: they stay in summary.json.

@@ -15,10 +15,10 @@ namespace gutterwatt {
 
 namespace fs = std::filesystem;
 
-std::string render_report(const fs::path& dir) {
+std::string render_report(const fs::path& dir, std::optional<UnitSystem> units) {
   std::error_code ec;
-  if (fs::exists(dir / "timeseries.csv", ec)) return detail::render_run(dir);
-  if (fs::exists(dir / "sweep.csv", ec)) return detail::render_sweep(dir);
+  if (fs::exists(dir / "timeseries.csv", ec)) return detail::render_run(dir, units);
+  if (fs::exists(dir / "sweep.csv", ec)) return detail::render_sweep(dir, units);
   if (!fs::exists(dir, ec)) throw InputError(dir.string(), 0, "", "no such directory");
   if (!fs::is_directory(dir, ec)) {
     throw InputError(dir.string(), 0, "", "is a file; give the output folder of a run or sweep");
@@ -27,11 +27,11 @@ std::string render_report(const fs::path& dir) {
                    "holds neither timeseries.csv (a run) nor sweep.csv (a sweep)");
 }
 
-fs::path write_report(const fs::path& dir) {
+fs::path write_report(const fs::path& dir, std::optional<UnitSystem> units) {
   std::string page;
   {
     const FolderReadLock reading(dir);
-    page = render_report(dir);
+    page = render_report(dir, units);
   }
   OutputFolder folder(dir, "");
   folder.open("report.html") << page;

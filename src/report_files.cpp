@@ -16,6 +16,7 @@
 #include "gutterwatt/accounts.hpp"
 #include "gutterwatt/calendar.hpp"
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/output.hpp"
 #include "gutterwatt/sweep.hpp"
 
 namespace gutterwatt::detail {
@@ -46,6 +47,17 @@ std::size_t Csv::require(std::string_view name) const {
   const int i = find(name);
   if (i < 0) throw InputError(file, 1, std::string(name), "missing column");
   return static_cast<std::size_t>(i);
+}
+
+std::pair<std::size_t, UnitSystem> Csv::require_either(std::string_view si_name) const {
+  for (const UnitSystem units : {UnitSystem::si, UnitSystem::us}) {
+    const int i = find(column_name(units, si_name));
+    if (i >= 0) return {static_cast<std::size_t>(i), units};
+  }
+  const std::string us = column_name(UnitSystem::us, si_name);
+  throw InputError(
+      file, 1, std::string(si_name),
+      us == si_name ? "missing column" : "missing column (nor its US twin " + us + ")");
 }
 
 // RFC 4180 style: comma separated, fields may be quoted with "" for a quote inside. A UTF-8
@@ -125,13 +137,24 @@ std::optional<std::int64_t> parse_stamp(std::string_view s) {
 
 namespace {
 
-std::int64_t parse_time_cell(const std::string& cell, const std::string& file, int line,
-                             const std::string& field) {
-  const auto t = parse_stamp(cell);
-  if (!t) {
+/// A stamp as the page labels it (wall clock) and as it orders (UTC, by its offset).
+struct Stamp {
+  std::int64_t wall;
+  std::int64_t utc;
+};
+
+Stamp parse_stamp_cell(const std::string& cell, const std::string& file, int line,
+                       const std::string& field) {
+  const std::optional<ParsedTime> p = parse_iso8601(cell, 0);
+  if (!p) {
     throw InputError(file, line, field, "not a time: \"" + cell + "\" (expected YYYY-MM-DDThh:mm)");
   }
-  return *t;
+  return {p->instant + p->offset_s, p->instant};
+}
+
+std::int64_t parse_time_cell(const std::string& cell, const std::string& file, int line,
+                             const std::string& field) {
+  return parse_stamp_cell(cell, file, line, field).wall;
 }
 
 ReleaseState parse_state(const std::string& cell, const std::string& file, int line) {
@@ -149,48 +172,66 @@ ReleaseState parse_state(const std::string& cell, const std::string& file, int l
 Timeseries read_timeseries(const fs::path& path) {
   const std::string file = path.string();
   const Csv csv = parse_csv(read_text(path), file);
-  const std::size_t c_time = csv.require("time");
-  const std::size_t c_state = csv.require("release_state");
   Timeseries ts;
+  // The columns the page draws; every other column of the table must be there too (the header
+  // is a contract) and hold numbers.
+  const std::pair<std::string_view, std::vector<double>*> drawn[] = {
+      {"rain_mm", &ts.rain_mm},
+      {"reservoir_level_mm", &ts.level_mm},
+      {"release_L", &ts.release_L},
+      {"reservoir_overflow_L", &ts.reservoir_overflow_L},
+      {"column_overflow_L", &ts.column_overflow_L},
+      {"nozzle_L", &ts.nozzle_L},
+      {"power_W", &ts.power_W},
+      {"energy_Wh", &ts.energy_Wh},
+      {"battery_soc", &ts.battery_soc},
+      {"cum_energy_Wh", &ts.cum_energy_Wh},
+      {"cum_overflow_L", &ts.cum_overflow_L}};
   struct Column {
-    const char* name;
+    std::string_view name;
+    std::string field;  ///< the name in the file
+    std::size_t index;
+    UnitSystem units;
     std::vector<double>* values;
   };
-  const std::array<Column, 11> numbers{{{"rain_mm", &ts.rain_mm},
-                                        {"reservoir_level_mm", &ts.level_mm},
-                                        {"release_L", &ts.release_L},
-                                        {"reservoir_overflow_L", &ts.reservoir_overflow_L},
-                                        {"column_overflow_L", &ts.column_overflow_L},
-                                        {"nozzle_L", &ts.nozzle_L},
-                                        {"power_W", &ts.power_W},
-                                        {"energy_Wh", &ts.energy_Wh},
-                                        {"battery_soc", &ts.battery_soc},
-                                        {"cum_energy_Wh", &ts.cum_energy_Wh},
-                                        {"cum_overflow_L", &ts.cum_overflow_L}}};
-  // Columns the page does not draw must still be there: the header is a contract.
-  for (const char* name : {"roof_runoff_L", "head_m"}) csv.require(name);
-  std::array<std::size_t, 11> index{};
-  for (std::size_t k = 0; k < numbers.size(); ++k) index[k] = csv.require(numbers[k].name);
+  std::vector<Column> numbers;
+  std::vector<double> unused;
+  std::vector<std::int64_t> utc;  // of each row
+  const auto c_time = csv.require_either("time").first;
+  const auto c_state = csv.require_either("release_state").first;
+  for (const auto& c : timeseries_columns()) {
+    const auto [index, units] = csv.require_either(c.name);
+    if (c.value == nullptr) continue;
+    if (c.name == "rain_mm") ts.units = units;
+    std::vector<double>* values = &unused;
+    for (const auto& [name, vector] : drawn) {
+      if (name == c.name) values = vector;
+    }
+    numbers.push_back({c.name, column_name(units, c.name), index, units, values});
+  }
   if (csv.rows.empty()) throw InputError(file, 0, "", "no data rows");
   for (std::size_t r = 0; r < csv.rows.size(); ++r) {
     const auto& row = csv.rows[r];
     const int line = csv.lines[r];
-    const std::int64_t t = parse_time_cell(row[c_time], file, line, "time");
-    if (!ts.t.empty() && t <= ts.t.back()) {
+    // Rows follow each other in time (UTC): a local clock repeats an hour in autumn.
+    const Stamp t = parse_stamp_cell(row[c_time], file, line, "time");
+    if (!utc.empty() && t.utc <= utc.back()) {
       throw InputError(file, line, "time", "not after the previous row (\"" + row[c_time] + "\")");
     }
-    ts.t.push_back(t);
+    utc.push_back(t.utc);
+    ts.t.push_back(t.wall);
     ts.state.push_back(parse_state(row[c_state], file, line));
-    for (std::size_t k = 0; k < numbers.size(); ++k) {
-      numbers[k].values->push_back(parse_number(row[index[k]], file, line, numbers[k].name));
+    for (const Column& c : numbers) {
+      const double v = parse_number(row[c.index], file, line, c.field);
+      if (c.values != &unused) c.values->push_back(column_si_value(c.units, c.name, v));
     }
   }
   ts.dt_s.resize(ts.size());
   for (std::size_t i = 0; i < ts.size(); ++i) {
     if (i > 0) {
-      ts.dt_s[i] = static_cast<double>(ts.t[i] - ts.t[i - 1]);
+      ts.dt_s[i] = static_cast<double>(utc[i] - utc[i - 1]);
     } else {
-      ts.dt_s[i] = ts.size() > 1 ? static_cast<double>(ts.t[1] - ts.t[0]) : 3600.0;
+      ts.dt_s[i] = ts.size() > 1 ? static_cast<double>(utc[1] - utc[0]) : 3600.0;
     }
   }
   // A gap in the record (a skipped dry spell) would make the row after it look like one long
@@ -208,10 +249,16 @@ std::vector<Event> read_events(const fs::path& path) {
   const std::size_t c_kind = csv.require("kind");
   const std::size_t c_start = csv.require("start");
   const std::size_t c_end = csv.require("end");
-  const std::size_t c_duration = csv.require("duration_s");
-  const std::size_t c_volume = csv.require("volume_L");
-  const std::size_t c_peak = csv.require("peak_flow_L_per_s");
-  const std::size_t c_energy = csv.require("energy_Wh");
+  const auto [c_duration, u_duration] = csv.require_either("duration_s");
+  const auto [c_volume, u_volume] = csv.require_either("volume_L");
+  const auto [c_peak, u_peak] = csv.require_either("peak_flow_L_per_s");
+  const auto [c_energy, u_energy] = csv.require_either("energy_Wh");
+  // A number of column `si_name` found in `units`, in SI.
+  const auto number = [&](const std::vector<std::string>& row, int line, std::size_t index,
+                          UnitSystem units, std::string_view si_name) {
+    const double v = parse_number(row[index], file, line, column_name(units, si_name));
+    return column_si_value(units, si_name, v);
+  };
   std::vector<Event> events;
   for (std::size_t r = 0; r < csv.rows.size(); ++r) {
     const auto& row = csv.rows[r];
@@ -226,12 +273,12 @@ std::vector<Event> read_events(const fs::path& path) {
     }
     e.start = parse_time_cell(row[c_start], file, line, "start");
     e.end = parse_time_cell(row[c_end], file, line, "end");
-    e.duration_s = parse_number(row[c_duration], file, line, "duration_s");
-    e.volume_L = parse_number(row[c_volume], file, line, "volume_L");
-    e.peak_flow_L_per_s = parse_number(row[c_peak], file, line, "peak_flow_L_per_s");
+    e.duration_s = number(row, line, c_duration, u_duration, "duration_s");
+    e.volume_L = number(row, line, c_volume, u_volume, "volume_L");
+    e.peak_flow_L_per_s = number(row, line, c_peak, u_peak, "peak_flow_L_per_s");
     // An overflow makes no energy: its cell is empty (a number there, from an older run, is
     // energy made by a cycle at the same time, and is not the overflow's).
-    e.energy_Wh = episode_makes_energy(*kind) ? parse_number(row[c_energy], file, line, "energy_Wh")
+    e.energy_Wh = episode_makes_energy(*kind) ? number(row, line, c_energy, u_energy, "energy_Wh")
                                               : std::numeric_limits<double>::quiet_NaN();
     events.push_back(std::move(e));
   }
@@ -355,13 +402,14 @@ Summary read_summary(const fs::path& path) {
   return s;
 }
 
-Sweep read_sweep(const fs::path& dir) {
+Sweep read_sweep(const fs::path& dir, std::optional<UnitSystem> shown_in) {
   Sweep sw;
   const fs::path csv_path = dir / "sweep.csv";
   const std::string file = csv_path.string();
   sw.csv = parse_csv(read_text(csv_path), file);
   const std::size_t c_energy = sw.csv.require("energy_Wh");
-  sw.csv.require("overflow_L");
+  const UnitSystem written = sw.csv.require_either("overflow_L").second;
+  sw.units = shown_in.value_or(written);
   std::vector<std::string> vary;
   const fs::path json_path = dir / "sweep.json";
   std::error_code ec;
@@ -402,6 +450,29 @@ Sweep read_sweep(const fs::path& dir) {
       }
     }
   }
+  // The metric columns and the rank's spread, `si` their SI names, renamed and converted to the
+  // units shown.
+  std::vector<std::string> metrics = sweep_metric_names();
+  const std::size_t n_metrics = metrics.size();
+  const std::string rank_si = [&] {
+    for (const std::string& m : metrics) {
+      if (sw.rank == m || sw.rank == column_name(UnitSystem::us, m)) return m;
+    }
+    return sw.rank;
+  }();
+  metrics.push_back(rank_si + "_p10");
+  metrics.push_back(rank_si + "_p90");
+  const std::vector<std::string> written_header = sw.csv.header;
+  std::vector<std::string> metric_si(sw.csv.header.size());
+  for (std::size_t k = 0; k < metrics.size(); ++k) {
+    const std::string& si = k < n_metrics ? metrics[k] : rank_si;
+    const std::string suffix = k < n_metrics ? "" : metrics[k].substr(rank_si.size());
+    const int c = sw.csv.find(column_name(written, si) + suffix);
+    if (c < 0) continue;
+    metric_si[static_cast<std::size_t>(c)] = si;
+    sw.csv.header[static_cast<std::size_t>(c)] = column_name(sw.units, si) + suffix;
+  }
+  sw.rank = column_name(sw.units, rank_si);
   if (vary.empty()) {
     for (std::size_t c = 0; c < c_energy; ++c) sw.keys.push_back(c);
   } else {
@@ -410,15 +481,14 @@ Sweep read_sweep(const fs::path& dir) {
   if (sw.csv.rows.empty()) throw InputError(file, 0, "", "no data rows");
   const std::size_t ncol = sw.csv.header.size();
   // The metric columns the sweep writes; the page checks their values are numbers.
-  const std::vector<std::string> metrics = sweep_metric_names();
   sw.num.assign(sw.csv.rows.size(), std::vector<double>(ncol, kNaN));
   for (std::size_t r = 0; r < sw.csv.rows.size(); ++r) {
     for (std::size_t c = 0; c < ncol; ++c) {
       const std::string& cell = sw.csv.rows[r][c];
-      const bool metric =
-          std::find(metrics.begin(), metrics.end(), sw.csv.header[c]) != metrics.end();
-      if (metric && !cell.empty()) {
-        sw.num[r][c] = parse_number(cell, file, sw.csv.lines[r], sw.csv.header[c]);
+      const std::string& si = metric_si[c];
+      if (!si.empty() && !cell.empty()) {
+        const double v = parse_number(cell, file, sw.csv.lines[r], written_header[c]);
+        sw.num[r][c] = column_value(sw.units, si, column_si_value(written, si, v));
       } else if (const auto v = to_number(cell)) {
         sw.num[r][c] = *v;
       }

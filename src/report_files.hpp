@@ -10,9 +10,11 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <utility>
 #include <vector>
 
 #include "gutterwatt/release.hpp"
+#include "gutterwatt/units.hpp"
 
 namespace gutterwatt::detail {
 
@@ -30,6 +32,9 @@ struct Csv {
   int find(std::string_view name) const;
   /// The index of column `name`; InputError (line 1) when there is none.
   std::size_t require(std::string_view name) const;
+  /// The index of the column named `si_name` (`rain_mm`) in SI or its US twin (`rain_in`), and
+  /// the system it was found in; InputError (line 1) naming both when neither is there.
+  std::pair<std::size_t, UnitSystem> require_either(std::string_view si_name) const;
 };
 
 /// RFC 4180 style CSV: comma separated, fields may be quoted with "" for a quote inside; a UTF-8
@@ -45,9 +50,12 @@ double parse_number(const std::string& cell, const std::string& file, int line,
 /// UTC offset is accepted and left out, so every label on the page reads as the file does.
 std::optional<std::int64_t> parse_stamp(std::string_view s);
 
-/// timeseries.csv, one entry a row; `t` is the end of each row's interval, `dt_s` its length
-/// (never longer than the usual step, so a skipped dry spell does not draw as one long interval).
+/// timeseries.csv, one entry a row, in SI whichever units the file was written in; `t` is the end
+/// of each row's interval on the wall clock of its stamp (so it repeats where a local clock turns
+/// back), `dt_s` its length in real time (never longer than the usual step, so a skipped dry spell
+/// does not draw as one long interval).
 struct Timeseries {
+  UnitSystem units = UnitSystem::si;  ///< the units the file was written in
   std::vector<std::int64_t> t;
   std::vector<double> dt_s;
   std::vector<double> rain_mm, level_mm, release_L, reservoir_overflow_L, column_overflow_L,
@@ -56,10 +64,12 @@ struct Timeseries {
   std::size_t size() const { return t.size(); }
 };
 
-/// Reads timeseries.csv; at least one row, times strictly increasing.
+/// Reads timeseries.csv written in either system of units: every column of timeseries_columns()
+/// (output.hpp) by its SI name or its US twin; at least one row, times strictly increasing in
+/// UTC (by each stamp's offset).
 Timeseries read_timeseries(const std::filesystem::path& path);
 
-/// One row of events.csv; energy_Wh is NaN for a kind that makes none (an overflow).
+/// One row of events.csv, in SI; energy_Wh is NaN for a kind that makes none (an overflow).
 struct Event {
   std::string kind;
   std::int64_t start = 0;
@@ -67,7 +77,7 @@ struct Event {
   double duration_s = 0.0, volume_L = 0.0, peak_flow_L_per_s = 0.0, energy_Wh = 0.0;
 };
 
-/// Reads events.csv (possibly without rows).
+/// Reads events.csv (possibly without rows) written in either system of units.
 std::vector<Event> read_events(const std::filesystem::path& path);
 
 /// One entry of summary.json's `months`.
@@ -97,8 +107,10 @@ struct Summary {
 /// Reads summary.json; InputError naming a missing key or one of the wrong type.
 Summary read_summary(const std::filesystem::path& path);
 
-/// sweep.csv (and sweep.json when present): the first `keys` columns are the varied keys.
+/// sweep.csv (and sweep.json when present): the first `keys` columns are the varied keys. The
+/// metric columns (and the rank's spread) are named and valued in `units`.
 struct Sweep {
+  UnitSystem units = UnitSystem::si;
   std::string scenario;
   std::string rank = "energy_Wh";
   std::string site;   ///< from sweep.json, when given
@@ -110,7 +122,8 @@ struct Sweep {
   std::vector<std::vector<double>> num;  ///< numeric value of every cell, NaN for text
 };
 
-/// Reads `dir`/sweep.csv and, when there is one, `dir`/sweep.json.
-Sweep read_sweep(const std::filesystem::path& dir);
+/// Reads `dir`/sweep.csv and, when there is one, `dir`/sweep.json, written in either system of
+/// units, and gives its metrics in `units` (default: the units it was written in).
+Sweep read_sweep(const std::filesystem::path& dir, std::optional<UnitSystem> units = {});
 
 }  // namespace gutterwatt::detail

@@ -21,6 +21,23 @@ namespace {
 
 namespace fs = std::filesystem;
 
+/// An SI quantity (`si_unit` as in column names: L, mm, L_per_s) on the page, in `units`.
+std::string quantity(UnitSystem units, double v, std::string_view si_unit) {
+  const InUnits q = in_units(units, v, si_unit);
+  return with_unit(q.value, unit_label(q.unit).c_str());
+}
+
+/// The label of `si_unit` in `units`: `mm` or `in`.
+std::string unit_in(UnitSystem units, std::string_view si_unit) {
+  return unit_label(in_units(units, 0.0, si_unit).unit);
+}
+
+/// SI values in `si_unit`, in `units`.
+std::vector<double> values_in(UnitSystem units, std::vector<double> v, std::string_view si_unit) {
+  for (double& x : v) x = in_units(units, x, si_unit).value;
+  return v;
+}
+
 /// Rows [i0, i1) of the run shown over [t_lo, t_hi].
 struct Window {
   std::size_t i0, i1;
@@ -144,7 +161,7 @@ MonthLabel month_label_of(const std::string& text) {
   return {text, ""};
 }
 
-std::string monthly_svg(const std::vector<MonthRow>& months) {
+std::string monthly_svg(const std::vector<MonthRow>& months, UnitSystem units) {
   const double height = 282.0;
   const double top = 40.0;
   const double bottom = 222.0;
@@ -153,17 +170,21 @@ std::string monthly_svg(const std::vector<MonthRow>& months) {
     const char* colour;
     double left, right;
     double MonthRow::*field;
+    std::string_view unit;  ///< of `field`, in SI
   };
   const std::array<Half, 2> halves{
-      {{"Electrical energy, Wh per month", kVermillion, 70.0, 520.0, &MonthRow::energy_Wh},
-       {"Overflow (reservoir rim and head column), L per month", kBlue, 620.0, 1070.0,
-        &MonthRow::overflow_L}}};
+      {{"Electrical energy, Wh per month", kVermillion, 70.0, 520.0, &MonthRow::energy_Wh, "Wh"},
+       {"Overflow (reservoir rim and head column), " + unit_in(units, "L") + " per month", kBlue,
+        620.0, 1070.0, &MonthRow::overflow_L, "L"}}};
   std::string out;
   svg_open(out, "chart-monthly", height, "Monthly electrical energy and overflow");
   const double n = static_cast<double>(months.size());
   for (const Half& h : halves) {
     double max = 0.0;
-    for (const auto& m : months) max = std::max(max, m.*(h.field));
+    const auto value = [&](const MonthRow& m) {
+      return in_units(units, m.*(h.field), h.unit).value;
+    };
+    for (const auto& m : months) max = std::max(max, value(m));
     const Ticks yt = nice_ticks(0.0, axis_top(max), 4);
     const Linear ys{0.0, yt.top, bottom, top};
     svg_text(out, h.left - 62.0, 18.0, escape(h.title), "start", "ptitle");
@@ -174,7 +195,7 @@ std::string monthly_svg(const std::vector<MonthRow>& months) {
     const double slot = (h.right - h.left) / std::max(n, 1.0);
     const auto every = static_cast<std::size_t>(std::max(1.0, std::ceil(30.0 / slot)));
     for (std::size_t i = 0; i < months.size(); ++i) {
-      const double v = months[i].*(h.field);
+      const double v = value(months[i]);
       const double x0 = h.left + slot * static_cast<double>(i);
       svg_rect(out, x0 + slot * 0.17, ys(v), slot * 0.66, bottom - ys(v), h.colour);
       if (slot >= 34.0) {
@@ -235,17 +256,18 @@ std::string thinning_note(double bucket_s) {
 /// are marked along the top of the level panel.
 void add_rain_and_level(TimeFigure& fig, const Timeseries& ts, const Summary& s,
                         const std::vector<Event>& events, const Window& w, const std::string& step,
-                        double rain_h, double level_h) {
+                        double rain_h, double level_h, UnitSystem units) {
   double bucket_s = 0.0;
-  BarSet rain = bars_of(ts, ts.rain_mm, w, kSkyBlue, &bucket_s);
-  std::string title = "Rain, mm per " + step + " interval";
+  const std::string depth = unit_in(units, "mm");
+  BarSet rain = bars_of(ts, values_in(units, ts.rain_mm, "mm"), w, kSkyBlue, &bucket_s);
+  std::string title = "Rain, " + depth + " per " + step + " interval";
   if (bucket_s > 0.0) title += " (" + thinning_note(bucket_s) + ")";
   Panel& r = fig.add(title, rain_h);
   r.bars.push_back(std::move(rain));
-  Panel& l = fig.add("Reservoir level, mm above the floor", level_h);
+  Panel& l = fig.add("Reservoir level, " + depth + " above the floor", level_h);
   bool running = false, open = false, dribble = false;
   l.bands = bands_of(ts, w, &running, &open, &dribble);
-  l.lines.push_back(line_of(ts, ts.level_mm, w, kBlue, 1.6));
+  l.lines.push_back(line_of(ts, values_in(units, ts.level_mm, "mm"), w, kBlue, 1.6));
   l.legend.push_back({LegendEntry::kLine, kBlue, "", "level"});
   if (running || open) {
     std::string label = running && open ? "running / open"
@@ -262,16 +284,16 @@ void add_rain_and_level(TimeFigure& fig, const Timeseries& ts, const Summary& s,
   }
   l.mark_colour = kGreen;
   if (!l.marks.empty()) l.legend.push_back({LegendEntry::kMark, kGreen, "", "cycle start"});
-  if (s.rim_mm)
-    l.refs.push_back({*s.rim_mm, kVermillion, "", "rim " + pretty(*s.rim_mm, Medium::svg) + " mm"});
-  if (s.trigger_mm) {
-    l.refs.push_back(
-        {*s.trigger_mm, kGreen, "7 4", "trigger " + pretty(*s.trigger_mm, Medium::svg) + " mm"});
-  }
-  if (s.break_mm) {
-    l.refs.push_back(
-        {*s.break_mm, kOrange, "3 3", "break " + pretty(*s.break_mm, Medium::svg) + " mm"});
-  }
+  // A set-point line at `mm` above the floor, drawn and labelled in the page's units.
+  const auto level = [&](std::optional<double> mm, const char* colour, const char* dash,
+                         const std::string& name) {
+    if (!mm) return;
+    const double v = in_units(units, *mm, "mm").value;
+    l.refs.push_back({v, colour, dash, name + " " + pretty(v, Medium::svg) + " " + depth});
+  };
+  level(s.rim_mm, kVermillion, "", "rim");
+  level(s.trigger_mm, kGreen, "7 4", "trigger");
+  level(s.break_mm, kOrange, "3 3", "break");
 }
 
 struct EventStats {
@@ -289,6 +311,7 @@ struct Run {
   bool thinned;      ///< more rows than display columns
   std::string folder;
   std::string title;  ///< the scenario and the period it covers
+  UnitSystem units;   ///< of the page
 };
 
 std::string title_section(const Run& run) {
@@ -313,12 +336,12 @@ std::string headline_section(const Run& run) {
       "<section class=\"first\" id=\"headline\">\n<h2>Headline</h2>\n<p class=\"lead\">The "
       "system delivered <strong>" +
       with_unit(s.electrical_Wh, "Wh") + "</strong> of electrical energy in <strong>" +
-      pretty(s.cycles) + "</strong> release cycles. Of " + with_unit(s.rain_L, "L") +
-      " of rain on the roof, " + with_unit(s.roof_runoff_L, "L") +
-      " ran off it. Of that roof runoff, " + with_unit(s.through_nozzle_L, "L") + " (" +
-      share(s.through_nozzle_L) + ") passed the nozzle, " + with_unit(overflow_L, "L") + " (" +
-      share(overflow_L) + ") overflowed and " + with_unit(s.dribble_L, "L") + " (" +
-      share(s.dribble_L) + ") dribbled through at low head.</p>\n";
+      pretty(s.cycles) + "</strong> release cycles. Of " + quantity(run.units, s.rain_L, "L") +
+      " of rain on the roof, " + quantity(run.units, s.roof_runoff_L, "L") +
+      " ran off it. Of that roof runoff, " + quantity(run.units, s.through_nozzle_L, "L") + " (" +
+      share(s.through_nozzle_L) + ") passed the nozzle, " + quantity(run.units, overflow_L, "L") +
+      " (" + share(overflow_L) + ") overflowed and " + quantity(run.units, s.dribble_L, "L") +
+      " (" + share(s.dribble_L) + ") dribbled through at low head.</p>\n";
   body += "<div class=\"tables\">\n<table>\n<caption>Energy</caption>\n<tbody>\n";
   body += row_html("Electrical energy generated", with_unit(s.electrical_Wh, "Wh"));
   body += row_html("stored in the battery", with_unit(s.stored_Wh, "Wh"), "", true);
@@ -345,7 +368,7 @@ std::string headline_section(const Run& run) {
   body += row_html("Release cycles", pretty(s.cycles));
   body += row_html("Overflow episodes", pretty(s.overflow_events));
   body += row_html("hours overflowing", with_unit(s.overflow_hours, "h"), "", true);
-  if (s.evaporation_L) body += row_html("Evaporated", with_unit(*s.evaporation_L, "L"));
+  if (s.evaporation_L) body += row_html("Evaporated", quantity(run.units, *s.evaporation_L, "L"));
   if (s.standing_days_total) {
     body +=
         row_html("Water standing (release not running)", with_unit(*s.standing_days_total, "days"));
@@ -357,30 +380,34 @@ std::string headline_section(const Run& run) {
     body += row_html("spells over 7 days (mosquitoes breed in about 7)",
                      pretty(*s.standing_spells_over_7_days), "", true);
   }
-  if (s.trigger_mm) body += row_html("Trigger level", with_unit(*s.trigger_mm, "mm"));
-  if (s.break_mm) body += row_html("Break level", with_unit(*s.break_mm, "mm"));
-  if (s.rim_mm) body += row_html("Rim level", with_unit(*s.rim_mm, "mm"));
+  if (s.trigger_mm) body += row_html("Trigger level", quantity(run.units, *s.trigger_mm, "mm"));
+  if (s.break_mm) body += row_html("Break level", quantity(run.units, *s.break_mm, "mm"));
+  if (s.rim_mm) body += row_html("Rim level", quantity(run.units, *s.rim_mm, "mm"));
   body +=
       "</tbody>\n</table>\n<table>\n<caption>Water</caption>\n<thead><tr><th></th><th "
       "class=\"n\">volume</th><th class=\"n\">share of roof runoff</th></tr></thead>\n"
       "<tbody>\n";
-  body += row_html("Rain on the roof", with_unit(s.rain_L, "L"));
-  body += row_html("roof loss (wetting, drying)", with_unit(s.roof_loss_L, "L"), "", true);
-  body += row_html("Roof runoff", with_unit(s.roof_runoff_L, "L"), share(s.roof_runoff_L));
-  body += row_html("first flush diverted", with_unit(s.first_flush_L, "L"), share(s.first_flush_L),
+  body += row_html("Rain on the roof", quantity(run.units, s.rain_L, "L"));
+  body +=
+      row_html("roof loss (wetting, drying)", quantity(run.units, s.roof_loss_L, "L"), "", true);
+  body +=
+      row_html("Roof runoff", quantity(run.units, s.roof_runoff_L, "L"), share(s.roof_runoff_L));
+  body += row_html("first flush diverted", quantity(run.units, s.first_flush_L, "L"),
+                   share(s.first_flush_L), true);
+  body += row_html("reached the reservoir", quantity(run.units, reached_L, "L"), share(reached_L),
                    true);
-  body += row_html("reached the reservoir", with_unit(reached_L, "L"), share(reached_L), true);
-  body +=
-      row_html("Through the nozzle", with_unit(s.through_nozzle_L, "L"), share(s.through_nozzle_L));
-  body += row_html("of which dribble (release not running)", with_unit(s.dribble_L, "L"),
+  body += row_html("Through the nozzle", quantity(run.units, s.through_nozzle_L, "L"),
+                   share(s.through_nozzle_L));
+  body += row_html("of which dribble (release not running)", quantity(run.units, s.dribble_L, "L"),
                    share(s.dribble_L), true);
-  body += row_html("Overflow at the reservoir rim", with_unit(s.reservoir_overflow_L, "L"),
-                   share(s.reservoir_overflow_L));
-  body += row_html("Overflow at the head column", with_unit(s.column_overflow_L, "L"),
+  body += row_html("Overflow at the reservoir rim",
+                   quantity(run.units, s.reservoir_overflow_L, "L"), share(s.reservoir_overflow_L));
+  body += row_html("Overflow at the head column", quantity(run.units, s.column_overflow_L, "L"),
                    share(s.column_overflow_L));
-  body +=
-      row_html("Change in storage", with_unit(s.storage_change_L, "L"), share(s.storage_change_L));
-  body += row_html("Balance error", with_unit(s.balance_error_L, "L"), share(s.balance_error_L));
+  body += row_html("Change in storage", quantity(run.units, s.storage_change_L, "L"),
+                   share(s.storage_change_L));
+  body += row_html("Balance error", quantity(run.units, s.balance_error_L, "L"),
+                   share(s.balance_error_L));
   body += "</tbody>\n</table>\n</div>\n</section>\n";
   return body;
 }
@@ -394,7 +421,7 @@ std::string season_section(const Run& run, std::vector<std::string>& charts) {
   const bool thinned = run.thinned;
   std::string body;
   TimeFigure fig(all.t_lo, all.t_hi);
-  add_rain_and_level(fig, ts, s, events, all, step, 110.0, 200.0);
+  add_rain_and_level(fig, ts, s, events, all, step, 110.0, 200.0, run.units);
   charts.push_back("chart-rain-level");
   body += "<section id=\"season\">\n<h2>Rain, reservoir level and release state</h2>\n";
   body +=
@@ -447,15 +474,18 @@ std::string months_section(const Run& run, std::vector<std::string>& charts) {
     body += "<p class=\"note\">summary.json lists no months.</p>\n";
   } else {
     charts.push_back("chart-monthly");
-    body += figure(monthly_svg(s.months), "Electrical energy and overflow in each calendar month.");
-    body +=
-        "<table>\n<thead><tr><th>month</th><th class=\"n\">rain, mm</th><th class=\"n\">"
-        "energy, Wh</th><th class=\"n\">overflow, L</th><th class=\"n\">cycles</th></tr>"
-        "</thead>\n<tbody>\n";
+    const UnitSystem units = run.units;
+    body += figure(monthly_svg(s.months, units),
+                   "Electrical energy and overflow in each calendar month.");
+    body += "<table>\n<thead><tr><th>month</th><th class=\"n\">rain, " + unit_in(units, "mm") +
+            "</th><th class=\"n\">energy, Wh</th><th class=\"n\">overflow, " + unit_in(units, "L") +
+            "</th><th class=\"n\">cycles</th></tr></thead>\n<tbody>\n";
     for (const auto& m : s.months) {
-      body += "<tr><td>" + escape(m.month) + "</td><td class=\"n\">" + pretty(m.rain_mm) +
-              "</td><td class=\"n\">" + pretty(m.energy_Wh) + "</td><td class=\"n\">" +
-              pretty(m.overflow_L) + "</td><td class=\"n\">" + pretty(m.cycles) + "</td></tr>\n";
+      body += "<tr><td>" + escape(m.month) + "</td><td class=\"n\">" +
+              pretty(in_units(units, m.rain_mm, "mm").value) + "</td><td class=\"n\">" +
+              pretty(m.energy_Wh) + "</td><td class=\"n\">" +
+              pretty(in_units(units, m.overflow_L, "L").value) + "</td><td class=\"n\">" +
+              pretty(m.cycles) + "</td></tr>\n";
     }
     body += "</tbody>\n</table>\n";
   }
@@ -481,7 +511,7 @@ std::string busiest_day_closeup(const Run& run, std::vector<std::string>& charts
       if (e.kind == "cycle" && e.start >= *day && e.start < *day + kDay_s) ++cycles;
     }
     TimeFigure fig(w.t_lo, w.t_hi);
-    add_rain_and_level(fig, ts, run.summary, events, w, run.step, 90.0, 160.0);
+    add_rain_and_level(fig, ts, run.summary, events, w, run.step, 90.0, 160.0, run.units);
     Panel& p = fig.add("Electrical power, W", 110.0);
     p.lines.push_back(line_of(ts, ts.power_W, w, kVermillion, 1.4));
     charts.push_back("chart-busiest-day");
@@ -489,7 +519,7 @@ std::string busiest_day_closeup(const Run& run, std::vector<std::string>& charts
     body += figure(fig.svg("chart-busiest-day", "The busiest day, " + date_label(*day)),
                    "The day with the most electrical energy (" + with_unit(energy, "Wh") + ", " +
                        std::to_string(cycles) + " cycles starting that day, " +
-                       with_unit(rain, "mm") + " of rain).") +
+                       quantity(run.units, rain, "mm") + " of rain).") +
             "</div>\n";
   } else {
     body += "<p class=\"note\">No rain and no energy in this run: there is no busiest day.</p>\n";
@@ -521,10 +551,11 @@ std::string overflow_closeup(const Run& run, std::vector<std::string>& charts) {
       spill[i] = ts.reservoir_overflow_L[i] + ts.column_overflow_L[i];
     }
     TimeFigure fig(w.t_lo, w.t_hi);
-    add_rain_and_level(fig, ts, run.summary, events, w, step, 90.0, 160.0);
+    add_rain_and_level(fig, ts, run.summary, events, w, step, 90.0, 160.0, run.units);
     double bucket_s = 0.0;
-    BarSet bars = bars_of(ts, spill, w, kBlue, &bucket_s);
-    Panel& p = fig.add("Overflow (reservoir rim and head column), L per " + step + " interval" +
+    BarSet bars = bars_of(ts, values_in(run.units, spill, "L"), w, kBlue, &bucket_s);
+    Panel& p = fig.add("Overflow (reservoir rim and head column), " + unit_in(run.units, "L") +
+                           " per " + step + " interval" +
                            (bucket_s > 0.0 ? " (" + thinning_note(bucket_s) + ")" : ""),
                        110.0);
     p.bars.push_back(std::move(bars));
@@ -537,9 +568,9 @@ std::string overflow_closeup(const Run& run, std::vector<std::string>& charts) {
         "<div class=\"closeup\">\n<h3>Largest overflow episode: " + stamp_label(largest->start) +
         " to " + stamp_label(largest->end) + "</h3>\n";
     body += figure(fig.svg("chart-overflow-episode", "The largest overflow episode"),
-                   with_unit(largest->volume_L, "L") + " over the " + where + " in " +
+                   quantity(run.units, largest->volume_L, "L") + " over the " + where + " in " +
                        duration_text(largest->duration_s) + ", peak " +
-                       with_unit(largest->peak_flow_L_per_s, "L/s") +
+                       quantity(run.units, largest->peak_flow_L_per_s, "L_per_s") +
                        ", shown with the hours around it.") +
             "</div>\n";
   } else {
@@ -574,15 +605,18 @@ std::string events_section(const Run& run) {
        {"column_overflow", "overflow at the head column"}}};
   body +=
       "<section id=\"events\">\n<h2>Events</h2>\n<table>\n<thead><tr><th>kind</th><th "
-      "class=\"n\">count</th><th class=\"n\">volume, L</th><th class=\"n\">largest, L</th>"
-      "<th class=\"n\">longest</th><th class=\"n\">energy, Wh</th></tr></thead>\n<tbody>\n";
+      "class=\"n\">count</th><th class=\"n\">volume, " +
+      unit_in(run.units, "L") + "</th><th class=\"n\">largest, " + unit_in(run.units, "L") +
+      "</th><th class=\"n\">longest</th><th class=\"n\">energy, Wh</th></tr></thead>\n"
+      "<tbody>\n";
   for (const auto& [kind, label] : kinds) {
     const EventStats st = by_kind.count(kind) ? by_kind.at(kind) : EventStats{};
     body +=
         std::string("<tr><td>") + label + "</td><td class=\"n\">" + std::to_string(st.count) +
-        "</td><td class=\"n\">" + pretty(st.volume_L) + "</td><td class=\"n\">" +
-        pretty(st.largest_L) + "</td><td class=\"n\">" +
-        (st.count > 0 ? duration_text(st.longest_s) : "&ndash;") + "</td><td class=\"n\">" +
+        "</td><td class=\"n\">" + pretty(in_units(run.units, st.volume_L, "L").value) +
+        "</td><td class=\"n\">" + pretty(in_units(run.units, st.largest_L, "L").value) +
+        "</td><td class=\"n\">" + (st.count > 0 ? duration_text(st.longest_s) : "&ndash;") +
+        "</td><td class=\"n\">" +
         (episode_makes_energy(*episode_kind_from_name(kind)) ? pretty(st.energy_Wh) : "&ndash;") +
         "</td></tr>\n";
   }
@@ -623,7 +657,7 @@ std::string reading_section(const Run& run) {
 
 }  // namespace
 
-std::string render_run(const fs::path& dir) {
+std::string render_run(const fs::path& dir, std::optional<UnitSystem> units) {
   Run run{read_timeseries(dir / "timeseries.csv"),
           read_events(dir / "events.csv"),
           read_summary(dir / "summary.json"),
@@ -631,7 +665,9 @@ std::string render_run(const fs::path& dir) {
           {},
           false,
           dir.filename().string(),
-          ""};
+          "",
+          UnitSystem::si};
+  run.units = units.value_or(run.ts.units);
   const Timeseries& ts = run.ts;
   run.step = duration_text(*std::max_element(ts.dt_s.begin(), ts.dt_s.end()));
   run.all = {0, ts.size(), static_cast<double>(ts.t.front()) - ts.dt_s.front(),

@@ -122,9 +122,10 @@ std::string heat_svg(const std::string& id, const std::string& title, const std:
   return out;
 }
 
-/// One varied numeric key: energy and overflow against it.
+/// One varied numeric key: energy and overflow (in `units`) against it.
 std::string sweep_line_svg(const std::string& key, const std::vector<double>& x,
-                           const std::vector<double>& energy, const std::vector<double>& overflow) {
+                           const std::vector<double>& energy, const std::vector<double>& overflow,
+                           UnitSystem units) {
   const double panel_h = 150.0;
   const double height = 2.0 * (kPanelHeader + panel_h) + kPanelGap + kTimeAxisHeight;
   double x_lo = *std::min_element(x.begin(), x.end());
@@ -143,7 +144,8 @@ std::string sweep_line_svg(const std::string& key, const std::vector<double>& x,
     const char* colour;
   };
   const std::array<Series, 2> series{
-      {{"Electrical energy, Wh", &energy, kVermillion}, {"Overflow, L", &overflow, kBlue}}};
+      {{"Electrical energy, Wh", &energy, kVermillion},
+       {"Overflow, " + unit_label(in_units(units, 0.0, "L").unit), &overflow, kBlue}}};
   double y = 0.0;
   for (const Series& s : series) {
     svg_text(out, 8.0, y + 17.0, escape(s.title), "start", "ptitle");
@@ -272,7 +274,8 @@ std::string maps_section(const SweepPage& page, std::vector<std::string>& charts
     if (sw.numeric_key[k]) numeric.push_back(sw.keys[k]);
   }
   const std::size_t c_energy = csv.require("energy_Wh");
-  const std::size_t c_overflow = csv.require("overflow_L");
+  const std::size_t c_overflow = csv.require(column_name(sw.units, "overflow_L"));
+  const std::string litres = unit_label(in_units(sw.units, 0.0, "L").unit);
   if (numeric.size() >= 2) {
     HeatGrid grid;
     const std::size_t cx = numeric[0];
@@ -329,11 +332,11 @@ std::string maps_section(const SweepPage& page, std::vector<std::string>& charts
         "Season electrical energy for each pair of values; brighter is more." + note);
     grid.value = grid_of(c_overflow);
     charts.push_back("chart-heat-overflow");
-    body +=
-        figure(heat_svg("chart-heat-overflow", "Overflow, L", "overflow, L", grid, kOverflowRamp),
-               "Water lost over the rim (and the head column) for each pair of values; darker "
-               "is more." +
-                   note);
+    body += figure(heat_svg("chart-heat-overflow", "Overflow, " + litres, "overflow, " + litres,
+                            grid, kOverflowRamp),
+                   "Water lost over the rim (and the head column) for each pair of values; darker "
+                   "is more." +
+                       note);
     body += "</section>\n";
   } else if (numeric.size() == 1 && sw.keys.size() == 1) {
     std::vector<std::size_t> order(n);
@@ -350,7 +353,7 @@ std::string maps_section(const SweepPage& page, std::vector<std::string>& charts
     charts.push_back("chart-sweep-line");
     body += "<section id=\"maps\">\n<h2>Energy and overflow against " + escape(csv.header[cx]) +
             "</h2>\n";
-    body += figure(sweep_line_svg(csv.header[cx], x, energy, overflow),
+    body += figure(sweep_line_svg(csv.header[cx], x, energy, overflow, sw.units),
                    "Season electrical energy and overflow for each value of the varied key.");
     body += "</section>\n";
   } else {
@@ -397,8 +400,8 @@ std::string ranked_section(const SweepPage& page) {
 
 }  // namespace
 
-std::string render_sweep(const fs::path& dir) {
-  SweepPage page{read_sweep(dir), ""};
+std::string render_sweep(const fs::path& dir, std::optional<UnitSystem> units) {
+  SweepPage page{read_sweep(dir, units), ""};
   const Sweep& sw = page.sweep;
   page.title = (sw.scenario.empty() ? std::string("Sweep") : sw.scenario) + ": sweep report";
   std::vector<std::string> charts;

@@ -373,6 +373,10 @@ const std::vector<Section>& schema() {
             [](V v, S s) { s.site.temperature_C = v.number(between(0.0, 40.0)); }},
            {"utc_offset", kOptional, [](V v, S s) { s.site.zone = v.utc_offset_s(); }},
            {"time_zone", kOptional, [](V v, S s) { s.site.zone = v.time_zone(); }},
+           {"units", kOptional,
+            [](V v, S s) {
+              s.site.units = v.choice<UnitSystem>({{"si", UnitSystem::si}, {"us", UnitSystem::us}});
+            }},
        }},
       {"rain",
        kRequired,

@@ -75,10 +75,24 @@ std::set<std::string> apply_overrides(YAML::Node& root, const std::vector<std::s
     const auto [parts, value_text] = split_override(text);
     const std::string key = text.substr(0, text.find('='));
     YAML::Node value;
-    try {
-      value = YAML::Load(value_text);
-    } catch (const YAML::ParserException& e) {
-      throw InputError(kOverrideLabel, 0, key, "cannot read the value: " + e.msg);
+    if (trim(value_text).starts_with('%')) {
+      // YAML reads a leading % as a directive; a strftime format (rain.time_format=%m/%d/%Y
+      // %I:%M %p) is meant as text, so it is taken as written, unquoted.
+      value = YAML::Node(std::string(trim(value_text)));
+    } else {
+      try {
+        value = YAML::Load(value_text);
+      } catch (const YAML::ParserException& e) {
+        // A list or a section is meant as one; other text may hold a character YAML reserves.
+        const bool structure =
+            trim(value_text).starts_with('[') || trim(value_text).starts_with('{');
+        throw InputError(
+            kOverrideLabel, 0, key,
+            "cannot read the value: " + e.msg +
+                (structure ? ""
+                           : "; quote text that holds YAML's special characters: --set '" + key +
+                                 "=\"...\"'"));
+      }
     }
     if (value.IsMap()) {
       throw InputError(kOverrideLabel, 0, key,

@@ -60,9 +60,10 @@ constexpr MetricColumn kMetrics[] = {
 constexpr std::string_view kTableMetrics[] = {"energy_Wh", "overflow_L", "dribble_L", "cycles",
                                               "overflow_events"};
 
+/// The metric named `name` in either system of units (`overflow_L` or `overflow_gal`).
 const MetricColumn* find_metric(std::string_view name) {
   for (const MetricColumn& m : kMetrics) {
-    if (m.name == name) return &m;
+    if (m.name == name || column_name(UnitSystem::us, m.name) == name) return &m;
   }
   return nullptr;
 }
@@ -324,7 +325,7 @@ SweepRank parse_rank(const std::string& text) {
                      "unknown metric \"" + text + "\"; expected one of " + names +
                          " (with - or + in front to force descending or ascending)");
   }
-  return SweepRank{std::string(name), forced_descending.value_or(!m->lower_is_better)};
+  return SweepRank{std::string(m->name), forced_descending.value_or(!m->lower_is_better)};
 }
 
 std::string format_metric(double value) {
@@ -532,23 +533,26 @@ std::vector<std::size_t> rank_rows(const std::vector<SweepRow>& rows, const Swee
 }
 
 void write_sweep_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result) {
+  const UnitSystem units = plan.base.site.units;
+  const auto cell = [&](std::string_view metric, double v) {
+    return format_metric(column_value(units, metric, v));
+  };
   std::string header;
   for (const SweepAxis& axis : plan.axes) header += csv_cell(axis.key) + ",";
-  for (const MetricColumn& m : kMetrics) header += std::string(m.name) + ",";
+  for (const MetricColumn& m : kMetrics) header += column_name(units, m.name) + ",";
   const bool spread = result.realizations > 1;
-  if (spread) {
-    header += plan.rank.metric + "_p10," + plan.rank.metric + "_p90,within_best_range,";
-  }
+  const std::string rank = column_name(units, plan.rank.metric);
+  if (spread) header += rank + "_p10," + rank + "_p90,within_best_range,";
   header.back() = '\n';
   out << header;
   for (const std::size_t i : result.ranked) {
     const SweepRow& row = result.rows[i];
     std::string line;
     for (const std::string& v : row.values) line += csv_cell(v) + ",";
-    for (const MetricColumn& m : kMetrics) line += format_metric(row.metrics.*(m.member)) + ",";
+    for (const MetricColumn& m : kMetrics) line += cell(m.name, row.metrics.*(m.member)) + ",";
     if (spread) {
-      line += format_metric(row.rank_spread->p10) + "," + format_metric(row.rank_spread->p90) +
-              (row.within_best ? ",1," : ",0,");
+      line += cell(plan.rank.metric, row.rank_spread->p10) + "," +
+              cell(plan.rank.metric, row.rank_spread->p90) + (row.within_best ? ",1," : ",0,");
     }
     line.back() = '\n';
     out << line;
@@ -579,7 +583,9 @@ void write_sweep_json(std::ostream& out, const SweepPlan& plan, const SweepResul
   j["vary"] = vary;
   j["values"] = values;
   j["set"] = plan.base_overrides;
-  j["rank"] = plan.rank.metric;
+  // The rank metric as sweep.csv names it, in the units the sweep was written in.
+  j["rank"] = column_name(plan.base.site.units, plan.rank.metric);
+  j["units"] = unit_system_name(plan.base.site.units);
   j["order"] = plan.rank.descending ? "descending" : "ascending";
   j["combinations"] = result.rows.size();
   j["ran"] = result.ranked.size();
@@ -600,12 +606,17 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
   const MetricColumn* rank = find_metric(plan.rank.metric);
   if (std::find(shown.begin(), shown.end(), rank) == shown.end()) shown.push_back(rank);
 
+  const UnitSystem units = plan.base.site.units;
+  const std::string rank_name = column_name(units, plan.rank.metric);
+  const auto pretty = [&](std::string_view metric, double v) {
+    return detail::pretty(column_value(units, metric, v), detail::Medium::terminal);
+  };
   const bool spread = result.realizations > 1;
   std::vector<std::string> header{"#"};
   for (const SweepAxis& axis : plan.axes) header.push_back(axis.key);
-  for (const MetricColumn* m : shown) header.emplace_back(m->name);
+  for (const MetricColumn* m : shown) header.push_back(column_name(units, m->name));
   if (spread) {
-    header.push_back(plan.rank.metric + " P10 to P90");
+    header.push_back(rank_name + " P10 to P90");
     header.emplace_back("~best");
   }
   std::vector<std::vector<std::string>> cells;
@@ -614,12 +625,10 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
     const SweepRow& row = result.rows[result.ranked[r]];
     std::vector<std::string> line{std::to_string(r + 1)};
     line.insert(line.end(), row.values.begin(), row.values.end());
-    for (const MetricColumn* m : shown) {
-      line.push_back(detail::pretty(row.metrics.*(m->member), detail::Medium::terminal));
-    }
+    for (const MetricColumn* m : shown) line.push_back(pretty(m->name, row.metrics.*(m->member)));
     if (spread) {
-      line.push_back(detail::pretty(row.rank_spread->p10, detail::Medium::terminal) + " to " +
-                     detail::pretty(row.rank_spread->p90, detail::Medium::terminal));
+      line.push_back(pretty(plan.rank.metric, row.rank_spread->p10) + " to " +
+                     pretty(plan.rank.metric, row.rank_spread->p90));
       line.emplace_back(row.within_best ? "~" : "");
     }
     cells.push_back(std::move(line));
@@ -641,7 +650,7 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
     out << text << '\n';
   };
   out << plan.base.site.name << ": " << result.ranked.size() << " of " << result.rows.size()
-      << " combinations ran, best first by " << plan.rank.metric << " ("
+      << " combinations ran, best first by " << rank_name << " ("
       << (plan.rank.descending ? "highest" : "lowest") << " first)\n";
   if (spread) {
     out << "  metrics are medians over " << result.realizations

@@ -832,6 +832,13 @@ TEST(BadCommandLine, SetOfUnreadableYamlIsASyntaxError) {
              "found");
 }
 
+TEST(BadCommandLine, SetOfTextYamlCannotReadSaysToQuoteIt) {
+  const Site s = make_site("cli-set-quote");
+  expect_bad(run("check --no-rain " + s.scenario + " --set 'site.name=@home'", s.dir),
+             "--set: site.name: cannot read the value: unknown token; quote text that holds "
+             "YAML's special characters: --set 'site.name=\"...\"'");
+}
+
 TEST(BadCommandLine, FromThatIsNotATimeShowsTheForm) {
   const Site s = make_site("cli-from");
   expect_bad(

@@ -380,8 +380,9 @@ TEST(ReportErrors, NamesAMissingColumn) {
   ScratchDir scratch;
   const fs::path run = scratch.copy_of("run");
   replace_text(run / "timeseries.csv", ",head_m,", ",head,");
-  EXPECT_EQ(error_of([&] { render_report(run); }),
-            (run / "timeseries.csv").string() + ":1: head_m: missing column");
+  EXPECT_EQ(
+      error_of([&] { render_report(run); }),
+      (run / "timeseries.csv").string() + ":1: head_m: missing column (nor its US twin head_ft)");
 }
 
 TEST(ReportErrors, NamesARowWithTheWrongNumberOfFields) {

@@ -57,5 +57,42 @@ TEST(Units, EachNameHasAtMostOneTwin) {
   EXPECT_EQ(si_unit_of("mm"), nullptr);
 }
 
+TEST(Units, OutputColumnsTakeTheirUsTwinNames) {
+  EXPECT_EQ(column_name(UnitSystem::us, "rain_mm"), "rain_in");
+  EXPECT_EQ(column_name(UnitSystem::us, "reservoir_level_mm"), "reservoir_level_in");
+  EXPECT_EQ(column_name(UnitSystem::us, "nozzle_L"), "nozzle_gal");
+  EXPECT_EQ(column_name(UnitSystem::us, "head_m"), "head_ft");
+  EXPECT_EQ(column_name(UnitSystem::us, "peak_flow_L_per_s"), "peak_flow_gpm");
+  EXPECT_EQ(column_name(UnitSystem::us, "jet_velocity_m_per_s"), "jet_velocity_ft_per_s");
+  EXPECT_EQ(column_name(UnitSystem::us, "energy_Wh"), "energy_Wh");
+  EXPECT_EQ(column_name(UnitSystem::us, "power_W"), "power_W");
+  EXPECT_EQ(column_name(UnitSystem::si, "rain_mm"), "rain_mm");
+  EXPECT_EQ(unit_label("L_per_min"), "L/min");
+  EXPECT_EQ(unit_label(in_units(UnitSystem::us, 0.0, "mm_per_h").unit), "in/h");
+}
+
+TEST(Units, OutputValuesGoByTheExactFactors) {
+  // NIST Handbook 44, Appendix C: 1 in = 25.4 mm, 1 ft = 0.3048 m, 1 US gal = 3.785411784 L.
+  EXPECT_NEAR(column_value(UnitSystem::us, "rain_mm", 25.4), 1.0, 1e-15);
+  EXPECT_NEAR(column_value(UnitSystem::us, "head_m", 3.6576), 12.0, 1e-13);
+  EXPECT_NEAR(column_value(UnitSystem::us, "nozzle_L", 3.785411784), 1.0, 1e-15);
+  EXPECT_NEAR(column_value(UnitSystem::us, "peak_flow_L_per_s", 3.785411784 / 60.0), 1.0, 1e-15);
+  EXPECT_NEAR(in_units(UnitSystem::us, 10.0, "C").value, 50.0, 1e-12);  // 10 C = 50 F
+  EXPECT_EQ(in_units(UnitSystem::us, 7.5, "Wh").value, 7.5);
+  EXPECT_EQ(column_value(UnitSystem::si, "rain_mm", 25.4), 25.4);
+  // Back to SI, as the report reads a US file.
+  EXPECT_NEAR(column_si_value(UnitSystem::us, "volume_L", 2.0), 7.570823568, 1e-12);
+}
+
+TEST(Units, UsColumnsKeepAtLeastTheSiResolution) {
+  // 0.001 mm is 0.00004 in: two more decimals; 0.001 L is 0.00026 gal: one more; a foot is
+  // longer than a metre by less than ten: as many as in metres.
+  EXPECT_EQ(column_decimals(UnitSystem::us, "rain_mm", 3), 5);
+  EXPECT_EQ(column_decimals(UnitSystem::us, "nozzle_L", 3), 4);
+  EXPECT_EQ(column_decimals(UnitSystem::us, "head_m", 4), 4);
+  EXPECT_EQ(column_decimals(UnitSystem::us, "power_W", 4), 4);
+  EXPECT_EQ(column_decimals(UnitSystem::si, "rain_mm", 3), 3);
+}
+
 }  // namespace
 }  // namespace gutterwatt

@@ -4,7 +4,9 @@
 #include <functional>
 #include <optional>
 #include <ostream>
+#include <span>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "gutterwatt/realizations.hpp"
@@ -20,11 +22,48 @@ inline constexpr double kMaxTimeseriesBytes = 1e9;
 /// Bytes of a timeseries.csv row with values in every column, for the estimate.
 inline constexpr double kTimeseriesRowBytes = 100.0;
 
+/// One column of an output CSV: the one definition of its name, unit and value, which the
+/// writers, the report's readers and the tests take. The name carries the SI unit (`rain_mm`);
+/// written in US units it is its twin (`rain_in`, column_name) and the value converted by the
+/// exact factor (column_value), with column_decimals. A text column has `text` instead of
+/// `value`; a value that does not apply to a row is NaN and writes an empty cell.
+template <class Row>
+struct OutputColumn {
+  std::string_view name;
+  int decimals = 0;  ///< in SI
+  double (*value)(const Row&) = nullptr;
+  std::string (*text)(const Row&) = nullptr;
+};
+
+/// One row of timeseries.csv: the interval from `from` to `to`.
+struct TimeseriesRow {
+  const Sample& from;
+  const Sample& to;
+  double roof_area_m2;
+  const TimeZone& zone;
+};
+
+/// One row of events.csv.
+struct EventRow {
+  const Episode& episode;
+  const TimeZone& zone;
+};
+
+/// The columns of timeseries.csv, in order: time, rain_mm, roof_runoff_L, reservoir_level_mm,
+/// release_state, release_L, reservoir_overflow_L, column_overflow_L, nozzle_L, head_m, power_W,
+/// energy_Wh, battery_soc, cum_energy_Wh, cum_overflow_L.
+std::span<const OutputColumn<TimeseriesRow>> timeseries_columns();
+
+/// The columns of events.csv, in order: kind, start, end, duration_s, volume_L,
+/// peak_flow_L_per_s, energy_Wh.
+std::span<const OutputColumn<EventRow>> events_columns();
+
 /// Throws InputError naming the scenario and `simulation.output_interval`, with the estimate,
 /// when a run over [start, end) would write more than kMaxTimeseriesBytes of timeseries.csv.
 void check_output_size(const Scenario& scenario, Instant start, Instant end);
 
-/// Writes one timeseries.csv row per output interval: interval sums (rain, runoff, flows,
+/// Writes one timeseries.csv row per output interval, in the scenario's units (site.units):
+/// interval sums (rain, runoff, flows,
 /// energy), end-of-interval state (level, release state, head, state of charge), the interval's
 /// mean electrical power and running totals. With `limited`, throws the InputError of
 /// check_output_size once the rows pass kMaxTimeseriesBytes (for a period not known in advance).
@@ -39,6 +78,7 @@ class TimeseriesWriter : public Observer {
   const Scenario& scenario_;
   double area_m2_;
   TimeZone zone_;
+  UnitSystem units_;
   bool limited_;
   double rows_ = 0.0;
   Sample last_;
@@ -53,6 +93,7 @@ class EventsWriter : public Observer {
  private:
   std::ostream& out_;
   TimeZone zone_;
+  UnitSystem units_;
 };
 
 /// One calendar month (local time), one meteorological season, or one calendar year.
@@ -125,8 +166,8 @@ void write_summary_json(std::ostream& out, const Scenario& scenario, const RainS
                         const RunResult& result, const SummaryBuilder& summary,
                         const RealizationSpread* realizations = nullptr);
 
-/// The summary table printed after a run; with `realizations`, their median and P10 to P90
-/// beside the run's own figures.
+/// The summary table printed after a run, in the scenario's units (site.units); with
+/// `realizations`, their median and P10 to P90 beside the run's own figures.
 void print_summary_table(std::ostream& out, const Scenario& scenario, const RainSeries& rain,
                          const RunResult& result, const SummaryBuilder& summary,
                          const RealizationSpread* realizations = nullptr);

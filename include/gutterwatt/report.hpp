@@ -3,15 +3,19 @@
 /// loaded from the network) drawn from what a run or a sweep wrote into its output folder.
 
 #include <filesystem>
+#include <optional>
 #include <string>
+
+#include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
 
 /// Reads a run folder (timeseries.csv, events.csv, summary.json) or, when it has no
-/// timeseries.csv, a sweep folder (sweep.csv, optionally sweep.json) and returns the page.
+/// timeseries.csv, a sweep folder (sweep.csv, optionally sweep.json), written in either system of
+/// units, and returns the page in `units` (default: the units the folder was written in).
 /// Throws InputError naming the file (and the line and column or key where there is one) for a
 /// missing, unreadable or malformed input, and naming `dir` when it holds neither kind of output.
-std::string render_report(const std::filesystem::path& dir);
+std::string render_report(const std::filesystem::path& dir, std::optional<UnitSystem> units = {});
 
 /// Renders the page, reading the folder's files under its shared lock (FolderReadLock) so that a
 /// run publishing into it meanwhile cannot mix two sets, and writes it to `dir`/report.html
@@ -21,6 +25,7 @@ std::string render_report(const std::filesystem::path& dir);
 /// Error when the write itself fails.
 ///
 ///   auto page = gutterwatt::write_report("out/demo");  // out/demo/report.html
-std::filesystem::path write_report(const std::filesystem::path& dir);
+std::filesystem::path write_report(const std::filesystem::path& dir,
+                                   std::optional<UnitSystem> units = {});
 
 }  // namespace gutterwatt

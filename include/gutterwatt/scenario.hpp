@@ -24,6 +24,9 @@ struct SiteConfig {
   std::string name;
   double temperature_C = 15.0;
   TimeZone zone;  ///< local time for months, seasons, load hours and output stamps
+  /// The units of the terminal tables, the CSV columns and the report (`site.units`; the
+  /// command line's --units overrides it). summary.json is SI whatever it says.
+  UnitSystem units = UnitSystem::si;
 };
 
 enum class RainFormat { series, tips, daily };

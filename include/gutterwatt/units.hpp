@@ -2,6 +2,9 @@
 /// Shared physical constants and unit conversions. Everything inside gutterwatt is SI; input and
 /// output in other units pass through these named factors once, at the edges.
 
+#include <cmath>
+#include <optional>
+#include <string>
 #include <string_view>
 
 namespace gutterwatt {
@@ -54,6 +57,7 @@ inline constexpr UnitTwin kUnitTwins[] = {
     {"L_per_s", "gpm", kLitresPerUsGallon / kSecondsPerMinute},
     {"mm_per_day", "in_per_day", kMillimetresPerInch},
     {"mm_per_h", "in_per_h", kMillimetresPerInch},
+    {"m_per_s", "ft_per_s", kMetresPerFoot},
     {"m2", "ft2", kSquareMetresPerSquareFoot},
     {"mm", "in", kMillimetresPerInch},
     {"m", "ft", kMetresPerFoot},
@@ -70,6 +74,78 @@ inline const UnitTwin* si_unit_of(std::string_view name) {
     }
   }
   return nullptr;
+}
+
+/// `si` or `us`.
+inline std::string_view unit_system_name(UnitSystem units) {
+  return units == UnitSystem::us ? "us" : "si";
+}
+
+/// The system named `si` or `us`, or nullopt.
+inline std::optional<UnitSystem> parse_unit_system(std::string_view name) {
+  if (name == "si") return UnitSystem::si;
+  if (name == "us") return UnitSystem::us;
+  return std::nullopt;
+}
+
+/// The twin whose SI unit is `unit` itself (`mm`, `L_per_min`), or nullptr.
+inline const UnitTwin* twin_of_unit(std::string_view unit) {
+  for (const UnitTwin& t : kUnitTwins) {
+    if (t.si == unit) return &t;
+  }
+  return nullptr;
+}
+
+/// A value in a unit, as a table shows it.
+struct InUnits {
+  double value;
+  std::string_view unit;
+};
+
+/// `in_si` in `si_unit` (`mm`, `L`, `Wh`), shown in `units`: the US twin of a unit that has
+/// one (x_us = (x_si - si_offset) / si_per_us), else the value as it is.
+inline InUnits in_units(UnitSystem units, double in_si, std::string_view si_unit) {
+  const UnitTwin* t = units == UnitSystem::us ? twin_of_unit(si_unit) : nullptr;
+  if (t == nullptr) return {in_si, si_unit};
+  return {(in_si - t->si_offset) / t->si_per_us, t->us};
+}
+
+/// A unit as a person reads it: `L_per_min` -> `L/min`, `in_per_h` -> `in/h`.
+inline std::string unit_label(std::string_view unit) {
+  std::string out(unit);
+  for (std::size_t at = out.find("_per_"); at != std::string::npos; at = out.find("_per_")) {
+    out.replace(at, 5, "/");
+  }
+  return out;
+}
+
+/// A column named with its SI unit (`rain_mm`, `peak_flow_L_per_s`) as `units` names it
+/// (`rain_in`, `peak_flow_gpm`); a name without a twin unit (`power_W`) stays.
+inline std::string column_name(UnitSystem units, std::string_view si_name) {
+  const UnitTwin* t = units == UnitSystem::us ? si_unit_of(si_name) : nullptr;
+  if (t == nullptr) return std::string(si_name);
+  return std::string(si_name.substr(0, si_name.size() - t->si.size())) + std::string(t->us);
+}
+
+/// The value of column `si_name` given in SI, in the column's unit in `units`.
+inline double column_value(UnitSystem units, std::string_view si_name, double in_si) {
+  const UnitTwin* t = units == UnitSystem::us ? si_unit_of(si_name) : nullptr;
+  return t == nullptr ? in_si : (in_si - t->si_offset) / t->si_per_us;
+}
+
+/// A value read from column `si_name` written in `units`, back in SI.
+inline double column_si_value(UnitSystem units, std::string_view si_name, double value) {
+  const UnitTwin* t = units == UnitSystem::us ? si_unit_of(si_name) : nullptr;
+  return t == nullptr ? value : value * t->si_per_us + t->si_offset;
+}
+
+/// Decimals for column `si_name` in `units` that keep at least the resolution of `si_decimals`
+/// in SI: one more for each power of ten the US unit is larger (in: 2 more than mm, gal: 1 more
+/// than L, ft: as m).
+inline int column_decimals(UnitSystem units, std::string_view si_name, int si_decimals) {
+  const UnitTwin* t = units == UnitSystem::us ? si_unit_of(si_name) : nullptr;
+  if (t == nullptr || t->si_per_us <= 1.0) return si_decimals;
+  return si_decimals + static_cast<int>(std::ceil(std::log10(t->si_per_us)));
 }
 
 }  // namespace gutterwatt

@@ -31,6 +31,15 @@ std::string describe(const CLI::ParseError& e, CLI::App& app, int argc, const ch
                   " (see gutterwatt --help)");
 }
 
+// `--units`, the same on every command that shows quantities.
+void add_units_option(CLI::App* command, std::string& units, const std::string& fallback) {
+  command
+      ->add_option("--units", units,
+                   "units of the tables, the CSV columns and the page: us or si (default: " +
+                       fallback + "; summary.json is SI whatever this says)")
+      ->check(CLI::IsMember({"us", "si"}));
+}
+
 }  // namespace
 
 std::string one_line(std::string_view text) {
@@ -77,6 +86,7 @@ CommandLine parse_command_line(int argc, const char* const* argv) {
                    "disaggregations of a coarse record to run, seeds seed to seed + N - 1 "
                    "(default 20 for method: cascade, else 1)")
       ->check(CLI::Range(1, 10000));
+  add_units_option(run_cmd, run.units, "the scenario's site.units, else si");
 
   CheckArgs& check = cl.check;
   auto* check_cmd = app.add_subcommand("check", "validate a scenario and print its design figures");
@@ -84,6 +94,7 @@ CommandLine parse_command_line(int argc, const char* const* argv) {
   check_cmd->add_option("--set", check.set, "override a scenario key: key.path=value (repeatable)");
   check_cmd->add_option("--rain", check.rain, "rain file to use instead of the scenario's");
   check_cmd->add_flag("--no-rain", check.no_rain, "do not read the rain record");
+  add_units_option(check_cmd, check.units, "the scenario's site.units, else si");
 
   SweepArgs& sweep = cl.sweep;
   auto* sweep_cmd =
@@ -103,10 +114,12 @@ CommandLine parse_command_line(int argc, const char* const* argv) {
                    "disaggregations of a coarse record each combination runs on; rank by the "
                    "median (default 20 for method: cascade, else 1)")
       ->check(CLI::Range(1, 10000));
+  add_units_option(sweep_cmd, sweep.units, "the scenario's site.units, else si");
 
   auto* report_cmd =
       app.add_subcommand("report", "write DIR/report.html from a run or sweep folder");
   report_cmd->add_option("dir", cl.report_dir, "output folder of a run or sweep")->required();
+  add_units_option(report_cmd, cl.report_units, "the units the folder was written in");
 
   StormArgs& storm = cl.storm;
   auto* storm_cmd = app.add_subcommand("storm", "write a design-storm hyetograph as a rain CSV");

@@ -22,6 +22,7 @@ struct RunArgs {
   bool quiet = false;
   bool force = false;
   unsigned realizations = 0;  ///< 0: the default for the record
+  std::string units;          ///< `--units us|si`; empty: the scenario's site.units
 };
 
 struct CheckArgs {
@@ -29,6 +30,7 @@ struct CheckArgs {
   std::vector<std::string> set;
   std::string rain;
   bool no_rain = false;
+  std::string units;  ///< `--units us|si`; empty: the scenario's site.units
 };
 
 struct StormArgs {
@@ -66,6 +68,7 @@ struct CommandLine {
   CheckArgs check;
   SweepArgs sweep;
   std::string report_dir;
+  std::string report_units;  ///< `report --units us|si`; empty: the units the folder was written in
   StormArgs storm;
   SynthArgs synth;
   FitArgs fit;

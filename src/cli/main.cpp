@@ -67,6 +67,11 @@ Scenario load_scenario_unless_stopped(const std::string& file,
   return sc;
 }
 
+// `--units` when given (the command line checked it), else `fallback`.
+UnitSystem units_option(const std::string& text, UnitSystem fallback) {
+  return parse_unit_system(text).value_or(fallback);
+}
+
 // An input error's text from its parts: what() ends at the first NUL byte a message quotes.
 std::string describe(const InputError& e) { return one_line(e.text()); }
 
@@ -108,6 +113,7 @@ std::string method_spread(const Scenario& sc, const RainSeries& as_read, double 
 
 int run_command(const RunArgs& args) {
   Scenario sc = load_scenario_unless_stopped(args.scenario, overrides_of(args));
+  sc.site.units = units_option(args.units, sc.site.units);
   const std::size_t n = realization_count(args.realizations, sc.rain);
   // A period given in full is estimated before anything runs; an open one is watched as it runs.
   const bool period_known = sc.simulation.start && sc.simulation.end;
@@ -179,6 +185,7 @@ int run_command(const RunArgs& args) {
 
 int check_command(const CheckArgs& args) {
   Scenario sc = load_scenario_unless_stopped(args.scenario, args.set);
+  sc.site.units = units_option(args.units, sc.site.units);
   std::optional<RainSeries> as_read;
   std::optional<RainSeries> rain;
   if (!args.no_rain) {
@@ -294,7 +301,7 @@ int main(int argc, char** argv) {
       case Command::sweep:
         return sweep_command(cl.sweep, g_stop);
       case Command::report: {
-        const fs::path page = write_report(cl.report_dir);
+        const fs::path page = write_report(cl.report_dir, parse_unit_system(cl.report_units));
         std::cout << "wrote " << page.string() << '\n';
         return kExitOk;
       }

@@ -59,10 +59,11 @@ int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop) {
   if (args.out.empty()) {
     throw InputError("", 0, "--out", "give the folder for sweep.csv, skipped.csv and sweep.json");
   }
-  const SweepPlan plan =
+  SweepPlan plan =
       plan_sweep(read_scenario_text(args.scenario), args.scenario,
                  fs::path(args.scenario).parent_path(), args.vary, args.set, args.rank);
   if (stop.load()) throw Interrupted();  // a signal while the scenario was parsed
+  if (const auto units = parse_unit_system(args.units)) plan.base.site.units = *units;
   const std::size_t n = realization_count(args.realizations, plan.base.rain);
   // The record is read once; realization k is its disaggregation with the seed seed + k.
   const RainSeries as_read = load_rain_as_read(plan.base.rain, {}, &stop);

@@ -16,6 +16,7 @@ struct SweepArgs {
   std::string out;                 ///< `--out DIR`, required
   bool quiet = false;              ///< `--quiet`: print nothing on stdout on success
   unsigned realizations = 0;       ///< `--realizations N`; 0: the default for the record
+  std::string units;               ///< `--units us|si`; empty: the scenario's site.units
 };
 
 /// Runs the sweep, writes DIR/sweep.csv, DIR/skipped.csv and DIR/sweep.json, reports skipped and
