@@ -9,6 +9,7 @@
 #include <limits>
 #include <nlohmann/json.hpp>
 #include <sstream>
+#include <stdexcept>
 #include <system_error>
 #include <utility>
 
@@ -208,6 +209,13 @@ Timeseries read_timeseries(const fs::path& path) {
       if (name == c.name) values = vector;
     }
     numbers.push_back({c.name, column_name(units, c.name), index, units, values});
+  }
+  for (const auto& [name, vector] : drawn) {
+    const auto read = [&](const Column& c) { return c.values == vector; };
+    if (std::none_of(numbers.begin(), numbers.end(), read)) {
+      throw std::logic_error("the page draws " + std::string(name) +
+                             ", which is not a column of timeseries_columns()");
+    }
   }
   if (csv.rows.empty()) throw InputError(file, 0, "", "no data rows");
   for (std::size_t r = 0; r < csv.rows.size(); ++r) {
