@@ -66,24 +66,8 @@ void Ledger::follow_standing(double level_m, const ChainMode& m, double t) {
   if (spell_s > kMosquitoSpell_s) ++counts_.standing_spells_over_week;
 }
 
-void Ledger::tally_step(const ChainState& x0, const ChainState& x1, double dt, const ChainMode& m,
-                        const Forcing& f) {
+void Ledger::tally_step(const ChainState& x0, const ChainState& x1, double dt, const ChainMode& m) {
   const Scenario& sc = system_.scenario();
-  const double rain = f.rain_m_per_s * sc.roof.area_m2;
-  tally_.rain_m3 += rain * dt;
-  double effective = 0.0;
-  if (m.depression == Depression::filling) {
-    tally_.roof_loss_m3 += rain * dt;
-  } else if (m.depression == Depression::full) {
-    effective = sc.roof.runoff_coefficient * rain;
-    tally_.roof_loss_m3 += (rain - effective) * dt;
-  }
-  // dS/dt = effective - runoff on the roof (runoff = effective without a lag).
-  const double runoff = effective * dt - (sc.roof.lag_s > 0.0 ? x1[kRoof] - x0[kRoof] : 0.0);
-  tally_.roof_runoff_m3 += runoff;
-  if (sc.first_flush.volume_m3 > 0.0 && !m.flush_full) {
-    tally_.first_flush_m3 += x1[kFlush] - x0[kFlush];
-  }
   const double released = x1[kRelease] - x0[kRelease];
   if (!system_.release().is_running(m.release)) tally_.dribble_m3 += released;
   if (system_.plant().has_column() && m.column == ColumnMode::full) {

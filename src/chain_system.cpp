@@ -44,46 +44,14 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
                         ChainState& d) const {
   d.fill(0.0);
   r.column_overflow = 0.0;
-  const double area = sc_.roof.area_m2;
-  const double rain = f.rain_m_per_s * area;
-
-  // Roof: initial loss first, then the runoff coefficient on the remainder (rational method,
-  // Q = C i A), routed through a linear reservoir dS/dt = I - S/k (Nash 1957 single reservoir).
-  double effective = 0.0;
-  switch (m.depression) {
-    case Depression::filling:
-      d[kDepression] = f.rain_m_per_s;
-      break;
-    case Depression::full:
-      effective = sc_.roof.runoff_coefficient * rain;
-      break;
-    case Depression::drying:
-      d[kDepression] = -sc_.roof.drying_m_per_s;
-      break;
-    case Depression::dry:
-      break;
-  }
-  double runoff = effective;
-  if (sc_.roof.lag_s > 0.0) {
-    runoff = std::max(0.0, x[kRoof]) / sc_.roof.lag_s;
-    d[kRoof] = effective - runoff;
-  }
-
-  // First flush: everything goes to the diverter until it holds volume_L.
-  double inflow = runoff;
-  if (sc_.first_flush.volume_m3 > 0.0 && !m.flush_full) {
-    d[kFlush] = runoff;
-    inflow = 0.0;
-  }
-
-  // Reservoir, release and overflow.
+  // Reservoir, release and overflow; the roof's inflow is added by the stepper (RoofSpan).
   r.level_m = geometry_.level_m(x[kReservoir]);
   const bool needs_full_flow = m.release != ReleaseState::idle && m.release != ReleaseState::closed;
   const double full_flow = needs_full_flow ? plant_.full_flow_m3_per_s(r.level_m) : 0.0;
   r.release = release_->outflow_m3_per_s(m.release, r.level_m, full_flow);
   r.overflow = m.overflowing ? geometry_.overflow_m3_per_s(r.level_m) : 0.0;
   r.evaporation = evaporation_at_m3_per_s(geometry_, r.level_m, f);
-  d[kReservoir] = inflow - r.release - r.overflow - r.evaporation;
+  d[kReservoir] = -r.release - r.overflow - r.evaporation;
   d[kEvaporation] = r.evaporation;
   d[kReservoirOverflow] = r.overflow;
   d[kRelease] = r.release;
@@ -135,14 +103,6 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
   const double rim = geometry_.rim_m();
   g[kGuardOverflow] =
       m.overflowing ? r.level_m - rim - 0.5 * kHoldHead_m : rim + kHoldHead_m - r.level_m;
-  if (m.depression == Depression::filling) {
-    g[kGuardDepression] = sc_.roof.initial_loss_m - x[kDepression];
-  } else if (m.depression == Depression::drying) {
-    g[kGuardDepression] = x[kDepression];
-  }
-  if (sc_.first_flush.volume_m3 > 0.0 && !m.flush_full) {
-    g[kGuardFlush] = sc_.first_flush.volume_m3 - x[kFlush];
-  }
   if (plant_.has_column()) {
     const double q_lin = plant_.column_nozzle_flow_m3_per_s(trickle_volume_m3_);
     switch (m.column) {
@@ -202,19 +162,6 @@ double ChainSystem::apply_switch(int k, ChainState& x, ChainMode& m, const Forci
     case kGuardOverflow:
       m.overflowing = !m.overflowing;
       break;
-    case kGuardDepression:
-      if (m.depression == Depression::filling) {
-        m.depression = Depression::full;
-        x[kDepression] = sc_.roof.initial_loss_m;
-      } else {
-        m.depression = Depression::dry;
-        x[kDepression] = 0.0;
-      }
-      break;
-    case kGuardFlush:
-      m.flush_full = true;
-      x[kFlush] = sc_.first_flush.volume_m3;
-      break;
     case kGuardTrickle:
       m.column = ColumnMode::trickle;
       break;
@@ -248,8 +195,7 @@ double ChainSystem::apply_switch(int k, ChainState& x, ChainMode& m, const Forci
   return spilled_m3;
 }
 
-bool ChainSystem::at_rest(const ChainState& x, const ChainMode& m, const Forcing& f,
-                          double span_s) const {
+bool ChainSystem::at_rest(const ChainState& x, const ChainMode& m, double arriving_m3) const {
   if (m.overflowing) return false;
   if (plant_.has_column() && m.column != ColumnMode::trickle &&
       (m.column == ColumnMode::full || x[kColumn] > kColumnDry_m3)) {
@@ -258,11 +204,7 @@ bool ChainSystem::at_rest(const ChainState& x, const ChainMode& m, const Forcing
   const double ceiling = release_->rest_ceiling_m(m.release);
   if (ceiling < 0.0) return false;
   const double limit = std::min(ceiling, geometry_.rim_m() + kHoldHead_m);
-  // All the water that can reach the reservoir within the span: what is on the roof now and
-  // what the rain can add to it.
-  const double arriving = std::max(0.0, x[kRoof]) +
-                          sc_.roof.runoff_coefficient * f.rain_m_per_s * sc_.roof.area_m2 * span_s;
-  return x[kReservoir] + arriving <= geometry_.volume_m3(limit);
+  return x[kReservoir] + arriving_m3 <= geometry_.volume_m3(limit);
 }
 
 ChainState ChainSystem::initial_state() const {
@@ -281,13 +223,15 @@ ChainMode ChainSystem::initial_mode(const ChainState& x) const {
   return m;
 }
 
-void ChainSystem::start_segment(const ChainState& x, ChainMode& m, const Forcing& f) const {
-  const double loss = sc_.roof.initial_loss_m;
-  if (f.rain_m_per_s > 0.0) {
-    m.depression = x[kDepression] < loss ? Depression::filling : Depression::full;
-  } else {
-    m.depression = x[kDepression] > 0.0 ? Depression::drying : Depression::dry;
-  }
+RoofSpan ChainSystem::roof_span(const ChainState& x, double rain_m_per_s) const {
+  return RoofSpan(sc_.roof, sc_.first_flush, rain_m_per_s,
+                  RoofStores{x[kDepression], x[kRoof], x[kFlush]});
+}
+
+void ChainSystem::set_roof(const RoofStores& s, ChainState& x) {
+  x[kDepression] = s.loss_filled_m;
+  x[kRoof] = s.roof_m3;
+  x[kFlush] = s.diverted_m3;
 }
 
 std::string ChainSystem::describe(const ChainState& x, const ChainMode& m) const {

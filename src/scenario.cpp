@@ -32,11 +32,6 @@ namespace {
 /// crawl (common practice, no source).
 constexpr double kMaxRoofArea_m2 = 1e6;
 
-/// Shortest roof lag other than 0 (no routing). Below it the runoff equation is so stiff that the
-/// solver makes no progress through a storm (0.01 s fails on the sweep test site); relax it once
-/// the solver takes stiff lags (#13).
-constexpr double kMinRoofLag_s = 1.0;
-
 /// Shortest reservoir. Below it the level answers a litre with metres and the solver makes no
 /// progress (1 mm fails on the sweep test site); relax it once the solver takes that (#13).
 constexpr double kMinReservoirLength_m = 0.1;
@@ -96,14 +91,6 @@ Instant hours_as_seconds(const Value& v, const Limits& limits) {
   const double s = v.number(limits) * kSecondsPerHour;
   v.expect(s == std::floor(s), "must be a whole number of seconds");
   return static_cast<Instant>(s);
-}
-
-/// A roof lag: 0 or at least kMinRoofLag_s.
-double roof_lag_s(const Value& v, double lag_s) {
-  v.expect(lag_s == 0.0 || lag_s >= kMinRoofLag_s,
-           "must be 0 (no routing) or at least " + show(kMinRoofLag_s) +
-               " s: a shorter lag makes the runoff equation too stiff for the solver");
-  return lag_s;
 }
 
 /// Reads the keys of a small section nested in a key's value (rain.disaggregate, an item of
@@ -467,9 +454,9 @@ const std::vector<Section>& schema() {
               s.roof.drying_m_per_s = v.number(kNonNegative) * kMetresPerMm / kSecondsPerDay;
             }},
            {"lag_s", kOptional,
-            [](V v, S s) { s.roof.lag_s = roof_lag_s(v, v.number(kNonNegative)); }},
+            [](V v, S s) { s.roof.lag_s = v.number(kNonNegative); }},
            {"lag", kOptional,
-            [](V v, S s) { s.roof.lag_s = roof_lag_s(v, v.duration_s(kNonNegative)); }},
+            [](V v, S s) { s.roof.lag_s = v.duration_s(kNonNegative); }},
        }},
       {"first_flush",
        kOptional,

@@ -176,7 +176,6 @@ RunResult Engine::run() {
       if (reset <= t) {
         // The diverter has drained to waste: the next event is diverted afresh.
         x[kFlush] = 0.0;
-        mode.flush_full = false;
       } else {
         next = std::min(next, reset);
       }

@@ -15,10 +15,9 @@ namespace {
 namespace odeint = boost::numeric::odeint;
 
 // Error norm with a scale per slot: err_i / (rtol (scale_i + |x_i| + dt |dxdt_i|)), the odeint
-// default checker's form with per-slot absolute tolerances, except that the roof's error is
-// measured against the water on the roof and in the reservoir together: an error on the roof
-// only moves water that is on its way to the reservoir a little in time, and judged against the
-// roof's own small, fast store alone it set the step for the whole chain.
+// default checker's form with per-slot absolute tolerances. The solver's reservoir slot holds the
+// water less the roof's inflow since the segment began (Stepper::to_solver); its error is judged
+// against the water itself, `offset_m3` (that inflow at the step's start) added back.
 struct ScaledErrorChecker {
   using value_type = double;
   using algebra_type = odeint::array_algebra;
@@ -26,13 +25,13 @@ struct ScaledErrorChecker {
 
   double rtol = 1e-6;
   ChainState scale{};
+  const double* offset_m3 = nullptr;
 
   template <class S, class D, class E, class T>
   double error(algebra_type&, const S& x_old, const D& dxdt_old, E& x_err, T dt) const {
     double worst = 0.0;
     for (std::size_t i = 0; i < kSlots; ++i) {
-      const double size =
-          i == kRoof ? std::abs(x_old[kRoof]) + std::abs(x_old[kReservoir]) : std::abs(x_old[i]);
+      const double size = i == kReservoir ? std::abs(x_old[i] + *offset_m3) : std::abs(x_old[i]);
       const double tol = rtol * (scale[i] + size + dt * std::abs(dxdt_old[i]));
       worst = std::max(worst, std::abs(x_err[i]) / tol);
     }
@@ -99,72 +98,36 @@ ChainRates Stepper::settle(const Forcing& f, Guards& g, ChainState& dxdt) {
 }
 
 // A span at rest in closed form: the release passes nothing and cannot start to, so the rest of
-// the chain is linear. The initial loss fills at the rain rate (or dries at the drying rate), the
-// roof's linear reservoir takes C i A once it is full and empties exponentially, the diverter
-// takes the first of its runoff and the reservoir the rest, and the battery serves the load
-// (battery_at_rest).
-void Stepper::coast(double dt, const Forcing& f) {
+// the chain is linear. The reservoir takes what the roof stage hands it (RoofSpan) and the
+// battery serves the load (battery_at_rest).
+void Stepper::coast(double t, double span, const Forcing& f) {
   const Scenario& sc = system_.scenario();
-  ChainState& x = x_;
-  const double area = sc.roof.area_m2;
-  const double rain = f.rain_m_per_s * area;
-  RoofFlows flows;
-  flows.rain_m3 = rain * dt;
-  double wet_s = 0.0;  // time within dt with the initial loss full
-  if (f.rain_m_per_s > 0.0) {
-    const double room = sc.roof.initial_loss_m - x[kDepression];
-    const double filling_s = mode_.depression == Depression::filling
-                                 ? std::min(dt, std::max(0.0, room) / f.rain_m_per_s)
-                                 : 0.0;
-    if (mode_.depression == Depression::filling) {
-      if (filling_s < dt) {
-        x[kDepression] = sc.roof.initial_loss_m;
-        mode_.depression = Depression::full;
-      } else {
-        x[kDepression] += f.rain_m_per_s * dt;
-      }
-    }
-    wet_s = dt - filling_s;
-    flows.loss_m3 = rain * filling_s + (1.0 - sc.roof.runoff_coefficient) * rain * wet_s;
-  } else if (mode_.depression == Depression::drying) {
-    x[kDepression] = std::max(0.0, x[kDepression] - sc.roof.drying_m_per_s * dt);
-    if (x[kDepression] <= 0.0) mode_.depression = Depression::dry;
-  }
-  const double effective = sc.roof.runoff_coefficient * rain;
-  double out = effective * wet_s;  // lag 0: runoff follows the rain
-  if (sc.roof.lag_s > 0.0) {
-    // dS/dt = E - S/k: S decays alone while the loss fills, then relaxes towards E k.
-    const double k = sc.roof.lag_s;
-    const double before = x[kRoof] * std::exp(-(dt - wet_s) / k);
-    const double left = effective * k + (before - effective * k) * std::exp(-wet_s / k);
-    out = x[kRoof] + effective * wet_s - left;
-    x[kRoof] = left;
-  }
-  flows.runoff_m3 = out;
-  double to_reservoir = out;
-  if (sc.first_flush.volume_m3 > 0.0 && !mode_.flush_full) {
-    const double taken = std::min(out, sc.first_flush.volume_m3 - x[kFlush]);
-    x[kFlush] += taken;
-    flows.diverted_m3 = taken;
-    to_reservoir -= taken;
-    if (x[kFlush] >= sc.first_flush.volume_m3) {
-      x[kFlush] = sc.first_flush.volume_m3;
-      mode_.flush_full = true;
-    }
-  }
-  ledger_.tally_roof(flows);
-  x[kReservoir] += to_reservoir;
+  const double dt = span - t;
+  x_[kReservoir] += roof_->to_reservoir_m3(span) - roof_->to_reservoir_m3(t);
+  ChainSystem::set_roof(roof_->stores(span), x_);
   evaporate_at_rest(dt, f);
-  const BatteryRest rest = battery_at_rest(x[kBattery], f.load_W, dt, sc.battery);
-  x[kBattery] = rest.energy_J;
-  x[kServed] += rest.drawn_J;
-  x[kDrawn] += rest.drawn_J;
-  x[kUnmet] += rest.unmet_J;
-  x[kSelfDischarge] += rest.self_discharge_J;
+  const BatteryRest rest = battery_at_rest(x_[kBattery], f.load_W, dt, sc.battery);
+  x_[kBattery] = rest.energy_J;
+  x_[kServed] += rest.drawn_J;
+  x_[kDrawn] += rest.drawn_J;
+  x_[kUnmet] += rest.unmet_J;
+  x_[kSelfDischarge] += rest.self_discharge_J;
   ledger_.tally_battery(rest);
-  mode_.battery = battery_mode(x[kBattery], 0.0, f.load_W, sc.battery);
+  mode_.battery = battery_mode(x_[kBattery], 0.0, f.load_W, sc.battery);
   stats_.coasted_s += dt;
-  ledger_.follow_standing(system_.level_m(x), mode_, now_s_ + dt);
+  ledger_.follow_standing(system_.level_m(x_), mode_, now_s_ + dt);
+}
+
+ChainState Stepper::to_solver(const ChainState& x, double t) const {
+  ChainState w = x;
+  w[kReservoir] -= roof_->to_reservoir_m3(t);
+  return w;
+}
+
+void Stepper::from_solver(const ChainState& w, double t, ChainState& x) const {
+  x = w;
+  x[kReservoir] += roof_->to_reservoir_m3(t);
+  ChainSystem::set_roof(roof_->stores(t), x);
 }
 
 // Evaporation over a span at rest, after the span's inflow: dV/dt = -E A(V), by the midpoint
@@ -197,11 +160,14 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
   const ChainState* last_dxdt = nullptr;  // odeint's buffer holding the last derivative
   bool known = false;
   ChainState known_dxdt{};
-  const auto system = [&](const ChainState& x, ChainState& dxdt, double t) {
+  const RoofSpan& roof = *roof_;
+  const auto system = [&](const ChainState& w, ChainState& dxdt, double t) {
     if (known) {
       known = false;
       dxdt = known_dxdt;
     } else {
+      ChainState x = w;
+      x[kReservoir] += roof.to_reservoir_m3(t);
       system_.rates(x, mode_, f, last, dxdt);
     }
     last_t = t;
@@ -210,24 +176,26 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
   const double span = t1 - t0;
   double t = 0.0;  // time within the segment, for precision
   const double max_step = f.rain_m_per_s > 0.0 ? kMaxWetStep_s : kMaxDryStep_s;
-  const ScaledErrorChecker checker{system_.scenario().simulation.rtol, error_scale_};
+  double offset_m3 = 0.0;
+  const ScaledErrorChecker checker{system_.scenario().simulation.rtol, error_scale_, &offset_m3};
   Dense stepper(Controlled(checker, odeint::default_step_adjuster<double, double>(max_step)));
   bool fresh = true;
   long segment_steps = 0;
   Guards g_prev{};
   while (t < span) {
-    if (coasted_to_end(span - t, f)) return;
+    if (coasted_to_end(t, span, f)) return;
     if (fresh) {
       last = settle(f, g_prev, known_dxdt);
       ledger_.update_peaks(last);
-      stepper.initialize(x_, t, std::min(last_step_s_, span - t));
+      stepper.initialize(to_solver(x_, t), t, std::min(last_step_s_, span - t));
       known = true;
       fresh = false;
     } else if (stepper.current_time() + stepper.current_time_step() > span) {
       known = last_t == t && last_dxdt != nullptr;
       if (known) known_dxdt = *last_dxdt;
-      stepper.initialize(x_, t, span - t);
+      stepper.initialize(to_solver(x_, t), t, span - t);
     }
+    offset_m3 = roof.to_reservoir_m3(t);
     std::pair<double, double> step;
     try {
       step = stepper.do_step(system);
@@ -243,11 +211,13 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     double t_end = std::min(step.second, span);
     ChainState x_end;
     ChainRates r;
+    ChainState w_end;
     if (t_end == step.second && last_t == step.second) {
-      x_end = stepper.current_state();
+      from_solver(stepper.current_state(), t_end, x_end);
       r = last;
     } else {
-      stepper.calc_state(t_end, x_end);
+      stepper.calc_state(t_end, w_end);
+      from_solver(w_end, t_end, x_end);
       r = system_.rates(x_end, mode_, f);
     }
     Guards g_end;
@@ -259,8 +229,9 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     for (int k = 0; k < kGuardCount; ++k) {
       if (!(g_prev[k] >= 0.0 && g_end[k] < 0.0)) continue;
       const auto guard_at = [&](double tau) {
-        ChainState xs;
-        stepper.calc_state(tau, xs);
+        ChainState ws, xs;
+        stepper.calc_state(tau, ws);
+        from_solver(ws, tau, xs);
         Guards gs;
         system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), gs);
         return gs[k];
@@ -296,7 +267,8 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     }
     if (first >= 0) {
       t_end = t_switch;
-      stepper.calc_state(t_end, x_end);
+      stepper.calc_state(t_end, w_end);
+      from_solver(w_end, t_end, x_end);
       r = system_.rates(x_end, mode_, f);
     }
     accept_step(x_end, t_end - t, r, first, f, t0 + t_end);
@@ -311,11 +283,13 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
   }
 }
 
-// Before each step: stops on request, and ends the segment in closed form once it is at rest.
-bool Stepper::coasted_to_end(double left_s, const Forcing& f) {
+// Before each step at `t` within a segment of length `span`: stops on request, and ends the
+// segment in closed form once it is at rest.
+bool Stepper::coasted_to_end(double t, double span, const Forcing& f) {
   if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
-  if (!system_.at_rest(x_, mode_, f, left_s)) return false;
-  coast(left_s, f);
+  const double arriving = roof_->to_reservoir_m3(span) - roof_->to_reservoir_m3(t);
+  if (!system_.at_rest(x_, mode_, arriving)) return false;
+  coast(t, span, f);
   return true;
 }
 
@@ -329,7 +303,7 @@ void Stepper::accept_step(const ChainState& x_end, double dt, const ChainRates& 
       fail("the state is not finite", t_abs);
     }
   }
-  ledger_.tally_step(x_, x_end, dt, mode_, f);
+  ledger_.tally_step(x_, x_end, dt, mode_);
   x_ = x_end;
   now_s_ = t_abs;
   ledger_.update_peaks(r);
@@ -348,21 +322,24 @@ void Stepper::switch_mode(int k, const Forcing& f, const ChainRates& r) {
 // placed by bisection, re-taking the step from its start with a shorter step each time.
 void Stepper::integrate_fixed(double t0, double t1, const Forcing& f) {
   odeint::runge_kutta4<ChainState, double, ChainState, double, odeint::array_algebra> rk4;
-  const auto system = [this, &f](const ChainState& x, ChainState& dxdt, double) {
+  const auto system = [this, &f](const ChainState& w, ChainState& dxdt, double t) {
+    ChainState x = w;
+    x[kReservoir] += roof_->to_reservoir_m3(t);
     ChainRates r;
     system_.rates(x, mode_, f, r, dxdt);
   };
-  const auto step_to = [&](double h) {
-    ChainState out;
-    rk4.do_step(system, x_, 0.0, out, h);
-    return out;
-  };
   const double span = t1 - t0;
   double t = 0.0;
+  const auto step_to = [&](double h) {
+    ChainState out, x;
+    rk4.do_step(system, to_solver(x_, t), t, out, h);
+    from_solver(out, t + h, x);
+    return x;
+  };
   bool fresh = true;
   Guards g_prev{};
   while (t < span) {
-    if (coasted_to_end(span - t, f)) return;
+    if (coasted_to_end(t, span, f)) return;
     if (fresh) {
       ChainState dxdt;
       ledger_.update_peaks(settle(f, g_prev, dxdt));
@@ -410,14 +387,15 @@ void Stepper::integrate_fixed(double t0, double t1, const Forcing& f) {
 void Stepper::advance(Instant t0, Instant t1, const Forcing& f) {
   if (t1 <= t0) return;
   ++stats_.segments;
-  system_.start_segment(x_, mode_, f);
   now_s_ = static_cast<double>(t0);
+  roof_.emplace(system_.roof_span(x_, f.rain_m_per_s));
   // Both integrators coast a segment that is at rest from its start without taking a step.
   if (options_.fixed_step_s > 0.0) {
     integrate_fixed(static_cast<double>(t0), static_cast<double>(t1), f);
   } else {
     integrate(static_cast<double>(t0), static_cast<double>(t1), f);
   }
+  ledger_.tally_roof(roof_->flows(static_cast<double>(t1 - t0)));
   now_s_ = static_cast<double>(t1);
 }
 

@@ -134,19 +134,10 @@ inline constexpr double kStandingDepth_m = 1e-3;
 /// health guidance is to empty it at least weekly (REFERENCES.md section 13; common practice).
 inline constexpr double kMosquitoSpell_s = 7.0 * 86400.0;
 
-/// What the roof stage made of a span in closed form, m3.
-struct RoofFlows {
-  double rain_m3 = 0.0;
-  double loss_m3 = 0.0;
-  double runoff_m3 = 0.0;
-  double diverted_m3 = 0.0;
-};
-
 /// The accounts kept outside the solver's state, the open episodes and the observer they go to.
 /// Within one step the mode is fixed, and each account kept here grows by a constant rate times
 /// the time or by a fixed multiple of the change in a state slot, so it is exact and costs the
-/// solver nothing: rain and roof loss at constant rates, roof runoff as what entered the roof
-/// store less its change, the diverter's take as its change while filling, dribble as release
+/// solver nothing: the roof stage's flows in closed form (RoofSpan::flows), dribble as release
 /// while the release is not running, column overflow as release less nozzle while brim-full,
 /// electrical energy as the generator efficiency times shaft energy while it runs, the time at
 /// the battery's minimum as the step's length in the empty mode. Stored energy is the charge
@@ -159,9 +150,8 @@ class Ledger {
   /// Opens the episodes a run starting at `t` in mode `m` is already in.
   void start(const ChainState& x, const ChainMode& m, double t);
   /// Adds what a step from `x0` to `x1` over `dt` in mode `m` made of the accounts kept here.
-  void tally_step(const ChainState& x0, const ChainState& x1, double dt, const ChainMode& m,
-                  const Forcing& f);
-  /// Adds what the roof stage made of a span advanced in closed form.
+  void tally_step(const ChainState& x0, const ChainState& x1, double dt, const ChainMode& m);
+  /// Adds what the roof stage made of a segment (always in closed form).
   void tally_roof(const RoofFlows& flows);
   /// Adds the battery's times of a span advanced in closed form.
   void tally_battery(const BatteryRest& rest);

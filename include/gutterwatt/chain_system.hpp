@@ -18,6 +18,8 @@ namespace gutterwatt {
 
 /// Continuous state: storages first, then running integrals of the accounts whose rates are
 /// nonlinear in the state. The other accounts follow from these exactly (see Ledger::tally_step).
+/// The roof stage's three stores are advanced in closed form (RoofSpan), never by the solver:
+/// their rates here are zero.
 enum Slot : std::size_t {
   kRoof,        ///< water on the roof's linear reservoir, m3
   kDepression,  ///< initial-loss store filled, m of depth
@@ -42,8 +44,6 @@ enum Slot : std::size_t {
 
 using ChainState = std::array<double, kSlots>;
 
-/// The initial loss fills while it rains and dries otherwise.
-enum class Depression { filling, full, drying, dry };
 /// A head column fills and drains (partial), spills over its top (full), or, nearly empty under
 /// a trickle, passes what arrives straight to the nozzle holding its puddle (trickle).
 enum class ColumnMode { trickle, partial, full };
@@ -52,8 +52,6 @@ enum class ColumnMode { trickle, partial, full };
 struct ChainMode {
   ReleaseState release = ReleaseState::idle;
   bool overflowing = false;
-  Depression depression = Depression::dry;
-  bool flush_full = false;
   ColumnMode column = ColumnMode::trickle;
   bool generator_on = false;
   BatteryMode battery = BatteryMode::normal;
@@ -86,8 +84,6 @@ enum GuardId {
   kGuardRelease0,
   kGuardRelease1,
   kGuardOverflow,
-  kGuardDepression,
-  kGuardFlush,
   kGuardColumn,
   kGuardTrickle,
   kGuardGenerator,
@@ -111,7 +107,8 @@ class ChainSystem {
   explicit ChainSystem(const Scenario& scenario);
 
   /// Fills `r` and the derivative `d` (every field and slot) for state `x` in mode `m`: the
-  /// solver's hot path, which must not copy ChainRates.
+  /// solver's hot path, which must not copy ChainRates. The reservoir's rate leaves out the
+  /// roof's inflow, which the stepper carries exactly (RoofSpan); the roof's slots' rates are 0.
   void rates(const ChainState& x, const ChainMode& m, const Forcing& f, ChainRates& r,
              ChainState& d) const;
   ChainRates rates(const ChainState& x, const ChainMode& m, const Forcing& f) const;
@@ -123,9 +120,10 @@ class ChainSystem {
   /// excess over a head column's brim as it becomes brim-full, else 0.
   double apply_switch(int k, ChainState& x, ChainMode& m, const Forcing& f,
                       const ChainRates& r) const;
-  /// True when for `span_s` under `f` the release passes nothing and cannot start to, nothing
-  /// overflows and the head column is empty or passes a trickle: the chain is then linear.
-  bool at_rest(const ChainState& x, const ChainMode& m, const Forcing& f, double span_s) const;
+  /// True when, with `arriving_m3` more reaching the reservoir over a span, the release passes
+  /// nothing and cannot start to, nothing overflows and the head column is empty or passes a
+  /// trickle: the chain is then linear.
+  bool at_rest(const ChainState& x, const ChainMode& m, double arriving_m3) const;
 
   /// Evaporation from the reservoir holding `volume_m3` under `f`, m3/s.
   double evaporation_m3_per_s(double volume_m3, const Forcing& f) const;
@@ -137,9 +135,10 @@ class ChainSystem {
   /// The state and mode at the start of a run.
   ChainState initial_state() const;
   ChainMode initial_mode(const ChainState& x) const;
-  /// Sets the initial loss's mode for a segment of `f`: filling or full while it rains, drying
-  /// or dry otherwise.
-  void start_segment(const ChainState& x, ChainMode& m, const Forcing& f) const;
+  /// The roof stage over a segment of rain `rain_m_per_s` from the stores in `x`.
+  RoofSpan roof_span(const ChainState& x, double rain_m_per_s) const;
+  /// Puts the roof stage's stores `s` into `x`.
+  static void set_roof(const RoofStores& s, ChainState& x);
   /// "mode: ...; state: ..." for a failure message.
   std::string describe(const ChainState& x, const ChainMode& m) const;
 

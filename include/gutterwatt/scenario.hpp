@@ -16,6 +16,7 @@
 #include "gutterwatt/rain_input.hpp"
 #include "gutterwatt/release.hpp"
 #include "gutterwatt/reservoir.hpp"
+#include "gutterwatt/roof.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
@@ -49,19 +50,6 @@ struct RainConfig {
   /// than its step), not used by tips.
   std::optional<Disaggregation> disaggregate;
   std::optional<CalibrationRecord> calibrate_with;  ///< rain.disaggregate.calibrate_with
-};
-
-struct RoofConfig {
-  double area_m2 = 0.0;  ///< plan (horizontal) area
-  double runoff_coefficient = 0.9;
-  double initial_loss_m = 0.5e-3;
-  double drying_m_per_s = 3e-3 / kSecondsPerDay;  ///< 3 mm a day
-  double lag_s = 60.0;  ///< linear-reservoir constant; 0 passes runoff straight through
-};
-
-struct FirstFlushConfig {
-  double volume_m3 = 0.0;  ///< 0: no diverter
-  double reset_after_dry_s = 12.0 * 3600.0;
 };
 
 struct SimulationConfig {

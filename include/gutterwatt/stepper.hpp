@@ -2,9 +2,13 @@
 /// The stepping of a run, as odeint keeps it apart from the system and the observers: each
 /// segment of constant forcing is advanced in closed form while the chain is at rest, and
 /// otherwise by an error-controlled dense-output stepper (or the fixed-step reference) that
-/// locates every guard's zero on the dense output and restarts in the new mode there.
+/// locates every guard's zero on the dense output and restarts in the new mode there. The roof
+/// stage is always in closed form (RoofSpan): the solver integrates the reservoir's water less
+/// what the roof has handed it since the segment began, so the roof's inflow, however sharp,
+/// enters exactly and sets no step.
 
 #include <atomic>
+#include <optional>
 #include <string>
 
 #include "gutterwatt/accounts.hpp"
@@ -55,20 +59,25 @@ class Stepper {
   ChainRates settle(const Forcing& f, Guards& g, ChainState& dxdt);
   void integrate(double t0, double t1, const Forcing& f);
   void integrate_fixed(double t0, double t1, const Forcing& f);
-  bool coasted_to_end(double left_s, const Forcing& f);
+  bool coasted_to_end(double t, double span, const Forcing& f);
   void accept_step(const ChainState& x_end, double dt, const ChainRates& r, int fired,
                    const Forcing& f, double t_abs);
   void switch_mode(int k, const Forcing& f, const ChainRates& r);
-  void coast(double dt, const Forcing& f);
+  void coast(double t, double span, const Forcing& f);
   void evaporate_at_rest(double dt, const Forcing& f);
+  /// The solver's state at `t` within the segment (the reservoir less the roof's inflow since
+  /// the segment began) from the engine's `x`, and back, with the roof's stores at `t`.
+  ChainState to_solver(const ChainState& x, double t) const;
+  void from_solver(const ChainState& w, double t, ChainState& x) const;
 
   const ChainSystem& system_;
   Ledger& ledger_;
   const RunOptions& options_;
   ChainState x_;
   ChainMode mode_;
-  double now_s_ = 0.0;         // absolute, seconds since the epoch
-  double last_step_s_ = 10.0;  // solver step carried from one segment into the next
+  std::optional<RoofSpan> roof_;  // the roof stage over the current segment
+  double now_s_ = 0.0;            // absolute, seconds since the epoch
+  double last_step_s_ = 10.0;     // solver step carried from one segment into the next
   SolverStats stats_;
   ChainState error_scale_{};  // the error checker's absolute scale per slot
 };
