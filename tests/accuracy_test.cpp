@@ -128,6 +128,24 @@ TEST(Accuracy, TightToleranceAgreesWithTheFixedStepReference) {
             1e-5);
 }
 
+// Issue 16: the roof stage in closed form makes a short lag cost what no lag costs, and leaves
+// the answer where the fixed-step reference (which steps the same closed-form roof) puts it. The
+// demo's own 60 s lag is checked above.
+TEST(Accuracy, ShortRoofLagAgreesWithTheFixedStepReference) {
+  for (const char* lag : {"roof.lag_s=0.01"}) {
+    const RunResult reference = run_with({lag}, 0.05);
+    const RunResult run = run_with({lag});
+    EXPECT_EQ(run.cycles, reference.cycles) << lag;
+    EXPECT_EQ(run.overflow_events, reference.overflow_events) << lag;
+    EXPECT_LT(relative_difference(run.totals.electrical_J, reference.totals.electrical_J), 0.005)
+        << lag;
+    const RunResult tight = run_with({lag, "simulation.rtol=1e-10"});
+    EXPECT_EQ(tight.cycles, reference.cycles) << lag;
+    EXPECT_LT(relative_difference(tight.totals.electrical_J, reference.totals.electrical_J), 1e-5)
+        << lag;
+  }
+}
+
 TEST(Accuracy, ReferenceClosesItsWaterBalance) {
   EXPECT_LT(reference_run().balance_relative_error, kMaxBalanceError);
   EXPECT_GT(reference_run().stats.steps, 100000);  // it did take the fine steps
