@@ -240,13 +240,11 @@ void apply_disaggregate(const Value& v, Scenario& s) {
   static const std::vector<Key> kKeys = {
       {"method", kRequired,
        [](V v, S s) {
-         disaggregation(s).method =
-             v.choice<DisaggregationMethod>({{"block", DisaggregationMethod::block},
-                                             {"nrcs-I", DisaggregationMethod::nrcs_i},
-                                             {"nrcs-IA", DisaggregationMethod::nrcs_ia},
-                                             {"nrcs-II", DisaggregationMethod::nrcs_ii},
-                                             {"nrcs-III", DisaggregationMethod::nrcs_iii},
-                                             {"cascade", DisaggregationMethod::cascade}});
+         std::vector<std::pair<std::string_view, DisaggregationMethod>> names;
+         for (const DisaggregationMethod m : kDisaggregationMethods) {
+           names.emplace_back(method_name(m), m);
+         }
+         disaggregation(s).method = v.choice<DisaggregationMethod>(names);
        }},
       {"duration_h", kOptional,
        [](V v, S s) {

@@ -15,6 +15,7 @@
 #include <map>
 #include <optional>
 #include <set>
+#include <span>
 #include <string>
 #include <string_view>
 #include <utility>
@@ -235,6 +236,12 @@ class Value {
 
   template <class T>
   T choice(std::initializer_list<std::pair<std::string_view, T>> options) const {
+    return choice(std::span<const std::pair<std::string_view, T>>(options.begin(), options.size()));
+  }
+
+  /// As above, for a list made at run time.
+  template <class T>
+  T choice(std::span<const std::pair<std::string_view, T>> options) const {
     for (const auto& [name, option] : options) {
       if (node_.IsScalar() && node_.Scalar() == name) return option;
     }

@@ -26,10 +26,6 @@ Disaggregation method(DisaggregationMethod m, Instant step_s = 300) {
   return how;
 }
 
-constexpr DisaggregationMethod kAllMethods[] = {
-    DisaggregationMethod::block,   DisaggregationMethod::nrcs_i,   DisaggregationMethod::nrcs_ia,
-    DisaggregationMethod::nrcs_ii, DisaggregationMethod::nrcs_iii, DisaggregationMethod::cascade};
-
 RainSeries read_daily(const std::string& text) {
   std::istringstream in(text);
   SeriesFormat fmt;
@@ -81,7 +77,7 @@ TEST(Disaggregation, ConservesEachDayExactlyForEveryMethod) {
   const RainSeries as_read = read_daily(kDaily);
   std::vector<Instant> days;
   for (Instant d = 0; d <= 6; ++d) days.push_back(kT0 + d * kDay);
-  for (const DisaggregationMethod m : kAllMethods) {
+  for (const DisaggregationMethod m : kDisaggregationMethods) {
     const RainSeries rain = disaggregate(as_read, method(m));
     EXPECT_EQ(sums_between(rain, days), kDailyDepths_m) << method_name(m);
     EXPECT_EQ(rain.total_depth_m, sum_depths_m(rain.pulses)) << method_name(m);
@@ -429,6 +425,41 @@ TEST(Disaggregation, FitsABurstierCascadeToASteeperIdfCurve) {
   EXPECT_EQ(sum_depths_m(rain.pulses), daily.total_depth_m);
   EXPECT_EQ(std::find(rain.warnings.begin(), rain.warnings.end(), kUncalibratedWarning),
             rain.warnings.end());
+}
+
+TEST(Disaggregation, IdfFitFollowsAPublishedCurve) {
+  // The published curve of REFERENCES.md section 8 (the Chicago check: i = a / (t + b)^c with
+  // a 1500 mm/h, b 10 min, c 0.75), whose depths are 26.434 mm in 10 min, 47.154 mm in 30 min
+  // and 61.982 mm in 60 min (its check values, a T / (T + b)^c / 60). Invented daily totals, eight
+  // years from 2025-03-01 of 60 wet days each: 59 of 2 to 31 mm and one storm day of 200 mm.
+  RainSeries daily;
+  daily.step_s = kDay;
+  daily.covered = {{kT0, kT0 + 8 * 365 * kDay}};
+  for (Instant year = 0; year < 8; ++year) {
+    for (Instant d = 0; d < 60; ++d) {
+      const double mm = d == 30 ? 200.0 : 2.0 + static_cast<double>((d * 7 + year) % 30);
+      const Instant start = kT0 + (year * 365 + d * 6) * kDay;
+      daily.pulses.push_back({start, start + kDay, mm * 1e-3});
+    }
+  }
+  daily.total_depth_m = sum_depths_m(daily.pulses);
+  const IdfCurve chicago{1500, 10, 0.75};
+  Disaggregation how = method(DisaggregationMethod::cascade);
+  how.intermittency = fit_intermittency(daily, how, chicago);
+  how.idf = chicago;
+  const RainSeries rain = disaggregate(daily, how);
+  // One number fitted to three durations cannot meet the curve at each: the fitted record's
+  // 2-year depths are asked to lie within a factor of 1.25 of the published ones (a project
+  // tolerance, no source). The default intermittency (0.3) misses it: 48 mm in 10 minutes,
+  // 1.8 times the curve's (worked out when this test was written).
+  const double published_mm[][2] = {{10, 26.434}, {30, 47.154}, {60, 61.982}};
+  for (const auto& [minutes, mm] : published_mm) {
+    const auto duration_s = static_cast<Instant>(minutes * 60);
+    const double got_mm = median_annual_max_intensity_m_per_s(rain, duration_s) *
+                          static_cast<double>(duration_s) * 1e3;
+    EXPECT_GT(got_mm, mm / 1.25) << minutes << " min";
+    EXPECT_LT(got_mm, mm * 1.25) << minutes << " min";
+  }
 }
 
 TEST(Disaggregation, NumbersRealizationsFromTheGivenSeed) {

@@ -16,6 +16,12 @@ namespace gutterwatt {
 /// the TR-55 24-hour shape of their region; `cascade` by a random cascade.
 enum class DisaggregationMethod { block, nrcs_i, nrcs_ia, nrcs_ii, nrcs_iii, cascade };
 
+/// Every method, in the order the scenario's messages list them; their scenario names are
+/// method_name's (disaggregation.hpp), the one list of them.
+inline constexpr DisaggregationMethod kDisaggregationMethods[] = {
+    DisaggregationMethod::block,   DisaggregationMethod::nrcs_i,   DisaggregationMethod::nrcs_ia,
+    DisaggregationMethod::nrcs_ii, DisaggregationMethod::nrcs_iii, DisaggregationMethod::cascade};
+
 /// Where a daily record's total falls in its local day: [midnight + start_s,
 /// midnight + start_s + duration_s), inside the day (start_s + duration_s <= 86400). Whole
 /// seconds. Daily records only; a series interval is spread over itself.
