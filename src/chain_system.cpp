@@ -11,6 +11,7 @@ namespace gutterwatt {
 ChainSystem::ChainSystem(const Scenario& scenario)
     : sc_(scenario),
       geometry_(scenario.reservoir),
+      delivery_(gutter_delivery(scenario.reservoir)),
       plant_(plant_config(scenario)),
       release_(make_release(scenario.release)),
       trickle_volume_m3_(plant_.column_area_m2() * kTrickleHead_m),
@@ -49,6 +50,23 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
   const bool needs_full_flow = m.release != ReleaseState::idle && m.release != ReleaseState::closed;
   const double full_flow = needs_full_flow ? plant_.full_flow_m3_per_s(r.level_m) : 0.0;
   r.release = release_->outflow_m3_per_s(m.release, r.level_m, full_flow);
+  r.outlet_level_m = r.level_m;
+  if (delivery_) {
+    // A level gutter delivers no more than its water-surface profile allows (gutter_flow.hpp):
+    // a siphon drawing more uncovers its bell. A dribble or a closed valve draws too little to
+    // lower the outlet: their switches stay on the level.
+    // A siphon or a float valve running ends on the depth at the outlet for what it draws,
+    // within 1 / kOutletDrawdownRamp of what the gutter delivers: it is not capped, which would
+    // put a kink in the rates that a step could straddle just before the switch. An orifice,
+    // always open, and a dribble take what the gutter delivers.
+    const bool ends_on_outlet =
+        sc_.release.kind != ReleaseKind::orifice && release_->is_running(m.release);
+    if (ends_on_outlet) {
+      r.outlet_level_m = delivery_->outlet_depth_m(x[kReservoir], r.level_m, r.release);
+    } else {
+      r.release = std::min(r.release, delivery_->max_flow_m3_per_s(x[kReservoir]));
+    }
+  }
   r.overflow = m.overflowing ? geometry_.overflow_m3_per_s(r.level_m) : 0.0;
   r.evaporation = evaporation_at_m3_per_s(geometry_, r.level_m, f);
   d[kReservoir] = -r.release - r.overflow - r.evaporation;
@@ -97,8 +115,20 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
   constexpr double kInactive = 1.0;
   g.fill(kInactive);
   Guard rel[Release::kMaxGuards];
-  const int n = release_->guards(m.release, r.level_m, rel);
+  const int n = release_->guards(m.release, r.outlet_level_m, rel);
   for (int k = 0; k < n; ++k) g[kGuardRelease0 + k] = rel[k].value;
+  if (delivery_ && sc_.release.kind != ReleaseKind::orifice) {
+    // A siphon or valve starts only where the gutter feeds it, its outlet then kStartMargin_m
+    // above where it would end: else it would end at once, and start again, without end.
+    for (int k = 0; k < n; ++k) {
+      if (!release_->is_running(rel[k].next)) continue;
+      const double drawn =
+          running_outflow_m3_per_s(*release_, r.level_m, plant_.full_flow_m3_per_s(r.level_m));
+      const double outlet = delivery_->outlet_depth_m(x[kReservoir], r.level_m, drawn);
+      g[kGuardRelease0 + k] =
+          std::max(g[kGuardRelease0 + k], sc_.release.break_level_m + kStartMargin_m - outlet);
+    }
+  }
 
   const double rim = geometry_.rim_m();
   g[kGuardOverflow] =
@@ -155,7 +185,7 @@ double ChainSystem::apply_switch(int k, ChainState& x, ChainMode& m, const Forci
     case kGuardRelease0:
     case kGuardRelease1: {
       Guard rel[Release::kMaxGuards];
-      release_->guards(m.release, r.level_m, rel);
+      release_->guards(m.release, r.outlet_level_m, rel);
       m.release = rel[k - kGuardRelease0].next;
       break;
     }

@@ -9,6 +9,7 @@
 
 #include "detail.hpp"
 #include "gutterwatt/disaggregation.hpp"
+#include "gutterwatt/gutter_flow.hpp"
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/plant.hpp"
 #include "gutterwatt/release.hpp"
@@ -178,11 +179,37 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
   // Outflow with the release running, from the release itself (a valve's or orifice's opening
   // may limit it below what the conveyance carries; no release passes nothing).
   const std::unique_ptr<Release> release = make_release(rel);
-  const auto release_flow = [&](double level_m) {
+  const std::optional<GutterDelivery> delivery = gutter_delivery(sc.reservoir);
+  const auto drawn_flow = [&](double level_m) {
     return running_outflow_m3_per_s(*release, level_m, plant.full_flow_m3_per_s(level_m));
   };
+  const auto release_flow = [&](double level_m) {
+    const double q = drawn_flow(level_m);
+    return delivery ? std::min(q, delivery->max_flow_m3_per_s(geometry.volume_m3(level_m))) : q;
+  };
+  double ends_m = bottom_m;  // the level at which a running release ends
+  if (delivery) {
+    d.gutter_delivery_trigger_m3_per_s = delivery->max_flow_m3_per_s(geometry.volume_m3(top_m));
+    d.gutter_delivery_brim_m3_per_s = delivery->flow_with_closed_end_at_m3_per_s(geometry.rim_m());
+    if (has_set_points) {
+      // It breaks on the depth at the outlet for what it draws (gutter_flow.hpp), which rises
+      // with the level: the level where that depth is the break level, by bisection.
+      const auto outlet_m = [&](double h) {
+        return delivery->outlet_depth_m(geometry.volume_m3(h), h, drawn_flow(h));
+      };
+      double lo = bottom_m;
+      double hi = top_m;
+      if (outlet_m(hi) <= bottom_m) lo = hi;
+      for (int k = 0; k < 60 && hi - lo > 1e-9; ++k) {
+        const double mid = 0.5 * (lo + hi);
+        (outlet_m(mid) > bottom_m ? hi : lo) = mid;
+      }
+      ends_m = hi;
+      d.release_ends_level_m = ends_m;
+    }
+  }
   d.running_flow_trigger_m3_per_s = release_flow(top_m);
-  d.running_flow_break_m3_per_s = release_flow(bottom_m);
+  d.running_flow_break_m3_per_s = release_flow(ends_m);
   d.overflow_intensity_m_per_s = intensity_for_flow(sc, release_flow(geometry.rim_m()));
 
   // The head the plant holds its runner for: the column's height, or the nozzle's head with the
@@ -201,7 +228,7 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
   if (has_set_points && d.running_flow_break_m3_per_s > 0.0) {
     // Drain time t = integral of A(h) dh / Q(h) from break to the set-point (level-pool).
     d.cycle_drain_s = simpson(
-        [&](double h) { return geometry.surface_area_m2(h) / release_flow(h); }, bottom_m, top_m);
+        [&](double h) { return geometry.surface_area_m2(h) / release_flow(h); }, ends_m, top_m);
     d.energy_per_cycle_J = one_cycle_energy_J(sc, top_m);
   }
   if (plant.has_column() && d.running_flow_trigger_m3_per_s > d.nozzle_flow_m3_per_s) {
@@ -237,6 +264,18 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
         " of rain, less than the record's 2-year peak of " + mmh(d.record->peak_intensity_m_per_s) +
         " (median of the annual maxima at the record's step): the reservoir will "
         "overflow in heavy rain. Lead the overflow somewhere safe.");
+  }
+  if (d.release_ends_level_m && *d.release_ends_level_m > bottom_m + 1e-3) {
+    const double held_L = (geometry.volume_m3(ends_m) - geometry.volume_m3(bottom_m)) * 1e3;
+    d.warnings.push_back(
+        "Below " + shown(units, ends_m / kMetresPerMm, "mm") +
+        " the gutter delivers to its outlet less than the release running full takes (" +
+        shown(units, drawn_flow(ends_m) * kLitresPerMinutePerM3PerS, "L_per_min") +
+        "): a long level gutter cannot feed it along its length, the outlet is drawn down and "
+        "the release ends there, above its break level (" +
+        shown(units, bottom_m / kMetresPerMm, "mm") + "), leaving " + shown(units, held_L, "L") +
+        " of each cycle in the gutter. A shorter run to each outlet, a larger gutter or a tank "
+        "would feed it.");
   }
   if (!plant.has_column() && d.running_flow_trigger_m3_per_s > 0.0) {
     const double total = top_m + sc.drop_m;
@@ -335,7 +374,16 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
     mmh("priming flow as steady rain on this roof", *d.priming_intensity_m_per_s);
   }
   lpm("running flow at the set-point", d.running_flow_trigger_m3_per_s);
-  lpm("running flow at the break level", d.running_flow_break_m3_per_s);
+  lpm("running flow where the release ends", d.running_flow_break_m3_per_s);
+  if (d.gutter_delivery_trigger_m3_per_s) {
+    lpm("gutter delivery to the outlet at the set-point", *d.gutter_delivery_trigger_m3_per_s);
+  }
+  if (d.gutter_delivery_brim_m3_per_s) {
+    lpm("gutter delivery brim-full", *d.gutter_delivery_brim_m3_per_s);
+  }
+  if (d.release_ends_level_m) {
+    figure("level at which the running release ends", *d.release_ends_level_m * 1e3, "mm");
+  }
   if (d.cycle_drain_s) line("running time per cycle (no inflow)", shown(*d.cycle_drain_s), "s");
   if (d.column_fill_s) line("head column brim-full after", shown(*d.column_fill_s), "s");
   figure(sc.head_column ? "design head (head column brim-full)" : "design head at the nozzle",

@@ -1,9 +1,11 @@
 #pragma once
 // Small helpers the library and the command line share, written once: whitespace trimming,
 // plain comma-separated fields and data lines (past a UTF-8 byte-order mark), floor division,
-// whole-text number parsing, fixed-point text, whole seconds of the calendar and the exit statuses.
-// Internal (not installed, not public API); tests in tests/detail_test.cpp.
+// a safeguarded root of an increasing function, whole-text number parsing, fixed-point text, whole
+// seconds of the calendar and the exit statuses. Internal (not installed, not public API); tests in
+// tests/detail_test.cpp.
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <cstdint>
@@ -22,6 +24,29 @@
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt::detail {
+
+/// The root in [lo, hi] of the increasing f(h) = target, by Newton steps on f' = slope(h) that
+/// fall back to bisection whenever a step leaves the bracket; stops when a step is below
+/// `tolerance`.
+template <class F, class Slope>
+double solve_increasing(double target, F f, Slope slope, double lo, double hi, double guess,
+                        double tolerance) {
+  double h = std::clamp(guess, lo, hi);
+  for (int iter = 0; iter < 100; ++iter) {
+    const double miss = f(h) - target;
+    if (miss > 0.0) {
+      hi = h;
+    } else {
+      lo = h;
+    }
+    const double s = slope(h);
+    double next = s > 0.0 ? h - miss / s : 0.5 * (lo + hi);
+    if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
+    if (std::abs(next - h) <= tolerance) return next;
+    h = next;
+  }
+  return h;
+}
 
 /// Whole seconds, for calendar arithmetic on instants.
 inline constexpr std::int64_t kMinute_s = 60;

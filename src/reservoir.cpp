@@ -3,6 +3,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "detail.hpp"
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/units.hpp"
 
@@ -23,29 +24,6 @@ namespace {
 double segment_width_m(double radius_m, double depth_m) {
   const double h = std::clamp(depth_m, 0.0, 2.0 * radius_m);
   return 2.0 * std::sqrt(std::max(0.0, 2.0 * radius_m * h - h * h));
-}
-
-/// The root in [lo, hi] of the increasing f(h) = target, by Newton steps on f' = slope(h) that
-/// fall back to bisection whenever a step leaves the bracket; stops when a step is below
-/// `tolerance`.
-template <class F, class Slope>
-double solve_increasing(double target, F f, Slope slope, double lo, double hi, double guess,
-                        double tolerance) {
-  double h = std::clamp(guess, lo, hi);
-  for (int iter = 0; iter < 100; ++iter) {
-    const double miss = f(h) - target;
-    if (miss > 0.0) {
-      hi = h;
-    } else {
-      lo = h;
-    }
-    const double s = slope(h);
-    double next = s > 0.0 ? h - miss / s : 0.5 * (lo + hi);
-    if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    if (std::abs(next - h) <= tolerance) return next;
-    h = next;
-  }
-  return h;
 }
 
 }  // namespace
@@ -131,6 +109,10 @@ std::optional<CrossSection> k_style_section(double size_m) {
   return std::nullopt;
 }
 
+bool is_level_gutter(const ReservoirConfig& c) {
+  return c.shape != ReservoirShape::table && c.shape != ReservoirShape::tank && c.fall_m == 0.0;
+}
+
 CrossSection section_of(const ReservoirConfig& c) {
   switch (c.shape) {
     case ReservoirShape::half_round:
@@ -143,6 +125,7 @@ CrossSection section_of(const ReservoirConfig& c) {
     case ReservoirShape::box:
     case ReservoirShape::rectangular:
     case ReservoirShape::table:
+    case ReservoirShape::tank:
       break;
   }
   // A box's functions do not depend on its depth: without one, the rim (or any length) serves.
@@ -160,7 +143,12 @@ ReservoirGeometry::ReservoirGeometry(const ReservoirConfig& config)
       weir_length_m_(config.overflow_length_m > 0.0 ? config.overflow_length_m : config.length_m),
       levels_m_(config.table_level_m),
       areas_m2_(config.table_area_m2) {
-  if (config.shape == ReservoirShape::table) {
+  if (config.shape == ReservoirShape::tank && levels_m_.empty()) {
+    // Vertical sides: the table of one plan area from the floor to the rim (and above it).
+    levels_m_ = {0.0, rim_m_};
+    areas_m2_ = {config.tank_area_m2, config.tank_area_m2};
+  }
+  if (config.shape == ReservoirShape::table || config.shape == ReservoirShape::tank) {
     kind_ = Kind::table;
     volumes_m3_.assign(levels_m_.size(), 0.0);
     for (std::size_t k = 1; k < levels_m_.size(); ++k) {
@@ -178,7 +166,7 @@ ReservoirGeometry::ReservoirGeometry(const ReservoirConfig& config)
     const double r = section_.depth_m();
     const auto solve_area = [&](double area_m2) {
       const double guess = std::cbrt(3.0 * area_m2 / (4.0 * std::sqrt(2.0 * r)));
-      return solve_increasing(
+      return detail::solve_increasing(
           area_m2, [r](double h) { return circular_segment_area_m2(r, h); },
           [r](double h) { return segment_width_m(r, h); }, 0.0, 2.0 * r, guess * guess, 1e-15 * r);
     };
@@ -307,7 +295,7 @@ double ReservoirGeometry::level_m(double volume_m3) const {
 }
 
 double ReservoirGeometry::solve_level_m(double volume_m3, double guess) const {
-  return solve_increasing(
+  return detail::solve_increasing(
       volume_m3, [this](double h) { return section_volume_m3(h); },
       [this](double h) { return section_area_m2(h); }, 0.0, rim_m_, guess, 1e-15 * rim_m_);
 }

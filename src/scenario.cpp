@@ -479,7 +479,8 @@ const std::vector<Section>& schema() {
                                             {"box", ReservoirShape::box},
                                             {"trapezoid", ReservoirShape::trapezoid},
                                             {"rectangular", ReservoirShape::rectangular},
-                                            {"table", ReservoirShape::table}});
+                                            {"table", ReservoirShape::table},
+                                            {"tank", ReservoirShape::tank}});
             }},
            {"width_mm", kOptional,
             [](V v, S s) { s.reservoir.width_m = v.number(kPositive) * kMetresPerMm; }},
@@ -528,6 +529,14 @@ const std::vector<Section>& schema() {
             }},
            {"areas_m2", kOptional,
             [](V v, S s) { s.reservoir.table_area_m2 = v.numbers(kPositive); }},
+           {"area_m2", kOptional,
+            [](V v, S s) { s.reservoir.tank_area_m2 = v.number(kPositive); }},
+           {"diameter_mm", kOptional,
+            [](V v, S s) {
+              // A round tank or barrel: plan area pi d^2 / 4.
+              const double d = v.number(kPositive) * kMetresPerMm;
+              s.reservoir.tank_area_m2 = std::numbers::pi * d * d / 4.0;
+            }},
        }},
       {"release",
        kRequired,

@@ -1,6 +1,8 @@
 // The scenario's checks across keys (see scenario_value.hpp): each reads the keys it needs from
 // what the loader saw and fails on the key to blame.
 
+#include <cmath>
+#include <numbers>
 #include <string>
 #include <vector>
 
@@ -79,15 +81,37 @@ void check_reservoir(const Seen& seen, Scenario& s) {
   const auto not_for_shape = [&](const std::string& key) {
     if (seen.has(key)) seen.at(key).fail("not used by shape: " + shape);
   };
-  if (r.shape == ReservoirShape::table) {
+  const bool tank = r.shape == ReservoirShape::tank;
+  const bool tabulated =
+      r.shape == ReservoirShape::table ||
+      (tank && !seen.has("reservoir.area_m2") && !seen.has("reservoir.diameter_mm"));
+  if (tank) {
+    seen.exclusive("reservoir.area_m2", "reservoir.diameter_mm");
+    for (const char* key : {"reservoir.area_m2", "reservoir.diameter_mm"}) {
+      if (seen.has(key)) {
+        seen.exclusive(key, "reservoir.levels_mm");
+        seen.exclusive(key, "reservoir.areas_m2");
+      }
+    }
+    if (tabulated) seen.require("reservoir.levels_mm", why + " (or area_m2 or diameter_mm)");
+    not_for_shape("reservoir.length_m");
+    if (!seen.has("reservoir.diameter_mm")) seen.require("reservoir.overflow_length_m", why);
+  } else {
+    not_for_shape("reservoir.area_m2");
+    not_for_shape("reservoir.diameter_mm");
+  }
+  if (tabulated) {
     seen.require("reservoir.levels_mm", why);
     seen.require("reservoir.areas_m2", why);
     if (!seen.has("reservoir.length_m")) seen.require("reservoir.overflow_length_m", why);
     seen.require("reservoir.rim_mm", why);
     check_level_table(seen);
-    not_for_shape("reservoir.fall_mm");
-  } else {
+  } else if (!tank) {
     seen.require("reservoir.length_m", why);
+  }
+  if (tabulated || tank) {
+    not_for_shape("reservoir.fall_mm");
+    seen.require("reservoir.rim_mm", why);
   }
   seen.exclusive("reservoir.width_mm", "reservoir.size_mm");
   if (r.shape == ReservoirShape::k_style) {
@@ -98,7 +122,7 @@ void check_reservoir(const Seen& seen, Scenario& s) {
                 "150 mm");
   } else if (r.shape == ReservoirShape::half_round) {
     if (!seen.has("reservoir.size_mm")) seen.require("reservoir.width_mm", why + " (or size_mm)");
-  } else if (r.shape != ReservoirShape::table) {
+  } else if (r.shape != ReservoirShape::table && !tank) {
     seen.require("reservoir.width_mm", why);
     not_for_shape("reservoir.size_mm");
   } else {
@@ -133,7 +157,12 @@ void check_reservoir(const Seen& seen, Scenario& s) {
     initial.expect(initial.number() * kMetresPerMm <= r.rim_m * (1.0 + 1e-12),
                    "must not be above " + rim_text(seen, s));
   }
-  if (!seen.has("reservoir.overflow_length_m")) r.overflow_length_m = r.length_m;
+  if (!seen.has("reservoir.overflow_length_m")) {
+    // A round tank spills over its whole rim, pi d = sqrt(4 pi A) long.
+    r.overflow_length_m = seen.has("reservoir.diameter_mm")
+                              ? std::sqrt(4.0 * std::numbers::pi * r.tank_area_m2)
+                              : r.length_m;
+  }
 }
 
 void check_release(const Seen& seen, const Scenario& s) {

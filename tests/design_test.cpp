@@ -238,12 +238,42 @@ TEST(Design, PrintsEveryFigureOfASystemWithoutColumnOrRecordAndTheCautions) {
   for (const char* label :
        {"storage between the set-points", "priming level (lip + head on the standpipe)",
         "priming flow as steady rain", "running flow at the set-point",
-        "running flow at the break level", "running time per cycle", "design head",
+        "running flow where the release ends", "running time per cycle", "design head",
         "nozzle flow at design head", "jet velocity", "jet power", "runner speed at design head",
         "speed ratio (bucket / jet speed)", "electrical power at design head",
         "rain that overflows the rim", "energy per cycle", "Cautions", "Working at height"}) {
     EXPECT_NE(text.find(label), std::string::npos) << label;
   }
+}
+
+TEST(Design, ALongLevelGutterPrintsItsDeliveryAndWarnsWhereItCannotFeedTheRelease) {
+  Scenario s = make_scenario();
+  s.reservoir.shape = ReservoirShape::half_round;
+  s.reservoir.width_m = 0.125;
+  s.reservoir.length_m = 8.0;
+  const DesignFigures d = evaluate_design(s, nullptr);
+  // Brim-full (closed end at the 62 mm rim): 0.9184 x F_L(8 / 0.062 = 129.0: 0.88935) x
+  // sqrt(g A^3 / T) of the 125 mm half-round at 62 / sqrt(3) = 35.80 mm = 1.1897 L/s (C).
+  ASSERT_TRUE(d.gutter_delivery_brim_m3_per_s.has_value());
+  EXPECT_NEAR(*d.gutter_delivery_brim_m3_per_s * 1e3, 1.1897, 1e-3);
+  ASSERT_TRUE(d.gutter_delivery_trigger_m3_per_s.has_value());
+  ASSERT_TRUE(d.release_ends_level_m.has_value());
+  // The siphon draws about 0.43 L/s, which the gutter feeds only above some level between the
+  // bell rim and the lip: the release ends there.
+  EXPECT_GT(*d.release_ends_level_m, s.release.break_level_m + 1e-3);
+  EXPECT_LT(*d.release_ends_level_m, s.release.trigger_level_m);
+  std::ostringstream out;
+  write_design(out, s, d);
+  for (const char* text : {"gutter delivery to the outlet at the set-point",
+                           "gutter delivery brim-full", "level at which the running release ends",
+                           "the gutter delivers to its outlet less than the release running full "
+                           "takes"}) {
+    EXPECT_NE(out.str().find(text), std::string::npos) << text;
+  }
+  // A tank is a level pool: none of it.
+  const DesignFigures pool = evaluate_design(make_scenario(), nullptr);
+  EXPECT_FALSE(pool.gutter_delivery_brim_m3_per_s.has_value());
+  EXPECT_FALSE(pool.release_ends_level_m.has_value());
 }
 
 TEST(Design, PointsToTheBenchTestUntilThePrimingFlowIsMeasured) {

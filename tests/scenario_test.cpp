@@ -392,6 +392,37 @@ TEST(Scenario, ReadsALevelAreaTable) {
   EXPECT_DOUBLE_EQ(s.reservoir.overflow_length_m, 0.3);
 }
 
+TEST(Scenario, ReadsATankByItsAreaOrItsDiameter) {
+  const std::string area = "  shape: tank\n  area_m2: 0.25\n  overflow_length_m: 2\n";
+  const Scenario s = parse(minimal_with("  width_mm: 100\n  length_m: 4\n", area));
+  EXPECT_EQ(s.reservoir.shape, ReservoirShape::tank);
+  EXPECT_DOUBLE_EQ(s.reservoir.tank_area_m2, 0.25);
+  EXPECT_DOUBLE_EQ(s.reservoir.overflow_length_m, 2.0);
+  // A 580 mm barrel: plan area pi d^2 / 4 = 0.264208 m2, the rim pi d = 1.822124 m long (C).
+  const Scenario b = parse(
+      minimal_with("  width_mm: 100\n  length_m: 4\n", "  shape: tank\n  diameter_mm: 580\n"));
+  EXPECT_NEAR(b.reservoir.tank_area_m2, 0.264208, 1e-6);
+  EXPECT_NEAR(b.reservoir.overflow_length_m, 1.822124, 1e-6);
+  const Scenario t = parse(minimal_with(
+      "  width_mm: 100\n  length_m: 4\n",
+      "  shape: tank\n  levels_mm: [0, 300]\n  areas_m2: [0.2, 0.3]\n  overflow_length_m: 2\n"));
+  EXPECT_EQ(t.reservoir.table_area_m2, (std::vector<double>{0.2, 0.3}));
+}
+
+TEST(Scenario, RefusesATankWithoutASectionOrWithAGuttersKeys) {
+  EXPECT_EQ(error_of(minimal_with("  width_mm: 100\n  length_m: 4\n", "  shape: tank\n")),
+            "demo.yaml:8: reservoir.levels_mm: missing required key (needed by shape: tank (or "
+            "area_m2 or diameter_mm))");
+  EXPECT_EQ(error_of(minimal_with("  width_mm: 100\n", "  shape: tank\n  diameter_mm: 500\n")),
+            "demo.yaml:11: reservoir.length_m: not used by shape: tank");
+  EXPECT_EQ(error_of(minimal_with("  width_mm: 100\n  length_m: 4\n",
+                                  "  shape: tank\n  diameter_mm: 500\n  area_m2: 0.2\n")),
+            "demo.yaml:10: reservoir.diameter_mm: give either reservoir.area_m2 or "
+            "reservoir.diameter_mm, not both");
+  EXPECT_EQ(error_of(minimal_with("  length_m: 4\n", "  length_m: 4\n  area_m2: 0.2\n")),
+            "demo.yaml:11: reservoir.area_m2: not used by shape: half_round");
+}
+
 TEST(Scenario, ReadsAKStyleGutterByItsSizeWithTheRimAtItsDepth) {
   const Scenario s = parse(minimal_with("  width_mm: 100\n  length_m: 4\n  rim_mm: 50\n",
                                         "  shape: k_style\n  size_mm: 127\n  length_m: 12\n"
@@ -632,7 +663,7 @@ TEST(Scenario, RejectsANumberOutOfRange) {
 TEST(Scenario, ListsTheAllowedValuesOfAChoice) {
   EXPECT_EQ(error_of(minimal_with("  width_mm: 100", "  shape: round\n  width_mm: 100")),
             "demo.yaml:9: reservoir.shape: expected one of half_round, k_style, box, trapezoid, "
-            "rectangular or table, got "
+            "rectangular, table or tank, got "
             "\"round\"");
   EXPECT_EQ(error_of(minimal(), {"turbine.kind=crossflow"}),
             "--set: turbine.kind: expected impulse, got \"crossflow\"");

@@ -46,7 +46,8 @@ inline constexpr Instant kStart = 1740787200;
 inline constexpr double kLitre_m3 = 1e-3;
 inline constexpr double kPerMinute = 1.0 / 60.0;
 
-/// An invented bell-siphon system on a rectangular gutter with the roof as plain as it gets: roof
+/// An invented bell-siphon system on a level pool (a tank of the plan area of a gutter 0.1 m wide
+/// and 8 m long, 0.8 m2, spilling over 8 m of rim) with the roof as plain as it gets: roof
 /// lag 0, no initial loss, runoff coefficient 1, no first flush, generator cut-in 0, no load.
 /// Inflow to the reservoir is therefore rain intensity times roof area. The run covers
 /// [kStart, kStart + duration_s) with a sample every `output_interval_s`.
@@ -61,9 +62,8 @@ inline Scenario make_scenario(double duration_s = 6.0 * 3600.0, double output_in
   s.roof.drying_m_per_s = 3e-3 / 86400.0;
   s.roof.lag_s = 0.0;
   s.first_flush.volume_m3 = 0.0;
-  s.reservoir.shape = ReservoirShape::rectangular;
-  s.reservoir.width_m = 0.1;
-  s.reservoir.length_m = 8.0;
+  s.reservoir.shape = ReservoirShape::tank;
+  s.reservoir.tank_area_m2 = 0.1 * 8.0;
   s.reservoir.rim_m = 0.062;
   s.reservoir.overflow_coefficient = 1.7;
   s.reservoir.overflow_length_m = 8.0;

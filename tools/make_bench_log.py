@@ -15,7 +15,11 @@ Model (plain textbook relations, independent of gutterwatt's code):
   (0.61 pi d^2/4 sqrt(2 g h)); the siphon primes when that flow reaches the priming flow;
 - running, the drop pipe discharges freely into the head column's top:
   level + drop - column = (1 + f L/D + K) V^2 / 2g, f by Colebrook-White at 12 C;
-- it breaks when the level falls to the bell rim;
+- it breaks when the gutter can no longer feed it: a long level gutter delivers to its outlet at
+  most the critical flow sqrt(g A^3 / T) of the water-surface profile that holds its volume, the
+  outlet at critical depth y_c and y = y_c eta(s) along it, eta^3 - 3 eta + 2 s^2 = 0 (Beij
+  1934), scaled by 0.9184 (BS EN 12056-3's rating of a half-round) and the standard's length
+  factor F_L; once the siphon draws more, its outlet empties and air enters the bell;
 - the nozzle container catches one whole discharge: its volume is the water that left the gutter
   from priming to the break, its time the drain time.
 
@@ -34,7 +38,7 @@ G = 9.80665
 NU_12C = 1.2347e-6  # m2/s, water at 12 C: IAPWS 2008 viscosity 1.2340 mPa s (no critical term)
 # over density 999.497 kg/m3 (IAPWS-95, from memory); REFERENCES.md section 2 gives the method
 
-GUTTER_D, GUTTER_L = 0.125, 8.0
+GUTTER_D, GUTTER_L, GUTTER_RIM = 0.125, 8.0, 0.062
 LIP, RIM = 0.050, 0.008
 STANDPIPE = 0.019
 PIPE_D, PIPE_L, ROUGH = 0.019, 4.5, 0.0015e-3
@@ -54,6 +58,43 @@ TESTS = [
 
 def plan_area(h):
     return 2.0 * math.sqrt(max(h * (GUTTER_D - h), 0.0)) * GUTTER_L
+
+
+def section_area(y):
+    """Circular segment of depth y in the half-round (walls vertical above its radius)."""
+    r = GUTTER_D / 2
+    if y >= r:
+        return math.pi * r * r / 2 + (y - r) * GUTTER_D
+    theta = 2 * math.acos((r - y) / r)
+    return r * r * (theta - math.sin(theta)) / 2
+
+
+def delivery(h):
+    """The most the level gutter holding a level pool's volume at h delivers to its outlet."""
+    eta = lambda s: 2 * math.cos(math.acos(-s * s) / 3)
+    n = 200
+    profile = lambda yc: sum(section_area(yc * eta((i + 0.5) / n)) for i in range(n)) / n
+    lo, hi = 0.0, GUTTER_D
+    for _ in range(60):
+        mid = 0.5 * (lo + hi)
+        lo, hi = (mid, hi) if profile(mid) < section_area(h) else (lo, mid)
+    yc = 0.5 * (lo + hi)
+    top = 2 * math.sqrt(yc * (GUTTER_D - yc))
+    ratio = GUTTER_L / GUTTER_RIM
+    f_l = 1.0 if ratio <= 50 else 0.93 + (ratio - 100) / 50 * (0.86 - 0.93)  # 100 < L/d < 150
+    return 0.9184 * f_l * math.sqrt(G * section_area(yc) ** 3 / top)
+
+
+def break_level(q):
+    """Where the gutter's delivery no longer feeds the running siphon (the hose's q aside, as in
+    gutterwatt's quasi-steady gutter)."""
+    lo, hi = RIM, 0.06
+    if delivery(lo) >= running_flow(lo):
+        return RIM
+    for _ in range(50):
+        mid = 0.5 * (lo + hi)
+        lo, hi = (mid, hi) if delivery(mid) < running_flow(mid) else (lo, mid)
+    return 0.5 * (lo + hi)
 
 
 def standpipe_flow(head):
@@ -101,12 +142,13 @@ def bench(q):
     t_dribble = sum(plan_area(LIP + (i + 0.5) * hp / n) * hp / n / (q - standpipe_flow((i + 0.5) * hp / n))
                     for i in range(n))
     top = LIP + hp
+    end = break_level(q)
     m = 4000
     t_drain = 0.0
     stored = 0.0
     for i in range(m):
-        h = RIM + (i + 0.5) * (top - RIM) / m
-        dh = (top - RIM) / m
+        h = end + (i + 0.5) * (top - end) / m
+        dh = (top - end) / m
         t_drain += plan_area(h) * dh / (running_flow(h) - q)
         stored += plan_area(h) * dh
     return t_fill + t_dribble, t_drain, stored + q * t_drain

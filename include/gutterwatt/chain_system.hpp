@@ -6,9 +6,11 @@
 #include <array>
 #include <cstddef>
 #include <memory>
+#include <optional>
 #include <string>
 
 #include "gutterwatt/battery.hpp"
+#include "gutterwatt/gutter_flow.hpp"
 #include "gutterwatt/plant.hpp"
 #include "gutterwatt/release.hpp"
 #include "gutterwatt/reservoir.hpp"
@@ -67,6 +69,9 @@ struct Forcing {
 /// Every rate and intermediate value at one instant.
 struct ChainRates {
   double level_m = 0.0;
+  /// The level the release's switches see: while it runs from a level gutter, the depth at the
+  /// outlet (drawn down below the level); else the level.
+  double outlet_level_m = 0.0;
   double release = 0.0;      ///< m3/s
   double overflow = 0.0;     ///< m3/s over the reservoir's rim
   double evaporation = 0.0;  ///< m3/s from the reservoir's water surface
@@ -98,6 +103,11 @@ using Guards = std::array<double, kGuardCount>;
 /// make the solver's steps stability-bound for hours of dribble, while the power at such heads is
 /// far below any generator's cut-in.
 inline constexpr double kTrickleHead_m = 0.05;
+/// A siphon or float valve on a long level gutter starts only while the depth at the outlet,
+/// with it running, would stand this far above its break level: a project choice that keeps the
+/// start and the end apart where the gutter barely feeds it (between them it dribbles or stays
+/// closed).
+inline constexpr double kStartMargin_m = 1e-3;
 /// Volume below which a head column counts as drained.
 inline constexpr double kColumnDry_m3 = 1e-9;
 
@@ -149,6 +159,7 @@ class ChainSystem {
  private:
   const Scenario& sc_;
   ReservoirGeometry geometry_;
+  std::optional<GutterDelivery> delivery_;  // a level gutter: what it delivers to its outlet
   Plant plant_;
   std::unique_ptr<Release> release_;
   double trickle_volume_m3_;  // head column: volume at kTrickleHead_m

@@ -36,7 +36,15 @@ struct DesignFigures {
   std::optional<double> priming_level_m;  ///< bell: lip + standpipe head of the priming flow
   std::optional<double> priming_intensity_m_per_s;  ///< steady rain that just primes the bell
   double running_flow_trigger_m3_per_s = 0.0;       ///< release running full, level at trigger
-  double running_flow_break_m3_per_s = 0.0;         ///< ... at the break level
+  double running_flow_break_m3_per_s = 0.0;  ///< ... where it ends (the break level, or above it)
+  /// A level gutter: the most it delivers to its outlet holding the set-point's volume, and
+  /// brim-full (the water at its closed end at the rim).
+  std::optional<double> gutter_delivery_trigger_m3_per_s;
+  std::optional<double> gutter_delivery_brim_m3_per_s;
+  /// A level gutter: the level at which the release running full breaks (or closes), the depth
+  /// at its outlet drawn down to the break level; the break level itself when the gutter feeds
+  /// it down to there.
+  std::optional<double> release_ends_level_m;
   std::optional<double> cycle_drain_s;  ///< running time from the set-point to break, no inflow
   double design_head_m = 0.0;           ///< at the nozzle, release running at trigger
   double nozzle_flow_m3_per_s = 0.0;    ///< at the design head

@@ -2,7 +2,8 @@
 /// The reservoir (a gutter or small tank): level-volume relation and overflow over the rim, under
 /// the level-pool assumption (a flat water surface along the whole length). A gutter's floor may
 /// fall towards its outlet; the level is then measured above the floor at the outlet and the
-/// water it holds is a wedge.
+/// water it holds is a wedge. What a long level gutter can deliver to its outlet (its water
+/// surface is not flat while it drains) is gutter_flow.hpp's.
 
 #include <optional>
 #include <vector>
@@ -50,7 +51,9 @@ class CrossSection {
 /// is the trapezoid with the profile's floor width, top width and depth.
 std::optional<CrossSection> k_style_section(double size_m);
 
-enum class ReservoirShape { half_round, k_style, box, trapezoid, rectangular, table };
+/// Gutter sections (half_round .. rectangular), a level-area table, and a tank or barrel: a
+/// vertical-sided section of plan area tank_area_m2, or a level-area table.
+enum class ReservoirShape { half_round, k_style, box, trapezoid, rectangular, table, tank };
 
 struct ReservoirConfig {
   ReservoirShape shape = ReservoirShape::half_round;
@@ -65,6 +68,7 @@ struct ReservoirConfig {
   double overflow_length_m = 0.0;     ///< weir length; defaults to length_m (0 for table: required)
   std::vector<double> table_level_m;  ///< table: levels above the floor, increasing from 0
   std::vector<double> table_area_m2;  ///< table: plan (water-surface) area at each level
+  double tank_area_m2 = 0.0;          ///< tank with vertical sides: plan area (0: the table)
   double initial_level_m = 0.0;
   /// Open-water evaporation from the exposed surface, m/s: none, one value for the year, or twelve
   /// for January to December (local months).
@@ -83,7 +87,12 @@ inline constexpr double kEvaporationFilm_m = 1e-3;
 /// rate `rate_m_per_s`: E A, times level / kEvaporationFilm_m below the film depth, m3/s.
 double evaporation_m3_per_s(double rate_m_per_s, double surface_m2, double level_m);
 
-/// The cross-section of every shape but table (a k_style of a size without a profile: a box).
+/// True for a gutter section laid level (no fall): the shapes whose delivery to the outlet the
+/// water-surface profile limits (gutter_flow.hpp). A tank and a table are level pools.
+bool is_level_gutter(const ReservoirConfig& config);
+
+/// The cross-section of every shape but table and tank (a k_style of a size without a profile: a
+/// box).
 CrossSection section_of(const ReservoirConfig& config);
 
 /// Level-volume geometry of a gutter of any cross-section, level or falling, or of a level-area
