@@ -95,6 +95,17 @@ inline constexpr std::int64_t floor_div(std::int64_t a, std::int64_t b) {
   return a / b - ((a % b != 0) && ((a < 0) != (b < 0)) ? 1 : 0);
 }
 
+/// RFC 4180 cell: quoted when it holds a comma, a quote or a line break.
+inline std::string csv_cell(const std::string& s) {
+  if (s.find_first_of(",\"\r\n") == std::string::npos) return s;
+  std::string out = "\"";
+  for (const char c : s) {
+    out += c;
+    if (c == '"') out += '"';
+  }
+  return out + "\"";
+}
+
 /// The whole of `text` as a number (decimal or `e` notation, a leading `+` allowed, `nan` and
 /// `inf` too), or nullopt when any of it is not part of the number.
 inline std::optional<double> parse_double(std::string_view text) {

@@ -23,7 +23,6 @@
 namespace gutterwatt::detail {
 
 namespace fs = std::filesystem;
-using Json = nlohmann::json;
 
 std::string read_text(const fs::path& path) {
   std::error_code ec;
@@ -293,9 +292,6 @@ std::vector<Event> read_events(const fs::path& path) {
   return events;
 }
 
-namespace {
-
-/// Looks up `a.b.c` in a JSON object, or nullptr when any part is absent.
 const Json* find_key(const Json& root, std::string_view dotted) {
   const Json* node = &root;
   while (!dotted.empty()) {
@@ -311,7 +307,7 @@ const Json* find_key(const Json& root, std::string_view dotted) {
 }
 
 double json_number(const Json& root, const std::string& key, const std::string& file,
-                   const std::string& label = "") {
+                   const std::string& label) {
   const std::string field = label.empty() ? key : label;
   const Json* node = find_key(root, key);
   if (node == nullptr) throw InputError(file, 0, field, "missing");
@@ -328,7 +324,7 @@ std::optional<double> json_optional_number(const Json& root, const std::string& 
 }
 
 std::string json_string(const Json& root, const std::string& key, const std::string& file,
-                        const std::string& label = "") {
+                        const std::string& label) {
   const std::string field = label.empty() ? key : label;
   const Json* node = find_key(root, key);
   if (node == nullptr) throw InputError(file, 0, field, "missing");
@@ -348,8 +344,6 @@ Json parse_json(const fs::path& path) {
     throw InputError(path.string(), line, "", "not valid JSON");
   }
 }
-
-}  // namespace
 
 Summary read_summary(const fs::path& path) {
   const std::string file = path.string();

@@ -7,6 +7,7 @@
 #include <cstddef>
 #include <cstdint>
 #include <filesystem>
+#include <nlohmann/json.hpp>
 #include <optional>
 #include <string>
 #include <string_view>
@@ -20,6 +21,28 @@ namespace gutterwatt::detail {
 
 /// The whole of a file as text. Throws InputError for a missing file, a folder or a failed read.
 std::string read_text(const std::filesystem::path& path);
+
+using Json = nlohmann::json;
+
+/// Looks up `a.b.c` in a JSON object, or nullptr when any part is absent.
+const Json* find_key(const Json& root, std::string_view dotted);
+
+/// The number at `key`; InputError naming `file` and `label` (else `key`) when it is missing or
+/// not a number.
+double json_number(const Json& root, const std::string& key, const std::string& file,
+                   const std::string& label = "");
+
+/// The number at `key`, nullopt when it is missing or null; InputError when it is something else.
+std::optional<double> json_optional_number(const Json& root, const std::string& key,
+                                           const std::string& file);
+
+/// The text at `key`; InputError naming `file` and `label` (else `key`) when it is missing or not
+/// a string.
+std::string json_string(const Json& root, const std::string& key, const std::string& file,
+                        const std::string& label = "");
+
+/// A JSON file; InputError naming the file and the line of a syntax error.
+Json parse_json(const std::filesystem::path& path);
 
 /// A CSV file as text cells, with the line each row came from (for messages).
 struct Csv {

@@ -155,29 +155,6 @@ std::string override_key(const std::string& text) {
   return std::string(detail::trim(text.substr(0, text.find('='))));
 }
 
-/// RFC 4180 cell: quoted when it holds a comma, a quote or a line break.
-std::string csv_cell(const std::string& s) {
-  if (s.find_first_of(",\"\r\n") == std::string::npos) return s;
-  std::string out = "\"";
-  for (const char c : s) {
-    out += c;
-    if (c == '"') out += '"';
-  }
-  return out + "\"";
-}
-
-std::string status_name(SweepStatus status) {
-  switch (status) {
-    case SweepStatus::ok:
-      return "ok";
-    case SweepStatus::skipped:
-      return "skipped";
-    case SweepStatus::failed:
-      return "failed";
-  }
-  return "ok";
-}
-
 /// The metrics of several runs: each metric's median (Hyndman & Fan type 7, as realizations).
 SweepMetrics median_metrics(const std::vector<SweepMetrics>& runs) {
   SweepMetrics out;
@@ -190,14 +167,16 @@ SweepMetrics median_metrics(const std::vector<SweepMetrics>& runs) {
 }
 
 /// Runs one combination on each record. Interrupted (and anything unexpected) propagates.
-SweepRow run_combination(const SweepPlan& plan, std::size_t index,
+SweepRow run_combination(const SweepPlan& plan, std::size_t cell,
                          std::span<const RainSeries> records, const SweepOptions& options,
                          const RunOptions& run_options) {
   SweepRow row;
-  row.values = plan.combinations[index];
+  row.cell = cell;
+  row.site = plan.site_of(cell);
+  row.values = plan.combinations[cell % plan.combinations.size()];
   try {
     const Scenario scenario = parse_scenario(plan.scenario_text, plan.scenario_label, plan.base_dir,
-                                             plan.overrides(index));
+                                             plan.overrides(cell));
     std::vector<SweepMetrics> runs;
     for (const RainSeries& rain : records) {
       SummaryBuilder summary(scenario);
@@ -231,6 +210,54 @@ std::string clock_text(double seconds) {
     std::snprintf(buf, sizeof buf, "%ld:%02ld", s / 60, s % 60);
   }
   return buf;
+}
+
+/// The column of `sites` that holds `key`, counted from 1 as a spreadsheet shows it.
+std::string column_label(const SweepSites& sites, std::size_t key_index) {
+  return "column " + std::to_string(key_index + 2) + " (" + sites.keys[key_index] + ")";
+}
+
+/// Checks the sites against the plan's --set keys and loads each site's scenario.
+void add_sites(SweepPlan& plan, const SweepSites& sites) {
+  for (std::size_t k = 0; k < sites.keys.size(); ++k) {
+    for (const std::string& set : plan.base_overrides) {
+      if (override_key(set) == sites.keys[k]) {
+        throw InputError(sites.file, 1, column_label(sites, k),
+                         "is also given with --set; give it per site or set it, not both");
+      }
+    }
+  }
+  const double cells =
+      static_cast<double>(sites.sites.size()) * static_cast<double>(plan.combinations.size());
+  if (cells > static_cast<double>(kMaxSweepCombinations)) {
+    throw InputError(sites.file, 0, "",
+                     std::to_string(sites.sites.size()) + " sites by " +
+                         std::to_string(plan.combinations.size()) +
+                         " combinations; a sweep is limited to " +
+                         std::to_string(kMaxSweepCombinations));
+  }
+  for (const SweepSite& site : sites.sites) {
+    std::vector<std::string> overrides = plan.base_overrides;
+    overrides.insert(overrides.end(), site.overrides.begin(), site.overrides.end());
+    try {
+      plan.site_scenarios.push_back(
+          parse_scenario(plan.scenario_text, plan.scenario_label, plan.base_dir, overrides));
+    } catch (const InputError& e) {
+      // The loader names the key it rejects (or one inside it); name that key's column.
+      for (std::size_t k = 0; k < sites.keys.size(); ++k) {
+        const std::string& key = sites.keys[k];
+        if (e.field() == key || e.field().rfind(key + ".", 0) == 0 ||
+            e.field().rfind(key + "[", 0) == 0) {
+          throw InputError(sites.file, site.line, column_label(sites, k),
+                           "site " + site.name + ": " + e.message());
+        }
+      }
+      throw InputError(sites.file, site.line, "", "site " + site.name + ": " + e.text());
+    }
+  }
+  plan.sites = sites.sites;
+  plan.sites_file = sites.file;
+  plan.sites_text = sites.text;
 }
 
 }  // namespace
@@ -303,6 +330,24 @@ std::vector<std::string> sweep_metric_names() {
   return names;
 }
 
+std::string_view sweep_status_name(SweepStatus status) {
+  switch (status) {
+    case SweepStatus::ok:
+      return "ok";
+    case SweepStatus::skipped:
+      return "skipped";
+    case SweepStatus::failed:
+      return "failed";
+  }
+  return "ok";
+}
+
+double& sweep_metric(SweepMetrics& metrics, std::string_view name) {
+  const MetricColumn* m = find_metric(name);
+  if (m == nullptr) throw std::out_of_range("no sweep metric named " + std::string(name));
+  return metrics.*(m->member);
+}
+
 double sweep_metric(const SweepMetrics& metrics, std::string_view name) {
   const MetricColumn* m = find_metric(name);
   if (m == nullptr) throw std::out_of_range("no sweep metric named " + std::string(name));
@@ -335,18 +380,22 @@ std::string format_metric(double value) {
   return ec == std::errc() ? std::string(buf, end) : std::string("nan");
 }
 
-std::vector<std::string> SweepPlan::overrides(std::size_t index) const {
+std::vector<std::string> SweepPlan::overrides(std::size_t cell) const {
   std::vector<std::string> out = base_overrides;
-  for (std::size_t k = 0; k < axes.size(); ++k) {
-    out.push_back(axes[k].key + "=" + combinations[index][k]);
+  if (!sites.empty()) {
+    const std::vector<std::string>& site = sites[site_of(cell)].overrides;
+    out.insert(out.end(), site.begin(), site.end());
   }
+  const std::vector<std::string>& combination = combinations[cell % combinations.size()];
+  for (std::size_t k = 0; k < axes.size(); ++k) out.push_back(axes[k].key + "=" + combination[k]);
   return out;
 }
 
 SweepPlan plan_sweep(std::string scenario_text, const std::string& scenario_label,
                      const std::filesystem::path& base_dir,
                      const std::vector<std::string>& vary_specs,
-                     const std::vector<std::string>& base_overrides, const std::string& rank_text) {
+                     const std::vector<std::string>& base_overrides, const std::string& rank_text,
+                     const SweepSites* sites) {
   if (vary_specs.empty()) {
     throw InputError(kVaryLabel, 0, "",
                      "give at least one key to vary, as KEY=FROM:TO:STEP or KEY=v1,v2,...");
@@ -369,6 +418,11 @@ SweepPlan plan_sweep(std::string scenario_text, const std::string& scenario_labe
                          "is also given with --set; vary it or set it, not both");
       }
     }
+    if (sites != nullptr &&
+        std::find(sites->keys.begin(), sites->keys.end(), axis.key) != sites->keys.end()) {
+      throw InputError(kVaryLabel, 0, axis.key,
+                       "is also a column of " + sites->file + "; vary it or give it per site");
+    }
     plan.axes.push_back(std::move(axis));
   }
   plan.rank = parse_rank(rank_text);
@@ -378,18 +432,20 @@ SweepPlan plan_sweep(std::string scenario_text, const std::string& scenario_labe
   plan.scenario_label = scenario_label;
   plan.base_dir = base_dir;
   plan.base_overrides = base_overrides;
+  if (sites != nullptr) add_sites(plan, *sites);
   return plan;
 }
 
-SweepResult run_sweep(const SweepPlan& plan, std::span<const RainSeries> realizations,
-                      const SweepOptions& options) {
-  using Clock = std::chrono::steady_clock;
-  const auto started = Clock::now();
-  const std::size_t n = plan.combinations.size();
-  SweepResult result;
-  result.realizations = realizations.size();
-  result.rows.resize(n);
+namespace {
 
+/// Runs cells [first, end) of `plan` on `records` into `out[0 .. end - first)` on the worker
+/// threads; progress counts `done_before` cells done already out of `total`.
+void run_cells(const SweepPlan& plan, std::size_t first, std::size_t end,
+               std::span<const RainSeries> records, const SweepOptions& options, SweepRow* out,
+               std::size_t done_before, std::size_t total,
+               std::chrono::steady_clock::time_point started) {
+  using Clock = std::chrono::steady_clock;
+  const std::size_t n = end - first;
   const std::size_t jobs = worker_threads(options.jobs, n);
   const auto user_stop = [&] { return options.stop != nullptr && options.stop->load(); };
 
@@ -410,9 +466,9 @@ SweepResult run_sweep(const SweepPlan& plan, std::span<const RainSeries> realiza
       while (!halt.load() && !user_stop()) {
         const std::size_t i = next.fetch_add(1);
         if (i >= n) break;
-        SweepRow row = run_combination(plan, i, realizations, options, run_options);
+        SweepRow row = run_combination(plan, first + i, records, options, run_options);
         const std::lock_guard<std::mutex> lock(mutex);
-        result.rows[i] = std::move(row);
+        out[i] = std::move(row);
         ++done;
         changed.notify_all();
       }
@@ -440,14 +496,14 @@ SweepResult run_sweep(const SweepPlan& plan, std::span<const RainSeries> realiza
   {
     std::unique_lock<std::mutex> lock(mutex);
     std::size_t reported = 0;
-    bool first = true;
+    bool first_report = true;
     while (true) {
       changed.wait_for(lock, std::chrono::milliseconds(50));
       if (user_stop()) halt.store(true);
-      if (options.progress && (first || done != reported) && !halt.load()) {
-        first = false;
+      if (options.progress && (first_report || done != reported) && !halt.load()) {
+        first_report = false;
         reported = done;
-        const SweepProgress p{done, n,
+        const SweepProgress p{done_before + done, total,
                               std::chrono::duration<double>(Clock::now() - started).count()};
         lock.unlock();
         try {
@@ -467,7 +523,45 @@ SweepResult run_sweep(const SweepPlan& plan, std::span<const RainSeries> realiza
   for (std::thread& t : threads) t.join();
   if (error) std::rethrow_exception(error);
   if (interrupted || user_stop()) throw Interrupted();
+}
 
+}  // namespace
+
+SweepResult run_sweep(const SweepPlan& plan, std::span<const RainSeries> realizations,
+                      const SweepOptions& options) {
+  SweepResult result;
+  result.realizations = realizations.size();
+  const std::size_t n = plan.cell_count();
+  result.rows.resize(n);
+  run_cells(plan, 0, n, realizations, options, result.rows.data(), 0, n,
+            std::chrono::steady_clock::now());
+  finish_sweep(plan, result);
+  return result;
+}
+
+SweepResult run_sweep_sites(const SweepPlan& plan, const SiteRecords& records,
+                            const SweepOptions& options, std::size_t first, std::size_t end) {
+  const auto started = std::chrono::steady_clock::now();
+  end = std::min(end, plan.cell_count());
+  first = std::min(first, end);
+  SweepResult result;
+  result.rows.resize(end - first);
+  for (std::size_t cell = first; cell < end;) {
+    const std::size_t site = plan.site_of(cell);
+    const std::size_t site_end = std::min(end, (site + 1) * plan.combinations.size());
+    const std::vector<RainSeries> site_records = records(site);
+    result.realizations = site_records.size();
+    run_cells(plan, cell, site_end, site_records, options, result.rows.data() + (cell - first),
+              cell - first, end - first, started);
+    cell = site_end;
+  }
+  finish_sweep(plan, result);
+  return result;
+}
+
+void finish_sweep(const SweepPlan& plan, SweepResult& result) {
+  result.skipped = 0;
+  result.failed = 0;
   for (const SweepRow& row : result.rows) {
     if (row.status == SweepStatus::skipped) ++result.skipped;
     if (row.status == SweepStatus::failed) ++result.failed;
@@ -480,7 +574,6 @@ SweepResult run_sweep(const SweepPlan& plan, std::span<const RainSeries> realiza
       result.rows[i].within_best = median >= best.p10 && median <= best.p90;
     }
   }
-  return result;
 }
 
 std::vector<std::string> sweep_warnings(const SweepPlan& plan, const SweepResult& result) {
@@ -537,18 +630,24 @@ void write_sweep_csv(std::ostream& out, const SweepPlan& plan, const SweepResult
   const auto cell = [&](std::string_view metric, double v) {
     return format_metric(column_value(units, metric, v));
   };
-  std::string header;
-  for (const SweepAxis& axis : plan.axes) header += csv_cell(axis.key) + ",";
+  const bool sites = !plan.sites.empty();
+  std::string header = sites ? "site,site_rank," : "";
+  for (const SweepAxis& axis : plan.axes) header += detail::csv_cell(axis.key) + ",";
   for (const MetricColumn& m : kMetrics) header += column_name(units, m.name) + ",";
   const bool spread = result.realizations > 1;
   const std::string rank = column_name(units, plan.rank.metric);
   if (spread) header += rank + "_p10," + rank + "_p90,within_best_range,";
   header.back() = '\n';
   out << header;
+  std::vector<std::size_t> site_rank(plan.site_count(), 0);
   for (const std::size_t i : result.ranked) {
     const SweepRow& row = result.rows[i];
     std::string line;
-    for (const std::string& v : row.values) line += csv_cell(v) + ",";
+    if (sites) {
+      line += detail::csv_cell(plan.sites[row.site].name) + "," +
+              std::to_string(++site_rank[row.site]) + ",";
+    }
+    for (const std::string& v : row.values) line += detail::csv_cell(v) + ",";
     for (const MetricColumn& m : kMetrics) line += cell(m.name, row.metrics.*(m.member)) + ",";
     if (spread) {
       line += cell(plan.rank.metric, row.rank_spread->p10) + "," +
@@ -560,12 +659,15 @@ void write_sweep_csv(std::ostream& out, const SweepPlan& plan, const SweepResult
 }
 
 void write_skipped_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result) {
-  for (const SweepAxis& axis : plan.axes) out << csv_cell(axis.key) << ',';
+  const bool sites = !plan.sites.empty();
+  if (sites) out << "site,";
+  for (const SweepAxis& axis : plan.axes) out << detail::csv_cell(axis.key) << ',';
   out << "status,reason\n";
   for (const SweepRow& row : result.rows) {
     if (row.status == SweepStatus::ok) continue;
-    for (const std::string& v : row.values) out << csv_cell(v) << ',';
-    out << status_name(row.status) << ',' << csv_cell(row.reason) << '\n';
+    if (sites) out << detail::csv_cell(plan.sites[row.site].name) << ',';
+    for (const std::string& v : row.values) out << detail::csv_cell(v) << ',';
+    out << sweep_status_name(row.status) << ',' << detail::csv_cell(row.reason) << '\n';
   }
 }
 
@@ -574,6 +676,12 @@ void write_sweep_json(std::ostream& out, const SweepPlan& plan, const SweepResul
   ordered_json j;
   j["scenario"] = std::filesystem::path(plan.scenario_label).filename().string();
   j["site"] = plan.base.site.name;
+  if (!plan.sites.empty()) {
+    j["sites"] = std::filesystem::path(plan.sites_file).filename().string();
+    ordered_json names = ordered_json::array();
+    for (const SweepSite& site : plan.sites) names.push_back(site.name);
+    j["site_names"] = names;
+  }
   ordered_json vary = ordered_json::array();
   ordered_json values = ordered_json::object();
   for (const SweepAxis& axis : plan.axes) {
@@ -612,7 +720,9 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
     return detail::pretty(column_value(units, metric, v), detail::Medium::terminal);
   };
   const bool spread = result.realizations > 1;
+  const bool sites = !plan.sites.empty();
   std::vector<std::string> header{"#"};
+  if (sites) header.emplace_back("site");
   for (const SweepAxis& axis : plan.axes) header.push_back(axis.key);
   for (const MetricColumn* m : shown) header.push_back(column_name(units, m->name));
   if (spread) {
@@ -624,6 +734,7 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
   for (std::size_t r = 0; r < rows; ++r) {
     const SweepRow& row = result.rows[result.ranked[r]];
     std::vector<std::string> line{std::to_string(r + 1)};
+    if (sites) line.push_back(plan.sites[row.site].name);
     line.insert(line.end(), row.values.begin(), row.values.end());
     for (const MetricColumn* m : shown) line.push_back(pretty(m->name, row.metrics.*(m->member)));
     if (spread) {
@@ -642,16 +753,16 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
   const auto print = [&](const std::vector<std::string>& line) {
     std::string text;
     for (std::size_t c = 0; c < line.size(); ++c) {
-      const bool left = c > 0 && c <= plan.axes.size();
+      const bool left = c > 0 && c <= plan.axes.size() + (sites ? 1 : 0);
       const std::string pad(width[c] - line[c].size(), ' ');
       text += "  " + (left ? line[c] + pad : pad + line[c]);
     }
     while (!text.empty() && text.back() == ' ') text.pop_back();
     out << text << '\n';
   };
-  out << plan.base.site.name << ": " << result.ranked.size() << " of " << result.rows.size()
-      << " combinations ran, best first by " << rank_name << " ("
-      << (plan.rank.descending ? "highest" : "lowest") << " first)\n";
+  out << (sites ? std::to_string(plan.sites.size()) + " sites" : plan.base.site.name) << ": "
+      << result.ranked.size() << " of " << result.rows.size() << " combinations ran, best first by "
+      << rank_name << " (" << (plan.rank.descending ? "highest" : "lowest") << " first)\n";
   if (spread) {
     out << "  metrics are medians over " << result.realizations
         << " realizations of the record; ~ marks rows whose median lies inside the best row's "
@@ -669,13 +780,17 @@ SweepResult run_sweep_into(const std::filesystem::path& dir, const SweepPlan& pl
                            std::span<const RainSeries> realizations, const SweepOptions& options) {
   OutputFolder folder(dir);
   SweepResult result = run_sweep(plan, realizations, options);
-  // Nothing ran: earlier results are worth more than an empty table.
-  if (result.ranked.empty()) return result;
+  write_sweep_files(folder, plan, result);
+  return result;
+}
+
+bool write_sweep_files(OutputFolder& folder, const SweepPlan& plan, const SweepResult& result) {
+  if (result.ranked.empty()) return false;
   write_sweep_csv(folder.open("sweep.csv"), plan, result);
   write_skipped_csv(folder.open("skipped.csv"), plan, result);
   write_sweep_json(folder.open("sweep.json"), plan, result);
   folder.commit();
-  return result;
+  return true;
 }
 
 std::string progress_line(const SweepProgress& p, std::size_t width) {

@@ -1,9 +1,12 @@
 #pragma once
-/// Set-point sweeps: every combination of some scenario keys, run in parallel on one rain record
-/// read once, ranked best first and written as DIR/sweep.csv, DIR/skipped.csv and DIR/sweep.json.
+/// Set-point sweeps: every combination of some scenario keys, at one site or at each site of a
+/// sites file, run in parallel on each site's rain record read once, ranked best first and
+/// written as DIR/sweep.csv, DIR/skipped.csv and DIR/sweep.json. Shards of a sweep and their
+/// merge are in sweep_shard.hpp.
 
 #include <atomic>
 #include <cstddef>
+#include <cstdint>
 #include <filesystem>
 #include <functional>
 #include <optional>
@@ -14,6 +17,7 @@
 #include <vector>
 
 #include "gutterwatt/output.hpp"
+#include "gutterwatt/output_folder.hpp"
 #include "gutterwatt/rain_input.hpp"
 #include "gutterwatt/realizations.hpp"
 #include "gutterwatt/scenario.hpp"
@@ -44,6 +48,30 @@ SweepAxis parse_vary(const std::string& spec);
 /// Throws InputError naming `--vary` for more than kMaxSweepCombinations combinations.
 std::vector<std::vector<std::string>> expand_combinations(const std::vector<SweepAxis>& axes);
 
+/// One site of a sites file: its name, the `key=value` overrides of its non-empty cells (applied
+/// after the `--set` ones and before the varied keys) and its line in the file.
+struct SweepSite {
+  std::string name;
+  std::vector<std::string> overrides;
+  int line = 0;
+};
+
+/// A sites file as read: a CSV (RFC 4180 quoting) whose header is `site` and then scenario keys
+/// (rain.file, roof.area_m2, site.utc_offset...), one row per site. An empty cell leaves the key
+/// as the scenario has it. Paths (rain.file, rain.files, rain.disaggregate.calibrate_with.file)
+/// are relative to the sites file; they are made absolute in the overrides.
+struct SweepSites {
+  std::string file;               ///< the file as given, in messages
+  std::string text;               ///< the whole text, for the plan's digest
+  std::vector<std::string> keys;  ///< the header after `site`
+  std::vector<SweepSite> sites;
+};
+
+/// Reads a sites file's text. Throws InputError naming `file`, the line and the column (as
+/// `column N (KEY)`) for a first column that is not `site`, a key that is no scenario key or is
+/// given twice, a row of the wrong width, an empty or repeated site name, or no site.
+SweepSites read_sweep_sites(std::string_view text, const std::string& file);
+
 /// What a sweep reports for one combination. Water in litres, energy in watt-hours (the units of
 /// the column names), taken from the run's totals without rounding.
 struct SweepMetrics {
@@ -72,6 +100,7 @@ std::vector<std::string> sweep_metric_names();
 
 /// A metric's value by column name; throws std::out_of_range for an unknown name.
 double sweep_metric(const SweepMetrics& metrics, std::string_view name);
+double& sweep_metric(SweepMetrics& metrics, std::string_view name);
 
 /// How rows are ranked: by one metric, best first.
 struct SweepRank {
@@ -90,9 +119,14 @@ std::string format_metric(double value);
 
 enum class SweepStatus { ok, skipped, failed };
 
+/// `ok`, `skipped` or `failed`, as skipped.csv writes it.
+std::string_view sweep_status_name(SweepStatus status);
+
 /// The outcome of one combination. `reason` is the error text for a skipped (invalid input) or
 /// failed (simulation error) combination.
 struct SweepRow {
+  std::size_t cell = 0;             ///< the combination's index among the plan's cells
+  std::size_t site = 0;             ///< index into the plan's sites (0 without sites)
   std::vector<std::string> values;  ///< one per axis
   SweepStatus status = SweepStatus::ok;
   SweepMetrics metrics;  ///< over several realizations, each metric's median
@@ -105,8 +139,9 @@ struct SweepRow {
 };
 
 /// A checked sweep, ready to run: the scenario text is parsed once per combination with the
-/// base overrides first and then `key=value` for each axis, exactly as
-/// `gutterwatt run SCENARIO --set BASE... --set key=value...` would parse it.
+/// base overrides first, then the site's and then `key=value` for each axis, exactly as
+/// `gutterwatt run SCENARIO --set BASE... --set SITE... --set key=value...` would parse it.
+/// Its cells are every site (slowest) by every combination of the axes.
 struct SweepPlan {
   std::string scenario_text;
   std::string scenario_label;  ///< the scenario path as given, used in messages
@@ -116,20 +151,37 @@ struct SweepPlan {
   std::vector<std::vector<std::string>> combinations;
   SweepRank rank;
   Scenario base;  ///< the scenario with only the base overrides (its rain is the sweep's rain)
+  std::string sites_file;        ///< the sites file as given; empty without sites
+  std::string sites_text;        ///< its text, for the digest
+  std::vector<SweepSite> sites;  ///< empty: the scenario's own site only
+  /// Each site's scenario (base and site overrides): its rain is the site's record.
+  std::vector<Scenario> site_scenarios;
 
-  /// The override strings of combination `index`.
-  std::vector<std::string> overrides(std::size_t index) const;
+  /// Sites the cells run over: the sites file's, or 1 (the scenario's own).
+  std::size_t site_count() const { return sites.empty() ? 1 : sites.size(); }
+  /// Every site by every combination.
+  std::size_t cell_count() const { return site_count() * combinations.size(); }
+  /// The site of cell `cell`.
+  std::size_t site_of(std::size_t cell) const { return cell / combinations.size(); }
+  /// The scenario whose rain site `site` runs on.
+  const Scenario& site_scenario(std::size_t site) const {
+    return sites.empty() ? base : site_scenarios[site];
+  }
+  /// The override strings of cell `cell`.
+  std::vector<std::string> overrides(std::size_t cell) const;
 };
 
 /// Checks the specs and builds the plan. Throws InputError for a bad `--vary` or `--rank`, a key
 /// that is no scenario key (check_scenario_key, naming `--vary`), a key varied twice or also given
-/// with `--set`, a key under `rain.` (the record is read once for the whole sweep), no key to vary,
-/// and for a base scenario (text plus `base_overrides`) that does not load.
+/// with `--set` or in the sites file, a key under `rain.` (the record is read once for the whole
+/// sweep), no key to vary, a base scenario (text plus `base_overrides`) that does not load, a
+/// sites file key also given with `--set`, and a site whose scenario does not load (naming the
+/// sites file, the site's line and the column when the loader names its key).
 SweepPlan plan_sweep(std::string scenario_text, const std::string& scenario_label,
                      const std::filesystem::path& base_dir,
                      const std::vector<std::string>& vary_specs,
                      const std::vector<std::string>& base_overrides,
-                     const std::string& rank_text = "energy_Wh");
+                     const std::string& rank_text = "energy_Wh", const SweepSites* sites = nullptr);
 
 /// Where a sweep stands, as reported to SweepOptions::progress.
 struct SweepProgress {
@@ -153,8 +205,8 @@ struct SweepOptions {
   SimulateFunction simulate;
 };
 
-/// The outcome of a sweep: `rows` in combination order, `ranked` the indices of the rows that
-/// ran, best first (ties in combination order).
+/// The outcome of a sweep: `rows` in cell order (every cell, or a shard's), `ranked` the indices
+/// of the rows that ran, best first (ties in cell order).
 struct SweepResult {
   std::size_t realizations = 1;  ///< records each combination ran on
   std::vector<SweepRow> rows;
@@ -180,6 +232,20 @@ inline SweepResult run_sweep(const SweepPlan& plan, const RainSeries& rain,
   return run_sweep(plan, std::span<const RainSeries>(&rain, 1), options);
 }
 
+/// The records one site's combinations run on: the realizations of its record.
+using SiteRecords = std::function<std::vector<RainSeries>(std::size_t site)>;
+
+/// As run_sweep, on cells [first, end) of the plan only (all of them by default), site by site:
+/// `records` is called once for each site those cells reach, and its records are let go before
+/// the next site's are loaded, so a sweep holds one site's record at a time.
+SweepResult run_sweep_sites(const SweepPlan& plan, const SiteRecords& records,
+                            const SweepOptions& options = {}, std::size_t first = 0,
+                            std::size_t end = SIZE_MAX);
+
+/// Counts the skipped and failed rows, ranks those that ran and marks those within the best
+/// row's spread: the end of run_sweep, shared with merging shards.
+void finish_sweep(const SweepPlan& plan, SweepResult& result);
+
 /// Indices of the rows that ran, best first by `rank`, ties in combination order.
 std::vector<std::size_t> rank_rows(const std::vector<SweepRow>& rows, const SweepRank& rank);
 
@@ -190,20 +256,27 @@ std::vector<std::size_t> rank_rows(const std::vector<SweepRow>& rows, const Swee
 /// KEY is the highest tried (V): extend the range").
 std::vector<std::string> sweep_warnings(const SweepPlan& plan, const SweepResult& result);
 
-/// sweep.csv: the varied keys, then the metrics, one row per combination that ran, best first;
-/// after several realizations also `<rank>_p10`, `<rank>_p90` and `within_best_range` (1 or 0).
+/// sweep.csv: with sites `site` and `site_rank` (the row's rank among its site's), then the varied
+/// keys, then the metrics, one row per combination that ran, best first over all sites; after
+/// several realizations also `<rank>_p10`, `<rank>_p90` and `within_best_range` (1 or 0).
 void write_sweep_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result);
 
-/// skipped.csv: the varied keys, `status` (skipped or failed) and `reason`, in combination order.
+/// skipped.csv: with sites `site`, then the varied keys, `status` (skipped or failed) and
+/// `reason`, in cell order.
 void write_skipped_csv(std::ostream& out, const SweepPlan& plan, const SweepResult& result);
 
-/// sweep.json: scenario, site, vary, set, rank, order, combinations, ran, skipped, failed, and
-/// after several realizations `realizations` and `percentiles`.
+/// sweep.json: scenario, site, with sites `sites` (the file's name) and `site_names`, vary,
+/// values, set, rank, units, order, combinations, ran, skipped, failed, and after several
+/// realizations `realizations` and `percentiles`.
 void write_sweep_json(std::ostream& out, const SweepPlan& plan, const SweepResult& result);
 
 /// The best `top` rows as a short table for the terminal.
 void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResult& result,
                        std::size_t top = 10);
+
+/// Writes sweep.csv, skipped.csv and sweep.json into `folder` and commits them, unless no
+/// combination ran (earlier results are worth more than an empty table); returns whether it wrote.
+bool write_sweep_files(OutputFolder& folder, const SweepPlan& plan, const SweepResult& result);
 
 /// Runs the sweep and writes sweep.csv, skipped.csv and sweep.json into `dir` through an
 /// OutputFolder as one set: the folder is checked before the first run, and an interrupted or

@@ -115,6 +115,21 @@ CommandLine parse_command_line(int argc, const char* const* argv) {
                    "median (default 20 for method: cascade, else 1)")
       ->check(CLI::Range(1, 10000));
   add_units_option(sweep_cmd, sweep.units, "the scenario's site.units, else si");
+  sweep_cmd->add_option("--sites", sweep.sites,
+                        "sites file (CSV: site, then scenario keys such as rain.file); every "
+                        "combination runs at every site");
+  sweep_cmd->add_option("--shard", sweep.shard,
+                        "run shard K of N only (K/N, from 1), or auto/N with K from the array "
+                        "job's index (SLURM_ARRAY_TASK_ID, PBS_ARRAY_INDEX, SGE_TASK_ID, "
+                        "LSB_JOBINDEX); writes DIR/shard.json and DIR/shard.csv for merge");
+
+  MergeArgs& merge = cl.merge;
+  auto* merge_cmd = app.add_subcommand(
+      "merge", "put the shards of a sweep together; write OUT/sweep.csv as one sweep would");
+  merge_cmd->add_option("out", merge.out, "folder for the merged sweep")->required();
+  merge_cmd->add_option("shards", merge.shards, "the shard folders (sweep --shard --out)")
+      ->required();
+  merge_cmd->add_flag("--quiet", merge.quiet, "print nothing on success");
 
   auto* report_cmd =
       app.add_subcommand("report", "write DIR/report.html from a run or sweep folder");
@@ -182,9 +197,9 @@ CommandLine parse_command_line(int argc, const char* const* argv) {
     return cl;
   }
   const std::pair<CLI::App*, Command> commands[] = {
-      {run_cmd, Command::run},       {check_cmd, Command::check}, {sweep_cmd, Command::sweep},
-      {report_cmd, Command::report}, {storm_cmd, Command::storm}, {synth_cmd, Command::synth},
-      {fit_cmd, Command::fit}};
+      {run_cmd, Command::run},     {check_cmd, Command::check},   {sweep_cmd, Command::sweep},
+      {merge_cmd, Command::merge}, {report_cmd, Command::report}, {storm_cmd, Command::storm},
+      {synth_cmd, Command::synth}, {fit_cmd, Command::fit}};
   for (const auto& [cmd, which] : commands) {
     if (*cmd) cl.command = which;
   }

@@ -54,7 +54,7 @@ struct SynthArgs {
   std::string out;
 };
 
-enum class Command { none, run, check, sweep, report, storm, synth, fit };
+enum class Command { none, run, check, sweep, merge, report, storm, synth, fit };
 
 /// What the command line asks for. With `command` none nothing is to run: the program prints
 /// `out` on standard output and `error` (one line, no newline) on standard error and exits
@@ -67,6 +67,7 @@ struct CommandLine {
   RunArgs run;
   CheckArgs check;
   SweepArgs sweep;
+  MergeArgs merge;
   std::string report_dir;
   std::string report_units;  ///< `report --units us|si`; empty: the units the folder was written in
   StormArgs storm;

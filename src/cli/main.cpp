@@ -300,6 +300,8 @@ int main(int argc, char** argv) {
         return check_command(cl.check);
       case Command::sweep:
         return sweep_command(cl.sweep, g_stop);
+      case Command::merge:
+        return merge_command(cl.merge);
       case Command::report: {
         const fs::path page = write_report(cl.report_dir, parse_unit_system(cl.report_units));
         std::cout << "wrote " << page.string() << '\n';
