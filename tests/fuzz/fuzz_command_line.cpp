@@ -47,6 +47,9 @@ extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size
     if (cl.command == Command::sweep) {
       require(!cl.sweep.vary.empty(), "a sweep varies something");
     }
+    if (cl.command == Command::merge) {
+      require(!cl.merge.out.empty() && !cl.merge.shards.empty(), "a merge has shards and a folder");
+    }
     return 0;
   }
   require(cl.status == 0 || cl.status == 2, "nothing to run: exit 0 (help, version) or 2");
