@@ -5,9 +5,7 @@
 #include <chrono>
 #include <cmath>
 #include <condition_variable>
-#include <cstdio>
 #include <exception>
-#include <iomanip>
 #include <mutex>
 #include <nlohmann/json.hpp>
 #include <optional>
@@ -19,7 +17,6 @@
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/output_folder.hpp"
 #include "gutterwatt/units.hpp"
-#include "report_format.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -55,10 +52,6 @@ constexpr MetricColumn kMetrics[] = {
     {"standing_longest_days", &SweepMetrics::standing_longest_days, true},
     {"standing_spells_over_7_days", &SweepMetrics::standing_spells_over_7_days, true},
 };
-
-// The columns the terminal table shows besides the varied keys and the rank metric.
-constexpr std::string_view kTableMetrics[] = {"energy_Wh", "overflow_L", "dribble_L", "cycles",
-                                              "overflow_events"};
 
 /// The metric named `name` in either system of units (`overflow_L` or `overflow_gal`).
 const MetricColumn* find_metric(std::string_view name) {
@@ -199,17 +192,6 @@ SweepRow run_combination(const SweepPlan& plan, std::size_t cell,
     row.reason = e.what();
   }
   return row;
-}
-
-std::string clock_text(double seconds) {
-  const long s = std::lround(std::max(0.0, seconds));
-  char buf[32];
-  if (s >= 3600) {
-    std::snprintf(buf, sizeof buf, "%ld:%02ld:%02ld", s / 3600, s / 60 % 60, s % 60);
-  } else {
-    std::snprintf(buf, sizeof buf, "%ld:%02ld", s / 60, s % 60);
-  }
-  return buf;
 }
 
 /// The column of `sites` that holds `key`, counted from 1 as a spreadsheet shows it.
@@ -707,75 +689,6 @@ void write_sweep_json(std::ostream& out, const SweepPlan& plan, const SweepResul
   out << j.dump(2, ' ', false, decltype(j)::error_handler_t::replace) << '\n';
 }
 
-void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResult& result,
-                       std::size_t top) {
-  std::vector<const MetricColumn*> shown;
-  for (const std::string_view name : kTableMetrics) shown.push_back(find_metric(name));
-  const MetricColumn* rank = find_metric(plan.rank.metric);
-  if (std::find(shown.begin(), shown.end(), rank) == shown.end()) shown.push_back(rank);
-
-  const UnitSystem units = plan.base.site.units;
-  const std::string rank_name = column_name(units, plan.rank.metric);
-  const auto pretty = [&](std::string_view metric, double v) {
-    return detail::pretty(column_value(units, metric, v), detail::Medium::terminal);
-  };
-  const bool spread = result.realizations > 1;
-  const bool sites = !plan.sites.empty();
-  std::vector<std::string> header{"#"};
-  if (sites) header.emplace_back("site");
-  for (const SweepAxis& axis : plan.axes) header.push_back(axis.key);
-  for (const MetricColumn* m : shown) header.push_back(column_name(units, m->name));
-  if (spread) {
-    header.push_back(rank_name + " P10 to P90");
-    header.emplace_back("~best");
-  }
-  std::vector<std::vector<std::string>> cells;
-  const std::size_t rows = std::min(top, result.ranked.size());
-  for (std::size_t r = 0; r < rows; ++r) {
-    const SweepRow& row = result.rows[result.ranked[r]];
-    std::vector<std::string> line{std::to_string(r + 1)};
-    if (sites) line.push_back(plan.sites[row.site].name);
-    line.insert(line.end(), row.values.begin(), row.values.end());
-    for (const MetricColumn* m : shown) line.push_back(pretty(m->name, row.metrics.*(m->member)));
-    if (spread) {
-      line.push_back(pretty(plan.rank.metric, row.rank_spread->p10) + " to " +
-                     pretty(plan.rank.metric, row.rank_spread->p90));
-      line.emplace_back(row.within_best ? "~" : "");
-    }
-    cells.push_back(std::move(line));
-  }
-  std::vector<std::size_t> width(header.size());
-  for (std::size_t c = 0; c < header.size(); ++c) {
-    width[c] = header[c].size();
-    for (const auto& line : cells) width[c] = std::max(width[c], line[c].size());
-  }
-  // Varied keys are left-aligned (they may be text); the rank and the metrics right-aligned.
-  const auto print = [&](const std::vector<std::string>& line) {
-    std::string text;
-    for (std::size_t c = 0; c < line.size(); ++c) {
-      const bool left = c > 0 && c <= plan.axes.size() + (sites ? 1 : 0);
-      const std::string pad(width[c] - line[c].size(), ' ');
-      text += "  " + (left ? line[c] + pad : pad + line[c]);
-    }
-    while (!text.empty() && text.back() == ' ') text.pop_back();
-    out << text << '\n';
-  };
-  out << (sites ? std::to_string(plan.sites.size()) + " sites" : plan.base.site.name) << ": "
-      << result.ranked.size() << " of " << result.rows.size() << " combinations ran, best first by "
-      << rank_name << " (" << (plan.rank.descending ? "highest" : "lowest") << " first)\n";
-  if (spread) {
-    out << "  metrics are medians over " << result.realizations
-        << " realizations of the record; ~ marks rows whose median lies inside the best row's "
-           "P10 to P90 ("
-        << kPercentileDefinition << ")\n";
-  }
-  print(header);
-  for (const auto& line : cells) print(line);
-  if (result.ranked.size() > rows) {
-    out << "  ... " << result.ranked.size() - rows << " more in sweep.csv\n";
-  }
-}
-
 SweepResult run_sweep_into(const std::filesystem::path& dir, const SweepPlan& plan,
                            std::span<const RainSeries> realizations, const SweepOptions& options) {
   OutputFolder folder(dir);
@@ -791,22 +704,6 @@ bool write_sweep_files(OutputFolder& folder, const SweepPlan& plan, const SweepR
   write_sweep_json(folder.open("sweep.json"), plan, result);
   folder.commit();
   return true;
-}
-
-std::string progress_line(const SweepProgress& p, std::size_t width) {
-  const double share = p.total > 0 ? static_cast<double>(p.done) / static_cast<double>(p.total) : 1;
-  const auto filled = static_cast<std::size_t>(std::floor(share * static_cast<double>(width)));
-  const std::string count = std::to_string(p.total);
-  std::ostringstream out;
-  out << '[' << std::string(filled, '#') << std::string(width - filled, '.') << "]  "
-      << std::setw(static_cast<int>(count.size())) << p.done << '/' << count << "  " << std::setw(3)
-      << static_cast<int>(std::floor(share * 100.0)) << '%';
-  if (p.done > 0) {
-    const double left =
-        p.elapsed_s / static_cast<double>(p.done) * static_cast<double>(p.total - p.done);
-    out << "  " << clock_text(left) << " left";
-  }
-  return out.str();
 }
 
 }  // namespace gutterwatt

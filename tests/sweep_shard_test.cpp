@@ -232,7 +232,7 @@ TEST(SweepMerge, ShardsMergeIntoTheOneMachineSweepByteForByte) {
   // 3 sites by 8 combinations in 5 shards of 4 or 5; the 70 mm trigger is above the rim, so
   // skipped.csv has rows too.
   const auto one =
-      run_in(dir, "sweep shed.yaml --sites sites.csv " + kVary + " --jobs 2 --out one --quiet");
+      run_in(dir, "sweep shed.yaml --sites sites.csv " + kVary + " --jobs 2 --out one");
   ASSERT_EQ(one.status, 0) << one.err;
   run_shards(dir, 5);
   const nlohmann::json shard = nlohmann::json::parse(slurp(dir / "shard-2" / "shard.json"));
@@ -242,8 +242,20 @@ TEST(SweepMerge, ShardsMergeIntoTheOneMachineSweepByteForByte) {
   EXPECT_EQ(shard["plan_digest"],
             nlohmann::json::parse(slurp(dir / "shard-5" / "shard.json"))["plan_digest"]);
   // Merged in any order of the folders.
-  const auto merged = run_in(dir, "merge merged shard-3 shard-1 shard-5 shard-2 shard-4 --quiet");
+  const auto merged = run_in(dir, "merge merged shard-3 shard-1 shard-5 shard-2 shard-4");
   ASSERT_EQ(merged.status, 0) << merged.err;
+  // The same table and warnings, each site's best row too; only the folder written differs.
+  const auto without_last_line = [](const std::string& text) {
+    return text.substr(0, text.rfind('\n', text.size() - 2) + 1);
+  };
+  EXPECT_EQ(without_last_line(merged.out), without_last_line(one.out));
+  std::string one_err = one.err;
+  one_err.replace(one_err.find("one/skipped.csv"), 3, "merged");
+  EXPECT_EQ(merged.err, one_err);
+  EXPECT_NE(one.out.find("best at each site:\n  Low barn (invented): "
+                         "release.trigger_level_mm="),
+            std::string::npos)
+      << one.out;
   for (const char* file : {"sweep.csv", "skipped.csv", "sweep.json"}) {
     EXPECT_EQ(slurp(dir / "merged" / file), slurp(dir / "one" / file)) << file;
   }
@@ -283,6 +295,31 @@ TEST(SweepMerge, RefusesShardsOfDifferentPlans) {
   expect_bad(run_in(dir, "merge merged shard-1 sites.csv"),
              "sites.csv/shard.json: no such file: sites.csv is not a shard folder (give the "
              "folders sweep --shard wrote)");
+}
+
+TEST(SweepMerge, RefusesASiteWhoseRecordChangedBetweenShards) {
+  const fs::path dir = study_site("merge-record");
+  // 24 cells in 5 shards: shards 1 (cells 0-3) and 2 (4-8) both run the first site.
+  const auto first = run_in(
+      dir, "sweep shed.yaml --sites sites.csv " + kVary + " --shard 1/5 --out shard-1 --quiet");
+  ASSERT_EQ(first.status, 0) << first.err;
+  // The same size, so the plan (which sees record files by name and size) is the same.
+  std::string rain = slurp(dir / "rain-10min.csv");
+  const std::size_t at = rain.find("06:10,2.0");
+  ASSERT_NE(at, std::string::npos);
+  rain.replace(at, 9, "06:10,3.0");
+  write_file(dir / "rain-10min.csv", rain);
+  const auto second = run_in(
+      dir, "sweep shed.yaml --sites sites.csv " + kVary + " --shard 2/5 --out shard-2 --quiet");
+  ASSERT_EQ(second.status, 0) << second.err;
+  const auto digest = [&](const std::string& shard) {
+    return nlohmann::json::parse(slurp(dir / shard / "shard.json"))["records"][0]["digest"]
+        .get<std::string>();
+  };
+  expect_bad(run_in(dir, "merge merged shard-1 shard-2"),
+             "shard-2/shard.json: records: the record of Upper yard (invented) reads as " +
+                 digest("shard-2") + " here but as " + digest("shard-1") +
+                 " in shard-1: it changed between shards");
 }
 
 }  // namespace
