@@ -137,7 +137,8 @@ TEST(SweepShards, SliceTheCellsInOrderWithSizesApartByOneAtMost) {
 }
 
 TEST(SweepShards, DigestIsFnv1aOfTheBytes) {
-  // Test vectors of draft-eastlake-fnv (FNV-1a, 64 bits): "" and "a", and "foobar".
+  // FNV-1a 64-bit values of "", "a" and "foobar" as published with the algorithm (the test
+  // vectors of draft-eastlake-fnv; from memory). "" gives the offset basis itself.
   EXPECT_EQ(fnv1a_hex(""), "cbf29ce484222325");
   EXPECT_EQ(fnv1a_hex("a"), "af63dc4c8601ec8c");
   EXPECT_EQ(fnv1a_hex("foobar"), "85944171f73967e8");
