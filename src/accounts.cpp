@@ -52,8 +52,7 @@ void Ledger::start(const ChainState& x, const ChainMode& m, double t) {
 }
 
 void Ledger::follow_standing(double level_m, const ChainMode& m, double t) {
-  const bool standing = !system_.release().is_running(m.release) &&
-                        level_m > system_.drained_level_m() + kStandingDepth_m;
+  const bool standing = !system_.release().is_running(m.release) && level_m > kStandingDepth_m;
   if (standing == standing_) return;
   standing_ = standing;
   if (standing) {

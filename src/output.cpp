@@ -515,7 +515,7 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
       wettest_dry_intensity_m_per_s(rain, r.start, r.end, summary.overflows()) * kSecondsPerHour *
           kMmPerM,
       "mm_per_h");
-  out << " standing water (above the drained level, release not running)\n";
+  out << " standing water (over 1 mm deep, release not running)\n";
   row("longest spell", shown(r.standing_longest_s / kSecondsPerDay), "days");
   row("spells over 7 days", std::to_string(r.standing_spells_over_week), "");
   row("days in all", shown(r.standing_s / kSecondsPerDay), "days");

@@ -106,14 +106,15 @@ void Stepper::coast(double t, double span, const Forcing& f) {
   x_[kReservoir] += roof_->to_reservoir_m3(span) - roof_->to_reservoir_m3(t);
   ChainSystem::set_roof(roof_->stores(span), x_);
   evaporate_at_rest(dt, f);
-  const BatteryRest rest = battery_at_rest(x_[kBattery], f.load_W, dt, sc.battery);
+  const BatteryRest rest =
+      battery_at_rest(x_[kBattery], f.load_W, dt, sc.battery, mode_.battery == BatteryMode::empty);
   x_[kBattery] = rest.energy_J;
   x_[kServed] += rest.drawn_J;
   x_[kDrawn] += rest.drawn_J;
   x_[kUnmet] += rest.unmet_J;
   x_[kSelfDischarge] += rest.self_discharge_J;
   ledger_.tally_battery(rest);
-  mode_.battery = battery_mode(x_[kBattery], 0.0, f.load_W, sc.battery);
+  mode_.battery = battery_mode(x_[kBattery], 0.0, f.load_W, sc.battery, mode_.battery);
   stats_.coasted_s += dt;
   ledger_.follow_standing(system_.level_m(x_), mode_, now_s_ + dt);
 }

@@ -127,8 +127,9 @@ struct EpisodeCounts {
   long standing_spells_over_week = 0;  ///< spells longer than kMosquitoSpell_s
 };
 
-/// Water stands when it is held more than this above the level the release drains to (a film
-/// under a millimetre dries within hours): a project choice, no source.
+/// Water stands when the gutter or tank holds it more than this deep, below the release's
+/// set-points as well as above them (a film under a millimetre dries within hours): a project
+/// choice, no source.
 inline constexpr double kStandingDepth_m = 1e-3;
 /// Standing water breeds mosquitoes from egg to adult in about 7-10 days in warm weather; public
 /// health guidance is to empty it at least weekly (REFERENCES.md section 13; common practice).
@@ -159,8 +160,10 @@ class Ledger {
   /// a head column's brim: opens and closes episodes.
   void switched(const ChainMode& before, const ChainMode& after, const ChainState& x,
                 double spilled_m3, double t);
-  /// Follows standing water at `t` with the reservoir at `level_m` in mode `m`: water held more
-  /// than kStandingDepth_m above the drained level while the release does not run. Called at the
+  /// Follows standing water at `t` with the reservoir at `level_m` in mode `m`: water more than
+  /// kStandingDepth_m deep, wherever the release leaves it (a bell siphon keeps what lies below
+  /// its rim), while the release does not run; a running release moves the water on and ends a
+  /// spell. Called at the
   /// end of every step and span at rest, so a spell is timed to a step (at most 30 min) or to a
   /// span at rest (at most an output interval), and exactly where a release starts.
   void follow_standing(double level_m, const ChainMode& m, double t);
