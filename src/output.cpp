@@ -411,6 +411,7 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
       {"chemistry",
        sc.battery.chemistry ? json(battery_chemistry_name(*sc.battery.chemistry)) : json()},
       {"cut_soc", sc.battery.min_soc},
+      {"reconnect_soc", reconnect_soc(sc.battery)},
       {"hours_below_half", round_to(a.battery_below_half_s / kSecondsPerHour, 4)},
       {"hours_empty", round_to(a.battery_empty_s / kSecondsPerHour, 4)},
       {"load_served_share",
