@@ -14,6 +14,7 @@ void apply_chemistry(BatteryChemistry chemistry, BatteryConfig& config) {
     double efficiency;  // charge and discharge alike
     double self_discharge_per_month;
     double min_soc;
+    double reconnect_soc;
   };
   // Lead-acid: round trip 0.9 x 0.9 = 0.81, inside the 0.70-0.85 of REFERENCES.md section 10
   // (M, vendor data); self-discharge 3 %/month, the middle of its 2-5 % (M); kept above half
@@ -21,13 +22,24 @@ void apply_chemistry(BatteryChemistry chemistry, BatteryConfig& config) {
   // LiFePO4: round trip 0.97 x 0.97 = 0.9409, inside the 0.92-0.97 of REFERENCES.md section 10
   // (M); self-discharge 2 %/month, the middle of its 1-3 % (M); cut at 10 % (90 % depth of
   // discharge): common practice, no source.
-  const Preset p =
-      chemistry == BatteryChemistry::lead_acid ? Preset{0.9, 0.03, 0.5} : Preset{0.97, 0.02, 0.1};
+  // Reconnect: a charge controller's low-voltage disconnect reconnects the load at a higher
+  // voltage, so that the load does not toggle at the cut (common practice, no source; one
+  // controller's defaults, LVD 11.5 V and LVR 12.6 V on a 12 V lead-acid battery, from its
+  // manual). Taken here as 20 points of charge above the cut for both: common practice, no
+  // source.
+  const Preset p = chemistry == BatteryChemistry::lead_acid ? Preset{0.9, 0.03, 0.5, 0.7}
+                                                            : Preset{0.97, 0.02, 0.1, 0.3};
   config.chemistry = chemistry;
   config.charge_efficiency = p.efficiency;
   config.discharge_efficiency = p.efficiency;
   config.self_discharge_per_month = p.self_discharge_per_month;
   config.min_soc = p.min_soc;
+  config.reconnect_soc = p.reconnect_soc;
+}
+
+double reconnect_soc(const BatteryConfig& config) {
+  return config.reconnect_soc ? *config.reconnect_soc
+                              : std::min(1.0, config.min_soc + kReconnectMargin);
 }
 
 double self_discharge_rate_per_s(const BatteryConfig& config) {
@@ -43,7 +55,14 @@ BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, doub
   BatteryFlows f;
   f.self_discharge_W = self_discharge_rate_per_s(config) * std::max(0.0, energy_J);
   const double surplus_W = input_W - load_W;
-  if (surplus_W >= 0.0) {
+  if (mode == BatteryMode::empty) {
+    // The load is disconnected: the whole input goes to recharging (a low-voltage disconnect
+    // cuts the load terminals, not the charging; common practice, no source).
+    f.unmet_W = load_W;
+    f.accepted_W = std::min(input_W, config.max_charge_W);
+    f.curtailed_W = input_W - f.accepted_W;
+    f.charge_W = config.charge_efficiency * f.accepted_W - f.self_discharge_W;
+  } else if (surplus_W >= 0.0) {
     f.served_W = load_W;
     f.accepted_W = std::min(surplus_W, config.max_charge_W);
     // Full: the charger holds the charge, taking only what the self-discharge loses.
@@ -52,10 +71,6 @@ BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, doub
     }
     f.curtailed_W = surplus_W - f.accepted_W;
     f.charge_W = config.charge_efficiency * f.accepted_W - f.self_discharge_W;
-  } else if (mode == BatteryMode::empty) {
-    f.served_W = input_W;
-    f.unmet_W = -surplus_W;
-    f.charge_W = -f.self_discharge_W;
   } else {
     f.served_W = load_W;
     f.drawn_W = -surplus_W;
@@ -65,7 +80,7 @@ BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, doub
 }
 
 BatteryMode battery_mode(double energy_J, double input_W, double load_W,
-                         const BatteryConfig& config) {
+                         const BatteryConfig& config, BatteryMode before) {
   const double surplus_W = input_W - load_W;
   const double holding_W = self_discharge_rate_per_s(config) * energy_J;
   if (energy_J >= config.capacity_J && surplus_W >= 0.0 &&
@@ -73,6 +88,9 @@ BatteryMode battery_mode(double energy_J, double input_W, double load_W,
     return BatteryMode::full;
   }
   if (energy_J <= config.min_soc * config.capacity_J && surplus_W < 0.0) return BatteryMode::empty;
+  if (before == BatteryMode::empty && energy_J < reconnect_soc(config) * config.capacity_J) {
+    return BatteryMode::empty;
+  }
   return BatteryMode::normal;
 }
 
@@ -103,7 +121,7 @@ double energy_after(double from_J, double t, double k, double p) {
 }  // namespace
 
 BatteryRest battery_at_rest(double energy_J, double load_W, double span_s,
-                            const BatteryConfig& config) {
+                            const BatteryConfig& config, bool cut) {
   const double k = self_discharge_rate_per_s(config);
   const double e_min = config.min_soc * config.capacity_J;
   const double half = 0.5 * config.capacity_J;
@@ -113,10 +131,10 @@ BatteryRest battery_at_rest(double energy_J, double load_W, double span_s,
   double serve_s = span_s;
   double e1 = energy_after(energy_J, span_s, k, p);
   if (load_W > 0.0) {
-    const double reach_s = energy_J > e_min ? time_to_fall_s(energy_J, e_min, k, p) : 0.0;
+    const double reach_s = energy_J > e_min && !cut ? time_to_fall_s(energy_J, e_min, k, p) : 0.0;
     if (reach_s < span_s) {
       serve_s = reach_s;
-      e1 = std::min(energy_J, e_min);
+      e1 = reach_s > 0.0 ? e_min : energy_J;
     }
   }
   r.drawn_J = load_W * serve_s;

@@ -12,7 +12,6 @@
 #include "gutterwatt/scenario_edit.hpp"
 #include "gutterwatt/simulation.hpp"
 #include "gutterwatt/units.hpp"
-#include "report_format.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -201,8 +200,11 @@ std::optional<Eigen::MatrixXd> jacobian(const BenchModel& model, const Eigen::Ve
   return J;
 }
 
-// A number by the report's one rule, as the terminal shows it.
-std::string show(double x) { return detail::pretty(x, detail::Medium::terminal); }
+std::string show(double x) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.4g", x);
+  return buf;
+}
 
 /// The priming flow from the bracket; a warning and the value as it was where there is none.
 void fit_priming(const std::vector<BenchRow>& rows, BenchFit& fit) {
@@ -434,12 +436,7 @@ std::string yaml_quoted(const std::string& text) {
 
 }  // namespace
 
-// Written into the scenario (not a figure to read): four significant figures, as measured.
-std::string fitted_value_text(const FittedValue& v) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.4g", shown(v, v.value));
-  return buf;
-}
+std::string fitted_value_text(const FittedValue& v) { return show(shown(v, v.value)); }
 
 void write_fitted_value(std::ostream& out, const FittedValue& v) {
   out << "  " << v.key << ": ";
@@ -448,7 +445,11 @@ void write_fitted_value(std::ostream& out, const FittedValue& v) {
     return;
   }
   out << show(shown(v, v.value));
-  if (v.sigma) out << " +- " << show(shown(v, *v.sigma));
+  if (v.sigma) {
+    char buf[32];
+    std::snprintf(buf, sizeof buf, "%.2g", shown(v, *v.sigma));
+    out << " +- " << buf;
+  }
   out << " (was " << show(shown(v, v.before)) << ")\n";
 }
 
@@ -472,13 +473,13 @@ void write_bench_fit(std::ostream& out, const BenchFit& fit) {
     for (const BenchResidual& r : fit.residuals) {
       const bool flow = r.quantity == "nozzle_flow_L_per_min";
       const double scale = flow ? 1.0 / kLitrePerMinute_m3_per_s : 1.0;
-      std::snprintf(buf, sizeof buf, "  %-6d %-22s %12s %12s %8s%%\n", r.line, r.quantity.c_str(),
-                    show(r.measured * scale).c_str(), show(r.model * scale).c_str(),
-                    show(100.0 * r.relative()).c_str());
+      std::snprintf(buf, sizeof buf, "  %-6d %-22s %12.4g %12.4g %8.1f%%\n", r.line,
+                    r.quantity.c_str(), r.measured * scale, r.model * scale, 100.0 * r.relative());
       out << buf;
     }
-    out << "  root mean square of the residuals: " << show(100.0 * fit.rms_relative) << "% ("
-        << fit.iterations << " iterations)\n";
+    std::snprintf(buf, sizeof buf, "  root mean square of the residuals: %.1f%% (%d iterations)\n",
+                  100.0 * fit.rms_relative, fit.iterations);
+    out << buf;
   }
   write_warnings_and_build(out, fit.warnings,
                            {{"priming_flow_L_per_min", fit.priming_flow},

@@ -15,7 +15,8 @@ ChainSystem::ChainSystem(const Scenario& scenario)
       plant_(plant_config(scenario)),
       release_(make_release(scenario.release)),
       trickle_volume_m3_(plant_.column_area_m2() * kTrickleHead_m),
-      drained_level_m_(gutterwatt::drained_level_m(scenario.release)) {}
+      pipe_volume_m3_(circle_area_m2(scenario.drop_pipe.diameter_m) * scenario.drop_pipe.length_m) {
+}
 
 namespace {
 
@@ -118,13 +119,17 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
   const int n = release_->guards(m.release, r.outlet_level_m, rel);
   for (int k = 0; k < n; ++k) g[kGuardRelease0 + k] = rel[k].value;
   if (delivery_ && sc_.release.kind != ReleaseKind::orifice) {
-    // A siphon or valve starts only where the gutter feeds it, its outlet then kStartMargin_m
-    // above where it would end: else it would end at once, and start again, without end.
+    // A siphon or valve starts only where the gutter feeds it: it runs full only once its drop
+    // pipe has filled, so the gutter must still feed it, its outlet kStartMargin_m above where
+    // it would end, after giving the pipe's volume. Else it would end at once and start again
+    // as soon as the (quasi-steady) profile refilled the outlet: thousands of empty burps.
+    const double filled_m3 = std::max(0.0, x[kReservoir] - pipe_volume_m3_);
+    const double filled_level_m = geometry_.level_m(filled_m3);
     for (int k = 0; k < n; ++k) {
       if (!release_->is_running(rel[k].next)) continue;
-      const double drawn =
-          running_outflow_m3_per_s(*release_, r.level_m, plant_.full_flow_m3_per_s(r.level_m));
-      const double outlet = delivery_->outlet_depth_m(x[kReservoir], r.level_m, drawn);
+      const double drawn = running_outflow_m3_per_s(*release_, filled_level_m,
+                                                    plant_.full_flow_m3_per_s(filled_level_m));
+      const double outlet = delivery_->outlet_depth_m(filled_m3, filled_level_m, drawn);
       g[kGuardRelease0 + k] =
           std::max(g[kGuardRelease0 + k], sc_.release.break_level_m + kStartMargin_m - outlet);
     }
@@ -156,7 +161,7 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
   // Normal ends at capacity while charging and at the minimum while serving the load; a battery
   // below its minimum (self-discharged there while the generator carried the load) is cut as
   // soon as the load exceeds the input. Full ends when the charge it can take no longer offsets
-  // its self-discharge; empty when the input covers the load.
+  // its self-discharge; a cut load reconnects at reconnect_soc.
   const BatteryConfig& bat = sc_.battery;
   const double surplus = r.electrical_W - f.load_W;
   switch (m.battery) {
@@ -172,7 +177,7 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
           bat.charge_efficiency * std::min(surplus, bat.max_charge_W) - r.battery.self_discharge_W;
       break;
     case BatteryMode::empty:
-      g[kGuardBattery] = -surplus;
+      g[kGuardBattery] = reconnect_soc(bat) * bat.capacity_J - x[kBattery];
       break;
   }
 }
@@ -212,7 +217,7 @@ double ChainSystem::apply_switch(int k, ChainState& x, ChainMode& m, const Forci
       m.generator_on = !m.generator_on;
       break;
     case kGuardBattery:
-      m.battery = battery_mode(x[kBattery], r.electrical_W, f.load_W, sc_.battery);
+      m.battery = battery_mode(x[kBattery], r.electrical_W, f.load_W, sc_.battery, before.battery);
       if (m.battery == before.battery) {
         m.battery = before.battery == BatteryMode::normal
                         ? (r.battery.charge_W >= 0.0 ? BatteryMode::full : BatteryMode::empty)

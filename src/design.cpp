@@ -309,19 +309,17 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
   }
   if (has_set_points) {
     // A level pool loses depth at the evaporation rate whatever its section (dV = A dh), so the
-    // water held above the drained level lasts (trigger - drained) / E at rate E.
+    // water held up to the trigger, which stands (Ledger::follow_standing) while over
+    // kStandingDepth_m deep, lasts (trigger - kStandingDepth_m) / E at rate E: the release
+    // leaves the water below its break level too.
     const auto& e = sc.reservoir.evaporation_m_per_s;
     const double fastest = e.empty() ? 0.0 : *std::max_element(e.begin(), e.end());
-    const double held_m = rel.trigger_level_m - drained_level_m(rel);
+    const double held_m = rel.trigger_level_m - kStandingDepth_m;
     const std::string where =
         rel.kind == ReleaseKind::bell ? "the standpipe lip (" : "the valve's opening level (";
-    const std::string above = rel.kind == ReleaseKind::bell ? " above the bell rim"
-                                                            : " above its "
-                                                              "closing level";
     const std::string lead = "Between storms the reservoir holds water up to " + where +
-                             shown(units, rel.trigger_level_m / kMetresPerMm, "mm") + "), " +
-                             shown(units, held_m / kMetresPerMm, "mm") + above +
-                             ", which only evaporation lowers";
+                             shown(units, rel.trigger_level_m / kMetresPerMm, "mm") +
+                             "), which only evaporation lowers";
     const std::string tail =
         ". Mosquitoes breed in standing water in about 7 days (common practice): screen every "
         "opening or empty it weekly.";

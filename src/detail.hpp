@@ -22,7 +22,6 @@
 
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/units.hpp"
-#include "report_format.hpp"
 
 namespace gutterwatt::detail {
 
@@ -134,9 +133,11 @@ inline std::string fixed(double v, int decimals) {
   return out;
 }
 
-/// A flow in m3/s as a person reads it: `12.3 L/min`, by the one rule (pretty, terminal).
+/// A flow in m3/s as a person reads it: `12.3 L/min` (three significant figures, printf `%.3g`).
 inline std::string litres_per_minute(double flow_m3_per_s) {
-  return pretty(flow_m3_per_s / kLitrePerMinute_m3_per_s, Medium::terminal) + " L/min";
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.3g L/min", flow_m3_per_s / kLitrePerMinute_m3_per_s);
+  return buf;
 }
 
 /// As fixed, without trailing zeros after the point (and without a bare point).

@@ -50,16 +50,4 @@ std::unique_ptr<Release> make_release(const ReleaseConfig& config) {
   return std::make_unique<NoRelease>();
 }
 
-double drained_level_m(const ReleaseConfig& config) {
-  switch (config.kind) {
-    case ReleaseKind::bell:
-    case ReleaseKind::float_valve:
-      return config.break_level_m;
-    case ReleaseKind::orifice:
-    case ReleaseKind::none:
-      break;
-  }
-  return 0.0;
-}
-
 }  // namespace gutterwatt

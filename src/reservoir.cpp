@@ -315,9 +315,11 @@ double evaporation_rate_m_per_s(const ReservoirConfig& config, int month) {
 
 double evaporation_m3_per_s(double rate_m_per_s, double surface_m2, double level_m) {
   // A depth per time over the exposed surface, dV/dt = -E A: the definition of an evaporation
-  // depth rate (geometry, no source needed). E is the scenario's open-water figure; the typical
-  // values in REFERENCES.md section 13 are from memory. The taper below the film depth is a
-  // project choice.
+  // depth rate (geometry, no source needed). E is the scenario's open-water figure: a nearby
+  // Class A pan's evaporation times the pan coefficient, about 0.7 for a year (Kohler, Nordenson
+  // & Fox 1955, US Weather Bureau Research Paper 38, the method of WMO HOMS component I45.1.03;
+  // the 0.7 from memory). The typical values in REFERENCES.md section 13 are from memory. The
+  // taper below the film depth is a project choice.
   const double film = std::clamp(level_m / kEvaporationFilm_m, 0.0, 1.0);
   return rate_m_per_s * surface_m2 * film;
 }

@@ -162,8 +162,10 @@ Disaggregation& disaggregation(Scenario& s) {
 
 /// Most title lines rain.skip_lines passes over: a logger writes a few, never a thousand.
 constexpr double kMaxSkipLines = 1000.0;
-/// Most open-water evaporation a scenario may give, mm/day: twice the 10-15 mm/day of the
-/// hottest, driest places (from memory, no source), so a larger value is a unit mix-up.
+/// Most open-water evaporation a scenario may give, mm/day: a bound against unit mix-ups (a
+/// value per month or per year given as per day), not a physical limit. Twice the 10-15 mm/day
+/// a Class A pan loses on the hottest, driest summer days (from memory, no source), before the
+/// pan coefficient of about 0.7 (reservoir.cpp): common practice, no source.
 constexpr double kMaxEvaporation_mm_per_day = 30.0;
 
 /// rain.where: a section of column names and the text each must hold for a row to be kept.
@@ -653,6 +655,8 @@ const std::vector<Section>& schema() {
            {"self_discharge_per_month", kOptional,
             [](V v, S s) { s.battery.self_discharge_per_month = v.number(kPartShare); }},
            {"min_soc", kOptional, [](V v, S s) { s.battery.min_soc = v.number(kPartShare); }},
+           {"reconnect_soc", kOptional,
+            [](V v, S s) { s.battery.reconnect_soc = v.number(kShare); }},
            {"max_charge_W", kOptional,
             [](V v, S s) { s.battery.max_charge_W = v.number(kPositive); }},
            {"load_W", kOptional, [](V v, S s) { s.battery.load_W = v.number(kNonNegative); }},
@@ -675,8 +679,6 @@ const std::vector<Section>& schema() {
             [](V v, S s) { s.simulation.output_interval_s = v.duration_s(kPositive); }},
            {"rtol", kOptional,
             [](V v, S s) { s.simulation.rtol = v.number(between(1e-10, 1e-3)); }},
-           {"trace", kOptional,
-            [](V v, S s) { s.simulation.trace = v.choice<bool>({{"on", true}, {"off", false}}); }},
        }},
   };
   return kSchema;

@@ -280,6 +280,21 @@ void check_generator(const Seen& seen) {
   }
 }
 
+/// A cut load reconnects above the cut, or it would toggle there. The presets keep this, so a
+/// reconnect charge not given comes from battery.chemistry and battery.min_soc is to blame.
+void check_battery(const Seen& seen, const Scenario& s) {
+  const BatteryConfig& b = s.battery;
+  if (!b.reconnect_soc || *b.reconnect_soc > b.min_soc) return;
+  if (seen.has("battery.reconnect_soc")) {
+    seen.at("battery.reconnect_soc")
+        .expect(false, "must be above battery.min_soc = " + show(b.min_soc));
+  }
+  seen.at("battery.min_soc")
+      .expect(false, "must be below " + show(*b.reconnect_soc) +
+                         ", the reconnect charge of battery.chemistry (or set "
+                         "battery.reconnect_soc above it)");
+}
+
 void check_simulation(const Seen& seen, const Scenario& s) {
   const auto& sim = s.simulation;
   if (sim.start && sim.end) {
@@ -302,6 +317,7 @@ void check_combinations(const Seen& seen, Scenario& s) {
   check_nozzle(seen, s);
   check_priming_flow(seen, s);
   check_generator(seen);
+  check_battery(seen, s);
   check_simulation(seen, s);
 }
 

@@ -60,13 +60,56 @@ TEST(Battery, DischargesThroughTheDischargeEfficiency) {
   EXPECT_EQ(f.unmet_W, 0.0);
 }
 
-TEST(Battery, CutsTheLoadWhenEmpty) {
+TEST(Battery, ACutLoadLetsTheInputRechargeTheBattery) {
+  // With the load disconnected (a low-voltage disconnect cuts the load, not the charging): the
+  // 1 W load is all unmet and the 0.3 W input charges at 0.9, 0.27 W into the store; 45 W
+  // against the 30 W charge limit curtails 15 W.
   const BatteryFlows f = battery_flows(BatteryMode::empty, 0.3, 1.0, 0.0, battery());
-  EXPECT_EQ(f.served_W, 0.3);
-  EXPECT_DOUBLE_EQ(f.unmet_W, 0.7);
-  EXPECT_EQ(f.charge_W, 0.0);
-  EXPECT_EQ(f.accepted_W, 0.0);
+  EXPECT_EQ(f.served_W, 0.0);
+  EXPECT_EQ(f.unmet_W, 1.0);
+  EXPECT_DOUBLE_EQ(f.accepted_W, 0.3);
+  EXPECT_DOUBLE_EQ(f.charge_W, 0.27);
   EXPECT_EQ(f.drawn_W, 0.0);
+  const BatteryFlows big = battery_flows(BatteryMode::empty, 45.0, 1.0, 0.0, battery());
+  EXPECT_EQ(big.accepted_W, 30.0);
+  EXPECT_EQ(big.curtailed_W, 15.0);
+}
+
+TEST(Battery, ACutLoadReconnectsOnlyAtTheReconnectCharge) {
+  // Hysteresis of a low-voltage disconnect (common practice, no source): cut at the minimum,
+  // reconnected at reconnect_soc. Lead-acid preset: cut at 0.5, reconnect at 0.7 (common
+  // practice, no source); 60 Wh: 30 and 42 Wh.
+  BatteryConfig c = battery();
+  apply_chemistry(BatteryChemistry::lead_acid, c);
+  EXPECT_EQ(reconnect_soc(c), 0.7);
+  EXPECT_EQ(battery_mode(30.0 * kWh, 0.0, 0.5, c), BatteryMode::empty);
+  // Recharging while cut: still cut at 41.9 Wh, whatever the input, reconnected at 42 Wh.
+  EXPECT_EQ(battery_mode(41.9 * kWh, 5.0, 0.5, c, BatteryMode::empty), BatteryMode::empty);
+  EXPECT_EQ(battery_mode(41.9 * kWh, 0.0, 0.5, c, BatteryMode::empty), BatteryMode::empty);
+  EXPECT_EQ(battery_mode(42.0 * kWh, 0.0, 0.5, c, BatteryMode::empty), BatteryMode::normal);
+  // Never cut, the same 41.9 Wh serves the load.
+  EXPECT_EQ(battery_mode(41.9 * kWh, 0.0, 0.5, c), BatteryMode::normal);
+  // LiFePO4 preset: cut at 0.1, reconnect at 0.3 (common practice, no source). Without a
+  // chemistry: the minimum plus a tenth, at most 1 (common practice, no source).
+  apply_chemistry(BatteryChemistry::lifepo4, c);
+  EXPECT_EQ(reconnect_soc(c), 0.3);
+  BatteryConfig plain = battery();
+  EXPECT_EQ(reconnect_soc(plain), 0.1);
+  plain.min_soc = 0.95;
+  EXPECT_EQ(reconnect_soc(plain), 1.0);
+}
+
+TEST(Battery, ACutBatteryAtRestStaysCut) {
+  // 40 Wh stored (above the 12 Wh minimum) but cut, 1 W load, no self-discharge, 10 h: nothing
+  // is drawn, 10 Wh are unmet, the store keeps 40 Wh.
+  BatteryConfig c = battery();
+  c.min_soc = 0.2;
+  const BatteryRest r = battery_at_rest(40.0 * kWh, 1.0, 36000.0, c, true);
+  EXPECT_EQ(r.drawn_J, 0.0);
+  EXPECT_NEAR(r.unmet_J / kWh, 10.0, 1e-12);
+  EXPECT_EQ(r.empty_s, 36000.0);
+  EXPECT_EQ(r.energy_J, 40.0 * kWh);
+  EXPECT_EQ(r.below_half_s, 0.0);
 }
 
 TEST(Battery, EnergyInThenOutReturnsTheRoundTrip) {
@@ -176,8 +219,7 @@ TEST(Battery, EveryFlowBalances) {
   for (BatteryMode mode : {BatteryMode::normal, BatteryMode::full, BatteryMode::empty}) {
     for (double input : {0.0, 0.3, 1.0, 12.0, 45.0}) {
       for (double load : {0.0, 0.5, 1.0, 20.0}) {
-        if (mode == BatteryMode::full && input < load) continue;    // not a full battery's case
-        if (mode == BatteryMode::empty && input >= load) continue;  // nor an empty one's
+        if (mode == BatteryMode::full && input < load) continue;  // not a full battery's case
         const double energy = mode == BatteryMode::full ? c.capacity_J : kHalf_J;
         const BatteryFlows f = battery_flows(mode, input, load, energy, c);
         EXPECT_NEAR(input + f.drawn_W, f.accepted_W + f.curtailed_W + f.served_W, 1e-12)
@@ -197,6 +239,7 @@ TEST(Battery, ModeFollowsEnergyAndSurplus) {
   EXPECT_EQ(battery_mode(c.capacity_J, 0.0, 0.5, c), BatteryMode::normal);
   EXPECT_EQ(battery_mode(0.0, 0.0, 0.5, c), BatteryMode::empty);
   EXPECT_EQ(battery_mode(0.0, 1.0, 0.5, c), BatteryMode::normal);
+  EXPECT_EQ(battery_mode(0.0, 1.0, 0.5, c, BatteryMode::empty), BatteryMode::empty);
   EXPECT_EQ(battery_mode(0.5 * c.capacity_J, 0.0, 0.5, c), BatteryMode::normal);
   c.min_soc = 0.5;
   EXPECT_EQ(battery_mode(0.5 * c.capacity_J, 0.0, 0.5, c), BatteryMode::empty);

@@ -38,6 +38,9 @@ TEST(Cli, DemoRunWritesThreeFilesWithEnergyAndAClosedBalance) {
                          w["evaporation"].get<double>() - w["storage_change"].get<double>();
   EXPECT_GT(w["evaporation"].get<double>(), 0.0);
   EXPECT_GT(summary["standing_water"]["days_total"].get<double>(), 0.0);
+  // The demo's lead-acid preset: cut at half charge, reconnected at 70 % (common practice).
+  EXPECT_EQ(summary["battery"]["cut_soc"].get<double>(), 0.5);
+  EXPECT_EQ(summary["battery"]["reconnect_soc"].get<double>(), 0.7);
   EXPECT_NEAR(closing, 0.0, 1e-3);  // the printed accounts are rounded to 1e-6 L each
   EXPECT_EQ(summary["months"].size(), 9u);
   const std::string ts = slurp(dir / "out" / "timeseries.csv");

@@ -144,19 +144,20 @@ TEST(Design, WarnsWhenTheGeneratorNeverReachesTheBatteryVoltage) {
   EXPECT_NE(std::find(d.warnings.begin(), d.warnings.end(), expected), d.warnings.end());
 }
 
-TEST(Design, WarnsWhenWaterStandsAboveTheBellRimLongerThanAWeek) {
-  // Lip 50 mm, rim 8 mm: 42 mm held, which a level pool loses at the evaporation rate whatever
-  // its section: 42 / 4.5 = 9.33 days (> 7); at 7 mm/day, 6 days (no warning).
+TEST(Design, WarnsWhenWaterStandsLongerThanAWeek) {
+  // Lip 50 mm: the water up to it stands (below the 8 mm bell rim too) until it is under 1 mm
+  // deep, which a level pool reaches at the evaporation rate whatever its section: 49 / 4.5 =
+  // 10.9 days (> 7); at 8 mm/day, 6.1 days (no warning).
   Scenario s = make_scenario();
   s.reservoir.evaporation_m_per_s = {4.5e-3 / 86400.0};
   const std::string expected =
-      "Between storms the reservoir holds water up to the standpipe lip (50 mm), 42 mm above the "
-      "bell rim, which only evaporation lowers: even at the highest evaporation given (4.5 "
-      "mm/day) that takes 9.33 days. Mosquitoes breed in standing water in about 7 days (common "
-      "practice): screen every opening or empty it weekly.";
+      "Between storms the reservoir holds water up to the standpipe lip (50 mm), which only "
+      "evaporation lowers: even at the highest evaporation given (4.5 mm/day) that takes 10.9 "
+      "days. Mosquitoes breed in standing water in about 7 days (common practice): screen every "
+      "opening or empty it weekly.";
   const DesignFigures d = evaluate_design(s, nullptr);
   EXPECT_NE(std::find(d.warnings.begin(), d.warnings.end(), expected), d.warnings.end());
-  s.reservoir.evaporation_m_per_s = {7e-3 / 86400.0};
+  s.reservoir.evaporation_m_per_s = {8e-3 / 86400.0};
   const DesignFigures quick = evaluate_design(s, nullptr);
   for (const std::string& w : quick.warnings)
     EXPECT_EQ(w.find("Between storms"), std::string::npos);

@@ -217,6 +217,19 @@ TEST(Scenario, BatteryChemistrySetsPresetsThatItsKeysOverride) {
             "--set: battery.self_discharge_per_month: must be >= 0 and < 1 (got 1)");
 }
 
+TEST(Scenario, ACutLoadReconnectsAboveTheCut) {
+  const Scenario lead = parse(minimal(), {"battery.chemistry=lead_acid"});
+  EXPECT_EQ(lead.battery.reconnect_soc, 0.7);  // the preset
+  const Scenario given =
+      parse(minimal(), {"battery.chemistry=lead_acid", "battery.reconnect_soc=0.6"});
+  EXPECT_EQ(given.battery.reconnect_soc, 0.6);
+  EXPECT_EQ(error_of(minimal(), {"battery.chemistry=lead_acid", "battery.reconnect_soc=0.5"}),
+            "--set: battery.reconnect_soc: must be above battery.min_soc = 0.5 (got 0.5)");
+  EXPECT_EQ(error_of(minimal(), {"battery.chemistry=lifepo4", "battery.min_soc=0.3"}),
+            "--set: battery.min_soc: must be below 0.3, the reconnect charge of battery.chemistry "
+            "(or set battery.reconnect_soc above it) (got 0.3)");
+}
+
 TEST(Scenario, EvaporationIsOneNumberOrTwelve) {
   const Scenario one = parse(minimal(), {"reservoir.evaporation_mm_per_day=3"});
   ASSERT_EQ(one.reservoir.evaporation_m_per_s.size(), 1u);

@@ -5,7 +5,6 @@
 
 #include <array>
 #include <optional>
-#include <span>
 #include <string_view>
 #include <vector>
 
@@ -71,20 +70,6 @@ struct Sample {
 
 enum class EpisodeKind { cycle, overflow, dribble, column_overflow };
 
-/// One kind of episode: the one table of them, which events.csv's writer, the report's reader and
-/// page and the tests take. `name` is as events.csv writes it, `words` as the page says it;
-/// `makes_energy`: whether what flows in it passes the nozzle (an overflow's water does not, so
-/// it carries no energy figure).
-struct EpisodeKindInfo {
-  EpisodeKind kind;
-  std::string_view name;
-  std::string_view words;
-  bool makes_energy;
-};
-
-/// Every episode kind, in the order the page lists them.
-std::span<const EpisodeKindInfo> episode_kinds();
-
 /// `cycle`, `overflow`, `dribble`, `column_overflow`.
 std::string_view episode_kind_name(EpisodeKind kind);
 
@@ -108,24 +93,6 @@ struct Episode {
   double energy_J;
 };
 
-/// The state at one instant of the fine trace: at a mode switch (once in the mode before it and
-/// once in the mode after, at the same time), on the trace's grid while anything moves, and where
-/// the chain comes to rest or starts to move again. Flows in m3/s; overflow is over the
-/// reservoir's rim and the head column's brim together.
-struct TracePoint {
-  double time_s = 0.0;  ///< seconds since the epoch (UTC), not rounded
-  double level_m = 0.0;
-  ReleaseState release = ReleaseState::idle;
-  double release_m3_per_s = 0.0;
-  double overflow_m3_per_s = 0.0;
-  double head_m = 0.0;   ///< at the nozzle, 0 while nothing passes it
-  double power_W = 0.0;  ///< electrical, delivered
-};
-
-/// The trace's grid: while anything moves, a point at every whole multiple of this many seconds
-/// since the epoch (so never more than this apart), besides the switches.
-inline constexpr double kTraceStep_s = 60.0;
-
 /// Receives a run's records as they are made, like an odeint observer.
 class Observer {
  public:
@@ -134,9 +101,6 @@ class Observer {
   virtual void on_start(const Sample&) {}
   virtual void on_sample(const Sample&) {}
   virtual void on_episode(const Episode&) {}
-  /// Whether this observer takes the fine trace (on_trace); the run makes none otherwise.
-  virtual bool wants_trace() const { return false; }
-  virtual void on_trace(const TracePoint&) {}
 };
 
 /// Forwards every record to several observers in order.
@@ -146,8 +110,6 @@ class ObserverList : public Observer {
   void on_start(const Sample& s) override;
   void on_sample(const Sample& s) override;
   void on_episode(const Episode& e) override;
-  bool wants_trace() const override;
-  void on_trace(const TracePoint& p) override;
 
  private:
   std::vector<Observer*> observers_;
@@ -165,8 +127,9 @@ struct EpisodeCounts {
   long standing_spells_over_week = 0;  ///< spells longer than kMosquitoSpell_s
 };
 
-/// Water stands when it is held more than this above the level the release drains to (a film
-/// under a millimetre dries within hours): a project choice, no source.
+/// Water stands when the gutter or tank holds it more than this deep, below the release's
+/// set-points as well as above them (a film under a millimetre dries within hours): a project
+/// choice, no source.
 inline constexpr double kStandingDepth_m = 1e-3;
 /// Standing water breeds mosquitoes from egg to adult in about 7-10 days in warm weather; public
 /// health guidance is to empty it at least weekly (REFERENCES.md section 13; common practice).
@@ -197,8 +160,10 @@ class Ledger {
   /// a head column's brim: opens and closes episodes.
   void switched(const ChainMode& before, const ChainMode& after, const ChainState& x,
                 double spilled_m3, double t);
-  /// Follows standing water at `t` with the reservoir at `level_m` in mode `m`: water held more
-  /// than kStandingDepth_m above the drained level while the release does not run. Called at the
+  /// Follows standing water at `t` with the reservoir at `level_m` in mode `m`: water more than
+  /// kStandingDepth_m deep, wherever the release leaves it (a bell siphon keeps what lies below
+  /// its rim), while the release does not run; a running release moves the water on and ends a
+  /// spell. Called at the
   /// end of every step and span at rest, so a spell is timed to a step (at most 30 min) or to a
   /// span at rest (at most an output interval), and exactly where a release starts.
   void follow_standing(double level_m, const ChainMode& m, double t);
@@ -212,10 +177,6 @@ class Ledger {
   static Storage storage(const ChainState& x);
   Sample sample(Instant t, const ChainState& x, const ChainMode& m, bool output,
                 bool month_end) const;
-  /// Whether the observer takes the fine trace.
-  bool tracing() const { return tracing_; }
-  /// Hands the observer the trace point at `t` in mode `m` with the state's rates `r`.
-  void trace(double t, const ChainMode& m, const ChainRates& r) const;
   const EpisodeCounts& counts() const { return counts_; }
 
  private:
@@ -233,7 +194,6 @@ class Ledger {
 
   const ChainSystem& system_;
   Observer& observer_;
-  bool tracing_;
   Accounts tally_;  // the accounts tallied outside the state; the others stay zero
   std::array<OpenEpisode, 4> episodes_{};
   EpisodeCounts counts_;

@@ -104,9 +104,9 @@ using Guards = std::array<double, kGuardCount>;
 /// far below any generator's cut-in.
 inline constexpr double kTrickleHead_m = 0.05;
 /// A siphon or float valve on a long level gutter starts only while the depth at the outlet,
-/// with it running, would stand this far above its break level: a project choice that keeps the
-/// start and the end apart where the gutter barely feeds it (between them it dribbles or stays
-/// closed).
+/// with it running and the drop pipe's volume drawn, would stand this far above its break
+/// level: a project choice that keeps the start and the end apart where the gutter barely feeds
+/// it (between them it dribbles or stays closed).
 inline constexpr double kStartMargin_m = 1e-3;
 /// Volume below which a head column counts as drained.
 inline constexpr double kColumnDry_m3 = 1e-9;
@@ -139,8 +139,6 @@ class ChainSystem {
   double evaporation_m3_per_s(double volume_m3, const Forcing& f) const;
   /// The reservoir's level in state `x`.
   double level_m(const ChainState& x) const { return geometry_.level_m(x[kReservoir]); }
-  /// The level the release drains the reservoir down to (see drained_level_m).
-  double drained_level_m() const { return drained_level_m_; }
 
   /// The state and mode at the start of a run.
   ChainState initial_state() const;
@@ -163,7 +161,7 @@ class ChainSystem {
   Plant plant_;
   std::unique_ptr<Release> release_;
   double trickle_volume_m3_;  // head column: volume at kTrickleHead_m
-  double drained_level_m_;
+  double pipe_volume_m3_;     // the drop pipe's: a release runs full once it has filled
 };
 
 }  // namespace gutterwatt

@@ -23,10 +23,6 @@ struct ReleaseConfig {
   double orifice_coefficient = 0.61;
 };
 
-/// The level a release drains the reservoir down to and holds between releases: a bell's rim
-/// (break level), a float valve's closing level, the floor for an orifice or none.
-double drained_level_m(const ReleaseConfig& config);
-
 enum class ReleaseState { idle, dribble, running, closed, open };
 
 /// The name written to outputs: `idle`, `dribble`, `running`, `closed`, `open`.
