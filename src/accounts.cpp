@@ -5,31 +5,36 @@
 
 namespace gutterwatt {
 
-std::string_view episode_kind_name(EpisodeKind kind) {
-  switch (kind) {
-    case EpisodeKind::cycle:
-      return "cycle";
-    case EpisodeKind::overflow:
-      return "overflow";
-    case EpisodeKind::dribble:
-      return "dribble";
-    case EpisodeKind::column_overflow:
-      return "column_overflow";
+namespace {
+
+constexpr EpisodeKindInfo kEpisodeKinds[] = {
+    {EpisodeKind::cycle, "cycle", "release cycles", true},
+    {EpisodeKind::dribble, "dribble", "dribble episodes (release not sealed)", true},
+    {EpisodeKind::overflow, "overflow", "overflow at the reservoir rim", false},
+    {EpisodeKind::column_overflow, "column_overflow", "overflow at the head column", false},
+};
+
+const EpisodeKindInfo& info(EpisodeKind kind) {
+  for (const EpisodeKindInfo& k : kEpisodeKinds) {
+    if (k.kind == kind) return k;
   }
-  return "cycle";
+  return kEpisodeKinds[0];
 }
 
+}  // namespace
+
+std::span<const EpisodeKindInfo> episode_kinds() { return kEpisodeKinds; }
+
+std::string_view episode_kind_name(EpisodeKind kind) { return info(kind).name; }
+
 std::optional<EpisodeKind> episode_kind_from_name(std::string_view name) {
-  for (const EpisodeKind kind : {EpisodeKind::cycle, EpisodeKind::overflow, EpisodeKind::dribble,
-                                 EpisodeKind::column_overflow}) {
-    if (episode_kind_name(kind) == name) return kind;
+  for (const EpisodeKindInfo& k : kEpisodeKinds) {
+    if (k.name == name) return k.kind;
   }
   return std::nullopt;
 }
 
-bool episode_makes_energy(EpisodeKind kind) {
-  return kind == EpisodeKind::cycle || kind == EpisodeKind::dribble;
-}
+bool episode_makes_energy(EpisodeKind kind) { return info(kind).makes_energy; }
 
 void ObserverList::on_start(const Sample& s) {
   for (Observer* o : observers_) o->on_start(s);
@@ -40,9 +45,28 @@ void ObserverList::on_sample(const Sample& s) {
 void ObserverList::on_episode(const Episode& e) {
   for (Observer* o : observers_) o->on_episode(e);
 }
+bool ObserverList::wants_trace() const {
+  return std::any_of(observers_.begin(), observers_.end(),
+                     [](const Observer* o) { return o->wants_trace(); });
+}
+void ObserverList::on_trace(const TracePoint& p) {
+  for (Observer* o : observers_) o->on_trace(p);
+}
 
 Ledger::Ledger(const ChainSystem& system, Observer& observer)
-    : system_(system), observer_(observer) {}
+    : system_(system), observer_(observer), tracing_(observer.wants_trace()) {}
+
+void Ledger::trace(double t, const ChainMode& m, const ChainRates& r) const {
+  TracePoint p;
+  p.time_s = t;
+  p.level_m = r.level_m;
+  p.release = m.release;
+  p.release_m3_per_s = r.release;
+  p.overflow_m3_per_s = r.overflow + r.column_overflow;
+  p.head_m = r.nozzle > 0.0 ? r.head_m : 0.0;
+  p.power_W = r.electrical_W;
+  observer_.on_trace(p);
+}
 
 void Ledger::start(const ChainState& x, const ChainMode& m, double t) {
   if (system_.release().is_running(m.release)) open_episode(EpisodeKind::cycle, x, t);

@@ -12,6 +12,7 @@
 #include "gutterwatt/scenario_edit.hpp"
 #include "gutterwatt/simulation.hpp"
 #include "gutterwatt/units.hpp"
+#include "report_format.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -200,11 +201,8 @@ std::optional<Eigen::MatrixXd> jacobian(const BenchModel& model, const Eigen::Ve
   return J;
 }
 
-std::string show(double x) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.4g", x);
-  return buf;
-}
+// A number by the report's one rule, as the terminal shows it.
+std::string show(double x) { return detail::pretty(x, detail::Medium::terminal); }
 
 /// The priming flow from the bracket; a warning and the value as it was where there is none.
 void fit_priming(const std::vector<BenchRow>& rows, BenchFit& fit) {
@@ -436,7 +434,12 @@ std::string yaml_quoted(const std::string& text) {
 
 }  // namespace
 
-std::string fitted_value_text(const FittedValue& v) { return show(shown(v, v.value)); }
+// Written into the scenario (not a figure to read): four significant figures, as measured.
+std::string fitted_value_text(const FittedValue& v) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, "%.4g", shown(v, v.value));
+  return buf;
+}
 
 void write_fitted_value(std::ostream& out, const FittedValue& v) {
   out << "  " << v.key << ": ";
@@ -445,11 +448,7 @@ void write_fitted_value(std::ostream& out, const FittedValue& v) {
     return;
   }
   out << show(shown(v, v.value));
-  if (v.sigma) {
-    char buf[32];
-    std::snprintf(buf, sizeof buf, "%.2g", shown(v, *v.sigma));
-    out << " +- " << buf;
-  }
+  if (v.sigma) out << " +- " << show(shown(v, *v.sigma));
   out << " (was " << show(shown(v, v.before)) << ")\n";
 }
 
@@ -473,13 +472,13 @@ void write_bench_fit(std::ostream& out, const BenchFit& fit) {
     for (const BenchResidual& r : fit.residuals) {
       const bool flow = r.quantity == "nozzle_flow_L_per_min";
       const double scale = flow ? 1.0 / kLitrePerMinute_m3_per_s : 1.0;
-      std::snprintf(buf, sizeof buf, "  %-6d %-22s %12.4g %12.4g %8.1f%%\n", r.line,
-                    r.quantity.c_str(), r.measured * scale, r.model * scale, 100.0 * r.relative());
+      std::snprintf(buf, sizeof buf, "  %-6d %-22s %12s %12s %8s%%\n", r.line, r.quantity.c_str(),
+                    show(r.measured * scale).c_str(), show(r.model * scale).c_str(),
+                    show(100.0 * r.relative()).c_str());
       out << buf;
     }
-    std::snprintf(buf, sizeof buf, "  root mean square of the residuals: %.1f%% (%d iterations)\n",
-                  100.0 * fit.rms_relative, fit.iterations);
-    out << buf;
+    out << "  root mean square of the residuals: " << show(100.0 * fit.rms_relative) << "% ("
+        << fit.iterations << " iterations)\n";
   }
   write_warnings_and_build(out, fit.warnings,
                            {{"priming_flow_L_per_min", fit.priming_flow},

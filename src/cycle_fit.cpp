@@ -11,6 +11,7 @@
 #include "gutterwatt/plant.hpp"
 #include "gutterwatt/simulation.hpp"
 #include "gutterwatt/units.hpp"
+#include "report_format.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -43,11 +44,8 @@ double least_squares_pairing(const std::vector<double>& a, const std::vector<dou
   return best.back();
 }
 
-std::string show(double x, const char* format = "%.3g") {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, format, x);
-  return buf;
-}
+// A number by the report's one rule, as the terminal shows it.
+std::string show(double x) { return detail::pretty(x, detail::Medium::terminal); }
 
 /// The priming flows searched: log-spaced from the running flow at the trigger level (times
 /// kPrimingTop: the loader refuses one at or above it) down by a factor kPrimingSpan, wide
@@ -508,15 +506,15 @@ CycleFit fit_cycles(const Scenario& scenario, const RainSeries& rain, const Cycl
   if (!loss_determined) {
     fit.warnings.push_back(
         "neither the cycle counts nor the timing of the cycle starts move (by " +
-        show(kTimingResolution_s, "%g") +
+        show(kTimingResolution_s) +
         " s) over losses from 0 to 32, or no cycle could be paired, so the log cannot determine "
         "drop_pipe.minor_loss_k; left at " +
-        show(k0, "%.4g"));
+        show(k0));
   } else if (loss_at_top) {
     fit.warnings.push_back(
         "the timing asks for a loss at or above 32, the largest tried (a blocked pipe, or a "
         "cause the model does not hold such as air in the pipe); drop_pipe.minor_loss_k left at " +
-        show(k0, "%.4g"));
+        show(k0));
   }
   if (fit.minor_loss_k.fitted && !fit.minor_loss_k.sigma) {
     fit.warnings.push_back(
@@ -563,19 +561,19 @@ void write_cycle_fit(std::ostream& out, const CycleFit& fit, const TimeZone& zon
                 "before", "fitted");
   out << buf;
   for (const CycleEvent& e : fit.events) {
-    std::snprintf(buf, sizeof buf, "  %-18s %8.1f %9d %10d %10d\n",
-                  format_iso8601(e.window.start, zone).c_str(), e.rain_m / kMetresPerMm, e.observed,
-                  e.simulated_before, e.simulated);
+    std::snprintf(buf, sizeof buf, "  %-18s %8s %9d %10d %10d\n",
+                  format_iso8601(e.window.start, zone).c_str(),
+                  show(e.rain_m / kMetresPerMm).c_str(), e.observed, e.simulated_before,
+                  e.simulated);
     out << buf;
   }
   std::snprintf(buf, sizeof buf, "  %-18s %8s %9d %10d %10d\n", "total", "", fit.observed,
                 fit.simulated_before, fit.simulated);
   out << buf;
   for (const auto& [name, m] : {std::pair{"before", fit.before}, std::pair{"fitted", fit.after}}) {
-    std::snprintf(
-        buf, sizeof buf,
-        "  %s: %d cycles unpaired; %d starts paired, root mean square difference %.0f s\n", name,
-        m.unmatched, m.pairs, m.rms_s());
+    std::snprintf(buf, sizeof buf,
+                  "  %s: %d cycles unpaired; %d starts paired, root mean square difference %s s\n",
+                  name, m.unmatched, m.pairs, show(m.rms_s()).c_str());
     out << buf;
   }
   write_warnings_and_build(

@@ -22,6 +22,7 @@
 
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/units.hpp"
+#include "report_format.hpp"
 
 namespace gutterwatt::detail {
 
@@ -133,11 +134,9 @@ inline std::string fixed(double v, int decimals) {
   return out;
 }
 
-/// A flow in m3/s as a person reads it: `12.3 L/min` (three significant figures, printf `%.3g`).
+/// A flow in m3/s as a person reads it: `12.3 L/min`, by the one rule (pretty, terminal).
 inline std::string litres_per_minute(double flow_m3_per_s) {
-  char buf[32];
-  std::snprintf(buf, sizeof buf, "%.3g L/min", flow_m3_per_s / kLitrePerMinute_m3_per_s);
-  return buf;
+  return pretty(flow_m3_per_s / kLitrePerMinute_m3_per_s, Medium::terminal) + " L/min";
 }
 
 /// As fixed, without trailing zeros after the point (and without a bare point).

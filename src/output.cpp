@@ -103,6 +103,20 @@ constexpr TsColumn kTimeseriesColumns[] = {
     {"cum_overflow_L", 3, [](const TsRow& r) { return r.to.totals.overflow_m3() * kLitresPerM3; }},
 };
 
+constexpr OutputColumn<TraceRow> kTraceColumns[] = {
+    {"time", 0, nullptr,
+     [](const TraceRow& r) { return format_iso8601(floor_instant(r.point.time_s), r.zone); }},
+    {"reservoir_level_mm", 3, [](const TraceRow& r) { return r.point.level_m * kMmPerM; }},
+    {"release_state", 0, nullptr,
+     [](const TraceRow& r) { return std::string(release_state_name(r.point.release)); }},
+    {"release_L_per_s", 4,
+     [](const TraceRow& r) { return r.point.release_m3_per_s * kLitresPerM3; }},
+    {"overflow_L_per_s", 4,
+     [](const TraceRow& r) { return r.point.overflow_m3_per_s * kLitresPerM3; }},
+    {"head_m", 4, [](const TraceRow& r) { return r.point.head_m; }},
+    {"power_W", 4, [](const TraceRow& r) { return r.point.power_W; }},
+};
+
 using EvColumn = OutputColumn<EventRow>;
 
 constexpr EvColumn kEventsColumns[] = {
@@ -152,6 +166,28 @@ void write_row(std::ostream& out, std::span<const OutputColumn<Row>> columns, co
 std::span<const OutputColumn<TimeseriesRow>> timeseries_columns() { return kTimeseriesColumns; }
 
 std::span<const OutputColumn<EventRow>> events_columns() { return kEventsColumns; }
+
+std::span<const OutputColumn<TraceRow>> trace_columns() { return kTraceColumns; }
+
+TraceWriter::TraceWriter(std::ostream& out, const Scenario& scenario, bool limited)
+    : out_(out),
+      scenario_(scenario),
+      zone_(scenario.site.zone),
+      units_(scenario.site.units),
+      limited_(limited) {
+  write_header(out_, trace_columns(), units_);
+}
+
+void TraceWriter::on_trace(const TracePoint& p) {
+  if (limited_ && ++rows_ * kTraceRowBytes > kMaxTraceBytes) {
+    throw InputError(scenario_.file.string(), 0, "simulation.trace",
+                     "the run passed " + detail::fixed_trimmed(kMaxTraceBytes / 1e9, 1) +
+                         " GB of trace.csv (" + detail::fixed_trimmed(rows_, 0) +
+                         " rows); set simulation.trace: off, give a shorter period, or run "
+                         "with --force");
+  }
+  write_row(out_, trace_columns(), TraceRow{p, zone_}, units_);
+}
 
 TimeseriesWriter::TimeseriesWriter(std::ostream& out, const Scenario& scenario, bool limited)
     : out_(out),
@@ -332,9 +368,96 @@ nlohmann::json period_json(const PeriodSummary& p, const char* key) {
 
 }  // namespace
 
+namespace {
+
+using In = SummaryInputs;
+
+double stored_change_m3(const RunResult& r) { return r.final.water_m3() - r.initial.water_m3(); }
+
+template <double Accounts::*member>
+double litres(const In& in) {
+  return json_litres(in.result.totals.*member);
+}
+
+template <double Accounts::*member>
+double watt_hours(const In& in) {
+  return json_watt_hours(in.result.totals.*member);
+}
+
+bool has_set_points(const Scenario& sc) {
+  return sc.release.kind == ReleaseKind::bell || sc.release.kind == ReleaseKind::float_valve;
+}
+
+constexpr SummaryNumber kSummaryNumbers[] = {
+    {"water_L.rain", litres<&Accounts::rain_m3>},
+    {"water_L.roof_loss", litres<&Accounts::roof_loss_m3>},
+    {"water_L.roof_runoff", litres<&Accounts::roof_runoff_m3>},
+    {"water_L.first_flush", litres<&Accounts::first_flush_m3>},
+    {"water_L.reservoir_overflow", litres<&Accounts::reservoir_overflow_m3>},
+    {"water_L.column_overflow", litres<&Accounts::column_overflow_m3>},
+    {"water_L.dribble", litres<&Accounts::dribble_m3>},
+    {"water_L.through_nozzle", litres<&Accounts::nozzle_m3>},
+    {"water_L.storage_change",
+     [](const In& in) { return json_litres(stored_change_m3(in.result)); }},
+    {"water_L.balance_error",
+     [](const In& in) { return in.result.balance_error_m3 * kLitresPerM3; }},
+    {"water_L.evaporation", litres<&Accounts::evaporation_m3>},
+    {"energy_Wh.jet", watt_hours<&Accounts::jet_J>},
+    {"energy_Wh.electrical", watt_hours<&Accounts::electrical_J>},
+    {"energy_Wh.stored", watt_hours<&Accounts::stored_J>},
+    {"energy_Wh.curtailed", watt_hours<&Accounts::curtailed_J>},
+    {"energy_Wh.unmet_load", watt_hours<&Accounts::unmet_J>},
+    {"energy_Wh.discharge_loss", watt_hours<&Accounts::discharge_loss_J>},
+    {"energy_Wh.self_discharge", watt_hours<&Accounts::self_discharge_J>},
+    {"siphon.cycles", [](const In& in) { return static_cast<double>(in.result.cycles); }, true},
+    {"overflow.events", [](const In& in) { return static_cast<double>(in.result.overflow_events); },
+     true},
+    {"overflow.hours",
+     [](const In& in) { return round_to(in.result.overflow_s / kSecondsPerHour, 4); }},
+    {"levels_mm.trigger",
+     [](const In& in) {
+       return has_set_points(in.scenario) ? in.scenario.release.trigger_level_m * kMmPerM
+                                          : detail::kNaN;
+     }},
+    {"levels_mm.break",
+     [](const In& in) {
+       return has_set_points(in.scenario) ? in.scenario.release.break_level_m * kMmPerM
+                                          : detail::kNaN;
+     }},
+    {"levels_mm.rim", [](const In& in) { return in.scenario.reservoir.rim_m * kMmPerM; }},
+    {"battery.hours_below_half",
+     [](const In& in) {
+       return round_to(in.result.totals.battery_below_half_s / kSecondsPerHour, 4);
+     }},
+    {"battery.hours_empty",
+     [](const In& in) { return round_to(in.result.totals.battery_empty_s / kSecondsPerHour, 4); }},
+    {"battery.load_served_share",
+     [](const In& in) {
+       const auto share = load_served_share(in.result.totals);
+       return share ? round_to(*share, 6) : detail::kNaN;
+     }},
+    {"standing_water.longest_days",
+     [](const In& in) { return round_to(in.result.standing_longest_s / kSecondsPerDay, 4); }},
+    {"standing_water.spells_over_7_days",
+     [](const In& in) { return static_cast<double>(in.result.standing_spells_over_week); }, true},
+    {"standing_water.days_total",
+     [](const In& in) { return round_to(in.result.standing_s / kSecondsPerDay, 4); }},
+};
+
+}  // namespace
+
+std::span<const SummaryNumber> summary_numbers() { return kSummaryNumbers; }
+
+const SummaryNumber& summary_number(std::string_view key) {
+  for (const SummaryNumber& n : kSummaryNumbers) {
+    if (n.key == key) return n;
+  }
+  throw std::out_of_range("summary_numbers() has no key " + std::string(key));
+}
+
 void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries& rain,
                         const RunResult& r, const SummaryBuilder& summary,
-                        const RealizationSpread* realizations) {
+                        const RunWarnings& warnings, const RealizationSpread* realizations) {
   using nlohmann::json;
   const Accounts& a = r.totals;
   const TimeZone& off = sc.site.zone;
@@ -346,35 +469,12 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
   j["start"] = format_iso8601(r.start, off);
   j["end"] = format_iso8601(r.end, off);
   j["roof_area_m2"] = sc.roof.area_m2;
-  const double stored = r.final.water_m3() - r.initial.water_m3();
-  j["water_L"] = {{"rain", L(a.rain_m3)},
-                  {"roof_loss", L(a.roof_loss_m3)},
-                  {"roof_runoff", L(a.roof_runoff_m3)},
-                  {"first_flush", L(a.first_flush_m3)},
-                  {"reservoir_overflow", L(a.reservoir_overflow_m3)},
-                  {"column_overflow", L(a.column_overflow_m3)},
-                  {"dribble", L(a.dribble_m3)},
-                  {"through_nozzle", L(a.nozzle_m3)},
-                  {"evaporation", L(a.evaporation_m3)},
-                  {"storage_change", L(stored)},
-                  {"balance_error", r.balance_error_m3 * kLitresPerM3},
-                  {"balance_relative_error", r.balance_relative_error}};
-  j["energy_Wh"] = {{"jet", Wh(a.jet_J)},
-                    {"shaft", Wh(a.shaft_J)},
-                    {"electrical", Wh(a.electrical_J)},
+  j["water_L"] = {{"balance_relative_error", r.balance_relative_error}};
+  j["energy_Wh"] = {{"shaft", Wh(a.shaft_J)},
                     {"accepted", Wh(a.accepted_J)},
-                    {"stored", Wh(a.stored_J)},
-                    {"curtailed", Wh(a.curtailed_J)},
                     {"load_served", Wh(a.served_J)},
-                    {"unmet_load", Wh(a.unmet_J)},
-                    {"drawn_from_battery", Wh(a.drawn_J)},
-                    {"discharge_loss", Wh(a.discharge_loss_J)},
-                    {"self_discharge", Wh(a.self_discharge_J)}};
-  j["standing_water"] = {{"longest_days", round_to(r.standing_longest_s / kSecondsPerDay, 4)},
-                         {"spells_over_7_days", r.standing_spells_over_week},
-                         {"days_total", round_to(r.standing_s / kSecondsPerDay, 4)}};
-  j["siphon"] = {{"cycles", r.cycles},
-                 {"energy_per_cycle_Wh", Wh(summary.energy_per_cycle_J())},
+                    {"drawn_from_battery", Wh(a.drawn_J)}};
+  j["siphon"] = {{"energy_per_cycle_Wh", Wh(summary.energy_per_cycle_J())},
                  {"dribble_episodes", r.dribble_episodes},
                  {"dribble_hours", round_to(r.dribble_s / kSecondsPerHour, 4)}};
   const double runoff = a.roof_runoff_m3 > 0.0 ? a.roof_runoff_m3 : 1.0;
@@ -386,8 +486,6 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                {"peak_flow_L_per_s", round_to(big->peak_flow_m3_per_s * kLitresPerM3, 6)}};
   }
   j["overflow"] = {
-      {"events", r.overflow_events},
-      {"hours", round_to(r.overflow_s / kSecondsPerHour, 4)},
       {"days", summary.overflow_days()},
       {"largest", largest},
       {"wettest_interval_without_overflow_mm_per_h",
@@ -396,12 +494,6 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                 4)},
       {"share_of_runoff", round_to(a.overflow_m3() / runoff, 6)},
       {"dribble_share_of_runoff", round_to(a.dribble_m3 / runoff, 6)}};
-  const bool has_set_points =
-      sc.release.kind == ReleaseKind::bell || sc.release.kind == ReleaseKind::float_valve;
-  j["levels_mm"] = {
-      {"trigger", has_set_points ? json(sc.release.trigger_level_m * kMmPerM) : json()},
-      {"break", has_set_points ? json(sc.release.break_level_m * kMmPerM) : json()},
-      {"rim", sc.reservoir.rim_m * kMmPerM}};
   const double cap = sc.battery.capacity_J;
   j["battery"] = {
       {"capacity_Wh", Wh(cap)},
@@ -411,11 +503,7 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
       {"chemistry",
        sc.battery.chemistry ? json(battery_chemistry_name(*sc.battery.chemistry)) : json()},
       {"cut_soc", sc.battery.min_soc},
-      {"reconnect_soc", reconnect_soc(sc.battery)},
-      {"hours_below_half", round_to(a.battery_below_half_s / kSecondsPerHour, 4)},
-      {"hours_empty", round_to(a.battery_empty_s / kSecondsPerHour, 4)},
-      {"load_served_share",
-       load_served_share(a) ? json(round_to(*load_served_share(a), 6)) : json()}};
+      {"reconnect_soc", reconnect_soc(sc.battery)}};
   json coverage = json::array();
   for (const MonthCoverage& m : month_coverage(rain, r.start, r.end, off)) {
     coverage.push_back({{"month", m.month}, {"fraction", round_to(m.fraction, 6)}});
@@ -431,6 +519,22 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
                  {"coasted_hours", round_to(r.stats.coasted_s / kSecondsPerHour, 4)},
                  {"skipped_hours", round_to(r.stats.skipped_s / kSecondsPerHour, 4)},
                  {"rtol", sc.simulation.rtol}};
+  j["warnings"] = {{"run", warnings.run}, {"design", warnings.design}};
+  // The numbers the report reads, each by its one definition.
+  const SummaryInputs inputs{sc, r, summary};
+  for (const SummaryNumber& n : summary_numbers()) {
+    std::string pointer(n.key);
+    std::replace(pointer.begin(), pointer.end(), '.', '/');
+    const double v = n.value(inputs);
+    json& at = j[json::json_pointer("/" + pointer)];
+    if (std::isnan(v)) {
+      at = nullptr;
+    } else if (n.count) {
+      at = std::llround(v);
+    } else {
+      at = v;
+    }
+  }
   json months = json::array();
   for (const PeriodSummary& m : summary.months()) months.push_back(period_json(m, "month"));
   j["months"] = months;

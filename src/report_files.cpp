@@ -250,6 +250,56 @@ Timeseries read_timeseries(const fs::path& path) {
   return ts;
 }
 
+Trace read_trace(const fs::path& path) {
+  const std::string file = path.string();
+  const Csv csv = parse_csv(read_text(path), file);
+  Trace tr;
+  // The columns the page draws, by their SI names in trace_columns().
+  const std::pair<std::string_view, std::vector<double>*> drawn[] = {
+      {"reservoir_level_mm", &tr.level_mm},
+      {"release_L_per_s", &tr.release_L_per_s},
+      {"overflow_L_per_s", &tr.overflow_L_per_s},
+      {"head_m", &tr.head_m},
+      {"power_W", &tr.power_W}};
+  struct Column {
+    std::string_view name;
+    std::size_t index;
+    UnitSystem units;
+    std::vector<double>* values;
+  };
+  std::vector<Column> numbers;
+  for (const auto& c : trace_columns()) {
+    const auto [index, units] = csv.require_either(c.name);
+    if (c.value == nullptr) continue;
+    const auto it = std::find_if(std::begin(drawn), std::end(drawn),
+                                 [&](const auto& d) { return d.first == c.name; });
+    if (it == std::end(drawn)) {
+      throw std::logic_error("trace_columns() has " + std::string(c.name) +
+                             ", which the page does not read");
+    }
+    numbers.push_back({c.name, index, units, it->second});
+  }
+  const std::size_t c_time = csv.require("time");
+  const std::size_t c_state = csv.require("release_state");
+  std::int64_t last_utc = std::numeric_limits<std::int64_t>::min();
+  for (std::size_t r = 0; r < csv.rows.size(); ++r) {
+    const auto& row = csv.rows[r];
+    const int line = csv.lines[r];
+    const Stamp t = parse_stamp_cell(row[c_time], file, line, "time");
+    if (t.utc < last_utc) {
+      throw InputError(file, line, "time", "before the previous row (\"" + row[c_time] + "\")");
+    }
+    last_utc = t.utc;
+    tr.t.push_back(t.wall);
+    tr.state.push_back(parse_state(row[c_state], file, line));
+    for (const Column& c : numbers) {
+      const double v = parse_number(row[c.index], file, line, column_name(c.units, c.name));
+      c.values->push_back(column_si_value(c.units, c.name, v));
+    }
+  }
+  return tr;
+}
+
 std::vector<Event> read_events(const fs::path& path) {
   const std::string file = path.string();
   const Csv csv = parse_csv(read_text(path), file);
@@ -271,13 +321,19 @@ std::vector<Event> read_events(const fs::path& path) {
     const auto& row = csv.rows[r];
     const int line = csv.lines[r];
     Event e;
-    e.kind = row[c_kind];
-    const std::optional<EpisodeKind> kind = episode_kind_from_name(e.kind);
+    const std::optional<EpisodeKind> kind = episode_kind_from_name(row[c_kind]);
     if (!kind) {
-      throw InputError(
-          file, line, "kind",
-          "unknown kind \"" + e.kind + "\" (expected cycle, overflow, dribble or column_overflow)");
+      std::string names;
+      for (const EpisodeKindInfo& k : episode_kinds()) {
+        names += (names.empty()                   ? ""
+                  : &k == &episode_kinds().back() ? " or "
+                                                  : ", ") +
+                 std::string(k.name);
+      }
+      throw InputError(file, line, "kind",
+                       "unknown kind \"" + row[c_kind] + "\" (expected " + names + ")");
     }
+    e.kind = *kind;
     e.start = parse_time_cell(row[c_start], file, line, "start");
     e.end = parse_time_cell(row[c_end], file, line, "end");
     e.duration_s = number(row, line, c_duration, u_duration, "duration_s");
@@ -354,37 +410,62 @@ Summary read_summary(const fs::path& path) {
   s.site = json_string(root, "site", file);
   s.start = json_string(root, "start", file);
   s.end = json_string(root, "end", file);
-  s.rain_L = json_number(root, "water_L.rain", file);
-  s.roof_loss_L = json_number(root, "water_L.roof_loss", file);
-  s.roof_runoff_L = json_number(root, "water_L.roof_runoff", file);
-  s.first_flush_L = json_number(root, "water_L.first_flush", file);
-  s.reservoir_overflow_L = json_number(root, "water_L.reservoir_overflow", file);
-  s.column_overflow_L = json_number(root, "water_L.column_overflow", file);
-  s.dribble_L = json_number(root, "water_L.dribble", file);
-  s.through_nozzle_L = json_number(root, "water_L.through_nozzle", file);
-  s.storage_change_L = json_number(root, "water_L.storage_change", file);
-  s.balance_error_L = json_number(root, "water_L.balance_error", file);
-  s.jet_Wh = json_number(root, "energy_Wh.jet", file);
-  s.electrical_Wh = json_number(root, "energy_Wh.electrical", file);
-  s.stored_Wh = json_number(root, "energy_Wh.stored", file);
-  s.curtailed_Wh = json_number(root, "energy_Wh.curtailed", file);
-  s.unmet_load_Wh = json_number(root, "energy_Wh.unmet_load", file);
-  s.cycles = json_number(root, "siphon.cycles", file);
-  s.overflow_events = json_number(root, "overflow.events", file);
-  s.overflow_hours = json_number(root, "overflow.hours", file);
-  s.trigger_mm = json_optional_number(root, "levels_mm.trigger", file);
-  s.break_mm = json_optional_number(root, "levels_mm.break", file);
-  s.rim_mm = json_optional_number(root, "levels_mm.rim", file);
-  s.discharge_loss_Wh = json_optional_number(root, "energy_Wh.discharge_loss", file);
-  s.self_discharge_Wh = json_optional_number(root, "energy_Wh.self_discharge", file);
-  s.battery_hours_below_half = json_optional_number(root, "battery.hours_below_half", file);
-  s.battery_hours_empty = json_optional_number(root, "battery.hours_empty", file);
-  s.load_served_share = json_optional_number(root, "battery.load_served_share", file);
-  s.evaporation_L = json_optional_number(root, "water_L.evaporation", file);
-  s.standing_longest_days = json_optional_number(root, "standing_water.longest_days", file);
-  s.standing_spells_over_7_days =
-      json_optional_number(root, "standing_water.spells_over_7_days", file);
-  s.standing_days_total = json_optional_number(root, "standing_water.days_total", file);
+  // The numbers, by the keys summary_numbers() (output.hpp) defines: a key the writer does not
+  // write throws std::out_of_range here, so the two cannot drift apart. The optional ones are
+  // absent from summaries written before they were kept, or null where they do not apply.
+  const std::pair<std::string_view, double Summary::*> required[] = {
+      {"water_L.rain", &Summary::rain_L},
+      {"water_L.roof_loss", &Summary::roof_loss_L},
+      {"water_L.roof_runoff", &Summary::roof_runoff_L},
+      {"water_L.first_flush", &Summary::first_flush_L},
+      {"water_L.reservoir_overflow", &Summary::reservoir_overflow_L},
+      {"water_L.column_overflow", &Summary::column_overflow_L},
+      {"water_L.dribble", &Summary::dribble_L},
+      {"water_L.through_nozzle", &Summary::through_nozzle_L},
+      {"water_L.storage_change", &Summary::storage_change_L},
+      {"water_L.balance_error", &Summary::balance_error_L},
+      {"energy_Wh.jet", &Summary::jet_Wh},
+      {"energy_Wh.electrical", &Summary::electrical_Wh},
+      {"energy_Wh.stored", &Summary::stored_Wh},
+      {"energy_Wh.curtailed", &Summary::curtailed_Wh},
+      {"energy_Wh.unmet_load", &Summary::unmet_load_Wh},
+      {"siphon.cycles", &Summary::cycles},
+      {"overflow.events", &Summary::overflow_events},
+      {"overflow.hours", &Summary::overflow_hours}};
+  const std::pair<std::string_view, std::optional<double> Summary::*> optional[] = {
+      {"levels_mm.trigger", &Summary::trigger_mm},
+      {"levels_mm.break", &Summary::break_mm},
+      {"levels_mm.rim", &Summary::rim_mm},
+      {"energy_Wh.discharge_loss", &Summary::discharge_loss_Wh},
+      {"energy_Wh.self_discharge", &Summary::self_discharge_Wh},
+      {"battery.hours_below_half", &Summary::battery_hours_below_half},
+      {"battery.hours_empty", &Summary::battery_hours_empty},
+      {"battery.load_served_share", &Summary::load_served_share},
+      {"water_L.evaporation", &Summary::evaporation_L},
+      {"standing_water.longest_days", &Summary::standing_longest_days},
+      {"standing_water.spells_over_7_days", &Summary::standing_spells_over_7_days},
+      {"standing_water.days_total", &Summary::standing_days_total}};
+  for (const auto& [key, member] : required) {
+    s.*member = json_number(root, std::string(summary_number(key).key), file);
+  }
+  for (const auto& [key, member] : optional) {
+    s.*member = json_optional_number(root, std::string(summary_number(key).key), file);
+  }
+  // Warnings: the run's and the design's; an older summary has only the record's.
+  const auto strings = [&](const std::string& key, std::vector<std::string>& into) {
+    const Json* list = find_key(root, key);
+    if (list == nullptr || list->is_null()) return false;
+    if (!list->is_array()) throw InputError(file, 0, key, "expected an array of texts");
+    for (std::size_t i = 0; i < list->size(); ++i) {
+      if (!(*list)[i].is_string()) {
+        throw InputError(file, 0, key + "[" + std::to_string(i) + "]", "expected a text");
+      }
+      into.push_back((*list)[i].get<std::string>());
+    }
+    return true;
+  };
+  if (!strings("warnings.run", s.run_warnings)) strings("rain.warnings", s.run_warnings);
+  strings("warnings.design", s.design_warnings);
   const Json* months = find_key(root, "months");
   if (months == nullptr) throw InputError(file, 0, "months", "missing");
   if (!months->is_array()) throw InputError(file, 0, "months", "expected an array");

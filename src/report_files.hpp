@@ -14,6 +14,7 @@
 #include <utility>
 #include <vector>
 
+#include "gutterwatt/accounts.hpp"
 #include "gutterwatt/release.hpp"
 #include "gutterwatt/units.hpp"
 
@@ -92,9 +93,23 @@ struct Timeseries {
 /// UTC (by each stamp's offset).
 Timeseries read_timeseries(const std::filesystem::path& path);
 
+/// trace.csv, one entry a row, in SI whichever units the file was written in; `t` on the wall
+/// clock of its stamp. Two rows may share a time (a switch: the mode before and after it).
+struct Trace {
+  std::vector<std::int64_t> t;
+  std::vector<double> level_mm, release_L_per_s, overflow_L_per_s, head_m, power_W;
+  std::vector<ReleaseState> state;
+  std::size_t size() const { return t.size(); }
+};
+
+/// Reads trace.csv written in either system of units: every column of trace_columns()
+/// (output.hpp) by its SI name or its US twin; times never going back in UTC. A file without
+/// rows (a run that never moved) is an empty trace.
+Trace read_trace(const std::filesystem::path& path);
+
 /// One row of events.csv, in SI; energy_Wh is NaN for a kind that makes none (an overflow).
 struct Event {
-  std::string kind;
+  EpisodeKind kind = EpisodeKind::cycle;
   std::int64_t start = 0;
   std::int64_t end = 0;
   double duration_s = 0.0, volume_L = 0.0, peak_flow_L_per_s = 0.0, energy_Wh = 0.0;
@@ -125,6 +140,9 @@ struct Summary {
   std::optional<double> evaporation_L, standing_longest_days, standing_spells_over_7_days,
       standing_days_total;
   std::vector<MonthRow> months;
+  /// The run's warnings and the design's (as `check` gives them); a summary written before they
+  /// were kept has only the rain record's.
+  std::vector<std::string> run_warnings, design_warnings;
 };
 
 /// Reads summary.json; InputError naming a missing key or one of the wrong type.

@@ -4,11 +4,13 @@
 
 #include <algorithm>
 #include <array>
+#include <cctype>
 #include <cmath>
 #include <cstdio>
 
 #include "detail.hpp"
 #include "gutterwatt/calendar.hpp"
+#include "gutterwatt/units.hpp"
 
 namespace gutterwatt::detail {
 
@@ -154,6 +156,77 @@ std::vector<std::string> shared_decimal_labels(const std::vector<double>& values
   for (double v : values)
     labels.push_back(decimals < 6 ? fixed(v, decimals) : pretty(v, Medium::svg));
   return labels;
+}
+
+}  // namespace gutterwatt::detail
+
+namespace gutterwatt::detail {
+
+std::string key_label(std::string_view key) {
+  std::string_view section;
+  std::string_view name = key;
+  if (const std::size_t dot = key.rfind('.'); dot != std::string_view::npos) {
+    section = key.substr(0, dot);
+    name = key.substr(dot + 1);
+  }
+  // A percentile of a realization spread ends the name, after its unit.
+  std::string qualifier;
+  for (const auto& [suffix, words] : {std::pair<std::string_view, std::string_view>{"_p10", "P10"},
+                                      {"_p50", "median"},
+                                      {"_p90", "P90"}}) {
+    if (name.ends_with(suffix)) {
+      name.remove_suffix(suffix.size());
+      qualifier = " (" + std::string(words) + ")";
+    }
+  }
+  // The unit a name ends with: the twins' names first (longest first there), then the rest.
+  std::string_view unit;
+  const auto ends_with_unit = [&](std::string_view u) {
+    if (name.size() > u.size() && name.ends_with(u) && name[name.size() - u.size() - 1] == '_') {
+      unit = u;
+      return true;
+    }
+    return false;
+  };
+  bool found = false;
+  for (const UnitTwin& t : kUnitTwins) {
+    if (ends_with_unit(t.si) || ends_with_unit(t.us)) {
+      found = true;
+      break;
+    }
+  }
+  if (!found) {
+    for (const std::string_view u : {"Wh", "W", "V", "Ah", "h", "s", "min", "rpm"}) {
+      if (ends_with_unit(u)) break;
+    }
+  }
+  if (!unit.empty()) name.remove_suffix(unit.size() + 1);
+  // Words, with the abbreviations spelt out.
+  static constexpr std::array<std::pair<std::string_view, std::string_view>, 4> kWords{{
+      {"soc", "state of charge"},
+      {"cd", "discharge coefficient"},
+      {"k", "K"},
+      {"rtol", "relative tolerance"},
+  }};
+  std::string words;
+  std::size_t from = 0;
+  while (from <= name.size()) {
+    const std::size_t to = std::min(name.find('_', from), name.size());
+    std::string_view word = name.substr(from, to - from);
+    for (const auto& [abbreviation, spelt] : kWords) {
+      if (word == abbreviation) word = spelt;
+    }
+    if (!word.empty()) words += (words.empty() ? "" : " ") + std::string(word);
+    from = to + 1;
+  }
+  std::string lead(section);
+  std::replace(lead.begin(), lead.end(), '_', ' ');
+  std::replace(lead.begin(), lead.end(), '.', ' ');
+  std::string label = lead.empty() ? words : lead + ": " + words;
+  if (!label.empty())
+    label[0] = static_cast<char>(std::toupper(static_cast<unsigned char>(label[0])));
+  if (!unit.empty()) label += ", " + unit_label(unit);
+  return label + qualifier;
 }
 
 }  // namespace gutterwatt::detail

@@ -52,6 +52,14 @@ std::string stamp_label(std::int64_t t);
 /// named by its years.
 std::string period_label(std::int64_t start, std::int64_t end);
 
+/// A scenario key or output column in plain words with its unit, for a person to read beside
+/// (or above) the raw name: `release.priming_flow_L_per_min` -> `Release: priming flow, L/min`,
+/// `energy_Wh` -> `Energy, Wh`, `overflow_gal` -> `Overflow, gal`, `cycles` -> `Cycles`. The
+/// unit is the name's ending when it is one a key or column carries (the unit twins' SI and US
+/// names, W, Wh, V, Ah, h, s, min, rpm); underscores read as spaces, and the few
+/// abbreviations keys use (soc, cd, k, p10...) are spelt out.
+std::string key_label(std::string_view key);
+
 /// Labels for the values of a varied key with the decimals they share (1, 1.5, 2 print as 1.0,
 /// 1.5, 2.0), so an axis reads evenly.
 std::vector<std::string> shared_decimal_labels(const std::vector<double>& values);

@@ -45,9 +45,13 @@ svg text.axis { fill: #3a3a3a; font-size: 12.5px; }
 svg text.val { font-size: 11px; fill: #333333; }
 svg text.cell { font-size: 12px; fill: #111111; }
 svg text.cell.light { fill: #ffffff; }
+svg text.key { font-family: monospace; font-size: 10.5px; fill: #555555; }
+small.key { font-weight: normal; color: #555; }
 .note { color: #444; font-style: italic; }
 .cautions { border-left: 4px solid #D55E00; background: #fbf4ee; padding: .6em 1.2em .8em; }
 .cautions li { margin: .35em 0; }
+#warnings { border-left: 4px solid #E69F00; background: #fdf8ec; padding: .2em 1.2em .6em; }
+#warnings li { margin: .35em 0; max-width: 60em; }
 footer { margin-top: 2em; font-size: .85em; color: #555; }
 @media print {
   @page { size: A4 landscape; margin: 12mm 14mm; }

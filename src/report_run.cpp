@@ -99,31 +99,47 @@ LineSet line_of(const Timeseries& ts, const std::vector<double>& v, const Window
   return l;
 }
 
-/// Shading for the release state at the end of each interval: full-bore flow (running, open) in
-/// green, dribble in orange. With more intervals than display columns, each column takes the
-/// most telling state found in it, full-bore flow first, then dribble.
-std::vector<BandSet> bands_of(const Timeseries& ts, const Window& w, bool* saw_running,
-                              bool* saw_open, bool* saw_dribble) {
-  BandSet flowing{{}, {}, kGreen, 0.17};
-  BandSet dribble{{}, {}, kOrange, 0.30};
-  auto grade = [&](ReleaseState s) {
-    if (s == ReleaseState::running) *saw_running = true;
-    if (s == ReleaseState::open) *saw_open = true;
-    if (s == ReleaseState::dribble) *saw_dribble = true;
+/// The release states a panel's shading shows.
+struct StatesSeen {
+  bool running = false, open = false, dribble = false;
+
+  /// Notes `s`; its grade: 2 full-bore flow (running, open), 1 dribble, 0 neither.
+  int grade(ReleaseState s) {
+    if (s == ReleaseState::running) running = true;
+    if (s == ReleaseState::open) open = true;
+    if (s == ReleaseState::dribble) dribble = true;
     return s == ReleaseState::running || s == ReleaseState::open ? 2
            : s == ReleaseState::dribble                          ? 1
                                                                  : 0;
-  };
-  auto add = [&](int g, double x0, double x1) {
-    if (g == 0) return;
-    BandSet& set = g == 2 ? flowing : dribble;
+  }
+};
+
+/// Green shading for full-bore flow and orange for dribble, built span by span (adjacent spans of
+/// one grade merge).
+struct StateBands {
+  BandSet flowing{{}, {}, kGreen, 0.17};
+  BandSet dribble{{}, {}, kOrange, 0.30};
+
+  void add(int grade, double x0, double x1) {
+    if (grade == 0 || !(x1 > x0)) return;
+    BandSet& set = grade == 2 ? flowing : dribble;
     if (!set.x1.empty() && std::fabs(set.x1.back() - x0) < 1e-6) {
       set.x1.back() = x1;
     } else {
       set.x0.push_back(x0);
       set.x1.push_back(x1);
     }
-  };
+  }
+  std::vector<BandSet> sets() const { return {flowing, dribble}; }
+};
+
+/// Shading for the release state at the end of each interval. With more intervals than display
+/// columns, each column takes the most telling state found in it, full-bore flow first, then
+/// dribble.
+std::vector<BandSet> bands_of(const Timeseries& ts, const Window& w, StatesSeen& seen) {
+  StateBands bands;
+  const auto grade = [&](ReleaseState s) { return seen.grade(s); };
+  const auto add = [&](int g, double x0, double x1) { bands.add(g, x0, x1); };
   if (w.i1 - w.i0 <= kBuckets) {
     for (std::size_t i = w.i0; i < w.i1; ++i) {
       add(grade(ts.state[i]), static_cast<double>(ts.t[i]) - ts.dt_s[i],
@@ -143,7 +159,48 @@ std::vector<BandSet> bands_of(const Timeseries& ts, const Window& w, bool* saw_r
           w.t_lo + static_cast<double>(k + 1) * width);
     }
   }
-  return {flowing, dribble};
+  return bands.sets();
+}
+
+/// The trace's rows that draw [t_lo, t_hi]: those inside and one on each side, so a line runs
+/// to the edges.
+struct TraceWindow {
+  std::size_t i0 = 0, i1 = 0;
+};
+
+TraceWindow trace_window(const Trace& tr, double t_lo, double t_hi) {
+  TraceWindow w;
+  while (w.i0 < tr.size() && static_cast<double>(tr.t[w.i0]) < t_lo) ++w.i0;
+  if (w.i0 > 0) --w.i0;
+  w.i1 = w.i0;
+  while (w.i1 < tr.size() && static_cast<double>(tr.t[w.i1]) <= t_hi) ++w.i1;
+  if (w.i1 < tr.size()) ++w.i1;
+  return w;
+}
+
+/// A line through the trace's points (thinned min/max per display column when there are more).
+/// Where the chain rests no point is written and nothing changes, so the line runs straight.
+LineSet trace_line(const Trace& tr, const std::vector<double>& v, const TraceWindow& w,
+                   const char* colour, double width) {
+  LineSet l{{}, {}, {}, colour, width, "", false};
+  const std::vector<double> part(v.begin() + static_cast<long>(w.i0),
+                                 v.begin() + static_cast<long>(w.i1));
+  for (const std::size_t i : thin_min_max(part, kBuckets)) {
+    l.x.push_back(static_cast<double>(tr.t[w.i0 + i]));
+    l.v.push_back(part[i]);
+    l.pen_up.push_back(false);
+  }
+  return l;
+}
+
+/// Shading for the release state between trace points: each point's state holds until the next.
+std::vector<BandSet> trace_bands(const Trace& tr, const TraceWindow& w, StatesSeen& seen) {
+  StateBands bands;
+  for (std::size_t i = w.i0; i + 1 < w.i1; ++i) {
+    bands.add(seen.grade(tr.state[i]), static_cast<double>(tr.t[i]),
+              static_cast<double>(tr.t[i + 1]));
+  }
+  return bands.sets();
 }
 
 struct MonthLabel {
@@ -251,39 +308,38 @@ std::string thinning_note(double bucket_s) {
   return "tallest interval in each " + duration_text(bucket_s) + " column";
 }
 
-/// Rain bars and the reservoir level with its set-points and the release state.
-/// Release cycles last minutes, so an hourly row rarely ends in one; their starts from events.csv
-/// are marked along the top of the level panel.
-void add_rain_and_level(TimeFigure& fig, const Timeseries& ts, const Summary& s,
-                        const std::vector<Event>& events, const Window& w, const std::string& step,
-                        double rain_h, double level_h, UnitSystem units) {
+/// Rain bars per output interval, thinned to the display columns.
+void add_rain(TimeFigure& fig, const Timeseries& ts, const Window& w, const std::string& step,
+              double height, UnitSystem units) {
   double bucket_s = 0.0;
-  const std::string depth = unit_in(units, "mm");
   BarSet rain = bars_of(ts, values_in(units, ts.rain_mm, "mm"), w, kSkyBlue, &bucket_s);
-  std::string title = "Rain, " + depth + " per " + step + " interval";
+  std::string title = "Rain, " + unit_in(units, "mm") + " per " + step + " interval";
   if (bucket_s > 0.0) title += " (" + thinning_note(bucket_s) + ")";
-  Panel& r = fig.add(title, rain_h);
+  Panel& r = fig.add(title, height);
   r.bars.push_back(std::move(rain));
-  Panel& l = fig.add("Reservoir level, " + depth + " above the floor", level_h);
-  bool running = false, open = false, dribble = false;
-  l.bands = bands_of(ts, w, &running, &open, &dribble);
-  l.lines.push_back(line_of(ts, values_in(units, ts.level_mm, "mm"), w, kBlue, 1.6));
+}
+
+/// The legend of the level panel's line and shading, the cycle starts from events.csv in
+/// [t_lo, t_hi] along its top, and the set-point lines.
+void finish_level(Panel& l, const Summary& s, const std::vector<Event>& events, double t_lo,
+                  double t_hi, const StatesSeen& seen, UnitSystem units) {
   l.legend.push_back({LegendEntry::kLine, kBlue, "", "level"});
-  if (running || open) {
-    std::string label = running && open ? "running / open"
-                        : running       ? "running (siphon full bore)"
-                                        : "open (valve)";
+  if (seen.running || seen.open) {
+    std::string label = seen.running && seen.open ? "running / open"
+                        : seen.running            ? "running (siphon full bore)"
+                                                  : "open (valve)";
     l.legend.push_back({LegendEntry::kBand, kGreen, "", label, 0.17});
   }
-  if (dribble) {
+  if (seen.dribble) {
     l.legend.push_back({LegendEntry::kBand, kOrange, "", "dribble (not sealed)", 0.30});
   }
   for (const auto& e : events) {
     const auto t = static_cast<double>(e.start);
-    if (e.kind == "cycle" && t >= w.t_lo && t <= w.t_hi) l.marks.push_back(t);
+    if (e.kind == EpisodeKind::cycle && t >= t_lo && t <= t_hi) l.marks.push_back(t);
   }
   l.mark_colour = kGreen;
   if (!l.marks.empty()) l.legend.push_back({LegendEntry::kMark, kGreen, "", "cycle start"});
+  const std::string depth = unit_in(units, "mm");
   // A set-point line at `mm` above the floor, drawn and labelled in the page's units.
   const auto level = [&](std::optional<double> mm, const char* colour, const char* dash,
                          const std::string& name) {
@@ -296,6 +352,58 @@ void add_rain_and_level(TimeFigure& fig, const Timeseries& ts, const Summary& s,
   level(s.break_mm, kOrange, "3 3", "break");
 }
 
+std::string level_title(UnitSystem units) {
+  return "Reservoir level, " + unit_in(units, "mm") + " above the floor";
+}
+
+/// Rain bars and the reservoir level at the end of each output interval with its set-points and
+/// the release state. Release cycles last minutes, so an hourly row rarely ends in one; their
+/// starts from events.csv are marked along the top of the level panel.
+void add_rain_and_level(TimeFigure& fig, const Timeseries& ts, const Summary& s,
+                        const std::vector<Event>& events, const Window& w, const std::string& step,
+                        double rain_h, double level_h, UnitSystem units) {
+  add_rain(fig, ts, w, step, rain_h, units);
+  Panel& l = fig.add(level_title(units), level_h);
+  StatesSeen seen;
+  l.bands = bands_of(ts, w, seen);
+  l.lines.push_back(line_of(ts, values_in(units, ts.level_mm, "mm"), w, kBlue, 1.6));
+  finish_level(l, s, events, w.t_lo, w.t_hi, seen, units);
+}
+
+/// The reservoir level from the trace, at every switch and at least every minute while anything
+/// moves, with its set-points and the release state.
+void add_trace_level(TimeFigure& fig, const Trace& tr, const Summary& s,
+                     const std::vector<Event>& events, double t_lo, double t_hi, double height,
+                     UnitSystem units) {
+  const TraceWindow w = trace_window(tr, t_lo, t_hi);
+  Panel& l = fig.add(level_title(units) + " (trace: every switch, at least every minute)", height);
+  StatesSeen seen;
+  l.bands = trace_bands(tr, w, seen);
+  l.lines.push_back(trace_line(tr, values_in(units, tr.level_mm, "mm"), w, kBlue, 1.6));
+  finish_level(l, s, events, t_lo, t_hi, seen, units);
+}
+
+/// The release's and the overflow's flow from the trace.
+Panel& add_trace_flows(TimeFigure& fig, const Trace& tr, double t_lo, double t_hi, double height,
+                       UnitSystem units) {
+  const TraceWindow w = trace_window(tr, t_lo, t_hi);
+  Panel& p = fig.add("Flow, " + unit_label(in_units(units, 0.0, "L_per_s").unit), height);
+  p.lines.push_back(
+      trace_line(tr, values_in(units, tr.release_L_per_s, "L_per_s"), w, kGreen, 1.4));
+  p.legend.push_back({LegendEntry::kLine, kGreen, "", "release"});
+  p.lines.push_back(
+      trace_line(tr, values_in(units, tr.overflow_L_per_s, "L_per_s"), w, kVermillion, 1.4));
+  p.legend.push_back({LegendEntry::kLine, kVermillion, "", "overflow (rim and head column)"});
+  return p;
+}
+
+/// Electrical power from the trace.
+void add_trace_power(TimeFigure& fig, const Trace& tr, double t_lo, double t_hi, double height) {
+  const TraceWindow w = trace_window(tr, t_lo, t_hi);
+  Panel& p = fig.add("Electrical power, W", height);
+  p.lines.push_back(trace_line(tr, tr.power_W, w, kVermillion, 1.4));
+}
+
 struct EventStats {
   std::size_t count = 0;
   double volume_L = 0.0, energy_Wh = 0.0, longest_s = 0.0, largest_L = 0.0;
@@ -306,9 +414,10 @@ struct Run {
   Timeseries ts;
   std::vector<Event> events;
   Summary summary;
-  std::string step;  ///< the output interval, as text
-  Window all;        ///< every row
-  bool thinned;      ///< more rows than display columns
+  std::optional<Trace> trace;  ///< absent under simulation.trace: off
+  std::string step;            ///< the output interval, as text
+  Window all;                  ///< every row
+  bool thinned;                ///< more rows than display columns
   std::string folder;
   std::string title;  ///< the scenario and the period it covers
   UnitSystem units;   ///< of the page
@@ -323,6 +432,27 @@ std::string title_section(const Run& run) {
           escape(s.start) + " to " + escape(s.end) + " &middot; " + std::to_string(ts.size()) +
           " rows of " + step + "</p>\n</header>\n";
   return body;
+}
+
+/// Every warning of the run and of the design check, near the top: what may make the figures
+/// below wrong.
+std::string warnings_section(const Run& run) {
+  const Summary& s = run.summary;
+  std::string body = "<section class=\"first\" id=\"warnings\">\n<h2>Warnings</h2>\n";
+  if (s.run_warnings.empty() && s.design_warnings.empty()) {
+    return body +
+           "<p class=\"note\">The run and the design check gave no warnings.</p>\n"
+           "</section>\n";
+  }
+  const auto list = [&](const std::vector<std::string>& items, const std::string& lead) {
+    if (items.empty()) return;
+    body += "<p>" + lead + "</p>\n<ul class=\"warnings\">\n";
+    for (const std::string& w : items) body += "<li>" + escape(w) + "</li>\n";
+    body += "</ul>\n";
+  };
+  list(s.run_warnings, "From the run (the rain record and how it was read):");
+  list(s.design_warnings, "From the design check (as <code>gutterwatt check</code> gives them):");
+  return body + "</section>\n";
 }
 
 std::string headline_section(const Run& run) {
@@ -493,7 +623,8 @@ std::string months_section(const Run& run, std::vector<std::string>& charts) {
   return body;
 }
 
-/// The busiest day, drawn from every row; a note when the run has none.
+/// The busiest day, drawn from the trace (from every row of timeseries.csv without one); a note
+/// when the run has none.
 std::string busiest_day_closeup(const Run& run, std::vector<std::string>& charts) {
   const Timeseries& ts = run.ts;
   const std::vector<Event>& events = run.events;
@@ -508,12 +639,18 @@ std::string busiest_day_closeup(const Run& run, std::vector<std::string>& charts
     }
     std::size_t cycles = 0;
     for (const auto& e : events) {
-      if (e.kind == "cycle" && e.start >= *day && e.start < *day + kDay_s) ++cycles;
+      if (e.kind == EpisodeKind::cycle && e.start >= *day && e.start < *day + kDay_s) ++cycles;
     }
     TimeFigure fig(w.t_lo, w.t_hi);
-    add_rain_and_level(fig, ts, run.summary, events, w, run.step, 90.0, 160.0, run.units);
-    Panel& p = fig.add("Electrical power, W", 110.0);
-    p.lines.push_back(line_of(ts, ts.power_W, w, kVermillion, 1.4));
+    if (run.trace) {
+      add_rain(fig, ts, w, run.step, 90.0, run.units);
+      add_trace_level(fig, *run.trace, run.summary, events, w.t_lo, w.t_hi, 160.0, run.units);
+      add_trace_power(fig, *run.trace, w.t_lo, w.t_hi, 110.0);
+    } else {
+      add_rain_and_level(fig, ts, run.summary, events, w, run.step, 90.0, 160.0, run.units);
+      Panel& p = fig.add("Electrical power, W (mean over each interval)", 110.0);
+      p.lines.push_back(line_of(ts, ts.power_W, w, kVermillion, 1.4));
+    }
     charts.push_back("chart-busiest-day");
     body += "<div class=\"closeup\">\n<h3>Busiest day: " + date_label(*day) + "</h3>\n";
     body += figure(fig.svg("chart-busiest-day", "The busiest day, " + date_label(*day)),
@@ -527,7 +664,8 @@ std::string busiest_day_closeup(const Run& run, std::vector<std::string>& charts
   return body;
 }
 
-/// The largest overflow episode with the hours around it; a note when the run has none.
+/// The largest overflow episode with the hours around it, drawn from the trace (from every row
+/// of timeseries.csv without one); a note when the run has none.
 std::string overflow_closeup(const Run& run, std::vector<std::string>& charts) {
   const Timeseries& ts = run.ts;
   const std::vector<Event>& events = run.events;
@@ -535,8 +673,7 @@ std::string overflow_closeup(const Run& run, std::vector<std::string>& charts) {
   std::string body;
   const Event* largest = nullptr;
   for (const auto& e : events) {
-    if ((e.kind == "overflow" || e.kind == "column_overflow") &&
-        (largest == nullptr || e.volume_L > largest->volume_L)) {
+    if (!episode_makes_energy(e.kind) && (largest == nullptr || e.volume_L > largest->volume_L)) {
       largest = &e;
     }
   }
@@ -551,19 +688,28 @@ std::string overflow_closeup(const Run& run, std::vector<std::string>& charts) {
       spill[i] = ts.reservoir_overflow_L[i] + ts.column_overflow_L[i];
     }
     TimeFigure fig(w.t_lo, w.t_hi);
-    add_rain_and_level(fig, ts, run.summary, events, w, step, 90.0, 160.0, run.units);
-    double bucket_s = 0.0;
-    BarSet bars = bars_of(ts, values_in(run.units, spill, "L"), w, kBlue, &bucket_s);
-    Panel& p = fig.add("Overflow (reservoir rim and head column), " + unit_in(run.units, "L") +
+    Panel* flows = nullptr;
+    if (run.trace) {
+      add_rain(fig, ts, w, step, 90.0, run.units);
+      add_trace_level(fig, *run.trace, run.summary, events, w.t_lo, w.t_hi, 160.0, run.units);
+      flows = &add_trace_flows(fig, *run.trace, w.t_lo, w.t_hi, 130.0, run.units);
+    } else {
+      add_rain_and_level(fig, ts, run.summary, events, w, step, 90.0, 160.0, run.units);
+      double bucket_s = 0.0;
+      BarSet bars = bars_of(ts, values_in(run.units, spill, "L"), w, kBlue, &bucket_s);
+      flows = &fig.add("Overflow (reservoir rim and head column), " + unit_in(run.units, "L") +
                            " per " + step + " interval" +
                            (bucket_s > 0.0 ? " (" + thinning_note(bucket_s) + ")" : ""),
                        110.0);
-    p.bars.push_back(std::move(bars));
+      flows->bars.push_back(std::move(bars));
+    }
+    Panel& p = *flows;
     p.bands.push_back(
         {{static_cast<double>(largest->start)}, {static_cast<double>(largest->end)}, kBlack, 0.10});
     p.legend.push_back({LegendEntry::kBand, kBlack, "", "the episode", 0.10});
     charts.push_back("chart-overflow-episode");
-    const std::string where = largest->kind == "overflow" ? "reservoir rim" : "head column";
+    const std::string where =
+        largest->kind == EpisodeKind::overflow ? "reservoir rim" : "head column";
     body +=
         "<div class=\"closeup\">\n<h3>Largest overflow episode: " + stamp_label(largest->start) +
         " to " + stamp_label(largest->end) + "</h3>\n";
@@ -579,8 +725,64 @@ std::string overflow_closeup(const Run& run, std::vector<std::string>& charts) {
   return body;
 }
 
+/// The typical cycle: of the release cycles, the one of median volume (the earlier of two), from
+/// the end of the cycle before it (at most three hours back) to a little after its break.
+const Event* typical_cycle(const std::vector<Event>& events) {
+  std::vector<const Event*> cycles;
+  for (const auto& e : events) {
+    if (e.kind == EpisodeKind::cycle) cycles.push_back(&e);
+  }
+  if (cycles.empty()) return nullptr;
+  std::vector<const Event*> by_volume = cycles;
+  std::stable_sort(by_volume.begin(), by_volume.end(),
+                   [](const Event* a, const Event* b) { return a->volume_L < b->volume_L; });
+  return by_volume[(by_volume.size() - 1) / 2];
+}
+
+/// One typical release cycle from the trace: the fill, any dribble, the start (priming), the run
+/// at full bore and the break, with the set-points; a note without a cycle or a trace.
+std::string typical_cycle_closeup(const Run& run, std::vector<std::string>& charts) {
+  const Event* cycle = typical_cycle(run.events);
+  if (cycle == nullptr) return "<p class=\"note\">No release cycle in this run.</p>\n";
+  if (!run.trace) {
+    return "<p class=\"note\">No trace.csv in this folder (simulation.trace: off): the typical "
+           "cycle cannot be drawn.</p>\n";
+  }
+  // The fill: from the end of the cycle before (at most three hours back).
+  const auto start = static_cast<double>(cycle->start);
+  const auto end = static_cast<double>(cycle->end);
+  double fill_from = std::max(start - 3.0 * kHour_s, run.all.t_lo);
+  for (const auto& e : run.events) {
+    if (e.kind == EpisodeKind::cycle && e.end <= cycle->start) {
+      fill_from = std::max(fill_from, static_cast<double>(e.end));
+    }
+  }
+  const double t_lo = std::max(fill_from - 0.1 * (start - fill_from), run.all.t_lo);
+  const double t_hi = std::min(end + std::max(0.25 * (end - t_lo), 300.0), run.all.t_hi);
+  TimeFigure fig(t_lo, t_hi);
+  add_trace_level(fig, *run.trace, run.summary, run.events, t_lo, t_hi, 180.0, run.units);
+  Panel& flows = add_trace_flows(fig, *run.trace, t_lo, t_hi, 130.0, run.units);
+  flows.bands.push_back({{start}, {end}, kBlack, 0.08});
+  flows.legend.push_back({LegendEntry::kBand, kBlack, "", "the cycle", 0.08});
+  add_trace_power(fig, *run.trace, t_lo, t_hi, 110.0);
+  charts.push_back("chart-typical-cycle");
+  std::string body = "<div class=\"closeup\">\n<h3>A typical cycle: " + stamp_label(cycle->start) +
+                     " to " + stamp_label(cycle->end) + "</h3>\n";
+  body += figure(
+      fig.svg("chart-typical-cycle", "A typical release cycle"),
+      "The cycle of median volume (" + quantity(run.units, cycle->volume_L, "L") + " in " +
+          duration_text(cycle->duration_s) + ", " + with_unit(cycle->energy_Wh, "Wh") +
+          "). Read from left to right: the reservoir fills; where the level passes the lip "
+          "water dribbles through unsealed (orange); once the flow primes the release it runs "
+          "at full bore (green) and the level falls until it breaks at the break level, and "
+          "the fill starts again. Drawn from trace.csv: every switch, and a point at least "
+          "every minute while anything moves.");
+  return body + "</div>\n";
+}
+
 std::string closeups_section(const Run& run, std::vector<std::string>& charts) {
   std::string body = "<section id=\"closeups\">\n<h2>Close-ups</h2>\n";
+  body += typical_cycle_closeup(run, charts);
   body += busiest_day_closeup(run, charts);
   body += overflow_closeup(run, charts);
   return body + "</section>\n";
@@ -589,7 +791,7 @@ std::string closeups_section(const Run& run, std::vector<std::string>& charts) {
 std::string events_section(const Run& run) {
   const std::vector<Event>& events = run.events;
   std::string body;
-  std::map<std::string, EventStats> by_kind;
+  std::map<EpisodeKind, EventStats> by_kind;
   for (const auto& e : events) {
     EventStats& st = by_kind[e.kind];
     ++st.count;
@@ -598,27 +800,20 @@ std::string events_section(const Run& run) {
     st.longest_s = std::max(st.longest_s, e.duration_s);
     st.largest_L = std::max(st.largest_L, e.volume_L);
   }
-  const std::array<std::pair<const char*, const char*>, 4> kinds{
-      {{"cycle", "release cycles"},
-       {"dribble", "dribble episodes (release not sealed)"},
-       {"overflow", "overflow at the reservoir rim"},
-       {"column_overflow", "overflow at the head column"}}};
   body +=
       "<section id=\"events\">\n<h2>Events</h2>\n<table>\n<thead><tr><th>kind</th><th "
       "class=\"n\">count</th><th class=\"n\">volume, " +
       unit_in(run.units, "L") + "</th><th class=\"n\">largest, " + unit_in(run.units, "L") +
       "</th><th class=\"n\">longest</th><th class=\"n\">energy, Wh</th></tr></thead>\n"
       "<tbody>\n";
-  for (const auto& [kind, label] : kinds) {
-    const EventStats st = by_kind.count(kind) ? by_kind.at(kind) : EventStats{};
-    body +=
-        std::string("<tr><td>") + label + "</td><td class=\"n\">" + std::to_string(st.count) +
-        "</td><td class=\"n\">" + pretty(in_units(run.units, st.volume_L, "L").value) +
-        "</td><td class=\"n\">" + pretty(in_units(run.units, st.largest_L, "L").value) +
-        "</td><td class=\"n\">" + (st.count > 0 ? duration_text(st.longest_s) : "&ndash;") +
-        "</td><td class=\"n\">" +
-        (episode_makes_energy(*episode_kind_from_name(kind)) ? pretty(st.energy_Wh) : "&ndash;") +
-        "</td></tr>\n";
+  for (const EpisodeKindInfo& kind : episode_kinds()) {
+    const EventStats st = by_kind.count(kind.kind) ? by_kind.at(kind.kind) : EventStats{};
+    body += "<tr><td>" + std::string(kind.words) + "</td><td class=\"n\">" +
+            std::to_string(st.count) + "</td><td class=\"n\">" +
+            pretty(in_units(run.units, st.volume_L, "L").value) + "</td><td class=\"n\">" +
+            pretty(in_units(run.units, st.largest_L, "L").value) + "</td><td class=\"n\">" +
+            (st.count > 0 ? duration_text(st.longest_s) : "&ndash;") + "</td><td class=\"n\">" +
+            (kind.makes_energy ? pretty(st.energy_Wh) : "&ndash;") + "</td></tr>\n";
   }
   body += "</tbody>\n</table>\n</section>\n";
   return body;
@@ -643,10 +838,20 @@ std::string reading_section(const Run& run) {
           "bucket, so peaks and troughs stay in view while the page stays small. In a thinned "
           "chart a bucket is shaded green if full-bore flow occurs in it at all, else orange if "
           "dribble does. ";
-  body += thinned ? "The season charts here are thinned (" + std::to_string(ts.size()) +
-                        " rows); the close-ups are drawn from every row unless they say "
-                        "otherwise.</p>\n"
-                  : "This run is short enough that every row is drawn.</p>\n";
+  body += thinned
+              ? "The season charts here are thinned (" + std::to_string(ts.size()) + " rows).</p>\n"
+              : "This run is short enough that every row is drawn.</p>\n";
+  body += run.trace ? "<p><strong>Close-ups.</strong> The close-ups draw the level, the flows "
+                      "and the power from trace.csv (" +
+                          std::to_string(run.trace->size()) +
+                          " points): the state at every switch of mode and at least every "
+                          "minute while anything moves; nothing is written while the chain "
+                          "rests, where the lines run straight. Rain is per output "
+                          "interval.</p>\n"
+                    : "<p><strong>Close-ups.</strong> This folder has no trace.csv "
+                      "(simulation.trace: off), so the close-ups are drawn from every row of "
+                      "timeseries.csv: a release cycle of minutes does not show at that "
+                      "step.</p>\n";
   body +=
       "<p>Colours follow a palette chosen to stay distinct with common colour-vision "
       "deficiencies. Inputs: timeseries.csv (" +
@@ -658,9 +863,13 @@ std::string reading_section(const Run& run) {
 }  // namespace
 
 std::string render_run(const fs::path& dir, std::optional<UnitSystem> units) {
+  std::error_code ec;
+  std::optional<Trace> trace;
+  if (fs::exists(dir / "trace.csv", ec)) trace = read_trace(dir / "trace.csv");
   Run run{read_timeseries(dir / "timeseries.csv"),
           read_events(dir / "events.csv"),
           read_summary(dir / "summary.json"),
+          std::move(trace),
           "",
           {},
           false,
@@ -678,6 +887,7 @@ std::string render_run(const fs::path& dir, std::optional<UnitSystem> units) {
 
   std::vector<std::string> charts;
   std::string body = title_section(run);
+  body += warnings_section(run);
   body += headline_section(run);
   body += season_section(run, charts);
   body += energy_section(run, charts);

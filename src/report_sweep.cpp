@@ -39,7 +39,7 @@ std::string heat_svg(const std::string& id, const std::string& title, const std:
   const double cell_h = std::clamp(360.0 / static_cast<double>(ny), 12.0, 44.0);
   const double plot_w = cell_w * static_cast<double>(nx);
   const double plot_h = cell_h * static_cast<double>(ny);
-  const double height = top + plot_h + 66.0;
+  const double height = top + plot_h + 80.0;
   double lo = std::numeric_limits<double>::infinity();
   double hi = -lo;
   for (const auto& row : grid.value) {
@@ -55,7 +55,8 @@ std::string heat_svg(const std::string& id, const std::string& title, const std:
   std::string out;
   svg_open(out, id, height, title);
   svg_text(out, 8.0, 18.0, escape(title), "start", "ptitle");
-  svg_text(out, 8.0, top - 12.0, escape(grid.y_name) + " &#8593;", "start", "axis");
+  svg_text(out, 8.0, top - 26.0, escape(key_label(grid.y_name)) + " &#8593;", "start", "axis");
+  svg_text(out, 8.0, top - 11.0, escape(grid.y_name), "start", "key");
   const bool values = cell_w >= 46.0 && cell_h >= 17.0;
   const auto x_every = static_cast<std::size_t>(std::max(1.0, std::ceil(48.0 / cell_w)));
   const auto y_every = static_cast<std::size_t>(std::max(1.0, std::ceil(15.0 / cell_h)));
@@ -85,8 +86,9 @@ std::string heat_svg(const std::string& id, const std::string& title, const std:
     svg_text(out, left + cell_w * (static_cast<double>(xi) + 0.5), top + plot_h + 17.0,
              x_labels[xi], "middle", "tick");
   }
-  svg_text(out, left + plot_w / 2.0, top + plot_h + 40.0, escape(grid.x_name) + " &#8594;",
-           "middle", "axis");
+  svg_text(out, left + plot_w / 2.0, top + plot_h + 40.0,
+           escape(key_label(grid.x_name)) + " &#8594;", "middle", "axis");
+  svg_text(out, left + plot_w / 2.0, top + plot_h + 56.0, escape(grid.x_name), "middle", "key");
   // The best-ranked combination is outlined on both maps.
   out += "<rect x=\"" + px(left + cell_w * static_cast<double>(grid.best_x) + 1.5) + "\" y=\"" +
          px(top + plot_h - cell_h * static_cast<double>(grid.best_y + 1) + 1.5) + "\" width=\"" +
@@ -127,7 +129,7 @@ std::string sweep_line_svg(const std::string& key, const std::vector<double>& x,
                            const std::vector<double>& energy, const std::vector<double>& overflow,
                            UnitSystem units) {
   const double panel_h = 150.0;
-  const double height = 2.0 * (kPanelHeader + panel_h) + kPanelGap + kTimeAxisHeight;
+  const double height = 2.0 * (kPanelHeader + panel_h) + kPanelGap + kTimeAxisHeight + 16.0;
   double x_lo = *std::min_element(x.begin(), x.end());
   double x_hi = *std::max_element(x.begin(), x.end());
   if (x_hi == x_lo) {
@@ -187,7 +189,9 @@ std::string sweep_line_svg(const std::string& key, const std::vector<double>& x,
     svg_line(out, xs(v), axis, xs(v), axis + 5.0, kAxis, 1.0);
     svg_text(out, xs(v), axis + 19.0, fixed(v, xt.decimals), "middle", "tick");
   }
-  svg_text(out, (kPlotLeft + kPlotRight) / 2.0, axis + 40.0, escape(key), "middle", "axis");
+  svg_text(out, (kPlotLeft + kPlotRight) / 2.0, axis + 40.0, escape(key_label(key)), "middle",
+           "axis");
+  svg_text(out, (kPlotLeft + kPlotRight) / 2.0, axis + 56.0, escape(key), "middle", "key");
   out += "</svg>\n";
   return out;
 }
@@ -207,6 +211,12 @@ std::string breakable(const std::string& name) {
     if (c == '.' || c == '_') out += "<wbr>";
   }
   return out;
+}
+
+// A key or column in plain words with its unit, the raw name in small print beneath.
+std::string labelled(const std::string& name) {
+  return escape(key_label(name)) + "<br><small class=\"key\"><code>" + breakable(name) +
+         "</code></small>";
 }
 
 /// A sweep folder, read once.
@@ -232,7 +242,8 @@ std::string title_section(const SweepPage& page) {
     keys_text += (k == 0                    ? ""
                   : k + 1 == sw.keys.size() ? " and "
                                             : ", ") +
-                 ("<code>" + escape(csv.header[sw.keys[k]]) + "</code>");
+                 (escape(key_label(csv.header[sw.keys[k]])) + " (<code>" +
+                  escape(csv.header[sw.keys[k]]) + "</code>)");
   }
   std::string not_run;
   if (sw.skipped.value_or(0.0) > 0.0 || sw.failed.value_or(0.0) > 0.0) {
@@ -256,9 +267,8 @@ std::string best_section(const SweepPage& page) {
   for (std::size_t c = 0; c < csv.header.size(); ++c) {
     const bool is_key = std::find(sw.keys.begin(), sw.keys.end(), c) != sw.keys.end();
     const std::string value = page.cell_text(0, c);
-    body += std::string("<tr><td>") + (is_key ? "<strong>" : "") + "<code>" +
-            escape(csv.header[c]) + "</code>" + (is_key ? "</strong>" : "") +
-            "</td><td class=\"n\">" + value + "</td></tr>\n";
+    body += std::string("<tr><td>") + (is_key ? "<strong>" : "") + labelled(csv.header[c]) +
+            (is_key ? "</strong>" : "") + "</td><td class=\"n\">" + value + "</td></tr>\n";
   }
   body += "</tbody>\n</table>\n</section>\n";
   return body;
@@ -314,7 +324,8 @@ std::string maps_section(const SweepPage& page, std::vector<std::string>& charts
     std::string others;
     for (const std::size_t c : sw.keys) {
       if (c != cx && c != cy)
-        others += (others.empty() ? "" : ", ") + ("<code>" + escape(csv.header[c]) + "</code>");
+        others += (others.empty() ? "" : ", ") + escape(key_label(csv.header[c])) + " (<code>" +
+                  escape(csv.header[c]) + "</code>)";
     }
     const std::string note =
         " The outlined cell is the best-ranked combination." +
@@ -323,8 +334,8 @@ std::string maps_section(const SweepPage& page, std::vector<std::string>& charts
                               " also vary, each cell shows the best-ranked combination among "
                               "them.") +
         " Grey cells: no combination.";
-    body += "<section id=\"maps\">\n<h2>Energy and overflow over " + escape(grid.x_name) + " and " +
-            escape(grid.y_name) + "</h2>\n";
+    body += "<section id=\"maps\">\n<h2>Energy and overflow over " +
+            escape(key_label(grid.x_name)) + " and " + escape(key_label(grid.y_name)) + "</h2>\n";
     grid.value = grid_of(c_energy);
     charts.push_back("chart-heat-energy");
     body += figure(
@@ -351,8 +362,8 @@ std::string maps_section(const SweepPage& page, std::vector<std::string>& charts
       overflow.push_back(sw.num[r][c_overflow]);
     }
     charts.push_back("chart-sweep-line");
-    body += "<section id=\"maps\">\n<h2>Energy and overflow against " + escape(csv.header[cx]) +
-            "</h2>\n";
+    body += "<section id=\"maps\">\n<h2>Energy and overflow against " +
+            escape(key_label(csv.header[cx])) + "</h2>\n";
     body += figure(sweep_line_svg(csv.header[cx], x, energy, overflow, sw.units),
                    "Season electrical energy and overflow for each value of the varied key.");
     body += "</section>\n";
@@ -380,8 +391,8 @@ std::string ranked_section(const SweepPage& page) {
           (csv.header.size() > 11 ? " many" : "") + "\">\n<thead><tr><th class=\"n\">#</th>";
   for (std::size_t c = 0; c < csv.header.size(); ++c) {
     const bool is_rank = csv.header[c] == sw.rank;
-    body += "<th" + cell_class(!std::isnan(sw.num[0][c]), is_rank) + ">" +
-            breakable(csv.header[c]) + "</th>";
+    body += "<th" + cell_class(!std::isnan(sw.num[0][c]), is_rank) + ">" + labelled(csv.header[c]) +
+            "</th>";
   }
   body += "</tr></thead>\n<tbody>\n";
   for (std::size_t r = 0; r < std::min(n, kMaxRows); ++r) {

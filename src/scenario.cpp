@@ -679,6 +679,8 @@ const std::vector<Section>& schema() {
             [](V v, S s) { s.simulation.output_interval_s = v.duration_s(kPositive); }},
            {"rtol", kOptional,
             [](V v, S s) { s.simulation.rtol = v.number(between(1e-10, 1e-3)); }},
+           {"trace", kOptional,
+            [](V v, S s) { s.simulation.trace = v.choice<bool>({{"on", true}, {"off", false}}); }},
        }},
   };
   return kSchema;

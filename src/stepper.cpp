@@ -56,6 +56,9 @@ constexpr int kMaxSwitchesAtOnce = 16;
 // interval or a month long and needs a few hundred steps even through a storm.
 constexpr long kMaxStepsPerSegment = 100000;
 
+// The first point of the trace's grid after `t` (absolute seconds).
+double next_trace_time(double t) { return (std::floor(t / kTraceStep_s) + 1.0) * kTraceStep_s; }
+
 }  // namespace
 
 Stepper::Stepper(const ChainSystem& system, Ledger& ledger, const RunOptions& options)
@@ -102,6 +105,11 @@ ChainRates Stepper::settle(const Forcing& f, Guards& g, ChainState& dxdt) {
 // battery serves the load (battery_at_rest).
 void Stepper::coast(double t, double span, const Forcing& f) {
   const Scenario& sc = system_.scenario();
+  if (moving_) {
+    // The chain comes to rest: the trace's last point before its pause.
+    moving_ = false;
+    trace_now(f);
+  }
   const double dt = span - t;
   x_[kReservoir] += roof_->to_reservoir_m3(span) - roof_->to_reservoir_m3(t);
   ChainSystem::set_roof(roof_->stores(span), x_);
@@ -117,6 +125,10 @@ void Stepper::coast(double t, double span, const Forcing& f) {
   mode_.battery = battery_mode(x_[kBattery], 0.0, f.load_W, sc.battery, mode_.battery);
   stats_.coasted_s += dt;
   ledger_.follow_standing(system_.level_m(x_), mode_, now_s_ + dt);
+}
+
+void Stepper::trace_now(const Forcing& f) const {
+  if (ledger_.tracing()) ledger_.trace(now_s_, mode_, system_.rates(x_, mode_, f));
 }
 
 ChainState Stepper::to_solver(const ChainState& x, double t) const {
@@ -185,6 +197,10 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
   Guards g_prev{};
   while (t < span) {
     if (coasted_to_end(t, span, f)) return;
+    if (!moving_) {
+      moving_ = true;
+      trace_now(f);
+    }
     if (fresh) {
       last = settle(f, g_prev, known_dxdt);
       ledger_.update_peaks(last);
@@ -272,6 +288,15 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       from_solver(w_end, t_end, x_end);
       r = system_.rates(x_end, mode_, f);
     }
+    if (ledger_.tracing()) {
+      // The trace's grid points within the step, on the dense output.
+      for (double g = next_trace_time(t0 + t); g <= t0 + t_end; g += kTraceStep_s) {
+        ChainState ws, xs;
+        stepper.calc_state(g - t0, ws);
+        from_solver(ws, g - t0, xs);
+        ledger_.trace(g, mode_, system_.rates(xs, mode_, f));
+      }
+    }
     accept_step(x_end, t_end - t, r, first, f, t0 + t_end);
     t = t_end;
     if (first >= 0) {
@@ -314,9 +339,11 @@ void Stepper::accept_step(const ChainState& x_end, double dt, const ChainRates& 
 
 void Stepper::switch_mode(int k, const Forcing& f, const ChainRates& r) {
   const ChainMode before = mode_;
+  if (ledger_.tracing()) ledger_.trace(now_s_, mode_, r);
   const double spilled_m3 = system_.apply_switch(k, x_, mode_, f, r);
   ++stats_.switches;
   ledger_.switched(before, mode_, x_, spilled_m3, now_s_);
+  trace_now(f);
 }
 
 // The reference integration: classic Runge-Kutta (Kutta 1901) at a fixed step, every switch
@@ -375,6 +402,10 @@ void Stepper::integrate_fixed(double t0, double t1, const Forcing& f) {
       r = system_.rates(x_end, mode_, f);
     }
     const double t_next = t + h;
+    // The reference's trace: the step's end, when it passes a point of the grid.
+    if (ledger_.tracing() && next_trace_time(t0 + t) <= t0 + t_next) {
+      ledger_.trace(t0 + t_next, mode_, r);
+    }
     accept_step(x_end, h, r, first, f, t0 + t_next);
     t = t_next;
     if (first >= 0) {

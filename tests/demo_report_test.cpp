@@ -47,6 +47,20 @@ TEST(DemoReport, RunPageHoldsTheChartsAndLoadsNothing) {
   EXPECT_EQ(count(page, "http://") + count(page, "https://"), 0u);
   EXPECT_EQ(count(page, "<script"), 0u);
   EXPECT_NE(page.find("Working at height"), std::string::npos);
+  // The run writes its trace, and the page draws the typical cycle from it below the warnings.
+  EXPECT_TRUE(fs::exists(dir / "trace.csv"));
+  EXPECT_NE(page.find("<svg id=\"chart-typical-cycle\""), std::string::npos);
+  EXPECT_LT(page.find("id=\"warnings\""), page.find("id=\"headline\""));
+}
+
+TEST(DemoReport, TraceOffWritesNoTrace) {
+  const fs::path dir = fs::temp_directory_path() / "gutterwatt-demo-report-no-trace";
+  fs::remove_all(dir);
+  ASSERT_EQ(run("run " + kDemo + " --quiet --set simulation.trace=off --out " + dir.string()), 0);
+  EXPECT_FALSE(fs::exists(dir / "trace.csv"));
+  EXPECT_TRUE(fs::exists(dir / "timeseries.csv"));
+  ASSERT_EQ(run("report " + dir.string()), 0);
+  EXPECT_NE(slurp(dir / "report.html").find("No trace.csv in this folder"), std::string::npos);
 }
 
 TEST(DemoReport, SweepPageHoldsTheHeatMaps) {

@@ -14,6 +14,7 @@
 
 using gutterwatt::month_start;
 using gutterwatt::detail::kDay_s;
+using gutterwatt::detail::key_label;
 using gutterwatt::detail::Medium;
 using gutterwatt::detail::period_label;
 using gutterwatt::detail::pretty;
@@ -94,4 +95,19 @@ TEST(ReportFormat, PeriodOfPartMonthsNamesItsDays) {
   EXPECT_EQ(period_label(mar30, mar30 + kDay_s), "30 Mar 2025");
   EXPECT_EQ(period_label(month_start(2024, 12) + 20 * kDay_s, month_start(2025, 1) + 5 * kDay_s),
             "21 Dec 2024 \xE2\x80\x93 5 Jan 2025");
+}
+
+TEST(ReportFormat, KeyLabelsArePlainWordsWithTheirUnits) {
+  // Expected strings written by hand from the key names.
+  EXPECT_EQ(key_label("release.priming_flow_L_per_min"), "Release: priming flow, L/min");
+  EXPECT_EQ(key_label("release.trigger_level_mm"), "Release: trigger level, mm");
+  EXPECT_EQ(key_label("drop_pipe.minor_loss_k"), "Drop pipe: minor loss K");
+  EXPECT_EQ(key_label("battery.min_soc"), "Battery: min state of charge");
+  EXPECT_EQ(key_label("roof.lag_s"), "Roof: lag, s");
+  EXPECT_EQ(key_label("energy_Wh"), "Energy, Wh");
+  EXPECT_EQ(key_label("overflow_gal"), "Overflow, gal");
+  EXPECT_EQ(key_label("release.trigger_level_in"), "Release: trigger level, in");
+  EXPECT_EQ(key_label("cycles"), "Cycles");
+  EXPECT_EQ(key_label("standing_spells_over_7_days"), "Standing spells over 7 days");
+  EXPECT_EQ(key_label("energy_Wh_p90"), "Energy, Wh (P90)");
 }

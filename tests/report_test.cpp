@@ -111,11 +111,68 @@ TEST(Report, WritesTheRunPageIntoTheRunFolder) {
 TEST(Report, RunPageContainsEveryChart) {
   ScratchDir scratch;
   const std::string page = render_report(scratch.copy_of("run"));
-  EXPECT_EQ(count(page, "<svg "), 6u);
+  EXPECT_EQ(count(page, "<svg "), 7u);
   for (const char* id : {"chart-rain-level", "chart-energy", "chart-battery", "chart-monthly",
-                         "chart-busiest-day", "chart-overflow-episode"}) {
+                         "chart-typical-cycle", "chart-busiest-day", "chart-overflow-episode"}) {
     EXPECT_NE(page.find(std::string("<svg id=\"") + id + "\""), std::string::npos) << id;
   }
+}
+
+TEST(Report, RunPageShowsEveryWarningAboveTheHeadline) {
+  ScratchDir scratch;
+  const std::string page = render_report(scratch.copy_of("run"));
+  // The fixture's summary.json holds one invented warning of each kind; the page escapes them.
+  const auto run =
+      page.find("<li>invented run warning: the record is daily &amp; spread over each day</li>");
+  const auto design =
+      page.find("<li>invented design warning: the drop pipe loses &lt;half&gt; the head</li>");
+  const auto headline = page.find("id=\"headline\"");
+  ASSERT_NE(run, std::string::npos);
+  ASSERT_NE(design, std::string::npos);
+  EXPECT_LT(run, headline);
+  EXPECT_LT(design, headline);
+  // The cautions stay at the foot.
+  EXPECT_GT(page.find("id=\"cautions\""), page.find("id=\"closeups\""));
+}
+
+TEST(Report, RunPageWithoutWarningsSaysSo) {
+  ScratchDir scratch;
+  const fs::path run = scratch.copy_of("run");
+  replace_text(run / "summary.json",
+               "\"invented run warning: the record is daily & spread over each day\"", "");
+  replace_text(run / "summary.json",
+               "\"invented design warning: the drop pipe loses <half> the head\"", "");
+  const std::string page = render_report(run);
+  EXPECT_NE(page.find("The run and the design check gave no warnings."), std::string::npos);
+}
+
+TEST(Report, CloseUpsAreDrawnFromTheTrace) {
+  ScratchDir scratch;
+  const std::string page = render_report(scratch.copy_of("run"));
+  // Every fixture cycle holds 27.3 L, so the typical one (median volume, the earlier of equals)
+  // is the 63rd of the 126 in time order: 2025-04-01T06:20 to 06:22 in events.csv.
+  EXPECT_NE(page.find("A typical cycle: 1 Apr 2025 06:20 to 1 Apr 2025 06:22"), std::string::npos);
+  EXPECT_NE(page.find("(trace: every switch, at least every minute)"), std::string::npos);
+  EXPECT_NE(page.find("trace.csv (941 points)"), std::string::npos);
+}
+
+TEST(Report, CloseUpsFallBackToTheTimeseriesWithoutATrace) {
+  ScratchDir scratch;
+  const fs::path run = scratch.copy_of("run");
+  fs::remove(run / "trace.csv");
+  const std::string page = render_report(run);
+  EXPECT_EQ(page.find("<svg id=\"chart-typical-cycle\""), std::string::npos);
+  EXPECT_NE(page.find("No trace.csv in this folder (simulation.trace: off)"), std::string::npos);
+  EXPECT_NE(page.find("<svg id=\"chart-overflow-episode\""), std::string::npos);
+}
+
+TEST(ReportErrors, NamesTheLineOfATraceTimeGoingBack) {
+  ScratchDir scratch;
+  const fs::path run = scratch.copy_of("run");
+  replace_line(run / "trace.csv", 3, "2025-03-30T05:00:00,8.0,idle,0,0,0,0");
+  EXPECT_EQ(
+      error_of([&] { render_report(run); }),
+      (run / "trace.csv").string() + ":3: time: before the previous row (\"2025-03-30T05:00:00\")");
 }
 
 TEST(Report, RunPageHasTheHeadlineFigures) {
@@ -161,9 +218,9 @@ TEST(Report, OverflowEpisodesCarryNoEnergy) {
 TEST(Report, MarksCycleStartsAlongTheLevelCharts) {
   ScratchDir scratch;
   const std::string page = render_report(scratch.copy_of("run"));
-  // The season and both close-ups carry the marks and their legend entry.
-  EXPECT_EQ(count(page, ">cycle start</text>"), 3u);
-  EXPECT_EQ(count(page, "stroke=\"#009E73\" stroke-width=\"1.6\"/>"), 3u);
+  // The season and the three close-ups carry the marks and their legend entry.
+  EXPECT_EQ(count(page, ">cycle start</text>"), 4u);
+  EXPECT_EQ(count(page, "stroke=\"#009E73\" stroke-width=\"1.6\"/>"), 4u);
 }
 
 TEST(Report, SweepPageContainsTheRankedTableAndBothHeatMaps) {
@@ -178,6 +235,13 @@ TEST(Report, SweepPageContainsTheRankedTableAndBothHeatMaps) {
   // 12 combinations: 12 ranked rows, numbered 1 to 12.
   EXPECT_NE(page.find("<td class=\"n\">12</td>"), std::string::npos);
   EXPECT_NE(page.find("ranked by <code>energy_Wh</code>"), std::string::npos);
+  // Every key in plain words with its unit, the raw key in small print beneath.
+  EXPECT_NE(page.find("Release: trigger level, mm<br><small class=\"key\"><code>release.<wbr>"
+                      "trigger_<wbr>level_<wbr>mm</code></small>"),
+            std::string::npos);
+  EXPECT_NE(page.find("Release: trigger level, mm &#8594;"), std::string::npos);
+  EXPECT_NE(page.find("Release: break level, mm &#8593;"), std::string::npos);
+  EXPECT_NE(page.find("class=\"key\">release.break_level_mm</text>"), std::string::npos);
 }
 
 TEST(Report, PagesLoadNothingFromTheNetwork) {
@@ -225,7 +289,7 @@ TEST(Report, FailedRenderLeavesTheEarlierReportUntouched) {
   EXPECT_EQ(read_file(run / "report.html"), before);
   std::size_t files = 0;
   for ([[maybe_unused]] const auto& entry : fs::directory_iterator(run)) ++files;
-  EXPECT_EQ(files, 4u) << "no temporary file is left behind";
+  EXPECT_EQ(files, 5u) << "no temporary file is left behind";
 }
 
 TEST(Report, RunWithoutOverflowSaysSo) {
@@ -240,7 +304,7 @@ TEST(Report, RunWithoutOverflowSaysSo) {
   const std::string page = render_report(run);
   EXPECT_NE(page.find("No overflow episode in this run."), std::string::npos);
   EXPECT_EQ(page.find("chart-overflow-episode"), std::string::npos);
-  EXPECT_EQ(count(page, "<svg "), 5u);
+  EXPECT_EQ(count(page, "<svg "), 6u);
 }
 
 TEST(Report, DryIdleRunHasNoCloseUps) {
@@ -301,7 +365,7 @@ TEST(Report, SeasonOfHourlyRowsIsThinnedAndStaysSmall) {
   EXPECT_NE(page.find("tallest interval in each"), std::string::npos);
   EXPECT_NE(page.find("min/max-per-bucket"), std::string::npos);
   EXPECT_NE(page.find("The season charts here are thinned (6600 rows)"), std::string::npos);
-  EXPECT_EQ(count(page, "<svg "), 6u);
+  EXPECT_EQ(count(page, "<svg "), 7u);
 }
 
 TEST(Report, SweepOverOneKeyDrawsEnergyAndOverflowAgainstIt) {
@@ -419,7 +483,7 @@ TEST(ReportErrors, NamesAnUnknownEventKind) {
   replace_line(run / "events.csv", 2, "spill,2025-03-30T05:40,2025-03-30T06:00,1200,22.6,0.004,0");
   EXPECT_EQ(error_of([&] { render_report(run); }),
             (run / "events.csv").string() +
-                ":2: kind: unknown kind \"spill\" (expected cycle, overflow, dribble or "
+                ":2: kind: unknown kind \"spill\" (expected cycle, dribble, overflow or "
                 "column_overflow)");
 }
 
@@ -480,6 +544,11 @@ TEST(ReportRender, RendersInHeadlessChromium) {
         dir.string() + "' >/dev/null 2>&1";
     EXPECT_EQ(std::system(command.c_str()), 0) << name;
     EXPECT_GT(fs::file_size(dir / "report.png"), 10000u) << name;
+    // The run page's new sections: the warnings and the typical-cycle close-up (the script
+    // checks every chart the page lists, and the warnings section on a run page).
+    if (std::string(name) == "run") {
+      EXPECT_NE(read_file(dir / "report.html").find("chart-typical-cycle"), std::string::npos);
+    }
   }
 }
 

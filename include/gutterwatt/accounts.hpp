@@ -5,6 +5,7 @@
 
 #include <array>
 #include <optional>
+#include <span>
 #include <string_view>
 #include <vector>
 
@@ -70,6 +71,20 @@ struct Sample {
 
 enum class EpisodeKind { cycle, overflow, dribble, column_overflow };
 
+/// One kind of episode: the one table of them, which events.csv's writer, the report's reader and
+/// page and the tests take. `name` is as events.csv writes it, `words` as the page says it;
+/// `makes_energy`: whether what flows in it passes the nozzle (an overflow's water does not, so
+/// it carries no energy figure).
+struct EpisodeKindInfo {
+  EpisodeKind kind;
+  std::string_view name;
+  std::string_view words;
+  bool makes_energy;
+};
+
+/// Every episode kind, in the order the page lists them.
+std::span<const EpisodeKindInfo> episode_kinds();
+
 /// `cycle`, `overflow`, `dribble`, `column_overflow`.
 std::string_view episode_kind_name(EpisodeKind kind);
 
@@ -93,6 +108,24 @@ struct Episode {
   double energy_J;
 };
 
+/// The state at one instant of the fine trace: at a mode switch (once in the mode before it and
+/// once in the mode after, at the same time), on the trace's grid while anything moves, and where
+/// the chain comes to rest or starts to move again. Flows in m3/s; overflow is over the
+/// reservoir's rim and the head column's brim together.
+struct TracePoint {
+  double time_s = 0.0;  ///< seconds since the epoch (UTC), not rounded
+  double level_m = 0.0;
+  ReleaseState release = ReleaseState::idle;
+  double release_m3_per_s = 0.0;
+  double overflow_m3_per_s = 0.0;
+  double head_m = 0.0;   ///< at the nozzle, 0 while nothing passes it
+  double power_W = 0.0;  ///< electrical, delivered
+};
+
+/// The trace's grid: while anything moves, a point at every whole multiple of this many seconds
+/// since the epoch (so never more than this apart), besides the switches.
+inline constexpr double kTraceStep_s = 60.0;
+
 /// Receives a run's records as they are made, like an odeint observer.
 class Observer {
  public:
@@ -101,6 +134,9 @@ class Observer {
   virtual void on_start(const Sample&) {}
   virtual void on_sample(const Sample&) {}
   virtual void on_episode(const Episode&) {}
+  /// Whether this observer takes the fine trace (on_trace); the run makes none otherwise.
+  virtual bool wants_trace() const { return false; }
+  virtual void on_trace(const TracePoint&) {}
 };
 
 /// Forwards every record to several observers in order.
@@ -110,6 +146,8 @@ class ObserverList : public Observer {
   void on_start(const Sample& s) override;
   void on_sample(const Sample& s) override;
   void on_episode(const Episode& e) override;
+  bool wants_trace() const override;
+  void on_trace(const TracePoint& p) override;
 
  private:
   std::vector<Observer*> observers_;
@@ -177,6 +215,10 @@ class Ledger {
   static Storage storage(const ChainState& x);
   Sample sample(Instant t, const ChainState& x, const ChainMode& m, bool output,
                 bool month_end) const;
+  /// Whether the observer takes the fine trace.
+  bool tracing() const { return tracing_; }
+  /// Hands the observer the trace point at `t` in mode `m` with the state's rates `r`.
+  void trace(double t, const ChainMode& m, const ChainRates& r) const;
   const EpisodeCounts& counts() const { return counts_; }
 
  private:
@@ -194,6 +236,7 @@ class Ledger {
 
   const ChainSystem& system_;
   Observer& observer_;
+  bool tracing_;
   Accounts tally_;  // the accounts tallied outside the state; the others stay zero
   std::array<OpenEpisode, 4> episodes_{};
   EpisodeCounts counts_;

@@ -49,6 +49,19 @@ struct EventRow {
   const TimeZone& zone;
 };
 
+/// One row of trace.csv.
+struct TraceRow {
+  const TracePoint& point;
+  const TimeZone& zone;
+};
+
+/// Most bytes of trace.csv a run writes unless forced (`run --force`): a point a minute through
+/// ten years of continuous motion is about 370 MB (a project choice, no source).
+inline constexpr double kMaxTraceBytes = 1e9;
+
+/// Bytes of a trace.csv row, for the watch on its size.
+inline constexpr double kTraceRowBytes = 80.0;
+
 /// The columns of timeseries.csv, in order: time, rain_mm, roof_runoff_L, reservoir_level_mm,
 /// release_state, release_L, reservoir_overflow_L, column_overflow_L, nozzle_L, head_m, power_W,
 /// energy_Wh, battery_soc, cum_energy_Wh, cum_overflow_L.
@@ -57,6 +70,10 @@ std::span<const OutputColumn<TimeseriesRow>> timeseries_columns();
 /// The columns of events.csv, in order: kind, start, end, duration_s, volume_L,
 /// peak_flow_L_per_s, energy_Wh.
 std::span<const OutputColumn<EventRow>> events_columns();
+
+/// The columns of trace.csv, in order: time, reservoir_level_mm, release_state,
+/// release_L_per_s, overflow_L_per_s, head_m, power_W.
+std::span<const OutputColumn<TraceRow>> trace_columns();
 
 /// Throws InputError naming the scenario and `simulation.output_interval`, with the estimate,
 /// when a run over [start, end) would write more than kMaxTimeseriesBytes of timeseries.csv.
@@ -82,6 +99,24 @@ class TimeseriesWriter : public Observer {
   bool limited_;
   double rows_ = 0.0;
   Sample last_;
+};
+
+/// Writes one trace.csv row per trace point (see TracePoint), in the scenario's units; the time
+/// to the second. With `limited`, throws InputError naming `simulation.trace` once the rows pass
+/// kMaxTraceBytes (the run does not know in advance how long its chain moves).
+class TraceWriter : public Observer {
+ public:
+  TraceWriter(std::ostream& out, const Scenario& scenario, bool limited);
+  bool wants_trace() const override { return true; }
+  void on_trace(const TracePoint& p) override;
+
+ private:
+  std::ostream& out_;
+  const Scenario& scenario_;
+  TimeZone zone_;
+  UnitSystem units_;
+  bool limited_;
+  double rows_ = 0.0;
 };
 
 /// Writes one events.csv row per siphon cycle, overflow, dribble and column-overflow episode.
@@ -159,11 +194,43 @@ std::optional<double> load_served_share(const Accounts& totals);
 double wettest_dry_intensity_m_per_s(const RainSeries& rain, Instant start, Instant end,
                                      const std::vector<Episode>& overflows);
 
-/// summary.json: water_L, energy_Wh, siphon, overflow, battery, months and more; with
+/// What summary.json's numbers are made from.
+struct SummaryInputs {
+  const Scenario& scenario;
+  const RunResult& result;
+  const SummaryBuilder& summary;
+};
+
+/// One number of summary.json that the report reads: the one definition of its dotted key
+/// (`water_L.rain`), which write_summary_json writes and the report's reader reads, and of its
+/// value. A value that does not apply (NaN) is written as null; a count is written whole.
+struct SummaryNumber {
+  std::string_view key;
+  double (*value)(const SummaryInputs&);
+  bool count = false;
+};
+
+/// The numbers of summary.json the report reads, in the order the page's reader takes them.
+std::span<const SummaryNumber> summary_numbers();
+
+/// The entry of summary_numbers() for `key`; std::out_of_range when there is none (a reader that
+/// asks for a key no writer writes is a programming error).
+const SummaryNumber& summary_number(std::string_view key);
+
+/// What a run warns of, kept in summary.json for the report page: the run's own (the record,
+/// its coverage, the disaggregation's spread), as the terminal shows them, and the design's, as
+/// `check` gives them.
+struct RunWarnings {
+  std::vector<std::string> run;
+  std::vector<std::string> design;
+};
+
+/// summary.json: water_L, energy_Wh, siphon, overflow, battery, months, warnings and more; with
 /// `realizations` (the run being their first), `realizations: {n, seeds, percentiles,
 /// energy_Wh: {p10, p50, p90}, cycles, reservoir_overflow_L, dribble_L}`.
 void write_summary_json(std::ostream& out, const Scenario& scenario, const RainSeries& rain,
                         const RunResult& result, const SummaryBuilder& summary,
+                        const RunWarnings& warnings,
                         const RealizationSpread* realizations = nullptr);
 
 /// The summary table printed after a run, in the scenario's units (site.units); with

@@ -57,6 +57,7 @@ struct SimulationConfig {
   std::optional<Instant> end;    ///< nullopt: the end of the rain record
   double output_interval_s = 3600.0;
   double rtol = 1e-6;
+  bool trace = true;  ///< simulation.trace: write trace.csv (`on`, the default, or `off`)
 };
 
 /// A measured bell-siphon build (release.builds): its priming flow and, where measured, its

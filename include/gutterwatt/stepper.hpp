@@ -65,6 +65,8 @@ class Stepper {
   void switch_mode(int k, const Forcing& f, const ChainRates& r);
   void coast(double t, double span, const Forcing& f);
   void evaporate_at_rest(double dt, const Forcing& f);
+  /// Hands the ledger the trace point of the engine's state now.
+  void trace_now(const Forcing& f) const;
   /// The solver's state at `t` within the segment (the reservoir less the roof's inflow since
   /// the segment began) from the engine's `x`, and back, with the roof's stores at `t`.
   ChainState to_solver(const ChainState& x, double t) const;
@@ -78,6 +80,7 @@ class Stepper {
   std::optional<RoofSpan> roof_;  // the roof stage over the current segment
   double now_s_ = 0.0;            // absolute, seconds since the epoch
   double last_step_s_ = 10.0;     // solver step carried from one segment into the next
+  bool moving_ = false;           // stepped (not at rest) since the last trace point at rest
   SolverStats stats_;
   ChainState error_scale_{};  // the error checker's absolute scale per slot
 };

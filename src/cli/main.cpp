@@ -124,6 +124,7 @@ int run_command(const RunArgs& args) {
   std::optional<OutputFolder> folder;
   std::optional<TimeseriesWriter> timeseries;
   std::optional<EventsWriter> events;
+  std::optional<TraceWriter> trace;
   SummaryBuilder summary(sc);
   RunResult result;
   // The run whose records are written: the only one, or the first realization.
@@ -134,6 +135,10 @@ int run_command(const RunArgs& args) {
     ObserverList observers;
     observers.add(*timeseries);
     observers.add(*events);
+    if (sc.simulation.trace) {
+      trace.emplace(folder->open("trace.csv"), sc, !args.force);
+      observers.add(*trace);
+    }
     observers.add(summary);
     result = simulate(sc, rain, observers, options);
     return result;
@@ -164,21 +169,29 @@ int run_command(const RunArgs& args) {
     spread = spread_of(run_realizations(sc, as_read, n, realization_options),
                        sc.rain.disaggregate->seed);
   }
-  for (const std::string& w : rain.warnings) spdlog::warn("{}", w);
+  RunWarnings warnings;
+  warnings.run = rain.warnings;
   if (spread && sc.rain.disaggregate->levels.empty() && !sc.rain.disaggregate->idf) {
-    spdlog::warn("{}", method_spread(sc, rain_as_read, spread->energy_Wh.p50, spread->n));
+    warnings.run.push_back(method_spread(sc, rain_as_read, spread->energy_Wh.p50, spread->n));
   }
   for (const std::string& w :
        coverage_warnings(month_coverage(rain, result.start, result.end, sc.site.zone))) {
-    spdlog::warn("{}", w);
+    warnings.run.push_back(w);
   }
+  for (const std::string& w : warnings.run) spdlog::warn("{}", w);
+  // The design's warnings, as `check` gives them, go on the page (the terminal has them from
+  // `check`).
+  warnings.design = evaluate_design(sc, &rain, spread ? &rain_as_read : nullptr).warnings;
   const RealizationSpread* realizations = spread ? &*spread : nullptr;
-  write_summary_json(folder->open("summary.json"), sc, rain, result, summary, realizations);
+  write_summary_json(folder->open("summary.json"), sc, rain, result, summary, warnings,
+                     realizations);
   folder->commit();
   if (!args.quiet) {
     print_summary_table(std::cout, sc, rain, result, summary, realizations);
     std::cout << "wrote " << (dir / "timeseries.csv").string() << ", "
-              << (dir / "events.csv").string() << ", " << (dir / "summary.json").string() << '\n';
+              << (dir / "events.csv").string() << ", ";
+    if (sc.simulation.trace) std::cout << (dir / "trace.csv").string() << ", ";
+    std::cout << (dir / "summary.json").string() << '\n';
   }
   return kExitOk;
 }

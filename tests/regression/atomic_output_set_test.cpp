@@ -53,7 +53,8 @@ TEST(AtomicOutputSet, PublishingWaitsForAReaderAndThenShowsTheWholeSet) {
   EXPECT_FALSE(fs::exists(out / "timeseries.csv"));
   reading.reset();
   ASSERT_EQ(child.wait_for(std::chrono::seconds(30)), 0) << child.outcome().err;
-  EXPECT_EQ(names_in(out), (std::set<std::string>{"events.csv", "summary.json", "timeseries.csv"}));
+  EXPECT_EQ(names_in(out),
+            (std::set<std::string>{"events.csv", "summary.json", "timeseries.csv", "trace.csv"}));
   expect_one_set(out);
 }
 
@@ -96,7 +97,7 @@ TEST(AtomicOutputSet, TwoConcurrentRunsIntoOneFolderLeaveOneRunsFiles) {
     ASSERT_EQ(small.wait_for(std::chrono::seconds(60)), 0) << small.outcome().err;
     ASSERT_EQ(large.wait_for(std::chrono::seconds(60)), 0) << large.outcome().err;
     EXPECT_EQ(names_in(out),
-              (std::set<std::string>{"events.csv", "summary.json", "timeseries.csv"}));
+              (std::set<std::string>{"events.csv", "summary.json", "timeseries.csv", "trace.csv"}));
     expect_one_set(out);
   }
 }

@@ -170,5 +170,6 @@ TEST(OutputTemporaries, KilledRunsTemporariesGoAtTheNextRun) {
   const Outcome r =
       run("run " + (site / "shed.yaml").string() + " --quiet --out " + out.string(), site);
   EXPECT_EQ(r.status, 0) << r.err;
-  EXPECT_EQ(names_in(out), (std::set<std::string>{"events.csv", "summary.json", "timeseries.csv"}));
+  EXPECT_EQ(names_in(out),
+            (std::set<std::string>{"events.csv", "summary.json", "timeseries.csv", "trace.csv"}));
 }

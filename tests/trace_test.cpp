@@ -1,0 +1,152 @@
+// The fine trace (item 1 of issue 17): a point at every mode switch (in the mode before and the
+// mode after), at least every kTraceStep_s while anything moves, none while the chain rests; and
+// trace.csv's columns in SI and in US units.
+
+#include <gtest/gtest.h>
+
+#include <cmath>
+#include <sstream>
+#include <string>
+#include <vector>
+
+#include "gutterwatt/output.hpp"
+#include "gutterwatt/simulation.hpp"
+#include "test_support.hpp"
+
+namespace gutterwatt {
+namespace {
+
+using test_support::block_rain;
+using test_support::kLitre_m3;
+using test_support::kPerMinute;
+using test_support::kStart;
+using test_support::make_scenario;
+using test_support::RecordingObserver;
+
+class TraceRecorder : public RecordingObserver {
+ public:
+  bool wants_trace() const override { return true; }
+  void on_trace(const TracePoint& p) override { points.push_back(p); }
+  std::vector<TracePoint> points;
+};
+
+// The default box (simulation_test's kBoxCycle, by hand from the published forms): from the
+// break level at 0.1 L/s inflow the bell primes 399.1883 s after the start at the priming level
+// 56.072891 mm and breaks at the rim of the bell, 8 mm, 614.4202 s later. The rain stops after
+// an hour; the run goes on dry for three more.
+constexpr double kPrimingAfter_s = 399.1883;
+constexpr double kPrimingLevel_m = 0.056072891;
+constexpr double kBreakLevel_m = 0.008;
+
+Scenario box_run() {
+  Scenario s = make_scenario(4.0 * 3600.0, 3600.0);
+  s.reservoir.initial_level_m = s.release.break_level_m;
+  s.simulation.rtol = 1e-9;
+  return s;
+}
+
+RainSeries one_hour_of_inflow(const Scenario& s) {
+  const double intensity = 6.0 * kLitre_m3 * kPerMinute / s.roof.area_m2;
+  return block_rain(*s.simulation.start, *s.simulation.end, {{kStart, kStart + 3600, intensity}},
+                    300);
+}
+
+TEST(Trace, MarksEverySwitchInTheModesBeforeAndAfter) {
+  const Scenario s = box_run();
+  TraceRecorder obs;
+  simulate(s, one_hour_of_inflow(s), obs);
+  const std::vector<Episode> cycles = obs.of_kind(EpisodeKind::cycle);
+  ASSERT_GE(cycles.size(), 3u);
+  // The first priming: a dribble point and a running point at its time, at the priming level.
+  const double priming = static_cast<double>(kStart) + kPrimingAfter_s;
+  std::size_t at = 0;
+  while (at < obs.points.size() && obs.points[at].time_s < priming - 1e-3) ++at;
+  ASSERT_LT(at + 1, obs.points.size());
+  EXPECT_NEAR(obs.points[at].time_s, priming, 2e-3);
+  EXPECT_EQ(obs.points[at].release, ReleaseState::dribble);
+  EXPECT_EQ(obs.points[at + 1].release, ReleaseState::running);
+  EXPECT_EQ(obs.points[at + 1].time_s, obs.points[at].time_s);
+  EXPECT_NEAR(obs.points[at].level_m, kPrimingLevel_m, 1e-6);
+  EXPECT_GT(obs.points[at + 1].release_m3_per_s, obs.points[at].release_m3_per_s);
+  EXPECT_GT(obs.points[at + 1].power_W, 0.0);
+  // Every cycle's start and end are points of the trace; each end at the break level.
+  for (const Episode& c : cycles) {
+    for (const double t : {c.start_s, c.end_s}) {
+      const bool found = std::any_of(obs.points.begin(), obs.points.end(),
+                                     [&](const TracePoint& p) { return p.time_s == t; });
+      EXPECT_TRUE(found) << t;
+    }
+  }
+  for (std::size_t k = 0; k + 1 < cycles.size(); ++k) {
+    const auto end = std::find_if(obs.points.begin(), obs.points.end(), [&](const TracePoint& p) {
+      return p.time_s == cycles[k].end_s && p.release == ReleaseState::idle;
+    });
+    ASSERT_NE(end, obs.points.end()) << k;
+    EXPECT_NEAR(end->level_m, kBreakLevel_m, 1e-6) << k;
+  }
+}
+
+TEST(Trace, AtLeastEveryMinuteWhileMovingAndNothingAtRest) {
+  const Scenario s = box_run();
+  TraceRecorder obs;
+  simulate(s, one_hour_of_inflow(s), obs);
+  ASSERT_GT(obs.points.size(), 60u);
+  for (std::size_t i = 0; i + 1 < obs.points.size(); ++i) {
+    const TracePoint& a = obs.points[i];
+    const TracePoint& b = obs.points[i + 1];
+    EXPECT_LE(a.time_s, b.time_s) << i;
+    if (b.time_s - a.time_s <= kTraceStep_s + 1e-9) continue;
+    // A longer gap is a rest: nothing flows at its start and the level has not moved.
+    EXPECT_EQ(a.release_m3_per_s, 0.0) << i;
+    EXPECT_EQ(a.overflow_m3_per_s, 0.0) << i;
+    EXPECT_NEAR(b.level_m, a.level_m, 1e-9) << i;
+  }
+  // The chain comes to rest once the last cycle has broken and nothing more arrives: the dry
+  // hours after it hold no point.
+  const double last_cycle_end = obs.of_kind(EpisodeKind::cycle).back().end_s;
+  EXPECT_LE(obs.points.back().time_s, std::max(last_cycle_end, kStart + 3600.0) + 1e-6);
+}
+
+TEST(Trace, TakingItChangesNothingInTheRun) {
+  const Scenario s = box_run();
+  TraceRecorder traced;
+  RecordingObserver plain;
+  const RunResult a = simulate(s, one_hour_of_inflow(s), traced);
+  const RunResult b = simulate(s, one_hour_of_inflow(s), plain);
+  EXPECT_EQ(a.totals.electrical_J, b.totals.electrical_J);
+  EXPECT_EQ(a.totals.nozzle_m3, b.totals.nozzle_m3);
+  EXPECT_EQ(a.cycles, b.cycles);
+  EXPECT_EQ(a.stats.steps, b.stats.steps);
+}
+
+TEST(TraceCsv, WritesTheColumnsOfTheOneTableInEitherUnits) {
+  Scenario s = box_run();
+  TracePoint p;
+  p.time_s = static_cast<double>(kStart) + 90.7;  // written to the second
+  p.level_m = 0.0254;                             // 1 in exactly (NIST)
+  p.release = ReleaseState::running;
+  p.release_m3_per_s = 3.785411784e-3 / 60.0;  // 1 US gal/min exactly (NIST)
+  p.overflow_m3_per_s = 0.0;
+  p.head_m = 0.3048;  // 1 ft exactly (NIST)
+  p.power_W = 2.5;
+  std::ostringstream si;
+  {
+    TraceWriter w(si, s, false);
+    w.on_trace(p);
+  }
+  EXPECT_EQ(si.str(),
+            "time,reservoir_level_mm,release_state,release_L_per_s,overflow_L_per_s,head_m,"
+            "power_W\n2025-03-01T00:01:30,25.4,running,0.0631,0,0.3048,2.5\n");
+  s.site.units = UnitSystem::us;
+  std::ostringstream us;
+  {
+    TraceWriter w(us, s, false);
+    w.on_trace(p);
+  }
+  EXPECT_EQ(us.str(),
+            "time,reservoir_level_in,release_state,release_gpm,overflow_gpm,head_ft,power_W\n"
+            "2025-03-01T00:01:30,1,running,1,0,1,2.5\n");
+}
+
+}  // namespace
+}  // namespace gutterwatt
