@@ -9,6 +9,7 @@
 #include <utility>
 
 #include "detail.hpp"
+#include "gutterwatt/fragments.hpp"
 #include "gutterwatt/storm.hpp"
 
 namespace gutterwatt {
@@ -354,7 +355,13 @@ double fit_intermittency(const RainSeries& as_read, const Disaggregation& how,
   return best;
 }
 
-bool is_random(DisaggregationMethod method) { return method == DisaggregationMethod::cascade; }
+bool is_random(DisaggregationMethod method) {
+  return method == DisaggregationMethod::cascade || method == DisaggregationMethod::fragments;
+}
+
+bool is_uncalibrated(const Disaggregation& how) {
+  return how.method == DisaggregationMethod::cascade && how.levels.empty() && !how.idf;
+}
 
 std::uint64_t realization_seed(std::uint64_t seed, std::uint64_t k) { return seed + k; }
 
@@ -364,12 +371,14 @@ std::string_view method_name(DisaggregationMethod method) {
       return "block";
     case DisaggregationMethod::cascade:
       return "cascade";
+    case DisaggregationMethod::fragments:
+      return "fragments";
     default:
       return storm_kind_name(nrcs_kind(method));  // the NRCS shapes share storm's names
   }
 }
 
-std::vector<double> disaggregate_interval(double depth_m, Instant length_s, std::uint64_t key,
+std::vector<double> disaggregate_interval(double depth_m, Instant length_s, Instant start,
                                           const Disaggregation& how, bool wet_before,
                                           bool wet_after) {
   assert(length_s >= 1 && how.step_s >= 1);
@@ -377,6 +386,17 @@ std::vector<double> disaggregate_interval(double depth_m, Instant length_s, std:
   if (how.method == DisaggregationMethod::block || length_s <= how.step_s ||
       (nrcs && length_s != kDay_s)) {
     return {depth_m};
+  }
+  const std::uint64_t seed = split_mix(how.seed ^ split_mix(static_cast<std::uint64_t>(start)));
+  if (how.method == DisaggregationMethod::fragments) {
+    const auto library =
+        std::find_if(how.fragments.begin(), how.fragments.end(),
+                     [&](const FragmentLibrary& l) { return l.length_s == length_s; });
+    if (library == how.fragments.end() || library->intervals.empty()) return {depth_m};
+    std::mt19937_64 rng(seed);
+    const Fragment& f = choose_fragment(*library, depth_m, season_day(start), wet_before, wet_after,
+                                        detail::uniform_open(rng));
+    return split_exactly(depth_m, f.cumulative);
   }
   const Instant steps = (length_s + how.step_s - 1) / how.step_s;
   // Boundary j of the steps, seconds after the interval's start.
@@ -390,7 +410,6 @@ std::vector<double> disaggregate_interval(double depth_m, Instant length_s, std:
   } else {
     int levels = 0;
     while (length_s > (how.step_s << levels)) ++levels;
-    const std::uint64_t seed = split_mix(how.seed ^ split_mix(key));
     const std::vector<double> weights =
         cascade_weights(levels, seed, how, length_s, depth_m, wet_before, wet_after);
     std::vector<double> before(weights.size() + 1, 0.0);  // weight of the boxes before box i
@@ -429,8 +448,8 @@ RainSeries disaggregate(const RainSeries& as_read, const Disaggregation& how) {
     // A wet interval right before or after: the storm goes on across the interval's ends.
     const bool wet_before = k > 0 && pulses[k - 1].end == p.start;
     const bool wet_after = k + 1 < pulses.size() && pulses[k + 1].start == p.end;
-    const std::vector<double> parts = disaggregate_interval(
-        p.depth_m, length_s, static_cast<std::uint64_t>(p.start), how, wet_before, wet_after);
+    const std::vector<double> parts =
+        disaggregate_interval(p.depth_m, length_s, p.start, how, wet_before, wet_after);
     if (parts.size() == 1) {
       out.pulses.push_back(p);
       continue;
@@ -443,7 +462,7 @@ RainSeries disaggregate(const RainSeries& as_read, const Disaggregation& how) {
       out.pulses.push_back({start, std::min(start + how.step_s, p.end), parts[j]});
     }
   }
-  if (spread && is_random(how.method) && how.levels.empty() && !how.idf) {
+  if (spread && is_uncalibrated(how)) {
     out.warnings.emplace_back(kUncalibratedWarning);
   }
   // A daily record says so when it is read.

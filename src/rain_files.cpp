@@ -8,6 +8,7 @@
 
 #include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/fragments.hpp"
 
 namespace gutterwatt {
 
@@ -186,12 +187,33 @@ RainSeries load_rain_as_read(const RainConfig& config, const std::filesystem::pa
   return join_rain(std::move(parts), labels);
 }
 
+namespace {
+
+// A fragment library for each interval length of `as_read` longer than `step_s`, cut at the
+// phase of the first interval of that length.
+std::vector<FragmentLibrary> fragment_libraries(const RainSeries& as_read, const RainSeries& fine,
+                                                Instant step_s) {
+  std::vector<FragmentLibrary> out;
+  for (const RainPulse& p : as_read.pulses) {
+    const Instant length_s = p.end - p.start;
+    if (length_s <= step_s || std::any_of(out.begin(), out.end(), [&](const FragmentLibrary& l) {
+          return l.length_s == length_s;
+        })) {
+      continue;
+    }
+    out.push_back(build_fragment_library(fine, length_s, p.start, step_s));
+  }
+  return out;
+}
+
+}  // namespace
+
 std::optional<Disaggregation> calibrated_disaggregation(const RainConfig& config,
                                                         const RainSeries& as_read,
                                                         const std::atomic<bool>* stop) {
   if (!config.disaggregate) return config.disaggregate;
   Disaggregation how = *config.disaggregate;
-  if (how.idf && is_random(how.method)) {
+  if (how.idf && how.method == DisaggregationMethod::cascade) {
     how.intermittency = fit_intermittency(as_read, how, *how.idf);
     return how;
   }
@@ -214,10 +236,31 @@ std::optional<Disaggregation> calibrated_disaggregation(const RainConfig& config
                          format_duration(how.step_s) +
                          "): a calibration record must have the target step or a finer one");
   }
+  const bool fragments = how.method == DisaggregationMethod::fragments;
+  if (fragments && how.step_s % fine.step_s != 0) {
+    throw InputError(label, 0, key,
+                     "the record's step (" + format_duration(fine.step_s) +
+                         ") does not divide rain.disaggregate.step (" +
+                         format_duration(how.step_s) +
+                         "): method: fragments adds the record up to the target step");
+  }
   if (fine.pulses.empty()) {
     throw InputError(label, 0, key,
-                     "no interval with rain: a dry record cannot calibrate the "
-                     "cascade");
+                     std::string("no interval with rain: a dry record cannot calibrate the ") +
+                         (fragments ? "fragments" : "cascade"));
+  }
+  if (fragments) {
+    how.fragments = fragment_libraries(as_read, fine, how.step_s);
+    for (const FragmentLibrary& library : how.fragments) {
+      if (library.intervals.empty()) {
+        throw InputError(label, 0, key,
+                         "no whole interval of " + format_duration(library.length_s) +
+                             " with rain (the record's intervals of that length, as the "
+                             "target record's are cut, are all dry or not covered in full); "
+                             "give a longer record");
+      }
+    }
+    return how;
   }
   Instant longest_s = 0;
   for (const RainPulse& p : as_read.pulses) longest_s = std::max(longest_s, p.end - p.start);

@@ -26,7 +26,7 @@ std::size_t realization_count(std::size_t asked, const RainConfig& rain) {
         rain.disaggregate
             ? "method: " + std::string(method_name(rain.disaggregate->method)) +
                   " spreads the record the same way every time, so every realization would be "
-                  "the same run; use method: cascade, or leave --realizations out"
+                  "the same run; use method: cascade or fragments, or leave --realizations out"
             : "the record is used as read (no rain.disaggregate), so every realization would be "
               "the same run; leave --realizations out");
   }

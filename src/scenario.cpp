@@ -284,10 +284,17 @@ void apply_disaggregate(const Value& v, Scenario& s) {
   const auto at = [&](const std::string& name) { return given.find(name); };
   const bool nrcs = d.method != DisaggregationMethod::block && !is_random(d.method);
   const std::string method = "method: " + std::string(method_name(d.method));
-  for (const char* key : {"calibrate_with", "idf"}) {
-    if (at(key) != given.end() && !is_random(d.method)) {
-      at(key)->second.fail("is for method: cascade only (got " + method + ")");
-    }
+  if (at("calibrate_with") != given.end() && !is_random(d.method)) {
+    at("calibrate_with")
+        ->second.fail("is for method: cascade or fragments only (got " + method + ")");
+  }
+  if (at("idf") != given.end() && d.method != DisaggregationMethod::cascade) {
+    at("idf")->second.fail("is for method: cascade only (got " + method + ")");
+  }
+  if (d.method == DisaggregationMethod::fragments && at("calibrate_with") == given.end()) {
+    at("method")->second.fail(
+        "fragments needs rain.disaggregate.calibrate_with: a fine record whose intervals lend "
+        "their patterns");
   }
   if (at("calibrate_with") != given.end() && at("idf") != given.end()) {
     at("idf")->second.fail(

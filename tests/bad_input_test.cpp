@@ -462,7 +462,7 @@ TEST(BadRainDaily, UnknownMethodListsTheMethods) {
                            "  format: daily\n  disaggregate: {method: nrcs}\n");
   expect_bad(check(s), s.scenario +
                            ":6: rain.disaggregate.method: expected one of block, nrcs-I, "
-                           "nrcs-IA, nrcs-II, nrcs-III or cascade, got \"nrcs\"");
+                           "nrcs-IA, nrcs-II, nrcs-III, cascade or fragments, got \"nrcs\"");
 }
 
 TEST(BadRainDaily, IntensityValuesAreRefused) {

@@ -108,6 +108,25 @@ TEST(Cli, CheckShowsADailyRecordAsReadAndAsDisaggregated) {
   EXPECT_NE(r.out.find("  record disaggregated by cascade, 5min steps\n"), std::string::npos);
 }
 
+// The daily demo spread by the method of fragments from the invented nearby gauge: check shows
+// the record as disaggregated, run draws realizations, and being calibrated it prints neither the
+// uncalibrated cascade's warning nor the methods' span.
+TEST(Cli, FragmentsRunFromTheWalkthroughScenario) {
+  const fs::path dir = scratch("cli-fragments");
+  const std::string scenario = source("scenarios/daily-fragments.yaml");
+  const Outcome check = run("check " + scenario, dir);
+  ASSERT_EQ(check.status, 0) << check.err;
+  EXPECT_NE(check.out.find("  record disaggregated by fragments, 5min steps\n"), std::string::npos)
+      << check.out;
+  const Outcome r =
+      run("run " + scenario + " --quiet --realizations 3 --out " + (dir / "out").string(), dir);
+  ASSERT_EQ(r.status, 0) << r.err;
+  EXPECT_EQ(r.err.find("uncalibrated"), std::string::npos) << r.err;
+  EXPECT_EQ(r.err.find("the methods give"), std::string::npos) << r.err;
+  const auto summary = nlohmann::json::parse(slurp(dir / "out" / "summary.json"));
+  EXPECT_EQ(summary["realizations"]["n"].get<int>(), 3);
+}
+
 // The spread of three realizations against three single runs made with the seeds 1, 2, 3.
 // source: Hyndman & Fan (1996) definition 7 worked by hand for n = 3: h = 2p + 1, so
 // P10 = x1 + 0.2 (x2 - x1), P50 = x2, P90 = x2 + 0.8 (x3 - x2).
@@ -192,7 +211,7 @@ TEST(Cli, RealizationsNeedARandomDisaggregation) {
                      (dir / "out").string(),
                  dir),
              "--realizations: method: nrcs-II spreads the record the same way every time, so "
-             "every realization would be the same run; use method: cascade, or leave "
+             "every realization would be the same run; use method: cascade or fragments, or leave "
              "--realizations out");
   EXPECT_FALSE(fs::exists(dir / "out"));
 }

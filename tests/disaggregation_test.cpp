@@ -6,8 +6,10 @@
 #include <cmath>
 #include <sstream>
 #include <string>
+#include <utility>
 #include <vector>
 
+#include "gutterwatt/fragments.hpp"
 #include "gutterwatt/rain_input.hpp"
 
 namespace gutterwatt {
@@ -19,10 +21,38 @@ constexpr Instant kT0 = 1740787200;
 constexpr Instant kHour = 3600;
 constexpr Instant kDay = 86400;
 
+// An invented fine record at 1 minute for the fragments' libraries: 40 days from 20 days before
+// kT0, wet from 03:00 to 09:00 in 20-minute spells 20 minutes apart, 0.01 to 0.13 mm a minute.
+RainSeries fine_minutes() {
+  RainSeries fine;
+  fine.step_s = 60;
+  const Instant start = kT0 - 20 * kDay;
+  fine.covered = {{start, start + 40 * kDay}};
+  for (Instant d = 0; d < 40; ++d) {
+    for (Instant m = 180; m < 540; ++m) {
+      if ((m / 20) % 2 != 0) continue;
+      const Instant t = start + d * kDay + 60 * m;
+      fine.pulses.push_back({t, t + 60, static_cast<double>(1 + (m + d) % 13) * 1e-5});
+    }
+  }
+  fine.total_depth_m = sum_depths_m(fine.pulses);
+  return fine;
+}
+
+// The method with the step; for fragments, libraries of days, hours and half-hours from
+// fine_minutes().
 Disaggregation method(DisaggregationMethod m, Instant step_s = 300) {
   Disaggregation how;
   how.method = m;
   how.step_s = step_s;
+  if (m == DisaggregationMethod::fragments) {
+    const RainSeries fine = fine_minutes();
+    for (const Instant length_s : {kDay, kHour, Instant{1800}}) {
+      if (length_s > step_s) {
+        how.fragments.push_back(build_fragment_library(fine, length_s, 0, step_s));
+      }
+    }
+  }
   return how;
 }
 
@@ -89,8 +119,12 @@ TEST(Disaggregation, ConservesEachDayExactlyForEveryMethod) {
 TEST(Disaggregation, ConservesEachIntervalOfACoarseSeriesExactly) {
   const RainSeries as_read = read_series(kHourly);
   ASSERT_EQ(as_read.step_s, kHour);
-  for (const Instant step_s : {Instant{300}, Instant{1800}, Instant{420}}) {
-    const RainSeries rain = disaggregate(as_read, method(DisaggregationMethod::cascade, step_s));
+  for (const auto& [m, step_s] : {std::pair{DisaggregationMethod::cascade, Instant{300}},
+                                  std::pair{DisaggregationMethod::cascade, Instant{1800}},
+                                  std::pair{DisaggregationMethod::cascade, Instant{420}},
+                                  std::pair{DisaggregationMethod::fragments, Instant{300}},
+                                  std::pair{DisaggregationMethod::fragments, Instant{420}}}) {
+    const RainSeries rain = disaggregate(as_read, method(m, step_s));
     const std::vector<Instant> ends = {kT0,
                                        kT0 + kHour,
                                        kT0 + 2 * kHour,
@@ -467,6 +501,7 @@ TEST(Disaggregation, NumbersRealizationsFromTheGivenSeed) {
   EXPECT_EQ(realization_seed(42, 19), 61u);
   EXPECT_EQ(realization_seed(18446744073709551615ULL, 1), 0u);
   EXPECT_TRUE(is_random(DisaggregationMethod::cascade));
+  EXPECT_TRUE(is_random(DisaggregationMethod::fragments));
   EXPECT_FALSE(is_random(DisaggregationMethod::nrcs_ii));
 }
 

@@ -303,7 +303,7 @@ TEST(RainScenario, SuggestsTheNearestDisaggregationKey) {
 TEST(RainScenario, RejectsAnUnknownMethod) {
   EXPECT_EQ(scenario_error_of("  file: d.csv\n  format: daily\n  disaggregate: {method: nrcs}\n"),
             "demo.yaml:4: rain.disaggregate.method: expected one of block, nrcs-I, nrcs-IA, "
-            "nrcs-II, nrcs-III or cascade, got \"nrcs\"");
+            "nrcs-II, nrcs-III, cascade or fragments, got \"nrcs\"");
 }
 
 TEST(RainScenario, KeepsNrcsToItsTwentyFourHours) {
@@ -470,18 +470,18 @@ std::string fine_record(int days, int step_min = 5, double mm = 0.4) {
 
 class RainCalibration : public RainFiles {
  protected:
-  Scenario scenario_with(const std::string& calibrate_with) {
+  Scenario scenario_with(const std::string& calibrate_with, const std::string& method = "cascade") {
     write("daily.csv", "date,rain_mm\n2025-03-01,12\n2025-03-02,3\n");
     return parse_scenario(
         "rain:\n  file: daily.csv\n  format: daily\n"
-        "  disaggregate:\n    method: cascade\n    calibrate_with: " +
-            calibrate_with + "\n" + kScenarioRest,
+        "  disaggregate:\n    method: " +
+            method + "\n    calibrate_with: " + calibrate_with + "\n" + kScenarioRest,
         "demo.yaml", dir_);
   }
 
-  std::string error_with(const std::string& calibrate_with) {
+  std::string error_with(const std::string& calibrate_with, const std::string& method = "cascade") {
     try {
-      load_rain(scenario_with(calibrate_with).rain);
+      load_rain(scenario_with(calibrate_with, method).rain);
     } catch (const InputError& e) {
       return e.what();
     }
@@ -547,6 +547,73 @@ TEST_F(RainCalibration, NamesAMissingCalibrationFile) {
             label("none.csv") + ": rain.disaggregate.calibrate_with.file: no such file");
   EXPECT_EQ(error_with("{time_column: t}"),
             "demo.yaml:6: rain.disaggregate.calibrate_with.file: missing required key");
+}
+
+// ---- the method of fragments ----
+
+TEST_F(RainCalibration, SpreadsEachDayByTheFineRecordsDays) {
+  // Every day of fine_record(3) rains 0.4 mm in each 5-minute step of the half-hours from 06:00,
+  // 07:00, ..., 11:00 (36 steps): a library of one pattern, so each day of the daily record gets
+  // it, its total shared equally: 12 mm / 36 on 2025-03-01 and 3 mm / 36 on 03-02 (by hand).
+  write("gauge.csv", fine_record(3));
+  const Scenario s = scenario_with("{file: gauge.csv}", "fragments");
+  const RainSeries as_read = load_rain_as_read(s.rain);
+  const std::optional<Disaggregation> how = calibrated_disaggregation(s.rain, as_read);
+  ASSERT_TRUE(how);
+  ASSERT_EQ(how->fragments.size(), 1u);
+  EXPECT_EQ(how->fragments[0].intervals.size(), 3u);
+  const RainSeries rain = load_rain(s.rain);
+  ASSERT_EQ(rain.pulses.size(), 72u);
+  for (std::size_t k = 0; k < rain.pulses.size(); ++k) {
+    const RainPulse& p = rain.pulses[k];
+    const Instant minute = (p.start - as_read.pulses[k / 36].start) / 60;
+    EXPECT_TRUE(minute >= 360 && minute < 720 && (minute / 30) % 2 == 0) << minute;
+    EXPECT_NEAR(p.depth_m, (k < 36 ? 12e-3 : 3e-3) / 36, 1e-17);
+  }
+  EXPECT_EQ(sum_depths_m(rain.pulses), as_read.total_depth_m);
+}
+
+TEST_F(RainCalibration, RefusesFragmentsWithoutACalibrationRecord) {
+  EXPECT_EQ(scenario_error_of("  file: daily.csv\n  format: daily\n"
+                              "  disaggregate: {method: fragments}\n"),
+            "demo.yaml:4: rain.disaggregate.method: fragments needs "
+            "rain.disaggregate.calibrate_with: a fine record whose intervals lend their patterns");
+  EXPECT_EQ(scenario_error_of("  file: daily.csv\n  format: daily\n"
+                              "  disaggregate: {method: fragments, idf: {a: 1, b: 1, c: 0.5}}\n"),
+            "demo.yaml:4: rain.disaggregate.idf: is for method: cascade only (got method: "
+            "fragments)");
+}
+
+TEST_F(RainCalibration, RefusesFragmentsFromACoarseDryOrMisfittingRecord) {
+  write("hourly.csv", fine_record(3, 60));
+  EXPECT_EQ(error_with("{file: hourly.csv}", "fragments"),
+            label("hourly.csv") +
+                ": rain.disaggregate.calibrate_with: the record's step (1h) is coarser than "
+                "rain.disaggregate.step (5min): a calibration record must have the target step or "
+                "a finer one");
+  write("three.csv", fine_record(3, 3));
+  EXPECT_EQ(error_with("{file: three.csv}", "fragments"),
+            label("three.csv") +
+                ": rain.disaggregate.calibrate_with: the record's step (3min) does not divide "
+                "rain.disaggregate.step (5min): method: fragments adds the record up to the "
+                "target step");
+  write("dry.csv", fine_record(1, 5, 0.0));
+  EXPECT_EQ(error_with("{file: dry.csv}", "fragments"),
+            label("dry.csv") +
+                ": rain.disaggregate.calibrate_with: no interval with rain: a dry record cannot "
+                "calibrate the fragments");
+  // Rain, but no whole day of it: 06:00 to 18:00 only.
+  std::string half = "time,rain_mm\n";
+  for (int m = 365; m <= 1080; m += 5) {
+    half += "2025-04-01T" + std::to_string(m / 600) + std::to_string(m / 60 % 10) + ":" +
+            std::to_string(m % 60 / 10) + std::to_string(m % 10) + (m == 365 ? ",1\n" : ",0\n");
+  }
+  write("half.csv", half);
+  EXPECT_EQ(error_with("{file: half.csv}", "fragments"),
+            label("half.csv") +
+                ": rain.disaggregate.calibrate_with: no whole interval of 1d with rain (the "
+                "record's intervals of that length, as the target record's are cut, are all dry "
+                "or not covered in full); give a longer record");
 }
 
 }  // namespace

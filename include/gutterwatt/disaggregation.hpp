@@ -15,11 +15,14 @@ namespace gutterwatt {
 /// `how.step_s` (the last one shorter when the step does not divide the length); the interval
 /// as one value when it is no longer than a step or the method is `block`. Every depth is a
 /// whole multiple of the spacing of doubles at `depth_m`, so the depths add up to `depth_m`
-/// exactly in any order. `key` (with `how.seed`) picks the cascade's draw. An NRCS method needs
-/// `length_s` of 24 h; another length is returned as one value. A calibrated cascade takes the
-/// intervals before and after as wet or dry (`wet_before`, `wet_after`) for the position of the
-/// boxes at its ends.
-std::vector<double> disaggregate_interval(double depth_m, Instant length_s, std::uint64_t key,
+/// exactly in any order. The interval's `start` (with `how.seed`) picks the random draw, and
+/// places the interval in the season for `fragments`. An NRCS method needs `length_s` of 24 h;
+/// another length is returned as one value. A calibrated cascade takes the intervals before and
+/// after as wet or dry (`wet_before`, `wet_after`) for the position of the boxes at its ends;
+/// `fragments` picks among the library intervals with the same neighbour states (choose_fragment)
+/// in the library of `length_s` in `how.fragments`; without one the interval is returned as one
+/// value (calibrated_disaggregation builds one for every interval length of the record).
+std::vector<double> disaggregate_interval(double depth_m, Instant length_s, Instant start,
                                           const Disaggregation& how, bool wet_before = false,
                                           bool wet_after = false);
 
@@ -29,8 +32,8 @@ inline constexpr std::string_view kUncalibratedWarning =
     "may make the rain far burstier or smoother than it is where you are; calibrate them with "
     "rain.disaggregate.calibrate_with (a short fine record from a nearby gauge)";
 
-/// The record with every pulse longer than `how.step_s` spread by disaggregate_interval (the
-/// pulse's start instant is its key); coverage, gaps, warnings and the total depth are those of
+/// The record with every pulse longer than `how.step_s` spread by disaggregate_interval;
+/// coverage, gaps, warnings and the total depth are those of
 /// `as_read`, and `step_s` becomes `how.step_s` when a pulse was spread. Each pulse's depth is
 /// conserved exactly. A record that is not daily (step other than 1 d) gains a warning like
 /// kDailyWarning when a pulse was spread, and an uncalibrated cascade kUncalibratedWarning.
@@ -71,8 +74,11 @@ inline constexpr Instant kIdfCheckDurations_s[] = {300, 900, 3600};
 /// `how.step_s` are left out. A project method (common practice, no source).
 double fit_intermittency(const RainSeries& as_read, const Disaggregation& how, const IdfCurve& idf);
 
-/// True when the method draws at random (the cascade): its realizations differ by seed.
+/// True when the method draws at random (cascade, fragments): its realizations differ by seed.
 bool is_random(DisaggregationMethod method);
+
+/// True for a cascade with neither calibration (levels) nor an IDF curve: it runs on defaults.
+bool is_uncalibrated(const Disaggregation& how);
 
 /// The seed of realization `k` (0-based) of a record disaggregated with `seed`: `seed + k`
 /// (modulo 2^64), so realization 0 is the single run and any realization can be repeated alone

@@ -13,14 +13,16 @@
 namespace gutterwatt {
 
 /// `block` keeps each interval's rain at constant intensity; the NRCS methods spread a day by
-/// the TR-55 24-hour shape of their region; `cascade` by a random cascade.
-enum class DisaggregationMethod { block, nrcs_i, nrcs_ia, nrcs_ii, nrcs_iii, cascade };
+/// the TR-55 24-hour shape of their region; `cascade` by a random cascade; `fragments` by the
+/// pattern of a similar interval of a fine calibration record.
+enum class DisaggregationMethod { block, nrcs_i, nrcs_ia, nrcs_ii, nrcs_iii, cascade, fragments };
 
 /// Every method, in the order the scenario's messages list them; their scenario names are
 /// method_name's (disaggregation.hpp), the one list of them.
 inline constexpr DisaggregationMethod kDisaggregationMethods[] = {
-    DisaggregationMethod::block,   DisaggregationMethod::nrcs_i,   DisaggregationMethod::nrcs_ia,
-    DisaggregationMethod::nrcs_ii, DisaggregationMethod::nrcs_iii, DisaggregationMethod::cascade};
+    DisaggregationMethod::block,    DisaggregationMethod::nrcs_i,   DisaggregationMethod::nrcs_ia,
+    DisaggregationMethod::nrcs_ii,  DisaggregationMethod::nrcs_iii, DisaggregationMethod::cascade,
+    DisaggregationMethod::fragments};
 
 /// Where a daily record's total falls in its local day: [midnight + start_s,
 /// midnight + start_s + duration_s), inside the day (start_s + duration_s <= 86400). Whole
@@ -66,6 +68,27 @@ struct CascadeLevel {
   std::vector<CascadeSplit> classes;  ///< kCascadeClasses, or empty (pooled values only)
 };
 
+/// One wet interval of a calibration record as the method of fragments keeps it: its depth, the
+/// wet or dry state of the intervals just before and after it, when in the year it starts, and
+/// how its depth is shared among its steps.
+struct Fragment {
+  double depth_m = 0.0;
+  bool wet_before = false;
+  bool wet_after = false;
+  double season_day = 0.0;  ///< days since the start of the year, 0 to 365.2425 (see fragments.hpp)
+  /// Share of the depth that falls before each step boundary: steps + 1 values, 0 first, 1 last.
+  std::vector<double> cumulative;
+};
+
+/// The wet intervals of a calibration record cut into intervals of `length_s` starting at
+/// `phase_s` modulo `length_s` (as the target record's are), each split into steps of the
+/// target step.
+struct FragmentLibrary {
+  Instant length_s = 0;
+  Instant phase_s = 0;
+  std::vector<Fragment> intervals;  ///< wet ones, in time order
+};
+
 /// rain.disaggregate. Every record interval with rain that is longer than `step_s` is spread
 /// over steps of `step_s` (the last one shorter when `step_s` does not divide it); shorter
 /// intervals stay as read.
@@ -82,6 +105,9 @@ struct CascadeLevel {
 ///   project's defaults (Olsson lets the probabilities depend on the box's position and volume).
 ///   The seed and the interval's start fix its draw, so an interval disaggregates the same way
 ///   whatever else the record holds.
+/// - `fragments`: the method of fragments with k-nearest-neighbour resampling (fragments.hpp):
+///   each wet interval takes the within-interval pattern of a similar wet interval of a fine
+///   calibration record, scaled to its depth.
 struct Disaggregation {
   DisaggregationMethod method = DisaggregationMethod::block;
   DayWindow window;  ///< daily records only
@@ -95,6 +121,9 @@ struct Disaggregation {
   /// rain.disaggregate.idf: the 2-year IDF curve the cascade's intermittency is fitted to
   /// (fit_intermittency), when there is no fine record to calibrate with.
   std::optional<IdfCurve> idf;
+  /// fragments only: one library for each interval length of the record (from
+  /// rain.disaggregate.calibrate_with).
+  std::vector<FragmentLibrary> fragments;
 };
 
 }  // namespace gutterwatt

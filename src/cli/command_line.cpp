@@ -84,7 +84,7 @@ CommandLine parse_command_line(int argc, const char* const* argv) {
   run_cmd
       ->add_option("--realizations", run.realizations,
                    "disaggregations of a coarse record to run, seeds seed to seed + N - 1 "
-                   "(default 20 for method: cascade, else 1)")
+                   "(default 20 for method: cascade or fragments, else 1)")
       ->check(CLI::Range(1, 10000));
   add_units_option(run_cmd, run.units, "the scenario's site.units, else si");
 
@@ -112,7 +112,7 @@ CommandLine parse_command_line(int argc, const char* const* argv) {
   sweep_cmd
       ->add_option("--realizations", sweep.realizations,
                    "disaggregations of a coarse record each combination runs on; rank by the "
-                   "median (default 20 for method: cascade, else 1)")
+                   "median (default 20 for method: cascade or fragments, else 1)")
       ->check(CLI::Range(1, 10000));
   add_units_option(sweep_cmd, sweep.units, "the scenario's site.units, else si");
   sweep_cmd->add_option("--sites", sweep.sites,

@@ -171,7 +171,7 @@ int run_command(const RunArgs& args) {
   }
   RunWarnings warnings;
   warnings.run = rain.warnings;
-  if (spread && sc.rain.disaggregate->levels.empty() && !sc.rain.disaggregate->idf) {
+  if (spread && is_uncalibrated(*sc.rain.disaggregate)) {
     warnings.run.push_back(method_spread(sc, rain_as_read, spread->energy_Wh.p50, spread->n));
   }
   for (const std::string& w :

@@ -1,0 +1,54 @@
+#pragma once
+/// The method of fragments with k-nearest-neighbour resampling: a coarse interval's depth is
+/// spread over its steps by the pattern ("fragments": the shares of the interval's depth in each
+/// step) of a similar wet interval of a fine calibration record. Sharma & Srikanthan (2006),
+/// Continuous rainfall simulation: a nonparametric alternative, 30th Hydrology and Water
+/// Resources Symposium, Launceston; the choice among similar days conditioned on the wet or dry
+/// state of the days before and after and on a window of the season after Westra, Mehrotra,
+/// Sharma & Srikanthan (2012), Continuous rainfall simulation: 1. A regionalized subdaily
+/// disaggregation approach, Water Resources Research 48, W01535; the draw among the k nearest
+/// with weights 1/j after Lall & Sharma (1996), A nearest neighbor bootstrap for resampling
+/// hydrologic time series, Water Resources Research 32(3), 679-693. The details below (the
+/// ±15-day window, how it widens, distance on the depth alone) are from memory of these papers.
+
+#include <cstddef>
+#include <vector>
+
+#include "gutterwatt/disaggregation_config.hpp"
+#include "gutterwatt/rain_input.hpp"
+
+namespace gutterwatt {
+
+/// Days of the mean Gregorian year: a start's place in the season is its day count since the
+/// epoch modulo this (whole-day precision is all the season window needs).
+inline constexpr double kSeasonYear_days = 365.2425;
+
+/// Where an instant falls in the year, days from 0 to kSeasonYear_days.
+double season_day(Instant t);
+
+/// The library of `fine` (a series at a step that divides `step_s`) for intervals of `length_s`
+/// (> `step_s`) starting at `phase_s` modulo `length_s`: every such interval the record covers
+/// in full and that holds rain, with its depth added up over steps of `step_s` from its start (the
+/// last shorter when `step_s` does not divide `length_s`; a pulse counts in the step it starts
+/// in). An interval just before or after one that is not covered in full counts as dry.
+FragmentLibrary build_fragment_library(const RainSeries& fine, Instant length_s, Instant phase_s,
+                                       Instant step_s);
+
+/// Fewest library intervals the choice is made among: the season window widens (±15, 30, 61
+/// days, then the whole year) and then the wet or dry state of the neighbours is let go until
+/// there are this many (a project choice, common practice, no source).
+inline constexpr std::size_t kMinFragmentCandidates = 10;
+
+/// Weights of the j-th nearest of k neighbours, j = 1..k: (1/j) / sum over i of 1/i (Lall &
+/// Sharma 1996, eq. 5 as remembered).
+std::vector<double> knn_weights(std::size_t k);
+
+/// The library interval whose fragments spread an interval of `depth_m` starting `when` in the
+/// season (season_day), with wet or dry neighbours: among the candidates (the same neighbour
+/// states, within the season window; see kMinFragmentCandidates), the k = round(sqrt(n)) nearest
+/// in depth (ties: the earlier one), drawn with knn_weights by `u` in [0, 1). `library` holds at
+/// least one interval.
+const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, double when,
+                                bool wet_before, bool wet_after, double u);
+
+}  // namespace gutterwatt

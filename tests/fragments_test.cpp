@@ -1,0 +1,137 @@
+#include "gutterwatt/fragments.hpp"
+
+#include <gtest/gtest.h>
+
+#include <vector>
+
+#include "gutterwatt/disaggregation.hpp"
+
+namespace gutterwatt {
+namespace {
+
+// Seconds since the epoch of 2025-03-01T00:00Z.
+// source: POSIX.1-2017 Base Definitions 4.16 (Seconds Since the Epoch), formula worked by hand.
+constexpr Instant kT0 = 1740787200;
+constexpr Instant kHour = 3600;
+
+// An invented fine record at 1 minute covering kT0 to kT0 + 3 h: in the first hour 0.2 mm a
+// minute over minutes 10-14 and 0.6 mm over minutes 15-19 (1 mm, then 3 mm); in the second hour
+// 0.5 mm in minute 40; the third hour dry.
+RainSeries one_pattern() {
+  RainSeries fine;
+  fine.step_s = 60;
+  fine.covered = {{kT0, kT0 + 3 * kHour}};
+  for (Instant m = 10; m < 20; ++m) {
+    fine.pulses.push_back({kT0 + 60 * m, kT0 + 60 * (m + 1), m < 15 ? 0.2e-3 : 0.6e-3});
+  }
+  fine.pulses.push_back({kT0 + kHour + 2400, kT0 + kHour + 2460, 0.5e-3});
+  fine.total_depth_m = sum_depths_m(fine.pulses);
+  return fine;
+}
+
+TEST(Fragments, KnnWeightsAreOneOverJNormalised) {
+  // Lall & Sharma (1996): weight of the j-th nearest (1/j) / sum 1/i. Hand values: k = 3,
+  // sum 1 + 1/2 + 1/3 = 11/6, so 6/11, 3/11, 2/11.
+  const std::vector<double> w = knn_weights(3);
+  ASSERT_EQ(w.size(), 3u);
+  EXPECT_DOUBLE_EQ(w[0], 6.0 / 11.0);
+  EXPECT_DOUBLE_EQ(w[1], 3.0 / 11.0);
+  EXPECT_DOUBLE_EQ(w[2], 2.0 / 11.0);
+  EXPECT_EQ(knn_weights(1), std::vector<double>{1.0});
+}
+
+TEST(Fragments, LibraryKeepsEachWetIntervalsSharesByStep) {
+  const FragmentLibrary library = build_fragment_library(one_pattern(), kHour, 0, 300);
+  ASSERT_EQ(library.intervals.size(), 2u);  // the dry third hour is left out
+  const Fragment& first = library.intervals[0];
+  // Hand: 1 mm in the step 10-15 min (index 2) and 3 mm in 15-20 min (index 3) of 4 mm.
+  EXPECT_DOUBLE_EQ(first.depth_m, 4e-3);
+  std::vector<double> expected(13, 1.0);
+  expected[0] = expected[1] = expected[2] = 0.0;
+  expected[3] = 0.25;
+  EXPECT_EQ(first.cumulative, expected);
+  EXPECT_FALSE(first.wet_before);
+  EXPECT_TRUE(first.wet_after);
+  // 2025-03-01 is 20148 days after the epoch: 20148 - 55 * 365.2425 = 59.66 days into the year.
+  EXPECT_NEAR(first.season_day, 59.66, 0.01);
+  const Fragment& second = library.intervals[1];
+  EXPECT_TRUE(second.wet_before);
+  EXPECT_FALSE(second.wet_after);  // the third hour is dry
+  EXPECT_EQ(second.cumulative[8], 0.0);
+  EXPECT_EQ(second.cumulative[9], 1.0);  // all of it in 40-45 min
+}
+
+TEST(Fragments, ALibraryOfOnePatternReproducesIt) {
+  Disaggregation how;
+  how.method = DisaggregationMethod::fragments;
+  how.step_s = 300;
+  RainSeries fine = one_pattern();
+  fine.pulses.resize(10);  // the first hour's pattern only
+  how.fragments.push_back(build_fragment_library(fine, kHour, 0, 300));
+  for (std::uint64_t seed = 1; seed <= 5; ++seed) {
+    how.seed = seed;
+    const std::vector<double> parts = disaggregate_interval(8e-3, kHour, kT0 + 7 * kHour, how);
+    ASSERT_EQ(parts.size(), 12u);
+    // Hand: a quarter of 8 mm in 10-15 min, the rest in 15-20 min, nothing elsewhere.
+    for (std::size_t j = 0; j < parts.size(); ++j) {
+      // Within a unit in the last place of 8 mm (the parts are whole multiples of it).
+      if (j == 2) {
+        EXPECT_NEAR(parts[j], 2e-3, 2e-18);
+      } else if (j == 3) {
+        EXPECT_NEAR(parts[j], 6e-3, 2e-18);
+      } else {
+        EXPECT_EQ(parts[j], 0.0) << j;
+      }
+    }
+    EXPECT_EQ(parts[2] + parts[3], 8e-3);  // exactly
+  }
+}
+
+// A library by hand: 16 intervals of 1 to 16 mm with both neighbours dry on day 100 of the year;
+// 10 of 5.1 mm after a wet interval, on day 100; 5 of 5.1 mm with dry neighbours on day 300.
+FragmentLibrary hand_library() {
+  FragmentLibrary library;
+  library.length_s = kHour;
+  const auto add = [&](double mm, bool before, double day) {
+    library.intervals.push_back({mm * 1e-3, before, false, day, {0.0, 1.0}});
+  };
+  for (int mm = 1; mm <= 16; ++mm) add(mm, false, 100.0);
+  for (int i = 0; i < 10; ++i) add(5.1, true, 100.0);
+  for (int i = 0; i < 5; ++i) add(5.1, false, 300.0);
+  return library;
+}
+
+TEST(Fragments, DrawsAmongTheKNearestOfTheSameStatesAndSeason) {
+  const FragmentLibrary library = hand_library();
+  // 16 candidates (same states, within 15 days), k = round(sqrt(16)) = 4; nearest to 5.1 mm:
+  // 5, 6, 4, 7 mm. Weights 1/j over 25/12: 12/25, 6/25, 4/25, 3/25; cumulative 0.48, 0.72, 0.88.
+  const auto depth_mm = [&](double u) {
+    return choose_fragment(library, 5.1e-3, 100.0, false, false, u).depth_m * 1e3;
+  };
+  EXPECT_DOUBLE_EQ(depth_mm(0.47), 5.0);
+  EXPECT_DOUBLE_EQ(depth_mm(0.49), 6.0);
+  EXPECT_DOUBLE_EQ(depth_mm(0.75), 4.0);
+  EXPECT_DOUBLE_EQ(depth_mm(0.95), 7.0);
+}
+
+TEST(Fragments, WidensTheSeasonThenLetsTheNeighboursGo) {
+  const FragmentLibrary library = hand_library();
+  // Day 300, dry neighbours: 5 within the window, too few (10); the whole year gives 21,
+  // k = round(sqrt(21)) = 5: the five of 5.1 mm on day 300 are nearest (distance 0).
+  for (const double u : {0.1, 0.5, 0.99}) {
+    EXPECT_EQ(choose_fragment(library, 5.1e-3, 300.0, false, false, u).season_day, 300.0);
+  }
+  // Wet on both sides: no interval in the library is; any state within 15 days of day 100
+  // gives 26, k = 5; the nearest are the ten of 5.1 mm after a wet one (the earliest on a tie).
+  EXPECT_TRUE(choose_fragment(library, 5.1e-3, 100.0, true, true, 0.5).wet_before);
+}
+
+TEST(Fragments, SeasonGoesRoundTheYear) {
+  // 1970-01-01 is day 0; 365 days later is 365 of 365.2425.
+  EXPECT_EQ(season_day(0), 0.0);
+  EXPECT_DOUBLE_EQ(season_day(365 * 86400), 365.0);
+  EXPECT_NEAR(season_day(366 * 86400), 0.7575, 1e-9);
+}
+
+}  // namespace
+}  // namespace gutterwatt
