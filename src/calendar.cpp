@@ -10,6 +10,7 @@
 #include <sstream>
 #include <stdexcept>
 #include <string>
+#include <string_view>
 
 #include "detail.hpp"
 #include "gutterwatt/units.hpp"
@@ -63,9 +64,16 @@ std::int64_t days_from_civil(const date::year_month_day& ymd) {
 
 // Appends a zero-padded number of at least `width` digits (a leading `-` for negatives).
 void append_padded(std::string& out, long long value, int width) {
-  char buffer[32];
-  const int n = std::snprintf(buffer, sizeof buffer, "%0*lld", width, value);
-  out.append(buffer, static_cast<std::size_t>(n));
+  if (value < 0) {
+    out += '-';
+    --width;
+  }
+  char digits[24];
+  const char* end = std::to_chars(digits, digits + sizeof digits, value).ptr;
+  std::string_view text(digits, static_cast<std::size_t>(end - digits));
+  if (value < 0) text.remove_prefix(1);
+  if (static_cast<int>(text.size()) < width) out.append(width - text.size(), '0');
+  out += text;
 }
 
 void append_offset(std::string& out, int offset_s) {

@@ -126,10 +126,17 @@ inline std::optional<double> to_number(std::string_view text) {
 }
 
 /// `v` with `decimals` places (printf `%.*f`), never a negative zero (`-0.00` prints `0.00`).
+/// std::to_chars gives printf's text in the C locale without its format parsing: a tenth of the
+/// instructions, which matter for trace.csv's rows (issue 16).
 inline std::string fixed(double v, int decimals) {
   char buf[400];
-  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-  std::string out = buf;
+  const auto [end, ec] =
+      std::to_chars(buf, buf + sizeof buf, v, std::chars_format::fixed, decimals);
+  std::string out = ec == std::errc() ? std::string(buf, end) : std::string();
+  if (ec != std::errc()) {
+    std::snprintf(buf, sizeof buf, "%.*f", decimals, v);  // past 400 characters: truncated
+    out = buf;
+  }
   if (out.find_first_not_of("-0.") == std::string::npos && out[0] == '-') out.erase(0, 1);
   return out;
 }

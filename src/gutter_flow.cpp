@@ -101,10 +101,25 @@ double GutterDelivery::profile_volume_m3(double outlet_depth_m) const {
 }
 
 std::pair<std::size_t, double> GutterDelivery::locate(double volume_m3) const {
-  const auto it = std::upper_bound(volumes_m3_.begin(), volumes_m3_.end(), volume_m3);
-  if (it == volumes_m3_.end()) return {volumes_m3_.size() - 2, 1.0};
-  const std::size_t k =
-      it == volumes_m3_.begin() ? 0 : static_cast<std::size_t>(it - volumes_m3_.begin()) - 1;
+  // The solver asks for volumes close to the last one: try its cell and the two beside it before
+  // a binary search (the "hunt" of Press et al., Numerical Recipes, 3rd ed., 2007, section 3.1).
+  const std::size_t last = volumes_m3_.size() - 1;
+  std::size_t k = hint_;
+  const auto holds = [&](std::size_t c) {
+    return volumes_m3_[c] <= volume_m3 && volume_m3 < volumes_m3_[c + 1];
+  };
+  if (!holds(k)) {
+    if (k + 1 < last && holds(k + 1)) {
+      ++k;
+    } else if (k > 0 && holds(k - 1)) {
+      --k;
+    } else {
+      const auto it = std::upper_bound(volumes_m3_.begin(), volumes_m3_.end(), volume_m3);
+      if (it == volumes_m3_.end()) return {last - 1, 1.0};
+      k = it == volumes_m3_.begin() ? 0 : static_cast<std::size_t>(it - volumes_m3_.begin()) - 1;
+    }
+    hint_ = k;
+  }
   const double f = (volume_m3 - volumes_m3_[k]) / (volumes_m3_[k + 1] - volumes_m3_[k]);
   return {k, std::clamp(f, 0.0, 1.0)};
 }

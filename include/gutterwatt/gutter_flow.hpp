@@ -79,6 +79,9 @@ class GutterDelivery {
   std::vector<double> volumes_m3_;
   std::vector<double> flows_m3_per_s_;
   std::vector<double> outlet_depths_m_;
+  /// The cell locate() found last. A run's ChainSystem owns its GutterDelivery, and no two
+  /// threads share one.
+  mutable std::size_t hint_ = 0;
 };
 
 /// The delivery of the reservoir of `config` when it is a level gutter (is_level_gutter), else
