@@ -16,7 +16,10 @@ RoofSpan::RoofSpan(const RoofConfig& roof, const FirstFlushConfig& flush, double
                      : std::numeric_limits<double>::infinity()),
       // Rational method Q = C i A on the rain left once the initial loss is full.
       effective_m3_s_(roof.runoff_coefficient * rain_m_per_s * roof.area_m2),
-      room_m3_(std::max(0.0, flush.volume_m3 - start.diverted_m3)) {}
+      room_m3_(std::max(0.0, flush.volume_m3 - start.diverted_m3)),
+      roof_at_full_m3_(roof.lag_s > 0.0 && full_at_s_ < std::numeric_limits<double>::infinity()
+                           ? start.roof_m3 * std::exp(-full_at_s_ / roof.lag_s)
+                           : 0.0) {}
 
 // The linear reservoir dS/dt = E - S/k (Nash 1957; Chow, Maidment & Mays 1988, Applied
 // Hydrology, section 8.5) with E = 0 until the initial loss is full and C i A after: for a
@@ -24,10 +27,9 @@ RoofSpan::RoofSpan(const RoofConfig& roof, const FirstFlushConfig& flush, double
 double RoofSpan::roof_m3(double t_s) const {
   const double k = roof_.lag_s;
   if (k <= 0.0) return 0.0;
-  const double at_full = start_.roof_m3 * std::exp(-std::min(t_s, full_at_s_) / k);
-  if (t_s <= full_at_s_) return at_full;
+  if (t_s <= full_at_s_) return start_.roof_m3 * std::exp(-t_s / k);
   const double equilibrium = effective_m3_s_ * k;
-  return equilibrium + (at_full - equilibrium) * std::exp(-(t_s - full_at_s_) / k);
+  return equilibrium + (roof_at_full_m3_ - equilibrium) * std::exp(-(t_s - full_at_s_) / k);
 }
 
 RoofStores RoofSpan::stores(double t_s) const {

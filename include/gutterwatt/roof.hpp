@@ -63,9 +63,10 @@ class RoofSpan {
   RoofConfig roof_;
   double rain_m_per_s_;
   RoofStores start_;
-  double full_at_s_;       // when the initial loss is full (infinite without rain)
-  double effective_m3_s_;  // C i A once the loss is full
-  double room_m3_;         // what the diverter still takes
+  double full_at_s_;        // when the initial loss is full (infinite without rain)
+  double effective_m3_s_;   // C i A once the loss is full
+  double room_m3_;          // what the diverter still takes
+  double roof_at_full_m3_;  // water on the roof as the loss fills, computed once
 };
 
 }  // namespace gutterwatt
