@@ -201,9 +201,6 @@ std::optional<Eigen::MatrixXd> jacobian(const BenchModel& model, const Eigen::Ve
   return J;
 }
 
-// A number by the report's one rule, as the terminal shows it.
-std::string show(double x) { return detail::pretty(x, detail::Medium::terminal); }
-
 /// The priming flow from the bracket; a warning and the value as it was where there is none.
 void fit_priming(const std::vector<BenchRow>& rows, BenchFit& fit) {
   for (const BenchRow& row : rows) {
@@ -317,19 +314,19 @@ BenchFit fit_bench(const Scenario& scenario, const std::vector<BenchRow>& rows,
   if (nozzle_moves && cosine < 0.999) chosen.push_back(kDischarge);
   if (!loss_moves) {
     fit.warnings.push_back(no_times + "drop_pipe.minor_loss_k; left at " +
-                           show(fit.minor_loss_k.before));
+                           detail::on_terminal(fit.minor_loss_k.before));
   }
   if (nozzle_moves && cosine >= 0.999) {
     fit.warnings.push_back(
         "the times cannot tell the nozzle's discharge coefficient from the running loss (both "
         "act as a loss on the square of the flow); fitted drop_pipe.minor_loss_k alone and left "
         "nozzle.discharge_coefficient at " +
-        show(fit.discharge_coefficient.before));
+        detail::on_terminal(fit.discharge_coefficient.before));
   } else if (!nozzle_moves) {
     fit.warnings.push_back(
         "nothing in the log depends on the nozzle's discharge coefficient (with a head "
         "column the release does not see the nozzle); left at " +
-        show(fit.discharge_coefficient.before));
+        detail::on_terminal(fit.discharge_coefficient.before));
   }
   const auto record_residuals = [&](const Scenario& at) {
     const std::vector<double> v = model.values(at);
@@ -444,12 +441,12 @@ std::string fitted_value_text(const FittedValue& v) {
 void write_fitted_value(std::ostream& out, const FittedValue& v) {
   out << "  " << v.key << ": ";
   if (!v.fitted) {
-    out << show(shown(v, v.value)) << " (kept: see the warnings)\n";
+    out << detail::on_terminal(shown(v, v.value)) << " (kept: see the warnings)\n";
     return;
   }
-  out << show(shown(v, v.value));
-  if (v.sigma) out << " +- " << show(shown(v, *v.sigma));
-  out << " (was " << show(shown(v, v.before)) << ")\n";
+  out << detail::on_terminal(shown(v, v.value));
+  if (v.sigma) out << " +- " << detail::on_terminal(shown(v, *v.sigma));
+  out << " (was " << detail::on_terminal(shown(v, v.before)) << ")\n";
 }
 
 void write_bench_fit(std::ostream& out, const BenchFit& fit) {
@@ -473,12 +470,13 @@ void write_bench_fit(std::ostream& out, const BenchFit& fit) {
       const bool flow = r.quantity == "nozzle_flow_L_per_min";
       const double scale = flow ? 1.0 / kLitrePerMinute_m3_per_s : 1.0;
       std::snprintf(buf, sizeof buf, "  %-6d %-22s %12s %12s %8s%%\n", r.line, r.quantity.c_str(),
-                    show(r.measured * scale).c_str(), show(r.model * scale).c_str(),
-                    show(100.0 * r.relative()).c_str());
+                    detail::on_terminal(r.measured * scale).c_str(),
+                    detail::on_terminal(r.model * scale).c_str(),
+                    detail::on_terminal(100.0 * r.relative()).c_str());
       out << buf;
     }
-    out << "  root mean square of the residuals: " << show(100.0 * fit.rms_relative) << "% ("
-        << fit.iterations << " iterations)\n";
+    out << "  root mean square of the residuals: " << detail::on_terminal(100.0 * fit.rms_relative)
+        << "% (" << fit.iterations << " iterations)\n";
   }
   write_warnings_and_build(out, fit.warnings,
                            {{"priming_flow_L_per_min", fit.priming_flow},

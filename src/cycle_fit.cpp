@@ -44,9 +44,6 @@ double least_squares_pairing(const std::vector<double>& a, const std::vector<dou
   return best.back();
 }
 
-// A number by the report's one rule, as the terminal shows it.
-std::string show(double x) { return detail::pretty(x, detail::Medium::terminal); }
-
 /// The priming flows searched: log-spaced from the running flow at the trigger level (times
 /// kPrimingTop: the loader refuses one at or above it) down by a factor kPrimingSpan, wide
 /// enough for any build that primes at all; first on a coarse grid, then on a fine one between
@@ -506,15 +503,15 @@ CycleFit fit_cycles(const Scenario& scenario, const RainSeries& rain, const Cycl
   if (!loss_determined) {
     fit.warnings.push_back(
         "neither the cycle counts nor the timing of the cycle starts move (by " +
-        show(kTimingResolution_s) +
+        detail::on_terminal(kTimingResolution_s) +
         " s) over losses from 0 to 32, or no cycle could be paired, so the log cannot determine "
         "drop_pipe.minor_loss_k; left at " +
-        show(k0));
+        detail::on_terminal(k0));
   } else if (loss_at_top) {
     fit.warnings.push_back(
         "the timing asks for a loss at or above 32, the largest tried (a blocked pipe, or a "
         "cause the model does not hold such as air in the pipe); drop_pipe.minor_loss_k left at " +
-        show(k0));
+        detail::on_terminal(k0));
   }
   if (fit.minor_loss_k.fitted && !fit.minor_loss_k.sigma) {
     fit.warnings.push_back(
@@ -563,8 +560,8 @@ void write_cycle_fit(std::ostream& out, const CycleFit& fit, const TimeZone& zon
   for (const CycleEvent& e : fit.events) {
     std::snprintf(buf, sizeof buf, "  %-18s %8s %9d %10d %10d\n",
                   format_iso8601(e.window.start, zone).c_str(),
-                  show(e.rain_m / kMetresPerMm).c_str(), e.observed, e.simulated_before,
-                  e.simulated);
+                  detail::on_terminal(e.rain_m / kMetresPerMm).c_str(), e.observed,
+                  e.simulated_before, e.simulated);
     out << buf;
   }
   std::snprintf(buf, sizeof buf, "  %-18s %8s %9d %10d %10d\n", "total", "", fit.observed,
@@ -573,7 +570,7 @@ void write_cycle_fit(std::ostream& out, const CycleFit& fit, const TimeZone& zon
   for (const auto& [name, m] : {std::pair{"before", fit.before}, std::pair{"fitted", fit.after}}) {
     std::snprintf(buf, sizeof buf,
                   "  %s: %d cycles unpaired; %d starts paired, root mean square difference %s s\n",
-                  name, m.unmatched, m.pairs, show(m.rms_s()).c_str());
+                  name, m.unmatched, m.pairs, detail::on_terminal(m.rms_s()).c_str());
     out << buf;
   }
   write_warnings_and_build(

@@ -22,14 +22,11 @@
 namespace gutterwatt {
 namespace {
 
-// A number in the text of a figure or a warning, by the report's one rule.
-std::string shown(double v) { return detail::pretty(v, detail::Medium::terminal); }
-
 // A quantity given in SI (`si_unit` as in column names: L, mm_per_h) as a figure or a warning
 // shows it, in `units`: `12.5 mm/h` or `0.492 in/h`.
 std::string shown(UnitSystem units, double in_si, std::string_view si_unit) {
   const InUnits v = in_units(units, in_si, si_unit);
-  return shown(v.value) + " " + unit_label(v.unit);
+  return detail::on_terminal(v.value) + " " + unit_label(v.unit);
 }
 
 constexpr double kMmPerHourPerMPerS = 3.6e6;
@@ -281,7 +278,7 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
     const double total = top_m + sc.drop_m;
     const double loss = total - d.design_head_m;
     if (loss > 0.2 * total) {
-      d.warnings.push_back("The drop pipe loses " + shown(100.0 * loss / total) +
+      d.warnings.push_back("The drop pipe loses " + detail::on_terminal(100.0 * loss / total) +
                            " % of the head to friction and fittings: it starves the nozzle. A "
                            "wider pipe or a smaller nozzle would deliver more.");
     }
@@ -303,7 +300,7 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
   if (plant.conduction_speed_rpm() > 0.0 && d.speed_ratio >= 1.0) {
     d.warnings.push_back(
         "The generator reaches the battery's voltage only at " +
-        shown(plant.conduction_speed_rpm()) +
+        detail::on_terminal(plant.conduction_speed_rpm()) +
         " rpm, faster than the jet at the design head can drive the runner: it will not charge. "
         "A generator with more volts per rpm, a smaller runner or more head would.");
   }
@@ -328,8 +325,8 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
     } else if (held_m / fastest > kMosquitoSpell_s) {
       d.warnings.push_back(lead + ": even at the highest evaporation given (" +
                            shown(units, fastest / kMetresPerMm * kSecondsPerDay, "mm_per_day") +
-                           ") that takes " + shown(held_m / fastest / kSecondsPerDay) + " days" +
-                           tail);
+                           ") that takes " +
+                           detail::on_terminal(held_m / fastest / kSecondsPerDay) + " days" + tail);
     }
   }
   if (sc.turbine.best_at_every_head) {
@@ -338,9 +335,10 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
         "runner on a fixed-voltage generator does: the energy is an upper bound.");
   }
   if (sc.generator.cut_in_W > d.electrical_power_W) {
-    d.warnings.push_back("The generator's cut-in power (" + shown(sc.generator.cut_in_W) +
-                         " W) is above the design power (" + shown(d.electrical_power_W) +
-                         " W): it will deliver little or nothing.");
+    d.warnings.push_back(
+        "The generator's cut-in power (" + detail::on_terminal(sc.generator.cut_in_W) +
+        " W) is above the design power (" + detail::on_terminal(d.electrical_power_W) +
+        " W): it will deliver little or nothing.");
   }
   return d;
 }
@@ -356,7 +354,7 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
   // A figure given in SI (`si_unit` as in column names), in the scenario's units.
   const auto figure = [&](const std::string& label, double in_si, std::string_view si_unit) {
     const InUnits v = in_units(sc.site.units, in_si, si_unit);
-    line(label, shown(v.value), unit_label(v.unit));
+    line(label, detail::on_terminal(v.value), unit_label(v.unit));
   };
   const auto lpm = [&](const std::string& label, double q) {
     figure(label, q * kLitresPerMinutePerM3PerS, "L_per_min");
@@ -382,31 +380,33 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
   if (d.release_ends_level_m) {
     figure("level at which the running release ends", *d.release_ends_level_m * 1e3, "mm");
   }
-  if (d.cycle_drain_s) line("running time per cycle (no inflow)", shown(*d.cycle_drain_s), "s");
-  if (d.column_fill_s) line("head column brim-full after", shown(*d.column_fill_s), "s");
+  if (d.cycle_drain_s)
+    line("running time per cycle (no inflow)", detail::on_terminal(*d.cycle_drain_s), "s");
+  if (d.column_fill_s)
+    line("head column brim-full after", detail::on_terminal(*d.column_fill_s), "s");
   figure(sc.head_column ? "design head (head column brim-full)" : "design head at the nozzle",
          d.design_head_m, "m");
   lpm("nozzle flow at design head", d.nozzle_flow_m3_per_s);
   figure("jet velocity", d.jet_velocity_m_per_s, "m_per_s");
-  line("jet power", shown(d.jet_power_W), "W");
+  line("jet power", detail::on_terminal(d.jet_power_W), "W");
   line(sc.turbine.best_at_every_head ? "runner speed at design head (best at every head)"
                                      : "runner speed at design head",
-       shown(d.runner_speed_rpm), "rpm");
-  line("  speed ratio (bucket / jet speed)", shown(d.speed_ratio), "");
-  line("electrical power at design head", shown(d.electrical_power_W), "W");
+       detail::on_terminal(d.runner_speed_rpm), "rpm");
+  line("  speed ratio (bucket / jet speed)", detail::on_terminal(d.speed_ratio), "");
+  line("electrical power at design head", detail::on_terminal(d.electrical_power_W), "W");
   mmh("rain that overflows the rim while the release runs", d.overflow_intensity_m_per_s);
   if (d.energy_per_cycle_J)
-    line("energy per cycle", shown(*d.energy_per_cycle_J / kJoulesPerWh), "Wh");
+    line("energy per cycle", detail::on_terminal(*d.energy_per_cycle_J / kJoulesPerWh), "Wh");
   const auto record = [&](const std::string& name, const RecordFigures& r) {
     out << "  " << name << ", " << format_duration(r.step_s) << " steps\n";
     mmh("  median wet intensity", r.median_intensity_m_per_s);
     if (r.volume_below_priming) {
-      line("  rain volume below the priming intensity", shown(*r.volume_below_priming * 100.0),
-           "%");
+      line("  rain volume below the priming intensity",
+           detail::on_terminal(*r.volume_below_priming * 100.0), "%");
     }
     if (r.priming_exceedance) {
-      line("  wet time at or above the priming intensity", shown(*r.priming_exceedance * 100.0),
-           "%");
+      line("  wet time at or above the priming intensity",
+           detail::on_terminal(*r.priming_exceedance * 100.0), "%");
     }
     mmh("  2-year peak intensity (median annual max)", r.peak_intensity_m_per_s);
   };

@@ -141,6 +141,9 @@ inline std::string fixed(double v, int decimals) {
   return out;
 }
 
+/// A number by the report's one rule, as the terminal shows it.
+inline std::string on_terminal(double x) { return pretty(x, Medium::terminal); }
+
 /// A flow in m3/s as a person reads it: `12.3 L/min`, by the one rule (pretty, terminal).
 inline std::string litres_per_minute(double flow_m3_per_s) {
   return pretty(flow_m3_per_s / kLitrePerMinute_m3_per_s, Medium::terminal) + " L/min";

@@ -16,7 +16,6 @@
 namespace gutterwatt {
 namespace {
 
-constexpr double kLitresPerM3 = 1e3;
 constexpr double kMmPerM = 1e3;
 
 // Fixed-point text with trailing zeros trimmed, so CSV cells stay short and exact enough.
@@ -24,9 +23,6 @@ std::string num(double v, int decimals) {
   if (!std::isfinite(v)) return "nan";
   return detail::fixed_trimmed(v, decimals);
 }
-
-// A number in the terminal table, by the report's one rule.
-std::string shown(double v) { return detail::pretty(v, detail::Medium::terminal); }
 
 double round_to(double v, int decimals) {
   const double f = std::pow(10.0, decimals);
@@ -36,7 +32,7 @@ double round_to(double v, int decimals) {
 Instant floor_instant(double t) { return static_cast<Instant>(std::floor(t + 1e-9)); }
 
 // summary.json numbers: litres and watt-hours to 1e-6.
-double json_litres(double m3) { return round_to(m3 * kLitresPerM3, 6); }
+double json_litres(double m3) { return round_to(m3 * kLitresPerCubicMetre, 6); }
 double json_watt_hours(double J) { return round_to(J / kJoulesPerWh, 6); }
 
 }  // namespace
@@ -75,7 +71,7 @@ double change(const TsRow& r) {
 
 template <double Accounts::*member>
 double change_L(const TsRow& r) {
-  return change<member>(r) * kLitresPerM3;
+  return change<member>(r) * kLitresPerCubicMetre;
 }
 
 constexpr TsColumn kTimeseriesColumns[] = {
@@ -100,7 +96,8 @@ constexpr TsColumn kTimeseriesColumns[] = {
      [](const TsRow& r) { return change<&Accounts::electrical_J>(r) / kJoulesPerWh; }},
     {"battery_soc", 5, [](const TsRow& r) { return r.to.soc; }},
     {"cum_energy_Wh", 4, [](const TsRow& r) { return r.to.totals.electrical_J / kJoulesPerWh; }},
-    {"cum_overflow_L", 3, [](const TsRow& r) { return r.to.totals.overflow_m3() * kLitresPerM3; }},
+    {"cum_overflow_L", 3,
+     [](const TsRow& r) { return r.to.totals.overflow_m3() * kLitresPerCubicMetre; }},
 };
 
 constexpr OutputColumn<TraceRow> kTraceColumns[] = {
@@ -110,9 +107,9 @@ constexpr OutputColumn<TraceRow> kTraceColumns[] = {
     {"release_state", 0, nullptr,
      [](const TraceRow& r) { return std::string(release_state_name(r.point.release)); }},
     {"release_L_per_s", 4,
-     [](const TraceRow& r) { return r.point.release_m3_per_s * kLitresPerM3; }},
+     [](const TraceRow& r) { return r.point.release_m3_per_s * kLitresPerCubicMetre; }},
     {"overflow_L_per_s", 4,
-     [](const TraceRow& r) { return r.point.overflow_m3_per_s * kLitresPerM3; }},
+     [](const TraceRow& r) { return r.point.overflow_m3_per_s * kLitresPerCubicMetre; }},
     {"head_m", 4, [](const TraceRow& r) { return r.point.head_m; }},
     {"power_W", 4, [](const TraceRow& r) { return r.point.power_W; }},
 };
@@ -127,9 +124,9 @@ constexpr EvColumn kEventsColumns[] = {
     {"end", 0, nullptr,
      [](const EventRow& r) { return format_iso8601(floor_instant(r.episode.end_s), r.zone); }},
     {"duration_s", 1, [](const EventRow& r) { return r.episode.end_s - r.episode.start_s; }},
-    {"volume_L", 3, [](const EventRow& r) { return r.episode.volume_m3 * kLitresPerM3; }},
+    {"volume_L", 3, [](const EventRow& r) { return r.episode.volume_m3 * kLitresPerCubicMetre; }},
     {"peak_flow_L_per_s", 4,
-     [](const EventRow& r) { return r.episode.peak_flow_m3_per_s * kLitresPerM3; }},
+     [](const EventRow& r) { return r.episode.peak_flow_m3_per_s * kLitresPerCubicMetre; }},
     {"energy_Wh", 5,
      [](const EventRow& r) {
        return episode_makes_energy(r.episode.kind) ? r.episode.energy_J / kJoulesPerWh
@@ -400,7 +397,7 @@ constexpr SummaryNumber kSummaryNumbers[] = {
     {"water_L.storage_change",
      [](const In& in) { return json_litres(stored_change_m3(in.result)); }},
     {"water_L.balance_error",
-     [](const In& in) { return in.result.balance_error_m3 * kLitresPerM3; }},
+     [](const In& in) { return in.result.balance_error_m3 * kLitresPerCubicMetre; }},
     {"water_L.evaporation", litres<&Accounts::evaporation_m3>},
     {"energy_Wh.jet", watt_hours<&Accounts::jet_J>},
     {"energy_Wh.electrical", watt_hours<&Accounts::electrical_J>},
@@ -483,7 +480,7 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
     largest = {{"start", format_iso8601(floor_instant(big->start_s), off)},
                {"end", format_iso8601(floor_instant(big->end_s), off)},
                {"volume_L", L(big->volume_m3)},
-               {"peak_flow_L_per_s", round_to(big->peak_flow_m3_per_s * kLitresPerM3, 6)}};
+               {"peak_flow_L_per_s", round_to(big->peak_flow_m3_per_s * kLitresPerCubicMetre, 6)}};
   }
   j["overflow"] = {
       {"days", summary.overflow_days()},
@@ -575,9 +572,11 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   const UnitSystem units = sc.site.units;
   const auto qty = [&](const std::string& label, double in_si, std::string_view si_unit) {
     const InUnits v = in_units(units, in_si, si_unit);
-    row(label, shown(v.value), unit_label(v.unit));
+    row(label, detail::on_terminal(v.value), unit_label(v.unit));
   };
-  const auto L = [&](const std::string& label, double m3) { qty(label, m3 * kLitresPerM3, "L"); };
+  const auto L = [&](const std::string& label, double m3) {
+    qty(label, m3 * kLitresPerCubicMetre, "L");
+  };
   out << sc.site.name << ": " << format_iso8601(r.start, off) << " to "
       << format_iso8601(r.end, off) << '\n';
   out << " water\n";
@@ -591,29 +590,29 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   L("  of which dribble", a.dribble_m3);
   L("evaporated", a.evaporation_m3);
   L("storage change", r.final.water_m3() - r.initial.water_m3());
-  row("balance error (relative)", shown(r.balance_relative_error), "");
+  row("balance error (relative)", detail::on_terminal(r.balance_relative_error), "");
   // Every share is of roof runoff, as on the report page.
   const double runoff = a.roof_runoff_m3 > 0.0 ? a.roof_runoff_m3 : 1.0;
   out << " shares of roof runoff\n";
-  row("through the nozzle", shown(100.0 * a.nozzle_m3 / runoff), "%");
-  row("  of which dribble", shown(100.0 * a.dribble_m3 / runoff), "%");
-  row("overflow (rim and head column)", shown(100.0 * a.overflow_m3() / runoff), "%");
+  row("through the nozzle", detail::on_terminal(100.0 * a.nozzle_m3 / runoff), "%");
+  row("  of which dribble", detail::on_terminal(100.0 * a.dribble_m3 / runoff), "%");
+  row("overflow (rim and head column)", detail::on_terminal(100.0 * a.overflow_m3() / runoff), "%");
   out << " energy\n";
-  row("jet", shown(a.jet_J / kJoulesPerWh), "Wh");
-  row("electrical (generator out)", shown(a.electrical_J / kJoulesPerWh), "Wh");
-  row("stored in the battery", shown(a.stored_J / kJoulesPerWh), "Wh");
-  row("curtailed (battery full)", shown(a.curtailed_J / kJoulesPerWh), "Wh");
-  row("load served", shown(a.served_J / kJoulesPerWh), "Wh");
-  row("load unmet (cut at the minimum)", shown(a.unmet_J / kJoulesPerWh), "Wh");
-  row("battery discharge loss", shown(a.discharge_loss_J / kJoulesPerWh), "Wh");
-  row("battery self-discharge", shown(a.self_discharge_J / kJoulesPerWh), "Wh");
+  row("jet", detail::on_terminal(a.jet_J / kJoulesPerWh), "Wh");
+  row("electrical (generator out)", detail::on_terminal(a.electrical_J / kJoulesPerWh), "Wh");
+  row("stored in the battery", detail::on_terminal(a.stored_J / kJoulesPerWh), "Wh");
+  row("curtailed (battery full)", detail::on_terminal(a.curtailed_J / kJoulesPerWh), "Wh");
+  row("load served", detail::on_terminal(a.served_J / kJoulesPerWh), "Wh");
+  row("load unmet (cut at the minimum)", detail::on_terminal(a.unmet_J / kJoulesPerWh), "Wh");
+  row("battery discharge loss", detail::on_terminal(a.discharge_loss_J / kJoulesPerWh), "Wh");
+  row("battery self-discharge", detail::on_terminal(a.self_discharge_J / kJoulesPerWh), "Wh");
   out << " release and overflow\n";
   row("siphon cycles", std::to_string(r.cycles), "");
-  row("energy per cycle", shown(summary.energy_per_cycle_J() / kJoulesPerWh), "Wh");
+  row("energy per cycle", detail::on_terminal(summary.energy_per_cycle_J() / kJoulesPerWh), "Wh");
   row("dribble episodes", std::to_string(r.dribble_episodes), "");
-  row("dribble time", shown(r.dribble_s / kSecondsPerHour), "h");
+  row("dribble time", detail::on_terminal(r.dribble_s / kSecondsPerHour), "h");
   row("overflow episodes", std::to_string(r.overflow_events), "");
-  row("overflow time", shown(r.overflow_s / kSecondsPerHour), "h");
+  row("overflow time", detail::on_terminal(r.overflow_s / kSecondsPerHour), "h");
   row("days with overflow", std::to_string(summary.overflow_days()), "");
   L("largest overflow episode", summary.largest_overflow_m3());
   qty("wettest interval without overflow",
@@ -621,15 +620,16 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
           kMmPerM,
       "mm_per_h");
   out << " standing water (over 1 mm deep, release not running)\n";
-  row("longest spell", shown(r.standing_longest_s / kSecondsPerDay), "days");
+  row("longest spell", detail::on_terminal(r.standing_longest_s / kSecondsPerDay), "days");
   row("spells over 7 days", std::to_string(r.standing_spells_over_week), "");
-  row("days in all", shown(r.standing_s / kSecondsPerDay), "days");
+  row("days in all", detail::on_terminal(r.standing_s / kSecondsPerDay), "days");
   out << " battery\n";
-  row("state of charge, lowest", shown(summary.min_soc() * 100.0), "%");
-  row("time below half charge", shown(a.battery_below_half_s / kSecondsPerHour), "h");
-  row("time empty (load cut)", shown(a.battery_empty_s / kSecondsPerHour), "h");
+  row("state of charge, lowest", detail::on_terminal(summary.min_soc() * 100.0), "%");
+  row("time below half charge", detail::on_terminal(a.battery_below_half_s / kSecondsPerHour), "h");
+  row("time empty (load cut)", detail::on_terminal(a.battery_empty_s / kSecondsPerHour), "h");
   const auto share = load_served_share(a);
-  row("share of the load served", share ? shown(*share * 100.0) : "-", share ? "%" : "");
+  row("share of the load served", share ? detail::on_terminal(*share * 100.0) : "-",
+      share ? "%" : "");
   if (realizations) {
     const RealizationSpread& z = *realizations;
     const RealizationMetrics own = realization_metrics(r);
@@ -638,7 +638,7 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
     out << "  " << std::string(34, ' ') << "      this run    median      P10 to P90\n";
     for (const RealizationColumn& c : kRealizationColumns) {
       const Spread& x = z.*(c.spread);
-      const auto in = [&](double v) { return shown(column_value(units, c.key, v)); };
+      const auto in = [&](double v) { return detail::on_terminal(column_value(units, c.key, v)); };
       out << "  " << std::left << std::setw(34) << c.label << std::right << std::setw(14)
           << in(own.*(c.value)) << std::setw(10) << in(x.p50) << std::setw(10) << in(x.p10)
           << " to " << std::left << std::setw(9) << in(x.p90) << std::right
@@ -649,7 +649,7 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
   const auto periods = [&](const char* title, const std::vector<PeriodSummary>& list) {
     out << " by " << title << "\n";
     const auto in = [&](double in_si, std::string_view si_unit) {
-      return shown(in_units(units, in_si, si_unit).value);
+      return detail::on_terminal(in_units(units, in_si, si_unit).value);
     };
     const std::string rain = "rain " + unit_label(in_units(units, 0.0, "mm").unit);
     const std::string litres = unit_label(in_units(units, 0.0, "L").unit);
@@ -667,9 +667,10 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
     for (const PeriodSummary& m : list) {
       out << "  " << std::left << std::setw(10) << m.label << std::right << std::setw(9)
           << in(m.rain_depth_m * kMmPerM, "mm") << std::setw(11)
-          << shown(m.electrical_J / kJoulesPerWh) << std::setw(9) << m.cycles << std::setw(11)
-          << m.overflow_events << std::setw(w_overflow) << in(m.overflow_m3 * kLitresPerM3, "L")
-          << std::setw(w_dribble) << in(m.dribble_m3 * kLitresPerM3, "L") << '\n';
+          << detail::on_terminal(m.electrical_J / kJoulesPerWh) << std::setw(9) << m.cycles
+          << std::setw(11) << m.overflow_events << std::setw(w_overflow)
+          << in(m.overflow_m3 * kLitresPerCubicMetre, "L") << std::setw(w_dribble)
+          << in(m.dribble_m3 * kLitresPerCubicMetre, "L") << '\n';
     }
   };
   // A long run's months would fill the screen: they stay in summary.json.

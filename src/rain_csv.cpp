@@ -105,7 +105,7 @@ std::vector<std::size_t> find_columns(const std::vector<std::string>& names, int
       std::string list;
       for (const std::string& name : names) {
         if (!list.empty()) list += ", ";
-        list += quoted(name);
+        list += in_quotes(name);
       }
       throw InputError(file_label, line_number, keys[c],
                        "no such column in the header (found " + list + ")");
@@ -157,7 +157,7 @@ void take_fields(std::string_view line, int line_number, const std::string& file
     for (std::size_t c = 0; c < indexes.size(); ++c) {
       if (indexes[c] != index - 1) continue;
       throw InputError(file_label, line_number, columns[c],
-                       quoted(previous) + " and then " + quoted(field) +
+                       in_quotes(previous) + " and then " + in_quotes(field) +
                            " in the column without a name after it; a decimal comma (" +
                            std::string(previous) + "," + std::string(field) + ")? " +
                            kDecimalCommaAdvice);
@@ -182,7 +182,7 @@ void take_fields(std::string_view line, int line_number, const std::string& file
           file_label, line_number, "",
           "the row has more fields than the " + std::to_string(header_fields) +
               " columns of the header (field " + std::to_string(index + 1) + " is " +
-              quoted(field) + ")" +
+              in_quotes(field) + ")" +
               (comma_separated ? std::string("; a decimal comma? ") + kDecimalCommaAdvice : ""));
     }
     return;
@@ -249,16 +249,16 @@ std::string series_column(const Header& h, std::size_t wanted, const std::string
     const auto asked = std::find(h.indexes.begin(), h.indexes.begin() + wanted, i);
     if (asked != h.indexes.begin() + wanted || h.names[i].empty()) continue;
     if (a[i] != b[i] || b[i] == c[i] || !names_a_series(b[i]) || !names_a_series(c[i])) continue;
-    return "; the column " + quoted(h.names[i]) + " changes here from " + quoted(b[i]) + " to " +
-           quoted(c[i]) + ": several series in one file? keep one with rain.where: {" + h.names[i] +
-           ": " + c[i] + "}";
+    return "; the column " + in_quotes(h.names[i]) + " changes here from " + in_quotes(b[i]) +
+           " to " + in_quotes(c[i]) + ": several series in one file? keep one with rain.where: {" +
+           h.names[i] + ": " + c[i] + "}";
   }
   return "";
 }
 
 }  // namespace
 
-std::string quoted(std::string_view text) {
+std::string in_quotes(std::string_view text) {
   if (text.size() > kMaxQuotedChars) {
     return "\"" + std::string(text.substr(0, kMaxQuotedChars)) + "...\"";
   }
@@ -281,7 +281,7 @@ double parse_amount(std::string_view text, const std::string& file_label, int li
     if (text.size() > buffer.size() || text.find('.') != std::string_view::npos) {
       throw InputError(
           file_label, line_number, column,
-          "not a number with a decimal comma, rain.decimal: \",\" (got " + quoted(text) + ")");
+          "not a number with a decimal comma, rain.decimal: \",\" (got " + in_quotes(text) + ")");
     }
     std::replace_copy(text.begin(), text.end(), buffer.begin(), decimal, '.');
     text = std::string_view(buffer.data(), text.size());
@@ -298,17 +298,17 @@ double parse_amount(std::string_view text, const std::string& file_label, int li
     if (underflow && digits.front() != '-') return 0.0;
     throw InputError(file_label, line_number, column,
                      (underflow ? "must not be negative (got " + std::string(text) + ")"
-                                : "not a finite number (got " + quoted(text) + ")"));
+                                : "not a finite number (got " + in_quotes(text) + ")"));
   }
   if (ec != std::errc{} || stop != end || digits.empty() || std::isnan(value)) {
     const bool comma = decimal == '.' && text.find(',') != std::string_view::npos;
     throw InputError(file_label, line_number, column,
-                     "not a number (got " + quoted(text) + ")" +
+                     "not a number (got " + in_quotes(text) + ")" +
                          (comma ? "; a decimal comma? set rain.decimal: \",\"" : ""));
   }
   if (std::isinf(value)) {
     throw InputError(file_label, line_number, column,
-                     "not a finite number (got " + quoted(text) + ")");
+                     "not a finite number (got " + in_quotes(text) + ")");
   }
   if (value < 0.0) {
     throw InputError(file_label, line_number, column,
@@ -348,7 +348,7 @@ void StampReader::place(ParsedTime& parsed, std::string_view text, int line_numb
   const LocalInstants at = zone.from_local(parsed.local);
   if (at.count == 0) {
     throw InputError(file_, line_number, fmt_.time_column,
-                     quoted(text) + " is not a time in " + zone.name() +
+                     in_quotes(text) + " is not a time in " + zone.name() +
                          ": the clocks skip that hour when daylight saving begins");
   }
   // In the hour the clocks repeat, the rows' order tells the two apart: the first reading that
@@ -366,13 +366,13 @@ ParsedTime StampReader::read(std::string_view text, int line_number) {
   std::optional<ParsedTime> parsed = parse(text);
   if (!parsed && !fmt_.time_format.empty()) {
     throw InputError(file_, line_number, column,
-                     "does not match rain.time_format " + quoted(fmt_.time_format) +
+                     "does not match rain.time_format " + in_quotes(fmt_.time_format) +
                          (words_.dates_only ? " as a date, at midnight" : "") + " (got " +
-                         quoted(text) + ")");
+                         in_quotes(text) + ")");
   }
   if (!parsed) {
     throw InputError(file_, line_number, column,
-                     std::string("not ") + words_.expected + " (got " + quoted(text) + ")");
+                     std::string("not ") + words_.expected + " (got " + in_quotes(text) + ")");
   }
   place(*parsed, text, line_number);
   if (count_ == 0) {
@@ -381,7 +381,7 @@ ParsedTime StampReader::read(std::string_view text, int line_number) {
   } else {
     if (parsed->has_offset != first_has_offset_) {
       throw InputError(file_, line_number, column,
-                       "mixed time zones: " + quoted(text) +
+                       "mixed time zones: " + in_quotes(text) +
                            (parsed->has_offset ? " has a UTC offset but the stamp on line " +
                                                      std::to_string(first_line_) + " has none"
                                                : " has no UTC offset but the stamp on line " +
@@ -389,17 +389,17 @@ ParsedTime StampReader::read(std::string_view text, int line_number) {
     }
     // Built only on the error paths: this runs once per row of records of millions.
     const auto previous = [this] {
-      return quoted(std::string_view(previous_text_.data(), previous_size_)) + " (line " +
+      return in_quotes(std::string_view(previous_text_.data(), previous_size_)) + " (line " +
              std::to_string(previous_line_) + ")";
     };
     if (parsed->instant == previous_ && !words_.repeats_allowed) {
-      throw OutOfOrder(
-          file_, line_number, column,
-          quoted(text) + " is " + words_.same + " the previous " + words_.noun + " " + previous());
+      throw OutOfOrder(file_, line_number, column,
+                       in_quotes(text) + " is " + words_.same + " the previous " + words_.noun +
+                           " " + previous());
     }
     if (parsed->instant < previous_) {
       throw OutOfOrder(file_, line_number, column,
-                       quoted(text) + " is earlier than the previous " + words_.noun + " " +
+                       in_quotes(text) + " is earlier than the previous " + words_.noun + " " +
                            previous() + "; rows must be in time order");
     }
   }
@@ -487,7 +487,7 @@ void scan_rows(std::istream& in, const std::string& file_label, const SeriesForm
     std::string names;
     for (std::size_t c = 0; c < columns.size(); ++c) {
       if (c > 0) names += c + 1 == columns.size() ? " and " : ", ";
-      names += quoted(columns[c]);
+      names += in_quotes(columns[c]);
     }
     throw InputError(file_label, fmt.skip_lines + 1, "",
                      "empty file (expected a header row naming the column" +
@@ -499,11 +499,11 @@ void scan_rows(std::istream& in, const std::string& file_label, const SeriesForm
   if (rows == 0 && rows_left_out > 0) {
     std::string found;
     for (const std::string& value : other_values) {
-      found += (found.empty() ? "" : ", ") + quoted(value);
+      found += (found.empty() ? "" : ", ") + in_quotes(value);
     }
     if (other_values.size() == kMaxValuesShown) found += ", ...";
     throw InputError(file_label, header_line, keys[columns.size()],
-                     "no row holds " + quoted(fmt.where.front().second) +
+                     "no row holds " + in_quotes(fmt.where.front().second) +
                          " in this column (found " + found + ")");
   }
   if (rows == 0) throw InputError(file_label, header_line, "", "no data rows");

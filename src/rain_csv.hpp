@@ -19,7 +19,7 @@
 namespace gutterwatt::detail {
 
 /// `"text"` for messages, shortened when long.
-std::string quoted(std::string_view text);
+std::string in_quotes(std::string_view text);
 
 /// Six significant digits, like printf's %g, for numbers in messages.
 std::string format_number(double value);

@@ -22,7 +22,6 @@ namespace gutterwatt {
 namespace {
 
 const std::string kVaryLabel = "--vary";
-constexpr double kLitresPerM3 = 1e3;
 // Relative tolerance for reaching TO in a range, against float noise in FROM + i * STEP.
 constexpr double kRangeTolerance = 1e-9;
 // More decimals than a range spec can sensibly ask for.
@@ -289,8 +288,8 @@ SweepMetrics sweep_metrics(const RunResult& r, const SummaryBuilder& summary) {
   const Accounts& a = r.totals;
   SweepMetrics m;
   m.energy_Wh = a.electrical_J / kJoulesPerWh;
-  m.overflow_L = a.overflow_m3() * kLitresPerM3;
-  m.dribble_L = a.dribble_m3 * kLitresPerM3;
+  m.overflow_L = a.overflow_m3() * kLitresPerCubicMetre;
+  m.dribble_L = a.dribble_m3 * kLitresPerCubicMetre;
   m.cycles = static_cast<double>(r.cycles);
   m.overflow_events = static_cast<double>(r.overflow_events);
   m.overflow_hours = r.overflow_s / kSecondsPerHour;
@@ -300,7 +299,7 @@ SweepMetrics sweep_metrics(const RunResult& r, const SummaryBuilder& summary) {
   m.unmet_load_Wh = a.unmet_J / kJoulesPerWh;
   m.dribble_share = a.roof_runoff_m3 > 0.0 ? a.dribble_m3 / a.roof_runoff_m3 : 0.0;
   m.overflow_days = static_cast<double>(summary.overflow_days());
-  m.largest_overflow_L = summary.largest_overflow_m3() * kLitresPerM3;
+  m.largest_overflow_L = summary.largest_overflow_m3() * kLitresPerCubicMetre;
   m.standing_longest_days = r.standing_longest_s / kSecondsPerDay;
   m.standing_spells_over_7_days = static_cast<double>(r.standing_spells_over_week);
   return m;

@@ -6,7 +6,7 @@
 #include <cmath>
 #include <initializer_list>
 
-namespace gutterwatt {
+namespace gutterwatt::battery_test {
 namespace {
 
 constexpr double kWh = 3600.0;
@@ -256,4 +256,4 @@ TEST(Battery, LoadFollowsTheHourlyProfile) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::battery_test

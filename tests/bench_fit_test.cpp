@@ -13,7 +13,7 @@
 #include "siphon_reference.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::bench_fit_test {
 namespace {
 
 using test_support::make_scenario;
@@ -188,4 +188,4 @@ TEST(FitCommand, WritesAFittedScenarioThatLoadsAndRunsFromItsNewFolder) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::bench_fit_test

@@ -7,7 +7,7 @@
 #include <string>
 #include <thread>
 
-namespace gutterwatt {
+namespace gutterwatt::calendar_test {
 namespace {
 
 // Seconds since the epoch of 2025-03-01T00:00Z.
@@ -287,4 +287,4 @@ TEST(TimeZones, KeepFixedOffsetsAsTheyWere) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::calendar_test

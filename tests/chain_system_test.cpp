@@ -4,7 +4,7 @@
 
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::chain_system_test {
 namespace {
 
 using test_support::make_scenario;
@@ -61,4 +61,4 @@ TEST(ChainSystem, AtRestWhileTheRainCannotLiftTheLevelToTheLip) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::chain_system_test

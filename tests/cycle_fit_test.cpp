@@ -13,7 +13,7 @@
 #include "siphon_reference.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::cycle_fit_test {
 namespace {
 
 using test_support::block_rain;
@@ -311,4 +311,4 @@ TEST(FitCommand, FitsTheInventedFieldLogAndWritesAScenarioThatLoads) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::cycle_fit_test

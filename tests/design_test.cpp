@@ -12,7 +12,7 @@
 #include "gutterwatt/hydraulics.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::design_test {
 namespace {
 
 using test_support::make_scenario;
@@ -290,4 +290,4 @@ TEST(Design, PointsToTheBenchTestUntilThePrimingFlowIsMeasured) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::design_test

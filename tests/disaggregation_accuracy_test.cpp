@@ -29,7 +29,7 @@
 #include "gutterwatt/simulation.hpp"
 #include "gutterwatt/synth.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::disaggregation_accuracy_test {
 namespace {
 
 constexpr Instant kStep_s = 300;
@@ -144,4 +144,4 @@ TEST(DisaggregationAccuracy, HourlyAndDailyTotalsByFragmentsMeetTheTarget) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::disaggregation_accuracy_test

@@ -12,7 +12,7 @@
 #include "gutterwatt/fragments.hpp"
 #include "gutterwatt/rain_input.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::disaggregation_test {
 namespace {
 
 // Seconds since the epoch of 2025-03-01T00:00Z.
@@ -506,4 +506,4 @@ TEST(Disaggregation, NumbersRealizationsFromTheGivenSeed) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::disaggregation_test

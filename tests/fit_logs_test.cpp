@@ -7,7 +7,7 @@
 
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::fit_logs_test {
 namespace {
 
 std::vector<BenchRow> read(const std::string& text) {
@@ -140,4 +140,4 @@ TEST(CycleLog, RejectsALogWithoutATimeColumn) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::fit_logs_test

@@ -7,7 +7,7 @@
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/units.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::float_valve_test {
 namespace {
 
 // An invented float valve: opens at 300 mm, closes at 100 mm, 20 mm orifice, Cd 0.61.
@@ -80,4 +80,4 @@ TEST(FloatValve, MakeReleaseBuildsAValveForKindFloatValve) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::float_valve_test

@@ -6,7 +6,7 @@
 
 #include "gutterwatt/disaggregation.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::fragments_test {
 namespace {
 
 // Seconds since the epoch of 2025-03-01T00:00Z.
@@ -134,4 +134,4 @@ TEST(Fragments, SeasonGoesRoundTheYear) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::fragments_test

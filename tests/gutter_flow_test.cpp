@@ -7,7 +7,7 @@
 #include "gutterwatt/chain_system.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::gutter_flow_test {
 namespace {
 
 // Values marked C were computed by hand (double precision, outside this code) from the
@@ -183,4 +183,4 @@ TEST(GutterFlow, AReleaseThatNeverBreaksTakesNoMoreThanTheGutterDelivers) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::gutter_flow_test

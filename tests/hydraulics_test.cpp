@@ -9,7 +9,7 @@
 
 #include "gutterwatt/units.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::hydraulics_test {
 namespace {
 
 constexpr double kLitre = 1e-3;  // m3
@@ -431,4 +431,4 @@ TEST(ImpulseTurbine, SpeedRatioUsesPitchCircleSpeed) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::hydraulics_test

@@ -4,7 +4,7 @@
 
 #include <cmath>
 
-namespace gutterwatt {
+namespace gutterwatt::interpolation_test {
 namespace {
 
 TEST(UniformTable, IsExactForCubics) {
@@ -39,4 +39,4 @@ TEST(UniformTable, CoversItsRangeOnly) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::interpolation_test

@@ -11,7 +11,7 @@
 #include "cli_support.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::local_time_test {
 namespace {
 
 using namespace cli_support;
@@ -94,4 +94,4 @@ TEST(LocalTime, RefusesAnUnknownZone) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::local_time_test

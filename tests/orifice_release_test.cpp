@@ -7,7 +7,7 @@
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/units.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::orifice_release_test {
 namespace {
 
 // An invented always-open 20 mm orifice, Cd 0.61.
@@ -85,4 +85,4 @@ TEST(OrificeRelease, MakeReleaseBuildsEachKind) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::orifice_release_test

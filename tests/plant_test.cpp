@@ -9,7 +9,7 @@
 #include "gutterwatt/units.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::plant_test {
 namespace {
 
 using test_support::make_scenario;
@@ -263,4 +263,4 @@ TEST(Plant, CarriesTheWaterPropertiesOfTheSiteTemperature) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::plant_test

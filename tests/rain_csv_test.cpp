@@ -11,7 +11,7 @@
 #include "gutterwatt/rain_input.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::rain_csv_test {
 namespace {
 
 // Seconds since the epoch of 2025-03-01T00:00Z.
@@ -283,4 +283,4 @@ TEST(RainCsvZones, ReadsDatesAtStandardTime) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::rain_csv_test

@@ -15,7 +15,7 @@
 #include "gutterwatt/simulation.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::rain_feed_test {
 namespace {
 
 using test_support::block_rain;
@@ -302,4 +302,4 @@ TEST(LoadRainWhile, InterruptStopsTheReading) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::rain_feed_test

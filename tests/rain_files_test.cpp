@@ -15,7 +15,7 @@
 #include "gutterwatt/units.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::rain_files_test {
 namespace {
 
 // Seconds since the epoch of 2025-03-01T00:00Z.
@@ -617,4 +617,4 @@ TEST_F(RainCalibration, RefusesFragmentsFromACoarseDryOrMisfittingRecord) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::rain_files_test

@@ -13,7 +13,7 @@
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/units.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::rain_input_test {
 namespace {
 
 // Seconds since the epoch of 2025-03-01T00:00Z.
@@ -916,7 +916,7 @@ TEST(RainCoverage, IsEmptyForAnEmptyPeriod) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::rain_input_test
 
 TEST(RainSeries, PlainDecimalsReadAsTheNearestDouble) {
   // The reader's fast path for plain decimals must give what std::from_chars gives (the nearest

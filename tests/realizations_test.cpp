@@ -11,7 +11,7 @@
 #include "gutterwatt/error.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::realizations_test {
 namespace {
 
 using test_support::kStart;
@@ -191,4 +191,4 @@ TEST(Realizations, StopWhenAsked) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::realizations_test

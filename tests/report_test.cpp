@@ -15,7 +15,7 @@
 
 #include "gutterwatt/error.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::report_test {
 namespace {
 
 namespace fs = std::filesystem;
@@ -553,4 +553,4 @@ TEST(ReportRender, RendersInHeadlessChromium) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::report_test

@@ -7,7 +7,7 @@
 
 #include "gutterwatt/units.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::reservoir_test {
 namespace {
 
 // Invented reservoirs for the tests.
@@ -338,4 +338,4 @@ TEST(Reservoir, TinyFallApproachesTheLevelGutter) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::reservoir_test

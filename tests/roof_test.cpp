@@ -4,7 +4,7 @@
 
 #include <cmath>
 
-namespace gutterwatt {
+namespace gutterwatt::roof_test {
 namespace {
 
 // An invented 40 m2 roof under 36 mm/h (1e-5 m/s): 4e-4 m3/s of rain on it.
@@ -103,4 +103,4 @@ TEST(RoofSpan, WaterBalanceCloses) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::roof_test

@@ -7,7 +7,7 @@
 #include "gutterwatt/error.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::scenario_edit_test {
 namespace {
 
 TEST(ScenarioEdit, ReplacesABlockValueAndKeepsItsComment) {
@@ -56,4 +56,4 @@ TEST(ScenarioEdit, RelocatesRelativeRainPathsOnly) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::scenario_edit_test

@@ -9,7 +9,7 @@
 
 #include "gutterwatt/error.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::scenario_test {
 namespace {
 
 const std::filesystem::path kFixtures =
@@ -907,4 +907,4 @@ TEST(Scenario, TheUsDemoIsWrittenWhollyInUsUnits) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::scenario_test

@@ -17,7 +17,7 @@
 #include "gutterwatt/units.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::simulation_test {
 namespace {
 
 using test_support::constant_inflow;
@@ -814,4 +814,4 @@ TEST(Simulation, StalledSolverIsASimulationErrorNotAHang) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::simulation_test

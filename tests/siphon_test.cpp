@@ -8,7 +8,7 @@
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/units.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::siphon_test {
 namespace {
 
 // An invented bell siphon: lip 50 mm, bell rim 8 mm, 19 mm standpipe, primes at 3 L/min.
@@ -183,4 +183,4 @@ TEST(Siphon, NamesEveryReleaseState) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::siphon_test

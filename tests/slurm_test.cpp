@@ -16,7 +16,7 @@
 
 #include "cli_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::slurm_test {
 namespace {
 
 namespace fs = std::filesystem;
@@ -92,4 +92,4 @@ TEST(Slurm, AShardedStudyOnALocalClusterMergesIntoTheOneMachineSweep) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::slurm_test

@@ -13,7 +13,7 @@
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/units.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::storm_test {
 namespace {
 
 constexpr double kDay_s = 86400.0;
@@ -476,4 +476,4 @@ TEST(Storm, BlockNeedsADepthOrAnIdfCurve) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::storm_test

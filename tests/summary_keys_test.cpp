@@ -14,7 +14,7 @@
 #include "report_files.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::summary_keys_test {
 namespace {
 
 namespace fs = std::filesystem;
@@ -80,4 +80,4 @@ TEST(SummaryKeys, EveryKeyIsOnceInTheTable) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::summary_keys_test

@@ -13,7 +13,7 @@
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/rain_files.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::sweep_shard_test {
 namespace {
 
 namespace fs = std::filesystem;
@@ -324,4 +324,4 @@ TEST(SweepMerge, RefusesASiteWhoseRecordChangedBetweenShards) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::sweep_shard_test

@@ -15,7 +15,7 @@
 #include "gutterwatt/rain_files.hpp"
 #include "gutterwatt/units.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::sweep_test {
 namespace {
 
 namespace fs = std::filesystem;
@@ -520,4 +520,4 @@ TEST(SweepWarnings, PrimingFlowAloneIsABuildProperty) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::sweep_test

@@ -12,7 +12,7 @@
 #include "gutterwatt/units.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::synth_test {
 namespace {
 
 constexpr double kHour_s = 3600.0;
@@ -295,4 +295,4 @@ TEST(SynthParameters, RejectsAnEmptyFile) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::synth_test

@@ -13,7 +13,7 @@
 #include "gutterwatt/simulation.hpp"
 #include "test_support.hpp"
 
-namespace gutterwatt {
+namespace gutterwatt::trace_test {
 namespace {
 
 using test_support::block_rain;
@@ -149,4 +149,4 @@ TEST(TraceCsv, WritesTheColumnsOfTheOneTableInEitherUnits) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::trace_test

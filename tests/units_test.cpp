@@ -2,7 +2,7 @@
 
 #include <gtest/gtest.h>
 
-namespace gutterwatt {
+namespace gutterwatt::units_test {
 namespace {
 
 // The exact factors of NIST Handbook 44, Appendix C (1959 yard and pound agreement):
@@ -95,4 +95,4 @@ TEST(Units, UsColumnsKeepAtLeastTheSiResolution) {
 }
 
 }  // namespace
-}  // namespace gutterwatt
+}  // namespace gutterwatt::units_test

@@ -19,6 +19,7 @@ inline constexpr double kMetresPerMm = 1e-3;
 /// International inch (exact): 1959 yard and pound agreement.
 inline constexpr double kMetresPerInch = 0.0254;
 inline constexpr double kCubicMetresPerLitre = 1e-3;
+inline constexpr double kLitresPerCubicMetre = 1e3;
 /// US liquid gallon, 231 cubic inches (exact): NIST Handbook 44, appendix C.
 inline constexpr double kLitresPerUsGallon = 3.785411784;
 inline constexpr double kJoulesPerWh = 3600.0;
