@@ -132,9 +132,11 @@ inline std::string fixed(double v, int decimals) {
   char buf[400];
   const auto [end, ec] =
       std::to_chars(buf, buf + sizeof buf, v, std::chars_format::fixed, decimals);
-  std::string out = ec == std::errc() ? std::string(buf, end) : std::string();
-  if (ec != std::errc()) {
-    std::snprintf(buf, sizeof buf, "%.*f", decimals, v);  // past 400 characters: truncated
+  std::string out;
+  if (ec == std::errc()) {
+    out.assign(buf, end);
+  } else {  // past 400 characters: printf's text, truncated
+    std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
     out = buf;
   }
   if (out.find_first_not_of("-0.") == std::string::npos && out[0] == '-') out.erase(0, 1);
@@ -146,7 +148,7 @@ inline std::string on_terminal(double x) { return pretty(x, Medium::terminal); }
 
 /// A flow in m3/s as a person reads it: `12.3 L/min`, by the one rule (pretty, terminal).
 inline std::string litres_per_minute(double flow_m3_per_s) {
-  return pretty(flow_m3_per_s / kLitrePerMinute_m3_per_s, Medium::terminal) + " L/min";
+  return on_terminal(flow_m3_per_s / kLitrePerMinute_m3_per_s) + " L/min";
 }
 
 /// As fixed, without trailing zeros after the point (and without a bare point).

@@ -99,9 +99,9 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
   assert(!all.empty());
   // How many intervals each stage admits: the same neighbour states first (Westra et al. 2012),
   // the season window widening; then any states.
-  const std::size_t windows = kSeasonWindows_days.size();
-  std::vector<std::size_t> same(windows, 0);
-  std::vector<std::size_t> any(windows, 0);
+  constexpr std::size_t windows = kSeasonWindows_days.size();
+  std::array<std::size_t, windows> same{};
+  std::array<std::size_t, windows> any{};
   for (const Fragment& f : all) {
     const std::size_t w = window_of(season_distance(f.season_day, when));
     for (std::size_t wider = w; wider < windows; ++wider) {

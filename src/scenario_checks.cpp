@@ -269,9 +269,9 @@ void check_priming_flow(const Seen& seen, const Scenario& s) {
   const double per_minute = kSecondsPerMinute / kCubicMetresPerLitre;
   blame(seen, s, true, "release.priming_flow_L_per_min")
       .expect(false, "the priming flow " +
-                         pretty(s.release.priming_flow_m3_per_s * per_minute, Medium::terminal) +
+                         on_terminal(s.release.priming_flow_m3_per_s * per_minute) +
                          " L/min must be below the running flow at release.trigger_level_mm, " +
-                         pretty(running * per_minute, Medium::terminal) + " L/min");
+                         on_terminal(running * per_minute) + " L/min");
 }
 
 void check_generator(const Seen& seen) {

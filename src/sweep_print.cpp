@@ -42,7 +42,7 @@ void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResu
   const UnitSystem units = plan.base.site.units;
   const std::string rank_name = column_name(units, plan.rank.metric);
   const auto pretty = [&](std::string_view metric, double v) {
-    return detail::pretty(column_value(units, metric, v), detail::Medium::terminal);
+    return detail::on_terminal(column_value(units, metric, v));
   };
   const bool spread = result.realizations > 1;
   const bool sites = !plan.sites.empty();

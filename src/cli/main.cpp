@@ -103,10 +103,10 @@ std::string method_spread(const Scenario& sc, const RainSeries& as_read, double 
     options.stop = &g_stop;
     const RunResult r = simulate(sc, disaggregate(as_read, how), none, options);
     text += " " + std::string(method_name(m)) + " " +
-            detail::pretty(realization_metrics(r).energy_Wh, detail::Medium::terminal) + " Wh,";
+            detail::on_terminal(realization_metrics(r).energy_Wh) + " Wh,";
   }
-  return text + " cascade " + detail::pretty(cascade_Wh, detail::Medium::terminal) +
-         " Wh (median of " + std::to_string(n) +
+  return text + " cascade " + detail::on_terminal(cascade_Wh) + " Wh (median of " +
+         std::to_string(n) +
          " realizations): with uncalibrated defaults the answer is a guess "
          "within this span";
 }
