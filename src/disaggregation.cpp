@@ -390,13 +390,14 @@ std::vector<double> disaggregate_interval(double depth_m, Instant length_s, Inst
   const std::uint64_t seed = split_mix(how.seed ^ split_mix(static_cast<std::uint64_t>(start)));
   if (how.method == DisaggregationMethod::fragments) {
     const auto library =
-        std::find_if(how.fragments.begin(), how.fragments.end(),
-                     [&](const FragmentLibrary& l) { return l.length_s == length_s; });
+        std::find_if(how.fragments.begin(), how.fragments.end(), [&](const FragmentLibrary& l) {
+          return library_length_s(l.calendar, start, start + length_s) == l.length_s;
+        });
     if (library == how.fragments.end() || library->intervals.empty()) return {depth_m};
     std::mt19937_64 rng(seed);
     const Fragment& f = choose_fragment(*library, depth_m, season_day(start), wet_before, wet_after,
                                         detail::uniform_open(rng));
-    return split_exactly(depth_m, f.cumulative);
+    return split_exactly(depth_m, stretched_cumulative(f, length_s, how.step_s));
   }
   const Instant steps = (length_s + how.step_s - 1) / how.step_s;
   // Boundary j of the steps, seconds after the interval's start.

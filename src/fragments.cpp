@@ -41,39 +41,57 @@ double season_day(Instant t) {
   return days - kSeasonYear_days * std::floor(days / kSeasonYear_days);
 }
 
+Instant library_length_s(const std::optional<TimeZone>& calendar, Instant start, Instant end) {
+  if (!calendar) return end - start;
+  const Instant on_clock = end + calendar->offset_s(end) - (start + calendar->offset_s(start));
+  return on_clock > 0 && on_clock % kDay_s == 0 ? on_clock : end - start;
+}
+
 FragmentLibrary build_fragment_library(const RainSeries& fine, Instant length_s, Instant phase_s,
-                                       Instant step_s) {
+                                       Instant step_s, const std::optional<TimeZone>& calendar) {
   assert(length_s > step_s && step_s >= 1);
   FragmentLibrary library;
   library.length_s = length_s;
-  library.phase_s = phase_s - length_s * detail::floor_div(phase_s, length_s);
+  // Calendar days are cut on the local clock (midnight to midnight, 23 or 25 h across a change
+  // of daylight saving), anything else in elapsed time.
+  if (calendar && length_s % kDay_s == 0) library.calendar = calendar;
+  const auto clock = [&](Instant t) {
+    return library.calendar ? t + library.calendar->offset_s(t) : t;
+  };
+  const Instant phase = clock(phase_s);
+  library.phase_s = phase - length_s * detail::floor_div(phase, length_s);
   const auto interval_of = [&](Instant t) {
-    return detail::floor_div(t - library.phase_s, length_s);
+    return detail::floor_div(clock(t) - library.phase_s, length_s);
+  };
+  const auto start_of = [&](std::int64_t k) {
+    const Instant on_clock = library.phase_s + k * length_s;
+    return library.calendar ? library.calendar->from_local(on_clock).first : on_clock;
   };
   // The intervals the record covers in full (the spans are sorted and merged).
   std::vector<std::int64_t> whole;
   for (const TimeSpan& span : fine.covered) {
-    const std::int64_t first = -detail::floor_div(-(span.start - library.phase_s), length_s);
-    for (std::int64_t k = first; k < interval_of(span.end); ++k) whole.push_back(k);
+    std::int64_t k = interval_of(span.start);
+    if (start_of(k) < span.start) ++k;
+    for (; start_of(k + 1) <= span.end; ++k) whole.push_back(k);
   }
-  const auto steps = static_cast<std::size_t>((length_s + step_s - 1) / step_s);
   std::map<std::int64_t, std::vector<double>> wet;  // interval -> depth by step
   for (const RainPulse& p : fine.pulses) {
     const std::int64_t k = interval_of(p.start);
     if (!std::binary_search(whole.begin(), whole.end(), k)) continue;
     std::vector<double>& by_step = wet[k];
-    by_step.resize(steps, 0.0);
-    by_step[static_cast<std::size_t>((p.start - library.phase_s - k * length_s) / step_s)] +=
-        p.depth_m;
+    by_step.resize(static_cast<std::size_t>((start_of(k + 1) - start_of(k) + step_s - 1) / step_s),
+                   0.0);
+    by_step[static_cast<std::size_t>((p.start - start_of(k)) / step_s)] += p.depth_m;
   }
   for (const auto& [k, by_step] : wet) {
     Fragment f;
+    f.length_s = start_of(k + 1) - start_of(k);
     f.wet_before = wet.count(k - 1) > 0;
     f.wet_after = wet.count(k + 1) > 0;
-    f.season_day = season_day(library.phase_s + k * length_s);
-    f.cumulative.assign(steps + 1, 0.0);
+    f.season_day = season_day(start_of(k));
+    f.cumulative.assign(by_step.size() + 1, 0.0);
     double sum = 0.0;
-    for (std::size_t j = 0; j < steps; ++j) {
+    for (std::size_t j = 0; j < by_step.size(); ++j) {
       sum += by_step[j];
       f.cumulative[j + 1] = sum;
     }
@@ -83,6 +101,28 @@ FragmentLibrary build_fragment_library(const RainSeries& fine, Instant length_s,
     library.intervals.push_back(std::move(f));
   }
   return library;
+}
+
+std::vector<double> stretched_cumulative(const Fragment& f, Instant length_s, Instant step_s) {
+  if (f.length_s == length_s) return f.cumulative;
+  const Instant steps = (length_s + step_s - 1) / step_s;
+  const auto last = static_cast<Instant>(f.cumulative.size()) - 1;  // the fragment's steps
+  std::vector<double> out(static_cast<std::size_t>(steps) + 1, 1.0);
+  out[0] = 0.0;
+  for (Instant j = 1; j < steps; ++j) {
+    // Boundary j falls at j step_s f.length_s / length_s into the fragment: in its step i, r /
+    // length_s seconds past that step's start (exact integers).
+    const Instant position = std::min(j * step_s, length_s) * f.length_s;
+    const Instant i = position / (step_s * length_s);
+    if (i >= last) break;
+    const Instant r = position - i * step_s * length_s;
+    const Instant width_s = std::min((i + 1) * step_s, f.length_s) - i * step_s;
+    const auto at = static_cast<std::size_t>(i);
+    out[static_cast<std::size_t>(j)] =
+        f.cumulative[at] + (f.cumulative[at + 1] - f.cumulative[at]) * static_cast<double>(r) /
+                               static_cast<double>(width_s * length_s);
+  }
+  return out;
 }
 
 std::vector<double> knn_weights(std::size_t k) {

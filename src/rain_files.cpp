@@ -190,18 +190,25 @@ RainSeries load_rain_as_read(const RainConfig& config, const std::filesystem::pa
 namespace {
 
 // A fragment library for each interval length of `as_read` longer than `step_s`, cut at the
-// phase of the first interval of that length.
-std::vector<FragmentLibrary> fragment_libraries(const RainSeries& as_read, const RainSeries& fine,
-                                                Instant step_s) {
+// phase of the first interval of that length. A `series` record read on a clock with daylight
+// saving has calendar days (23 or 25 h across a change: see read_rain_series); they count as
+// 24 h and are cut on the same clock (library_length_s). `daily` records have days of standard
+// time, 24 h each, and are cut in elapsed time.
+std::vector<FragmentLibrary> fragment_libraries(const RainConfig& config, const RainSeries& as_read,
+                                                const RainSeries& fine, Instant step_s) {
+  std::optional<TimeZone> calendar;
+  if (config.format == RainFormat::series && !config.series.zone.fixed()) {
+    calendar = config.series.zone;
+  }
   std::vector<FragmentLibrary> out;
   for (const RainPulse& p : as_read.pulses) {
-    const Instant length_s = p.end - p.start;
+    const Instant length_s = library_length_s(calendar, p.start, p.end);
     if (length_s <= step_s || std::any_of(out.begin(), out.end(), [&](const FragmentLibrary& l) {
           return l.length_s == length_s;
         })) {
       continue;
     }
-    out.push_back(build_fragment_library(fine, length_s, p.start, step_s));
+    out.push_back(build_fragment_library(fine, length_s, p.start, step_s, calendar));
   }
   return out;
 }
@@ -250,7 +257,7 @@ std::optional<Disaggregation> calibrated_disaggregation(const RainConfig& config
                          (fragments ? "fragments" : "cascade"));
   }
   if (fragments) {
-    how.fragments = fragment_libraries(as_read, fine, how.step_s);
+    how.fragments = fragment_libraries(config, as_read, fine, how.step_s);
     for (const FragmentLibrary& library : how.fragments) {
       if (library.intervals.empty()) {
         throw InputError(label, 0, key,

@@ -208,7 +208,14 @@ class SeriesBuilder {
   void add(const SeriesRow& row) {
     const Instant end = row.time;
     Instant start = end - step_;
-    if (has_previous_ && end - previous_.time <= step_) {
+    // Rows a step apart: on the local clock for a step of whole days in a zone with daylight
+    // saving, so that each interval is a calendar day (23 or 25 h across a change), in elapsed
+    // time otherwise.
+    const bool calendar = step_ % kDay_s == 0 && !fmt_.zone.fixed();
+    const Instant local_end = end + row.offset_s;
+    if (calendar) start = fmt_.zone.from_local(local_end - step_).first;
+    if (has_previous_ && (calendar ? local_end - (previous_.time + previous_.offset_s)
+                                   : end - previous_.time) <= step_) {
       start = previous_.time;
     } else if (has_previous_) {
       gaps_.note(series_, previous_.time, previous_.offset_s, start, row.offset_s, row.line);

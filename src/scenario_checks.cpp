@@ -28,6 +28,9 @@ void check_rain(const Seen& seen, Scenario& s) {
   }
   if (series.value == RainValue::intensity && !per_hour) series.unit_name += "/h";
   if (!seen.has("rain.utc_offset")) series.zone = s.site.zone;
+  // A calibration record's naive stamps are on the record's clock, so that its days are cut
+  // as the record's are.
+  if (s.rain.calibrate_with) s.rain.calibrate_with->format.zone = series.zone;
   if (series.decimal == ',' && series.delimiter == ',') {
     seen.at("rain.decimal")
         .fail(

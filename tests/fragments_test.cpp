@@ -2,6 +2,7 @@
 
 #include <gtest/gtest.h>
 
+#include <optional>
 #include <vector>
 
 #include "gutterwatt/disaggregation.hpp"
@@ -124,6 +125,107 @@ TEST(Fragments, WidensTheSeasonThenLetsTheNeighboursGo) {
   // Wet on both sides: no interval in the library is; any state within 15 days of day 100
   // gives 26, k = 5; the nearest are the ten of 5.1 mm after a wet one (the earliest on a tie).
   EXPECT_TRUE(choose_fragment(library, 5.1e-3, 100.0, true, true, 0.5).wet_before);
+}
+
+// America/Los_Angeles in 2025 (Energy Policy Act of 2005, sec. 110: daylight saving from 2:00
+// on the second Sunday of March to 2:00 on the first Sunday of November; PST -8 h, PDT -7 h).
+// Local midnights, worked by hand from kT0 = 2025-03-01T00:00Z: 8 March 00:00 PST = 08:00Z;
+// 9 March 00:00 PST = 08:00Z; 10 March 00:00 PDT = 07:00Z (9 March is 23 h); 11 March likewise.
+constexpr Instant kMar8 = kT0 + 7 * 86400 + 8 * kHour;
+constexpr Instant kMar9 = kMar8 + 86400;
+constexpr Instant kMar10 = kMar9 + 23 * kHour;
+constexpr Instant kMar11 = kMar10 + 86400;
+
+TimeZone los_angeles() {
+  const std::optional<TimeZone> zone = TimeZone::named("America/Los_Angeles");
+  EXPECT_TRUE(zone.has_value());
+  return zone.value_or(TimeZone{});
+}
+
+// One fragment of a 24 h day, all its rain in 06:00-06:05 (5-minute step 72 of 288).
+Fragment six_oclock_day() {
+  Fragment f;
+  f.length_s = 86400;
+  f.cumulative.assign(289, 1.0);
+  for (std::size_t j = 0; j <= 72; ++j) f.cumulative[j] = 0.0;
+  return f;
+}
+
+TEST(Fragments, CalendarDaysAreCutOnTheLocalClock) {
+  // An invented 5-minute record over 8-10 March, Los Angeles time: 1 mm at 06:00-06:05 local on
+  // 8 March (14:00Z) and 2 mm at 06:00-06:05 local on 9 March, the 23 h day (13:00Z).
+  RainSeries fine;
+  fine.step_s = 300;
+  fine.covered = {{kMar8, kMar11}};
+  fine.pulses = {{kMar8 + 6 * kHour, kMar8 + 6 * kHour + 300, 1e-3},
+                 {kMar9 + 5 * kHour, kMar9 + 5 * kHour + 300, 2e-3}};
+  const FragmentLibrary library = build_fragment_library(fine, 86400, kMar9, 300, los_angeles());
+  ASSERT_TRUE(library.calendar.has_value());
+  ASSERT_EQ(library.intervals.size(), 2u);  // 10 March is dry
+  const Fragment& eighth = library.intervals[0];
+  EXPECT_EQ(eighth.length_s, 86400);
+  ASSERT_EQ(eighth.cumulative.size(), 289u);
+  EXPECT_EQ(eighth.cumulative[72], 0.0);  // 06:00 is 6 h into a 24 h day: step 72
+  EXPECT_EQ(eighth.cumulative[73], 1.0);
+  const Fragment& ninth = library.intervals[1];
+  EXPECT_EQ(ninth.length_s, 23 * kHour);
+  ASSERT_EQ(ninth.cumulative.size(), 277u);  // 23 h of 5-minute steps
+  EXPECT_EQ(ninth.cumulative[60], 0.0);      // 06:00 PDT is 5 h after midnight PST: step 60
+  EXPECT_EQ(ninth.cumulative[61], 1.0);
+  EXPECT_TRUE(ninth.wet_before);
+  EXPECT_FALSE(ninth.wet_after);
+  // Both are 24 h on the local clock; 9 March's 23 h is what elapses.
+  EXPECT_EQ(library_length_s(library.calendar, kMar9, kMar10), 86400);
+  EXPECT_EQ(library_length_s(std::nullopt, kMar9, kMar10), 23 * kHour);
+  // An hour across the change is an hour (01:00 PST to 03:00 PDT on the clock, not a day).
+  EXPECT_EQ(library_length_s(library.calendar, kMar9 + kHour, kMar9 + 2 * kHour), kHour);
+}
+
+TEST(Fragments, ADayFragmentIsStretchedOverA23Or25HourDay) {
+  const Fragment f = six_oclock_day();
+  // 23 h: the fragment's 06:00-06:05 (21600-21900 s) lands on 21600 x 23/24 = 20700 to 20987.5 s,
+  // inside step 69 (20700-21000 s): all of the depth there.
+  const std::vector<double> short_day = stretched_cumulative(f, 23 * kHour, 300);
+  ASSERT_EQ(short_day.size(), 277u);
+  EXPECT_EQ(short_day[69], 0.0);
+  EXPECT_EQ(short_day[70], 1.0);
+  // 25 h: on 22500 to 22812.5 s; step 75 (22500-22800 s) holds 300 / 312.5 = 0.96 of it, step
+  // 76 the remaining 0.04.
+  const std::vector<double> long_day = stretched_cumulative(f, 25 * kHour, 300);
+  ASSERT_EQ(long_day.size(), 301u);
+  EXPECT_EQ(long_day[75], 0.0);
+  EXPECT_NEAR(long_day[76], 0.96, 1e-15);
+  EXPECT_EQ(long_day[77], 1.0);
+  EXPECT_EQ(long_day[300], 1.0);
+  // The same length: the fragment as it is.
+  EXPECT_EQ(stretched_cumulative(f, 86400, 300), f.cumulative);
+}
+
+TEST(Fragments, ACalendarDayKeepsItsDepthExactlyAndInsideIt) {
+  Disaggregation how;
+  how.method = DisaggregationMethod::fragments;
+  how.step_s = 300;
+  FragmentLibrary library;
+  library.length_s = 86400;
+  library.calendar = los_angeles();
+  library.intervals = {six_oclock_day()};
+  how.fragments = {library};
+  // 9 March (23 h) and 2 November (25 h: 00:00 PDT = 07:00Z to 00:00 PST on 3 November = 08:00Z;
+  // 2 November is 246 days after 1 March, counted by hand on the calendar).
+  const Instant nov2 = kT0 + 246 * 86400 + 7 * kHour;
+  const double depth_m = 7.3e-3;
+  const std::vector<double> short_day = disaggregate_interval(depth_m, 23 * kHour, kMar9, how);
+  ASSERT_EQ(short_day.size(), 276u);  // no step beyond the day's end
+  EXPECT_EQ(short_day[69], depth_m);
+  const std::vector<double> long_day = disaggregate_interval(depth_m, 25 * kHour, nov2, how);
+  ASSERT_EQ(long_day.size(), 300u);
+  // 0.96 and 0.04 of 7.3 mm (hand), within a unit in the last place; their sum exactly 7.3 mm.
+  EXPECT_NEAR(long_day[75], 7.008e-3, 2e-18);
+  EXPECT_NEAR(long_day[76], 0.292e-3, 2e-18);
+  EXPECT_EQ(long_day[75] + long_day[76], depth_m);
+  double rest = 0.0;
+  for (std::size_t j = 0; j < long_day.size(); ++j) rest += j == 75 || j == 76 ? 0.0 : long_day[j];
+  EXPECT_EQ(rest, 0.0);
 }
 
 TEST(Fragments, SeasonGoesRoundTheYear) {

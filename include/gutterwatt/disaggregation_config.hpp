@@ -78,14 +78,18 @@ struct Fragment {
   double season_day = 0.0;  ///< days since the start of the year, 0 to 365.2425 (see fragments.hpp)
   /// Share of the depth that falls before each step boundary: steps + 1 values, 0 first, 1 last.
   std::vector<double> cumulative;
+  Instant length_s = 0;  ///< of this interval (a calendar day may be 23 or 25 h)
 };
 
 /// The wet intervals of a calibration record cut into intervals of `length_s` starting at
 /// `phase_s` modulo `length_s` (as the target record's are), each split into steps of the
-/// target step.
+/// target step. With `calendar`, `length_s` is a whole number of days and both are read on the
+/// local clock of that zone: the intervals are calendar days, 23 or 25 h across a change of
+/// daylight saving; without, elapsed time.
 struct FragmentLibrary {
   Instant length_s = 0;
   Instant phase_s = 0;
+  std::optional<TimeZone> calendar;
   std::vector<Fragment> intervals;  ///< wet ones, in time order
 };
 
@@ -121,8 +125,8 @@ struct Disaggregation {
   /// rain.disaggregate.idf: the 2-year IDF curve the cascade's intermittency is fitted to
   /// (fit_intermittency), when there is no fine record to calibrate with.
   std::optional<IdfCurve> idf;
-  /// fragments only: one library for each interval length of the record (from
-  /// rain.disaggregate.calibrate_with).
+  /// fragments only: one library for each interval length of the record, a calendar day counting
+  /// as 24 h whatever its length (from rain.disaggregate.calibrate_with).
   std::vector<FragmentLibrary> fragments;
 };
 

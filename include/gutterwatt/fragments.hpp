@@ -12,6 +12,7 @@
 /// ±15-day window, how it widens, distance on the depth alone) are from memory of these papers.
 
 #include <cstddef>
+#include <optional>
 #include <vector>
 
 #include "gutterwatt/disaggregation_config.hpp"
@@ -26,13 +27,28 @@ inline constexpr double kSeasonYear_days = 365.2425;
 /// Where an instant falls in the year, days from 0 to kSeasonYear_days.
 double season_day(Instant t);
 
+/// The length of [start, end) as a library on `calendar` counts it: on that zone's local clock
+/// when it is a whole number of days there (a calendar day, 23 or 25 h long across a change of
+/// daylight saving, counts as 24 h), else (and without `calendar`) its elapsed length.
+Instant library_length_s(const std::optional<TimeZone>& calendar, Instant start, Instant end);
+
 /// The library of `fine` (a series at a step that divides `step_s`) for intervals of `length_s`
 /// (> `step_s`) starting at `phase_s` modulo `length_s`: every such interval the record covers
 /// in full and that holds rain, with its depth added up over steps of `step_s` from its start (the
-/// last shorter when `step_s` does not divide `length_s`; a pulse counts in the step it starts
-/// in). An interval just before or after one that is not covered in full counts as dry.
+/// last shorter when `step_s` does not divide the interval; a pulse counts in the step it starts
+/// in). An interval just before or after one that is not covered in full counts as dry. With
+/// `calendar` and `length_s` a whole number of days, the intervals are cut on that zone's local
+/// clock (calendar days, the library's `calendar`), else in elapsed time.
 FragmentLibrary build_fragment_library(const RainSeries& fine, Instant length_s, Instant phase_s,
-                                       Instant step_s);
+                                       Instant step_s,
+                                       const std::optional<TimeZone>& calendar = std::nullopt);
+
+/// The cumulative shares of `f` at the step boundaries of an interval of `length_s` in steps of
+/// `step_s` (the last shorter when it does not divide `length_s`): `f.cumulative` itself when the
+/// lengths agree; else `f`'s time stretched by `f.length_s / length_s` (a fragment of a 24 h
+/// calendar day on a 23 h or 25 h one), linear within each of its steps. 0 first, 1 last,
+/// non-decreasing, so the interval's depth stays inside it and is split exactly.
+std::vector<double> stretched_cumulative(const Fragment& f, Instant length_s, Instant step_s);
 
 /// Fewest library intervals the choice is made among: the season window widens (±15, 30, 61
 /// days, then the whole year) and then the wet or dry state of the neighbours is let go until

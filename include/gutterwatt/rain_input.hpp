@@ -100,7 +100,9 @@ using SeriesProgress = std::function<void(const RainSeries& so_far)>;
 /// (T0 - step, T0]. Timestamps must strictly increase; naive ones are read on the clock of
 /// `fmt.zone`, and a file may not mix naive stamps with stamps that carry an offset. Without
 /// `fmt.step_s` the step is the most common spacing of consecutive stamps among the first 4096 rows
-/// (ties: the smallest), which needs at least two rows. Rows stream through once the step is known:
+/// (ties: the smallest), which needs at least two rows. A step of whole days on a `fmt.zone` with
+/// daylight saving is counted on the local clock: each interval is a calendar day (23 or 25 h
+/// across a change), not a gap or an overlap. Rows stream through once the step is known:
 /// memory holds the wet intervals, not every row. Values must be finite, not negative, and imply at
 /// most kMaxRainIntensity_mm_per_h over their interval. `progress`, when given, is called every
 /// kProgressRows rows once the step is known.
