@@ -380,7 +380,7 @@ std::string_view method_name(DisaggregationMethod method) {
 
 std::vector<double> disaggregate_interval(double depth_m, Instant length_s, Instant start,
                                           const Disaggregation& how, bool wet_before,
-                                          bool wet_after) {
+                                          bool wet_after, double edge_m) {
   assert(length_s >= 1 && how.step_s >= 1);
   const bool nrcs = how.method != DisaggregationMethod::block && !is_random(how.method);
   if (how.method == DisaggregationMethod::block || length_s <= how.step_s ||
@@ -396,7 +396,7 @@ std::vector<double> disaggregate_interval(double depth_m, Instant length_s, Inst
     if (library == how.fragments.end() || library->intervals.empty()) return {depth_m};
     std::mt19937_64 rng(seed);
     const Fragment& f = choose_fragment(*library, depth_m, season_day(start), wet_before, wet_after,
-                                        detail::uniform_open(rng));
+                                        detail::uniform_open(rng), wet_before ? edge_m : 0.0);
     return split_exactly(depth_m, stretched_cumulative(f, length_s, how.step_s));
   }
   const Instant steps = (length_s + how.step_s - 1) / how.step_s;
@@ -442,6 +442,7 @@ RainSeries disaggregate(const RainSeries& as_read, const Disaggregation& how) {
   out.warnings = as_read.warnings;
   out.pulses.reserve(as_read.pulses.size());
   bool spread = false;
+  double edge_m = 0.0;  // the last step of the interval before, as spread
   const std::vector<RainPulse>& pulses = as_read.pulses;
   for (std::size_t k = 0; k < pulses.size(); ++k) {
     const RainPulse& p = pulses[k];
@@ -450,7 +451,8 @@ RainSeries disaggregate(const RainSeries& as_read, const Disaggregation& how) {
     const bool wet_before = k > 0 && pulses[k - 1].end == p.start;
     const bool wet_after = k + 1 < pulses.size() && pulses[k + 1].start == p.end;
     const std::vector<double> parts =
-        disaggregate_interval(p.depth_m, length_s, p.start, how, wet_before, wet_after);
+        disaggregate_interval(p.depth_m, length_s, p.start, how, wet_before, wet_after, edge_m);
+    edge_m = parts.size() > 1 ? parts.back() : 0.0;
     if (parts.size() == 1) {
       out.pulses.push_back(p);
       continue;

@@ -4,6 +4,7 @@
 #include <array>
 #include <cassert>
 #include <cmath>
+#include <iterator>
 #include <limits>
 #include <map>
 #include <utility>
@@ -134,7 +135,7 @@ std::vector<double> knn_weights(std::size_t k) {
 }
 
 const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, double when,
-                                bool wet_before, bool wet_after, double u) {
+                                bool wet_before, bool wet_after, double u, double edge_m) {
   const std::vector<Fragment>& all = library.intervals;
   assert(!all.empty());
   // How many intervals each stage admits: the same neighbour states first (Westra et al. 2012),
@@ -170,13 +171,25 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
       1, static_cast<std::size_t>(std::lround(std::sqrt(static_cast<double>(candidates.size())))));
   std::partial_sort(candidates.begin(), candidates.begin() + static_cast<std::ptrdiff_t>(k),
                     candidates.end());
-  const std::vector<double> weights = knn_weights(k);
+  candidates.resize(k);
+  // After a wet last step, those of the k whose first step, scaled to this depth, goes on at
+  // about its depth (this project's rule: see kEdgeRatio), when there are any.
+  if (edge_m > 0.0) {
+    const auto goes_on = [&](const std::pair<double, std::size_t>& c) {
+      const double first_m = depth_m * all[c.second].cumulative[1];
+      return first_m * kEdgeRatio >= edge_m && first_m <= edge_m * kEdgeRatio;
+    };
+    std::vector<std::pair<double, std::size_t>> kept;
+    std::copy_if(candidates.begin(), candidates.end(), std::back_inserter(kept), goes_on);
+    if (!kept.empty()) candidates = std::move(kept);
+  }
+  const std::vector<double> weights = knn_weights(candidates.size());
   double below = 0.0;
-  for (std::size_t j = 0; j + 1 < k; ++j) {
+  for (std::size_t j = 0; j + 1 < candidates.size(); ++j) {
     below += weights[j];
     if (u < below) return all[candidates[j].second];
   }
-  return all[candidates[k - 1].second];
+  return all[candidates.back().second];
 }
 
 }  // namespace gutterwatt

@@ -115,6 +115,34 @@ TEST(Fragments, DrawsAmongTheKNearestOfTheSameStatesAndSeason) {
   EXPECT_DOUBLE_EQ(depth_mm(0.95), 7.0);
 }
 
+TEST(Fragments, AfterAWetStepPrefersAFragmentThatGoesOnAtItsDepth) {
+  // A library by hand: 9 hours of 1 to 9 mm in two half-hour steps, dry neighbours, day 100;
+  // the first step's share 0.1, 0.5 and 0.9 for 5, 4 and 6 mm, 0.5 for the others.
+  FragmentLibrary library;
+  library.length_s = kHour;
+  for (int mm = 1; mm <= 9; ++mm) {
+    const double first = mm == 5 ? 0.1 : mm == 6 ? 0.9 : 0.5;
+    library.intervals.push_back({mm * 1e-3, false, false, 100.0, {0.0, first, 1.0}, kHour});
+  }
+  // 9 candidates, k = 3; nearest to 5 mm: 5, 4, 6 mm (4 before 6 on the tie: the earlier).
+  // Their first steps scaled to 5 mm: 0.5, 2.5 and 4.5 mm.
+  const auto depth_mm = [&](double u, double edge_mm) {
+    return choose_fragment(library, 5e-3, 100.0, false, false, u, edge_mm * 1e-3).depth_m * 1e3;
+  };
+  // The last step before held 2 mm: within a factor 2 (1 to 4 mm) only 4 mm's 2.5 mm.
+  for (const double u : {0.1, 0.5, 0.99}) EXPECT_DOUBLE_EQ(depth_mm(u, 2.0), 4.0);
+  // 3 mm: 1.5 to 6 mm keeps 4 and 6 mm, drawn 2/3 and 1/3 (knn_weights(2)).
+  EXPECT_DOUBLE_EQ(depth_mm(0.6, 3.0), 4.0);
+  EXPECT_DOUBLE_EQ(depth_mm(0.7, 3.0), 6.0);
+  // 20 mm: none within 10 to 40 mm, so all three, 6/11, 3/11, 2/11 (cumulative 0.545, 0.818);
+  // a dry step before (0) is the same.
+  for (const double edge_mm : {20.0, 0.0}) {
+    EXPECT_DOUBLE_EQ(depth_mm(0.5, edge_mm), 5.0);
+    EXPECT_DOUBLE_EQ(depth_mm(0.6, edge_mm), 4.0);
+    EXPECT_DOUBLE_EQ(depth_mm(0.9, edge_mm), 6.0);
+  }
+}
+
 TEST(Fragments, WidensTheSeasonThenLetsTheNeighboursGo) {
   const FragmentLibrary library = hand_library();
   // Day 300, dry neighbours: 5 within the window, too few (10); the whole year gives 21,

@@ -20,11 +20,13 @@ namespace gutterwatt {
 /// another length is returned as one value. A calibrated cascade takes the intervals before and
 /// after as wet or dry (`wet_before`, `wet_after`) for the position of the boxes at its ends;
 /// `fragments` picks among the library intervals with the same neighbour states (choose_fragment)
-/// in the library of `length_s` in `how.fragments`; without one the interval is returned as one
-/// value (calibrated_disaggregation builds one for every interval length of the record).
+/// in the library of `length_s` in `how.fragments`, given `edge_m`, the depth of the last step of
+/// the interval just before as spread (0: none, or dry); without a library the interval is
+/// returned as one value (calibrated_disaggregation builds one for every interval length of the
+/// record).
 std::vector<double> disaggregate_interval(double depth_m, Instant length_s, Instant start,
                                           const Disaggregation& how, bool wet_before = false,
-                                          bool wet_after = false);
+                                          bool wet_after = false, double edge_m = 0.0);
 
 /// The warning of a record spread by the cascade with its default parameters.
 inline constexpr std::string_view kUncalibratedWarning =
