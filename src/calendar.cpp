@@ -3,6 +3,7 @@
 #include <date/date.h>
 #include <date/tz.h>
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <cstdio>
@@ -62,18 +63,26 @@ std::int64_t days_from_civil(const date::year_month_day& ymd) {
   return date::sys_days{ymd}.time_since_epoch().count();
 }
 
-// Appends a zero-padded number of at least `width` digits (a leading `-` for negatives).
-void append_padded(std::string& out, long long value, int width) {
+// Writes a zero-padded number of at least `width` digits (a leading `-` for negatives) at `p`,
+// which has room for 24 characters past `width`; returns the end. Into a buffer, not a string:
+// trace.csv has a time on each row (issue 16).
+char* put_padded(char* p, long long value, int width) {
   if (value < 0) {
-    out += '-';
+    *p++ = '-';
     --width;
   }
   char digits[24];
   const char* end = std::to_chars(digits, digits + sizeof digits, value).ptr;
   std::string_view text(digits, static_cast<std::size_t>(end - digits));
   if (value < 0) text.remove_prefix(1);
-  if (static_cast<int>(text.size()) < width) out.append(width - text.size(), '0');
-  out += text;
+  for (int k = static_cast<int>(text.size()); k < width; ++k) *p++ = '0';
+  return std::copy(text.begin(), text.end(), p);
+}
+
+// Appends a zero-padded number of at least `width` digits (a leading `-` for negatives).
+void append_padded(std::string& out, long long value, int width) {
+  char buf[32];
+  out.append(buf, put_padded(buf, value, width));
 }
 
 void append_offset(std::string& out, int offset_s) {
@@ -194,21 +203,21 @@ bool format_has_offset(std::string_view format) {
 
 std::string format_iso8601(Instant instant, int offset_s) {
   const CivilTime t = to_civil(instant, offset_s);
-  std::string out;
-  out.reserve(25);
-  append_padded(out, t.year, 4);
-  out += '-';
-  append_padded(out, t.month, 2);
-  out += '-';
-  append_padded(out, t.day, 2);
-  out += 'T';
-  append_padded(out, t.hour, 2);
-  out += ':';
-  append_padded(out, t.minute, 2);
+  char buf[128];
+  char* p = put_padded(buf, t.year, 4);
+  *p++ = '-';
+  p = put_padded(p, t.month, 2);
+  *p++ = '-';
+  p = put_padded(p, t.day, 2);
+  *p++ = 'T';
+  p = put_padded(p, t.hour, 2);
+  *p++ = ':';
+  p = put_padded(p, t.minute, 2);
   if (t.second != 0) {
-    out += ':';
-    append_padded(out, t.second, 2);
+    *p++ = ':';
+    p = put_padded(p, t.second, 2);
   }
+  std::string out(buf, p);
   if (offset_s != 0) append_offset(out, offset_s);
   return out;
 }

@@ -125,22 +125,69 @@ inline std::optional<double> to_number(std::string_view text) {
   return value;
 }
 
-/// `v` with `decimals` places (printf `%.*f`), never a negative zero (`-0.00` prints `0.00`).
-/// std::to_chars gives printf's text in the C locale without its format parsing: a tenth of the
-/// instructions, which matter for trace.csv's rows (issue 16).
-inline std::string fixed(double v, int decimals) {
-  char buf[400];
-  const auto [end, ec] =
-      std::to_chars(buf, buf + sizeof buf, v, std::chars_format::fixed, decimals);
-  std::string out;
-  if (ec == std::errc()) {
-    out.assign(buf, end);
-  } else {  // past 400 characters: printf's text, truncated
-    std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
-    out = buf;
+/// The buffer fixed_text writes in: longer text is cut there, as snprintf cuts it.
+inline constexpr std::size_t kFixedRoom = 400;
+
+/// `v` with `decimals` places (printf `%.*f`), written in `buf`, never a negative zero (`-0.00`
+/// gives `0.00`). Most numbers take an exact short path: |v| 10^d is rounded once by the
+/// multiplication, by at most half a unit in its last place (ulp), so while it stays below 2^52
+/// and its fraction is more than an ulp from one half, the integer nearest to it is the one
+/// nearest to the exact product, which printf prints; that integer's digits with the point put
+/// in are printf's text. The rest (near-ties, large numbers, NaN) go through std::to_chars,
+/// which gives printf's text in the C locale. trace.csv's rows are most of the numbers a run
+/// writes (issue 16).
+inline std::string_view fixed_text(double v, int decimals, char (&buf)[kFixedRoom]) {
+  static constexpr double kPow10[] = {1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9};
+  if (decimals >= 0 && decimals < static_cast<int>(std::size(kPow10))) {
+    const double s = std::abs(v) * kPow10[decimals];
+    if (s < 0x1p52) {  // false for NaN and infinities
+      const double whole = std::floor(s);
+      const double fraction = s - whole;  // exact below 2^52
+      if (std::abs(fraction - 0.5) > s * 0x1p-52) {
+        const auto n = static_cast<std::uint64_t>(whole) + (fraction > 0.5 ? 1u : 0u);
+        // The integer's digits after room for a sign, the point and the zeros that give it
+        // at least one digit before the point: "-0.0012" from 12 with 4 places.
+        constexpr std::size_t kRoom = std::size(kPow10) + 2;
+        char* const digits = buf + kRoom;
+        const std::size_t count =
+            static_cast<std::size_t>(std::to_chars(digits, buf + kFixedRoom, n).ptr - digits);
+        const std::size_t places = static_cast<std::size_t>(decimals);
+        const std::size_t zeros = places + 1 > count ? places + 1 - count : 0;
+        char* const first = digits - zeros;
+        std::fill(first, digits, '0');
+        const std::size_t whole_digits = count + zeros - places;
+        // The whole digits move one place left, making room for the point.
+        char* start = std::copy(first, first + whole_digits, first - 1) - whole_digits;
+        std::size_t length = whole_digits;
+        if (places > 0) {
+          start[whole_digits] = '.';
+          length += places + 1;
+        }
+        if (v < 0.0 && n != 0) {
+          *--start = '-';
+          ++length;
+        }
+        return {start, length};
+      }
+    }
   }
-  if (out.find_first_not_of("-0.") == std::string::npos && out[0] == '-') out.erase(0, 1);
-  return out;
+  const auto [end, ec] =
+      std::to_chars(buf, buf + kFixedRoom, v, std::chars_format::fixed, decimals);
+  std::string_view text(buf, static_cast<std::size_t>(end - buf));
+  if (ec != std::errc()) {  // past the room: printf's text, truncated
+    std::snprintf(buf, kFixedRoom, "%.*f", decimals, v);
+    text = buf;
+  }
+  if (text.starts_with('-') && text.find_first_not_of("-0.") == std::string_view::npos) {
+    text.remove_prefix(1);
+  }
+  return text;
+}
+
+/// `v` with `decimals` places (printf `%.*f`), never a negative zero (fixed_text).
+inline std::string fixed(double v, int decimals) {
+  char buf[kFixedRoom];
+  return std::string(fixed_text(v, decimals, buf));
 }
 
 /// A number by the report's one rule, as the terminal shows it.
@@ -151,14 +198,20 @@ inline std::string litres_per_minute(double flow_m3_per_s) {
   return on_terminal(flow_m3_per_s / kLitrePerMinute_m3_per_s) + " L/min";
 }
 
+/// As fixed_text, without trailing zeros after the point (and without a bare point).
+inline std::string_view fixed_trimmed_text(double v, int decimals, char (&buf)[kFixedRoom]) {
+  std::string_view text = fixed_text(v, decimals, buf);
+  if (text.find('.') != std::string_view::npos) {
+    while (text.back() == '0') text.remove_suffix(1);
+    if (text.back() == '.') text.remove_suffix(1);
+  }
+  return text == "-0" ? "0" : text;
+}
+
 /// As fixed, without trailing zeros after the point (and without a bare point).
 inline std::string fixed_trimmed(double v, int decimals) {
-  std::string out = fixed(v, decimals);
-  if (out.find('.') != std::string::npos) {
-    while (out.back() == '0') out.pop_back();
-    if (out.back() == '.') out.pop_back();
-  }
-  return out == "-0" ? "0" : out;
+  char buf[kFixedRoom];
+  return std::string(fixed_trimmed_text(v, decimals, buf));
 }
 
 /// The comma-separated fields of `line`, each trimmed (no quoting).

@@ -18,10 +18,14 @@ namespace {
 
 constexpr double kMmPerM = 1e3;
 
-// Fixed-point text with trailing zeros trimmed, so CSV cells stay short and exact enough.
-std::string num(double v, int decimals) {
-  if (!std::isfinite(v)) return "nan";
-  return detail::fixed_trimmed(v, decimals);
+// Appends fixed-point text with trailing zeros trimmed, so CSV cells stay short and exact enough.
+void append_num(std::string& out, double v, int decimals) {
+  if (!std::isfinite(v)) {
+    out += "nan";
+    return;
+  }
+  char buf[detail::kFixedRoom];
+  out += detail::fixed_trimmed_text(v, decimals, buf);
 }
 
 double round_to(double v, int decimals) {
@@ -142,15 +146,19 @@ void write_header(std::ostream& out, std::span<const OutputColumn<Row>> columns,
   out << line;
 }
 
+// A row's text is built in one allocation of this size (rows are shorter but for long texts).
+constexpr std::size_t kLineRoom = 256;
+
 template <class Row>
 void write_row(std::ostream& out, std::span<const OutputColumn<Row>> columns, const Row& row,
                UnitSystem units) {
   std::string line;
+  line.reserve(kLineRoom);
   for (const OutputColumn<Row>& c : columns) {
     if (c.text != nullptr) {
       line += c.text(row);
     } else if (const double v = c.value(row); !std::isnan(v)) {
-      line += num(column_value(units, c.name, v), column_decimals(units, c.name, c.decimals));
+      append_num(line, column_value(units, c.name, v), column_decimals(units, c.name, c.decimals));
     }
     line += ',';
   }

@@ -5,6 +5,10 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <cstdint>
+#include <cstdio>
+#include <cstring>
+#include <random>
 #include <sstream>
 #include <string>
 #include <vector>
@@ -46,6 +50,51 @@ TEST(Fixed, NeverPrintsANegativeZero) {
   EXPECT_EQ(fixed(-0.0001, 2), "0.00");
   EXPECT_EQ(fixed(-0.006, 2), "-0.01");
   EXPECT_EQ(fixed(2.5, 3), "2.500");
+}
+
+// printf's %.*f is the reference (C11 7.21.6.1: the exact value rounded, in glibc by the current
+// rounding mode, to nearest with ties to even); the negative zero dropped as fixed drops it.
+std::string printf_fixed(double v, int decimals) {
+  char buf[kFixedRoom];
+  std::snprintf(buf, sizeof buf, "%.*f", decimals, v);
+  std::string text = buf;
+  if (text.find_first_not_of("-0.") == std::string::npos && text[0] == '-') text.erase(0, 1);
+  return text;
+}
+
+TEST(Fixed, PrintsWhatPrintfPrints) {
+  // Binary ties and near-ties, where the short path must give way: 0.125 is exact, so printf
+  // rounds it to even; 2.675 is stored as 2.67499999999999982236431605997495353221893310546875.
+  EXPECT_EQ(fixed(0.125, 2), "0.12");
+  EXPECT_EQ(fixed(0.375, 2), "0.38");
+  EXPECT_EQ(fixed(2.675, 2), "2.67");
+  EXPECT_EQ(fixed(-1.0005, 3), "-1.000");  // stored just below 1.0005
+  EXPECT_EQ(fixed(0.5, 0), "0");
+  EXPECT_EQ(fixed(1.5, 0), "2");
+  EXPECT_EQ(fixed(1e15, 3), "1000000000000000.000");
+  EXPECT_EQ(fixed(0.0004, 9), "0.000400000");
+  EXPECT_EQ(fixed(std::nan(""), 2), printf_fixed(std::nan(""), 2));
+  // Many numbers of the kinds a run writes (levels, flows, powers; ties on the grid of the
+  // places and a step either side), and arbitrary bit patterns, against printf.
+  std::mt19937_64 random(16);
+  std::uniform_real_distribution<double> unit(-1.0, 1.0);
+  for (int i = 0; i < 200000; ++i) {
+    const int decimals = static_cast<int>(random() % 11);
+    double v = 0.0;
+    switch (i % 3) {
+      case 0:
+        v = unit(random) * std::pow(10.0, static_cast<int>(random() % 24) - 12);
+        break;
+      case 1:
+        v = std::nextafter(std::round(unit(random) * 1e6) / 1e3 + 0.0005, i % 2 == 0 ? 1.0 : -1.0);
+        break;
+      default: {
+        const std::uint64_t bits = random();
+        std::memcpy(&v, &bits, sizeof v);
+      }
+    }
+    ASSERT_EQ(fixed(v, decimals), printf_fixed(v, decimals)) << v << " with " << decimals;
+  }
 }
 
 TEST(FixedTrimmed, DropsTrailingZerosAndABarePoint) {
