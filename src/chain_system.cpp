@@ -230,16 +230,16 @@ double ChainSystem::apply_switch(int k, ChainState& x, ChainMode& m, const Forci
   return spilled_m3;
 }
 
-bool ChainSystem::at_rest(const ChainState& x, const ChainMode& m, double arriving_m3) const {
-  if (m.overflowing) return false;
+double ChainSystem::rest_capacity_m3(const ChainState& x, const ChainMode& m) const {
+  constexpr double kNotAtRest = -1.0;
+  if (m.overflowing) return kNotAtRest;
   if (plant_.has_column() && m.column != ColumnMode::trickle &&
       (m.column == ColumnMode::full || x[kColumn] > kColumnDry_m3)) {
-    return false;
+    return kNotAtRest;
   }
   const double ceiling = release_->rest_ceiling_m(m.release);
-  if (ceiling < 0.0) return false;
-  const double limit = std::min(ceiling, geometry_.rim_m() + kHoldHead_m);
-  return x[kReservoir] + arriving_m3 <= geometry_.volume_m3(limit);
+  if (ceiling < 0.0) return kNotAtRest;
+  return geometry_.volume_m3(std::min(ceiling, geometry_.rim_m() + kHoldHead_m));
 }
 
 ChainState ChainSystem::initial_state() const {

@@ -27,9 +27,16 @@ RoofSpan::RoofSpan(const RoofConfig& roof, const FirstFlushConfig& flush, double
 double RoofSpan::roof_m3(double t_s) const {
   const double k = roof_.lag_s;
   if (k <= 0.0) return 0.0;
-  if (t_s <= full_at_s_) return start_.roof_m3 * std::exp(-t_s / k);
-  const double equilibrium = effective_m3_s_ * k;
-  return equilibrium + (roof_at_full_m3_ - equilibrium) * std::exp(-(t_s - full_at_s_) / k);
+  if (t_s == last_t_s_) return last_roof_m3_;
+  last_t_s_ = t_s;
+  if (t_s <= full_at_s_) {
+    last_roof_m3_ = start_.roof_m3 * std::exp(-t_s / k);
+  } else {
+    const double equilibrium = effective_m3_s_ * k;
+    last_roof_m3_ =
+        equilibrium + (roof_at_full_m3_ - equilibrium) * std::exp(-(t_s - full_at_s_) / k);
+  }
+  return last_roof_m3_;
 }
 
 RoofStores RoofSpan::stores(double t_s) const {

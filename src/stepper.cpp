@@ -313,8 +313,12 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
 // segment in closed form once it is at rest.
 bool Stepper::coasted_to_end(double t, double span, const Forcing& f) {
   if (options_.stop && options_.stop->load(std::memory_order_relaxed)) throw Interrupted();
+  // The water arriving is asked for only where the mode allows rest: while the release runs or
+  // dribbles (most steps) it is not at rest whatever arrives.
+  const double capacity = system_.rest_capacity_m3(x_, mode_);
+  if (capacity < 0.0) return false;
   const double arriving = roof_->to_reservoir_m3(span) - roof_->to_reservoir_m3(t);
-  if (!system_.at_rest(x_, mode_, arriving)) return false;
+  if (!(x_[kReservoir] + arriving <= capacity)) return false;
   coast(t, span, f);
   return true;
 }

@@ -55,9 +55,14 @@ TEST(ChainSystem, AtRestWhileTheRainCannotLiftTheLevelToTheLip) {
   ChainState x{};
   x[kReservoir] = kPlan_m2 * 0.030;
   const ChainMode m;
-  // 20 mm to the lip over 0.8 m2 hold 16 L.
-  EXPECT_TRUE(system.at_rest(x, m, 15.9e-3));
-  EXPECT_FALSE(system.at_rest(x, m, 16.1e-3));
+  // 20 mm to the lip over 0.8 m2 hold 16 L (the lip's hold head of 0.01 mm adds 8 mL).
+  EXPECT_NEAR(system.rest_capacity_m3(x, m) - x[kReservoir], 16.008e-3, 1e-9);
+  ChainMode running;
+  running.release = ReleaseState::running;
+  EXPECT_LT(system.rest_capacity_m3(x, running), 0.0);
+  ChainMode overflowing;
+  overflowing.overflowing = true;
+  EXPECT_LT(system.rest_capacity_m3(x, overflowing), 0.0);
 }
 
 }  // namespace

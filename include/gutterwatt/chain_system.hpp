@@ -130,10 +130,11 @@ class ChainSystem {
   /// excess over a head column's brim as it becomes brim-full, else 0.
   double apply_switch(int k, ChainState& x, ChainMode& m, const Forcing& f,
                       const ChainRates& r) const;
-  /// True when, with `arriving_m3` more reaching the reservoir over a span, the release passes
-  /// nothing and cannot start to, nothing overflows and the head column is empty or passes a
-  /// trickle: the chain is then linear.
-  bool at_rest(const ChainState& x, const ChainMode& m, double arriving_m3) const;
+  /// The most the reservoir may hold at the end of a span for the chain to stay at rest through
+  /// it from `x` in mode `m` (the release passing nothing and unable to start to, nothing
+  /// overflowing, the head column empty or passing a trickle: the chain is then linear), or a
+  /// negative number when it is not at rest now whatever arrives.
+  double rest_capacity_m3(const ChainState& x, const ChainMode& m) const;
 
   /// Evaporation from the reservoir holding `volume_m3` under `f`, m3/s.
   double evaporation_m3_per_s(double volume_m3, const Forcing& f) const;

@@ -5,6 +5,8 @@
 /// start. The reservoir downstream takes the roof's inflow as a known function of time; a lag of
 /// 0 and a lag of a millisecond are then one path, neither stiff.
 
+#include <limits>
+
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
@@ -67,6 +69,10 @@ class RoofSpan {
   double effective_m3_s_;   // C i A once the loss is full
   double room_m3_;          // what the diverter still takes
   double roof_at_full_m3_;  // water on the roof as the loss fills, computed once
+  // The last roof_m3 computed and its time: the stepper asks for the stores and the inflow at
+  // one time several times over (each takes an exp), and for the next time only after that.
+  mutable double last_t_s_ = std::numeric_limits<double>::quiet_NaN();
+  mutable double last_roof_m3_ = 0.0;
 };
 
 }  // namespace gutterwatt
