@@ -202,20 +202,33 @@ bool format_has_offset(std::string_view format) {
 }
 
 std::string format_iso8601(Instant instant, int offset_s) {
-  const CivilTime t = to_civil(instant, offset_s);
+  const std::int64_t local = instant + offset_s;
+  const std::int64_t days = floor_div(local, kDay_s);
+  const std::int64_t second_of_day = local - days * kDay_s;
+  // Outputs write many times of one day in a row (trace.csv a row a minute): the date's text,
+  // with its `T`, is kept from the last call.
+  thread_local std::int64_t cached_days = std::numeric_limits<std::int64_t>::min();
+  thread_local char date_text[64];
+  thread_local std::size_t date_length = 0;
+  if (days != cached_days) {
+    const CivilTime t = to_civil(instant, offset_s);
+    char* p = put_padded(date_text, t.year, 4);
+    *p++ = '-';
+    p = put_padded(p, t.month, 2);
+    *p++ = '-';
+    p = put_padded(p, t.day, 2);
+    *p++ = 'T';
+    date_length = static_cast<std::size_t>(p - date_text);
+    cached_days = days;
+  }
   char buf[128];
-  char* p = put_padded(buf, t.year, 4);
-  *p++ = '-';
-  p = put_padded(p, t.month, 2);
-  *p++ = '-';
-  p = put_padded(p, t.day, 2);
-  *p++ = 'T';
-  p = put_padded(p, t.hour, 2);
+  char* p = std::copy(date_text, date_text + date_length, buf);
+  p = put_padded(p, second_of_day / 3600, 2);
   *p++ = ':';
-  p = put_padded(p, t.minute, 2);
-  if (t.second != 0) {
+  p = put_padded(p, second_of_day / 60 % 60, 2);
+  if (second_of_day % 60 != 0) {
     *p++ = ':';
-    p = put_padded(p, t.second, 2);
+    p = put_padded(p, second_of_day % 60, 2);
   }
   std::string out(buf, p);
   if (offset_s != 0) append_offset(out, offset_s);
