@@ -4,7 +4,6 @@
 #include <array>
 #include <cassert>
 #include <cmath>
-#include <iterator>
 #include <limits>
 #include <map>
 #include <utility>
@@ -179,9 +178,9 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
       const double first_m = depth_m * all[c.second].cumulative[1];
       return first_m * kEdgeRatio >= edge_m && first_m <= edge_m * kEdgeRatio;
     };
-    std::vector<std::pair<double, std::size_t>> kept;
-    std::copy_if(candidates.begin(), candidates.end(), std::back_inserter(kept), goes_on);
-    if (!kept.empty()) candidates = std::move(kept);
+    if (std::any_of(candidates.begin(), candidates.end(), goes_on)) {
+      std::erase_if(candidates, [&](const auto& c) { return !goes_on(c); });
+    }
   }
   const std::vector<double> weights = knn_weights(candidates.size());
   double below = 0.0;
