@@ -122,22 +122,63 @@ TEST(Accuracy, DefaultAndTightToleranceAgreeWithTheFixedStepReference) {
   EXPECT_LT(relative_difference(tight.totals.electrical_J, reference.totals.electrical_J), 1e-5);
 }
 
-// Issue 16: the roof stage in closed form makes a short lag cost what no lag costs, and leaves
-// the answer where the fixed-step reference (which steps the same closed-form roof) puts it. The
-// demo's own 60 s lag is checked above.
-TEST(Accuracy, ShortRoofLagAgreesWithTheFixedStepReference) {
-  for (const char* lag : {"roof.lag_s=0.01"}) {
-    const RunResult reference = run_with({lag}, 0.05);
-    const RunResult run = run_with({lag});
-    EXPECT_EQ(run.cycles, reference.cycles) << lag;
-    EXPECT_EQ(run.overflow_events, reference.overflow_events) << lag;
-    EXPECT_LT(relative_difference(run.totals.electrical_J, reference.totals.electrical_J), 0.005)
-        << lag;
-    const RunResult tight = run_with({lag, "simulation.rtol=1e-10"});
-    EXPECT_EQ(tight.cycles, reference.cycles) << lag;
-    EXPECT_LT(relative_difference(tight.totals.electrical_J, reference.totals.electrical_J), 1e-5)
-        << lag;
+// Issue 16: a design run at the default tolerance and at rtol 1e-10 against its own fixed-step
+// reference (0.05 s): the same cycles and overflows, and the energy, the dribble and the overflow
+// within 0.5 % (issue 7's target) and 1e-5 (issue 16's); a quantity the reference has none of
+// must be none in the run too (the small gutter never primes on these days). The rows of
+// tools/bench, on the demo design; the demo's own 60 s lag is checked above.
+void expect_close(const RunResult& run, const RunResult& reference, double tolerance) {
+  EXPECT_EQ(run.cycles, reference.cycles);
+  EXPECT_EQ(run.overflow_events, reference.overflow_events);
+  const struct {
+    const char* what;
+    double got, want;
+  } quantities[] = {{"electrical energy", run.totals.electrical_J, reference.totals.electrical_J},
+                    {"dribble", run.totals.dribble_m3, reference.totals.dribble_m3},
+                    {"overflow", run.totals.overflow_m3(), reference.totals.overflow_m3()}};
+  for (const auto& q : quantities) {
+    if (q.want > 0.0) {
+      EXPECT_LT(relative_difference(q.got, q.want), tolerance) << q.what;
+    } else {
+      EXPECT_EQ(q.got, 0.0) << q.what;
+    }
   }
+}
+
+void agrees_with_its_reference(const std::vector<std::string>& design) {
+  const RunResult reference = run_with(design, 0.05);
+  EXPECT_GT(reference.totals.dribble_m3, 0.0);  // every design dribbles on day 3
+  expect_close(run_with(design), reference, 0.005);
+  std::vector<std::string> tight_design = design;
+  tight_design.push_back("simulation.rtol=1e-10");
+  expect_close(run_with(tight_design), reference, 1e-5);
+}
+
+// The roof stage in closed form makes a short lag cost what no lag costs, and leaves the answer
+// where the fixed-step reference (which steps the same closed-form roof) puts it.
+TEST(Accuracy, ShortRoofLagAgreesWithTheFixedStepReference) {
+  agrees_with_its_reference({"roof.lag_s=0.01"});
+}
+
+TEST(Accuracy, OneSecondRoofLagAgreesWithTheFixedStepReference) {
+  agrees_with_its_reference({"roof.lag_s=1"});
+}
+
+TEST(Accuracy, SmallGutterAgreesWithTheFixedStepReference) {
+  agrees_with_its_reference({"reservoir.width_mm=60", "reservoir.length_m=1", "reservoir.rim_mm=30",
+                             "release.trigger_level_mm=24", "release.break_level_mm=4"});
+}
+
+TEST(Accuracy, ThinHeadColumnAgreesWithTheFixedStepReference) {
+  agrees_with_its_reference({"head_column.diameter_mm=30"});
+}
+
+TEST(Accuracy, TighterToleranceAgreesWithTheFixedStepReference) {
+  const RunResult& reference = reference_run();
+  const RunResult run = run_with({"simulation.rtol=1e-8"});
+  EXPECT_EQ(run.cycles, reference.cycles);
+  EXPECT_EQ(run.overflow_events, reference.overflow_events);
+  EXPECT_LT(relative_difference(run.totals.electrical_J, reference.totals.electrical_J), 1e-5);
 }
 
 }  // namespace
