@@ -38,6 +38,12 @@ bool read_digits(std::string_view text, std::size_t pos, std::size_t count, int&
   return true;
 }
 
+// A time of day parse_iso8601 takes: ISO 8601 allows 24:00 for the midnight that ends a day;
+// leap seconds are not representable.
+bool valid_time_of_day(int hour, int minute, int second) {
+  return minute <= 59 && second <= 59 && hour <= 24 && (hour < 24 || (minute == 0 && second == 0));
+}
+
 // Parses an offset that must fill `text` exactly: `Z`, `+hh`, `+hhmm`, `+hh:mm` (or `-`).
 std::optional<int> parse_offset_exact(std::string_view text) {
   if (text == "Z" || text == "z") return 0;
@@ -151,10 +157,7 @@ std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offse
         if (hour == 24 && any_nonzero) return std::nullopt;
       }
     }
-    // ISO 8601 allows 24:00 for the midnight that ends a day; leap seconds are not representable.
-    if (minute > 59 || second > 59 || hour > 24 || (hour == 24 && (minute != 0 || second != 0))) {
-      return std::nullopt;
-    }
+    if (!valid_time_of_day(hour, minute, second)) return std::nullopt;
   }
 
   ParsedTime parsed;
@@ -170,6 +173,24 @@ std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offse
   parsed.local = days * kDay_s + hour * 3600 + minute * 60 + second + round_up;
   parsed.instant = parsed.local - parsed.offset_s;
   return parsed;
+}
+
+std::optional<int> naive_stamp_time_of_day_s(std::string_view text) {
+  const bool with_seconds = text.size() == 19;
+  if (text.size() != 16 && !with_seconds) return std::nullopt;
+  const char t = text[10];
+  if ((t != 'T' && t != 't' && t != ' ') || text[13] != ':' || (with_seconds && text[16] != ':')) {
+    return std::nullopt;
+  }
+  int hour = 0;
+  int minute = 0;
+  int second = 0;
+  if (!read_digits(text, 11, 2, hour) || !read_digits(text, 14, 2, minute) ||
+      (with_seconds && !read_digits(text, 17, 2, second)) ||
+      !valid_time_of_day(hour, minute, second)) {
+    return std::nullopt;
+  }
+  return hour * 3600 + minute * 60 + second;
 }
 
 std::optional<ParsedTime> parse_formatted(std::string_view text, const std::string& format,

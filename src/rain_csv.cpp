@@ -16,16 +16,16 @@ constexpr std::size_t kMaxQuotedChars = 40;
 // Values of a where column that a message lists, at most.
 constexpr std::size_t kMaxValuesShown = 8;
 
-// Blanks around a field: spaces, and tabs unless they separate the fields.
-std::string_view blanks_for(char delimiter) { return delimiter == '\t' ? " " : " \t"; }
+// Blanks around a field: spaces, and tabs unless they separate the fields. Compared one by one
+// rather than looked up in a string: this runs for every character around every field.
+bool is_blank(char c, char delimiter) { return c == ' ' || (c == '\t' && delimiter != '\t'); }
 
 // Takes the next field off the front of `rest`, fields separated by `delimiter`. The field comes
 // back without the blanks around it and without enclosing double quotes (a doubled quote inside
 // stays doubled). `more` turns false at the line's last field.
 std::string_view next_field(std::string_view& rest, bool& more, char delimiter) {
-  const std::string_view blanks = blanks_for(delimiter);
   std::size_t start = 0;
-  while (start < rest.size() && blanks.find(rest[start]) != std::string_view::npos) ++start;
+  while (start < rest.size() && is_blank(rest[start], delimiter)) ++start;
   if (start < rest.size() && rest[start] == '"') {
     std::size_t close = start + 1;
     for (;;) {
@@ -47,10 +47,13 @@ std::string_view next_field(std::string_view& rest, bool& more, char delimiter) 
     rest = more ? rest.substr(separator + 1) : std::string_view{};
     return field;
   }
-  const std::size_t separator = rest.find(delimiter, start);
-  more = separator != std::string_view::npos;
-  const std::string_view field =
-      trim(rest.substr(start, more ? separator - start : rest.npos), blanks);
+  // Fields are short: a plain loop beats a library search call per field.
+  std::size_t separator = start;
+  while (separator < rest.size() && rest[separator] != delimiter) ++separator;
+  more = separator < rest.size();
+  std::size_t stop = separator;
+  while (stop > start && is_blank(rest[stop - 1], delimiter)) --stop;
+  const std::string_view field = rest.substr(start, stop - start);
   rest = more ? rest.substr(separator + 1) : std::string_view{};
   return field;
 }
@@ -73,9 +76,12 @@ std::vector<std::string> all_fields(std::string_view line, char delimiter) {
   return out;
 }
 
+// A blank line, or a `#` comment: the first character that is not a space or a tab is none or `#`.
 bool is_comment_or_blank(std::string_view line) {
-  const std::string_view trimmed = trim(line);
-  return trimmed.empty() || trimmed.front() == '#';
+  for (const char c : line) {
+    if (c != ' ' && c != '\t') return c == '#';
+  }
+  return true;
 }
 
 // What the user is told to do about a decimal comma the reader cannot take.
@@ -319,17 +325,37 @@ double parse_amount(std::string_view text, const std::string& file_label, int li
 
 StampReader::StampReader(const std::string& file_label, const SeriesFormat& fmt,
                          const StampWords& words)
-    : file_(file_label), fmt_(fmt), words_(words) {}
+    : file_(file_label),
+      fmt_(fmt),
+      words_(words),
+      // A zone with daylight saving reads the stamp as written first, then places it (place()).
+      default_offset_s_(fmt.zone.fixed() ? fmt.zone.offset_s(0) : 0) {}
 
-std::optional<ParsedTime> StampReader::parse(std::string_view text) const {
-  // A zone with daylight saving reads the stamp as written first, then places it (place()).
-  const int offset_s = fmt_.zone.fixed() ? fmt_.zone.offset_s(0) : 0;
+std::optional<ParsedTime> StampReader::parse(std::string_view text) {
   if (fmt_.time_format.empty()) {
-    std::optional<ParsedTime> parsed = parse_iso8601(text, offset_s);
-    if (words_.dates_only && text.size() != 10) parsed.reset();
+    if (words_.dates_only) {
+      std::optional<ParsedTime> parsed = parse_iso8601(text, default_offset_s_);
+      if (text.size() != 10) parsed.reset();
+      return parsed;
+    }
+    const std::optional<int> time_of_day_s = naive_stamp_time_of_day_s(text);
+    if (!time_of_day_s) return parse_iso8601(text, default_offset_s_);
+    if (has_day_ && std::memcmp(text.data(), day_text_.data(), day_text_.size()) == 0) {
+      ParsedTime parsed;
+      parsed.offset_s = default_offset_s_;
+      parsed.local = day_number_ * kDay_s + *time_of_day_s;
+      parsed.instant = parsed.local - parsed.offset_s;
+      return parsed;
+    }
+    std::optional<ParsedTime> parsed = parse_iso8601(text, default_offset_s_);
+    if (parsed) {
+      std::memcpy(day_text_.data(), text.data(), day_text_.size());
+      day_number_ = (parsed->local - *time_of_day_s) / kDay_s;  // exact: a midnight
+      has_day_ = true;
+    }
     return parsed;
   }
-  std::optional<ParsedTime> parsed = parse_formatted(text, fmt_.time_format, offset_s);
+  std::optional<ParsedTime> parsed = parse_formatted(text, fmt_.time_format, default_offset_s_);
   if (parsed && words_.dates_only && floor_div(parsed->local, kDay_s) * kDay_s != parsed->local) {
     parsed.reset();
   }

@@ -6,6 +6,7 @@
 
 #include <array>
 #include <cstddef>
+#include <cstdint>
 #include <functional>
 #include <istream>
 #include <string>
@@ -63,13 +64,20 @@ class StampReader {
   ParsedTime read(std::string_view text, int line_number);
 
  private:
-  std::optional<ParsedTime> parse(std::string_view text) const;
+  std::optional<ParsedTime> parse(std::string_view text);
   /// Puts a naive stamp on the zone's clock: throws for a time the clocks skip.
   void place(ParsedTime& parsed, std::string_view text, int line_number) const;
 
   const std::string& file_;
   const SeriesFormat& fmt_;
   StampWords words_;
+  int default_offset_s_;  ///< of naive stamps as parsed: the zone's when fixed, 0 otherwise
+  // The fast path for the naive stamps of most records (`YYYY-MM-DDThh:mm[:ss]`): the date of
+  // the last such stamp parsed in full and its day number, so that the next ones of that day
+  // only read their time of day.
+  std::array<char, 10> day_text_{};
+  std::int64_t day_number_ = 0;
+  bool has_day_ = false;
   std::size_t count_ = 0;
   Instant previous_ = 0;
   int previous_line_ = 0;

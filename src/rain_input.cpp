@@ -220,6 +220,11 @@ class SeriesBuilder {
     } else if (has_previous_) {
       gaps_.note(series_, previous_.time, previous_.offset_s, start, row.offset_s, row.line);
     }
+    extend_covered(series_.covered, start, end);
+    previous_ = row;
+    has_previous_ = true;
+    // Most rows of a record are dry: no depth, no intensity to check, no pulse.
+    if (row.value == 0.0) return;
     const bool intensity = fmt_.value == RainValue::intensity;
     const auto length_s = static_cast<double>(end - start);
     const double depth_m = intensity ? row.value * fmt_.unit_m * (length_s / kSecondsPerHour)
@@ -233,13 +238,10 @@ class SeriesBuilder {
                                               format_duration(end - start);
       implausible_intensity(file_label_, row.line, fmt_.value_column, intensity_mm_per_h, got);
     }
-    extend_covered(series_.covered, start, end);
     if (depth_m > 0.0) {
       series_.pulses.push_back({start, end, depth_m});
       total_.add(depth_m);
     }
-    previous_ = row;
-    has_previous_ = true;
   }
 
   const RainSeries& so_far() const { return series_; }

@@ -33,6 +33,19 @@ TEST(Calendar, ParsesMinutesAndSeconds) {
   EXPECT_EQ(parse_or_fail("2025-03-01T13:47:09"), kMarch2025 + 13 * 3600 + 47 * 60 + 9);
 }
 
+TEST(Calendar, ReadsTheTimeOfDayOfANaiveStamp) {
+  // Hand arithmetic: 13 h 47 min 9 s = 13*3600 + 47*60 + 9 = 49629 s; 24:00 ends the day.
+  EXPECT_EQ(naive_stamp_time_of_day_s("2025-03-01T13:47:09"), 49629);
+  EXPECT_EQ(naive_stamp_time_of_day_s("2025-03-01 00:05"), 300);
+  EXPECT_EQ(naive_stamp_time_of_day_s("2025-03-01t24:00"), 86400);
+  // Other shapes, and times parse_iso8601 refuses, are left to it.
+  for (const char* text : {"2025-03-01", "2025-03-01T00:05Z", "2025-03-01T00:05+01",
+                           "2025-03-01T00:05:00.5", "2025-03-01T24:01", "2025-03-01T23:60",
+                           "2025-03-01T23:59:60", "2025-03-01X00:05", "2025-03-01T0x:05"}) {
+    EXPECT_FALSE(naive_stamp_time_of_day_s(text).has_value()) << text;
+  }
+}
+
 TEST(Calendar, AcceptsSpaceForT) {
   EXPECT_EQ(parse_or_fail("2025-03-01 00:05"), kMarch2025 + 300);
   EXPECT_EQ(parse_or_fail("2025-03-01 00:05:30"), kMarch2025 + 330);

@@ -73,6 +73,13 @@ struct ParsedTime {
 /// (2025-02-30), times (24:01, 23:59:60) and offsets (+24:00).
 std::optional<ParsedTime> parse_iso8601(std::string_view text, int default_offset_s = 0);
 
+/// The seconds into its day (0 to 86400, 24:00 included) of a naive stamp shaped
+/// `YYYY-MM-DDThh:mm` or `YYYY-MM-DDThh:mm:ss` (`t` or a blank for `T`), the stamps of most
+/// records, as parse_iso8601 reads its time; nullopt for any other shape and for a time it
+/// refuses. The date is not looked at: a reader that remembers the day of a stamp it parsed in
+/// full needs only this for the next stamps of that day.
+std::optional<int> naive_stamp_time_of_day_s(std::string_view text);
+
 /// Parses `text` by a strftime-style `format` with the date library's `date::parse` (`%Y`, `%m`,
 /// `%d`, `%H`, `%I`, `%M`, `%S`, `%p`, `%b`, `%z`, ...; a blank in the format matches any run of
 /// blanks, `%p` and `%b` are read in the C locale). A format without `%z` gives naive stamps,
