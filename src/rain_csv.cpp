@@ -47,15 +47,17 @@ std::string_view next_field(std::string_view& rest, bool& more, char delimiter) 
     rest = more ? rest.substr(separator + 1) : std::string_view{};
     return field;
   }
-  // Fields are short: a plain loop beats a library search call per field.
-  std::size_t separator = start;
-  while (separator < rest.size() && rest[separator] != delimiter) ++separator;
-  more = separator < rest.size();
-  std::size_t stop = separator;
-  while (stop > start && is_blank(rest[stop - 1], delimiter)) --stop;
-  const std::string_view field = rest.substr(start, stop - start);
-  rest = more ? rest.substr(separator + 1) : std::string_view{};
-  return field;
+  const char* const first = rest.data() + start;
+  const char* const end = rest.data() + rest.size();
+  const char* separator = static_cast<const char*>(
+      std::memchr(first, delimiter, static_cast<std::size_t>(end - first)));
+  more = separator != nullptr;
+  if (!more) separator = end;
+  const char* stop = separator;
+  while (stop > first && is_blank(stop[-1], delimiter)) --stop;
+  rest = more ? std::string_view(separator + 1, static_cast<std::size_t>(end - separator - 1))
+              : std::string_view{};
+  return {first, static_cast<std::size_t>(stop - first)};
 }
 
 std::string unescape_quotes(std::string_view field) {
@@ -154,11 +156,10 @@ void take_fields(std::string_view line, int line_number, const std::string& file
   std::size_t index = 0;
   std::string_view previous;
   const bool comma_separated = h.delimiter == ',';
+  // Only a comma-separated header with a column without a name has a spare column to check.
+  const bool spare_columns = comma_separated && !h.unnamed.empty();
   const auto check_spare = [&](std::string_view field) {
-    if (!comma_separated || h.unnamed.empty() || index == 0 || !is_digits(field) ||
-        !is_digits(previous)) {
-      return;
-    }
+    if (!spare_columns || index == 0 || !is_digits(field) || !is_digits(previous)) return;
     if (std::find(h.unnamed.begin(), h.unnamed.end(), index) == h.unnamed.end()) return;
     for (std::size_t c = 0; c < indexes.size(); ++c) {
       if (indexes[c] != index - 1) continue;
@@ -171,7 +172,7 @@ void take_fields(std::string_view line, int line_number, const std::string& file
   };
   for (; more && index <= last_index; ++index) {
     const std::string_view field = next_field(rest, more, h.delimiter);
-    check_spare(field);
+    if (spare_columns) check_spare(field);
     for (std::size_t c = 0; c < indexes.size(); ++c) {
       if (indexes[c] == index) fields[c] = field;
     }
@@ -224,7 +225,9 @@ bool parse_plain_decimal(std::string_view text, double& value) {
     }
   }
   if (digits == 0) return false;
-  value = static_cast<double>(mantissa) / kPowersOfTen[decimals < 0 ? 0 : decimals];
+  // 0 / 10^k is 0: the dry rows of a record skip the division.
+  value = mantissa == 0 ? 0.0
+                        : static_cast<double>(mantissa) / kPowersOfTen[decimals < 0 ? 0 : decimals];
   return true;
 }
 
@@ -456,8 +459,10 @@ void scan_rows(std::istream& in, const std::string& file_label, const SeriesForm
   std::size_t rows = 0;
   std::size_t rows_left_out = 0;
   // For the messages: the values of the first where column in rows it left out (a few), and
-  // the first and the previous kept rows.
+  // the first and the previous kept rows, kept only when the header has a named column not
+  // asked for (one that may tell series apart: series_column).
   std::vector<std::string> other_values;
+  bool other_columns = false;
   std::string first_row;
   std::string previous_row;
   while (reader.next(line)) {
@@ -474,6 +479,11 @@ void scan_rows(std::istream& in, const std::string& file_label, const SeriesForm
         if (trim(header.names[i]).empty()) header.unnamed.push_back(i);
       }
       header.indexes = find_columns(header.names, line_number, file_label, wanted, keys);
+      for (std::size_t i = 0; i < header.names.size(); ++i) {
+        const auto asked = header.indexes.begin() + static_cast<std::ptrdiff_t>(columns.size());
+        other_columns = other_columns || (!header.names[i].empty() &&
+                                          std::find(header.indexes.begin(), asked, i) == asked);
+      }
       header_line = line_number;
       continue;
     }
@@ -499,8 +509,10 @@ void scan_rows(std::istream& in, const std::string& file_label, const SeriesForm
           e.file(), e.line(), e.field(),
           e.message() + series_column(header, columns.size(), first_row, previous_row, line));
     }
-    if (rows == 0) first_row.assign(line);
-    previous_row.assign(line);
+    if (other_columns) {
+      if (rows == 0) first_row.assign(line);
+      previous_row.assign(line);
+    }
     ++rows;
   }
   check_read_to_end(reader, file_label, line_number, "a rain record");
