@@ -135,7 +135,62 @@ struct Header {
   std::vector<std::size_t> indexes;  ///< of the wanted columns, then of the where columns
   std::vector<std::size_t> unnamed;  ///< columns without a name
   char delimiter = ',';
+  std::size_t last_index = 0;  ///< the largest of `indexes`
+  /// Comma-separated with a column without a name: a decimal comma may hide in it (take_fields).
+  bool spare_columns = false;
+  /// What each byte is to take_plain_fields (kInField, kSeparator or kNotPlain).
+  std::array<unsigned char, 256> kinds{};
 };
+
+constexpr unsigned char kInField = 0;
+constexpr unsigned char kSeparator = 1;
+constexpr unsigned char kNotPlain = 2;  // a quote or a blank: the row is not plain
+
+// Completes a header once its names and indexes are known.
+void prepare(Header& h) {
+  h.last_index = *std::max_element(h.indexes.begin(), h.indexes.end());
+  h.spare_columns = h.delimiter == ',' && !h.unnamed.empty();
+  h.kinds.fill(kInField);
+  h.kinds['"'] = kNotPlain;
+  h.kinds[' '] = kNotPlain;
+  h.kinds['\t'] = kNotPlain;
+  h.kinds[static_cast<unsigned char>(h.delimiter)] = kSeparator;  // a tab may separate
+}
+
+// Columns up to which take_plain_fields reads a row.
+constexpr std::size_t kMaxPlainFields = 16;
+
+// The fields of a plain row, the most common kind: no quote and no blank anywhere, every wanted
+// column present and no field past the header's columns, and no spare column to check. Its
+// fields are then the text between separators, just what take_fields finds there, and there is
+// nothing to check. False for any other row, which take_fields reads.
+bool take_plain_fields(std::string_view line, const Header& h,
+                       std::vector<std::string_view>& fields) {
+  if (h.spare_columns || h.last_index >= kMaxPlainFields) return false;
+  std::pair<const char*, std::size_t> parts[kMaxPlainFields];  // not zeroed: a row's cost
+  std::size_t count = 0;
+  const char* start = line.data();
+  const char* const end = start + line.size();
+  const auto field_ends = [&](const char* p) {
+    if (count <= h.last_index) parts[count] = {start, static_cast<std::size_t>(p - start)};
+    ++count;
+    start = p + 1;
+  };
+  for (const char* p = start; p != end; ++p) {
+    const unsigned char kind = h.kinds[static_cast<unsigned char>(*p)];
+    if (kind == kInField) continue;
+    if (kind == kNotPlain) return false;
+    field_ends(p);
+  }
+  field_ends(end);
+  if (count <= h.last_index || count > h.names.size()) return false;
+  fields.resize(h.indexes.size());
+  for (std::size_t c = 0; c < h.indexes.size(); ++c) {
+    const auto [data, size] = parts[h.indexes[c]];
+    fields[c] = std::string_view(data, size);
+  }
+  return true;
+}
 
 // The fields of a row at `h.indexes` (header order of the wanted columns). Throws when the row
 // is too short, naming the first column it lacks, and when it has a value beyond the header's
@@ -147,17 +202,14 @@ void take_fields(std::string_view line, int line_number, const std::string& file
                  std::vector<std::string_view>& fields) {
   const std::vector<std::size_t>& indexes = h.indexes;
   const std::size_t header_fields = h.names.size();
-  const std::size_t last_index = indexes.size() == 2
-                                     ? std::max(indexes[0], indexes[1])
-                                     : *std::max_element(indexes.begin(), indexes.end());
+  const std::size_t last_index = h.last_index;
   fields.resize(indexes.size());
   std::string_view rest = line;
   bool more = true;
   std::size_t index = 0;
   std::string_view previous;
   const bool comma_separated = h.delimiter == ',';
-  // Only a comma-separated header with a column without a name has a spare column to check.
-  const bool spare_columns = comma_separated && !h.unnamed.empty();
+  const bool spare_columns = h.spare_columns;
   const auto check_spare = [&](std::string_view field) {
     if (!spare_columns || index == 0 || !is_digits(field) || !is_digits(previous)) return;
     if (std::find(h.unnamed.begin(), h.unnamed.end(), index) == h.unnamed.end()) return;
@@ -479,6 +531,7 @@ void scan_rows(std::istream& in, const std::string& file_label, const SeriesForm
         if (trim(header.names[i]).empty()) header.unnamed.push_back(i);
       }
       header.indexes = find_columns(header.names, line_number, file_label, wanted, keys);
+      prepare(header);
       for (std::size_t i = 0; i < header.names.size(); ++i) {
         const auto asked = header.indexes.begin() + static_cast<std::ptrdiff_t>(columns.size());
         other_columns = other_columns || (!header.names[i].empty() &&
@@ -487,7 +540,9 @@ void scan_rows(std::istream& in, const std::string& file_label, const SeriesForm
       header_line = line_number;
       continue;
     }
-    take_fields(line, line_number, file_label, header, keys, fields);
+    if (!take_plain_fields(line, header, fields)) {
+      take_fields(line, line_number, file_label, header, keys, fields);
+    }
     bool kept = true;
     for (std::size_t k = 0; k < fmt.where.size() && kept; ++k) {
       const std::string_view field = fields[columns.size() + k];

@@ -72,6 +72,34 @@ TEST(RainCsv, ReadsTabsBetweenFields) {
            fmt));
 }
 
+// Plain rows (no quotes, no blanks) are split by a shorter path than rows with quotes or blanks
+// around their fields; both must give the same record.
+TEST(RainCsv, ReadsPlainRowsAsTheirQuotedAndPaddedTwins) {
+  const SeriesFormat fmt;
+  expect_five_minute_record(
+      read("time,rain_mm\n2025-03-01T00:05,0.2\n2025-03-01T00:10,0\n2025-03-01T00:15,1.25\n", fmt));
+  expect_five_minute_record(
+      read("time,rain_mm\n\"2025-03-01T00:05\", 0.2\n 2025-03-01T00:10,0\n"
+           "2025-03-01T00:15,\"1.25\"\n",
+           fmt));
+  // Columns in another order, a column not asked for, an empty field past the header's columns.
+  expect_five_minute_record(
+      read("note,rain_mm,time\nx,0.2,2025-03-01T00:05\n,0,2025-03-01T00:10,\n"
+           "y,1.25,2025-03-01T00:15\n",
+           fmt));
+  // More columns than the short path reads: the value is column 18.
+  std::string header = "time";
+  std::string row_tail;
+  for (int k = 0; k < 16; ++k) {
+    header += ",c" + std::to_string(k);
+    row_tail += ",0";
+  }
+  expect_five_minute_record(read(header + ",rain_mm\n2025-03-01T00:05" + row_tail +
+                                     ",0.2\n2025-03-01T00:10" + row_tail + ",0\n2025-03-01T00:15" +
+                                     row_tail + ",1.25\n",
+                                 fmt));
+}
+
 TEST(RainCsv, SkipsTitleLinesAboveTheHeader) {
   SeriesFormat fmt;
   fmt.skip_lines = 2;
