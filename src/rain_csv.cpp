@@ -147,7 +147,7 @@ constexpr unsigned char kSeparator = 1;
 constexpr unsigned char kNotPlain = 2;  // a quote or a blank: the row is not plain
 
 // Completes a header once its names and indexes are known.
-void prepare(Header& h) {
+void prepare_header(Header& h) {
   h.last_index = *std::max_element(h.indexes.begin(), h.indexes.end());
   h.spare_columns = h.delimiter == ',' && !h.unnamed.empty();
   h.kinds.fill(kInField);
@@ -531,7 +531,7 @@ void scan_rows(std::istream& in, const std::string& file_label, const SeriesForm
         if (trim(header.names[i]).empty()) header.unnamed.push_back(i);
       }
       header.indexes = find_columns(header.names, line_number, file_label, wanted, keys);
-      prepare(header);
+      prepare_header(header);
       for (std::size_t i = 0; i < header.names.size(); ++i) {
         const auto asked = header.indexes.begin() + static_cast<std::ptrdiff_t>(columns.size());
         other_columns = other_columns || (!header.names[i].empty() &&
