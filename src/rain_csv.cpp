@@ -419,7 +419,6 @@ std::optional<ParsedTime> StampReader::parse(std::string_view text) {
 
 void StampReader::place(ParsedTime& parsed, std::string_view text, int line_number) const {
   const TimeZone& zone = fmt_.zone;
-  if (parsed.has_offset || zone.fixed()) return;
   if (words_.dates_only) {
     // Days of a daily record are 24 hours long: midnight to midnight of standard time.
     parsed.offset_s = zone.standard_offset_s(parsed.local - zone.offset_s(parsed.local));
@@ -455,7 +454,8 @@ ParsedTime StampReader::read(std::string_view text, int line_number) {
     throw InputError(file_, line_number, column,
                      std::string("not ") + words_.expected + " (got " + in_quotes(text) + ")");
   }
-  place(*parsed, text, line_number);
+  // A fixed offset was applied by parse(); a stamp's own offset needs no zone.
+  if (!parsed->has_offset && !fmt_.zone.fixed()) place(*parsed, text, line_number);
   if (count_ == 0) {
     first_has_offset_ = parsed->has_offset;
     first_line_ = line_number;

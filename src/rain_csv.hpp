@@ -65,7 +65,8 @@ class StampReader {
 
  private:
   std::optional<ParsedTime> parse(std::string_view text);
-  /// Puts a naive stamp on the zone's clock: throws for a time the clocks skip.
+  /// Puts a naive stamp on the clock of a zone with daylight saving: throws for a time the
+  /// clocks skip.
   void place(ParsedTime& parsed, std::string_view text, int line_number) const;
 
   const std::string& file_;
