@@ -5,6 +5,7 @@
 #include <cmath>
 #include <limits>
 #include <map>
+#include <optional>
 #include <random>
 #include <utility>
 
@@ -198,6 +199,53 @@ std::vector<double> split_exactly(double depth_m, const std::vector<double>& cum
   return out;
 }
 
+// The library of `how` that spreads an interval of `length_s` from `start`, if any holds rain.
+const FragmentLibrary* library_for(const Disaggregation& how, Instant start, Instant length_s) {
+  const auto library =
+      std::find_if(how.fragments.begin(), how.fragments.end(), [&](const FragmentLibrary& l) {
+        return library_length_s(l.calendar, start, start + length_s) == l.length_s;
+      });
+  return library == how.fragments.end() || library->intervals.empty() ? nullptr : &*library;
+}
+
+// The random draw of the interval from `start`: fixed by the seed and the start alone.
+std::uint64_t interval_seed(const Disaggregation& how, Instant start) {
+  return split_mix(how.seed ^ split_mix(static_cast<std::uint64_t>(start)));
+}
+
+// For `fragments`, the calibration interval that spreads each pulse of a wet spell matched
+// whole (choose_spell); null where none was (other methods, a spell of a length the library
+// lacks, or one whose intervals are not all spread by one library).
+std::vector<const Fragment*> spell_fragments(const std::vector<RainPulse>& pulses,
+                                             const Disaggregation& how) {
+  std::vector<const Fragment*> out(pulses.size(), nullptr);
+  if (how.method != DisaggregationMethod::fragments) return out;
+  for (std::size_t first = 0; first < pulses.size();) {
+    std::size_t end = first + 1;
+    while (end < pulses.size() && pulses[end].start == pulses[end - 1].end) ++end;
+    const FragmentLibrary* library =
+        library_for(how, pulses[first].start, pulses[first].end - pulses[first].start);
+    std::vector<double> depths_m;
+    for (std::size_t k = first; k < end && library != nullptr; ++k) {
+      const Instant length_s = pulses[k].end - pulses[k].start;
+      if (length_s <= how.step_s || library_for(how, pulses[k].start, length_s) != library) {
+        library = nullptr;
+      }
+      depths_m.push_back(pulses[k].depth_m);
+    }
+    if (library != nullptr && library->length_s < kDay_s) {
+      std::mt19937_64 rng(interval_seed(how, pulses[first].start));
+      const std::optional<std::size_t> chosen = choose_spell(
+          *library, depths_m, season_day(pulses[first].start), detail::uniform_open(rng));
+      for (std::size_t k = first; chosen && k < end; ++k) {
+        out[k] = &library->intervals[*chosen + (k - first)];
+      }
+    }
+    first = end;
+  }
+  return out;
+}
+
 StormKind nrcs_kind(DisaggregationMethod method) {
   switch (method) {
     case DisaggregationMethod::nrcs_i:
@@ -387,13 +435,10 @@ std::vector<double> disaggregate_interval(double depth_m, Instant length_s, Inst
       (nrcs && length_s != kDay_s)) {
     return {depth_m};
   }
-  const std::uint64_t seed = split_mix(how.seed ^ split_mix(static_cast<std::uint64_t>(start)));
+  const std::uint64_t seed = interval_seed(how, start);
   if (how.method == DisaggregationMethod::fragments) {
-    const auto library =
-        std::find_if(how.fragments.begin(), how.fragments.end(), [&](const FragmentLibrary& l) {
-          return library_length_s(l.calendar, start, start + length_s) == l.length_s;
-        });
-    if (library == how.fragments.end() || library->intervals.empty()) return {depth_m};
+    const FragmentLibrary* library = library_for(how, start, length_s);
+    if (library == nullptr) return {depth_m};
     std::mt19937_64 rng(seed);
     const Fragment& f = choose_fragment(*library, depth_m, season_day(start), wet_before, wet_after,
                                         detail::uniform_open(rng), wet_before ? edge_m : 0.0);
@@ -444,6 +489,7 @@ RainSeries disaggregate(const RainSeries& as_read, const Disaggregation& how) {
   bool spread = false;
   double edge_m = 0.0;  // the last step of the interval before, as spread
   const std::vector<RainPulse>& pulses = as_read.pulses;
+  const std::vector<const Fragment*> matched = spell_fragments(pulses, how);
   for (std::size_t k = 0; k < pulses.size(); ++k) {
     const RainPulse& p = pulses[k];
     const Instant length_s = p.end - p.start;
@@ -451,7 +497,10 @@ RainSeries disaggregate(const RainSeries& as_read, const Disaggregation& how) {
     const bool wet_before = k > 0 && pulses[k - 1].end == p.start;
     const bool wet_after = k + 1 < pulses.size() && pulses[k + 1].start == p.end;
     const std::vector<double> parts =
-        disaggregate_interval(p.depth_m, length_s, p.start, how, wet_before, wet_after, edge_m);
+        matched[k] != nullptr
+            ? split_exactly(p.depth_m, stretched_cumulative(*matched[k], length_s, how.step_s))
+            : disaggregate_interval(p.depth_m, length_s, p.start, how, wet_before, wet_after,
+                                    edge_m);
     edge_m = parts.size() > 1 ? parts.back() : 0.0;
     if (parts.size() == 1) {
       out.pulses.push_back(p);

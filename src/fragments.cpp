@@ -34,6 +34,29 @@ std::size_t window_of(double distance) {
   return w;
 }
 
+// The index of the library interval drawn with knn_weights by `u` among `candidates`
+// (distance, index): the k = round(sqrt(n)) nearest, the earlier first on a tie, narrowed by
+// `keep` when any of the k passes it (Lall & Sharma 1996, section 3, as remembered).
+template <typename Keep>
+std::size_t draw_nearest(std::vector<std::pair<double, std::size_t>>& candidates, double u,
+                         Keep keep) {
+  const auto k = std::max<std::size_t>(
+      1, static_cast<std::size_t>(std::lround(std::sqrt(static_cast<double>(candidates.size())))));
+  std::partial_sort(candidates.begin(), candidates.begin() + static_cast<std::ptrdiff_t>(k),
+                    candidates.end());
+  candidates.resize(k);
+  if (std::any_of(candidates.begin(), candidates.end(), keep)) {
+    std::erase_if(candidates, [&](const auto& c) { return !keep(c); });
+  }
+  const std::vector<double> weights = knn_weights(candidates.size());
+  double below = 0.0;
+  for (std::size_t j = 0; j + 1 < candidates.size(); ++j) {
+    below += weights[j];
+    if (u < below) return candidates[j].second;
+  }
+  return candidates.back().second;
+}
+
 }  // namespace
 
 double season_day(Instant t) {
@@ -165,30 +188,49 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
     if (season_distance(f.season_day, when) > kSeasonWindows_days[window]) continue;
     candidates.emplace_back(std::fabs(f.depth_m - depth_m), i);
   }
-  // k = round(sqrt(n)): Lall & Sharma (1996), section 3 (from memory).
-  const auto k = std::max<std::size_t>(
-      1, static_cast<std::size_t>(std::lround(std::sqrt(static_cast<double>(candidates.size())))));
-  std::partial_sort(candidates.begin(), candidates.begin() + static_cast<std::ptrdiff_t>(k),
-                    candidates.end());
-  candidates.resize(k);
   // After a wet last step, those of the k whose first step, scaled to this depth, goes on at
   // about its depth (this project's rule: see kEdgeRatio), when there are any.
-  if (edge_m > 0.0) {
-    const auto goes_on = [&](const std::pair<double, std::size_t>& c) {
-      const double first_m = depth_m * all[c.second].cumulative[1];
-      return first_m * kEdgeRatio >= edge_m && first_m <= edge_m * kEdgeRatio;
-    };
-    if (std::any_of(candidates.begin(), candidates.end(), goes_on)) {
-      std::erase_if(candidates, [&](const auto& c) { return !goes_on(c); });
+  const auto goes_on = [&](const std::pair<double, std::size_t>& c) {
+    const double first_m = depth_m * all[c.second].cumulative[1];
+    return edge_m > 0.0 && first_m * kEdgeRatio >= edge_m && first_m <= edge_m * kEdgeRatio;
+  };
+  return all[draw_nearest(candidates, u, goes_on)];
+}
+
+std::optional<std::size_t> choose_spell(const FragmentLibrary& library,
+                                        const std::vector<double>& depths_m, double when,
+                                        double u) {
+  const std::vector<Fragment>& all = library.intervals;
+  const std::size_t length = depths_m.size();
+  assert(length > 0);
+  // The library's spells of this length: the index of the first interval of each.
+  std::vector<std::size_t> spells;
+  for (std::size_t i = 0; i < all.size();) {
+    std::size_t end = i + 1;
+    while (end < all.size() && all[end].wet_before) ++end;
+    if (end - i == length) spells.push_back(i);
+    i = end;
+  }
+  if (spells.empty()) return std::nullopt;
+  constexpr std::size_t windows = kSeasonWindows_days.size();
+  std::array<std::size_t, windows> in_window{};
+  for (const std::size_t i : spells) {
+    for (std::size_t w = window_of(season_distance(all[i].season_day, when)); w < windows; ++w) {
+      ++in_window[w];
     }
   }
-  const std::vector<double> weights = knn_weights(candidates.size());
-  double below = 0.0;
-  for (std::size_t j = 0; j + 1 < candidates.size(); ++j) {
-    below += weights[j];
-    if (u < below) return all[candidates[j].second];
+  std::size_t window = 0;
+  while (window + 1 < windows && in_window[window] < kMinFragmentCandidates) ++window;
+  std::vector<std::pair<double, std::size_t>> candidates;
+  for (const std::size_t i : spells) {
+    if (season_distance(all[i].season_day, when) > kSeasonWindows_days[window]) continue;
+    double squares = 0.0;
+    for (std::size_t j = 0; j < length; ++j) {
+      squares += std::pow(depths_m[j] - all[i + j].depth_m, 2);
+    }
+    candidates.emplace_back(std::sqrt(squares), i);
   }
-  return all[candidates.back().second];
+  return draw_nearest(candidates, u, [](const auto&) { return false; });
 }
 
 }  // namespace gutterwatt
