@@ -155,6 +155,85 @@ TEST(Fragments, WidensTheSeasonThenLetsTheNeighboursGo) {
   EXPECT_TRUE(choose_fragment(library, 5.1e-3, 100.0, true, true, 0.5).wet_before);
 }
 
+// A library by hand of hours in two half-hour steps, day 100 of the year: a spell A of 4 mm all
+// in the second half then 2 mm all in the first; a one-hour spell C of 3 mm, half in each; a
+// spell B of 1 mm in the first half then 1 mm in the second.
+FragmentLibrary spell_library() {
+  FragmentLibrary library;
+  library.length_s = kHour;
+  const auto add = [&](double mm, bool before, bool after, double first_share) {
+    library.intervals.push_back({mm * 1e-3, before, after, 100.0, {0.0, first_share, 1.0}, kHour});
+  };
+  add(4.0, false, true, 0.0);   // A
+  add(2.0, true, false, 1.0);   // A
+  add(3.0, false, false, 0.5);  // C
+  add(1.0, false, true, 1.0);   // B
+  add(1.0, true, false, 0.0);   // B
+  return library;
+}
+
+TEST(Fragments, ASpellTakesTheNearestCalibrationSpellOfItsLength) {
+  const FragmentLibrary library = spell_library();
+  // Two spells of 2 h (fewer than 10: the whole year), k = round(sqrt(2)) = 1: the nearest
+  // always. Hand distances for 3.9 and 2.1 mm: A sqrt(0.1^2 + 0.1^2) = 0.14 mm, B sqrt(2.9^2 +
+  // 1.1^2) = 3.10 mm; for 1.2 and 0.8 mm: A 3.03 mm, B 0.28 mm.
+  for (const double u : {0.01, 0.5, 0.99}) {
+    EXPECT_EQ(choose_spell(library, {3.9e-3, 2.1e-3}, 100.0, u), 0u);
+    EXPECT_EQ(choose_spell(library, {1.2e-3, 0.8e-3}, 100.0, u), 3u);
+    EXPECT_EQ(choose_spell(library, {0.5e-3}, 100.0, u), 2u);  // the one spell of 1 h
+  }
+  EXPECT_FALSE(choose_spell(library, {1e-3, 1e-3, 1e-3}, 100.0, 0.5).has_value());
+}
+
+// An hourly record from kT0: a spell of 3.9 and 2.1 mm, a dry hour, a spell of 1.7, 5.3 and
+// 0.4 mm (no calibration spell is 3 h long), a dry hour, one hour of 2.5 mm.
+RainSeries hourly_spells() {
+  RainSeries hourly;
+  hourly.step_s = kHour;
+  hourly.covered = {{kT0, kT0 + 9 * kHour}};
+  const std::vector<std::pair<Instant, double>> hours = {{0, 3.9e-3}, {1, 2.1e-3}, {3, 1.7e-3},
+                                                         {4, 5.3e-3}, {5, 0.4e-3}, {7, 2.5e-3}};
+  for (const auto& [h, depth_m] : hours) {
+    hourly.pulses.push_back({kT0 + h * kHour, kT0 + (h + 1) * kHour, depth_m});
+  }
+  hourly.total_depth_m = sum_depths_m(hourly.pulses);
+  return hourly;
+}
+
+TEST(Fragments, AMatchedSpellKeepsTheGaugesPatternAcrossTheHourEdge) {
+  Disaggregation how;
+  how.method = DisaggregationMethod::fragments;
+  how.step_s = 1800;
+  how.fragments = {spell_library()};
+  const RainSeries spread = disaggregate(hourly_spells(), how);
+  // The first spell takes A (above): all of 3.9 mm in 00:30-01:00 and all of 2.1 mm in
+  // 01:00-01:30, one storm across the hour edge, each hour's depth exactly.
+  ASSERT_GE(spread.pulses.size(), 2u);
+  EXPECT_EQ(spread.pulses[0].start, kT0 + 1800);
+  EXPECT_EQ(spread.pulses[0].depth_m, 3.9e-3);
+  EXPECT_EQ(spread.pulses[1].start, kT0 + kHour);
+  EXPECT_EQ(spread.pulses[1].depth_m, 2.1e-3);
+}
+
+TEST(Fragments, SpellsMatchedOrNotKeepEveryHoursDepthExactly) {
+  const RainSeries hourly = hourly_spells();
+  Disaggregation how;
+  how.method = DisaggregationMethod::fragments;
+  how.step_s = 300;
+  how.fragments = {spell_library()};
+  for (std::uint64_t seed = 1; seed <= 20; ++seed) {
+    how.seed = seed;
+    const RainSeries spread = disaggregate(hourly, how);
+    for (const RainPulse& hour : hourly.pulses) {
+      double sum = 0.0;
+      for (const RainPulse& p : spread.pulses) {
+        if (p.start >= hour.start && p.end <= hour.end) sum += p.depth_m;
+      }
+      EXPECT_EQ(sum, hour.depth_m) << "seed " << seed << ", hour from " << hour.start;
+    }
+  }
+}
+
 // America/Los_Angeles in 2025 (Energy Policy Act of 2005, sec. 110: daylight saving from 2:00
 // on the second Sunday of March to 2:00 on the first Sunday of November; PST -8 h, PDT -7 h).
 // Local midnights, worked by hand from kT0 = 2025-03-01T00:00Z: 8 March 00:00 PST = 08:00Z;
