@@ -34,8 +34,11 @@ inline constexpr std::string_view kUncalibratedWarning =
     "may make the rain far burstier or smoother than it is where you are; calibrate them with "
     "rain.disaggregate.calibrate_with (a short fine record from a nearby gauge)";
 
-/// The record with every pulse longer than `how.step_s` spread by disaggregate_interval;
-/// coverage, gaps, warnings and the total depth are those of
+/// The record with every pulse longer than `how.step_s` spread by disaggregate_interval, except
+/// that with `fragments` a wet spell of intervals shorter than a day (consecutive pulses, all
+/// spread by one library) takes a calibration spell of as many intervals whole (choose_spell),
+/// each pulse the fragment of the calibration interval in the same place, when the library has
+/// one of that length; coverage, gaps, warnings and the total depth are those of
 /// `as_read`, and `step_s` becomes `how.step_s` when a pulse was spread. Each pulse's depth is
 /// conserved exactly. A record that is not daily (step other than 1 d) gains a warning like
 /// kDailyWarning when a pulse was spread, and an uncalibrated cascade kUncalibratedWarning.
