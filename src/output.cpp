@@ -146,13 +146,14 @@ void write_header(std::ostream& out, std::span<const OutputColumn<Row>> columns,
   out << line;
 }
 
-// A row's text is built in one allocation of this size (rows are shorter but for long texts).
+// A row's text is built in `line`, a writer's buffer of at least this size kept from row to row
+// (rows are shorter but for long texts), so a row allocates nothing for it.
 constexpr std::size_t kLineRoom = 256;
 
 template <class Row>
 void write_row(std::ostream& out, std::span<const OutputColumn<Row>> columns, const Row& row,
-               UnitSystem units) {
-  std::string line;
+               UnitSystem units, std::string& line) {
+  line.clear();
   line.reserve(kLineRoom);
   for (const OutputColumn<Row>& c : columns) {
     if (c.text != nullptr) {
@@ -191,7 +192,7 @@ void TraceWriter::on_trace(const TracePoint& p) {
                          " rows); set simulation.trace: off, give a shorter period, or run "
                          "with --force");
   }
-  write_row(out_, trace_columns(), TraceRow{p, zone_}, units_);
+  write_row(out_, trace_columns(), TraceRow{p, zone_}, units_, line_);
 }
 
 TimeseriesWriter::TimeseriesWriter(std::ostream& out, const Scenario& scenario, bool limited)
@@ -211,7 +212,7 @@ void TimeseriesWriter::on_sample(const Sample& s) {
   if (limited_ && ++rows_ * kTimeseriesRowBytes > kMaxTimeseriesBytes) {
     refuse_output_size(scenario_, rows_, false);
   }
-  write_row(out_, timeseries_columns(), TimeseriesRow{last_, s, area_m2_, zone_}, units_);
+  write_row(out_, timeseries_columns(), TimeseriesRow{last_, s, area_m2_, zone_}, units_, line_);
   last_ = s;
 }
 
@@ -221,7 +222,7 @@ EventsWriter::EventsWriter(std::ostream& out, const Scenario& scenario)
 }
 
 void EventsWriter::on_episode(const Episode& e) {
-  write_row(out_, events_columns(), EventRow{e, zone_}, units_);
+  write_row(out_, events_columns(), EventRow{e, zone_}, units_, line_);
 }
 
 SummaryBuilder::SummaryBuilder(const Scenario& scenario) : scenario_(scenario) {}

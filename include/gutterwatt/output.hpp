@@ -99,6 +99,7 @@ class TimeseriesWriter : public Observer {
   bool limited_;
   double rows_ = 0.0;
   Sample last_;
+  std::string line_;  // a row's text, its allocation kept from row to row
 };
 
 /// Writes one trace.csv row per trace point (see TracePoint), in the scenario's units; the time
@@ -117,6 +118,7 @@ class TraceWriter : public Observer {
   UnitSystem units_;
   bool limited_;
   double rows_ = 0.0;
+  std::string line_;  // a row's text, its allocation kept from row to row
 };
 
 /// Writes one events.csv row per siphon cycle, overflow, dribble and column-overflow episode.
@@ -129,6 +131,7 @@ class EventsWriter : public Observer {
   std::ostream& out_;
   TimeZone zone_;
   UnitSystem units_;
+  std::string line_;  // a row's text, its allocation kept from row to row
 };
 
 /// One calendar month (local time), one meteorological season, or one calendar year.
