@@ -34,6 +34,14 @@ std::size_t window_of(double distance) {
   return w;
 }
 
+// The narrowest season window (index into kSeasonWindows_days) whose count of candidates
+// reaches kMinFragmentCandidates, or the widest: the whole year.
+std::size_t narrowest_window(const std::array<std::size_t, kSeasonWindows_days.size()>& counts) {
+  std::size_t window = 0;
+  while (window + 1 < counts.size() && counts[window] < kMinFragmentCandidates) ++window;
+  return window;
+}
+
 // The index of the library interval drawn with knn_weights by `u` among `candidates`
 // (distance, index): the k = round(sqrt(n)) nearest, the earlier first on a tie, narrowed by
 // `keep` when any of the k passes it (Lall & Sharma 1996, section 3, as remembered).
@@ -172,14 +180,9 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
       if (f.wet_before == wet_before && f.wet_after == wet_after) ++same[wider];
     }
   }
-  bool same_states = true;
-  std::size_t window = 0;
-  while (window + 1 < windows && same[window] < kMinFragmentCandidates) ++window;
-  if (same[window] < kMinFragmentCandidates) {
-    same_states = false;
-    window = 0;
-    while (window + 1 < windows && any[window] < kMinFragmentCandidates) ++window;
-  }
+  std::size_t window = narrowest_window(same);
+  const bool same_states = same[window] >= kMinFragmentCandidates;
+  if (!same_states) window = narrowest_window(any);
   // The candidates by distance in depth, the earlier first on a tie.
   std::vector<std::pair<double, std::size_t>> candidates;
   for (std::size_t i = 0; i < all.size(); ++i) {
@@ -219,8 +222,7 @@ std::optional<std::size_t> choose_spell(const FragmentLibrary& library,
       ++in_window[w];
     }
   }
-  std::size_t window = 0;
-  while (window + 1 < windows && in_window[window] < kMinFragmentCandidates) ++window;
+  const std::size_t window = narrowest_window(in_window);
   std::vector<std::pair<double, std::size_t>> candidates;
   for (const std::size_t i : spells) {
     if (season_distance(all[i].season_day, when) > kSeasonWindows_days[window]) continue;

@@ -532,8 +532,8 @@ void scan_rows(std::istream& in, const std::string& file_label, const SeriesForm
       }
       header.indexes = find_columns(header.names, line_number, file_label, wanted, keys);
       prepare_header(header);
+      const auto asked = header.indexes.begin() + static_cast<std::ptrdiff_t>(columns.size());
       for (std::size_t i = 0; i < header.names.size(); ++i) {
-        const auto asked = header.indexes.begin() + static_cast<std::ptrdiff_t>(columns.size());
         other_columns = other_columns || (!header.names[i].empty() &&
                                           std::find(header.indexes.begin(), asked, i) == asked);
       }

@@ -72,15 +72,15 @@ inline constexpr double kEdgeRatio = 2.0;
 /// depths `depths_m`, starting `when` in the season, the index in `library.intervals` of the
 /// first interval of a calibration spell of the same number of intervals. The spells of that
 /// length within the season window (widened as in choose_fragment until it holds
-/// kMinSpellCandidates) are ranked by the Euclidean distance between the two vectors of
-/// interval depths, sqrt(sum_i (d_i - c_i)^2), the feature-vector distance of Lall & Sharma
-/// (1996), here over the whole spell where "A nonparametric stochastic approach for
+/// kMinFragmentCandidates, or the whole year) are ranked by the Euclidean distance between the two
+/// vectors of interval depths, sqrt(sum_i (d_i - c_i)^2), the feature-vector distance of Lall &
+/// Sharma (1996), here over the whole spell where "A nonparametric stochastic approach for
 /// disaggregation of daily to hourly rainfall using 3-day rainfall patterns" (Water 12(8), 2306,
 /// 2020) takes the day before, the day and the day after (only its abstract read); the k =
 /// round(sqrt(n)) nearest (ties: the earlier) are drawn with knn_weights by `u` in [0, 1).
 /// Each target interval then takes the fragments of the calibration interval in the same
 /// place of the spell, so the gauge's own pattern carries across the interval edges. nullopt
-/// when the library has fewer than kMinSpellCandidates spells of that length in the whole year.
+/// when the library has no spell of that length.
 std::optional<std::size_t> choose_spell(const FragmentLibrary& library,
                                         const std::vector<double>& depths_m, double when, double u);
 
