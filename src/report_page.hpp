@@ -3,7 +3,10 @@
 // and the small pieces of HTML the sections are built from. Internal to the report.
 
 #include <string>
+#include <string_view>
 #include <vector>
+
+#include "gutterwatt/units.hpp"
 
 namespace gutterwatt::detail {
 
@@ -21,6 +24,16 @@ std::string row_html(const std::string& label, const std::string& value,
 
 /// pretty(v) and its unit, joined by a no-break space.
 std::string with_unit(double v, const char* unit);
+
+/// An SI quantity (`si_unit` as in column names: L, mm, L_per_s) on the page, in `units`, with
+/// its unit.
+std::string quantity(UnitSystem units, double v, std::string_view si_unit);
+
+/// The label of `si_unit` in `units`: `mm` or `in`.
+std::string unit_in(UnitSystem units, std::string_view si_unit);
+
+/// SI values in `si_unit`, in `units`.
+std::vector<double> values_in(UnitSystem units, std::vector<double> v, std::string_view si_unit);
 
 /// A <figure> of `svg` with its caption (HTML).
 std::string figure(const std::string& svg, const std::string& caption);

@@ -145,9 +145,8 @@ std::string sweep_line_svg(const std::string& key, const std::vector<double>& x,
     const std::vector<double>* v;
     const char* colour;
   };
-  const std::array<Series, 2> series{
-      {{"Electrical energy, Wh", &energy, kVermillion},
-       {"Overflow, " + unit_label(in_units(units, 0.0, "L").unit), &overflow, kBlue}}};
+  const std::array<Series, 2> series{{{"Electrical energy, Wh", &energy, kVermillion},
+                                      {"Overflow, " + unit_in(units, "L"), &overflow, kBlue}}};
   double y = 0.0;
   for (const Series& s : series) {
     svg_text(out, 8.0, y + 17.0, escape(s.title), "start", "ptitle");
@@ -285,7 +284,7 @@ std::string maps_section(const SweepPage& page, std::vector<std::string>& charts
   }
   const std::size_t c_energy = csv.require("energy_Wh");
   const std::size_t c_overflow = csv.require(column_name(sw.units, "overflow_L"));
-  const std::string litres = unit_label(in_units(sw.units, 0.0, "L").unit);
+  const std::string litres = unit_in(sw.units, "L");
   if (numeric.size() >= 2) {
     HeatGrid grid;
     const std::size_t cx = numeric[0];
