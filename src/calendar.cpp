@@ -91,16 +91,25 @@ void append_padded(std::string& out, long long value, int width) {
   out.append(buf, put_padded(buf, value, width));
 }
 
-void append_offset(std::string& out, int offset_s) {
-  out += offset_s < 0 ? '-' : '+';
+// Writes a number from 0 to 99 as two digits at `p`; returns the end.
+char* put_two_digits(char* p, std::int64_t value) {
+  *p++ = static_cast<char>('0' + value / 10);
+  *p++ = static_cast<char>('0' + value % 10);
+  return p;
+}
+
+// Writes a UTC offset `+hh:mm` (`:ss` when its seconds are not zero) at `p`; returns the end.
+char* put_offset(char* p, int offset_s) {
+  *p++ = offset_s < 0 ? '-' : '+';
   const int magnitude = offset_s < 0 ? -offset_s : offset_s;
-  append_padded(out, magnitude / 3600, 2);
-  out += ':';
-  append_padded(out, magnitude / 60 % 60, 2);
+  p = put_padded(p, magnitude / 3600, 2);
+  *p++ = ':';
+  p = put_padded(p, magnitude / 60 % 60, 2);
   if (magnitude % 60 != 0) {
-    out += ':';
-    append_padded(out, magnitude % 60, 2);
+    *p++ = ':';
+    p = put_padded(p, magnitude % 60, 2);
   }
+  return p;
 }
 
 }  // namespace
@@ -222,14 +231,14 @@ bool format_has_offset(std::string_view format) {
   return false;
 }
 
-std::string format_iso8601(Instant instant, int offset_s) {
+char* put_iso8601(char* out, Instant instant, int offset_s) {
   const std::int64_t local = instant + offset_s;
   const std::int64_t days = floor_div(local, kDay_s);
   const std::int64_t second_of_day = local - days * kDay_s;
   // Outputs write many times of one day in a row (trace.csv a row a minute): the date's text,
   // with its `T`, is kept from the last call.
   thread_local std::int64_t cached_days = std::numeric_limits<std::int64_t>::min();
-  thread_local char date_text[64];
+  thread_local char date_text[32];
   thread_local std::size_t date_length = 0;
   if (days != cached_days) {
     const CivilTime t = to_civil(instant, offset_s);
@@ -242,18 +251,20 @@ std::string format_iso8601(Instant instant, int offset_s) {
     date_length = static_cast<std::size_t>(p - date_text);
     cached_days = days;
   }
-  char buf[128];
-  char* p = std::copy(date_text, date_text + date_length, buf);
-  p = put_padded(p, second_of_day / 3600, 2);
+  char* p = std::copy(date_text, date_text + date_length, out);
+  p = put_two_digits(p, second_of_day / 3600);
   *p++ = ':';
-  p = put_padded(p, second_of_day / 60 % 60, 2);
+  p = put_two_digits(p, second_of_day / 60 % 60);
   if (second_of_day % 60 != 0) {
     *p++ = ':';
-    p = put_padded(p, second_of_day % 60, 2);
+    p = put_two_digits(p, second_of_day % 60);
   }
-  std::string out(buf, p);
-  if (offset_s != 0) append_offset(out, offset_s);
-  return out;
+  return offset_s != 0 ? put_offset(p, offset_s) : p;
+}
+
+std::string format_iso8601(Instant instant, int offset_s) {
+  char buf[kIso8601Room];
+  return std::string(buf, put_iso8601(buf, instant, offset_s));
 }
 
 std::optional<int> parse_utc_offset(std::string_view text) {
@@ -354,6 +365,10 @@ std::string month_label(Instant instant, const TimeZone& zone) {
 
 std::string format_iso8601(Instant instant, const TimeZone& zone) {
   return format_iso8601(instant, zone.offset_s(instant));
+}
+
+char* put_iso8601(char* out, Instant instant, const TimeZone& zone) {
+  return put_iso8601(out, instant, zone.offset_s(instant));
 }
 
 std::optional<TimeZone> TimeZone::named(const std::string& name) {

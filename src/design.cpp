@@ -4,6 +4,7 @@
 #include <array>
 #include <cmath>
 #include <cstdio>
+#include <limits>
 #include <map>
 #include <memory>
 
@@ -118,12 +119,25 @@ RecordFigures record_figures(const RainSeries& rain,
   std::vector<std::pair<double, double>> wet;  // intensity, duration
   double wet_s = 0.0;
   std::map<int, double> annual_max;
+  // The local year of the pulse before and, in a zone of fixed offset, its bounds: a year is
+  // looked up again only for a pulse outside them (a record has many pulses a year; issue 16).
+  double* year_max = nullptr;
+  Instant year_begin = std::numeric_limits<Instant>::max();
+  Instant year_end = std::numeric_limits<Instant>::min();
+  wet.reserve(rain.pulses.size());
   for (const RainPulse& pulse : rain.pulses) {
     const double dur = static_cast<double>(pulse.end - pulse.start);
     wet.emplace_back(wet_intensity(pulse), dur);
     wet_s += dur;
-    const int year = to_civil(pulse.start, zone).year;
-    annual_max[year] = std::max(annual_max[year], wet_intensity(pulse));
+    if (year_max == nullptr || pulse.start < year_begin || pulse.start >= year_end) {
+      const int year = to_civil(pulse.start, zone).year;
+      year_max = &annual_max[year];
+      if (zone.fixed()) {
+        year_begin = month_start(year, 1, zone);
+        year_end = month_start(year + 1, 1, zone);
+      }
+    }
+    *year_max = std::max(*year_max, wet_intensity(pulse));
   }
   std::sort(wet.begin(), wet.end());
   double acc = 0.0;

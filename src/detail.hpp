@@ -128,48 +128,53 @@ inline std::optional<double> to_number(std::string_view text) {
 /// The buffer fixed_text writes in: longer text is cut there, as snprintf cuts it.
 inline constexpr std::size_t kFixedRoom = 400;
 
-/// `v` with `decimals` places (printf `%.*f`), written in `buf`, never a negative zero (`-0.00`
-/// gives `0.00`). Most numbers take an exact short path: |v| 10^d is rounded once by the
-/// multiplication, by at most half a unit in its last place (ulp), so while it stays below 2^52
-/// and its fraction is more than an ulp from one half, the integer nearest to it is the one
-/// nearest to the exact product, which printf prints; that integer's digits with the point put
-/// in are printf's text. The rest (near-ties, large numbers, NaN) go through std::to_chars,
-/// which gives printf's text in the C locale. trace.csv's rows are most of the numbers a run
-/// writes (issue 16).
-inline std::string_view fixed_text(double v, int decimals, char (&buf)[kFixedRoom]) {
+/// The integer printf's `%.*f` rounds |v| 10^decimals to, where an exact short path finds it
+/// (nullopt elsewhere: near-ties, large numbers, NaN, decimals outside 0..9). |v| 10^d is rounded
+/// once by the multiplication, by at most half a unit in its last place (ulp), so while it stays
+/// below 2^52 and its fraction is more than an ulp from one half, the integer nearest to it is
+/// the one nearest to the exact product, which printf prints. trace.csv's rows are most of the
+/// numbers a run writes (issue 16).
+inline std::optional<std::uint64_t> fixed_scaled(double v, int decimals) {
   static constexpr double kPow10[] = {1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9};
-  if (decimals >= 0 && decimals < static_cast<int>(std::size(kPow10))) {
-    const double s = std::abs(v) * kPow10[decimals];
-    if (s < 0x1p52) {  // false for NaN and infinities
-      const double whole = std::floor(s);
-      const double fraction = s - whole;  // exact below 2^52
-      if (std::abs(fraction - 0.5) > s * 0x1p-52) {
-        const auto n = static_cast<std::uint64_t>(whole) + (fraction > 0.5 ? 1u : 0u);
-        // The integer's digits after room for a sign, the point and the zeros that give it
-        // at least one digit before the point: "-0.0012" from 12 with 4 places.
-        constexpr std::size_t kRoom = std::size(kPow10) + 2;
-        char* const digits = buf + kRoom;
-        const std::size_t count =
-            static_cast<std::size_t>(std::to_chars(digits, buf + kFixedRoom, n).ptr - digits);
-        const std::size_t places = static_cast<std::size_t>(decimals);
-        const std::size_t zeros = places + 1 > count ? places + 1 - count : 0;
-        char* const first = digits - zeros;
-        std::fill(first, digits, '0');
-        const std::size_t whole_digits = count + zeros - places;
-        // The whole digits move one place left, making room for the point.
-        char* start = std::copy(first, first + whole_digits, first - 1) - whole_digits;
-        std::size_t length = whole_digits;
-        if (places > 0) {
-          start[whole_digits] = '.';
-          length += places + 1;
-        }
-        if (v < 0.0 && n != 0) {
-          *--start = '-';
-          ++length;
-        }
-        return {start, length};
-      }
-    }
+  if (decimals < 0 || decimals >= static_cast<int>(std::size(kPow10))) return std::nullopt;
+  const double s = std::abs(v) * kPow10[decimals];
+  if (!(s < 0x1p52)) return std::nullopt;  // NaN and infinities too
+  const auto whole = static_cast<std::uint64_t>(static_cast<std::int64_t>(s));  // floor: s >= 0
+  const double fraction = s - static_cast<double>(whole);                       // exact below 2^52
+  if (!(std::abs(fraction - 0.5) > s * 0x1p-52)) return std::nullopt;
+  return whole + (fraction > 0.5 ? 1u : 0u);
+}
+
+/// Writes the digits of `n` with `places` of them after a point and at least one before it,
+/// after a `-` when `negative` ("-0.0012" from 12 with 4 places), at `out`, which has room for
+/// 24 bytes past `places`; returns the end. Written from the right, in place.
+inline char* put_scaled(char* out, std::uint64_t n, std::size_t places, bool negative) {
+  std::size_t count = 1;  // n's digits
+  for (std::uint64_t bound = 10; count < 20 && n >= bound; bound *= 10) ++count;
+  if (negative) *out++ = '-';
+  char* const end = out + std::max(count, places + 1) + (places > 0 ? 1 : 0);
+  char* p = end;
+  for (std::size_t k = 0; k < places; ++k) {
+    *--p = static_cast<char>('0' + n % 10);
+    n /= 10;
+  }
+  if (places > 0) *--p = '.';
+  do {
+    *--p = static_cast<char>('0' + n % 10);
+    n /= 10;
+  } while (p != out);
+  return end;
+}
+
+/// `v` with `decimals` places (printf `%.*f`), written in `buf`, never a negative zero (`-0.00`
+/// gives `0.00`). Most numbers take fixed_scaled's exact short path, whose integer's digits with
+/// the point put in are printf's text; the rest go through std::to_chars, which gives printf's
+/// text in the C locale.
+inline std::string_view fixed_text(double v, int decimals, char (&buf)[kFixedRoom]) {
+  if (const std::optional<std::uint64_t> n = fixed_scaled(v, decimals)) {
+    const char* const end =
+        put_scaled(buf, *n, static_cast<std::size_t>(decimals), v < 0.0 && *n != 0);
+    return {buf, static_cast<std::size_t>(end - buf)};
   }
   const auto [end, ec] =
       std::to_chars(buf, buf + kFixedRoom, v, std::chars_format::fixed, decimals);
@@ -198,14 +203,29 @@ inline std::string litres_per_minute(double flow_m3_per_s) {
   return on_terminal(flow_m3_per_s / kLitrePerMinute_m3_per_s) + " L/min";
 }
 
-/// As fixed_text, without trailing zeros after the point (and without a bare point).
-inline std::string_view fixed_trimmed_text(double v, int decimals, char (&buf)[kFixedRoom]) {
+/// As fixed_text, without trailing zeros after the point (and without a bare point), written at
+/// `out`, which has room for kFixedRoom bytes; returns the end. Into the caller's buffer: the
+/// output writers put each cell straight into their row (issue 16).
+inline char* put_fixed_trimmed(char* out, double v, int decimals) {
+  if (const std::optional<std::uint64_t> scaled = fixed_scaled(v, decimals)) {
+    std::uint64_t n = *scaled;
+    auto places = n != 0 ? static_cast<std::size_t>(decimals) : 0;
+    for (; places > 0 && n % 10 == 0; --places) n /= 10;
+    return put_scaled(out, n, places, v < 0.0 && n != 0);
+  }
+  char buf[kFixedRoom];
   std::string_view text = fixed_text(v, decimals, buf);
   if (text.find('.') != std::string_view::npos) {
     while (text.back() == '0') text.remove_suffix(1);
     if (text.back() == '.') text.remove_suffix(1);
   }
-  return text == "-0" ? "0" : text;
+  if (text == "-0") text = "0";
+  return std::copy(text.begin(), text.end(), out);
+}
+
+/// As fixed_text, without trailing zeros after the point (and without a bare point).
+inline std::string_view fixed_trimmed_text(double v, int decimals, char (&buf)[kFixedRoom]) {
+  return {buf, static_cast<std::size_t>(put_fixed_trimmed(buf, v, decimals) - buf)};
 }
 
 /// As fixed, without trailing zeros after the point (and without a bare point).

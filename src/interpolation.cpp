@@ -1,6 +1,10 @@
 #include "gutterwatt/interpolation.hpp"
 
+#include <algorithm>
 #include <cassert>
+#include <deque>
+#include <mutex>
+#include <string>
 
 namespace gutterwatt {
 
@@ -18,6 +22,41 @@ UniformTable::UniformTable(double x0, double x1, int n, const std::function<doub
     cells_[k] = {v[1], -v[0] / 3.0 - v[1] / 2.0 + v[2] - v[3] / 6.0, v[0] / 2.0 - v[1] + v[2] / 2.0,
                  (v[3] - v[0]) / 6.0 + (v[1] - v[2]) / 2.0};
   }
+}
+
+namespace {
+
+// How many distinct tables shared_table keeps: a run's few, and a sweep's over a geometry key
+// without holding megabytes (a 4096-cell table is 128 KiB).
+constexpr std::size_t kKeptTables = 8;
+
+struct KeptTable {
+  std::string name;
+  std::vector<double> key;  // the figures, then x0, x1 and n
+  UniformTable table;
+};
+
+}  // namespace
+
+UniformTable shared_table(std::string_view name, std::vector<double> figures, double x0, double x1,
+                          int n, const std::function<double(double)>& f) {
+  static std::mutex mutex;
+  static std::deque<KeptTable> kept;
+  figures.insert(figures.end(), {x0, x1, static_cast<double>(n)});
+  const auto same = [&](const KeptTable& t) { return t.name == name && t.key == figures; };
+  {
+    const std::lock_guard<std::mutex> lock(mutex);
+    for (const KeptTable& t : kept) {
+      if (same(t)) return t.table;
+    }
+  }
+  UniformTable table(x0, x1, n, f);  // outside the lock: another thread may build another
+  const std::lock_guard<std::mutex> lock(mutex);
+  if (std::none_of(kept.begin(), kept.end(), same)) {
+    kept.push_back({std::string(name), std::move(figures), table});
+    if (kept.size() > kKeptTables) kept.pop_front();
+  }
+  return table;
 }
 
 }  // namespace gutterwatt

@@ -18,14 +18,11 @@ namespace {
 
 constexpr double kMmPerM = 1e3;
 
-// Appends fixed-point text with trailing zeros trimmed, so CSV cells stay short and exact enough.
-void append_num(std::string& out, double v, int decimals) {
-  if (!std::isfinite(v)) {
-    out += "nan";
-    return;
-  }
-  char buf[detail::kFixedRoom];
-  out += detail::fixed_trimmed_text(v, decimals, buf);
+static_assert(detail::kFixedRoom <= kCellRoom && kIso8601Room <= kCellRoom);
+
+// A text cell: `text` (shorter than kCellRoom) at `out`; returns the end.
+char* put_text(char* out, std::string_view text) {
+  return std::copy(text.begin(), text.end(), out);
 }
 
 double round_to(double v, int decimals) {
@@ -79,13 +76,14 @@ double change_L(const TsRow& r) {
 }
 
 constexpr TsColumn kTimeseriesColumns[] = {
-    {"time", 0, nullptr, [](const TsRow& r) { return format_iso8601(r.to.time, r.zone); }},
+    {"time", 0, nullptr,
+     [](const TsRow& r, char* out) { return put_iso8601(out, r.to.time, r.zone); }},
     {"rain_mm", 3,
      [](const TsRow& r) { return change<&Accounts::rain_m3>(r) / r.roof_area_m2 * kMmPerM; }},
     {"roof_runoff_L", 3, change_L<&Accounts::roof_runoff_m3>},
     {"reservoir_level_mm", 3, [](const TsRow& r) { return r.to.level_m * kMmPerM; }},
     {"release_state", 0, nullptr,
-     [](const TsRow& r) { return std::string(release_state_name(r.to.release)); }},
+     [](const TsRow& r, char* out) { return put_text(out, release_state_name(r.to.release)); }},
     {"release_L", 3, change_L<&Accounts::release_m3>},
     {"reservoir_overflow_L", 3, change_L<&Accounts::reservoir_overflow_m3>},
     {"column_overflow_L", 3, change_L<&Accounts::column_overflow_m3>},
@@ -106,10 +104,14 @@ constexpr TsColumn kTimeseriesColumns[] = {
 
 constexpr OutputColumn<TraceRow> kTraceColumns[] = {
     {"time", 0, nullptr,
-     [](const TraceRow& r) { return format_iso8601(floor_instant(r.point.time_s), r.zone); }},
+     [](const TraceRow& r, char* out) {
+       return put_iso8601(out, floor_instant(r.point.time_s), r.zone);
+     }},
     {"reservoir_level_mm", 3, [](const TraceRow& r) { return r.point.level_m * kMmPerM; }},
     {"release_state", 0, nullptr,
-     [](const TraceRow& r) { return std::string(release_state_name(r.point.release)); }},
+     [](const TraceRow& r, char* out) {
+       return put_text(out, release_state_name(r.point.release));
+     }},
     {"release_L_per_s", 4,
      [](const TraceRow& r) { return r.point.release_m3_per_s * kLitresPerCubicMetre; }},
     {"overflow_L_per_s", 4,
@@ -122,11 +124,15 @@ using EvColumn = OutputColumn<EventRow>;
 
 constexpr EvColumn kEventsColumns[] = {
     {"kind", 0, nullptr,
-     [](const EventRow& r) { return std::string(episode_kind_name(r.episode.kind)); }},
+     [](const EventRow& r, char* out) { return put_text(out, episode_kind_name(r.episode.kind)); }},
     {"start", 0, nullptr,
-     [](const EventRow& r) { return format_iso8601(floor_instant(r.episode.start_s), r.zone); }},
+     [](const EventRow& r, char* out) {
+       return put_iso8601(out, floor_instant(r.episode.start_s), r.zone);
+     }},
     {"end", 0, nullptr,
-     [](const EventRow& r) { return format_iso8601(floor_instant(r.episode.end_s), r.zone); }},
+     [](const EventRow& r, char* out) {
+       return put_iso8601(out, floor_instant(r.episode.end_s), r.zone);
+     }},
     {"duration_s", 1, [](const EventRow& r) { return r.episode.end_s - r.episode.start_s; }},
     {"volume_L", 3, [](const EventRow& r) { return r.episode.volume_m3 * kLitresPerCubicMetre; }},
     {"peak_flow_L_per_s", 4,
@@ -146,25 +152,27 @@ void write_header(std::ostream& out, std::span<const OutputColumn<Row>> columns,
   out << line;
 }
 
-// A row's text is built in `line`, a writer's buffer of at least this size kept from row to row
-// (rows are shorter but for long texts), so a row allocates nothing for it.
-constexpr std::size_t kLineRoom = 256;
-
+// A row's text is built in `line`, a writer's buffer with room for kCellRoom bytes in each cell,
+// kept from row to row: each cell is written straight into it and the row goes out in one write.
 template <class Row>
 void write_row(std::ostream& out, std::span<const OutputColumn<Row>> columns, const Row& row,
                UnitSystem units, std::string& line) {
-  line.clear();
-  line.reserve(kLineRoom);
+  line.resize(columns.size() * (kCellRoom + 1));
+  char* const first = line.data();
+  char* p = first;
   for (const OutputColumn<Row>& c : columns) {
     if (c.text != nullptr) {
-      line += c.text(row);
+      p = c.text(row, p);
     } else if (const double v = c.value(row); !std::isnan(v)) {
-      append_num(line, column_value(units, c.name, v), column_decimals(units, c.name, c.decimals));
+      const double shown = column_value(units, c.name, v);
+      p = std::isfinite(shown)
+              ? detail::put_fixed_trimmed(p, shown, column_decimals(units, c.name, c.decimals))
+              : put_text(p, "nan");
     }
-    line += ',';
+    *p++ = ',';
   }
-  line.back() = '\n';
-  out << line;
+  p[-1] = '\n';
+  out.write(first, p - first);
 }
 
 }  // namespace

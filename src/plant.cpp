@@ -38,9 +38,16 @@ Plant::Plant(const PlantConfig& config)
       kinematic_viscosity_m2_per_s_(water_kinematic_viscosity_m2_per_s(config.temperature_C)) {
   // The full flow is needed at every solver stage while the release runs; solving the friction
   // law there dominated the run time, so it is tabulated once over the levels a run can reach.
+  // Built once per process for each pipe, nozzle, drop, column and water (shared_table): every
+  // figure full_flow() reads.
   const double top = std::max(config.top_level_m, 1e-3) + 0.1;
-  full_flow_table_ = UniformTable(0.0, top, 1024,
-                                  [this](double level) { return solve_full_flow_m3_per_s(level); });
+  full_flow_table_ = shared_table(
+      "full flow at level",
+      {pipe_.diameter_m, pipe_.length_m, pipe_.roughness_m, pipe_.minor_loss_k,
+       static_cast<double>(static_cast<int>(pipe_.friction)), nozzle_.diameter_m,
+       nozzle_.discharge_coefficient, nozzle_.velocity_coefficient, drop_m_, column_ ? 1.0 : 0.0,
+       column_ ? column_->height_m : 0.0, kinematic_viscosity_m2_per_s_},
+      0.0, top, 1024, [this](double level) { return solve_full_flow_m3_per_s(level); });
   design_head_m_ = column_
                        ? column_->height_m
                        : nozzle_head_for_flow_m(std::min(full_flow_m3_per_s(config.design_level_m),

@@ -172,14 +172,17 @@ ReservoirGeometry::ReservoirGeometry(const ReservoirConfig& config)
     };
     // The level at w = A^(2/3), analytic in w down to 0 (the first node mirrors w < 0).
     const double w_top = std::pow(circular_segment_area_m2(r, rim_m_), 2.0 / 3.0);
-    shallow_table_ = UniformTable(0.0, w_top, 512, [&](double w) {
+    // Both tables depend on the radius and the rim (through their ends) and the second on the
+    // length: built once per process for each (shared_table).
+    shallow_table_ = shared_table("half-round level at w", {r}, 0.0, w_top, 512, [&](double w) {
       const double h = solve_area(std::abs(w) * std::sqrt(std::abs(w)));
       return w < 0.0 ? -h : h;
     });
     // Above a shallow start the level is smooth in the volume: a uniform table in V serves there
     // without the cube root and the Newton step the shallow part needs.
     if (rim_m_ > 0.1 * r) {
-      volume_table_ = UniformTable(circular_segment_area_m2(r, 0.1 * r) * length_m_, rim_volume_m3_,
+      volume_table_ = shared_table("half-round level at V", {r, length_m_},
+                                   circular_segment_area_m2(r, 0.1 * r) * length_m_, rim_volume_m3_,
                                    4096, [&](double v) { return solve_area(v / length_m_); });
     }
   } else if (kind_ == Kind::sloped && rim_m_ > 0.0) {

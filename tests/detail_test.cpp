@@ -104,6 +104,30 @@ TEST(FixedTrimmed, DropsTrailingZerosAndABarePoint) {
   EXPECT_EQ(fixed_trimmed(100.0, 0), "100");
 }
 
+TEST(FixedTrimmed, PrintsWhatPrintfPrintsTrimmed) {
+  // printf's text (printf_fixed) with its trailing zeros and a bare point dropped by hand.
+  const auto trimmed_printf = [](double v, int decimals) {
+    std::string text = printf_fixed(v, decimals);
+    if (text.find('.') != std::string::npos) {
+      text.erase(text.find_last_not_of('0') + 1);
+      if (text.back() == '.') text.pop_back();
+    }
+    return text == "-0" ? std::string("0") : text;
+  };
+  EXPECT_EQ(fixed_trimmed(-0.00049, 3), "0");
+  EXPECT_EQ(fixed_trimmed(-0.0012, 4), "-0.0012");
+  EXPECT_EQ(fixed_trimmed(0.1, 9), "0.1");
+  EXPECT_EQ(fixed_trimmed(1234567.0, 4), "1234567");
+  std::mt19937_64 random(61);
+  std::uniform_real_distribution<double> unit(-1.0, 1.0);
+  for (int i = 0; i < 100000; ++i) {
+    const int decimals = static_cast<int>(random() % 11);
+    double v = unit(random) * std::pow(10.0, static_cast<int>(random() % 16) - 8);
+    if (i % 2 == 0) v = std::round(v * 1e3) / 1e3;  // trailing zeros to drop
+    ASSERT_EQ(fixed_trimmed(v, decimals), trimmed_printf(v, decimals)) << v << " with " << decimals;
+  }
+}
+
 TEST(Detail, SplitsPlainFieldsTrimmed) {
   const std::vector<std::string_view> f = split_fields(" a ,b,\t,c\r");
   ASSERT_EQ(f.size(), 4u);

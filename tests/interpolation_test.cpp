@@ -38,5 +38,23 @@ TEST(UniformTable, CoversItsRangeOnly) {
   EXPECT_FALSE(UniformTable().covers(0.0));
 }
 
+TEST(SharedTable, BuildsEachDistinctTableOnce) {
+  int calls = 0;
+  const auto cube = [&](double x) {
+    ++calls;
+    return x * x * x;
+  };
+  const UniformTable first = shared_table("test cube", {2.0}, 0.0, 1.0, 8, cube);
+  EXPECT_EQ(calls, 11);  // n + 3 nodes
+  const UniformTable again = shared_table("test cube", {2.0}, 0.0, 1.0, 8, cube);
+  EXPECT_EQ(calls, 11);
+  EXPECT_EQ(again(0.3), first(0.3));
+  EXPECT_NEAR(again(0.3), 0.027, 1e-15);                 // exact for cubics, 0.3^3 by hand
+  shared_table("test cube", {3.0}, 0.0, 1.0, 8, cube);   // another figure
+  shared_table("test cube", {2.0}, 0.0, 2.0, 8, cube);   // another range
+  shared_table("test cube", {2.0}, 0.0, 1.0, 16, cube);  // other nodes
+  EXPECT_EQ(calls, 11 + 11 + 11 + 19);
+}
+
 }  // namespace
 }  // namespace gutterwatt::interpolation_test

@@ -4,6 +4,7 @@
 #include <array>
 #include <cstddef>
 #include <functional>
+#include <string_view>
 #include <vector>
 
 namespace gutterwatt {
@@ -41,5 +42,14 @@ class UniformTable {
   double last_cell_ = 0.0;   ///< index of the last cell, as a double
   std::vector<Cell> cells_;  ///< one per cell [x0 + k h, x0 + (k + 1) h], k = 0 .. n - 1
 };
+
+/// UniformTable(x0, x1, n, f), built once per process for each distinct table and copied from
+/// there after: `name` names f and `figures` holds every figure f depends on (beyond x0, x1 and
+/// n), which the caller must list in full. A run builds its reservoir's and plant's tables for
+/// the run, again for the design's figures and for a cycle's energy, and a sweep for every
+/// combination (issue 16). The last few distinct tables are kept; safe to call from several
+/// threads.
+UniformTable shared_table(std::string_view name, std::vector<double> figures, double x0, double x1,
+                          int n, const std::function<double(double)>& f);
 
 }  // namespace gutterwatt

@@ -32,8 +32,12 @@ struct OutputColumn {
   std::string_view name;
   int decimals = 0;  ///< in SI
   double (*value)(const Row&) = nullptr;
-  std::string (*text)(const Row&) = nullptr;
+  /// Writes the cell's text at `out`, which has room for kCellRoom bytes; returns its end.
+  char* (*text)(const Row&, char* out) = nullptr;
 };
+
+/// The room each cell of an output row has: the longest number or text a cell writes.
+inline constexpr std::size_t kCellRoom = 400;
 
 /// One row of timeseries.csv: the interval from `from` to `to`.
 struct TimeseriesRow {
