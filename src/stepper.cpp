@@ -81,12 +81,30 @@ void Stepper::fail(const std::string& what, double t) const {
   throw SimulationError(msg.str());
 }
 
+bool Stepper::step_end_current(const Forcing& f) const {
+  const StepEnd& e = step_end_;
+  return e.valid && e.x == x_ && e.mode.release == mode_.release &&
+         e.mode.overflowing == mode_.overflowing && e.mode.column == mode_.column &&
+         e.mode.generator_on == mode_.generator_on && e.mode.battery == mode_.battery &&
+         e.load_W == f.load_W && e.evaporation_m_per_s == f.evaporation_m_per_s;
+}
+
 // Applies every switch whose guard is already below zero, so the mode matches the state.
+// The rates and guards do not read the rain: at the start of a segment that follows a step ended
+// without a switch, in the same state, mode, load and evaporation, they are that step's.
 ChainRates Stepper::settle(const Forcing& f, Guards& g, ChainState& dxdt) {
+  const bool reuse = step_end_current(f);
+  step_end_.valid = false;
   for (int pass = 0; pass < kMaxSwitchesAtOnce; ++pass) {
     ChainRates r;
-    system_.rates(x_, mode_, f, r, dxdt);
-    system_.guards(x_, mode_, f, r, g);
+    if (pass == 0 && reuse) {
+      r = step_end_.r;
+      dxdt = step_end_.dxdt;
+      g = step_end_.g;
+    } else {
+      system_.rates(x_, mode_, f, r, dxdt);
+      system_.guards(x_, mode_, f, r, g);
+    }
     int fired = -1;
     for (int k = 0; k < kGuardCount; ++k) {
       if (g[k] < 0.0) {
@@ -105,6 +123,7 @@ ChainRates Stepper::settle(const Forcing& f, Guards& g, ChainState& dxdt) {
 // battery serves the load (battery_at_rest).
 void Stepper::coast(double t, double span, const Forcing& f) {
   const Scenario& sc = system_.scenario();
+  step_end_.valid = false;
   if (moving_) {
     // The chain comes to rest: the trace's last point before its pause.
     moving_ = false;
@@ -229,7 +248,8 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     ChainState x_end;
     ChainRates r;
     ChainState w_end;
-    if (t_end == step.second && last_t == step.second) {
+    const bool fsal_end = t_end == step.second && last_t == step.second;
+    if (fsal_end) {
       from_solver(stepper.current_state(), t_end, x_end);
       r = last;
     } else {
@@ -303,6 +323,9 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       fresh = true;
     } else {
       g_prev = g_end;
+      if (t == span && fsal_end) {
+        step_end_ = StepEnd{true, x_, mode_, f.load_W, f.evaporation_m_per_s, r, *last_dxdt, g_end};
+      }
       if (step.second > span) break;
     }
     last_step_s_ = std::max(1e-3, stepper.current_time_step());

@@ -83,6 +83,22 @@ class Stepper {
   bool moving_ = false;           // stepped (not at rest) since the last trace point at rest
   SolverStats stats_;
   ChainState error_scale_{};  // the error checker's absolute scale per slot
+  /// The rates, derivative and guards at the end of the last step that ended without a switch,
+  /// and what they were computed from: the next segment's settle() takes them from here when
+  /// the state, the mode and the forcing the rates read (not the rain) are the same.
+  struct StepEnd {
+    bool valid = false;
+    ChainState x{};
+    ChainMode mode;
+    double load_W = 0.0;
+    double evaporation_m_per_s = 0.0;
+    ChainRates r;
+    ChainState dxdt{};
+    Guards g{};
+  };
+  StepEnd step_end_;
+  /// True when step_end_ holds the rates of the engine's state and mode now under `f`.
+  bool step_end_current(const Forcing& f) const;
 };
 
 }  // namespace gutterwatt
