@@ -34,11 +34,20 @@ std::size_t window_of(double distance) {
   return w;
 }
 
+// Candidates in each season window (kSeasonWindows_days), the narrowest first.
+using WindowCounts = std::array<std::size_t, kSeasonWindows_days.size()>;
+
 // The narrowest season window (index into kSeasonWindows_days) whose count of candidates
-// reaches kMinFragmentCandidates, or the widest: the whole year.
-std::size_t narrowest_window(const std::array<std::size_t, kSeasonWindows_days.size()>& counts) {
+// reaches kMinFragmentCandidates and whose count of `deeper` ones reaches `deeper_needed`, or the
+// widest: the whole year.
+std::size_t narrowest_window(const WindowCounts& counts, const WindowCounts& deeper = {},
+                             std::size_t deeper_needed = 0) {
   std::size_t window = 0;
-  while (window + 1 < counts.size() && counts[window] < kMinFragmentCandidates) ++window;
+  while (window + 1 < counts.size() &&
+         (counts[window] < kMinFragmentCandidates ||
+          (deeper[window] < deeper_needed && window + 2 < counts.size()))) {
+    ++window;
+  }
   return window;
 }
 
@@ -169,20 +178,28 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
   const std::vector<Fragment>& all = library.intervals;
   assert(!all.empty());
   // How many intervals each stage admits: the same neighbour states first (Westra et al. 2012),
-  // the season window widening; then any states.
+  // the season window widening; then any states. For days, also how many of them are at least
+  // as deep as this one (kMinDeeperDays).
   constexpr std::size_t windows = kSeasonWindows_days.size();
-  std::array<std::size_t, windows> same{};
-  std::array<std::size_t, windows> any{};
+  WindowCounts same{};
+  WindowCounts any{};
+  WindowCounts same_deeper{};
+  WindowCounts any_deeper{};
   for (const Fragment& f : all) {
     const std::size_t w = window_of(season_distance(f.season_day, when));
+    const bool states = f.wet_before == wet_before && f.wet_after == wet_after;
+    const bool deeper = f.depth_m >= depth_m;
     for (std::size_t wider = w; wider < windows; ++wider) {
       ++any[wider];
-      if (f.wet_before == wet_before && f.wet_after == wet_after) ++same[wider];
+      any_deeper[wider] += deeper;
+      same[wider] += states;
+      same_deeper[wider] += states && deeper;
     }
   }
-  std::size_t window = narrowest_window(same);
+  const std::size_t deeper_needed = library.length_s >= kDay_s ? kMinDeeperDays : 0;
+  std::size_t window = narrowest_window(same, same_deeper, deeper_needed);
   const bool same_states = same[window] >= kMinFragmentCandidates;
-  if (!same_states) window = narrowest_window(any);
+  if (!same_states) window = narrowest_window(any, any_deeper, deeper_needed);
   // The candidates by distance in depth, the earlier first on a tie.
   std::vector<std::pair<double, std::size_t>> candidates;
   for (std::size_t i = 0; i < all.size(); ++i) {
@@ -216,7 +233,7 @@ std::optional<std::size_t> choose_spell(const FragmentLibrary& library,
   }
   if (spells.empty()) return std::nullopt;
   constexpr std::size_t windows = kSeasonWindows_days.size();
-  std::array<std::size_t, windows> in_window{};
+  WindowCounts in_window{};
   for (const std::size_t i : spells) {
     for (std::size_t w = window_of(season_distance(all[i].season_day, when)); w < windows; ++w) {
       ++in_window[w];

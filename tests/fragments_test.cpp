@@ -14,6 +14,7 @@ namespace {
 // source: POSIX.1-2017 Base Definitions 4.16 (Seconds Since the Epoch), formula worked by hand.
 constexpr Instant kT0 = 1740787200;
 constexpr Instant kHour = 3600;
+constexpr Instant kDay = 24 * kHour;
 
 // An invented fine record at 1 minute covering kT0 to kT0 + 3 h: in the first hour 0.2 mm a
 // minute over minutes 10-14 and 0.6 mm over minutes 15-19 (1 mm, then 3 mm); in the second hour
@@ -153,6 +154,45 @@ TEST(Fragments, WidensTheSeasonThenLetsTheNeighboursGo) {
   // Wet on both sides: no interval in the library is; any state within 15 days of day 100
   // gives 26, k = 5; the nearest are the ten of 5.1 mm after a wet one (the earliest on a tie).
   EXPECT_TRUE(choose_fragment(library, 5.1e-3, 100.0, true, true, 0.5).wet_before);
+}
+
+TEST(Fragments, ADeepDayWidensTheSeasonUntilItHoldsDeeperDays) {
+  // A library by hand, the same intervals cut as days and as hours, dry neighbours: 12 of 1 to
+  // 12 mm on day 100 of the year, 3 of 16 mm on day 120.
+  const auto library_of = [](Instant length_s) {
+    FragmentLibrary library;
+    library.length_s = length_s;
+    for (int mm = 1; mm <= 12; ++mm) {
+      library.intervals.push_back({mm * 1e-3, false, false, 100.0, {0.0, 1.0}, length_s});
+    }
+    for (int i = 0; i < 3; ++i) {
+      library.intervals.push_back({16e-3, false, false, 120.0, {0.0, 1.0}, length_s});
+    }
+    return library;
+  };
+  // A day of 15 mm on day 100: within 15 days 12 candidates (enough) but none as deep as
+  // 15 mm, fewer than kMinDeeperDays = 2, so the window widens to 30 days: 15 candidates, 3 of
+  // them deeper. k = round(sqrt(15)) = 4, the nearest: the three of 16 mm (1 mm away), then
+  // 12 mm (3 mm); weights 12/25, 6/25, 4/25, 3/25, cumulative 0.48, 0.72, 0.88.
+  const FragmentLibrary days = library_of(kDay);
+  const auto day_mm = [&](double u) {
+    return choose_fragment(days, 15e-3, 100.0, false, false, u).depth_m * 1e3;
+  };
+  for (const double u : {0.1, 0.5, 0.8}) EXPECT_DOUBLE_EQ(day_mm(u), 16.0);
+  EXPECT_DOUBLE_EQ(day_mm(0.95), 12.0);
+  // Hours keep the narrow window (the rule is for days): 12 candidates, k = round(sqrt(12)) =
+  // 3, the nearest 12, 11 and 10 mm, cumulative weights 6/11 and 9/11.
+  const FragmentLibrary hours = library_of(kHour);
+  const auto hour_mm = [&](double u) {
+    return choose_fragment(hours, 15e-3, 100.0, false, false, u).depth_m * 1e3;
+  };
+  EXPECT_DOUBLE_EQ(hour_mm(0.5), 12.0);
+  EXPECT_DOUBLE_EQ(hour_mm(0.6), 11.0);
+  EXPECT_DOUBLE_EQ(hour_mm(0.9), 10.0);
+  // A day of 12 mm: within 15 days only the 12 mm one is as deep (one of the two needed), so
+  // the window widens to 30 days as well: k = 4, the nearest 12, 11, 10 and 9 mm (16 mm is
+  // 4 mm away); u = 0.95 draws the fourth, where the narrow window's k = 3 would give 10 mm.
+  EXPECT_DOUBLE_EQ(choose_fragment(days, 12e-3, 100.0, false, false, 0.95).depth_m * 1e3, 9.0);
 }
 
 // A library by hand of hours in two half-hour steps, day 100 of the year: a spell A of 4 mm all
