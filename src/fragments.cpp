@@ -39,7 +39,8 @@ using WindowCounts = std::array<std::size_t, kSeasonWindows_days.size()>;
 
 // The narrowest season window (index into kSeasonWindows_days) whose count of candidates
 // reaches kMinFragmentCandidates and whose count of `deeper` ones reaches `deeper_needed`, or the
-// widest: the whole year.
+// widest: the whole year. The count of deeper ones never widens it to the whole year (the last
+// window), only the count of candidates does (kMinDeeperDays).
 std::size_t narrowest_window(const WindowCounts& counts, const WindowCounts& deeper = {},
                              std::size_t deeper_needed = 0) {
   std::size_t window = 0;

@@ -83,10 +83,8 @@ void Stepper::fail(const std::string& what, double t) const {
 
 bool Stepper::step_end_current(const Forcing& f) const {
   const StepEnd& e = step_end_;
-  return e.valid && e.x == x_ && e.mode.release == mode_.release &&
-         e.mode.overflowing == mode_.overflowing && e.mode.column == mode_.column &&
-         e.mode.generator_on == mode_.generator_on && e.mode.battery == mode_.battery &&
-         e.load_W == f.load_W && e.evaporation_m_per_s == f.evaporation_m_per_s;
+  return e.valid && e.x == x_ && e.mode == mode_ && e.load_W == f.load_W &&
+         e.evaporation_m_per_s == f.evaporation_m_per_s;
 }
 
 // Applies every switch whose guard is already below zero, so the mode matches the state.

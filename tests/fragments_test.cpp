@@ -195,6 +195,29 @@ TEST(Fragments, ADeepDayWidensTheSeasonUntilItHoldsDeeperDays) {
   EXPECT_DOUBLE_EQ(choose_fragment(days, 12e-3, 100.0, false, false, 0.95).depth_m * 1e3, 9.0);
 }
 
+TEST(Fragments, TheDepthRuleWidensTheSeasonNoFurtherThan61Days) {
+  // A library of days by hand, dry neighbours: 12 of 1 to 12 mm on day 100 of the year, 3 of
+  // 16 mm on day 250 (150 days away, outside every window but the whole year).
+  FragmentLibrary days;
+  days.length_s = kDay;
+  for (int mm = 1; mm <= 12; ++mm) {
+    days.intervals.push_back({mm * 1e-3, false, false, 100.0, {0.0, 1.0}, kDay});
+  }
+  for (int i = 0; i < 3; ++i) {
+    days.intervals.push_back({16e-3, false, false, 250.0, {0.0, 1.0}, kDay});
+  }
+  // A day of 15 mm on day 100: no library day as deep within ±15, ±30 or ±61 days, but the rule
+  // stops at ±61 (a deep day keeps its season): 12 candidates, k = round(sqrt(12)) = 3, the
+  // nearest 12, 11 and 10 mm, cumulative weights 6/11 and 9/11. Widened to the whole year it
+  // would draw 16 mm with u = 0.1.
+  const auto day_mm = [&](double u) {
+    return choose_fragment(days, 15e-3, 100.0, false, false, u).depth_m * 1e3;
+  };
+  EXPECT_DOUBLE_EQ(day_mm(0.1), 12.0);
+  EXPECT_DOUBLE_EQ(day_mm(0.6), 11.0);
+  EXPECT_DOUBLE_EQ(day_mm(0.9), 10.0);
+}
+
 // A library by hand of hours in two half-hour steps, day 100 of the year: a spell A of 4 mm all
 // in the second half then 2 mm all in the first; a one-hour spell C of 3 mm, half in each; a
 // spell B of 1 mm in the first half then 1 mm in the second.

@@ -57,6 +57,8 @@ struct ChainMode {
   ColumnMode column = ColumnMode::trickle;
   bool generator_on = false;
   BatteryMode battery = BatteryMode::normal;
+
+  bool operator==(const ChainMode&) const = default;
 };
 
 /// What drives a segment: constant over it.

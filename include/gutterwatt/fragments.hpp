@@ -62,9 +62,10 @@ inline constexpr std::size_t kMinFragmentCandidates = 10;
 /// in fewer hours than the record's deep days did (frontal daily energy and cycles too high;
 /// README, "How far to trust a disaggregated record"). It serves the aim of Westra et al.
 /// (2012), who pool the fragments of nearby gauges so that similar days exist (as remembered);
-/// here the season window widens instead. 2 was chosen over 1 and over the whole year on the
-/// 5-minute statistics of a throwaway re-implementation; tools/accuracy measured 2 (common
-/// practice, no source).
+/// here the season window widens instead, but for this rule no further than ±61 days, so that a
+/// deep day keeps its season (widened to the whole year, the small accuracy test's seasonal year
+/// took other seasons' patterns: README). 2 and the cap are this project's choices, measured with
+/// tools/accuracy; no published value.
 inline constexpr std::size_t kMinDeeperDays = 2;
 
 /// Weights of the j-th nearest of k neighbours, j = 1..k: (1/j) / sum over i of 1/i (Lall &
