@@ -659,7 +659,7 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
       out << "  " << std::left << std::setw(34) << c.label << std::right << std::setw(14)
           << in(own.*(c.value)) << std::setw(10) << in(x.p50) << std::setw(10) << in(x.p10)
           << " to " << std::left << std::setw(9) << in(x.p90) << std::right
-          << unit_label(in_units(units, 0.0, c.unit).unit) << '\n';
+          << unit_in(units, c.unit) << '\n';
     }
     out << "  (P10, median and P90 of the " << z.n << " runs: " << kPercentileDefinition << ")\n";
   }
@@ -668,8 +668,8 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
     const auto in = [&](double in_si, std::string_view si_unit) {
       return detail::on_terminal(in_units(units, in_si, si_unit).value);
     };
-    const std::string rain = "rain " + unit_label(in_units(units, 0.0, "mm").unit);
-    const std::string litres = unit_label(in_units(units, 0.0, "L").unit);
+    const std::string rain = "rain " + unit_in(units, "mm");
+    const std::string litres = unit_in(units, "L");
     const std::string overflow = "overflow " + litres;
     const std::string dribble = "dribble " + litres;
     // At least two spaces before a heading.

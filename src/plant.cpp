@@ -1,6 +1,8 @@
 #include "gutterwatt/plant.hpp"
 
 #include <algorithm>
+#include <optional>
+#include <vector>
 
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/units.hpp"
@@ -15,6 +17,31 @@ double full_flow(const Pipe& pipe, const Nozzle& nozzle, double drop_m,
   if (column)
     return free_outfall_flow_m3_per_s(pipe, level_m + drop_m - column->height_m, nu_m2_per_s);
   return nozzle_controlled_flow_m3_per_s(pipe, nozzle, level_m + drop_m, nu_m2_per_s);
+}
+
+/// Every figure full_flow() reads but the level: the key of its shared table. The structured
+/// bindings name each field of the pipe, the nozzle and the column, so a field added to one of
+/// them stops this compiling until it joins the key (two designs must not share a wrong table).
+std::vector<double> full_flow_figures(const Pipe& pipe, const Nozzle& nozzle, double drop_m,
+                                      const std::optional<HeadColumnConfig>& column,
+                                      double nu_m2_per_s) {
+  const auto& [diameter, length, roughness, minor_loss, friction] = pipe;
+  const auto& [nozzle_diameter, discharge_coefficient, velocity_coefficient] = nozzle;
+  const HeadColumnConfig no_column;
+  const auto& [column_diameter, column_height] = column ? *column : no_column;
+  return {diameter,
+          length,
+          roughness,
+          minor_loss,
+          static_cast<double>(static_cast<int>(friction)),
+          nozzle_diameter,
+          discharge_coefficient,
+          velocity_coefficient,
+          drop_m,
+          column ? 1.0 : 0.0,
+          column_diameter,
+          column_height,
+          nu_m2_per_s};
 }
 
 }  // namespace
@@ -38,16 +65,12 @@ Plant::Plant(const PlantConfig& config)
       kinematic_viscosity_m2_per_s_(water_kinematic_viscosity_m2_per_s(config.temperature_C)) {
   // The full flow is needed at every solver stage while the release runs; solving the friction
   // law there dominated the run time, so it is tabulated once over the levels a run can reach.
-  // Built once per process for each pipe, nozzle, drop, column and water (shared_table): every
-  // figure full_flow() reads.
+  // Built once per process for each pipe, nozzle, drop, column and water (shared_table).
   const double top = std::max(config.top_level_m, 1e-3) + 0.1;
   full_flow_table_ = shared_table(
       "full flow at level",
-      {pipe_.diameter_m, pipe_.length_m, pipe_.roughness_m, pipe_.minor_loss_k,
-       static_cast<double>(static_cast<int>(pipe_.friction)), nozzle_.diameter_m,
-       nozzle_.discharge_coefficient, nozzle_.velocity_coefficient, drop_m_, column_ ? 1.0 : 0.0,
-       column_ ? column_->height_m : 0.0, kinematic_viscosity_m2_per_s_},
-      0.0, top, 1024, [this](double level) { return solve_full_flow_m3_per_s(level); });
+      full_flow_figures(pipe_, nozzle_, drop_m_, column_, kinematic_viscosity_m2_per_s_), 0.0, top,
+      1024, [this](double level) { return solve_full_flow_m3_per_s(level); });
   design_head_m_ = column_
                        ? column_->height_m
                        : nozzle_head_for_flow_m(std::min(full_flow_m3_per_s(config.design_level_m),

@@ -118,11 +118,6 @@ std::string quantity(UnitSystem units, double v, std::string_view si_unit) {
   return with_unit(q.value, unit_label(q.unit).c_str());
 }
 
-/// The label of `si_unit` in `units`: `mm` or `in`.
-std::string unit_in(UnitSystem units, std::string_view si_unit) {
-  return unit_label(in_units(units, 0.0, si_unit).unit);
-}
-
 /// SI values in `si_unit`, in `units`.
 std::vector<double> values_in(UnitSystem units, std::vector<double> v, std::string_view si_unit) {
   for (double& x : v) x = in_units(units, x, si_unit).value;

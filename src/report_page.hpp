@@ -29,9 +29,6 @@ std::string with_unit(double v, const char* unit);
 /// its unit.
 std::string quantity(UnitSystem units, double v, std::string_view si_unit);
 
-/// The label of `si_unit` in `units`: `mm` or `in`.
-std::string unit_in(UnitSystem units, std::string_view si_unit);
-
 /// SI values in `si_unit`, in `units`.
 std::vector<double> values_in(UnitSystem units, std::vector<double> v, std::string_view si_unit);
 

@@ -353,6 +353,37 @@ class Seen {
   std::map<std::string, Value> values_;
 };
 
+/// Converts one key's value into the scenario; checks that need only this value happen here.
+using Apply = void (*)(const Value&, Scenario&);
+
+/// One key of a section: its name, whether it is required, and its conversion.
+struct Key {
+  std::string_view name;
+  bool required;
+  Apply apply;
+};
+
+inline constexpr bool kRequired = true;
+inline constexpr bool kOptional = false;
+
+// Nested sections and shared conversions (scenario_sections.cpp).
+
+/// A duration in whole seconds from `lo_s` to `hi_s`.
+Instant whole_seconds(const Value& v, Instant lo_s, Instant hi_s);
+
+/// Hours as whole seconds.
+Instant hours_as_seconds(const Value& v, const Limits& limits);
+
+/// release.builds: a list of named, measured siphon builds.
+void apply_builds(const Value& v, Scenario& s);
+
+/// rain.where: a section of column names and the text each must hold for a row to be kept.
+void apply_where(const Value& v, Scenario& s);
+
+/// rain.disaggregate, a small section inside rain: its keys are read and checked here, with the
+/// same messages as the loader's. rain.format comes before it in the schema, so it is known here.
+void apply_disaggregate(const Value& v, Scenario& s);
+
 /// Checks that involve several keys, and defaults that depend on other keys (scenario_checks.cpp).
 void check_combinations(const Seen& seen, Scenario& s);
 

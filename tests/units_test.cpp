@@ -69,6 +69,10 @@ TEST(Units, OutputColumnsTakeTheirUsTwinNames) {
   EXPECT_EQ(column_name(UnitSystem::si, "rain_mm"), "rain_mm");
   EXPECT_EQ(unit_label("L_per_min"), "L/min");
   EXPECT_EQ(unit_label(in_units(UnitSystem::us, 0.0, "mm_per_h").unit), "in/h");
+  EXPECT_EQ(unit_in(UnitSystem::us, "mm_per_h"), "in/h");
+  EXPECT_EQ(unit_in(UnitSystem::us, "L_per_s"), "gpm");
+  EXPECT_EQ(unit_in(UnitSystem::si, "L_per_s"), "L/s");
+  EXPECT_EQ(unit_in(UnitSystem::us, "Wh"), "Wh");
 }
 
 TEST(Units, OutputValuesGoByTheExactFactors) {

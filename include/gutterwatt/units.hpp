@@ -120,6 +120,11 @@ inline std::string unit_label(std::string_view unit) {
   return out;
 }
 
+/// The label of `si_unit` (`mm`, `L`, `L_per_s`) in `units`: `mm` or `in`, `L/s` or `gpm`.
+inline std::string unit_in(UnitSystem units, std::string_view si_unit) {
+  return unit_label(in_units(units, 0.0, si_unit).unit);
+}
+
 /// A column named with its SI unit (`rain_mm`, `peak_flow_L_per_s`) as `units` names it
 /// (`rain_in`, `peak_flow_gpm`); a name without a twin unit (`power_W`) stays.
 inline std::string column_name(UnitSystem units, std::string_view si_name) {
