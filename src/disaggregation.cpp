@@ -215,7 +215,8 @@ std::uint64_t interval_seed(const Disaggregation& how, Instant start) {
 
 // For `fragments`, the calibration interval that spreads each pulse of a wet spell matched
 // whole (choose_spell); null where none was (other methods, a spell of a length the library
-// lacks, or one whose intervals are not all spread by one library).
+// lacks, or one whose intervals are not all spread by one library) and for a pulse deeper than
+// the calibration interval in its place, which goes on its own (kMinDeeperIntervals).
 std::vector<const Fragment*> spell_fragments(const std::vector<RainPulse>& pulses,
                                              const Disaggregation& how) {
   std::vector<const Fragment*> out(pulses.size(), nullptr);
@@ -238,7 +239,8 @@ std::vector<const Fragment*> spell_fragments(const std::vector<RainPulse>& pulse
       const std::optional<std::size_t> chosen = choose_spell(
           *library, depths_m, season_day(pulses[first].start), detail::uniform_open(rng));
       for (std::size_t k = first; chosen && k < end; ++k) {
-        out[k] = &library->intervals[*chosen + (k - first)];
+        const Fragment& f = library->intervals[*chosen + (k - first)];
+        if (f.depth_m >= pulses[k].depth_m) out[k] = &f;
       }
     }
     first = end;

@@ -39,14 +39,14 @@ using WindowCounts = std::array<std::size_t, kSeasonWindows_days.size()>;
 
 // The narrowest season window (index into kSeasonWindows_days) whose count of candidates
 // reaches kMinFragmentCandidates and whose count of `deeper` ones reaches `deeper_needed`, or the
-// widest: the whole year. The count of deeper ones never widens it to the whole year (the last
-// window), only the count of candidates does (kMinDeeperDays).
+// widest: the whole year. The count of deeper ones widens it to the whole year (the last window)
+// only when `deeper_to_whole_year`, else only the count of candidates does (kMinDeeperIntervals).
 std::size_t narrowest_window(const WindowCounts& counts, const WindowCounts& deeper = {},
-                             std::size_t deeper_needed = 0) {
+                             std::size_t deeper_needed = 0, bool deeper_to_whole_year = false) {
   std::size_t window = 0;
-  while (window + 1 < counts.size() &&
-         (counts[window] < kMinFragmentCandidates ||
-          (deeper[window] < deeper_needed && window + 2 < counts.size()))) {
+  while (window + 1 < counts.size() && (counts[window] < kMinFragmentCandidates ||
+                                        (deeper[window] < deeper_needed &&
+                                         (deeper_to_whole_year || window + 2 < counts.size())))) {
     ++window;
   }
   return window;
@@ -179,8 +179,9 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
   const std::vector<Fragment>& all = library.intervals;
   assert(!all.empty());
   // How many intervals each stage admits: the same neighbour states first (Westra et al. 2012),
-  // the season window widening; then any states. For days, also how many of them are at least
-  // as deep as this one (kMinDeeperDays).
+  // the season window widening; then any states. Also how many of them are at least as deep as
+  // this one (kMinDeeperIntervals): for days the window widens for them up to ±61 days, for
+  // shorter intervals to the whole year.
   constexpr std::size_t windows = kSeasonWindows_days.size();
   WindowCounts same{};
   WindowCounts any{};
@@ -197,10 +198,12 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
       same_deeper[wider] += states && deeper;
     }
   }
-  const std::size_t deeper_needed = library.length_s >= kDay_s ? kMinDeeperDays : 0;
-  std::size_t window = narrowest_window(same, same_deeper, deeper_needed);
+  const bool shorter_than_day = library.length_s < kDay_s;
+  std::size_t window = narrowest_window(same, same_deeper, kMinDeeperIntervals, shorter_than_day);
   const bool same_states = same[window] >= kMinFragmentCandidates;
-  if (!same_states) window = narrowest_window(any, any_deeper, deeper_needed);
+  if (!same_states) {
+    window = narrowest_window(any, any_deeper, kMinDeeperIntervals, shorter_than_day);
+  }
   // The candidates by distance in depth, the earlier first on a tie.
   std::vector<std::pair<double, std::size_t>> candidates;
   for (std::size_t i = 0; i < all.size(); ++i) {
@@ -208,6 +211,13 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
     if (same_states && (f.wet_before != wet_before || f.wet_after != wet_after)) continue;
     if (season_distance(f.season_day, when) > kSeasonWindows_days[window]) continue;
     candidates.emplace_back(std::fabs(f.depth_m - depth_m), i);
+  }
+  // Shorter than a day: only those at least as deep, when there are any (kMinDeeperIntervals).
+  const auto shallower = [&](const std::pair<double, std::size_t>& c) {
+    return all[c.second].depth_m < depth_m;
+  };
+  if (shorter_than_day && !std::all_of(candidates.begin(), candidates.end(), shallower)) {
+    std::erase_if(candidates, shallower);
   }
   // After a wet last step, those of the k whose first step, scaled to this depth, goes on at
   // about its depth (this project's rule: see kEdgeRatio), when there are any.

@@ -89,44 +89,57 @@ TEST(Fragments, ALibraryOfOnePatternReproducesIt) {
   }
 }
 
-// A library by hand: 16 intervals of 1 to 16 mm with both neighbours dry on day 100 of the year;
-// 10 of 5.1 mm after a wet interval, on day 100; 5 of 5.1 mm with dry neighbours on day 300.
-FragmentLibrary hand_library() {
+// A library by hand of intervals of `length_s`: 16 of 1 to 16 mm with both neighbours dry on day
+// 100 of the year; 10 of 5.1 mm after a wet interval, on day 100; 5 of 5.1 mm with dry neighbours
+// on day 300.
+FragmentLibrary hand_library(Instant length_s = kHour) {
   FragmentLibrary library;
-  library.length_s = kHour;
-  const auto add = [&](double mm, bool before, double day) {
-    library.intervals.push_back({mm * 1e-3, before, false, day, {0.0, 1.0}});
+  library.length_s = length_s;
+  const auto add = [&](double depth_m, bool before, double day) {
+    library.intervals.push_back({depth_m, before, false, day, {0.0, 1.0}, length_s});
   };
-  for (int mm = 1; mm <= 16; ++mm) add(mm, false, 100.0);
-  for (int i = 0; i < 10; ++i) add(5.1, true, 100.0);
-  for (int i = 0; i < 5; ++i) add(5.1, false, 300.0);
+  for (int mm = 1; mm <= 16; ++mm) add(mm * 1e-3, false, 100.0);
+  for (int i = 0; i < 10; ++i) add(5.1e-3, true, 100.0);
+  for (int i = 0; i < 5; ++i) add(5.1e-3, false, 300.0);
   return library;
 }
 
 TEST(Fragments, DrawsAmongTheKNearestOfTheSameStatesAndSeason) {
-  const FragmentLibrary library = hand_library();
-  // 16 candidates (same states, within 15 days), k = round(sqrt(16)) = 4; nearest to 5.1 mm:
-  // 5, 6, 4, 7 mm. Weights 1/j over 25/12: 12/25, 6/25, 4/25, 3/25; cumulative 0.48, 0.72, 0.88.
-  const auto depth_mm = [&](double u) {
-    return choose_fragment(library, 5.1e-3, 100.0, false, false, u).depth_m * 1e3;
+  // Days: 16 candidates (same states, within 15 days; 11 of them as deep, enough), k =
+  // round(sqrt(16)) = 4; nearest to 5.1 mm: 5, 6, 4, 7 mm. Weights 1/j over 25/12: 12/25, 6/25,
+  // 4/25, 3/25; cumulative 0.48, 0.72, 0.88.
+  const FragmentLibrary days = hand_library(kDay);
+  const auto day_mm = [&](double u) {
+    return choose_fragment(days, 5.1e-3, 100.0, false, false, u).depth_m * 1e3;
   };
-  EXPECT_DOUBLE_EQ(depth_mm(0.47), 5.0);
-  EXPECT_DOUBLE_EQ(depth_mm(0.49), 6.0);
-  EXPECT_DOUBLE_EQ(depth_mm(0.75), 4.0);
-  EXPECT_DOUBLE_EQ(depth_mm(0.95), 7.0);
+  EXPECT_DOUBLE_EQ(day_mm(0.47), 5.0);
+  EXPECT_DOUBLE_EQ(day_mm(0.49), 6.0);
+  EXPECT_DOUBLE_EQ(day_mm(0.75), 4.0);
+  EXPECT_DOUBLE_EQ(day_mm(0.95), 7.0);
+  // Hours: the same 16, but the draw is among those at least as deep as 5.1 mm only: 6 to 16 mm,
+  // 11, k = round(sqrt(11)) = 3: 6, 7, 8 mm, cumulative weights 6/11 and 9/11.
+  const FragmentLibrary hours = hand_library(kHour);
+  const auto hour_mm = [&](double u) {
+    return choose_fragment(hours, 5.1e-3, 100.0, false, false, u).depth_m * 1e3;
+  };
+  EXPECT_DOUBLE_EQ(hour_mm(0.5), 6.0);
+  EXPECT_DOUBLE_EQ(hour_mm(0.6), 7.0);
+  EXPECT_DOUBLE_EQ(hour_mm(0.9), 8.0);
 }
 
 TEST(Fragments, AfterAWetStepPrefersAFragmentThatGoesOnAtItsDepth) {
-  // A library by hand: 9 hours of 1 to 9 mm in two half-hour steps, dry neighbours, day 100;
-  // the first step's share 0.1, 0.5 and 0.9 for 5, 4 and 6 mm, 0.5 for the others.
+  // A library by hand: 9 days of 1 to 9 mm in two half-day steps, dry neighbours, day 100; the
+  // first step's share 0.1, 0.5 and 0.9 for 5, 4 and 6 mm, 0.5 for the others. (Days: hours
+  // would draw among those at least as deep only; AnHourDeeperThanItsCalibrationHourGoesOnItsOwn
+  // has the edge rule with that.)
   FragmentLibrary library;
-  library.length_s = kHour;
+  library.length_s = kDay;
   for (int mm = 1; mm <= 9; ++mm) {
     const double first = mm == 5 ? 0.1 : mm == 6 ? 0.9 : 0.5;
-    library.intervals.push_back({mm * 1e-3, false, false, 100.0, {0.0, first, 1.0}, kHour});
+    library.intervals.push_back({mm * 1e-3, false, false, 100.0, {0.0, first, 1.0}, kDay});
   }
-  // 9 candidates, k = 3; nearest to 5 mm: 5, 4, 6 mm (4 before 6 on the tie: the earlier).
-  // Their first steps scaled to 5 mm: 0.5, 2.5 and 4.5 mm.
+  // 9 candidates (5 as deep, enough), k = 3; nearest to 5 mm: 5, 4, 6 mm (4 before 6 on the tie:
+  // the earlier). Their first steps scaled to 5 mm: 0.5, 2.5 and 4.5 mm.
   const auto depth_mm = [&](double u, double edge_mm) {
     return choose_fragment(library, 5e-3, 100.0, false, false, u, edge_mm * 1e-3).depth_m * 1e3;
   };
@@ -146,13 +159,15 @@ TEST(Fragments, AfterAWetStepPrefersAFragmentThatGoesOnAtItsDepth) {
 
 TEST(Fragments, WidensTheSeasonThenLetsTheNeighboursGo) {
   const FragmentLibrary library = hand_library();
-  // Day 300, dry neighbours: 5 within the window, too few (10); the whole year gives 21,
-  // k = round(sqrt(21)) = 5: the five of 5.1 mm on day 300 are nearest (distance 0).
+  // Day 300, dry neighbours: 5 within the window, too few (10); the whole year gives 21, 16 of
+  // them as deep as 5.1 mm (6 to 16 mm and the five on day 300), the draw among those:
+  // k = round(sqrt(16)) = 4, the five of 5.1 mm on day 300 are nearest (distance 0).
   for (const double u : {0.1, 0.5, 0.99}) {
     EXPECT_EQ(choose_fragment(library, 5.1e-3, 300.0, false, false, u).season_day, 300.0);
   }
   // Wet on both sides: no interval in the library is; any state within 15 days of day 100
-  // gives 26, k = 5; the nearest are the ten of 5.1 mm after a wet one (the earliest on a tie).
+  // gives 26, 21 of them as deep; k = round(sqrt(21)) = 5; the nearest are the ten of 5.1 mm
+  // after a wet one (the earliest on a tie).
   EXPECT_TRUE(choose_fragment(library, 5.1e-3, 100.0, true, true, 0.5).wet_before);
 }
 
@@ -171,7 +186,7 @@ TEST(Fragments, ADeepDayWidensTheSeasonUntilItHoldsDeeperDays) {
     return library;
   };
   // A day of 15 mm on day 100: within 15 days 12 candidates (enough) but none as deep as
-  // 15 mm, fewer than kMinDeeperDays = 2, so the window widens to 30 days: 15 candidates, 3 of
+  // 15 mm, fewer than kMinDeeperIntervals = 2, so the window widens to 30 days: 15 candidates, 3 of
   // them deeper. k = round(sqrt(15)) = 4, the nearest: the three of 16 mm (1 mm away), then
   // 12 mm (3 mm); weights 12/25, 6/25, 4/25, 3/25, cumulative 0.48, 0.72, 0.88.
   const FragmentLibrary days = library_of(kDay);
@@ -180,15 +195,22 @@ TEST(Fragments, ADeepDayWidensTheSeasonUntilItHoldsDeeperDays) {
   };
   for (const double u : {0.1, 0.5, 0.8}) EXPECT_DOUBLE_EQ(day_mm(u), 16.0);
   EXPECT_DOUBLE_EQ(day_mm(0.95), 12.0);
-  // Hours keep the narrow window (the rule is for days): 12 candidates, k = round(sqrt(12)) =
-  // 3, the nearest 12, 11 and 10 mm, cumulative weights 6/11 and 9/11.
+  // An hour of 15 mm widens the same way, to 30 days, but then draws among the candidates at
+  // least as deep only: the three of 16 mm, k = round(sqrt(3)) = 2, both 16 mm, whatever u.
   const FragmentLibrary hours = library_of(kHour);
   const auto hour_mm = [&](double u) {
     return choose_fragment(hours, 15e-3, 100.0, false, false, u).depth_m * 1e3;
   };
-  EXPECT_DOUBLE_EQ(hour_mm(0.5), 12.0);
-  EXPECT_DOUBLE_EQ(hour_mm(0.6), 11.0);
-  EXPECT_DOUBLE_EQ(hour_mm(0.9), 10.0);
+  for (const double u : {0.01, 0.5, 0.99}) EXPECT_DOUBLE_EQ(hour_mm(u), 16.0);
+  // An hour of 5 mm: 12 candidates within 15 days, 8 of them at least as deep (5 to 12 mm), so
+  // the window stays; those 8, k = round(sqrt(8)) = 3: 5, 6 and 7 mm (cumulative weights 6/11
+  // and 9/11), where all 12 would give 5 mm and the two 1 mm away, 4 and 6 mm.
+  const auto hour5_mm = [&](double u) {
+    return choose_fragment(hours, 5e-3, 100.0, false, false, u).depth_m * 1e3;
+  };
+  EXPECT_DOUBLE_EQ(hour5_mm(0.5), 5.0);
+  EXPECT_DOUBLE_EQ(hour5_mm(0.6), 6.0);
+  EXPECT_DOUBLE_EQ(hour5_mm(0.9), 7.0);
   // A day of 12 mm: within 15 days only the 12 mm one is as deep (one of the two needed), so
   // the window widens to 30 days as well: k = 4, the nearest 12, 11, 10 and 9 mm (16 mm is
   // 4 mm away); u = 0.95 draws the fourth, where the narrow window's k = 3 would give 10 mm.
@@ -216,6 +238,14 @@ TEST(Fragments, TheDepthRuleWidensTheSeasonNoFurtherThan61Days) {
   EXPECT_DOUBLE_EQ(day_mm(0.1), 12.0);
   EXPECT_DOUBLE_EQ(day_mm(0.6), 11.0);
   EXPECT_DOUBLE_EQ(day_mm(0.9), 10.0);
+  // The same intervals as hours: an hour of 15 mm widens to the whole year (15 candidates, the
+  // three of 16 mm as deep) and draws among those three only: k = round(sqrt(3)) = 2, 16 mm.
+  FragmentLibrary hours = days;
+  hours.length_s = kHour;
+  for (Fragment& f : hours.intervals) f.length_s = kHour;
+  for (const double u : {0.01, 0.5, 0.99}) {
+    EXPECT_DOUBLE_EQ(choose_fragment(hours, 15e-3, 100.0, false, false, u).depth_m * 1e3, 16.0);
+  }
 }
 
 // A library by hand of hours in two half-hour steps, day 100 of the year: a spell A of 4 mm all
@@ -248,13 +278,13 @@ TEST(Fragments, ASpellTakesTheNearestCalibrationSpellOfItsLength) {
   EXPECT_FALSE(choose_spell(library, {1e-3, 1e-3, 1e-3}, 100.0, 0.5).has_value());
 }
 
-// An hourly record from kT0: a spell of 3.9 and 2.1 mm, a dry hour, a spell of 1.7, 5.3 and
+// An hourly record from kT0: a spell of 3.9 and 1.9 mm, a dry hour, a spell of 1.7, 5.3 and
 // 0.4 mm (no calibration spell is 3 h long), a dry hour, one hour of 2.5 mm.
 RainSeries hourly_spells() {
   RainSeries hourly;
   hourly.step_s = kHour;
   hourly.covered = {{kT0, kT0 + 9 * kHour}};
-  const std::vector<std::pair<Instant, double>> hours = {{0, 3.9e-3}, {1, 2.1e-3}, {3, 1.7e-3},
+  const std::vector<std::pair<Instant, double>> hours = {{0, 3.9e-3}, {1, 1.9e-3}, {3, 1.7e-3},
                                                          {4, 5.3e-3}, {5, 0.4e-3}, {7, 2.5e-3}};
   for (const auto& [h, depth_m] : hours) {
     hourly.pulses.push_back({kT0 + h * kHour, kT0 + (h + 1) * kHour, depth_m});
@@ -269,13 +299,42 @@ TEST(Fragments, AMatchedSpellKeepsTheGaugesPatternAcrossTheHourEdge) {
   how.step_s = 1800;
   how.fragments = {spell_library()};
   const RainSeries spread = disaggregate(hourly_spells(), how);
-  // The first spell takes A (above): all of 3.9 mm in 00:30-01:00 and all of 2.1 mm in
-  // 01:00-01:30, one storm across the hour edge, each hour's depth exactly.
+  // The first spell (3.9, 1.9 mm) takes A, the nearest (sqrt(0.1^2 + 0.1^2) = 0.14 mm against
+  // B's 3.13 mm): all of 3.9 mm in 00:30-01:00 and all of 1.9 mm in 01:00-01:30, one storm across
+  // the hour edge, each hour's depth exactly.
   ASSERT_GE(spread.pulses.size(), 2u);
   EXPECT_EQ(spread.pulses[0].start, kT0 + 1800);
   EXPECT_EQ(spread.pulses[0].depth_m, 3.9e-3);
   EXPECT_EQ(spread.pulses[1].start, kT0 + kHour);
-  EXPECT_EQ(spread.pulses[1].depth_m, 2.1e-3);
+  EXPECT_EQ(spread.pulses[1].depth_m, 1.9e-3);
+}
+
+TEST(Fragments, AnHourDeeperThanItsCalibrationHourGoesOnItsOwn) {
+  Disaggregation how;
+  how.method = DisaggregationMethod::fragments;
+  how.step_s = 1800;
+  how.fragments = {spell_library()};
+  RainSeries hourly;
+  hourly.step_s = kHour;
+  hourly.covered = {{kT0, kT0 + 3 * kHour}};
+  hourly.pulses = {{kT0, kT0 + kHour, 3.9e-3}, {kT0 + kHour, kT0 + 2 * kHour, 2.1e-3}};
+  hourly.total_depth_m = sum_depths_m(hourly.pulses);
+  const RainSeries spread = disaggregate(hourly, how);
+  // The spell (3.9, 2.1 mm) takes A (0.14 mm away against B's 3.10): 3.9 mm is no deeper than
+  // A's 4 mm, so all of it falls in 00:30-01:00. 2.1 mm is deeper than A's second hour (2 mm):
+  // it goes on its own. Wet before, dry after: 2 library hours share that state (fewer than 10),
+  // and 5 in any state, so all 5 in the whole year; at least as deep as 2.1 mm: A's 4 mm and C's
+  // 3 mm (2, enough). Of those, k = round(sqrt(2)) = 1: C (0.9 mm away), half in each half hour;
+  // its first step scaled, 1.05 mm, is not within a factor 2 of the 3.9 mm before, and with none
+  // that is the edge rule keeps it. A's second hour would have put all 2.1 mm in 01:00-01:30.
+  ASSERT_EQ(spread.pulses.size(), 3u);
+  EXPECT_EQ(spread.pulses[0].start, kT0 + 1800);
+  EXPECT_EQ(spread.pulses[0].depth_m, 3.9e-3);
+  EXPECT_EQ(spread.pulses[1].start, kT0 + kHour);
+  EXPECT_NEAR(spread.pulses[1].depth_m, 1.05e-3, 1e-12);
+  EXPECT_EQ(spread.pulses[2].start, kT0 + kHour + 1800);
+  EXPECT_NEAR(spread.pulses[2].depth_m, 1.05e-3, 1e-12);
+  EXPECT_EQ(spread.pulses[1].depth_m + spread.pulses[2].depth_m, 2.1e-3);
 }
 
 TEST(Fragments, SpellsMatchedOrNotKeepEveryHoursDepthExactly) {

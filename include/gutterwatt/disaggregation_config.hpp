@@ -112,7 +112,8 @@ struct FragmentLibrary {
 /// - `fragments`: the method of fragments with k-nearest-neighbour resampling (fragments.hpp):
 ///   each wet interval takes the within-interval pattern of a similar wet interval of a fine
 ///   calibration record, scaled to its depth; intervals shorter than a day go by whole wet
-///   spells first (a run of wet intervals takes a similar calibration spell of as many).
+///   spells first (a run of wet intervals takes a similar calibration spell of as many), an
+///   interval deeper than its calibration interval there on its own.
 struct Disaggregation {
   DisaggregationMethod method = DisaggregationMethod::block;
   DayWindow window;  ///< daily records only
