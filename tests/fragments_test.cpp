@@ -105,26 +105,24 @@ FragmentLibrary hand_library(Instant length_s = kHour) {
 }
 
 TEST(Fragments, DrawsAmongTheKNearestOfTheSameStatesAndSeason) {
+  // The depth drawn for an interval of 5.1 mm on day 100 with dry neighbours.
+  const auto drawn_mm = [](const FragmentLibrary& library, double u) {
+    return choose_fragment(library, 5.1e-3, 100.0, false, false, u).depth_m * 1e3;
+  };
   // Days: 16 candidates (same states, within 15 days; 11 of them as deep, enough), k =
   // round(sqrt(16)) = 4; nearest to 5.1 mm: 5, 6, 4, 7 mm. Weights 1/j over 25/12: 12/25, 6/25,
   // 4/25, 3/25; cumulative 0.48, 0.72, 0.88.
   const FragmentLibrary days = hand_library(kDay);
-  const auto day_mm = [&](double u) {
-    return choose_fragment(days, 5.1e-3, 100.0, false, false, u).depth_m * 1e3;
-  };
-  EXPECT_DOUBLE_EQ(day_mm(0.47), 5.0);
-  EXPECT_DOUBLE_EQ(day_mm(0.49), 6.0);
-  EXPECT_DOUBLE_EQ(day_mm(0.75), 4.0);
-  EXPECT_DOUBLE_EQ(day_mm(0.95), 7.0);
+  EXPECT_DOUBLE_EQ(drawn_mm(days, 0.47), 5.0);
+  EXPECT_DOUBLE_EQ(drawn_mm(days, 0.49), 6.0);
+  EXPECT_DOUBLE_EQ(drawn_mm(days, 0.75), 4.0);
+  EXPECT_DOUBLE_EQ(drawn_mm(days, 0.95), 7.0);
   // Hours: the same 16, but the draw is among those at least as deep as 5.1 mm only: 6 to 16 mm,
   // 11, k = round(sqrt(11)) = 3: 6, 7, 8 mm, cumulative weights 6/11 and 9/11.
   const FragmentLibrary hours = hand_library(kHour);
-  const auto hour_mm = [&](double u) {
-    return choose_fragment(hours, 5.1e-3, 100.0, false, false, u).depth_m * 1e3;
-  };
-  EXPECT_DOUBLE_EQ(hour_mm(0.5), 6.0);
-  EXPECT_DOUBLE_EQ(hour_mm(0.6), 7.0);
-  EXPECT_DOUBLE_EQ(hour_mm(0.9), 8.0);
+  EXPECT_DOUBLE_EQ(drawn_mm(hours, 0.5), 6.0);
+  EXPECT_DOUBLE_EQ(drawn_mm(hours, 0.6), 7.0);
+  EXPECT_DOUBLE_EQ(drawn_mm(hours, 0.9), 8.0);
 }
 
 TEST(Fragments, AfterAWetStepPrefersAFragmentThatGoesOnAtItsDepth) {
