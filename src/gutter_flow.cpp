@@ -63,6 +63,9 @@ constexpr double kWeight[] = {0.0506142681451881, 0.1111905172266872, 0.15685332
 
 /// Nodes of the delivery table: dense near empty, where the flow grows fastest in the volume.
 constexpr int kTableNodes = 400;
+/// Equal spans of volume indexed for the lookup: the nodes are closest near empty (y grows as
+/// the square of the node's number), where a span covers at most about a dozen cells.
+constexpr int kBuckets = 1024;
 
 }  // namespace
 
@@ -81,6 +84,15 @@ GutterDelivery::GutterDelivery(const CrossSection& section, double length_m, dou
     volumes_m3_.push_back(profile_volume_m3(y));
     flows_m3_per_s_.push_back(flow_factor_ * critical_flow_m3_per_s(section_, y));
     outlet_depths_m_.push_back(y);
+  }
+  const std::size_t last = volumes_m3_.size() - 1;
+  buckets_per_m3_ = kBuckets / volumes_m3_[last];
+  first_cell_.reserve(kBuckets + 1);
+  for (int b = 0; b <= kBuckets; ++b) {
+    const double edge = b / buckets_per_m3_;
+    const auto it = std::upper_bound(volumes_m3_.begin(), volumes_m3_.end(), edge);
+    const auto cell = static_cast<std::size_t>(it - volumes_m3_.begin());
+    first_cell_.push_back(std::clamp<std::size_t>(cell, 1, last) - 1);
   }
 }
 
@@ -101,25 +113,15 @@ double GutterDelivery::profile_volume_m3(double outlet_depth_m) const {
 }
 
 std::pair<std::size_t, double> GutterDelivery::locate(double volume_m3) const {
-  // The solver asks for volumes close to the last one: try its cell and the two beside it before
-  // a binary search (the "hunt" of Press et al., Numerical Recipes, 3rd ed., 2007, section 3.1).
+  // A bucket index over the sorted volumes (a project choice): the first cell of the volume's
+  // span, then a step or two. The guards ask at another volume than the rates (the water above
+  // the drop pipe's), so the search from the cell found last, which this replaces, missed there.
   const std::size_t last = volumes_m3_.size() - 1;
-  std::size_t k = hint_;
-  const auto holds = [&](std::size_t c) {
-    return volumes_m3_[c] <= volume_m3 && volume_m3 < volumes_m3_[c + 1];
-  };
-  if (!holds(k)) {
-    if (k + 1 < last && holds(k + 1)) {
-      ++k;
-    } else if (k > 0 && holds(k - 1)) {
-      --k;
-    } else {
-      const auto it = std::upper_bound(volumes_m3_.begin(), volumes_m3_.end(), volume_m3);
-      if (it == volumes_m3_.end()) return {last - 1, 1.0};
-      k = it == volumes_m3_.begin() ? 0 : static_cast<std::size_t>(it - volumes_m3_.begin()) - 1;
-    }
-    hint_ = k;
-  }
+  if (!(volume_m3 < volumes_m3_[last])) return {last - 1, 1.0};  // held at the last value
+  std::size_t k =
+      volume_m3 > 0.0 ? first_cell_[static_cast<std::size_t>(volume_m3 * buckets_per_m3_)] : 0;
+  while (k > 0 && volumes_m3_[k] > volume_m3) --k;  // the span's edge rounded above the volume
+  while (volumes_m3_[k + 1] <= volume_m3) ++k;
   const double f = (volume_m3 - volumes_m3_[k]) / (volumes_m3_[k + 1] - volumes_m3_[k]);
   return {k, std::clamp(f, 0.0, 1.0)};
 }

@@ -3,6 +3,8 @@
 #include <gtest/gtest.h>
 
 #include <cmath>
+#include <iterator>
+#include <vector>
 
 #include "gutterwatt/chain_system.hpp"
 #include "test_support.hpp"
@@ -119,6 +121,34 @@ TEST(GutterFlow, OutletDepthRunsFromThePoolToCriticalWithTheFlow) {
   // Drawing more than it delivers empties the outlet: half way down at 0.5 % more, dry at 1 %.
   EXPECT_NEAR(gutter->outlet_depth_m(v, pool, 1.005 * most), 0.01, 1e-5);
   EXPECT_EQ(gutter->outlet_depth_m(v, pool, 2.0 * most), 0.0);
+}
+
+TEST(GutterFlow, DeliveryIsFoundWhateverTheOrderOfTheVolumesAsked) {
+  // A box 0.1 m wide, 4 m long, rim 0.1 m (40 depths: no length factor): holding the profile
+  // with critical depth y_c at the outlet it delivers 0.9184 x sqrt(g) b y_c^1.5 (Chow 1959,
+  // eq. 4-3, for a rectangle), from near empty to near the table's top, asked out of order and
+  // again in the reverse order (the lookup keeps no state between calls).
+  ReservoirConfig c;
+  c.shape = ReservoirShape::box;
+  c.width_m = 0.1;
+  c.length_m = 4.0;
+  c.rim_m = 0.1;
+  const std::optional<GutterDelivery> gutter = gutter_delivery(c);
+  ASSERT_TRUE(gutter.has_value());
+  const double depths_mm[] = {60, 2, 100, 0.5, 30, 1, 120, 10, 0.5, 60};
+  std::vector<double> first;
+  for (const double y_mm : depths_mm) {
+    const double y = 1e-3 * y_mm;
+    const double q = gutter->max_flow_m3_per_s(gutter->profile_volume_m3(y));
+    EXPECT_NEAR(q / (0.9184 * std::sqrt(9.80665) * 0.1 * std::pow(y, 1.5)), 1.0, 2e-3) << y_mm;
+    first.push_back(q);
+  }
+  for (std::size_t k = std::size(depths_mm); k-- > 0;) {
+    EXPECT_EQ(gutter->max_flow_m3_per_s(gutter->profile_volume_m3(1e-3 * depths_mm[k])), first[k]);
+  }
+  EXPECT_EQ(gutter->max_flow_m3_per_s(0.0), 0.0);
+  // Above the table (twice the brim-full 40 L) the delivery is held at its last value.
+  EXPECT_EQ(gutter->max_flow_m3_per_s(1.0), gutter->max_flow_m3_per_s(0.5));
 }
 
 TEST(GutterFlow, TanksTablesAndFallingGuttersStayLevelPools) {

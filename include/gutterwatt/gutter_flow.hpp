@@ -79,9 +79,10 @@ class GutterDelivery {
   std::vector<double> volumes_m3_;
   std::vector<double> flows_m3_per_s_;
   std::vector<double> outlet_depths_m_;
-  /// The cell locate() found last. A run's ChainSystem owns its GutterDelivery, and no two
-  /// threads share one.
-  mutable std::size_t hint_ = 0;
+  /// For each of kBuckets equal spans of volume up to the table's last, the cell holding the
+  /// span's lower end: locate() starts there and steps over the few cells the span covers.
+  std::vector<std::size_t> first_cell_;
+  double buckets_per_m3_;
 };
 
 /// The delivery of the reservoir of `config` when it is a level gutter (is_level_gutter), else
