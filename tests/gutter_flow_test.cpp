@@ -12,6 +12,16 @@
 namespace gutterwatt::gutter_flow_test {
 namespace {
 
+/// A level box gutter 0.1 m wide, 4 m long, with its rim at 0.1 m (40 depths: no length factor).
+ReservoirConfig box_gutter() {
+  ReservoirConfig c;
+  c.shape = ReservoirShape::box;
+  c.width_m = 0.1;
+  c.length_m = 4.0;
+  c.rim_m = 0.1;
+  return c;
+}
+
 // Values marked C were computed by hand (double precision, outside this code) from the
 // published forms: the circular segment, Q = sqrt(g A^3 / T), and Beij's cubic.
 
@@ -102,12 +112,7 @@ TEST(GutterFlow, AnEightMetreHalfRoundCannotFeedTheDemosSiphonNearTheBreakLevel)
 }
 
 TEST(GutterFlow, OutletDepthRunsFromThePoolToCriticalWithTheFlow) {
-  ReservoirConfig c;
-  c.shape = ReservoirShape::box;
-  c.width_m = 0.1;
-  c.length_m = 4.0;
-  c.rim_m = 0.1;
-  const std::optional<GutterDelivery> gutter = gutter_delivery(c);
+  const std::optional<GutterDelivery> gutter = gutter_delivery(box_gutter());
   ASSERT_TRUE(gutter.has_value());
   // The profile with y_c = 20 mm (12.6669 L above) has mean depth 31.667 mm; at its most it
   // delivers 0.9184 x sqrt(g) b y_c^1.5 = 0.8134 L/s (C), the outlet at 20 mm.
@@ -128,12 +133,7 @@ TEST(GutterFlow, DeliveryIsFoundWhateverTheOrderOfTheVolumesAsked) {
   // with critical depth y_c at the outlet it delivers 0.9184 x sqrt(g) b y_c^1.5 (Chow 1959,
   // eq. 4-3, for a rectangle), from near empty to near the table's top, asked out of order and
   // again in the reverse order (the lookup keeps no state between calls).
-  ReservoirConfig c;
-  c.shape = ReservoirShape::box;
-  c.width_m = 0.1;
-  c.length_m = 4.0;
-  c.rim_m = 0.1;
-  const std::optional<GutterDelivery> gutter = gutter_delivery(c);
+  const std::optional<GutterDelivery> gutter = gutter_delivery(box_gutter());
   ASSERT_TRUE(gutter.has_value());
   const double depths_mm[] = {60, 2, 100, 0.5, 30, 1, 120, 10, 0.5, 60};
   std::vector<double> first;
