@@ -169,20 +169,23 @@ TEST(Fragments, WidensTheSeasonThenLetsTheNeighboursGo) {
   EXPECT_TRUE(choose_fragment(library, 5.1e-3, 100.0, true, true, 0.5).wet_before);
 }
 
+// A library by hand of intervals of `length_s`, dry neighbours: 12 of 1 to 12 mm on day 100 of
+// the year and 3 of 16 mm on day `deep_day`.
+FragmentLibrary deep_library(Instant length_s, double deep_day) {
+  FragmentLibrary library;
+  library.length_s = length_s;
+  for (int mm = 1; mm <= 12; ++mm) {
+    library.intervals.push_back({mm * 1e-3, false, false, 100.0, {0.0, 1.0}, length_s});
+  }
+  for (int i = 0; i < 3; ++i) {
+    library.intervals.push_back({16e-3, false, false, deep_day, {0.0, 1.0}, length_s});
+  }
+  return library;
+}
+
 TEST(Fragments, ADeepDayWidensTheSeasonUntilItHoldsDeeperDays) {
-  // A library by hand, the same intervals cut as days and as hours, dry neighbours: 12 of 1 to
-  // 12 mm on day 100 of the year, 3 of 16 mm on day 120.
-  const auto library_of = [](Instant length_s) {
-    FragmentLibrary library;
-    library.length_s = length_s;
-    for (int mm = 1; mm <= 12; ++mm) {
-      library.intervals.push_back({mm * 1e-3, false, false, 100.0, {0.0, 1.0}, length_s});
-    }
-    for (int i = 0; i < 3; ++i) {
-      library.intervals.push_back({16e-3, false, false, 120.0, {0.0, 1.0}, length_s});
-    }
-    return library;
-  };
+  // The same intervals cut as days and as hours: the three of 16 mm on day 120.
+  const auto library_of = [](Instant length_s) { return deep_library(length_s, 120.0); };
   // A day of 15 mm on day 100: within 15 days 12 candidates (enough) but none as deep as
   // 15 mm, fewer than kMinDeeperIntervals = 2, so the window widens to 30 days: 15 candidates, 3 of
   // them deeper. k = round(sqrt(15)) = 4, the nearest: the three of 16 mm (1 mm away), then
@@ -216,16 +219,8 @@ TEST(Fragments, ADeepDayWidensTheSeasonUntilItHoldsDeeperDays) {
 }
 
 TEST(Fragments, TheDepthRuleWidensTheSeasonNoFurtherThan61Days) {
-  // A library of days by hand, dry neighbours: 12 of 1 to 12 mm on day 100 of the year, 3 of
-  // 16 mm on day 250 (150 days away, outside every window but the whole year).
-  FragmentLibrary days;
-  days.length_s = kDay;
-  for (int mm = 1; mm <= 12; ++mm) {
-    days.intervals.push_back({mm * 1e-3, false, false, 100.0, {0.0, 1.0}, kDay});
-  }
-  for (int i = 0; i < 3; ++i) {
-    days.intervals.push_back({16e-3, false, false, 250.0, {0.0, 1.0}, kDay});
-  }
+  // Days, the three of 16 mm on day 250 (150 days away, outside every window but the whole year).
+  const FragmentLibrary days = deep_library(kDay, 250.0);
   // A day of 15 mm on day 100: no library day as deep within ±15, ±30 or ±61 days, but the rule
   // stops at ±61 (a deep day keeps its season): 12 candidates, k = round(sqrt(12)) = 3, the
   // nearest 12, 11 and 10 mm, cumulative weights 6/11 and 9/11. Widened to the whole year it
@@ -238,9 +233,7 @@ TEST(Fragments, TheDepthRuleWidensTheSeasonNoFurtherThan61Days) {
   EXPECT_DOUBLE_EQ(day_mm(0.9), 10.0);
   // The same intervals as hours: an hour of 15 mm widens to the whole year (15 candidates, the
   // three of 16 mm as deep) and draws among those three only: k = round(sqrt(3)) = 2, 16 mm.
-  FragmentLibrary hours = days;
-  hours.length_s = kHour;
-  for (Fragment& f : hours.intervals) f.length_s = kHour;
+  const FragmentLibrary hours = deep_library(kHour, 250.0);
   for (const double u : {0.01, 0.5, 0.99}) {
     EXPECT_DOUBLE_EQ(choose_fragment(hours, 15e-3, 100.0, false, false, u).depth_m * 1e3, 16.0);
   }
