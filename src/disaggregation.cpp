@@ -215,8 +215,9 @@ std::uint64_t interval_seed(const Disaggregation& how, Instant start) {
 
 // For `fragments`, the calibration interval that spreads each pulse of a wet spell matched
 // whole (choose_spell); null where none was (other methods, a spell of a length the library
-// lacks, or one whose intervals are not all spread by one library) and for a pulse deeper than
-// the calibration interval in its place, which goes on its own (kMinDeeperIntervals).
+// lacks, or one whose intervals are not all spread by one library) and for a pulse whose depth
+// does not match the calibration interval's in its place (depth_matches), which goes on its own
+// (kMinDepthMatches).
 std::vector<const Fragment*> spell_fragments(const std::vector<RainPulse>& pulses,
                                              const Disaggregation& how) {
   std::vector<const Fragment*> out(pulses.size(), nullptr);
@@ -240,7 +241,7 @@ std::vector<const Fragment*> spell_fragments(const std::vector<RainPulse>& pulse
           *library, depths_m, season_day(pulses[first].start), detail::uniform_open(rng));
       for (std::size_t k = first; chosen && k < end; ++k) {
         const Fragment& f = library->intervals[*chosen + (k - first)];
-        if (f.depth_m >= pulses[k].depth_m) out[k] = &f;
+        if (depth_matches(f.depth_m, pulses[k].depth_m)) out[k] = &f;
       }
     }
     first = end;

@@ -38,15 +38,16 @@ std::size_t window_of(double distance) {
 using WindowCounts = std::array<std::size_t, kSeasonWindows_days.size()>;
 
 // The narrowest season window (index into kSeasonWindows_days) whose count of candidates
-// reaches kMinFragmentCandidates and whose count of `deeper` ones reaches `deeper_needed`, or the
-// widest: the whole year. The count of deeper ones widens it to the whole year (the last window)
-// only when `deeper_to_whole_year`, else only the count of candidates does (kMinDeeperIntervals).
-std::size_t narrowest_window(const WindowCounts& counts, const WindowCounts& deeper = {},
-                             std::size_t deeper_needed = 0, bool deeper_to_whole_year = false) {
+// reaches kMinFragmentCandidates and whose count of those matching the depth reaches
+// `matches_needed`, or the widest: the whole year. The count of matching ones widens it to the
+// whole year (the last window) only when `matches_to_whole_year`, else only the count of
+// candidates does (kMinDepthMatches).
+std::size_t narrowest_window(const WindowCounts& counts, const WindowCounts& matching = {},
+                             std::size_t matches_needed = 0, bool matches_to_whole_year = false) {
   std::size_t window = 0;
   while (window + 1 < counts.size() && (counts[window] < kMinFragmentCandidates ||
-                                        (deeper[window] < deeper_needed &&
-                                         (deeper_to_whole_year || window + 2 < counts.size())))) {
+                                        (matching[window] < matches_needed &&
+                                         (matches_to_whole_year || window + 2 < counts.size())))) {
     ++window;
   }
   return window;
@@ -174,35 +175,43 @@ std::vector<double> knn_weights(std::size_t k) {
   return w;
 }
 
+bool depth_matches(double library_m, double depth_m, double factor) {
+  return library_m <= depth_m * factor && depth_m <= library_m * factor;
+}
+
 const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, double when,
                                 bool wet_before, bool wet_after, double u, double edge_m) {
   const std::vector<Fragment>& all = library.intervals;
-  assert(!all.empty());
+  assert(!all.empty() && depth_m > 0.0);
+  // Whether a library interval matches this one's depth (kMinDepthMatches): for days, at least
+  // as deep, and the window widens for them up to ±61 days; for shorter intervals, within
+  // `factor` either way, and the window widens for them to the whole year.
+  const bool shorter_than_day = library.length_s < kDay_s;
+  const auto matches = [&](const Fragment& f, double factor) {
+    return shorter_than_day ? depth_matches(f.depth_m, depth_m, factor) : f.depth_m >= depth_m;
+  };
   // How many intervals each stage admits: the same neighbour states first (Westra et al. 2012),
-  // the season window widening; then any states. Also how many of them are at least as deep as
-  // this one (kMinDeeperIntervals): for days the window widens for them up to ±61 days, for
-  // shorter intervals to the whole year.
+  // the season window widening; then any states. Also how many of them match the depth.
   constexpr std::size_t windows = kSeasonWindows_days.size();
   WindowCounts same{};
   WindowCounts any{};
-  WindowCounts same_deeper{};
-  WindowCounts any_deeper{};
+  WindowCounts same_matching{};
+  WindowCounts any_matching{};
   for (const Fragment& f : all) {
     const std::size_t w = window_of(season_distance(f.season_day, when));
     const bool states = f.wet_before == wet_before && f.wet_after == wet_after;
-    const bool deeper = f.depth_m >= depth_m;
+    const bool match = matches(f, kDepthFactor);
     for (std::size_t wider = w; wider < windows; ++wider) {
       ++any[wider];
-      any_deeper[wider] += deeper;
+      any_matching[wider] += match;
       same[wider] += states;
-      same_deeper[wider] += states && deeper;
+      same_matching[wider] += states && match;
     }
   }
-  const bool shorter_than_day = library.length_s < kDay_s;
-  std::size_t window = narrowest_window(same, same_deeper, kMinDeeperIntervals, shorter_than_day);
+  std::size_t window = narrowest_window(same, same_matching, kMinDepthMatches, shorter_than_day);
   const bool same_states = same[window] >= kMinFragmentCandidates;
   if (!same_states) {
-    window = narrowest_window(any, any_deeper, kMinDeeperIntervals, shorter_than_day);
+    window = narrowest_window(any, any_matching, kMinDepthMatches, shorter_than_day);
   }
   // The candidates by distance in depth, the earlier first on a tie.
   std::vector<std::pair<double, std::size_t>> candidates;
@@ -212,12 +221,18 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
     if (season_distance(f.season_day, when) > kSeasonWindows_days[window]) continue;
     candidates.emplace_back(std::fabs(f.depth_m - depth_m), i);
   }
-  // Shorter than a day: only those at least as deep, when there are any (kMinDeeperIntervals).
-  const auto shallower = [&](const std::pair<double, std::size_t>& c) {
-    return all[c.second].depth_m < depth_m;
-  };
-  if (shorter_than_day && !std::all_of(candidates.begin(), candidates.end(), shallower)) {
-    std::erase_if(candidates, shallower);
+  // Shorter than a day: only those within the depth factor, widened (multiplied by itself) until
+  // kMinDepthMatches of them are, or all (kDepthFactor).
+  if (shorter_than_day) {
+    double factor = kDepthFactor;
+    const auto inside = [&](const std::pair<double, std::size_t>& c) {
+      return matches(all[c.second], factor);
+    };
+    const auto needed = static_cast<std::ptrdiff_t>(std::min(kMinDepthMatches, candidates.size()));
+    while (std::count_if(candidates.begin(), candidates.end(), inside) < needed) {
+      factor *= kDepthFactor;
+    }
+    std::erase_if(candidates, [&](const auto& c) { return !inside(c); });
   }
   // After a wet last step, those of the k whose first step, scaled to this depth, goes on at
   // about its depth (this project's rule: see kEdgeRatio), when there are any.

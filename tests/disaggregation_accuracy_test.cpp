@@ -14,8 +14,9 @@
 // from daily totals here (measured when written: energy +6.1 % and +13.6 %, cycles -0.2 % and
 // -7.5 %, median of 8 realizations; with the edge rule of choose_fragment, +3.5 % and +12.9 %,
 // -0.4 % and -8.7 %; with whole wet spells of hours matched (choose_spell), +8.7 % and +12.9 %,
-// +0.4 % and -8.7 %; with the depth rule for days (kMinDeeperIntervals), +8.7 % and +13.4 %,
-// +0.4 % and -6.5 %; with its rule for hours, -0.8 % and +13.4 %, -1.1 % and -6.5 %).
+// +0.4 % and -8.7 %; with the depth rule for days (kMinDepthMatches), +8.7 % and +13.4 %,
+// +0.4 % and -6.5 %; with its rule for hours, -0.8 % and +13.4 %, -1.1 % and -6.5 %; with that
+// rule symmetric (kDepthFactor), -2.0 % and +13.4 %, -1.7 % and -6.5 %).
 
 #include <gtest/gtest.h>
 

@@ -117,19 +117,28 @@ TEST(Fragments, DrawsAmongTheKNearestOfTheSameStatesAndSeason) {
   EXPECT_DOUBLE_EQ(drawn_mm(days, 0.49), 6.0);
   EXPECT_DOUBLE_EQ(drawn_mm(days, 0.75), 4.0);
   EXPECT_DOUBLE_EQ(drawn_mm(days, 0.95), 7.0);
-  // Hours: the same 16, but the draw is among those at least as deep as 5.1 mm only: 6 to 16 mm,
-  // 11, k = round(sqrt(11)) = 3: 6, 7, 8 mm, cumulative weights 6/11 and 9/11.
+  // Hours: the same 16, but the draw is among those within kDepthFactor = 1.25 of 5.1 mm either
+  // way only (4.08 to 6.375 mm): 5 and 6 mm, 2 (enough), k = round(sqrt(2)) = 1: 5 mm whatever u,
+  // where the days draw 6, 4 or 7 mm too.
   const FragmentLibrary hours = hand_library(kHour);
-  EXPECT_DOUBLE_EQ(drawn_mm(hours, 0.5), 6.0);
-  EXPECT_DOUBLE_EQ(drawn_mm(hours, 0.6), 7.0);
-  EXPECT_DOUBLE_EQ(drawn_mm(hours, 0.9), 8.0);
+  for (const double u : {0.47, 0.49, 0.75, 0.95}) EXPECT_DOUBLE_EQ(drawn_mm(hours, u), 5.0);
+}
+
+TEST(Fragments, DepthsMatchWithinTheFactorEitherWay) {
+  // kDepthFactor = 1.25: 20 matches 16 to 25, the ends included (hand values, exact in binary;
+  // any one unit).
+  EXPECT_TRUE(depth_matches(25.0, 20.0));
+  EXPECT_TRUE(depth_matches(16.0, 20.0));
+  EXPECT_FALSE(depth_matches(25.5, 20.0));
+  EXPECT_FALSE(depth_matches(15.9, 20.0));
+  EXPECT_TRUE(depth_matches(15.9, 20.0, 2.0));
 }
 
 TEST(Fragments, AfterAWetStepPrefersAFragmentThatGoesOnAtItsDepth) {
   // A library by hand: 9 days of 1 to 9 mm in two half-day steps, dry neighbours, day 100; the
   // first step's share 0.1, 0.5 and 0.9 for 5, 4 and 6 mm, 0.5 for the others. (Days: hours
-  // would draw among those at least as deep only; AnHourDeeperThanItsCalibrationHourGoesOnItsOwn
-  // has the edge rule with that.)
+  // would draw among those within kDepthFactor only;
+  // AnHourOutsideTheFactorOfItsCalibrationHourGoesOnItsOwn has the edge rule with that.)
   FragmentLibrary library;
   library.length_s = kDay;
   for (int mm = 1; mm <= 9; ++mm) {
@@ -157,15 +166,16 @@ TEST(Fragments, AfterAWetStepPrefersAFragmentThatGoesOnAtItsDepth) {
 
 TEST(Fragments, WidensTheSeasonThenLetsTheNeighboursGo) {
   const FragmentLibrary library = hand_library();
-  // Day 300, dry neighbours: 5 within the window, too few (10); the whole year gives 21, 16 of
-  // them as deep as 5.1 mm (6 to 16 mm and the five on day 300), the draw among those:
-  // k = round(sqrt(16)) = 4, the five of 5.1 mm on day 300 are nearest (distance 0).
+  // Hours, day 300, dry neighbours: 5 within the window, too few (10); the whole year gives 21,
+  // 7 of them within a factor 1.25 of 5.1 mm (5 and 6 mm and the five on day 300), the draw
+  // among those: k = round(sqrt(7)) = 3, the five of 5.1 mm on day 300 are nearest (distance 0).
   for (const double u : {0.1, 0.5, 0.99}) {
     EXPECT_EQ(choose_fragment(library, 5.1e-3, 300.0, false, false, u).season_day, 300.0);
   }
   // Wet on both sides: no interval in the library is; any state within 15 days of day 100
-  // gives 26, 21 of them as deep; k = round(sqrt(21)) = 5; the nearest are the ten of 5.1 mm
-  // after a wet one (the earliest on a tie).
+  // gives 26, 12 of them within the factor (5 and 6 mm and the ten of 5.1 mm); k =
+  // round(sqrt(12)) = 3; the nearest are the ten of 5.1 mm after a wet one (the earliest on a
+  // tie).
   EXPECT_TRUE(choose_fragment(library, 5.1e-3, 100.0, true, true, 0.5).wet_before);
 }
 
@@ -187,7 +197,7 @@ TEST(Fragments, ADeepDayWidensTheSeasonUntilItHoldsDeeperDays) {
   // The same intervals cut as days and as hours: the three of 16 mm on day 120.
   const auto library_of = [](Instant length_s) { return deep_library(length_s, 120.0); };
   // A day of 15 mm on day 100: within 15 days 12 candidates (enough) but none as deep as
-  // 15 mm, fewer than kMinDeeperIntervals = 2, so the window widens to 30 days: 15 candidates, 3 of
+  // 15 mm, fewer than kMinDepthMatches = 2, so the window widens to 30 days: 15 candidates, 3 of
   // them deeper. k = round(sqrt(15)) = 4, the nearest: the three of 16 mm (1 mm away), then
   // 12 mm (3 mm); weights 12/25, 6/25, 4/25, 3/25, cumulative 0.48, 0.72, 0.88.
   const FragmentLibrary days = library_of(kDay);
@@ -196,22 +206,23 @@ TEST(Fragments, ADeepDayWidensTheSeasonUntilItHoldsDeeperDays) {
   };
   for (const double u : {0.1, 0.5, 0.8}) EXPECT_DOUBLE_EQ(day_mm(u), 16.0);
   EXPECT_DOUBLE_EQ(day_mm(0.95), 12.0);
-  // An hour of 15 mm widens the same way, to 30 days, but then draws among the candidates at
-  // least as deep only: the three of 16 mm, k = round(sqrt(3)) = 2, both 16 mm, whatever u.
+  // An hour of 15 mm: within 15 days only 12 mm lies within kDepthFactor = 1.25 of it (12 to
+  // 18.75 mm), one of the two needed, so the window widens to 30 days as well; the draw among
+  // the four within the factor there (12 mm and the three of 16 mm), k = round(sqrt(4)) = 2: two
+  // of 16 mm, whatever u.
   const FragmentLibrary hours = library_of(kHour);
   const auto hour_mm = [&](double u) {
     return choose_fragment(hours, 15e-3, 100.0, false, false, u).depth_m * 1e3;
   };
   for (const double u : {0.01, 0.5, 0.99}) EXPECT_DOUBLE_EQ(hour_mm(u), 16.0);
-  // An hour of 5 mm: 12 candidates within 15 days, 8 of them at least as deep (5 to 12 mm), so
-  // the window stays; those 8, k = round(sqrt(8)) = 3: 5, 6 and 7 mm (cumulative weights 6/11
-  // and 9/11), where all 12 would give 5 mm and the two 1 mm away, 4 and 6 mm.
+  // An hour of 5 mm: 12 candidates within 15 days, 3 of them within the factor (4 to 6.25 mm:
+  // 4, 5 and 6 mm), so the window stays; those 3, k = round(sqrt(3)) = 2: 5 and 4 mm (4 and 6 mm
+  // are 1 mm away: the earlier), cumulative weight 2/3, where all 12 would also give 6 mm.
   const auto hour5_mm = [&](double u) {
     return choose_fragment(hours, 5e-3, 100.0, false, false, u).depth_m * 1e3;
   };
-  EXPECT_DOUBLE_EQ(hour5_mm(0.5), 5.0);
-  EXPECT_DOUBLE_EQ(hour5_mm(0.6), 6.0);
-  EXPECT_DOUBLE_EQ(hour5_mm(0.9), 7.0);
+  EXPECT_DOUBLE_EQ(hour5_mm(0.6), 5.0);
+  EXPECT_DOUBLE_EQ(hour5_mm(0.7), 4.0);
   // A day of 12 mm: within 15 days only the 12 mm one is as deep (one of the two needed), so
   // the window widens to 30 days as well: k = 4, the nearest 12, 11, 10 and 9 mm (16 mm is
   // 4 mm away); u = 0.95 draws the fourth, where the narrow window's k = 3 would give 10 mm.
@@ -231,12 +242,29 @@ TEST(Fragments, TheDepthRuleWidensTheSeasonNoFurtherThan61Days) {
   EXPECT_DOUBLE_EQ(day_mm(0.1), 12.0);
   EXPECT_DOUBLE_EQ(day_mm(0.6), 11.0);
   EXPECT_DOUBLE_EQ(day_mm(0.9), 10.0);
-  // The same intervals as hours: an hour of 15 mm widens to the whole year (15 candidates, the
-  // three of 16 mm as deep) and draws among those three only: k = round(sqrt(3)) = 2, 16 mm.
+}
+
+TEST(Fragments, AnHourWidensTheSeasonToTheWholeYearThenTheFactor) {
+  // The three of 16 mm on day 250: within 61 days of day 100 only 1 to 12 mm.
   const FragmentLibrary hours = deep_library(kHour, 250.0);
-  for (const double u : {0.01, 0.5, 0.99}) {
-    EXPECT_DOUBLE_EQ(choose_fragment(hours, 15e-3, 100.0, false, false, u).depth_m * 1e3, 16.0);
-  }
+  const auto hour_mm = [&](double depth_mm, double u) {
+    return choose_fragment(hours, depth_mm * 1e-3, 100.0, false, false, u).depth_m * 1e3;
+  };
+  // An hour of 18 mm: none within kDepthFactor = 1.25 (14.4 to 22.5 mm) within ±61 days, so
+  // the whole year (15 candidates): the three of 16 mm, the draw among those only, k =
+  // round(sqrt(3)) = 2: 16 mm whatever u, where the ±61 days of a day would give 12, 11 or
+  // 10 mm.
+  for (const double u : {0.01, 0.5, 0.99}) EXPECT_DOUBLE_EQ(hour_mm(18.0, u), 16.0);
+  // An hour of 40 mm: none within 1.25 (32 to 50 mm) in the whole year, nor within 1.25^2 =
+  // 1.5625 (25.6 to 62.5 mm); 1.25^3 = 1.953 (20.5 to 78.1 mm) holds none either, 1.25^4 =
+  // 2.441 (16.4 to 97.7 mm) none; 1.25^5 = 3.052 (13.1 to 122 mm) the three of 16 mm: the draw
+  // among those, 16 mm.
+  for (const double u : {0.01, 0.5, 0.99}) EXPECT_DOUBLE_EQ(hour_mm(40.0, u), 16.0);
+  // An hour of 0.4 mm: no library hour within 1.25^4 (0.164 to 0.977 mm); 1.25^5 (0.131 to
+  // 1.22 mm) holds 1 mm only, one of the two needed; 1.25^6 = 3.815 (0.105 to 1.53 mm) likewise;
+  // 1.25^7 = 4.768 (0.084 to 1.91 mm) likewise; 1.25^8 = 5.96 (0.067 to 2.38 mm) 1 and 2 mm:
+  // k = round(sqrt(2)) = 1, 1 mm whatever u.
+  for (const double u : {0.01, 0.99}) EXPECT_DOUBLE_EQ(hour_mm(0.4, u), 1.0);
 }
 
 // A library by hand of hours in two half-hour steps, day 100 of the year: a spell A of 4 mm all
@@ -300,32 +328,49 @@ TEST(Fragments, AMatchedSpellKeepsTheGaugesPatternAcrossTheHourEdge) {
   EXPECT_EQ(spread.pulses[1].depth_m, 1.9e-3);
 }
 
-TEST(Fragments, AnHourDeeperThanItsCalibrationHourGoesOnItsOwn) {
+TEST(Fragments, AnHourOutsideTheFactorOfItsCalibrationHourGoesOnItsOwn) {
   Disaggregation how;
   how.method = DisaggregationMethod::fragments;
   how.step_s = 1800;
   how.fragments = {spell_library()};
+  // Three spells of two hours, a dry hour between them.
   RainSeries hourly;
   hourly.step_s = kHour;
-  hourly.covered = {{kT0, kT0 + 3 * kHour}};
-  hourly.pulses = {{kT0, kT0 + kHour, 3.9e-3}, {kT0 + kHour, kT0 + 2 * kHour, 2.1e-3}};
+  hourly.covered = {{kT0, kT0 + 9 * kHour}};
+  const std::vector<std::pair<Instant, double>> hours = {{0, 3.9e-3}, {1, 2.1e-3}, {3, 3.9e-3},
+                                                         {4, 4.5e-3}, {6, 1.2e-3}, {7, 0.4e-3}};
+  for (const auto& [h, depth_m] : hours) {
+    hourly.pulses.push_back({kT0 + h * kHour, kT0 + (h + 1) * kHour, depth_m});
+  }
   hourly.total_depth_m = sum_depths_m(hourly.pulses);
   const RainSeries spread = disaggregate(hourly, how);
-  // The spell (3.9, 2.1 mm) takes A (0.14 mm away against B's 3.10): 3.9 mm is no deeper than
-  // A's 4 mm, so all of it falls in 00:30-01:00. 2.1 mm is deeper than A's second hour (2 mm):
-  // it goes on its own. Wet before, dry after: 2 library hours share that state (fewer than 10),
-  // and 5 in any state, so all 5 in the whole year; at least as deep as 2.1 mm: A's 4 mm and C's
-  // 3 mm (2, enough). Of those, k = round(sqrt(2)) = 1: C (0.9 mm away), half in each half hour;
-  // its first step scaled, 1.05 mm, is not within a factor 2 of the 3.9 mm before, and with none
-  // that is the edge rule keeps it. A's second hour would have put all 2.1 mm in 01:00-01:30.
-  ASSERT_EQ(spread.pulses.size(), 3u);
-  EXPECT_EQ(spread.pulses[0].start, kT0 + 1800);
-  EXPECT_EQ(spread.pulses[0].depth_m, 3.9e-3);
-  EXPECT_EQ(spread.pulses[1].start, kT0 + kHour);
-  EXPECT_NEAR(spread.pulses[1].depth_m, 1.05e-3, 1e-12);
-  EXPECT_EQ(spread.pulses[2].start, kT0 + kHour + 1800);
-  EXPECT_NEAR(spread.pulses[2].depth_m, 1.05e-3, 1e-12);
-  EXPECT_EQ(spread.pulses[1].depth_m + spread.pulses[2].depth_m, 2.1e-3);
+  // Two calibration spells of 2 h, k = round(sqrt(2)) = 1: the nearest. (3.9, 2.1 mm) takes A
+  // (0.14 mm away against B's 3.10): both hours within kDepthFactor = 1.25 of A's 4 and 2 mm,
+  // so all of 3.9 mm in 00:30-01:00 and all of 2.1 mm in 01:00-01:30, A's pattern.
+  // (3.9, 4.5 mm) takes A (sqrt(0.1^2 + 2.5^2) = 2.50 mm against B's sqrt(2.9^2 + 3.5^2) =
+  // 4.55): 4.5 mm is more than 1.25 times A's second hour, so it goes on its own. Wet before,
+  // dry after: 2 library hours share that state (fewer than 10), so all 5 in any state, the
+  // whole year; within 1.25 of 4.5 mm (3.6 to 5.625 mm) only A's 4 mm, within 1.25^2 (2.88 to
+  // 7.03 mm) A's 4 mm and C's 3 mm (2, enough); k = 1: A's first hour (0.5 mm away), all in the
+  // second half hour, 04:30-05:00 (the edge rule has no candidate to prefer: 0 mm is not within
+  // a factor 2 of the 3.9 mm before). A's second hour would have put it in 04:00-04:30.
+  // (1.2, 0.4 mm) takes B (sqrt(0.2^2 + 0.6^2) = 0.63 mm against A's 3.22): 1.2 mm lies within
+  // 1.25 of B's 1 mm, all of it in 06:00-06:30; 0.4 mm is less than B's second hour over 1.25,
+  // so it goes on its own: no library hour within 1.25^4 (0.164 to 0.977 mm), within 1.25^5 =
+  // 3.052 (0.131 to 1.22 mm) B's two: k = 1, the earlier on the tie, B's first hour, all in
+  // 07:00-07:30 (the last step before was dry: no edge rule). B's second hour would have put it
+  // in 07:30-08:00.
+  const std::vector<std::pair<Instant, double>> expected = {{1800, 3.9e-3},
+                                                            {kHour, 2.1e-3},
+                                                            {3 * kHour + 1800, 3.9e-3},
+                                                            {4 * kHour + 1800, 4.5e-3},
+                                                            {6 * kHour, 1.2e-3},
+                                                            {7 * kHour, 0.4e-3}};
+  ASSERT_EQ(spread.pulses.size(), expected.size());
+  for (std::size_t i = 0; i < expected.size(); ++i) {
+    EXPECT_EQ(spread.pulses[i].start, kT0 + expected[i].first) << i;
+    EXPECT_EQ(spread.pulses[i].depth_m, expected[i].second) << i;
+  }
 }
 
 TEST(Fragments, SpellsMatchedOrNotKeepEveryHoursDepthExactly) {
