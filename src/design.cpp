@@ -7,9 +7,11 @@
 #include <limits>
 #include <map>
 #include <memory>
+#include <string>
 
 #include "detail.hpp"
 #include "gutterwatt/disaggregation.hpp"
+#include "gutterwatt/fragments.hpp"
 #include "gutterwatt/gutter_flow.hpp"
 #include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/plant.hpp"
@@ -172,6 +174,26 @@ RecordFigures record_figures(const RainSeries& rain,
   return f;
 }
 
+std::optional<PrimingIntervals> priming_intervals(const RainSeries& as_read,
+                                                  const Disaggregation& how,
+                                                  double priming_intensity_m_per_s) {
+  if (how.method != DisaggregationMethod::fragments) return std::nullopt;
+  const auto library =
+      std::find_if(how.fragments.begin(), how.fragments.end(),
+                   [&](const FragmentLibrary& l) { return l.length_s == as_read.step_s; });
+  if (library == how.fragments.end()) return std::nullopt;
+  PrimingIntervals p;
+  p.length_s = as_read.step_s;
+  p.depth_m = priming_intensity_m_per_s * static_cast<double>(as_read.step_s);
+  p.record = static_cast<std::size_t>(
+      std::count_if(as_read.pulses.begin(), as_read.pulses.end(),
+                    [&](const RainPulse& r) { return r.depth_m >= p.depth_m; }));
+  p.calibration = static_cast<std::size_t>(
+      std::count_if(library->intervals.begin(), library->intervals.end(),
+                    [&](const Fragment& f) { return f.depth_m >= p.depth_m; }));
+  return p;
+}
+
 DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
                               const RainSeries* as_read) {
   DesignFigures d;
@@ -253,7 +275,13 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
     d.record = record_figures(*rain, d.priming_intensity_m_per_s, sc.site.zone);
     if (as_read && !as_read->pulses.empty()) {
       d.record_as_read = record_figures(*as_read, d.priming_intensity_m_per_s, sc.site.zone);
-      if (sc.rain.disaggregate) d.disaggregation = method_name(sc.rain.disaggregate->method);
+      if (sc.rain.disaggregate) {
+        d.disaggregation = method_name(sc.rain.disaggregate->method);
+        if (d.priming_intensity_m_per_s) {
+          d.priming_intervals =
+              priming_intervals(*as_read, *sc.rain.disaggregate, *d.priming_intensity_m_per_s);
+        }
+      }
     }
   }
 
@@ -275,6 +303,23 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
         " of rain, less than the record's 2-year peak of " + mmh(d.record->peak_intensity_m_per_s) +
         " (median of the annual maxima at the record's step): the reservoir will "
         "overflow in heavy rain. Lead the overflow somewhere safe.");
+  }
+  // The energy is made almost entirely in the intervals deep enough to prime the siphon on their
+  // own, and one calibration year holds few (README, "What the calibration year does to the
+  // estimate"): fewer than kMinFragmentCandidates (a project choice, common practice, no source)
+  // and the estimate moves with the calibration year beyond the realizations' spread.
+  if (const auto& p = d.priming_intervals;
+      p && p->record > 0 && p->calibration < kMinFragmentCandidates) {
+    d.warnings.push_back(
+        format_duration(p->length_s) + " intervals of " +
+        shown(units, p->depth_m / kMetresPerMm, "mm") +
+        " or more prime the siphon on their own and make most of the energy: the record has " +
+        std::to_string(p->record) + ", and their patterns are drawn from only " +
+        std::to_string(p->calibration) +
+        " calibration intervals that deep, so the result can move by more than the P10-P90 "
+        "range shows (15 to 23 points between calibration years, measured; README, \"What the "
+        "calibration year does to the estimate\"). A longer calibration record, or one with more "
+        "such rain, narrows it.");
   }
   if (d.release_ends_level_m && *d.release_ends_level_m > bottom_m + 1e-3) {
     const double held_L = (geometry.volume_m3(ends_m) - geometry.volume_m3(bottom_m)) * 1e3;
@@ -427,6 +472,14 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
   if (d.record_as_read) {
     record("record as read", *d.record_as_read);
     record("record disaggregated by " + d.disaggregation, *d.record);
+    if (const auto& p = d.priming_intervals) {
+      const InUnits depth = in_units(sc.site.units, p->depth_m / kMetresPerMm, "mm");
+      out << "  " << format_duration(p->length_s)
+          << " intervals deep enough to prime on their own (" << detail::on_terminal(depth.value)
+          << ' ' << unit_label(depth.unit) << " or more)\n";
+      line("  in the record as read", std::to_string(p->record), "");
+      line("  in the calibration record", std::to_string(p->calibration), "");
+    }
   } else if (d.record) {
     record("record", *d.record);
   }

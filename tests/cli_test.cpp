@@ -118,6 +118,8 @@ TEST(Cli, FragmentsRunFromTheWalkthroughScenario) {
   ASSERT_EQ(check.status, 0) << check.err;
   EXPECT_NE(check.out.find("  record disaggregated by fragments, 5min steps\n"), std::string::npos)
       << check.out;
+  EXPECT_NE(check.out.find("  1d intervals deep enough to prime on their own ("), std::string::npos)
+      << check.out;
   const Outcome r =
       run("run " + scenario + " --quiet --realizations 3 --out " + (dir / "out").string(), dir);
   ASSERT_EQ(r.status, 0) << r.err;

@@ -8,7 +8,10 @@
 #include <algorithm>
 #include <cmath>
 #include <sstream>
+#include <string>
+#include <vector>
 
+#include "gutterwatt/fragments.hpp"
 #include "gutterwatt/hydraulics.hpp"
 #include "test_support.hpp"
 
@@ -228,6 +231,102 @@ TEST(Design, PrintsTheRecordAsReadBesideItsDisaggregation) {
            "    rain volume below the priming intensity                       0  %\n",
        }) {
     EXPECT_NE(text.find(line), std::string::npos) << text;
+  }
+}
+
+// A library of `length_s` whose wet intervals hold `depths_m`.
+FragmentLibrary library_of(Instant length_s, const std::vector<double>& depths_m) {
+  FragmentLibrary library;
+  library.length_s = length_s;
+  for (const double d : depths_m) {
+    Fragment f;
+    f.depth_m = d;
+    library.intervals.push_back(f);
+  }
+  return library;
+}
+
+TEST(Design, CountsTheIntervalsAtOrAboveThePrimingDepth) {
+  // Invented: priming at 2^-20 m/s (3.43 mm/h), so the priming depth of an hour, 3600 * 2^-20 m,
+  // is exact in binary and an interval can hold exactly it.
+  constexpr double kPriming = 0x1p-20;
+  constexpr double kDepth = 3600.0 * kPriming;
+  const Instant t0 = test_support::kStart;
+  // Hourly record: below, exactly at, above, below, far above the priming depth.
+  const RainSeries as_read = test_support::block_rain(t0, t0 + 5 * 3600,
+                                                      {{t0, t0 + 3600, 0.5 * kPriming},
+                                                       {t0 + 3600, t0 + 7200, kPriming},
+                                                       {t0 + 7200, t0 + 10800, 1.5 * kPriming},
+                                                       {t0 + 10800, t0 + 14400, 0.99 * kPriming},
+                                                       {t0 + 14400, t0 + 18000, 4.0 * kPriming}},
+                                                      3600);
+  Disaggregation how;
+  how.method = DisaggregationMethod::fragments;
+  // The hourly library: 2 at or above (one exactly at); the daily one is another length.
+  how.fragments = {library_of(86400, {kDepth, kDepth, kDepth}),
+                   library_of(3600, {0.2 * kDepth, kDepth, 0.999 * kDepth, 3.0 * kDepth})};
+  const std::optional<PrimingIntervals> p = priming_intervals(as_read, how, kPriming);
+  ASSERT_TRUE(p);
+  EXPECT_EQ(p->length_s, 3600);
+  EXPECT_EQ(p->depth_m, kDepth);
+  EXPECT_EQ(p->record, 3u);  // at, 1.5 times, 4 times
+  EXPECT_EQ(p->calibration, 2u);
+  // No library of the record's step, or another method: nothing to count.
+  how.fragments.pop_back();
+  EXPECT_FALSE(priming_intervals(as_read, how, kPriming));
+  how.method = DisaggregationMethod::cascade;
+  EXPECT_FALSE(priming_intervals(as_read, how, kPriming));
+}
+
+// The warning when the calibration holds fewer than kMinFragmentCandidates intervals as deep as
+// the record's that prime on their own, and the lines check prints.
+TEST(Design, WarnsWhenFewCalibrationIntervalsAreDeepEnoughToPrime) {
+  Scenario s = make_scenario();  // primes at 4.5 mm/h: 4.5 mm in an hour
+  s.rain.disaggregate.emplace();
+  s.rain.disaggregate->method = DisaggregationMethod::fragments;
+  const Instant t0 = test_support::kStart;
+  constexpr double kMmPerHour = 1e-3 / 3600.0;
+  const RainSeries as_read = test_support::block_rain(
+      t0, t0 + 3 * 3600, {{t0, t0 + 3600, 10.0 * kMmPerHour}, {t0 + 3600, t0 + 7200, kMmPerHour}},
+      3600);
+  const RainSeries rain =
+      test_support::block_rain(t0, t0 + 3 * 3600, {{t0, t0 + 900, 40.0 * kMmPerHour}}, 300);
+  const auto warned = [](const DesignFigures& d) {
+    return std::any_of(d.warnings.begin(), d.warnings.end(), [](const std::string& w) {
+      return w.find("prime the siphon on their own and make most of the energy") !=
+             std::string::npos;
+    });
+  };
+  std::vector<double> depths(kMinFragmentCandidates - 1, 6e-3);  // 9 of 6 mm
+  depths.push_back(1e-3);
+  s.rain.disaggregate->fragments = {library_of(3600, depths)};
+  const DesignFigures few = evaluate_design(s, &rain, &as_read);
+  ASSERT_TRUE(few.priming_intervals);
+  EXPECT_EQ(few.priming_intervals->record, 1u);
+  EXPECT_EQ(few.priming_intervals->calibration, kMinFragmentCandidates - 1);
+  EXPECT_TRUE(warned(few));
+  std::ostringstream out;
+  write_design(out, s, few);
+  EXPECT_NE(
+      out.str().find("  1h intervals deep enough to prime on their own (4.5 mm or more)\n"
+                     "    in the record as read                                         1  \n"
+                     "    in the calibration record                                     9  \n"),
+      std::string::npos)
+      << out.str();
+  depths.back() = 6e-3;  // 10 of 6 mm
+  s.rain.disaggregate->fragments = {library_of(3600, depths)};
+  EXPECT_FALSE(warned(evaluate_design(s, &rain, &as_read)));
+  // The record as read, or spread by the cascade: no count, no line, no warning.
+  const DesignFigures read = evaluate_design(s, &as_read);
+  EXPECT_FALSE(read.priming_intervals);
+  s.rain.disaggregate->method = DisaggregationMethod::cascade;
+  const DesignFigures cascade = evaluate_design(s, &rain, &as_read);
+  EXPECT_FALSE(cascade.priming_intervals);
+  EXPECT_FALSE(warned(cascade));
+  for (const DesignFigures& d : {read, cascade}) {
+    std::ostringstream text;
+    write_design(text, s, d);
+    EXPECT_EQ(text.str().find("deep enough to prime"), std::string::npos) << text.str();
   }
 }
 

@@ -3,6 +3,7 @@
 /// `gutterwatt check` prints: closed forms and quadratures of the steady laws, and the energy of
 /// one release cycle from a short simulation.
 
+#include <cstddef>
 #include <optional>
 #include <ostream>
 #include <span>
@@ -10,6 +11,7 @@
 #include <string_view>
 #include <vector>
 
+#include "gutterwatt/disaggregation_config.hpp"
 #include "gutterwatt/rain_input.hpp"
 #include "gutterwatt/scenario.hpp"
 
@@ -29,6 +31,22 @@ struct RecordFigures {
 /// `priming_intensity_m_per_s` is given. Years are local on the clock of `zone`.
 RecordFigures record_figures(const RainSeries& rain,
                              std::optional<double> priming_intensity_m_per_s, const TimeZone& zone);
+
+/// For a record spread by the method of fragments: its intervals deep enough to prime the siphon
+/// on their own (at least the priming depth, the priming intensity times the record's step), and
+/// the calibration library's intervals of that length as deep, whose patterns those draw on.
+struct PrimingIntervals {
+  Instant length_s = 0;         ///< the record's step
+  double depth_m = 0.0;         ///< the priming depth
+  std::size_t record = 0;       ///< the record's intervals (as read) at or above it
+  std::size_t calibration = 0;  ///< the library's intervals of `length_s` at or above it
+};
+
+/// The figures of `as_read` spread by `how`; nullopt unless `how` is `fragments` with a library
+/// of intervals of the record's step (a calendar day counting as 24 h).
+std::optional<PrimingIntervals> priming_intervals(const RainSeries& as_read,
+                                                  const Disaggregation& how,
+                                                  double priming_intensity_m_per_s);
 
 /// Figures in SI. Optional ones are absent where the release kind or the record has none.
 struct DesignFigures {
@@ -61,6 +79,7 @@ struct DesignFigures {
   /// The record as read, when the simulation runs on a disaggregation of it.
   std::optional<RecordFigures> record_as_read;
   std::string disaggregation;  ///< how `record` was made from `record_as_read`, e.g. `cascade`
+  std::optional<PrimingIntervals> priming_intervals;  ///< `fragments` and a priming intensity
   std::vector<std::string> warnings;
 };
 
