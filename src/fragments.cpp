@@ -234,6 +234,13 @@ const Fragment& choose_fragment(const FragmentLibrary& library, double depth_m, 
     }
     std::erase_if(candidates, [&](const auto& c) { return !inside(c); });
   }
+  // Days: only those at least 1 / kMaxDayScaleUp as deep, when any are.
+  const auto deep_enough = [&](const std::pair<double, std::size_t>& c) {
+    return all[c.second].depth_m * kMaxDayScaleUp >= depth_m;
+  };
+  if (!shorter_than_day && std::any_of(candidates.begin(), candidates.end(), deep_enough)) {
+    std::erase_if(candidates, [&](const auto& c) { return !deep_enough(c); });
+  }
   // After a wet last step, those of the k whose first step, scaled to this depth, goes on at
   // about its depth (this project's rule: see kEdgeRatio), when there are any.
   const auto goes_on = [&](const std::pair<double, std::size_t>& c) {

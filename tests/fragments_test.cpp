@@ -198,14 +198,14 @@ TEST(Fragments, ADeepDayWidensTheSeasonUntilItHoldsDeeperDays) {
   const auto library_of = [](Instant length_s) { return deep_library(length_s, 120.0); };
   // A day of 15 mm on day 100: within 15 days 12 candidates (enough) but none as deep as
   // 15 mm, fewer than kMinDepthMatches = 2, so the window widens to 30 days: 15 candidates, 3 of
-  // them deeper. k = round(sqrt(15)) = 4, the nearest: the three of 16 mm (1 mm away), then
-  // 12 mm (3 mm); weights 12/25, 6/25, 4/25, 3/25, cumulative 0.48, 0.72, 0.88.
+  // them deeper; the draw among the 8 at least 1 / kMaxDayScaleUp = 1/2 as deep (7.5 mm: 8 to
+  // 12 mm and the three of 16 mm). k = round(sqrt(8)) = 3, the nearest: the three of 16 mm
+  // (1 mm away), whatever u.
   const FragmentLibrary days = library_of(kDay);
   const auto day_mm = [&](double u) {
     return choose_fragment(days, 15e-3, 100.0, false, false, u).depth_m * 1e3;
   };
-  for (const double u : {0.1, 0.5, 0.8}) EXPECT_DOUBLE_EQ(day_mm(u), 16.0);
-  EXPECT_DOUBLE_EQ(day_mm(0.95), 12.0);
+  for (const double u : {0.1, 0.5, 0.8, 0.95}) EXPECT_DOUBLE_EQ(day_mm(u), 16.0);
   // An hour of 15 mm: within 15 days only 12 mm lies within kDepthFactor = 1.25 of it (12 to
   // 18.75 mm), one of the two needed, so the window widens to 30 days as well; the draw among
   // the four within the factor there (12 mm and the three of 16 mm), k = round(sqrt(4)) = 2: two
@@ -224,24 +224,49 @@ TEST(Fragments, ADeepDayWidensTheSeasonUntilItHoldsDeeperDays) {
   EXPECT_DOUBLE_EQ(hour5_mm(0.6), 5.0);
   EXPECT_DOUBLE_EQ(hour5_mm(0.7), 4.0);
   // A day of 12 mm: within 15 days only the 12 mm one is as deep (one of the two needed), so
-  // the window widens to 30 days as well: k = 4, the nearest 12, 11, 10 and 9 mm (16 mm is
-  // 4 mm away); u = 0.95 draws the fourth, where the narrow window's k = 3 would give 10 mm.
-  EXPECT_DOUBLE_EQ(choose_fragment(days, 12e-3, 100.0, false, false, 0.95).depth_m * 1e3, 9.0);
+  // the window widens to 30 days as well: 10 at least 6 mm deep (6 to 12 mm and the three of
+  // 16 mm), k = round(sqrt(10)) = 3, the nearest 12, 11 and 10 mm (16 mm is 4 mm away),
+  // cumulative weights 6/11 and 9/11: u = 0.95 draws 10 mm (without the rule k =
+  // round(sqrt(15)) = 4 and the fourth, 9 mm).
+  EXPECT_DOUBLE_EQ(choose_fragment(days, 12e-3, 100.0, false, false, 0.95).depth_m * 1e3, 10.0);
 }
 
 TEST(Fragments, TheDepthRuleWidensTheSeasonNoFurtherThan61Days) {
   // Days, the three of 16 mm on day 250 (150 days away, outside every window but the whole year).
   const FragmentLibrary days = deep_library(kDay, 250.0);
   // A day of 15 mm on day 100: no library day as deep within ±15, ±30 or ±61 days, but the rule
-  // stops at ±61 (a deep day keeps its season): 12 candidates, k = round(sqrt(12)) = 3, the
-  // nearest 12, 11 and 10 mm, cumulative weights 6/11 and 9/11. Widened to the whole year it
-  // would draw 16 mm with u = 0.1.
+  // stops at ±61 (a deep day keeps its season): 12 candidates, the draw among the 5 at least
+  // 1 / kMaxDayScaleUp = 1/2 as deep (8 to 12 mm), k = round(sqrt(5)) = 2, the nearest 12 and
+  // 11 mm, cumulative weight 2/3. Widened to the whole year it would draw 16 mm with u = 0.1.
   const auto day_mm = [&](double u) {
     return choose_fragment(days, 15e-3, 100.0, false, false, u).depth_m * 1e3;
   };
   EXPECT_DOUBLE_EQ(day_mm(0.1), 12.0);
-  EXPECT_DOUBLE_EQ(day_mm(0.6), 11.0);
-  EXPECT_DOUBLE_EQ(day_mm(0.9), 10.0);
+  EXPECT_DOUBLE_EQ(day_mm(0.6), 12.0);
+  EXPECT_DOUBLE_EQ(day_mm(0.9), 11.0);
+}
+
+TEST(Fragments, ADaysPatternIsNotAMuchShallowerDaysScaledUp) {
+  // A library by hand, all on day 100 with dry neighbours: 9 days of 1 mm, then 2, 7 and 8 mm
+  // (12 candidates, enough).
+  FragmentLibrary library;
+  library.length_s = kDay;
+  for (const double mm : {1.0, 1.0, 1.0, 1.0, 1.0, 1.0, 1.0, 1.0, 1.0, 2.0, 7.0, 8.0}) {
+    library.intervals.push_back({mm * 1e-3, false, false, 100.0, {0.0, 1.0}, kDay});
+  }
+  const auto day_mm = [&](double depth_mm, double u) {
+    return choose_fragment(library, depth_mm * 1e-3, 100.0, false, false, u).depth_m * 1e3;
+  };
+  // A day of 5 mm: 7 and 8 mm as deep (2, enough). Without the rule k = round(sqrt(12)) = 3,
+  // the nearest 7 mm (2 mm away), then 2 and 8 mm (3 mm away, 2 mm the earlier), cumulative
+  // weights 6/11 and 9/11: u = 0.7 would draw 2 mm, scaled up 2.5 times. With it the draw is
+  // among those at least 1 / kMaxDayScaleUp = 1/2 as deep (2.5 mm): 7 and 8 mm, k =
+  // round(sqrt(2)) = 1: 7 mm whatever u.
+  for (const double u : {0.1, 0.7, 0.99}) EXPECT_DOUBLE_EQ(day_mm(5.0, u), 7.0);
+  // A day of 30 mm: none at least 15 mm deep, so all 12 (the window stops at ±61 days), k = 3,
+  // the nearest 8, 7 and 2 mm: u = 0.9 draws 2 mm.
+  EXPECT_DOUBLE_EQ(day_mm(30.0, 0.1), 8.0);
+  EXPECT_DOUBLE_EQ(day_mm(30.0, 0.9), 2.0);
 }
 
 TEST(Fragments, AnHourWidensTheSeasonToTheWholeYearThenTheFactor) {

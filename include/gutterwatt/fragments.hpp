@@ -84,6 +84,17 @@ inline constexpr std::size_t kMinDepthMatches = 2;
 /// −19 %), and 1.25 had the smallest summed error over the twelve rows.
 inline constexpr double kDepthFactor = 1.25;
 
+/// For whole days, the most a library day's pattern is scaled up: the draw is among the
+/// candidates at least 1 / kMaxDayScaleUp as deep as the day (all of them when none is). This
+/// project's rule, no published value: a much shallower day's pattern scaled up keeps the
+/// intensity between the priming flow and the siphon's capacity for hours, where each filling
+/// makes a cycle (10-year frontal record, one realization: the 141 days of 5 mm or more whose
+/// pattern was scaled up by more than 1.5 made 734 siphon cycles where the 1-minute record made
+/// 377 on them; README, "How far to trust a disaggregated record"). Measured with
+/// tools/accuracy for 1.25, 1.5, 2 and 3 (daily rows, three calibration years); 2 is the one
+/// whose daily cycle errors with `other` and `other-2` all fell or stayed (the only one).
+inline constexpr double kMaxDayScaleUp = 2.0;
+
 /// Whether a library interval of `library_m` may spread an interval of `depth_m` shorter than a
 /// day: each within `factor` of the other.
 bool depth_matches(double library_m, double depth_m, double factor = kDepthFactor);
@@ -122,7 +133,8 @@ std::optional<std::size_t> choose_spell(const FragmentLibrary& library,
 /// The library interval whose fragments spread an interval of `depth_m` starting `when` in the
 /// season (season_day), with wet or dry neighbours: among the candidates (the same neighbour
 /// states, within the season window; see kMinFragmentCandidates and kMinDepthMatches; for
-/// intervals shorter than a day, only those whose depth matches `depth_m`), the k =
+/// intervals shorter than a day, only those whose depth matches `depth_m`; for days, only those
+/// at least 1 / kMaxDayScaleUp as deep, when any are), the k =
 /// round(sqrt(n)) nearest in depth (ties: the earlier one), drawn with knn_weights by `u` in
 /// [0, 1). `edge_m`, when positive, is the depth of the last step of the interval just before, as
 /// spread: the k are then narrowed to those whose first step times `depth_m` lies within
