@@ -177,11 +177,9 @@ RecordFigures record_figures(const RainSeries& rain,
 std::optional<PrimingIntervals> priming_intervals(const RainSeries& as_read,
                                                   const Disaggregation& how,
                                                   double priming_intensity_m_per_s) {
-  if (how.method != DisaggregationMethod::fragments) return std::nullopt;
-  const auto library =
-      std::find_if(how.fragments.begin(), how.fragments.end(),
-                   [&](const FragmentLibrary& l) { return l.length_s == as_read.step_s; });
-  if (library == how.fragments.end()) return std::nullopt;
+  if (how.method != DisaggregationMethod::fragments || as_read.pulses.empty()) return std::nullopt;
+  const FragmentLibrary* library = library_for(how, as_read.pulses.front().start, as_read.step_s);
+  if (library == nullptr) return std::nullopt;
   PrimingIntervals p;
   p.length_s = as_read.step_s;
   p.depth_m = priming_intensity_m_per_s * static_cast<double>(as_read.step_s);

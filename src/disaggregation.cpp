@@ -199,15 +199,6 @@ std::vector<double> split_exactly(double depth_m, const std::vector<double>& cum
   return out;
 }
 
-// The library of `how` that spreads an interval of `length_s` from `start`, if any holds rain.
-const FragmentLibrary* library_for(const Disaggregation& how, Instant start, Instant length_s) {
-  const auto library =
-      std::find_if(how.fragments.begin(), how.fragments.end(), [&](const FragmentLibrary& l) {
-        return library_length_s(l.calendar, start, start + length_s) == l.length_s;
-      });
-  return library == how.fragments.end() || library->intervals.empty() ? nullptr : &*library;
-}
-
 // The random draw of the interval from `start`: fixed by the seed and the start alone.
 std::uint64_t interval_seed(const Disaggregation& how, Instant start) {
   return split_mix(how.seed ^ split_mix(static_cast<std::uint64_t>(start)));
@@ -263,6 +254,14 @@ StormKind nrcs_kind(DisaggregationMethod method) {
 }
 
 }  // namespace
+
+const FragmentLibrary* library_for(const Disaggregation& how, Instant start, Instant length_s) {
+  const auto library =
+      std::find_if(how.fragments.begin(), how.fragments.end(), [&](const FragmentLibrary& l) {
+        return library_length_s(l.calendar, start, start + length_s) == l.length_s;
+      });
+  return library == how.fragments.end() || library->intervals.empty() ? nullptr : &*library;
+}
 
 CascadeLevel cascade_level_at(const std::vector<CascadeLevel>& levels, double box_s) {
   assert(!levels.empty());

@@ -16,7 +16,8 @@
 // -0.4 % and -8.7 %; with whole wet spells of hours matched (choose_spell), +8.7 % and +12.9 %,
 // +0.4 % and -8.7 %; with the depth rule for days (kMinDepthMatches), +8.7 % and +13.4 %,
 // +0.4 % and -6.5 %; with its rule for hours, -0.8 % and +13.4 %, -1.1 % and -6.5 %; with that
-// rule symmetric (kDepthFactor), -2.0 % and +13.4 %, -1.7 % and -6.5 %).
+// rule symmetric (kDepthFactor), -2.0 % and +13.4 %, -1.7 % and -6.5 %; with a day's pattern
+// scaled up at most kMaxDayScaleUp times, -2.0 % and +12.9 %, -1.7 % and -8.1 %).
 
 #include <gtest/gtest.h>
 

@@ -43,7 +43,7 @@ struct PrimingIntervals {
 };
 
 /// The figures of `as_read` spread by `how`; nullopt unless `how` is `fragments` with a library
-/// of intervals of the record's step (a calendar day counting as 24 h).
+/// of intervals of the record's step (library_for).
 std::optional<PrimingIntervals> priming_intervals(const RainSeries& as_read,
                                                   const Disaggregation& how,
                                                   double priming_intensity_m_per_s);

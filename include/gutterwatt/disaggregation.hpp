@@ -44,6 +44,11 @@ inline constexpr std::string_view kUncalibratedWarning =
 /// kDailyWarning when a pulse was spread, and an uncalibrated cascade kUncalibratedWarning.
 RainSeries disaggregate(const RainSeries& as_read, const Disaggregation& how);
 
+/// The library of `how` (`fragments`) that spreads an interval of `length_s` from `start`, if any
+/// holds rain: the one whose length that interval has (library_length_s: a calendar day counts
+/// as 24 h).
+const FragmentLibrary* library_for(const Disaggregation& how, Instant start, Instant length_s);
+
 /// Quantiles of W kept per calibrated level (at probabilities 0, 0.05, ..., 1).
 inline constexpr std::size_t kWQuantiles = 21;
 
