@@ -6,6 +6,7 @@
 #include <cmath>
 #include <limits>
 #include <map>
+#include <random>
 #include <utility>
 
 #include "detail.hpp"
@@ -143,6 +144,32 @@ FragmentLibrary build_fragment_library(const RainSeries& fine, Instant length_s,
     library.intervals.push_back(std::move(f));
   }
   return library;
+}
+
+FragmentLibrary resample_spells(const FragmentLibrary& library, std::uint64_t seed) {
+  const std::vector<Fragment>& all = library.intervals;
+  std::vector<std::size_t> starts;  // the first interval of each spell, then the end
+  for (std::size_t i = 0; i < all.size(); ++i) {
+    if (i == 0 || !all[i].wet_before) starts.push_back(i);
+  }
+  const std::size_t spells = starts.size();
+  starts.push_back(all.size());
+  std::vector<std::size_t> drawn(spells);
+  std::mt19937_64 rng(seed);
+  for (std::size_t& s : drawn) {
+    s = std::min(spells - 1,
+                 static_cast<std::size_t>(detail::uniform_open(rng) * static_cast<double>(spells)));
+  }
+  std::sort(drawn.begin(), drawn.end());
+  FragmentLibrary out;
+  out.length_s = library.length_s;
+  out.phase_s = library.phase_s;
+  out.calendar = library.calendar;
+  for (const std::size_t s : drawn) {
+    out.intervals.insert(out.intervals.end(), all.begin() + static_cast<std::ptrdiff_t>(starts[s]),
+                         all.begin() + static_cast<std::ptrdiff_t>(starts[s + 1]));
+  }
+  return out;
 }
 
 std::vector<double> stretched_cumulative(const Fragment& f, Instant length_s, Instant step_s) {

@@ -471,7 +471,8 @@ const SummaryNumber& summary_number(std::string_view key) {
 
 void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries& rain,
                         const RunResult& r, const SummaryBuilder& summary,
-                        const RunWarnings& warnings, const RealizationSpread* realizations) {
+                        const RunWarnings& warnings, const RealizationSpread* realizations,
+                        const RealizationSpread* resampled) {
   using nlohmann::json;
   const Accounts& a = r.totals;
   const TimeZone& off = sc.site.zone;
@@ -569,6 +570,13 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
              {"seeds", {z.first_seed, z.first_seed + (z.n - 1)}},
              {"percentiles", kPercentileDefinition}};
     for (const RealizationColumn& c : kRealizationColumns) block[c.key] = spread(z.*(c.spread));
+    if (resampled) {
+      json& more = block["calibration_resampled"];
+      more = {{"n", resampled->n}, {"resampled", kCalibrationResample}};
+      for (const RealizationColumn& c : kRealizationColumns) {
+        more[c.key] = spread(resampled->*(c.spread));
+      }
+    }
   }
   // File names and --set values may hold any bytes: those that are not UTF-8 are shown as U+FFFD.
   out << j.dump(2, ' ', false, decltype(j)::error_handler_t::replace) << '\n';
@@ -576,7 +584,8 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
 
 void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries& rain,
                          const RunResult& r, const SummaryBuilder& summary,
-                         const RealizationSpread* realizations) {
+                         const RealizationSpread* realizations,
+                         const RealizationSpread* resampled) {
   const Accounts& a = r.totals;
   const TimeZone& off = sc.site.zone;
   const auto row = [&](const std::string& label, const std::string& value,
@@ -662,6 +671,23 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
           << unit_in(units, c.unit) << '\n';
     }
     out << "  (P10, median and P90 of the " << z.n << " runs: " << kPercentileDefinition << ")\n";
+    if (resampled) {
+      out << " with the calibration record resampled: " << resampled->n
+          << " more runs with the same seeds, each on\n  " << kCalibrationResample << "\n";
+      out << "  " << std::string(34, ' ') << "                median      P10 to P90\n";
+      for (const RealizationColumn& c : kRealizationColumns) {
+        const Spread& x = resampled->*(c.spread);
+        const auto in = [&](double v) {
+          return detail::on_terminal(column_value(units, c.key, v));
+        };
+        out << "  " << std::left << std::setw(34) << c.label << std::right << std::setw(24)
+            << in(x.p50) << std::setw(10) << in(x.p10) << " to " << std::left << std::setw(9)
+            << in(x.p90) << std::right << unit_in(units, c.unit) << '\n';
+      }
+      out << "  (the range to quote: it holds what one short calibration record leaves unknown\n"
+             "  as well as the draws, and is still the least the estimate is unsure by: README,\n"
+             "  \"How sure the range is\")\n";
+    }
   }
   const auto periods = [&](const char* title, const std::vector<PeriodSummary>& list) {
     out << " by " << title << "\n";

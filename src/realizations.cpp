@@ -10,6 +10,7 @@
 #include "detail.hpp"
 #include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/fragments.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
@@ -33,12 +34,27 @@ std::size_t realization_count(std::size_t asked, const RainConfig& rain) {
   return asked;
 }
 
+std::uint64_t resample_seed(std::uint64_t seed) {
+  // The bits of `seed` turned about and flipped, so that the draw of the spells shares no
+  // stream with the intervals' draws (interval_seed mixes the seed with each start).
+  return ~((seed << 32) | (seed >> 32));
+}
+
 RainSeries realization_record(const RainSeries& as_read, const std::optional<Disaggregation>& how,
-                              std::size_t k) {
+                              std::size_t k, bool resampled) {
   if (!how) return as_read;
   Disaggregation seeded = *how;
   seeded.seed = realization_seed(how->seed, k);
+  if (resampled) {
+    for (FragmentLibrary& library : seeded.fragments) {
+      library = resample_spells(library, resample_seed(seeded.seed));
+    }
+  }
   return disaggregate(as_read, seeded);
+}
+
+bool resamples_calibration(const std::optional<Disaggregation>& how) {
+  return how && how->method == DisaggregationMethod::fragments;
 }
 
 RealizationMetrics realization_metrics(const RunResult& result) {
@@ -107,8 +123,10 @@ std::vector<RealizationMetrics> run_realizations(const Scenario& scenario,
       const std::size_t k = next.fetch_add(1);
       if (k >= n) return;
       try {
-        metrics[k] = realization_metrics(
-            run(k, realization_record(as_read, scenario.rain.disaggregate, k), run_options));
+        metrics[k] = realization_metrics(run(k,
+                                             realization_record(as_read, scenario.rain.disaggregate,
+                                                                k, options.resample_calibration),
+                                             run_options));
       } catch (...) {
         errors[k] = std::current_exception();
         halt.store(true);

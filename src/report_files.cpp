@@ -464,6 +464,21 @@ Summary read_summary(const fs::path& path) {
     }
     return true;
   };
+  if (find_key(root, "realizations") != nullptr) {
+    // The spreads, by the keys kRealizationColumns (realizations.hpp) defines.
+    const auto spreads = [&](const std::string& block, std::vector<Spread>& into) {
+      for (const RealizationColumn& c : kRealizationColumns) {
+        const std::string key = block + "." + std::string(c.key) + ".";
+        into.push_back({json_number(root, key + "p10", file), json_number(root, key + "p50", file),
+                        json_number(root, key + "p90", file)});
+      }
+    };
+    RealizationRanges& r = s.realizations.emplace();
+    r.n = json_number(root, "realizations.n", file);
+    spreads("realizations", r.draws);
+    r.resampled_n = json_optional_number(root, "realizations.calibration_resampled.n", file);
+    if (r.resampled_n) spreads("realizations.calibration_resampled", r.resampled);
+  }
   if (!strings("warnings.run", s.run_warnings)) strings("rain.warnings", s.run_warnings);
   strings("warnings.design", s.design_warnings);
   const Json* months = find_key(root, "months");

@@ -15,6 +15,7 @@
 #include <vector>
 
 #include "gutterwatt/accounts.hpp"
+#include "gutterwatt/realizations.hpp"
 #include "gutterwatt/release.hpp"
 #include "gutterwatt/units.hpp"
 
@@ -124,6 +125,15 @@ struct MonthRow {
   double rain_mm = 0.0, energy_Wh = 0.0, overflow_L = 0.0, cycles = 0.0;
 };
 
+/// summary.json's `realizations` block: the spread of each metric (kRealizationColumns, in that
+/// order) over the realizations, and with the calibration record resampled when it was.
+struct RealizationRanges {
+  double n = 0;
+  std::vector<Spread> draws;
+  std::optional<double> resampled_n;
+  std::vector<Spread> resampled;  ///< empty unless resampled_n
+};
+
 /// The keys of summary.json the page shows.
 struct Summary {
   std::string scenario, site, start, end;
@@ -140,6 +150,8 @@ struct Summary {
   std::optional<double> evaporation_L, standing_longest_days, standing_spells_over_7_days,
       standing_days_total;
   std::vector<MonthRow> months;
+  /// After several realizations (`run --realizations N`).
+  std::optional<RealizationRanges> realizations;
   /// The run's warnings and the design's (as `check` gives them); a summary written before they
   /// were kept has only the rain record's.
   std::vector<std::string> run_warnings, design_warnings;

@@ -160,6 +160,69 @@ std::string headline_section(const Run& run) {
   return body;
 }
 
+// After several realizations: this run's figures beside the realizations' median and P10 to
+// P90, and those with the calibration record resampled (the range to quote) when there are some.
+std::string range_section(const Run& run) {
+  const Summary& s = run.summary;
+  if (!s.realizations) return "";
+  const RealizationRanges& r = *s.realizations;
+
+  const auto value = [&](const RealizationColumn& c, double v) {
+    return c.unit == "L"    ? quantity(run.units, v, "L")
+           : c.unit.empty() ? pretty(v)
+                            : with_unit(v, std::string(c.unit).c_str());
+  };
+  // This run's own value of each metric of kRealizationColumns.
+  const std::pair<std::string_view, double> own[] = {
+      {"energy_Wh", s.electrical_Wh},
+      {"cycles", s.cycles},
+      {"reservoir_overflow_L", s.reservoir_overflow_L},
+      {"dribble_L", s.dribble_L}};
+  const auto own_value = [&](const RealizationColumn& c) {
+    const auto* at = std::find_if(std::begin(own), std::end(own),
+                                  [&](const auto& o) { return o.first == c.key; });
+    return at == std::end(own) ? std::string("-") : value(c, at->second);
+  };
+  const auto range = [&](const RealizationColumn& c, const Spread& x) {
+    return value(c, x.p10) + " to " + value(c, x.p90);
+  };
+  const bool resampled = r.resampled_n.has_value();
+  std::string body =
+      "<section id=\"range\">\n<h2>How sure</h2>\n<p>The record was disaggregated " + pretty(r.n) +
+      " times, each with its own seed; this page shows the first. The median and the P10 to P90 "
+      "range of those runs spread the draws only.";
+  if (resampled) {
+    body += " " + pretty(*r.resampled_n) +
+            " more runs, with the same seeds, each drew on a resample of the calibration record's "
+            "wet spells: their range also holds what one short calibration record leaves unknown, "
+            "and is <strong>the range to quote</strong>. Measured against long invented records, "
+            "even that range often missed the true value (README, \"How sure the range is\"): "
+            "read it as the least the estimate is unsure by.";
+  }
+  body +=
+      "</p>\n<table>\n<thead><tr><th></th><th class=\"n\">this run</th><th "
+      "class=\"n\">median</th><th class=\"n\">P10 to P90</th>";
+  if (resampled) {
+    body +=
+        "<th class=\"n\">median, calibration resampled</th><th class=\"n\">P10 to P90, "
+        "calibration resampled</th>";
+  }
+  body += "</tr></thead>\n<tbody>\n";
+  for (std::size_t i = 0; i < std::size(kRealizationColumns); ++i) {
+    const RealizationColumn& c = kRealizationColumns[i];
+    body += "<tr><td>" + std::string(c.label) + "</td><td class=\"n\">" + own_value(c) +
+            "</td><td class=\"n\">" + value(c, r.draws[i].p50) + "</td><td class=\"n\">" +
+            range(c, r.draws[i]) + "</td>";
+    if (resampled) {
+      body += "<td class=\"n\">" + value(c, r.resampled[i].p50) + "</td><td class=\"n\">" +
+              range(c, r.resampled[i]) + "</td>";
+    }
+    body += "</tr>\n";
+  }
+  body += "</tbody>\n</table>\n</section>\n";
+  return body;
+}
+
 std::string season_section(const Run& run, std::vector<std::string>& charts) {
   const Timeseries& ts = run.ts;
   const std::vector<Event>& events = run.events;
@@ -507,6 +570,7 @@ std::string render_run(const fs::path& dir, std::optional<UnitSystem> units) {
   std::string body = title_section(run);
   body += warnings_section(run);
   body += headline_section(run);
+  body += range_section(run);
   body += season_section(run, charts);
   body += energy_section(run, charts);
   body += months_section(run, charts);

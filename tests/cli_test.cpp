@@ -6,12 +6,14 @@
 #include <cstdio>
 #include <filesystem>
 #include <fstream>
+#include <map>
 #include <nlohmann/json.hpp>
 #include <regex>
 #include <sstream>
 #include <string>
 
 #include "cli_support.hpp"
+#include "gutterwatt/realizations.hpp"
 
 namespace fs = std::filesystem;
 using namespace gutterwatt::cli_support;
@@ -127,6 +129,38 @@ TEST(Cli, FragmentsRunFromTheWalkthroughScenario) {
   EXPECT_EQ(r.err.find("the methods give"), std::string::npos) << r.err;
   const auto summary = nlohmann::json::parse(slurp(dir / "out" / "summary.json"));
   EXPECT_EQ(summary["realizations"]["n"].get<int>(), 3);
+  // As many again on resamples of the calibration record, their spread beside the draws'.
+  const auto& resampled = summary["realizations"]["calibration_resampled"];
+  EXPECT_EQ(resampled["n"].get<int>(), 3);
+  EXPECT_EQ(resampled["resampled"].get<std::string>(), gutterwatt::kCalibrationResample);
+  const auto& energy = resampled["energy_Wh"];
+  EXPECT_LE(energy["p10"].get<double>(), energy["p50"].get<double>());
+  EXPECT_LE(energy["p50"].get<double>(), energy["p90"].get<double>());
+}
+
+// The decade walkthrough (README): ten years of invented daily totals spread by fragments of one
+// year from a nearby gauge. Every year keeps its rain, summed here from the file itself, and the
+// range with the calibration record resampled is written beside the draws'.
+TEST(Cli, DecadeWalkthroughKeepsEachYearsRain) {
+  const fs::path dir = scratch("cli-decade");
+  std::map<std::string, double> year_mm;
+  std::istringstream daily(slurp(source("data/demo/decade-daily.csv")));
+  for (std::string line; std::getline(daily, line);) {
+    if (line.empty() || line[0] == '#' || line.rfind("date", 0) == 0) continue;
+    year_mm[line.substr(0, 4)] += std::stod(line.substr(line.find(',') + 1));
+  }
+  ASSERT_EQ(year_mm.size(), 10u);
+  const Outcome r = run("run " + source("scenarios/decade-daily.yaml") +
+                            " --quiet --realizations 2 --out " + (dir / "out").string(),
+                        dir);
+  ASSERT_EQ(r.status, 0) << r.err;
+  const auto summary = nlohmann::json::parse(slurp(dir / "out" / "summary.json"));
+  ASSERT_EQ(summary["years"].size(), 10u);
+  for (const auto& year : summary["years"]) {
+    const std::string label = year["year"].get<std::string>();
+    EXPECT_NEAR(year["rain_mm"].get<double>(), year_mm[label], 1e-6) << label;
+  }
+  EXPECT_EQ(summary["realizations"]["calibration_resampled"]["n"].get<int>(), 2);
 }
 
 // The spread of three realizations against three single runs made with the seeds 1, 2, 3.
@@ -155,6 +189,9 @@ TEST(Cli, RealizationsReportTheSpreadOfSeparateSeeds) {
     energy.push_back(summary["energy_Wh"]["electrical"].get<double>());
   }
   const auto all = nlohmann::json::parse(slurp(dir / "all" / "summary.json"));
+  // The cascade has no library to resample: its range is the draws' alone.
+  EXPECT_FALSE(all["realizations"].contains("calibration_resampled"));
+  EXPECT_EQ(r.out.find("calibration record resampled"), std::string::npos);
   // The written run is the first realization.
   EXPECT_EQ(all["energy_Wh"]["electrical"].get<double>(), energy[0]);
   std::sort(energy.begin(), energy.end());

@@ -403,9 +403,10 @@ TEST(Fragments, SpellsMatchedOrNotKeepEveryHoursDepthExactly) {
   Disaggregation how;
   how.method = DisaggregationMethod::fragments;
   how.step_s = 300;
-  how.fragments = {spell_library()};
-  for (std::uint64_t seed = 1; seed <= 20; ++seed) {
+  // Seeds 1 to 20 with the library as built, 21 to 40 with a resample of it (resample_spells).
+  for (std::uint64_t seed = 1; seed <= 40; ++seed) {
     how.seed = seed;
+    how.fragments = {seed <= 20 ? spell_library() : resample_spells(spell_library(), seed)};
     const RainSeries spread = disaggregate(hourly, how);
     for (const RainPulse& hour : hourly.pulses) {
       double sum = 0.0;
@@ -415,6 +416,60 @@ TEST(Fragments, SpellsMatchedOrNotKeepEveryHoursDepthExactly) {
       EXPECT_EQ(sum, hour.depth_m) << "seed " << seed << ", hour from " << hour.start;
     }
   }
+}
+
+// The spells of `library` as the depths of their intervals, in order.
+std::vector<std::vector<double>> spells_of(const FragmentLibrary& library) {
+  std::vector<std::vector<double>> out;
+  for (const Fragment& f : library.intervals) {
+    if (out.empty() || !f.wet_before) out.emplace_back();
+    out.back().push_back(f.depth_m);
+  }
+  return out;
+}
+
+TEST(Fragments, AResampleTakesWholeSpellsInTimeOrder) {
+  // spell_library by hand: spells A (4, 2 mm), C (3 mm) and B (1, 1 mm), in that order.
+  const FragmentLibrary library = spell_library();
+  for (std::uint64_t seed = 1; seed <= 50; ++seed) {
+    const FragmentLibrary resample = resample_spells(library, seed);
+    EXPECT_EQ(resample.length_s, library.length_s);
+    const std::vector<std::vector<double>> spells = spells_of(resample);
+    ASSERT_EQ(spells.size(), 3u) << seed;
+    std::size_t last = 0;
+    for (const std::vector<double>& spell : spells) {
+      // Each an original spell whole, never before the one drawn before it.
+      std::size_t which = 3;
+      if (spell == std::vector<double>{4e-3, 2e-3}) which = 0;
+      if (spell == std::vector<double>{3e-3}) which = 1;
+      if (spell == std::vector<double>{1e-3, 1e-3}) which = 2;
+      ASSERT_LT(which, 3u) << seed;
+      EXPECT_GE(which, last) << seed;
+      last = which;
+    }
+  }
+}
+
+TEST(Fragments, AResampleHoldsEachSpellAsOftenAsTheBootstrapSays) {
+  // A bootstrap sample of n drawn with replacement holds a given one of the n with probability
+  // 1 - (1 - 1/n)^n (Efron & Tibshirani 1993, An Introduction to the Bootstrap, section 7.3 as
+  // remembered): 19/27 = 0.7037 for n = 3, and each of the n is drawn once on average. Over 4000
+  // seeds the share's standard error is sqrt(0.7037 x 0.2963 / 4000) = 0.0072: four of them.
+  const FragmentLibrary library = spell_library();
+  constexpr int kSeeds = 4000;
+  int holding_c = 0;
+  int copies_of_c = 0;
+  for (std::uint64_t seed = 1; seed <= kSeeds; ++seed) {
+    int copies = 0;
+    for (const std::vector<double>& spell : spells_of(resample_spells(library, seed))) {
+      copies += spell == std::vector<double>{3e-3};
+    }
+    holding_c += copies > 0;
+    copies_of_c += copies;
+  }
+  EXPECT_NEAR(static_cast<double>(holding_c) / kSeeds, 19.0 / 27.0, 0.029);
+  // Copies per sample: mean 1, variance (1 - 1/3) = 2/3, standard error sqrt(2/3 / 4000) = 0.013.
+  EXPECT_NEAR(static_cast<double>(copies_of_c) / kSeeds, 1.0, 0.052);
 }
 
 // America/Los_Angeles in 2025 (Energy Policy Act of 2005, sec. 110: daylight saving from 2:00

@@ -9,6 +9,7 @@
 
 #include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/error.hpp"
+#include "gutterwatt/fragments.hpp"
 #include "test_support.hpp"
 
 namespace gutterwatt::realizations_test {
@@ -164,6 +165,40 @@ TEST(Realizations, RecordOfRealizationKIsTheDisaggregationWithTheSeedPlusK) {
   ASSERT_EQ(plain.pulses.size(), 3u);
   EXPECT_EQ(plain.pulses[1].depth_m, 6e-3);
   EXPECT_EQ(plain.step_s, 3600);
+}
+
+TEST(Realizations, AResampledRealizationDrawsOnItsOwnResampleOfTheCalibration) {
+  // hourly_record's three hours spread by fragments of a hand library of half-hour steps: two
+  // one-hour spells, all in the first half and all in the second.
+  Scenario s = hourly_scenario();
+  Disaggregation& how = *s.rain.disaggregate;
+  how.method = DisaggregationMethod::fragments;
+  how.step_s = 1800;
+  FragmentLibrary library;
+  library.length_s = 3600;
+  library.intervals = {{4e-3, false, false, 0.0, {0.0, 1.0, 1.0}, 3600},
+                       {4e-3, false, false, 0.0, {0.0, 0.0, 1.0}, 3600}};
+  how.fragments = {library};
+  EXPECT_TRUE(resamples_calibration(s.rain.disaggregate));
+  EXPECT_FALSE(resamples_calibration(hourly_scenario().rain.disaggregate));  // cascade
+  EXPECT_FALSE(resamples_calibration(std::nullopt));
+  const RainSeries as_read = hourly_record();
+  for (std::size_t k = 0; k < 8; ++k) {
+    // Realization k: seed 11 + k, the library resampled with resample_seed of that seed.
+    Disaggregation expected_how = how;
+    expected_how.seed = 11 + k;
+    expected_how.fragments = {resample_spells(library, resample_seed(11 + k))};
+    const RainSeries expected = disaggregate(as_read, expected_how);
+    const RainSeries record = realization_record(as_read, s.rain.disaggregate, k, true);
+    ASSERT_EQ(record.pulses.size(), expected.pulses.size()) << k;
+    for (std::size_t i = 0; i < record.pulses.size(); ++i) {
+      EXPECT_EQ(record.pulses[i].start, expected.pulses[i].start) << k << ' ' << i;
+      EXPECT_EQ(record.pulses[i].depth_m, expected.pulses[i].depth_m) << k << ' ' << i;
+    }
+  }
+  // The resample seeds differ from the draw seeds they come from, and from one another.
+  EXPECT_NE(resample_seed(11), 11u);
+  EXPECT_NE(resample_seed(11), resample_seed(12));
 }
 
 TEST(Realizations, ThrowTheErrorOfAFailedRealization) {

@@ -189,6 +189,45 @@ TEST(Report, RunPageHasTheHeadlineFigures) {
             std::string::npos);
 }
 
+// summary.json's realizations block (invented values) becomes the "How sure" table: this run,
+// the draws' median and range, and those with the calibration record resampled.
+TEST(Report, RunPageShowsTheRealizationsRangesBesideThisRun) {
+  ScratchDir scratch;
+  const fs::path dir = scratch.copy_of("run");
+  EXPECT_EQ(render_report(dir).find("How sure"), std::string::npos);
+  const auto spread = [](const std::string& key, const std::string& p10, const std::string& p50,
+                         const std::string& p90) {
+    return "\"" + key + "\": {\"p10\": " + p10 + ", \"p50\": " + p50 + ", \"p90\": " + p90 + "}";
+  };
+  const std::string draws = spread("energy_Wh", "16.5", "17.34", "18.5") + ", " +
+                            spread("cycles", "120", "125", "131") + ", " +
+                            spread("reservoir_overflow_L", "10", "20", "30") + ", " +
+                            spread("dribble_L", "100", "200", "300");
+  const std::string resampled = spread("energy_Wh", "12.5", "17.5", "24.5") + ", " +
+                                spread("cycles", "110", "130", "160") + ", " +
+                                spread("reservoir_overflow_L", "5", "20", "60") + ", " +
+                                spread("dribble_L", "90", "200", "400");
+  replace_text(dir / "summary.json", "  \"site\":",
+               "  \"realizations\": {\"n\": 20, " + draws +
+                   ", \"calibration_resampled\": {\"n\": 20, \"resampled\": \"x\", " + resampled +
+                   "}},\n  \"site\":");
+  const std::string page = render_report(dir);
+  EXPECT_NE(page.find("<h2>How sure</h2>\n<p>The record was disaggregated 20 times"),
+            std::string::npos);
+  EXPECT_NE(page.find("the range to quote"), std::string::npos);
+  // The fixture's own 17.862 Wh and 126 cycles beside the spreads.
+  EXPECT_NE(page.find("<tr><td>electrical (generator out)</td><td class=\"n\">17.9\xC2\xA0Wh</td>"
+                      "<td class=\"n\">17.3\xC2\xA0Wh</td><td class=\"n\">16.5\xC2\xA0Wh to "
+                      "18.5\xC2\xA0Wh</td><td class=\"n\">17.5\xC2\xA0Wh</td><td class=\"n\">"
+                      "12.5\xC2\xA0Wh to 24.5\xC2\xA0Wh</td></tr>"),
+            std::string::npos)
+      << page.substr(page.find("How sure"), 3000);
+  EXPECT_NE(page.find("<tr><td>siphon cycles</td><td class=\"n\">126</td><td class=\"n\">125</td>"
+                      "<td class=\"n\">120 to 131</td><td class=\"n\">130</td><td class=\"n\">"
+                      "110 to 160</td></tr>"),
+            std::string::npos);
+}
+
 TEST(Report, SharesAreOfRoofRunoffAndSaySo) {
   ScratchDir scratch;
   const std::string page = render_report(scratch.copy_of("run"));

@@ -181,6 +181,21 @@ def write_record(path, counts, first_day, comment):
     os.replace(temporary, path)
 
 
+def write_totals(path, counts, minutes, comment, stamp):
+    """Totals of `counts` over blocks of `minutes`, one row each (dry ones too), stamped by
+    stamp(k), written through a temporary name after `comment`."""
+    temporary = path + ".tmp"
+    with open(temporary, "w", encoding="ascii", newline="\n") as out:
+        out.write(f"# {comment}\n")
+        out.write(("date" if minutes == MINUTES_PER_DAY else "time") + ",rain_mm\n")
+        rows = []
+        for k in range(len(counts) // minutes):
+            c = sum(counts[k * minutes:(k + 1) * minutes])
+            rows.append(f"{stamp(k)},{c // 100}.{c % 100:02d}\n")
+        out.write("".join(rows))
+    os.replace(temporary, path)
+
+
 def print_summary(counts, kinds, years):
     wet = [c for c in counts if c > 0]
     per_hour = sorted(c * TIP_MM * 60 for c in wet)

@@ -12,6 +12,7 @@
 /// ±15-day window, how it widens, distance on the depth alone) are from memory of these papers.
 
 #include <cstddef>
+#include <cstdint>
 #include <optional>
 #include <vector>
 
@@ -42,6 +43,15 @@ Instant library_length_s(const std::optional<TimeZone>& calendar, Instant start,
 FragmentLibrary build_fragment_library(const RainSeries& fine, Instant length_s, Instant phase_s,
                                        Instant step_s,
                                        const std::optional<TimeZone>& calendar = std::nullopt);
+
+/// A bootstrap resample of `library` by whole wet spells (runs of consecutive wet intervals,
+/// dry before and after): as many spells as it holds, drawn with replacement by `seed`, kept in
+/// time order (a spell drawn twice appears twice, one after the other). A block bootstrap
+/// (Kunsch 1989, The jackknife and the bootstrap for general stationary observations, Annals of
+/// Statistics 17(3), 1217-1241, as remembered) with the wet spell as the block, so that each
+/// interval keeps its neighbours: the spread of the realizations then includes what sampling one
+/// short calibration record does to the patterns on offer.
+FragmentLibrary resample_spells(const FragmentLibrary& library, std::uint64_t seed);
 
 /// The cumulative shares of `f` at the step boundaries of an interval of `length_s` in steps of
 /// `step_s` (the last shorter when it does not divide `length_s`): `f.cumulative` itself when the

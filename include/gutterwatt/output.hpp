@@ -234,16 +234,22 @@ struct RunWarnings {
 
 /// summary.json: water_L, energy_Wh, siphon, overflow, battery, months, warnings and more; with
 /// `realizations` (the run being their first), `realizations: {n, seeds, percentiles,
-/// energy_Wh: {p10, p50, p90}, cycles, reservoir_overflow_L, dribble_L}`.
+/// energy_Wh: {p10, p50, p90}, cycles, reservoir_overflow_L, dribble_L}`; with `resampled` (as
+/// many realizations with the same seeds, each on a resample of the calibration record:
+/// realization_record), that block gains `calibration_resampled: {n, resampled, energy_Wh:
+/// {p10, p50, p90}, cycles, reservoir_overflow_L, dribble_L}`.
 void write_summary_json(std::ostream& out, const Scenario& scenario, const RainSeries& rain,
                         const RunResult& result, const SummaryBuilder& summary,
                         const RunWarnings& warnings,
-                        const RealizationSpread* realizations = nullptr);
+                        const RealizationSpread* realizations = nullptr,
+                        const RealizationSpread* resampled = nullptr);
 
 /// The summary table printed after a run, in the scenario's units (site.units); with
-/// `realizations`, their median and P10 to P90 beside the run's own figures.
+/// `realizations`, their median and P10 to P90 beside the run's own figures, and with
+/// `resampled`, those of the realizations on resamples of the calibration record.
 void print_summary_table(std::ostream& out, const Scenario& scenario, const RainSeries& rain,
                          const RunResult& result, const SummaryBuilder& summary,
-                         const RealizationSpread* realizations = nullptr);
+                         const RealizationSpread* realizations = nullptr,
+                         const RealizationSpread* resampled = nullptr);
 
 }  // namespace gutterwatt

@@ -31,11 +31,27 @@ std::size_t default_realizations(const RainConfig& rain);
 /// same every time.
 std::size_t realization_count(std::size_t asked, const RainConfig& rain);
 
+/// What a realization with the calibration record resampled spreads its record by, in words
+/// for outputs.
+inline constexpr const char* kCalibrationResample =
+    "a resample of the calibration record's wet spells, drawn with replacement";
+
+/// The seed of the resample of the calibration record that a realization drawing with `seed`
+/// spreads its record by (resample_spells).
+std::uint64_t resample_seed(std::uint64_t seed);
+
 /// The record realization `k` runs on: `as_read` disaggregated by `how` with the seed
 /// realization_seed(how->seed, k), or `as_read` itself when there is no `how` (a record used as
-/// read). The one rule for run and sweep.
+/// read). When `resampled` (method: fragments), each fragment library is first resampled by
+/// whole wet spells (resample_spells, with resample_seed of that seed), so that the spread of
+/// such realizations includes the sampling of the calibration record as well as the draws. The
+/// one rule for run and sweep.
 RainSeries realization_record(const RainSeries& as_read, const std::optional<Disaggregation>& how,
-                              std::size_t k);
+                              std::size_t k, bool resampled = false);
+
+/// Whether the realizations of records disaggregated by `how` have a calibration record to
+/// resample (method: fragments).
+bool resamples_calibration(const std::optional<Disaggregation>& how);
 
 /// What each realization reports.
 struct RealizationMetrics {
@@ -116,6 +132,9 @@ struct RealizationOptions {
   /// What runs each realization (a seam for the command line's writers and for tests); empty:
   /// gutterwatt::simulate with no observer.
   RealizationRun run;
+  /// Each realization spreads the record by a resample of the calibration record
+  /// (realization_record); only where resamples_calibration.
+  bool resample_calibration = false;
 };
 
 /// Runs realizations 0 to n - 1 (n >= 1) of `scenario`: realization k runs on

@@ -148,6 +148,7 @@ int run_command(const RunArgs& args) {
   RainSeries rain;
   RainSeries rain_as_read;  // several realizations only
   std::optional<RealizationSpread> spread;
+  std::optional<RealizationSpread> resampled;  // the calibration record resampled (fragments)
   if (n == 1) {
     // A long record is simulated while it is read.
     rain = load_rain_while(
@@ -168,6 +169,13 @@ int run_command(const RunArgs& args) {
     };
     spread = spread_of(run_realizations(sc, as_read, n, realization_options),
                        sc.rain.disaggregate->seed);
+    if (resamples_calibration(sc.rain.disaggregate)) {
+      RealizationOptions resampling;
+      resampling.stop = &g_stop;
+      resampling.resample_calibration = true;
+      resampled =
+          spread_of(run_realizations(sc, as_read, n, resampling), sc.rain.disaggregate->seed);
+    }
   }
   RunWarnings warnings;
   warnings.run = rain.warnings;
@@ -183,11 +191,12 @@ int run_command(const RunArgs& args) {
   // `check`).
   warnings.design = evaluate_design(sc, &rain, spread ? &rain_as_read : nullptr).warnings;
   const RealizationSpread* realizations = spread ? &*spread : nullptr;
+  const RealizationSpread* with_calibration = resampled ? &*resampled : nullptr;
   write_summary_json(folder->open("summary.json"), sc, rain, result, summary, warnings,
-                     realizations);
+                     realizations, with_calibration);
   folder->commit();
   if (!args.quiet) {
-    print_summary_table(std::cout, sc, rain, result, summary, realizations);
+    print_summary_table(std::cout, sc, rain, result, summary, realizations, with_calibration);
     std::cout << "wrote " << (dir / "timeseries.csv").string() << ", "
               << (dir / "events.csv").string() << ", ";
     if (sc.simulation.trace) std::cout << (dir / "trace.csv").string() << ", ";
