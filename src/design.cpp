@@ -304,20 +304,21 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
   }
   // The energy is made almost entirely in the intervals deep enough to prime the siphon on their
   // own, and one calibration year holds few (README, "What the calibration year does to the
-  // estimate"): fewer than kMinFragmentCandidates (a project choice, common practice, no source)
-  // and the estimate moves with the calibration year beyond the realizations' spread.
+  // estimate"): fewer than kFewDeepCalibrationIntervals and the estimate moves with the
+  // calibration year beyond the draws' spread.
   if (const auto& p = d.priming_intervals;
-      p && p->record > 0 && p->calibration < kMinFragmentCandidates) {
+      p && p->record > 0 && p->calibration < kFewDeepCalibrationIntervals) {
     d.warnings.push_back(
         format_duration(p->length_s) + " intervals of " +
         shown(units, p->depth_m / kMetresPerMm, "mm") +
         " or more prime the siphon on their own and make most of the energy: the record has " +
         std::to_string(p->record) + ", and their patterns are drawn from only " +
         std::to_string(p->calibration) +
-        " calibration intervals that deep, so the result can move by more than the P10-P90 "
-        "range shows (15 to 23 points between calibration years, measured; README, \"What the "
-        "calibration year does to the estimate\"). A longer calibration record, or one with more "
-        "such rain, narrows it.");
+        " calibration intervals that deep, so the result can move by more than the draws' "
+        "P10-P90 range shows (15 to 23 points between calibration years, measured; README, "
+        "\"What the calibration year does to the estimate\"). Quote the range with the "
+        "calibration record resampled, which `run` prints beside it; a longer calibration "
+        "record, or one with more such rain, narrows it.");
   }
   if (d.release_ends_level_m && *d.release_ends_level_m > bottom_m + 1e-3) {
     const double held_L = (geometry.volume_m3(ends_m) - geometry.volume_m3(bottom_m)) * 1e3;

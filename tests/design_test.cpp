@@ -278,7 +278,7 @@ TEST(Design, CountsTheIntervalsAtOrAboveThePrimingDepth) {
   EXPECT_FALSE(priming_intervals(as_read, how, kPriming));
 }
 
-// The warning when the calibration holds fewer than kMinFragmentCandidates intervals as deep as
+// The warning when the calibration holds fewer than kFewDeepCalibrationIntervals as deep as
 // the record's that prime on their own, and the lines check prints.
 TEST(Design, WarnsWhenFewCalibrationIntervalsAreDeepEnoughToPrime) {
   Scenario s = make_scenario();  // primes at 4.5 mm/h: 4.5 mm in an hour
@@ -297,13 +297,13 @@ TEST(Design, WarnsWhenFewCalibrationIntervalsAreDeepEnoughToPrime) {
              std::string::npos;
     });
   };
-  std::vector<double> depths(kMinFragmentCandidates - 1, 6e-3);  // 9 of 6 mm
+  std::vector<double> depths(kFewDeepCalibrationIntervals - 1, 6e-3);  // 9 of 6 mm
   depths.push_back(1e-3);
   s.rain.disaggregate->fragments = {library_of(3600, depths)};
   const DesignFigures few = evaluate_design(s, &rain, &as_read);
   ASSERT_TRUE(few.priming_intervals);
   EXPECT_EQ(few.priming_intervals->record, 1u);
-  EXPECT_EQ(few.priming_intervals->calibration, kMinFragmentCandidates - 1);
+  EXPECT_EQ(few.priming_intervals->calibration, kFewDeepCalibrationIntervals - 1);
   EXPECT_TRUE(warned(few));
   std::ostringstream out;
   write_design(out, s, few);

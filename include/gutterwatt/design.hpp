@@ -42,6 +42,12 @@ struct PrimingIntervals {
   std::size_t calibration = 0;  ///< the library's intervals of `length_s` at or above it
 };
 
+/// Fewest calibration intervals deep enough to prime on their own below which `check` warns
+/// that the estimate moves with the calibration record (when the record has such intervals):
+/// the same count the season window wants to choose among (kMinFragmentCandidates, a project
+/// choice, common practice, no source), for the same reason, kept apart so that either can move.
+inline constexpr std::size_t kFewDeepCalibrationIntervals = 10;
+
 /// The figures of `as_read` spread by `how`; nullopt unless `how` is `fragments` with a library
 /// of intervals of the record's step (library_for).
 std::optional<PrimingIntervals> priming_intervals(const RainSeries& as_read,
