@@ -1,6 +1,6 @@
 #!/usr/bin/env python3
 """Write the invented records of the decade walkthrough (README, "Walkthrough: ten years of daily
-totals and one year from a nearby gauge"): data/demo/decade-daily.csv and
+totals and two years from a nearby gauge"): data/demo/decade-daily.csv and
 data/demo/nearby-gauge-5min.csv.
 
 Both are made up: no gauge recorded them and they describe no real place. They stand for what a
@@ -9,9 +9,10 @@ user typically has:
   dry days as 0: the daily totals of the invented 10-year 1-minute record of tools/bench
   (tools/make_long_rain.py with its seed 10), so that the run on that 1-minute record is the
   answer the daily totals should give;
-- nearby-gauge-5min.csv: one year (2025) of 5-minute depths from a gauge nearby: the same
-  invented climate drawn with the next seed (11), other storms, summed from 1 minute to 5
-  minutes, period-ending stamps (the first row, 2025-01-01T00:05, holds the first five minutes).
+- nearby-gauge-5min.csv: two years (2025 and 2026) of 5-minute depths from a gauge nearby: the
+  same invented climate, each year drawn on its own with the next seeds (11 for 2025, 12 for
+  2026), other storms, summed from 1 minute to 5 minutes, period-ending stamps (the first row,
+  2025-01-01T00:05, holds the first five minutes).
 
 Every run writes the same files byte for byte (fixed seeds). The 1-minute record itself is not
 written here (it is hundreds of megabytes): `tools/make_long_rain.py --out
@@ -22,6 +23,7 @@ Usage: tools/make_decade_rain.py [--out-dir DIR]
 """
 
 import argparse
+import array
 import datetime as dt
 import os
 import random
@@ -32,7 +34,7 @@ import make_long_rain as long_rain  # noqa: E402  (storm model, gauge, writers)
 
 ROOT = os.path.dirname(os.path.dirname(os.path.abspath(__file__)))
 DECADE_SEED = long_rain.SEED  # tools/bench's 10-year record
-NEARBY_SEED = long_rain.SEED + 1
+NEARBY_SEEDS = (long_rain.SEED + 1, long_rain.SEED + 2)  # one for each year
 NEARBY_FIRST_DAY = dt.date(2025, 1, 1)
 STEP_MIN = 5
 
@@ -59,15 +61,20 @@ def main():
         f"invented rain, not measured: {site}, daily totals of tools/make_long_rain.py seed "
         f"{DECADE_SEED} (tools/make_decade_rain.py)",
         lambda k: (long_rain.FIRST_DAY + dt.timedelta(days=k)).isoformat())
-    nearby = minute_counts(NEARBY_SEED, NEARBY_FIRST_DAY, 1)
+    nearby = array.array("l")
+    for k, seed in enumerate(NEARBY_SEEDS):
+        first_day = NEARBY_FIRST_DAY.replace(year=NEARBY_FIRST_DAY.year + k)
+        nearby += minute_counts(seed, first_day, 1)
     start = dt.datetime.combine(NEARBY_FIRST_DAY, dt.time())
     fine = os.path.join(args.out_dir, "nearby-gauge-5min.csv")
     long_rain.write_totals(
         fine, nearby, STEP_MIN,
         f"invented rain, not measured: a gauge near {site}, tools/make_long_rain.py's climate "
-        f"with seed {NEARBY_SEED}, 5-minute totals (tools/make_decade_rain.py)",
+        f"with seeds {NEARBY_SEEDS[0]} (2025) and {NEARBY_SEEDS[1]} (2026), 5-minute totals "
+        "(tools/make_decade_rain.py)",
         lambda k: (start + dt.timedelta(minutes=STEP_MIN * (k + 1))).strftime("%Y-%m-%dT%H:%M"))
-    for path, counts, years in ((daily, decade, long_rain.YEARS), (fine, nearby, 1)):
+    for path, counts, years in ((daily, decade, long_rain.YEARS),
+                                (fine, nearby, len(NEARBY_SEEDS))):
         print(f"wrote {path} (invented): {sum(counts) / 100.0 / years:.0f} mm a year")
     return 0
 
