@@ -89,7 +89,12 @@ std::string headline_section(const Run& run) {
       " ran off it. Of that roof runoff, " + quantity(run.units, s.through_nozzle_L, "L") + " (" +
       share(s.through_nozzle_L) + ") passed the nozzle, " + quantity(run.units, overflow_L, "L") +
       " (" + share(overflow_L) + ") overflowed and " + quantity(run.units, s.dribble_L, "L") +
-      " (" + share(s.dribble_L) + ") dribbled through at low head.</p>\n";
+      " (" + share(s.dribble_L) + ") dribbled through at low head." +
+      (s.realizations ? " This is the first of " + pretty(s.realizations->n) +
+                            " disaggregations of the record: their median and range, the figures "
+                            "to quote, are under <a href=\"#range\">How sure</a>."
+                      : std::string()) +
+      "</p>\n";
   body += "<div class=\"tables\">\n<table>\n<caption>Energy</caption>\n<tbody>\n";
   body += row_html("Electrical energy generated", with_unit(s.electrical_Wh, "Wh"));
   body += row_html("stored in the battery", with_unit(s.stored_Wh, "Wh"), "", true);

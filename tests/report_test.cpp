@@ -215,6 +215,7 @@ TEST(Report, RunPageShowsTheRealizationsRangesBesideThisRun) {
   EXPECT_NE(page.find("<h2>How sure</h2>\n<p>The record was disaggregated 20 times"),
             std::string::npos);
   EXPECT_NE(page.find("the range to quote"), std::string::npos);
+  EXPECT_NE(page.find("This is the first of 20 disaggregations of the record"), std::string::npos);
   // The fixture's own 17.862 Wh and 126 cycles beside the spreads.
   EXPECT_NE(page.find("<tr><td>electrical (generator out)</td><td class=\"n\">17.9\xC2\xA0Wh</td>"
                       "<td class=\"n\">17.3\xC2\xA0Wh</td><td class=\"n\">16.5\xC2\xA0Wh to "
