@@ -70,8 +70,8 @@ inline constexpr std::size_t kMinFragmentCandidates = 10;
 /// least as deep, for shorter intervals (hours) those within kDepthFactor of it either way
 /// (depth_matches). This project's rule, not the papers': with a short calibration record an
 /// interval's k nearest in a narrow window may lie far from it in depth, and a pattern scaled far
-/// up or down is not the pattern of an interval that deep (README, "How far to trust a
-/// disaggregated record"). It serves the aim of Westra et al. (2012), who pool the fragments of
+/// up or down is not the pattern of an interval that deep (docs/disaggregation-accuracy.md). It
+/// serves the aim of Westra et al. (2012), who pool the fragments of
 /// nearby gauges so that similar days exist (as remembered); here the season window widens
 /// instead:
 /// - for whole days no further than ±61 days, so that a deep day keeps its season (widened to
@@ -100,9 +100,9 @@ inline constexpr double kDepthFactor = 1.25;
 /// intensity between the priming flow and the siphon's capacity for hours, where each filling
 /// makes a cycle (10-year frontal record, one realization: the 141 days of 5 mm or more whose
 /// pattern was scaled up by more than 1.5 made 734 siphon cycles where the 1-minute record made
-/// 377 on them; README, "How far to trust a disaggregated record"). Measured with
-/// tools/accuracy for 1.25, 1.5, 2 and 3 (daily rows, three calibration years); 2 is the one
-/// whose daily cycle errors with `other` and `other-2` all fell or stayed (the only one).
+/// 377 on them; docs/disaggregation-accuracy.md). Measured with tools/accuracy for 1.25, 1.5, 2 and
+/// 3 (daily rows, three calibration years); 2 is the one whose daily cycle errors with `other` and
+/// `other-2` all fell or stayed (the only one).
 inline constexpr double kMaxDayScaleUp = 2.0;
 
 /// Whether a library interval of `library_m` may spread an interval of `depth_m` shorter than a
@@ -116,8 +116,8 @@ std::vector<double> knn_weights(std::size_t k);
 /// How far (as a factor either way) the first step of a fragment, scaled to the interval's depth,
 /// may lie from the last step of the wet interval before it, as spread, for choose_fragment to
 /// prefer it. This project's rule, not from the papers: each interval drawing its own pattern
-/// cut the storms' harder spells at the interval edges (README, "How far to trust a
-/// disaggregated record"); the factor 2 was measured against 1.5 and the best match
+/// cut the storms' harder spells at the interval edges (docs/disaggregation-accuracy.md); the
+/// factor 2 was measured against 1.5 and the best match
 /// (tools/accuracy, common practice, no source).
 inline constexpr double kEdgeRatio = 2.0;
 
