@@ -564,18 +564,20 @@ void write_summary_json(std::ostream& out, const Scenario& sc, const RainSeries&
       return json{
           {"p10", round_to(x.p10, 6)}, {"p50", round_to(x.p50, 6)}, {"p90", round_to(x.p90, 6)}};
     };
+    // Each metric's spread (kRealizationColumns) into `into`.
+    const auto spreads = [&](const RealizationSpread& z, json& into) {
+      for (const RealizationColumn& c : kRealizationColumns) into[c.key] = spread(z.*(c.spread));
+    };
     const RealizationSpread& z = *realizations;
     json& block = j["realizations"];
     block = {{"n", z.n},
              {"seeds", {z.first_seed, z.first_seed + (z.n - 1)}},
              {"percentiles", kPercentileDefinition}};
-    for (const RealizationColumn& c : kRealizationColumns) block[c.key] = spread(z.*(c.spread));
+    spreads(z, block);
     if (resampled) {
       json& more = block["calibration_resampled"];
       more = {{"n", resampled->n}, {"resampled", kCalibrationResample}};
-      for (const RealizationColumn& c : kRealizationColumns) {
-        more[c.key] = spread(resampled->*(c.spread));
-      }
+      spreads(*resampled, more);
     }
   }
   // File names and --set values may hold any bytes: those that are not UTF-8 are shown as U+FFFD.
@@ -658,32 +660,30 @@ void print_summary_table(std::ostream& out, const Scenario& sc, const RainSeries
       share ? "%" : "");
   if (realizations) {
     const RealizationSpread& z = *realizations;
-    const RealizationMetrics own = realization_metrics(r);
+    const RealizationMetrics own_metrics = realization_metrics(r);
+    // A row for each metric: this run's figure when `own`, then the spread's median and range.
+    const auto rows = [&](const RealizationSpread& spread, const RealizationMetrics* own) {
+      for (const RealizationColumn& c : kRealizationColumns) {
+        const Spread& x = spread.*(c.spread);
+        const auto in = [&](double v) {
+          return detail::on_terminal(column_value(units, c.key, v));
+        };
+        out << "  " << std::left << std::setw(34) << c.label << std::right << std::setw(14)
+            << (own ? in(own->*(c.value)) : "") << std::setw(10) << in(x.p50) << std::setw(10)
+            << in(x.p10) << " to " << std::left << std::setw(9) << in(x.p90) << std::right
+            << unit_in(units, c.unit) << '\n';
+      }
+    };
     out << " realizations: " << z.n << " disaggregations of the record (seeds " << z.first_seed
         << " to " << z.first_seed + (z.n - 1) << "; this run is the first)\n";
     out << "  " << std::string(34, ' ') << "      this run    median      P10 to P90\n";
-    for (const RealizationColumn& c : kRealizationColumns) {
-      const Spread& x = z.*(c.spread);
-      const auto in = [&](double v) { return detail::on_terminal(column_value(units, c.key, v)); };
-      out << "  " << std::left << std::setw(34) << c.label << std::right << std::setw(14)
-          << in(own.*(c.value)) << std::setw(10) << in(x.p50) << std::setw(10) << in(x.p10)
-          << " to " << std::left << std::setw(9) << in(x.p90) << std::right
-          << unit_in(units, c.unit) << '\n';
-    }
+    rows(z, &own_metrics);
     out << "  (P10, median and P90 of the " << z.n << " runs: " << kPercentileDefinition << ")\n";
     if (resampled) {
       out << " with the calibration record resampled: " << resampled->n
           << " more runs with the same seeds, each on\n  " << kCalibrationResample << "\n";
       out << "  " << std::string(34, ' ') << "                median      P10 to P90\n";
-      for (const RealizationColumn& c : kRealizationColumns) {
-        const Spread& x = resampled->*(c.spread);
-        const auto in = [&](double v) {
-          return detail::on_terminal(column_value(units, c.key, v));
-        };
-        out << "  " << std::left << std::setw(34) << c.label << std::right << std::setw(24)
-            << in(x.p50) << std::setw(10) << in(x.p10) << " to " << std::left << std::setw(9)
-            << in(x.p90) << std::right << unit_in(units, c.unit) << '\n';
-      }
+      rows(*resampled, nullptr);
       out << "  (the range to quote: it holds what one short calibration record leaves unknown\n"
              "  as well as the draws, and is still the least the estimate is unsure by: README,\n"
              "  \"How sure the range is\")\n";

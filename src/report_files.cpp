@@ -466,18 +466,25 @@ Summary read_summary(const fs::path& path) {
   };
   if (find_key(root, "realizations") != nullptr) {
     // The spreads, by the keys kRealizationColumns (realizations.hpp) defines.
-    const auto spreads = [&](const std::string& block, std::vector<Spread>& into) {
+    const auto set_at = [&](const std::string& block) {
+      RealizationSet set;
+      set.n = json_number(root, block + ".n", file);
       for (const RealizationColumn& c : kRealizationColumns) {
         const std::string key = block + "." + std::string(c.key) + ".";
-        into.push_back({json_number(root, key + "p10", file), json_number(root, key + "p50", file),
-                        json_number(root, key + "p90", file)});
+        set.spreads.push_back({json_number(root, key + "p10", file),
+                               json_number(root, key + "p50", file),
+                               json_number(root, key + "p90", file)});
       }
+      return set;
     };
     RealizationRanges& r = s.realizations.emplace();
-    r.n = json_number(root, "realizations.n", file);
-    spreads("realizations", r.draws);
-    r.resampled_n = json_optional_number(root, "realizations.calibration_resampled.n", file);
-    if (r.resampled_n) spreads("realizations.calibration_resampled", r.resampled);
+    for (const RealizationColumn& c : kRealizationColumns) {
+      r.own.push_back(json_number(root, std::string(summary_number(c.summary_key).key), file));
+    }
+    r.draws = set_at("realizations");
+    if (find_key(root, "realizations.calibration_resampled") != nullptr) {
+      r.resampled = set_at("realizations.calibration_resampled");
+    }
   }
   if (!strings("warnings.run", s.run_warnings)) strings("rain.warnings", s.run_warnings);
   strings("warnings.design", s.design_warnings);

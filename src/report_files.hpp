@@ -125,13 +125,19 @@ struct MonthRow {
   double rain_mm = 0.0, energy_Wh = 0.0, overflow_L = 0.0, cycles = 0.0;
 };
 
-/// summary.json's `realizations` block: the spread of each metric (kRealizationColumns, in that
-/// order) over the realizations, and with the calibration record resampled when it was.
-struct RealizationRanges {
+/// A set of realizations in summary.json: how many, and the spread of each metric
+/// (kRealizationColumns, in that order).
+struct RealizationSet {
   double n = 0;
-  std::vector<Spread> draws;
-  std::optional<double> resampled_n;
-  std::vector<Spread> resampled;  ///< empty unless resampled_n
+  std::vector<Spread> spreads;
+};
+
+/// summary.json's `realizations` block, and the run's own figure of each metric
+/// (kRealizationColumns' summary_key, in that order).
+struct RealizationRanges {
+  std::vector<double> own;
+  RealizationSet draws;
+  std::optional<RealizationSet> resampled;  ///< with the calibration record resampled
 };
 
 /// The keys of summary.json the page shows.

@@ -90,7 +90,7 @@ std::string headline_section(const Run& run) {
       share(s.through_nozzle_L) + ") passed the nozzle, " + quantity(run.units, overflow_L, "L") +
       " (" + share(overflow_L) + ") overflowed and " + quantity(run.units, s.dribble_L, "L") +
       " (" + share(s.dribble_L) + ") dribbled through at low head." +
-      (s.realizations ? " This is the first of " + pretty(s.realizations->n) +
+      (s.realizations ? " This is the first of " + pretty(s.realizations->draws.n) +
                             " disaggregations of the record: their median and range, the figures "
                             "to quote, are under <a href=\"#range\">How sure</a>."
                       : std::string()) +
@@ -171,33 +171,22 @@ std::string range_section(const Run& run) {
   const Summary& s = run.summary;
   if (!s.realizations) return "";
   const RealizationRanges& r = *s.realizations;
-
   const auto value = [&](const RealizationColumn& c, double v) {
     return c.unit == "L"    ? quantity(run.units, v, "L")
            : c.unit.empty() ? pretty(v)
                             : with_unit(v, std::string(c.unit).c_str());
   };
-  // This run's own value of each metric of kRealizationColumns.
-  const std::pair<std::string_view, double> own[] = {
-      {"energy_Wh", s.electrical_Wh},
-      {"cycles", s.cycles},
-      {"reservoir_overflow_L", s.reservoir_overflow_L},
-      {"dribble_L", s.dribble_L}};
-  const auto own_value = [&](const RealizationColumn& c) {
-    const auto* at = std::find_if(std::begin(own), std::end(own),
-                                  [&](const auto& o) { return o.first == c.key; });
-    return at == std::end(own) ? std::string("-") : value(c, at->second);
-  };
   const auto range = [&](const RealizationColumn& c, const Spread& x) {
     return value(c, x.p10) + " to " + value(c, x.p90);
   };
-  const bool resampled = r.resampled_n.has_value();
+  const bool resampled = r.resampled.has_value();
   std::string body =
-      "<section id=\"range\">\n<h2>How sure</h2>\n<p>The record was disaggregated " + pretty(r.n) +
+      "<section id=\"range\">\n<h2>How sure</h2>\n<p>The record was disaggregated " +
+      pretty(r.draws.n) +
       " times, each with its own seed; this page shows the first. The median and the P10 to P90 "
       "range of those runs spread the draws only.";
   if (resampled) {
-    body += " " + pretty(*r.resampled_n) +
+    body += " " + pretty(r.resampled->n) +
             " more runs, with the same seeds, each drew on a resample of the calibration record's "
             "wet spells: their range also holds what one short calibration record leaves unknown, "
             "and is <strong>the range to quote</strong>. Measured against long invented records, "
@@ -215,12 +204,14 @@ std::string range_section(const Run& run) {
   body += "</tr></thead>\n<tbody>\n";
   for (std::size_t i = 0; i < std::size(kRealizationColumns); ++i) {
     const RealizationColumn& c = kRealizationColumns[i];
-    body += "<tr><td>" + std::string(c.label) + "</td><td class=\"n\">" + own_value(c) +
-            "</td><td class=\"n\">" + value(c, r.draws[i].p50) + "</td><td class=\"n\">" +
-            range(c, r.draws[i]) + "</td>";
+    const Spread& draws = r.draws.spreads[i];
+    body += "<tr><td>" + std::string(c.label) + "</td><td class=\"n\">" + value(c, r.own[i]) +
+            "</td><td class=\"n\">" + value(c, draws.p50) + "</td><td class=\"n\">" +
+            range(c, draws) + "</td>";
     if (resampled) {
-      body += "<td class=\"n\">" + value(c, r.resampled[i].p50) + "</td><td class=\"n\">" +
-              range(c, r.resampled[i]) + "</td>";
+      const Spread& more = r.resampled->spreads[i];
+      body += "<td class=\"n\">" + value(c, more.p50) + "</td><td class=\"n\">" + range(c, more) +
+              "</td>";
     }
     body += "</tr>\n";
   }

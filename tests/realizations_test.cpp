@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <atomic>
 #include <thread>
+#include <utility>
 #include <vector>
 
 #include "gutterwatt/disaggregation.hpp"
@@ -190,6 +191,16 @@ TEST(Realizations, AResampledRealizationDrawsOnItsOwnResampleOfTheCalibration) {
     expected_how.fragments = {resample_spells(library, resample_seed(11 + k))};
     const RainSeries expected = disaggregate(as_read, expected_how);
     const RainSeries record = realization_record(as_read, s.rain.disaggregate, k, true);
+    // Whatever the resample, each hour keeps its depth exactly: 3, 6 and 10 mm (hourly_record).
+    const std::pair<Instant, double> hours[] = {
+        {kStart + 3600, 3e-3}, {kStart + 7200, 6e-3}, {kStart + 14400, 10e-3}};
+    for (const auto& [start, depth_m] : hours) {
+      double sum = 0.0;
+      for (const RainPulse& p : record.pulses) {
+        if (p.start >= start && p.end <= start + 3600) sum += p.depth_m;
+      }
+      EXPECT_EQ(sum, depth_m) << k << ' ' << start;
+    }
     ASSERT_EQ(record.pulses.size(), expected.pulses.size()) << k;
     for (std::size_t i = 0; i < record.pulses.size(); ++i) {
       EXPECT_EQ(record.pulses[i].start, expected.pulses[i].start) << k << ' ' << i;

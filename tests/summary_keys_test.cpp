@@ -10,6 +10,7 @@
 #include <string>
 
 #include "gutterwatt/output.hpp"
+#include "gutterwatt/realizations.hpp"
 #include "gutterwatt/simulation.hpp"
 #include "report_files.hpp"
 #include "test_support.hpp"
@@ -23,12 +24,23 @@ using test_support::kLitre_m3;
 using test_support::kPerMinute;
 using test_support::make_scenario;
 
-TEST(SummaryKeys, TheReaderGetsBackWhatTheWriterWrote) {
+// A two-hour run whose siphon cycles: 6 L/min from a reservoir starting at its break level.
+Scenario cycling_scenario() {
   Scenario s = make_scenario(2.0 * 3600.0, 600.0);
   s.reservoir.initial_level_m = s.release.break_level_m;
-  const RainSeries rain = constant_inflow(s, 6.0 * kLitre_m3 * kPerMinute);
-  SummaryBuilder summary(s);
-  const RunResult r = simulate(s, rain, summary);
+  return s;
+}
+
+struct CyclingRun {
+  Scenario s = cycling_scenario();
+  RainSeries rain = constant_inflow(s, 6.0 * kLitre_m3 * kPerMinute);
+  SummaryBuilder summary{s};
+  RunResult r = simulate(s, rain, summary);
+};
+
+TEST(SummaryKeys, TheReaderGetsBackWhatTheWriterWrote) {
+  const CyclingRun run;
+  const auto& [s, rain, summary, r] = run;
   ASSERT_GT(r.cycles, 0);
   const fs::path dir = fs::temp_directory_path() /
                        ("gutterwatt-summary-keys-" +
@@ -67,6 +79,20 @@ TEST(SummaryKeys, TheReaderGetsBackWhatTheWriterWrote) {
   EXPECT_EQ(read.cycles, static_cast<double>(r.cycles));
   EXPECT_EQ(read.run_warnings, warnings.run);
   EXPECT_EQ(read.design_warnings, warnings.design);
+}
+
+// Each realization metric names its figure in summary.json (the report shows it as "this run"
+// beside the spread): a key of the table, whose value is the run's own metric.
+TEST(SummaryKeys, EveryRealizationMetricNamesItsFigureInTheTable) {
+  const CyclingRun run;
+  ASSERT_GT(run.r.cycles, 0);
+  const SummaryInputs in{run.s, run.r, run.summary};
+  const RunResult& r = run.r;
+  const RealizationMetrics metrics = realization_metrics(r);
+  // summary.json keeps six decimals: the two agree to half of the last one.
+  for (const RealizationColumn& c : kRealizationColumns) {
+    EXPECT_NEAR(summary_number(c.summary_key).value(in), metrics.*(c.value), 5e-7) << c.key;
+  }
 }
 
 TEST(SummaryKeys, EveryKeyIsOnceInTheTable) {

@@ -26,7 +26,6 @@ import argparse
 import array
 import datetime as dt
 import os
-import random
 import sys
 
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
@@ -39,22 +38,13 @@ NEARBY_FIRST_DAY = dt.date(2025, 1, 1)
 STEP_MIN = 5
 
 
-def minute_counts(seed, first_day, years):
-    """Hundredths of a millimetre per minute over `years` years from `first_day`, as
-    tools/make_long_rain.py draws them."""
-    last_day = dt.date(first_day.year + years, 1, 1)
-    n_minutes = (last_day - first_day).days * long_rain.MINUTES_PER_DAY
-    depth, _ = long_rain.make_storms(random.Random(seed), n_minutes)
-    return long_rain.gauge_counts(depth)
-
-
 def main():
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--out-dir", default=os.path.join(ROOT, "data", "demo"))
     args = parser.parse_args()
     os.makedirs(args.out_dir, exist_ok=True)
     site = long_rain.SITE
-    decade = minute_counts(DECADE_SEED, long_rain.FIRST_DAY, long_rain.YEARS)
+    decade, _ = long_rain.draw_years(DECADE_SEED, long_rain.YEARS)
     daily = os.path.join(args.out_dir, "decade-daily.csv")
     long_rain.write_totals(
         daily, decade, long_rain.MINUTES_PER_DAY,
@@ -64,7 +54,7 @@ def main():
     nearby = array.array("l")
     for k, seed in enumerate(NEARBY_SEEDS):
         first_day = NEARBY_FIRST_DAY.replace(year=NEARBY_FIRST_DAY.year + k)
-        nearby += minute_counts(seed, first_day, 1)
+        nearby += long_rain.draw_years(seed, 1, first_day)[0]
     start = dt.datetime.combine(NEARBY_FIRST_DAY, dt.time())
     fine = os.path.join(args.out_dir, "nearby-gauge-5min.csv")
     long_rain.write_totals(

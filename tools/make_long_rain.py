@@ -160,6 +160,15 @@ def gauge_counts(depth_mm):
     return counts
 
 
+def draw_years(seed, years, first_day=FIRST_DAY, climate=None):
+    """(hundredths of a millimetre per minute, storms by kind) over `years` whole years from
+    `first_day` (a 1 January), drawn with `seed` by the storm model and the gauge above."""
+    last_day = dt.date(first_day.year + years, 1, 1)
+    n_minutes = (last_day - first_day).days * MINUTES_PER_DAY
+    depth, kinds = make_storms(random.Random(seed), n_minutes, climate)
+    return gauge_counts(depth), kinds
+
+
 def write_record(path, counts, first_day, comment):
     """Writes the CSV through a temporary name, one stamp-day at a time, after `comment`."""
     n = len(counts)
@@ -219,11 +228,7 @@ def main():
     parser.add_argument("--years", type=int, default=YEARS)
     args = parser.parse_args()
 
-    last_day = dt.date(FIRST_DAY.year + args.years, 1, 1)
-    n_minutes = (last_day - FIRST_DAY).days * MINUTES_PER_DAY
-    rng = random.Random(args.seed)
-    depth, kinds = make_storms(rng, n_minutes)
-    counts = gauge_counts(depth)
+    counts, kinds = draw_years(args.seed, args.years)
     os.makedirs(os.path.dirname(os.path.abspath(args.out)), exist_ok=True)
     write_record(args.out, counts, FIRST_DAY,
                  f"invented rain, not measured: {SITE}, tools/make_long_rain.py seed {args.seed}")

@@ -71,9 +71,8 @@ inline constexpr std::size_t kMinFragmentCandidates = 10;
 /// (depth_matches). This project's rule, not the papers': with a short calibration record an
 /// interval's k nearest in a narrow window may lie far from it in depth, and a pattern scaled far
 /// up or down is not the pattern of an interval that deep (docs/disaggregation-accuracy.md). It
-/// serves the aim of Westra et al. (2012), who pool the fragments of
-/// nearby gauges so that similar days exist (as remembered); here the season window widens
-/// instead:
+/// serves the aim of Westra et al. (2012), who pool the fragments of nearby gauges so that
+/// similar days exist (as remembered); here the season window widens instead:
 /// - for whole days no further than ±61 days, so that a deep day keeps its season (widened to
 ///   the whole year, the small accuracy test's seasonal year took other seasons' patterns);
 /// - for shorter intervals to the whole year if need be, then kDepthFactor widens (multiplied by
@@ -87,11 +86,12 @@ inline constexpr std::size_t kMinFragmentCandidates = 10;
 inline constexpr std::size_t kMinDepthMatches = 2;
 
 /// How far (as a factor either way) the depth of a library interval may lie from that of an
-/// interval shorter than a day for its pattern to spread it, before widening (kMinDepthMatches).
-/// This project's choice, no published value: measured with tools/accuracy (hourly rows, three
-/// calibration years, README) for factors 1.05 to 4, whose errors differed by a point or two;
-/// from 1.3 up the frontal hourly energy with the calibration year misses (−16 % to
-/// −19 %), and 1.25 had the smallest summed error over the twelve rows.
+/// interval shorter than a day for its pattern to spread it, before widening
+/// (kMinDepthMatches). This project's choice, no published value: measured with tools/accuracy
+/// (hourly rows, three calibration years, docs/disaggregation-accuracy.md) for factors 1.05 to
+/// 4, whose errors differed by a point or two; from 1.3 up the frontal hourly energy with the
+/// issue's calibration year misses (−16 % to −19 %), and 1.25 had the smallest summed error
+/// over the twelve rows.
 inline constexpr double kDepthFactor = 1.25;
 
 /// For whole days, the most a library day's pattern is scaled up: the draw is among the
@@ -117,8 +117,8 @@ std::vector<double> knn_weights(std::size_t k);
 /// may lie from the last step of the wet interval before it, as spread, for choose_fragment to
 /// prefer it. This project's rule, not from the papers: each interval drawing its own pattern
 /// cut the storms' harder spells at the interval edges (docs/disaggregation-accuracy.md); the
-/// factor 2 was measured against 1.5 and the best match
-/// (tools/accuracy, common practice, no source).
+/// factor 2 was measured against 1.5 and the best match (tools/accuracy, common practice, no
+/// source).
 inline constexpr double kEdgeRatio = 2.0;
 
 /// Whole-spell matching (this project's extension of the method of fragments): for a wet spell

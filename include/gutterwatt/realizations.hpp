@@ -102,15 +102,19 @@ struct RealizationColumn {
   std::string_view unit;
   double RealizationMetrics::*value;
   Spread RealizationSpread::*spread;
+  /// The same figure of the run itself in summary.json (a key of summary_numbers()).
+  std::string_view summary_key;
 };
 
 inline constexpr RealizationColumn kRealizationColumns[] = {
     {"energy_Wh", "electrical (generator out)", "Wh", &RealizationMetrics::energy_Wh,
-     &RealizationSpread::energy_Wh},
-    {"cycles", "siphon cycles", "", &RealizationMetrics::cycles, &RealizationSpread::cycles},
+     &RealizationSpread::energy_Wh, "energy_Wh.electrical"},
+    {"cycles", "siphon cycles", "", &RealizationMetrics::cycles, &RealizationSpread::cycles,
+     "siphon.cycles"},
     {"reservoir_overflow_L", "reservoir overflow", "L", &RealizationMetrics::reservoir_overflow_L,
-     &RealizationSpread::reservoir_overflow_L},
-    {"dribble_L", "dribble", "L", &RealizationMetrics::dribble_L, &RealizationSpread::dribble_L},
+     &RealizationSpread::reservoir_overflow_L, "water_L.reservoir_overflow"},
+    {"dribble_L", "dribble", "L", &RealizationMetrics::dribble_L, &RealizationSpread::dribble_L,
+     "water_L.dribble"},
 };
 
 /// The spread of `runs` (at least one), realization k having used seed `first_seed + k`.
