@@ -50,10 +50,15 @@ double self_discharge_rate_per_s(const BatteryConfig& config) {
 
 BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, double energy_J,
                            const BatteryConfig& config) {
+  return battery_flows(mode, input_W, load_W, energy_J, config, self_discharge_rate_per_s(config));
+}
+
+BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, double energy_J,
+                           const BatteryConfig& config, double self_discharge_per_s) {
   // Energy bookkeeping of a charge controller without Peukert effects (REFERENCES.md section
   // 10): dE/dt = eta_c P_accepted - P_drawn / eta_d - k E.
   BatteryFlows f;
-  f.self_discharge_W = self_discharge_rate_per_s(config) * std::max(0.0, energy_J);
+  f.self_discharge_W = self_discharge_per_s * std::max(0.0, energy_J);
   const double surplus_W = input_W - load_W;
   if (mode == BatteryMode::empty) {
     // The load is disconnected: the whole input goes to recharging (a low-voltage disconnect

@@ -15,6 +15,8 @@ ChainSystem::ChainSystem(const Scenario& scenario)
       plant_(plant_config(scenario)),
       release_(make_release(scenario.release)),
       trickle_volume_m3_(plant_.column_area_m2() * kTrickleHead_m),
+      trickle_flow_m3_per_s_(plant_.column_nozzle_flow_m3_per_s(trickle_volume_m3_)),
+      self_discharge_per_s_(self_discharge_rate_per_s(scenario.battery)),
       pipe_volume_m3_(circle_area_m2(scenario.drop_pipe.diameter_m) * scenario.drop_pipe.length_m) {
 }
 
@@ -99,7 +101,8 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
   // Turbine, generator, battery.
   r.power = plant_.power(r.nozzle, r.head_m);
   r.electrical_W = m.generator_on ? r.power.electrical_W : 0.0;
-  r.battery = battery_flows(m.battery, r.electrical_W, f.load_W, x[kBattery], sc_.battery);
+  r.battery = battery_flows(m.battery, r.electrical_W, f.load_W, x[kBattery], sc_.battery,
+                            self_discharge_per_s_);
   d[kBattery] = r.battery.charge_W;
   d[kJet] = r.power.jet_W;
   d[kShaft] = r.power.shaft_W;
@@ -139,7 +142,7 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
   g[kGuardOverflow] =
       m.overflowing ? r.level_m - rim - 0.5 * kHoldHead_m : rim + kHoldHead_m - r.level_m;
   if (plant_.has_column()) {
-    const double q_lin = plant_.column_nozzle_flow_m3_per_s(trickle_volume_m3_);
+    const double q_lin = trickle_flow_m3_per_s_;
     switch (m.column) {
       case ColumnMode::trickle:
         g[kGuardColumn] = q_lin - r.release;

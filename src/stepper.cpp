@@ -1,12 +1,13 @@
 #include "gutterwatt/stepper.hpp"
 
 #include <algorithm>
-#include <boost/numeric/odeint.hpp>
+#include <boost/numeric/odeint/stepper/runge_kutta4.hpp>
 #include <cmath>
 #include <limits>
 #include <sstream>
 #include <utility>
 
+#include "gutterwatt/dormand_prince.hpp"
 #include "gutterwatt/error.hpp"
 
 namespace gutterwatt {
@@ -19,16 +20,12 @@ namespace odeint = boost::numeric::odeint;
 // water less the roof's inflow since the segment began (Stepper::to_solver); its error is judged
 // against the water itself, `offset_m3` (that inflow at the step's start) added back.
 struct ScaledErrorChecker {
-  using value_type = double;
-  using algebra_type = odeint::array_algebra;
-  using operations_type = odeint::default_operations;
-
   double rtol = 1e-6;
   ChainState scale{};
   const double* offset_m3 = nullptr;
 
-  template <class S, class D, class E, class T>
-  double error(algebra_type&, const S& x_old, const D& dxdt_old, E& x_err, T dt) const {
+  double operator()(const ChainState& x_old, const ChainState& dxdt_old, const ChainState& x_err,
+                    double dt) const {
     double worst = 0.0;
     for (std::size_t i = 0; i < kSlots; ++i) {
       const double size = i == kReservoir ? std::abs(x_old[i] + *offset_m3) : std::abs(x_old[i]);
@@ -39,11 +36,7 @@ struct ScaledErrorChecker {
   }
 };
 
-using BaseStepper =
-    odeint::runge_kutta_dopri5<ChainState, double, ChainState, double, odeint::array_algebra>;
-using Controlled = odeint::controlled_runge_kutta<BaseStepper, ScaledErrorChecker,
-                                                  odeint::default_step_adjuster<double, double>>;
-using Dense = odeint::dense_output_runge_kutta<Controlled>;
+using Dense = DormandPrince<kSlots, ScaledErrorChecker>;
 
 // Largest solver step while it rains: a switch that happens and un-happens within one step would
 // be missed, and rain can start and stop an overflow within minutes.
@@ -180,35 +173,25 @@ void Stepper::evaporate_at_rest(double dt, const Forcing& f) {
 
 void Stepper::integrate(double t0, double t1, const Forcing& f) {
   // The last stage of a Dormand-Prince step is evaluated at the step's end state (FSAL); keeping
-  // it spares the guard evaluation there a second call of the whole chain. The stage's time tells
-  // it apart: odeint evaluates it last, at the time the step ends.
-  // After a restart odeint first asks for the derivative at the state it starts from, which the
-  // engine has just computed (settling the modes, or as the last stage of the step before):
-  // `known` hands it over instead of a second evaluation.
+  // its rates spares the guard evaluation there a second call of the whole chain. The stage's
+  // time tells it apart: it is evaluated last, at the time the step ends.
+  // After a restart the stepper is handed the derivative at the state it starts from, which the
+  // engine has just computed (settling the modes, or as the last stage of the step before).
   ChainRates last;
   double last_t = std::numeric_limits<double>::quiet_NaN();
-  const ChainState* last_dxdt = nullptr;  // odeint's buffer holding the last derivative
-  bool known = false;
-  ChainState known_dxdt{};
   const RoofSpan& roof = *roof_;
   const auto system = [&](const ChainState& w, ChainState& dxdt, double t) {
-    if (known) {
-      known = false;
-      dxdt = known_dxdt;
-    } else {
-      ChainState x = w;
-      x[kReservoir] += roof.to_reservoir_m3(t);
-      system_.rates(x, mode_, f, last, dxdt);
-    }
+    ChainState x = w;
+    x[kReservoir] += roof.to_reservoir_m3(t);
+    system_.rates(x, mode_, f, last, dxdt);
     last_t = t;
-    last_dxdt = &dxdt;
   };
   const double span = t1 - t0;
   double t = 0.0;  // time within the segment, for precision
   const double max_step = f.rain_m_per_s > 0.0 ? kMaxWetStep_s : kMaxDryStep_s;
   double offset_m3 = 0.0;
   const ScaledErrorChecker checker{system_.scenario().simulation.rtol, error_scale_, &offset_m3};
-  Dense stepper(Controlled(checker, odeint::default_step_adjuster<double, double>(max_step)));
+  Dense stepper(kReadSlots, checker, max_step);
   bool fresh = true;
   long segment_steps = 0;
   Guards g_prev{};
@@ -219,21 +202,21 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       trace_now(f);
     }
     if (fresh) {
-      last = settle(f, g_prev, known_dxdt);
+      ChainState dxdt;
+      last = settle(f, g_prev, dxdt);
       ledger_.update_peaks(last);
-      stepper.initialize(to_solver(x_, t), t, std::min(last_step_s_, span - t));
-      known = true;
+      stepper.initialize(to_solver(x_, t), t, std::min(last_step_s_, span - t), &dxdt);
       fresh = false;
     } else if (stepper.current_time() + stepper.current_time_step() > span) {
-      known = last_t == t && last_dxdt != nullptr;
-      if (known) known_dxdt = *last_dxdt;
-      stepper.initialize(to_solver(x_, t), t, span - t);
+      // The last stage of the step just taken is the derivative here.
+      const ChainState dxdt = stepper.current_deriv();
+      stepper.initialize(to_solver(x_, t), t, span - t, &dxdt);
     }
     offset_m3 = roof.to_reservoir_m3(t);
     std::pair<double, double> step;
     try {
       step = stepper.do_step(system);
-    } catch (const odeint::odeint_error& e) {
+    } catch (const StepSizeError& e) {
       fail(std::string("the solver made no progress (") + e.what() + ")", t0 + t);
     }
     ++stats_.steps;
@@ -322,7 +305,8 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     } else {
       g_prev = g_end;
       if (t == span && fsal_end) {
-        step_end_ = StepEnd{true, x_, mode_, f.load_W, f.evaporation_m_per_s, r, *last_dxdt, g_end};
+        step_end_ = StepEnd{
+            true, x_, mode_, f.load_W, f.evaporation_m_per_s, r, stepper.current_deriv(), g_end};
       }
       if (step.second > span) break;
     }

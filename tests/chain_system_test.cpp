@@ -2,6 +2,8 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
+
 #include "test_support.hpp"
 
 namespace gutterwatt::chain_system_test {
@@ -63,6 +65,45 @@ TEST(ChainSystem, AtRestWhileTheRainCannotLiftTheLevelToTheLip) {
   ChainMode overflowing;
   overflowing.overflowing = true;
   EXPECT_LT(system.rest_capacity_m3(x, overflowing), 0.0);
+}
+
+TEST(ChainSystem, RatesAndGuardsReadOnlyTheReadSlots) {
+  // The solver forms its intermediate stages for kReadSlots alone (dormand_prince.hpp): every
+  // other slot may hold anything there. Changing them all must change no rate and no guard, in
+  // every mode of the release, the column, the generator and the battery.
+  Scenario sc = make_scenario();
+  sc.head_column = HeadColumnConfig{0.12, 3.0};
+  sc.battery.self_discharge_per_month = 0.03;
+  const ChainSystem system(sc);
+  const Forcing f{kRain_m_per_s, 0.2, 1e-8};
+  for (ReleaseState release : {ReleaseState::idle, ReleaseState::dribble, ReleaseState::running}) {
+    for (ColumnMode column : {ColumnMode::trickle, ColumnMode::partial, ColumnMode::full}) {
+      for (bool on : {false, true}) {
+        for (BatteryMode battery : {BatteryMode::normal, BatteryMode::full, BatteryMode::empty}) {
+          const ChainMode m{release, on, column, on, battery};
+          ChainState x{};
+          x[kReservoir] = kPlan_m2 * 0.055;
+          x[kColumn] = 0.2 * system.plant().column_area_m2();
+          x[kBattery] = 0.6 * sc.battery.capacity_J;
+          ChainState y = x;
+          for (std::size_t i = 0; i < kSlots; ++i) {
+            if (std::find(kReadSlots.begin(), kReadSlots.end(), i) == kReadSlots.end()) {
+              y[i] = 1e3 + static_cast<double>(i);
+            }
+          }
+          ChainRates rx, ry;
+          ChainState dx, dy;
+          system.rates(x, m, f, rx, dx);
+          system.rates(y, m, f, ry, dy);
+          EXPECT_EQ(dx, dy);
+          Guards gx, gy;
+          system.guards(x, m, f, rx, gx);
+          system.guards(y, m, f, ry, gy);
+          EXPECT_EQ(gx, gy);
+        }
+      }
+    }
+  }
 }
 
 }  // namespace

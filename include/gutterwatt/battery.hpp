@@ -77,6 +77,10 @@ struct BatteryFlows {
 /// is served and the whole input charges the battery, up to `max_charge_W`.
 BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, double energy_J,
                            const BatteryConfig& config);
+/// The same with the self-discharge rate constant given (self_discharge_rate_per_s(config),
+/// worked out once by a caller on the solver's hot path).
+BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, double energy_J,
+                           const BatteryConfig& config, double self_discharge_per_s);
 
 /// The mode a battery holding `energy_J` is in when offered `input_W` against `load_W`, after
 /// `before`: full at capacity when the charge it can take offsets its self-discharge; cut

@@ -46,6 +46,11 @@ enum Slot : std::size_t {
 
 using ChainState = std::array<double, kSlots>;
 
+/// The only slots ChainSystem::rates and ChainSystem::guards read: the storages the solver
+/// steps. The others are running integrals that nothing reads back, and the roof's stores,
+/// which the stepper sets in closed form.
+inline constexpr std::array<std::size_t, 3> kReadSlots = {kReservoir, kColumn, kBattery};
+
 /// A head column fills and drains (partial), spills over its top (full), or, nearly empty under
 /// a trickle, passes what arrives straight to the nozzle holding its puddle (trickle).
 enum class ColumnMode { trickle, partial, full };
@@ -163,8 +168,10 @@ class ChainSystem {
   std::optional<GutterDelivery> delivery_;  // a level gutter: what it delivers to its outlet
   Plant plant_;
   std::unique_ptr<Release> release_;
-  double trickle_volume_m3_;  // head column: volume at kTrickleHead_m
-  double pipe_volume_m3_;     // the drop pipe's: a release runs full once it has filled
+  double trickle_volume_m3_;      // head column: volume at kTrickleHead_m
+  double trickle_flow_m3_per_s_;  // the nozzle's flow from trickle_volume_m3_
+  double self_discharge_per_s_;   // the battery's self-discharge rate constant
+  double pipe_volume_m3_;         // the drop pipe's: a release runs full once it has filled
 };
 
 }  // namespace gutterwatt

@@ -1,0 +1,197 @@
+#pragma once
+/// The Dormand-Prince 5(4) pair with error control and dense output: the run's solver.
+///
+/// The method is Dormand & Prince (1980), "A family of embedded Runge-Kutta formulae", J. Comput.
+/// Appl. Math. 6(1): a fifth-order solution, a fourth-order estimate for its error, and the last
+/// stage evaluated at the new point, so that it is the next step's first (FSAL). The dense output
+/// is the continuous extension in Hairer, Norsett & Wanner, Solving Ordinary Differential
+/// Equations I (2nd ed., section II.6). The step-size control is the elementary controller of the
+/// same book (II.4): shrink by 0.9 err^(-1/3), at most 5 times, after a rejected step; grow by
+/// 0.9 err^(-1/5), at most 5 times, after an accepted step whose error is under half the
+/// tolerance. These are the formulas and constants of Boost.Odeint's dopri5 dense-output stepper,
+/// written in the same order of operations, so that a run gives the same numbers to the bit.
+///
+/// What it adds: the slots that no right-hand side reads (running integrals of flows) are left
+/// out of the intermediate stages. Their stage values would be computed and never used; they
+/// enter the step's result, its error and the dense output as before.
+
+#include <array>
+#include <cstddef>
+#include <limits>
+#include <span>
+#include <stdexcept>
+#include <string>
+#include <utility>
+
+namespace gutterwatt {
+
+/// The step size could not be made small enough for the error test (kMaxRejectedTries tries).
+class StepSizeError : public std::runtime_error {
+ public:
+  using std::runtime_error::runtime_error;
+};
+
+/// The coefficients of the pair (Dormand & Prince 1980, table 2).
+namespace dopri5 {
+inline constexpr double c2 = 1.0 / 5.0, c3 = 3.0 / 10.0, c4 = 4.0 / 5.0, c5 = 8.0 / 9.0;
+inline constexpr double a21 = 1.0 / 5.0;
+inline constexpr double a31 = 3.0 / 40.0, a32 = 9.0 / 40.0;
+inline constexpr double a41 = 44.0 / 45.0, a42 = -56.0 / 15.0, a43 = 32.0 / 9.0;
+inline constexpr double a51 = 19372.0 / 6561.0, a52 = -25360.0 / 2187.0, a53 = 64448.0 / 6561.0,
+                        a54 = -212.0 / 729.0;
+inline constexpr double a61 = 9017.0 / 3168.0, a62 = -355.0 / 33.0, a63 = 46732.0 / 5247.0,
+                        a64 = 49.0 / 176.0, a65 = -5103.0 / 18656.0;
+/// The fifth-order weights (b2 = b7 = 0).
+inline constexpr double b1 = 35.0 / 384.0, b3 = 500.0 / 1113.0, b4 = 125.0 / 192.0,
+                        b5 = -2187.0 / 6784.0, b6 = 11.0 / 84.0;
+/// The fifth-order less the fourth-order weights: the error estimate.
+inline constexpr double e1 = b1 - 5179.0 / 57600.0, e3 = b3 - 7571.0 / 16695.0,
+                        e4 = b4 - 393.0 / 640.0, e5 = b5 - (-92097.0 / 339200.0),
+                        e6 = b6 - 187.0 / 2100.0, e7 = -1.0 / 40.0;
+}  // namespace dopri5
+
+/// The dense output's weights at `theta` in [0, 1] of a step, for k1, k3, k4, k5, k6 and k7
+/// (k2's is zero).
+std::array<double, 6> dopri5_dense_weights(double theta);
+
+/// The step after a rejected try with error `err` (> 1) and after an accepted one (err <= 1),
+/// at most `max_step`.
+double dopri5_shrink(double dt, double err, double max_step);
+double dopri5_grow(double dt, double err, double max_step);
+
+/// Rejected tries in a row before a step counts as impossible.
+inline constexpr int kMaxRejectedTries = 500;
+
+/// Integrates dx/dt = f(x, t) over an array state, one accepted step at a time, from a state
+/// and optionally its known derivative. `Error` is called as err(x_old, dxdt_old, x_err, dt)
+/// and returns the error relative to the tolerance (accept at <= 1). The system is called as
+/// f(x, dxdt, t) and must read only the slots named in `read`.
+template <std::size_t N, class Error>
+class DormandPrince {
+ public:
+  using State = std::array<double, N>;
+
+  DormandPrince(std::span<const std::size_t> read, Error error, double max_step)
+      : read_(read), error_(std::move(error)), max_step_(max_step) {}
+
+  /// Starts from `x0` at `t0` with a first try of `dt0`; `dxdt0`, when given, is the derivative
+  /// there (else the first step evaluates it).
+  void initialize(const State& x0, double t0, double dt0, const State* dxdt0 = nullptr) {
+    x_[now_] = x0;
+    t_ = t0;
+    dt_ = dt0;
+    have_dxdt_ = dxdt0 != nullptr;
+    if (have_dxdt_) dxdt_[now_] = *dxdt0;
+  }
+
+  /// Takes one accepted step; returns its start and end times. Throws StepSizeError when no
+  /// step size passes the error test.
+  template <class System>
+  std::pair<double, double> do_step(System&& f) {
+    if (!have_dxdt_) {
+      f(x_[now_], dxdt_[now_], t_);
+      have_dxdt_ = true;
+    }
+    t_old_ = t_;
+    for (int tries = 0;; ++tries) {
+      const bool accepted = try_step(f);
+      if (tries >= kMaxRejectedTries) {
+        throw StepSizeError("no step size passed the error test in " +
+                            std::to_string(kMaxRejectedTries + 1) + " tries");
+      }
+      if (accepted) break;
+    }
+    now_ = 1 - now_;  // the try's end becomes the current point; the start is kept for calc_state
+    return {t_old_, t_};
+  }
+
+  /// The dense output of the last step at `t` within it.
+  void calc_state(double t, State& x) const {
+    const State& x0 = x_[1 - now_];
+    const State& k1 = dxdt_[1 - now_];
+    const State& k7 = dxdt_[now_];
+    const double dt = t_ - t_old_;
+    const std::array<double, 6> w = dopri5_dense_weights((t - t_old_) / dt);
+    const double w1 = dt * w[0], w3 = dt * w[1], w4 = dt * w[2], w5 = dt * w[3], w6 = dt * w[4],
+                 w7 = dt * w[5];
+    for (std::size_t i = 0; i < N; ++i) {
+      x[i] = 1.0 * x0[i] + w1 * k1[i] + w3 * k3_[i] + w4 * k4_[i] + w5 * k5_[i] + w6 * k6_[i] +
+             w7 * k7[i];
+    }
+  }
+
+  const State& current_state() const { return x_[now_]; }
+  /// The derivative at the current point (after a step, its last stage).
+  const State& current_deriv() const { return dxdt_[now_]; }
+  double current_time() const { return t_; }
+  double current_time_step() const { return dt_; }
+
+ private:
+  // One try from the current point at t_ with dt_, into the other buffers: on success t_ has
+  // moved (do_step then makes them current); dt_ is the next try's step.
+  template <class System>
+  bool try_step(System& f) {
+    using namespace dopri5;
+    const double dt = dt_;
+    if (dt - max_step_ > std::numeric_limits<double>::epsilon()) {
+      dt_ = max_step_;
+      return false;
+    }
+    const State& x = x_[now_];
+    const State& k1 = dxdt_[now_];
+    State& out = x_[1 - now_];
+    State& k7 = dxdt_[1 - now_];
+    stage_ = x;
+    const auto stage = [&](const auto& combine) {
+      for (std::size_t i : read_) stage_[i] = combine(i);
+    };
+    stage([&](std::size_t i) { return 1.0 * x[i] + dt * a21 * k1[i]; });
+    f(stage_, k2_, t_ + dt * c2);
+    stage([&](std::size_t i) { return 1.0 * x[i] + dt * a31 * k1[i] + dt * a32 * k2_[i]; });
+    f(stage_, k3_, t_ + dt * c3);
+    stage([&](std::size_t i) {
+      return 1.0 * x[i] + dt * a41 * k1[i] + dt * a42 * k2_[i] + dt * a43 * k3_[i];
+    });
+    f(stage_, k4_, t_ + dt * c4);
+    stage([&](std::size_t i) {
+      return 1.0 * x[i] + dt * a51 * k1[i] + dt * a52 * k2_[i] + dt * a53 * k3_[i] +
+             dt * a54 * k4_[i];
+    });
+    f(stage_, k5_, t_ + dt * c5);
+    stage([&](std::size_t i) {
+      return 1.0 * x[i] + dt * a61 * k1[i] + dt * a62 * k2_[i] + dt * a63 * k3_[i] +
+             dt * a64 * k4_[i] + dt * a65 * k5_[i];
+    });
+    f(stage_, k6_, t_ + dt);
+    for (std::size_t i = 0; i < N; ++i) {
+      out[i] = 1.0 * x[i] + dt * b1 * k1[i] + dt * b3 * k3_[i] + dt * b4 * k4_[i] +
+               dt * b5 * k5_[i] + dt * b6 * k6_[i];
+    }
+    f(out, k7, t_ + dt);
+    for (std::size_t i = 0; i < N; ++i) {
+      err_[i] = dt * e1 * k1[i] + dt * e3 * k3_[i] + dt * e4 * k4_[i] + dt * e5 * k5_[i] +
+                dt * e6 * k6_[i] + dt * e7 * k7[i];
+    }
+    const double err = error_(x, k1, err_, dt);
+    if (err > 1.0) {
+      dt_ = dopri5_shrink(dt, err, max_step_);
+      return false;
+    }
+    t_ += dt;
+    dt_ = dopri5_grow(dt, err, max_step_);
+    return true;
+  }
+
+  std::span<const std::size_t> read_;
+  Error error_;
+  double max_step_;
+  // Two points and their derivatives: [now_] the current one, [1 - now_] the last step's start
+  // (after a step) or the try's end (during one).
+  std::array<State, 2> x_{}, dxdt_{};
+  int now_ = 0;
+  State stage_{}, k2_{}, k3_{}, k4_{}, k5_{}, k6_{}, err_{};
+  double t_ = 0.0, t_old_ = 0.0, dt_ = 0.0;
+  bool have_dxdt_ = false;
+};
+
+}  // namespace gutterwatt

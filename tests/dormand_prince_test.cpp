@@ -1,0 +1,163 @@
+#include "gutterwatt/dormand_prince.hpp"
+
+#include <gtest/gtest.h>
+
+#include <array>
+#include <cmath>
+
+namespace gutterwatt::dormand_prince_test {
+namespace {
+
+using State2 = std::array<double, 2>;
+constexpr std::array<std::size_t, 1> kFirst = {0};
+constexpr std::array<std::size_t, 2> kBoth = {0, 1};
+
+// The error relative to rtol (|x| + dt |dxdt|) + atol, slot by slot, as the run's checker does.
+struct Relative {
+  double rtol = 1e-10;
+  double atol = 1e-14;
+  double operator()(const State2& x, const State2& dxdt, const State2& err, double dt) const {
+    double worst = 0.0;
+    for (std::size_t i = 0; i < 2; ++i) {
+      const double tol = rtol * (std::abs(x[i]) + dt * std::abs(dxdt[i])) + atol;
+      worst = std::max(worst, std::abs(err[i]) / tol);
+    }
+    return worst;
+  }
+};
+
+// y' = -y read by the system; q' = y, an integral nothing reads: y = e^-t, q = 1 - e^-t.
+const auto kDecay = [](const State2& x, State2& dxdt, double) {
+  dxdt[0] = -x[0];
+  dxdt[1] = x[0];
+};
+
+State2 integrate(std::span<const std::size_t> read, double t_end, double rtol, long* steps) {
+  DormandPrince<2, Relative> s(read, Relative{rtol}, 10.0);
+  s.initialize({1.0, 0.0}, 0.0, 0.01);
+  long n = 0;
+  while (s.current_time() < t_end) {
+    if (s.current_time() + s.current_time_step() > t_end) {
+      const State2 x = s.current_state();
+      s.initialize(x, s.current_time(), t_end - s.current_time());
+    }
+    s.do_step(kDecay);
+    ++n;
+  }
+  if (steps) *steps = n;
+  return s.current_state();
+}
+
+TEST(DormandPrince, ExponentialDecayToTheTolerance) {
+  // Against libm's exp (the exact solution), over 5 time constants.
+  long steps = 0;
+  const State2 x = integrate(kFirst, 5.0, 1e-10, &steps);
+  EXPECT_NEAR(x[0], std::exp(-5.0), 1e-11);
+  EXPECT_NEAR(x[1], 1.0 - std::exp(-5.0), 1e-10);
+  // Runge-Kutta methods keep linear invariants (Shampine 1986): y + q = 1 to rounding.
+  EXPECT_NEAR(x[0] + x[1], 1.0, 4e-16);
+  EXPECT_GT(steps, 10);
+  EXPECT_LT(steps, 200);
+}
+
+TEST(DormandPrince, IntegralsLeftOutOfTheStagesGiveTheSameNumbersToTheBit) {
+  // A slot that no rate reads need not be formed in the stages: the step's result, its error
+  // and so its step sizes are the same whether or not it is.
+  long steps_read = 0, steps_all = 0;
+  const State2 read = integrate(kFirst, 3.0, 1e-8, &steps_read);
+  const State2 all = integrate(kBoth, 3.0, 1e-8, &steps_all);
+  EXPECT_EQ(read, all);
+  EXPECT_EQ(steps_read, steps_all);
+}
+
+TEST(DormandPrince, FifthOrderAtAFixedStep) {
+  // With the error test always passed and the step held at h, the global error of a method of
+  // order 5 falls by 2^5 = 32 when h is halved (Hairer, Norsett & Wanner I, II.3).
+  const auto error_at = [](double h) {
+    const auto pass = [](const State2&, const State2&, const State2&, double) { return 0.0; };
+    DormandPrince<2, decltype(pass)> s(kFirst, pass, h);
+    s.initialize({1.0, 0.0}, 0.0, h);
+    while (s.current_time() < 4.0 - 1e-12) s.do_step(kDecay);
+    return std::abs(s.current_state()[0] - std::exp(-s.current_time()));
+  };
+  const double ratio = error_at(0.1) / error_at(0.05);
+  EXPECT_GT(ratio, 28.0);
+  EXPECT_LT(ratio, 36.0);
+}
+
+TEST(DormandPrince, DenseOutputBetweenTheSteps) {
+  // The continuous extension is of order 4 (Hairer, Norsett & Wanner I, II.6): inside a step of
+  // 0.5 at y' = -y, within about h^5 / 120 = 3e-4 of e^-t; at its ends, the step's own values.
+  const auto pass = [](const State2&, const State2&, const State2&, double) { return 0.0; };
+  DormandPrince<2, decltype(pass)> s(kFirst, pass, 0.5);
+  s.initialize({1.0, 0.0}, 0.0, 0.5);
+  s.do_step(kDecay);
+  const std::pair<double, double> step = s.do_step(kDecay);
+  EXPECT_DOUBLE_EQ(step.first, 0.5);
+  EXPECT_DOUBLE_EQ(step.second, 1.0);
+  State2 x;
+  for (double t : {0.6, 0.75, 0.9}) {
+    s.calc_state(t, x);
+    EXPECT_NEAR(x[0], std::exp(-t), 2e-5) << t;
+    EXPECT_NEAR(x[0] + x[1], 1.0, 1e-15) << t;
+  }
+  s.calc_state(1.0, x);
+  EXPECT_NEAR(x[0], s.current_state()[0], 1e-15);
+}
+
+TEST(DormandPrince, DenseWeightsSumToTheStepShare) {
+  // Consistency of a continuous extension: sum_i b_i(theta) = theta; at theta = 1 the weights
+  // are the fifth-order ones (Dormand & Prince 1980: 35/384, 500/1113, 125/192, -2187/6784,
+  // 11/84, 0).
+  for (double theta : {0.0, 0.25, 0.5, 0.8, 1.0}) {
+    const std::array<double, 6> w = dopri5_dense_weights(theta);
+    EXPECT_NEAR(w[0] + w[1] + w[2] + w[3] + w[4] + w[5], theta, 1e-15) << theta;
+  }
+  const std::array<double, 6> one = dopri5_dense_weights(1.0);
+  EXPECT_NEAR(one[0], 35.0 / 384.0, 1e-15);
+  EXPECT_NEAR(one[1], 500.0 / 1113.0, 1e-15);
+  EXPECT_NEAR(one[2], 125.0 / 192.0, 1e-15);
+  EXPECT_NEAR(one[3], -2187.0 / 6784.0, 1e-15);
+  EXPECT_NEAR(one[4], 11.0 / 84.0, 1e-15);
+  EXPECT_NEAR(one[5], 0.0, 1e-15);
+}
+
+TEST(DormandPrince, StepSizeControl) {
+  // Worked by hand from the controller's law (Hairer, Norsett & Wanner I, II.4): grow by
+  // 0.9 err^(-1/5) below half the tolerance, at most 0.9 x 5; shrink by 0.9 err^(-1/3), at most
+  // to a fifth; never above the largest step.
+  EXPECT_NEAR(dopri5_grow(1.0, 1.0 / 32.0, 100.0), 1.8, 1e-15);
+  EXPECT_NEAR(dopri5_grow(1.0, 1e-30, 100.0), 4.5, 1e-14);
+  EXPECT_EQ(dopri5_grow(1.0, 0.7, 100.0), 1.0);
+  EXPECT_EQ(dopri5_grow(10.0, 1e-3, 12.0), 12.0);
+  EXPECT_NEAR(dopri5_shrink(1.0, 8.0, 100.0), 0.45, 1e-15);
+  EXPECT_NEAR(dopri5_shrink(1.0, 1e9, 100.0), 0.2, 1e-15);
+}
+
+TEST(DormandPrince, GivesUpWhenNoStepPasses) {
+  const auto never = [](const State2&, const State2&, const State2&, double) { return 2.0; };
+  DormandPrince<2, decltype(never)> s(kFirst, never, 1.0);
+  s.initialize({1.0, 0.0}, 0.0, 0.5);
+  EXPECT_THROW(s.do_step(kDecay), StepSizeError);
+}
+
+TEST(DormandPrince, KnownDerivativeIsNotEvaluatedAgain) {
+  int calls = 0;
+  const auto counted = [&](const State2& x, State2& dxdt, double t) {
+    ++calls;
+    kDecay(x, dxdt, t);
+  };
+  DormandPrince<2, Relative> s(kFirst, Relative{1e-6}, 1.0);
+  const State2 x0{1.0, 0.0};
+  const State2 d0{-1.0, 1.0};
+  s.initialize(x0, 0.0, 0.1, &d0);
+  s.do_step(counted);
+  EXPECT_EQ(calls, 6);  // six new stages per accepted step, the first handed over (FSAL)
+  s.initialize(x0, 0.0, 0.1);
+  calls = 0;
+  s.do_step(counted);
+  EXPECT_EQ(calls, 7);
+}
+
+}  // namespace
+}  // namespace gutterwatt::dormand_prince_test
