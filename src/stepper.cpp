@@ -180,10 +180,13 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
   ChainRates last;
   double last_t = std::numeric_limits<double>::quiet_NaN();
   const RoofSpan& roof = *roof_;
+  // The engine's state at a stage: the rates read kReadSlots alone, so only those are set (the
+  // stepper writes no other slot of a stage either).
+  ChainState stage = x_;
   const auto system = [&](const ChainState& w, ChainState& dxdt, double t) {
-    ChainState x = w;
-    x[kReservoir] += roof.to_reservoir_m3(t);
-    system_.rates(x, mode_, f, last, dxdt);
+    for (std::size_t i : kReadSlots) stage[i] = w[i];
+    stage[kReservoir] += roof.to_reservoir_m3(t);
+    system_.rates(stage, mode_, f, last, dxdt);
     last_t = t;
   };
   const double span = t1 - t0;
