@@ -141,15 +141,7 @@ RecordFigures record_figures(const RainSeries& rain,
     }
     *year_max = std::max(*year_max, wet_intensity(pulse));
   }
-  std::sort(wet.begin(), wet.end());
-  double acc = 0.0;
-  for (const auto& [i, dur] : wet) {
-    acc += dur;
-    if (acc >= 0.5 * wet_s) {
-      f.median_intensity_m_per_s = i;
-      break;
-    }
-  }
+  if (!wet.empty()) f.median_intensity_m_per_s = detail::weighted_median(wet);
   // The 2-year event is the median of the annual maxima (return period 1/(1 - 0.5)).
   std::vector<double> maxima;
   for (const auto& [year, m] : annual_max) maxima.push_back(m);

@@ -18,6 +18,7 @@
 #include <string>
 #include <string_view>
 #include <system_error>
+#include <utility>
 #include <vector>
 
 #include "gutterwatt/error.hpp"
@@ -89,6 +90,40 @@ inline double quantile_of_sorted(const std::vector<double>& sorted, double p) {
   const auto below = static_cast<std::size_t>(std::floor(h));
   if (below + 1 >= sorted.size()) return sorted.back();
   return sorted[below] + (h - static_cast<double>(below)) * (sorted[below + 1] - sorted[below]);
+}
+
+/// The weighted median of (value, weight) pairs (weights > 0, not empty): the value v whose
+/// weights below it come to less than half the total and whose weights at or below it to at
+/// least half, the value at which the running weight first reaches half with the pairs in
+/// ascending order. Found by selection (Hoare's FIND, quickselect, with a three-way partition)
+/// in linear expected time rather than by a sort. Reorders `pairs`. Exact for weights whose
+/// sums are exact, such as whole seconds.
+inline double weighted_median(std::vector<std::pair<double, double>>& pairs) {
+  double total = 0.0;
+  for (const auto& [value, weight] : pairs) total += weight;
+  double half = 0.5 * total;
+  auto lo = pairs.begin();
+  auto hi = pairs.end();
+  for (;;) {
+    const double pivot = lo[(hi - lo) / 2].first;
+    const auto less_end =
+        std::partition(lo, hi, [pivot](const auto& p) { return p.first < pivot; });
+    const auto equal_end =
+        std::partition(less_end, hi, [pivot](const auto& p) { return p.first == pivot; });
+    if (equal_end == less_end) return pivot;  // a NaN value: no order to select by
+    double below = 0.0;
+    for (auto it = lo; it != less_end; ++it) below += it->second;
+    double at = 0.0;
+    for (auto it = less_end; it != equal_end; ++it) at += it->second;
+    if (half <= below) {
+      hi = less_end;
+    } else if (half <= below + at) {
+      return pivot;
+    } else {
+      half -= below + at;
+      lo = equal_end;
+    }
+  }
 }
 
 /// a / b rounded toward negative infinity (instants before 1970 fall on the right day). b != 0.

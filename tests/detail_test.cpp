@@ -4,6 +4,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <cstdint>
 #include <cstdio>
@@ -11,10 +12,51 @@
 #include <random>
 #include <sstream>
 #include <string>
+#include <utility>
 #include <vector>
 
 namespace gutterwatt::detail {
 namespace {
+
+TEST(WeightedMedian, WorkedByHand) {
+  std::vector<std::pair<double, double>> three{{3.0, 1.0}, {1.0, 1.0}, {2.0, 1.0}};
+  EXPECT_EQ(detail::weighted_median(three), 2.0);
+  std::vector<std::pair<double, double>> heavy{{5.0, 1.0}, {1.0, 10.0}, {9.0, 1.0}};
+  EXPECT_EQ(detail::weighted_median(heavy), 1.0);
+  // Half the weight at or below 1 exactly: the running weight reaches half there.
+  std::vector<std::pair<double, double>> even{{2.0, 60.0}, {1.0, 60.0}};
+  EXPECT_EQ(detail::weighted_median(even), 1.0);
+  std::vector<std::pair<double, double>> one{{4.0, 60.0}};
+  EXPECT_EQ(detail::weighted_median(one), 4.0);
+}
+
+TEST(WeightedMedian, AgreesWithTheRunningWeightInSortedOrder) {
+  // Against the definition: sort, accumulate, take the first value whose running weight
+  // reaches half. Whole-second weights and many repeated values, as a rain record has.
+  std::mt19937_64 gen(20261204);
+  for (int round = 0; round < 200; ++round) {
+    const int n = 1 + static_cast<int>(gen() % 300);
+    std::vector<std::pair<double, double>> pairs;
+    for (int i = 0; i < n; ++i) {
+      pairs.emplace_back(static_cast<double>(gen() % 17) * 0.25,
+                         static_cast<double>(60 * (1 + gen() % 5)));
+    }
+    std::vector<std::pair<double, double>> sorted = pairs;
+    std::sort(sorted.begin(), sorted.end());
+    double total = 0.0;
+    for (const auto& p : sorted) total += p.second;
+    double acc = 0.0;
+    double expected = 0.0;
+    for (const auto& [value, weight] : sorted) {
+      acc += weight;
+      if (acc >= 0.5 * total) {
+        expected = value;
+        break;
+      }
+    }
+    EXPECT_EQ(detail::weighted_median(pairs), expected) << round;
+  }
+}
 
 TEST(Trim, DropsBlanksAtEitherEndOnly) {
   EXPECT_EQ(trim("  a b\t"), "a b");
