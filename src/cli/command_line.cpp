@@ -126,9 +126,19 @@ CommandLine parse_command_line(int argc, const char* const* argv) {
   MergeArgs& merge = cl.merge;
   auto* merge_cmd = app.add_subcommand(
       "merge", "put the shards of a sweep together; write OUT/sweep.csv as one sweep would");
-  merge_cmd->add_option("out", merge.out, "folder for the merged sweep")->required();
+  // An empty argument names no folder: refused here, with the argument's name, rather than by
+  // the file system later.
+  const CLI::Validator folder_name(
+      [](std::string& s) {
+        return s.empty() ? std::string("an empty folder name") : std::string();
+      },
+      "FOLDER");
+  merge_cmd->add_option("out", merge.out, "folder for the merged sweep")
+      ->required()
+      ->check(folder_name);
   merge_cmd->add_option("shards", merge.shards, "the shard folders (sweep --shard --out)")
-      ->required();
+      ->required()
+      ->check(folder_name);
   merge_cmd->add_flag("--quiet", merge.quiet, "print nothing on success");
 
   auto* report_cmd =
