@@ -6,10 +6,11 @@
 /// stage evaluated at the new point, so that it is the next step's first (FSAL). The dense output
 /// is the continuous extension in Hairer, Norsett & Wanner, Solving Ordinary Differential
 /// Equations I (2nd ed., section II.6). The step-size control is the elementary controller of the
-/// same book (II.4): shrink by 0.9 err^(-1/3), at most 5 times, after a rejected step; grow by
-/// 0.9 err^(-1/5), at most 5 times, after an accepted step whose error is under half the
-/// tolerance. These are the formulas and constants of Boost.Odeint's dopri5 dense-output stepper,
-/// written in the same order of operations, so that a run gives the same numbers to the bit.
+/// same book (II.4) with the exponents and limits of Boost.Odeint's default step adjuster: shrink
+/// by 0.9 err^(-1/3), to no less than a fifth, after a rejected step; grow by 0.9 err^(-1/5), to
+/// at most 4.5 times, after an accepted step whose error is under half the tolerance. These are
+/// the formulas and constants of Boost.Odeint's dopri5 dense-output stepper, written in the same
+/// order of operations, so that a run gives the same numbers to the bit.
 ///
 /// What it adds: the slots that no right-hand side reads (running integrals of flows) are left
 /// out of the intermediate stages. Their stage values would be computed and never used; they
@@ -59,7 +60,7 @@ std::array<double, 6> dopri5_dense_weights(double theta);
 double dopri5_shrink(double dt, double err, double max_step);
 double dopri5_grow(double dt, double err, double max_step);
 
-/// Rejected tries in a row before a step counts as impossible.
+/// Rejected tries in a row after which a step counts as impossible.
 inline constexpr int kMaxRejectedTries = 500;
 
 /// Integrates dx/dt = f(x, t) over an array state, one accepted step at a time, from a state
