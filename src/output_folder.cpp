@@ -215,6 +215,8 @@ std::ostream& OutputFolder::open(const std::string& name) {
   return files_.back()->stream;
 }
 
+void OutputFolder::retire(const std::string& name) { retired_.push_back(name); }
+
 void OutputFolder::commit() {
   for (const auto& f : files_) {
     f->stream.flush();
@@ -238,6 +240,18 @@ void OutputFolder::commit() {
         const std::string name = f->name;
         discard();
         throw Error((dir_ / name).string() + ": is a folder; earlier results kept");
+      }
+    }
+    for (const std::string& name : retired_) {
+      struct stat st {};
+      if (::fstatat(dir_fd_, name.c_str(), &st, AT_SYMLINK_NOFOLLOW) != 0 || S_ISDIR(st.st_mode)) {
+        continue;
+      }
+      if (::unlinkat(dir_fd_, name.c_str(), 0) != 0 && errno != ENOENT) {
+        const int error = errno;
+        discard();
+        throw Error((dir_ / name).string() + ": cannot remove this earlier file (" +
+                    errno_text(error) + "); earlier results kept");
       }
     }
     for (const auto& f : files_) {

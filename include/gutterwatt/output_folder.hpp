@@ -43,6 +43,11 @@ class OutputFolder {
 
   /// A stream for `name` (a plain file name such as `timeseries.csv`) in the staging folder.
   std::ostream& open(const std::string& name);
+  /// A file of the set that this writer does not write (a run's trace.csv with the trace off):
+  /// an earlier writer's `name` is removed at commit, under the same lock, so that the folder
+  /// never shows it beside this writer's set. A symbolic link of that name is removed, not
+  /// followed; a folder of that name is left.
+  void retire(const std::string& name);
   /// Flushes and checks every file, then renames them all into the folder under its lock;
   /// throws Error on a write failure (earlier results kept).
   void commit();
@@ -58,6 +63,7 @@ class OutputFolder {
   std::filesystem::path stage_;
   int stage_fd_ = -1;
   std::vector<std::unique_ptr<File>> files_;
+  std::vector<std::string> retired_;
   std::vector<std::filesystem::path> created_;  ///< folders made here, deepest first
   bool committed_ = false;
 };

@@ -138,6 +138,9 @@ int run_command(const RunArgs& args) {
     if (sc.simulation.trace) {
       trace.emplace(folder->open("trace.csv"), sc, !args.force);
       observers.add(*trace);
+    } else {
+      // An earlier run's trace would stand beside this run's files, and the report draw on it.
+      folder->retire("trace.csv");
     }
     observers.add(summary);
     result = simulate(sc, rain, observers, options);
