@@ -242,12 +242,10 @@ void OutputFolder::commit() {
         throw Error((dir_ / name).string() + ": is a folder; earlier results kept");
       }
     }
+    // unlinkat without AT_REMOVEDIR removes a file or a link, never what a link points to, and
+    // refuses a folder (EISDIR), which is left.
     for (const std::string& name : retired_) {
-      struct stat st {};
-      if (::fstatat(dir_fd_, name.c_str(), &st, AT_SYMLINK_NOFOLLOW) != 0 || S_ISDIR(st.st_mode)) {
-        continue;
-      }
-      if (::unlinkat(dir_fd_, name.c_str(), 0) != 0 && errno != ENOENT) {
+      if (::unlinkat(dir_fd_, name.c_str(), 0) != 0 && errno != ENOENT && errno != EISDIR) {
         const int error = errno;
         discard();
         throw Error((dir_ / name).string() + ": cannot remove this earlier file (" +

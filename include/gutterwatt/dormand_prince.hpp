@@ -142,7 +142,6 @@ class DormandPrince {
     const State& k1 = dxdt_[now_];
     State& out = x_[1 - now_];
     State& k7 = dxdt_[1 - now_];
-    stage_ = x;
     const auto stage = [&](const auto& combine) {
       for (std::size_t i : read_) stage_[i] = combine(i);
     };
@@ -190,7 +189,8 @@ class DormandPrince {
   // (after a step) or the try's end (during one).
   std::array<State, 2> x_{}, dxdt_{};
   int now_ = 0;
-  State stage_{}, k2_{}, k3_{}, k4_{}, k5_{}, k6_{}, err_{};
+  State stage_{};  // an intermediate stage: only the slots in read_ are ever set
+  State k2_{}, k3_{}, k4_{}, k5_{}, k6_{}, err_{};
   double t_ = 0.0, t_old_ = 0.0, dt_ = 0.0;
   bool have_dxdt_ = false;
 };
