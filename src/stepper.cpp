@@ -195,6 +195,15 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
   double offset_m3 = 0.0;
   const ScaledErrorChecker checker{system_.scenario().simulation.rtol, error_scale_, &offset_m3};
   Dense stepper(kReadSlots, checker, max_step);
+  // The engine's state at `tau` within the last step, in the slots the rates and guards read
+  // (the others are not needed there, nor the roof's stores): for the guards' zeros and the
+  // trace's grid.
+  ChainState probe = x_;
+  const auto read_state_at = [&](double tau) -> const ChainState& {
+    stepper.calc_read_state(tau, probe);
+    probe[kReservoir] += roof.to_reservoir_m3(tau);
+    return probe;
+  };
   bool fresh = true;
   long segment_steps = 0;
   Guards g_prev{};
@@ -250,9 +259,7 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     for (int k = 0; k < kGuardCount; ++k) {
       if (!(g_prev[k] >= 0.0 && g_end[k] < 0.0)) continue;
       const auto guard_at = [&](double tau) {
-        ChainState ws, xs;
-        stepper.calc_state(tau, ws);
-        from_solver(ws, tau, xs);
+        const ChainState& xs = read_state_at(tau);
         Guards gs;
         system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), gs);
         return gs[k];
@@ -293,12 +300,11 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       r = system_.rates(x_end, mode_, f);
     }
     if (ledger_.tracing()) {
-      // The trace's grid points within the step, on the dense output.
+      // The trace's grid points within the step, on the dense output; one at the step's end (a
+      // segment's end, on a record of whole minutes) takes the rates worked out there.
       for (double g = next_trace_time(t0 + t); g <= t0 + t_end; g += kTraceStep_s) {
-        ChainState ws, xs;
-        stepper.calc_state(g - t0, ws);
-        from_solver(ws, g - t0, xs);
-        ledger_.trace(g, mode_, system_.rates(xs, mode_, f));
+        ledger_.trace(g, mode_,
+                      g == t0 + t_end ? r : system_.rates(read_state_at(g - t0), mode_, f));
       }
     }
     accept_step(x_end, t_end - t, r, first, f, t0 + t_end);

@@ -106,6 +106,22 @@ TEST(DormandPrince, DenseOutputBetweenTheSteps) {
   EXPECT_NEAR(x[0], s.current_state()[0], 1e-15);
 }
 
+TEST(DormandPrince, DenseOutputInTheReadSlotsAlone) {
+  // Inside a step at y' = -y, against e^-t from libm (as above); the slot nobody reads (q) is
+  // left as it was.
+  const auto pass = [](const State2&, const State2&, const State2&, double) { return 0.0; };
+  DormandPrince<2, decltype(pass)> s(kFirst, pass, 0.5);
+  s.initialize({1.0, 0.0}, 0.0, 0.5);
+  s.do_step(kDecay);
+  s.do_step(kDecay);
+  for (double t : {0.6, 0.75, 0.9, 1.0}) {
+    State2 x = {-7.0, -7.0};
+    s.calc_read_state(t, x);
+    EXPECT_NEAR(x[0], std::exp(-t), 2e-5) << t;
+    EXPECT_EQ(x[1], -7.0) << t;
+  }
+}
+
 TEST(DormandPrince, DenseWeightsSumToTheStepShare) {
   // Consistency of a continuous extension: sum_i b_i(theta) = theta; at theta = 1 the weights
   // are the fifth-order ones (Dormand & Prince 1980: 35/384, 500/1113, 125/192, -2187/6784,

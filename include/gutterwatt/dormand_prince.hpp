@@ -19,6 +19,7 @@
 #include <array>
 #include <cstddef>
 #include <limits>
+#include <ranges>
 #include <span>
 #include <stdexcept>
 #include <string>
@@ -107,19 +108,10 @@ class DormandPrince {
   }
 
   /// The dense output of the last step at `t` within it.
-  void calc_state(double t, State& x) const {
-    const State& x0 = x_[1 - now_];
-    const State& k1 = dxdt_[1 - now_];
-    const State& k7 = dxdt_[now_];
-    const double dt = t_ - t_old_;
-    const std::array<double, 6> w = dopri5_dense_weights((t - t_old_) / dt);
-    const double w1 = dt * w[0], w3 = dt * w[1], w4 = dt * w[2], w5 = dt * w[3], w6 = dt * w[4],
-                 w7 = dt * w[5];
-    for (std::size_t i = 0; i < N; ++i) {
-      x[i] = 1.0 * x0[i] + w1 * k1[i] + w3 * k3_[i] + w4 * k4_[i] + w5 * k5_[i] + w6 * k6_[i] +
-             w7 * k7[i];
-    }
-  }
+  void calc_state(double t, State& x) const { dense(t, x, std::views::iota(std::size_t{0}, N)); }
+  /// The dense output of the last step at `t` in the slots the system reads, into those slots
+  /// of `x` (its other slots are left as they are): what the system needs to be evaluated there.
+  void calc_read_state(double t, State& x) const { dense(t, x, read_); }
 
   const State& current_state() const { return x_[now_]; }
   /// The derivative at the current point (after a step, its last stage).
@@ -128,6 +120,21 @@ class DormandPrince {
   double current_time_step() const { return dt_; }
 
  private:
+  template <class Slots>
+  void dense(double t, State& x, const Slots& slots) const {
+    const State& x0 = x_[1 - now_];
+    const State& k1 = dxdt_[1 - now_];
+    const State& k7 = dxdt_[now_];
+    const double dt = t_ - t_old_;
+    const std::array<double, 6> w = dopri5_dense_weights((t - t_old_) / dt);
+    const double w1 = dt * w[0], w3 = dt * w[1], w4 = dt * w[2], w5 = dt * w[3], w6 = dt * w[4],
+                 w7 = dt * w[5];
+    for (std::size_t i : slots) {
+      x[i] = 1.0 * x0[i] + w1 * k1[i] + w3 * k3_[i] + w4 * k4_[i] + w5 * k5_[i] + w6 * k6_[i] +
+             w7 * k7[i];
+    }
+  }
+
   // One try from the current point at t_ with dt_, into the other buffers: on success t_ has
   // moved (do_step then makes them current); dt_ is the next try's step.
   template <class System>
