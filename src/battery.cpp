@@ -49,11 +49,6 @@ double self_discharge_rate_per_s(const BatteryConfig& config) {
 }
 
 BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, double energy_J,
-                           const BatteryConfig& config) {
-  return battery_flows(mode, input_W, load_W, energy_J, config, self_discharge_rate_per_s(config));
-}
-
-BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, double energy_J,
                            const BatteryConfig& config, double self_discharge_per_s) {
   // Energy bookkeeping of a charge controller without Peukert effects (REFERENCES.md section
   // 10): dE/dt = eta_c P_accepted - P_drawn / eta_d - k E.

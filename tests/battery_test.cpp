@@ -26,8 +26,14 @@ BatteryConfig battery() {
 
 constexpr double kHalf_J = 30.0 * kWh;
 
+// The flows of `c` with its own self-discharge constant, as the solver hands it over.
+BatteryFlows flows(BatteryMode mode, double input_W, double load_W, double energy_J,
+                   const BatteryConfig& c = battery()) {
+  return battery_flows(mode, input_W, load_W, energy_J, c, self_discharge_rate_per_s(c));
+}
+
 TEST(Battery, ChargesWithTheSurplusAfterTheLoad) {
-  const BatteryFlows f = battery_flows(BatteryMode::normal, 10.0, 2.0, kHalf_J, battery());
+  const BatteryFlows f = flows(BatteryMode::normal, 10.0, 2.0, kHalf_J);
   EXPECT_EQ(f.served_W, 2.0);
   EXPECT_EQ(f.accepted_W, 8.0);
   EXPECT_DOUBLE_EQ(f.charge_W, 7.2);  // 0.9 x 8 W
@@ -37,14 +43,14 @@ TEST(Battery, ChargesWithTheSurplusAfterTheLoad) {
 }
 
 TEST(Battery, ClampsChargeAtTheChargeLimit) {
-  const BatteryFlows f = battery_flows(BatteryMode::normal, 50.0, 0.0, kHalf_J, battery());
+  const BatteryFlows f = flows(BatteryMode::normal, 50.0, 0.0, kHalf_J);
   EXPECT_EQ(f.accepted_W, 30.0);
   EXPECT_EQ(f.curtailed_W, 20.0);
   EXPECT_DOUBLE_EQ(f.charge_W, 27.0);  // 0.9 x 30 W
 }
 
 TEST(Battery, CurtailsEverythingWhenFullWithoutSelfDischarge) {
-  const BatteryFlows f = battery_flows(BatteryMode::full, 5.0, 1.0, 60.0 * kWh, battery());
+  const BatteryFlows f = flows(BatteryMode::full, 5.0, 1.0, 60.0 * kWh);
   EXPECT_EQ(f.served_W, 1.0);
   EXPECT_EQ(f.accepted_W, 0.0);
   EXPECT_EQ(f.charge_W, 0.0);
@@ -53,7 +59,7 @@ TEST(Battery, CurtailsEverythingWhenFullWithoutSelfDischarge) {
 
 TEST(Battery, DischargesThroughTheDischargeEfficiency) {
   // 0.7 W delivered to the load takes 0.7 / 0.9 = 0.777... W from the store.
-  const BatteryFlows f = battery_flows(BatteryMode::normal, 0.3, 1.0, kHalf_J, battery());
+  const BatteryFlows f = flows(BatteryMode::normal, 0.3, 1.0, kHalf_J);
   EXPECT_EQ(f.served_W, 1.0);
   EXPECT_DOUBLE_EQ(f.drawn_W, 0.7);
   EXPECT_NEAR(f.charge_W, -0.7777777777777778, 1e-15);
@@ -64,13 +70,13 @@ TEST(Battery, ACutLoadLetsTheInputRechargeTheBattery) {
   // With the load disconnected (a low-voltage disconnect cuts the load, not the charging): the
   // 1 W load is all unmet and the 0.3 W input charges at 0.9, 0.27 W into the store; 45 W
   // against the 30 W charge limit curtails 15 W.
-  const BatteryFlows f = battery_flows(BatteryMode::empty, 0.3, 1.0, 0.0, battery());
+  const BatteryFlows f = flows(BatteryMode::empty, 0.3, 1.0, 0.0);
   EXPECT_EQ(f.served_W, 0.0);
   EXPECT_EQ(f.unmet_W, 1.0);
   EXPECT_DOUBLE_EQ(f.accepted_W, 0.3);
   EXPECT_DOUBLE_EQ(f.charge_W, 0.27);
   EXPECT_EQ(f.drawn_W, 0.0);
-  const BatteryFlows big = battery_flows(BatteryMode::empty, 45.0, 1.0, 0.0, battery());
+  const BatteryFlows big = flows(BatteryMode::empty, 45.0, 1.0, 0.0);
   EXPECT_EQ(big.accepted_W, 30.0);
   EXPECT_EQ(big.curtailed_W, 15.0);
 }
@@ -117,9 +123,9 @@ TEST(Battery, EnergyInThenOutReturnsTheRoundTrip) {
   // eta_c x eta_d = 0.9 x 0.9 = 0.81.
   const BatteryConfig c = battery();
   const double charge_s = 3600.0;
-  const BatteryFlows in = battery_flows(BatteryMode::normal, 10.0, 0.0, kHalf_J, c);
+  const BatteryFlows in = flows(BatteryMode::normal, 10.0, 0.0, kHalf_J, c);
   const double stored_J = in.charge_W * charge_s;
-  const BatteryFlows out = battery_flows(BatteryMode::normal, 0.0, 2.0, kHalf_J, c);
+  const BatteryFlows out = flows(BatteryMode::normal, 0.0, 2.0, kHalf_J, c);
   const double discharge_s = stored_J / -out.charge_W;
   const double returned_J = out.served_W * discharge_s;
   EXPECT_NEAR(returned_J / (in.accepted_W * charge_s), 0.81, 1e-15);
@@ -153,14 +159,14 @@ TEST(Battery, SelfDischargeLosesTheMonthlyShareInAMeanMonth) {
   EXPECT_NEAR(rest.energy_J / kWh, 58.2, 1e-9);
   EXPECT_NEAR(rest.self_discharge_J / kWh, 1.8, 1e-9);
   EXPECT_EQ(rest.unmet_J, 0.0);
-  const BatteryFlows f = battery_flows(BatteryMode::normal, 0.0, 0.0, 60.0 * kWh, c);
+  const BatteryFlows f = flows(BatteryMode::normal, 0.0, 0.0, 60.0 * kWh, c);
   EXPECT_NEAR(f.self_discharge_W, 2.501782956e-3, 1e-12);
 }
 
 TEST(Battery, AFullBatteryTakesOnlyWhatHoldsItFull) {
   BatteryConfig c = battery();
   c.self_discharge_per_month = 0.03;
-  const BatteryFlows f = battery_flows(BatteryMode::full, 5.0, 1.0, 60.0 * kWh, c);
+  const BatteryFlows f = flows(BatteryMode::full, 5.0, 1.0, 60.0 * kWh, c);
   EXPECT_NEAR(f.accepted_W, 2.501782956e-3 / 0.9, 1e-12);
   EXPECT_NEAR(f.charge_W, 0.0, 1e-18);
   EXPECT_NEAR(f.curtailed_W, 4.0 - 2.501782956e-3 / 0.9, 1e-12);
@@ -221,7 +227,7 @@ TEST(Battery, EveryFlowBalances) {
       for (double load : {0.0, 0.5, 1.0, 20.0}) {
         if (mode == BatteryMode::full && input < load) continue;  // not a full battery's case
         const double energy = mode == BatteryMode::full ? c.capacity_J : kHalf_J;
-        const BatteryFlows f = battery_flows(mode, input, load, energy, c);
+        const BatteryFlows f = flows(mode, input, load, energy, c);
         EXPECT_NEAR(input + f.drawn_W, f.accepted_W + f.curtailed_W + f.served_W, 1e-12)
             << static_cast<int>(mode) << " " << input << " " << load;
         EXPECT_NEAR(load, f.served_W + f.unmet_W, 1e-12);

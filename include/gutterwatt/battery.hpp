@@ -74,11 +74,8 @@ struct BatteryFlows {
 /// load is served first from the generator, then from the battery; the surplus charges the
 /// battery up to `max_charge_W` (at the terminals) and the rest is curtailed. A full battery
 /// takes only what holds it full against self-discharge. With the load cut (`empty`) none of it
-/// is served and the whole input charges the battery, up to `max_charge_W`.
-BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, double energy_J,
-                           const BatteryConfig& config);
-/// The same with the self-discharge rate constant given (self_discharge_rate_per_s(config),
-/// worked out once by a caller on the solver's hot path).
+/// is served and the whole input charges the battery, up to `max_charge_W`. `self_discharge_per_s`
+/// is self_discharge_rate_per_s(config), which a caller on the solver's hot path works out once.
 BatteryFlows battery_flows(BatteryMode mode, double input_W, double load_W, double energy_J,
                            const BatteryConfig& config, double self_discharge_per_s);
 
