@@ -189,6 +189,11 @@ void Ledger::update_peaks(const ChainRates& r) {
   bump(EpisodeKind::column_overflow, r.column_overflow);
 }
 
+bool Ledger::following_peaks() const {
+  return std::any_of(episodes_.begin(), episodes_.end(),
+                     [](const OpenEpisode& e) { return e.open; });
+}
+
 void Ledger::close_all(const ChainState& x, double t) {
   for (std::size_t k = 0; k < episodes_.size(); ++k) {
     close_episode(static_cast<EpisodeKind>(k), x, t);

@@ -52,6 +52,36 @@ constexpr long kMaxStepsPerSegment = 100000;
 // The first point of the trace's grid after `t` (absolute seconds).
 double next_trace_time(double t) { return (std::floor(t / kTraceStep_s) + 1.0) * kTraceStep_s; }
 
+// Where g, with g(lo) = g_lo >= 0 > g(hi) = g_hi, falls below zero: Illinois regula falsi
+// (Dowell & Jarratt 1971) to a bracket narrower than `width`, returning its upper end (a point
+// where g < 0). Bisection takes over when an interpolated point falls outside the bracket, and
+// after 60 tries.
+template <class G>
+double first_below_zero(const G& g, double lo, double hi, double g_lo, double g_hi, double width) {
+  int side = 0;
+  for (int iter = 0; hi - lo > width; ++iter) {
+    double mid = iter < 60 ? hi - g_hi * (hi - lo) / (g_hi - g_lo) : 0.5 * (lo + hi);
+    if (!(mid > lo && mid < hi)) mid = 0.5 * (lo + hi);
+    const double g_mid = g(mid);
+    if (g_mid < 0.0) {
+      hi = mid;
+      g_hi = g_mid;
+      if (side == -1) g_lo *= 0.5;
+      side = -1;
+    } else {
+      lo = mid;
+      g_lo = g_mid;
+      if (side == 1) g_hi *= 0.5;
+      side = 1;
+    }
+  }
+  return hi;
+}
+
+// How closely a peak of the reservoir's level inside a step is placed, as a share of the step:
+// the flows there are flat, so they are found to about the square of this.
+constexpr double kPeakPlacing = 1e-4;
+
 }  // namespace
 
 Stepper::Stepper(const ChainSystem& system, Ledger& ledger, const RunOptions& options)
@@ -207,6 +237,9 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
   bool fresh = true;
   long segment_steps = 0;
   Guards g_prev{};
+  // The reservoir's net inflow where the last step ended (NaN: not known).
+  constexpr double kUnknown = std::numeric_limits<double>::quiet_NaN();
+  double rise_before = kUnknown;
   while (t < span) {
     if (coasted_to_end(t, span, f)) return;
     if (!moving_) {
@@ -214,6 +247,7 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       trace_now(f);
     }
     if (fresh) {
+      rise_before = kUnknown;
       ChainState dxdt;
       last = settle(f, g_prev, dxdt);
       ledger_.update_peaks(last);
@@ -270,27 +304,9 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       // At the step's end the guard is known; before an earlier switch it must be looked up.
       double g_hi = first < 0 ? g_end[k] : guard_at(hi);
       if (g_hi >= 0.0) continue;  // crosses only after an earlier switch
-      // Illinois regula falsi on the dense output to 1e-10 s (Dowell & Jarratt 1971): a switch is
-      // placed, not rounded to a step, and the accounts it splits move by less than 1e-9 of their
-      // size. Bisection takes over when an interpolated point falls outside the bracket.
-      int side = 0;
-      for (int iter = 0; hi - lo > 1e-10; ++iter) {
-        double mid = iter < 60 ? hi - g_hi * (hi - lo) / (g_hi - g_lo) : 0.5 * (lo + hi);
-        if (!(mid > lo && mid < hi)) mid = 0.5 * (lo + hi);
-        const double g_mid = guard_at(mid);
-        if (g_mid < 0.0) {
-          hi = mid;
-          g_hi = g_mid;
-          if (side == -1) g_lo *= 0.5;
-          side = -1;
-        } else {
-          lo = mid;
-          g_lo = g_mid;
-          if (side == 1) g_hi *= 0.5;
-          side = 1;
-        }
-      }
-      t_switch = hi;
+      // Placed on the dense output to 1e-10 s, not rounded to a step: the accounts it splits move
+      // by less than 1e-9 of their size.
+      t_switch = first_below_zero(guard_at, lo, hi, g_lo, g_hi, 1e-10);
       first = k;
     }
     if (first >= 0) {
@@ -298,6 +314,27 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       stepper.calc_state(t_end, w_end);
       from_solver(w_end, t_end, x_end);
       r = system_.rates(x_end, mode_, f);
+    }
+    // Every flow an episode follows rises with the reservoir's level, so where the level peaks
+    // inside the step, so do they: the peak is placed where the dense output's net inflow changes
+    // sign, so that an episode's peak flow does not depend on where the steps fall. The net
+    // inflow where the step starts is where the last one ended, unless the solver restarted.
+    if (ledger_.following_peaks()) {
+      const auto rise_at = [&](double tau) {
+        return stepper.calc_rate(tau, kReservoir) + roof.to_reservoir_m3_per_s(tau);
+      };
+      const double falling = rise_at(t_end);
+      if (falling < 0.0) {
+        const double rising = std::isnan(rise_before) ? rise_at(step.first) : rise_before;
+        if (rising > 0.0) {
+          const double top = first_below_zero(rise_at, step.first, t_end, rising, falling,
+                                              kPeakPlacing * (t_end - step.first));
+          ledger_.update_peaks(system_.rates(read_state_at(top), mode_, f));
+        }
+      }
+      rise_before = falling;
+    } else {
+      rise_before = kUnknown;
     }
     if (ledger_.tracing()) {
       // The trace's grid points within the step, on the dense output; one at the step's end (a

@@ -122,6 +122,41 @@ TEST(DormandPrince, DenseOutputInTheReadSlotsAlone) {
   }
 }
 
+TEST(DormandPrince, DenseRateInsideAStep) {
+  // The continuous extension's derivative: the step's first stage at its start and its last at
+  // its end, the extension being continuously differentiable (Hairer, Norsett & Wanner I, II.6);
+  // inside a step of 0.5 at y' = -y, within a small multiple of h^4 = 0.06 (2e-4 allowed) of
+  // -e^-t from libm.
+  const auto pass = [](const State2&, const State2&, const State2&, double) { return 0.0; };
+  DormandPrince<2, decltype(pass)> s(kBoth, pass, 0.5);
+  s.initialize({1.0, 0.0}, 0.0, 0.5);
+  s.do_step(kDecay);
+  const State2 start = s.current_deriv();
+  s.do_step(kDecay);
+  EXPECT_NEAR(s.calc_rate(0.5, 0), start[0], 1e-15);
+  EXPECT_NEAR(s.calc_rate(1.0, 0), s.current_deriv()[0], 1e-15);
+  EXPECT_NEAR(s.calc_rate(1.0, 1), s.current_deriv()[1], 1e-15);
+  for (double t : {0.6, 0.75, 0.9}) {
+    EXPECT_NEAR(s.calc_rate(t, 0), -std::exp(-t), 2e-4) << t;
+    EXPECT_NEAR(s.calc_rate(t, 0) + s.calc_rate(t, 1), 0.0, 1e-15) << t;
+  }
+}
+
+TEST(DormandPrince, DenseRateWeightsSumToOne) {
+  // The derivative of sum_i b_i(theta) = theta; at theta = 0 only k1 counts, at theta = 1 only
+  // the last stage (the Hermite conditions of the extension, Hairer, Norsett & Wanner I, II.6).
+  for (double theta : {0.0, 0.25, 0.5, 0.8, 1.0}) {
+    const std::array<double, 6> w = dopri5_dense_rate_weights(theta);
+    EXPECT_NEAR(w[0] + w[1] + w[2] + w[3] + w[4] + w[5], 1.0, 1e-14) << theta;
+  }
+  const std::array<double, 6> zero = dopri5_dense_rate_weights(0.0);
+  const std::array<double, 6> one = dopri5_dense_rate_weights(1.0);
+  for (std::size_t i = 0; i < 6; ++i) {
+    EXPECT_NEAR(zero[i], i == 0 ? 1.0 : 0.0, 1e-14) << i;
+    EXPECT_NEAR(one[i], i == 5 ? 1.0 : 0.0, 1e-14) << i;
+  }
+}
+
 TEST(DormandPrince, DenseWeightsSumToTheStepShare) {
   // Consistency of a continuous extension: sum_i b_i(theta) = theta; at theta = 1 the weights
   // are the fifth-order ones (Dormand & Prince 1980: 35/384, 500/1113, 125/192, -2187/6784,

@@ -97,8 +97,10 @@ bool episode_makes_energy(EpisodeKind kind);
 
 /// One siphon cycle (or valve opening), overflow episode or dribble episode. Times in seconds
 /// since the epoch (UTC), not rounded; volume of what flowed in the episode (release, overflow
-/// or dribble); peak flow as seen at the solver's steps and switches; electrical energy made
-/// during the episode, which means something only where episode_makes_energy(kind).
+/// or dribble); peak flow at the solver's steps, its switches and the reservoir level's peaks
+/// within a step (placed on the dense output; the fixed-step reference sees its steps alone);
+/// electrical energy made during the episode, which means something only where
+/// episode_makes_energy(kind).
 struct Episode {
   EpisodeKind kind;
   double start_s;
@@ -207,6 +209,8 @@ class Ledger {
   void follow_standing(double level_m, const ChainMode& m, double t);
   /// Raises the open episodes' peaks to the flows in `r`.
   void update_peaks(const ChainRates& r);
+  /// Whether an episode is open, so that its peak is being followed.
+  bool following_peaks() const;
   /// Closes every open episode at the end of the run.
   void close_all(const ChainState& x, double t);
 

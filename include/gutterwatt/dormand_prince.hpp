@@ -55,6 +55,8 @@ inline constexpr double e1 = b1 - 5179.0 / 57600.0, e3 = b3 - 7571.0 / 16695.0,
 /// The dense output's weights at `theta` in [0, 1] of a step, for k1, k3, k4, k5, k6 and k7
 /// (k2's is zero).
 std::array<double, 6> dopri5_dense_weights(double theta);
+/// Their derivatives in theta: the weights of the dense output's rate of change.
+std::array<double, 6> dopri5_dense_rate_weights(double theta);
 
 /// The step after a rejected try with error `err` (> 1) and after an accepted one (err <= 1),
 /// at most `max_step`.
@@ -112,6 +114,16 @@ class DormandPrince {
   /// The dense output of the last step at `t` in the slots the system reads, into those slots
   /// of `x` (its other slots are left as they are): what the system needs to be evaluated there.
   void calc_read_state(double t, State& x) const { dense(t, x, read_); }
+
+  /// The dense output's rate of change in slot `i` at `t` within the last step: k1 at its start
+  /// and the last stage at its end (the extension is continuously differentiable).
+  double calc_rate(double t, std::size_t i) const {
+    if (t == t_) return dxdt_[now_][i];
+    if (t == t_old_) return dxdt_[1 - now_][i];
+    const std::array<double, 6> w = dopri5_dense_rate_weights((t - t_old_) / (t_ - t_old_));
+    return w[0] * dxdt_[1 - now_][i] + w[1] * k3_[i] + w[2] * k4_[i] + w[3] * k5_[i] +
+           w[4] * k6_[i] + w[5] * dxdt_[now_][i];
+  }
 
   const State& current_state() const { return x_[now_]; }
   /// The derivative at the current point (after a step, its last stage).
