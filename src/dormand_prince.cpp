@@ -21,6 +21,50 @@ DenseX dense_x(double theta) {
           10.0 * (7414447.0 - 829305.0 * theta) / 29380423.0};
 }
 
+// A polynomial in theta of degree 4 at most, lowest power first, worked out at compile time.
+using Poly = std::array<double, 5>;
+
+constexpr Poly operator+(const Poly& a, const Poly& b) {
+  Poly c{};
+  for (std::size_t i = 0; i < c.size(); ++i) c[i] = a[i] + b[i];
+  return c;
+}
+
+constexpr Poly operator*(const Poly& a, const Poly& b) {  // the product's degree must be <= 4
+  Poly c{};
+  for (std::size_t i = 0; i < a.size(); ++i) {
+    for (std::size_t j = 0; i + j < c.size(); ++j) c[i + j] += a[i] * b[j];
+  }
+  return c;
+}
+
+constexpr Poly operator*(double k, const Poly& a) { return Poly{k} * a; }
+
+// The theta-derivatives of dopri5_dense_weights, term by term, with
+// A' = 6 theta (1 - theta), B' = theta (3 theta - 2), C = theta^2 (theta - 1)^2,
+// C' = 2 theta (theta - 1) (2 theta - 1), D' = (theta - 1) (3 theta - 1) and X_i = X_i(0) + s_i
+// theta (s_i the slopes of dense_x), as polynomials.
+constexpr std::array<Poly, 6> rate_weights() {
+  using namespace dopri5;
+  const Poly da{0.0, 6.0, -6.0}, db{0.0, -2.0, 3.0}, c{0.0, 0.0, 1.0, -2.0, 1.0};
+  const Poly dc{0.0, 2.0, -6.0, 4.0}, dd{1.0, -4.0, 3.0};
+  const auto x = [](double scale, double at0, double per_theta, double over) {
+    return Poly{scale * at0 / over, -scale * per_theta / over};
+  };
+  const Poly x1 = x(5.0, 2558722523.0, 31403016.0, 11282082432.0);
+  const Poly x3 = x(100.0, 882725551.0, 15701508.0, 32700410799.0);
+  const Poly x4 = x(25.0, 443332067.0, 31403016.0, 1880347072.0);
+  const Poly x5 = x(32805.0, 23143187.0, 3489224.0, 199316789632.0);
+  const Poly x6 = x(55.0, 29972135.0, 7076736.0, 822651844.0);
+  const Poly x7 = x(10.0, 7414447.0, 829305.0, 29380423.0);
+  const auto slope = [&c](const Poly& xi) { return xi[1] * c; };
+  return {b1 * da + -1.0 * (dc * x1) + -1.0 * slope(x1) + dd, b3 * da + dc * x3 + slope(x3),
+          b4 * da + -1.0 * (dc * x4) + -1.0 * slope(x4),      b5 * da + dc * x5 + slope(x5),
+          b6 * da + -1.0 * (dc * x6) + -1.0 * slope(x6),      db + dc * x7 + slope(x7)};
+}
+
+constexpr std::array<Poly, 6> kRateWeights = rate_weights();
+
 }  // namespace
 
 std::array<double, 6> dopri5_dense_weights(double theta) {
@@ -41,27 +85,12 @@ std::array<double, 6> dopri5_dense_weights(double theta) {
 }
 
 std::array<double, 6> dopri5_dense_rate_weights(double theta) {
-  // The theta-derivatives of dopri5_dense_weights: with the same A, B, C, D and X_i,
-  // A' = 6 theta (1 - theta), B' = theta (3 theta - 2), C' = 2 theta (theta - 1) (2 theta - 1),
-  // D' = (theta - 1) (3 theta - 1), and each X_i linear in theta.
-  using namespace dopri5;
-  const auto [x1, x3, x4, x5, x6, x7] = dense_x(theta);
-  // The X_i's slopes.
-  const double dx1 = 5.0 * -31403016.0 / 11282082432.0;
-  const double dx3 = 100.0 * -15701508.0 / 32700410799.0;
-  const double dx4 = 25.0 * -31403016.0 / 1880347072.0;
-  const double dx5 = 32805.0 * -3489224.0 / 199316789632.0;
-  const double dx6 = 55.0 * -7076736.0 / 822651844.0;
-  const double dx7 = 10.0 * -829305.0 / 29380423.0;
-  const double theta_m_1 = theta - 1.0;
-  const double c = theta * theta * theta_m_1 * theta_m_1;
-  const double da = 6.0 * theta * (1.0 - theta);
-  const double db = theta * (3.0 * theta - 2.0);
-  const double dc = 2.0 * theta * theta_m_1 * (2.0 * theta - 1.0);
-  const double dd = theta_m_1 * (3.0 * theta - 1.0);
-  return {da * b1 - dc * x1 - c * dx1 + dd, da * b3 + dc * x3 + c * dx3,
-          da * b4 - dc * x4 - c * dx4,      da * b5 + dc * x5 + c * dx5,
-          da * b6 - dc * x6 - c * dx6,      db + dc * x7 + c * dx7};
+  std::array<double, 6> w;
+  for (std::size_t i = 0; i < w.size(); ++i) {
+    const Poly& p = kRateWeights[i];
+    w[i] = p[0] + theta * (p[1] + theta * (p[2] + theta * (p[3] + theta * p[4])));
+  }
+  return w;
 }
 
 double dopri5_shrink(double dt, double err, double max_step) {
