@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cstddef>
+#include <limits>
 
 namespace gutterwatt {
 
@@ -133,6 +134,7 @@ void Ledger::open_episode(EpisodeKind kind, const ChainState& x, double t) {
   e.open = true;
   e.start_s = t;
   e.peak = 0.0;
+  e.top_level_m = -std::numeric_limits<double>::infinity();
   e.start_energy_J = tally_.electrical_J;
   e.start_volume_m3 = episode_account(kind, x);
 }
@@ -181,7 +183,10 @@ void Ledger::switched(const ChainMode& before, const ChainMode& after, const Cha
 void Ledger::update_peaks(const ChainRates& r) {
   auto bump = [&](EpisodeKind kind, double q) {
     OpenEpisode& e = episodes_[static_cast<std::size_t>(kind)];
-    if (e.open) e.peak = std::max(e.peak, q);
+    if (e.open) {
+      e.peak = std::max(e.peak, q);
+      e.top_level_m = std::max(e.top_level_m, r.level_m);
+    }
   };
   bump(EpisodeKind::cycle, r.release);
   bump(EpisodeKind::dribble, r.release);
@@ -192,6 +197,11 @@ void Ledger::update_peaks(const ChainRates& r) {
 bool Ledger::following_peaks() const {
   return std::any_of(episodes_.begin(), episodes_.end(),
                      [](const OpenEpisode& e) { return e.open; });
+}
+
+bool Ledger::peak_may_rise(double level_m) const {
+  return std::any_of(episodes_.begin(), episodes_.end(),
+                     [level_m](const OpenEpisode& e) { return e.open && level_m > e.top_level_m; });
 }
 
 void Ledger::close_all(const ChainState& x, double t) {

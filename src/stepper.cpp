@@ -326,7 +326,12 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       const double falling = rise_at(t_end);
       if (falling < 0.0) {
         const double rising = std::isnan(rise_before) ? rise_at(step.first) : rise_before;
-        if (rising > 0.0) {
+        // The level inside the step is at most where it started plus what the roof hands it
+        // meanwhile (every outflow is >= 0); no higher than an episode's highest so far, its
+        // peak cannot rise.
+        if (rising > 0.0 &&
+            ledger_.peak_may_rise(system_.level_m(x_[kReservoir] + roof.to_reservoir_m3(t_end) -
+                                                  roof.to_reservoir_m3(step.first)))) {
           const double top = first_below_zero(rise_at, step.first, t_end, rising, falling,
                                               kPeakPlacing * (t_end - step.first));
           ledger_.update_peaks(system_.rates(read_state_at(top), mode_, f));

@@ -211,6 +211,10 @@ class Ledger {
   void update_peaks(const ChainRates& r);
   /// Whether an episode is open, so that its peak is being followed.
   bool following_peaks() const;
+  /// Whether the reservoir at `level_m` could raise an open episode's peak: whether the level
+  /// lies above every level its peak has been looked for at. Each flow an episode follows rises
+  /// with the level, so below those levels it stays below the peak.
+  bool peak_may_rise(double level_m) const;
   /// Closes every open episode at the end of the run.
   void close_all(const ChainState& x, double t);
 
@@ -232,6 +236,7 @@ class Ledger {
     double start_volume_m3 = 0.0;
     double start_energy_J = 0.0;
     double peak = 0.0;
+    double top_level_m = 0.0;  // the highest level update_peaks has seen in the episode
   };
 
   double episode_account(EpisodeKind kind, const ChainState& x) const;

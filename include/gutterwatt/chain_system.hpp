@@ -145,8 +145,9 @@ class ChainSystem {
 
   /// Evaporation from the reservoir holding `volume_m3` under `f`, m3/s.
   double evaporation_m3_per_s(double volume_m3, const Forcing& f) const;
-  /// The reservoir's level in state `x`.
-  double level_m(const ChainState& x) const { return geometry_.level_m(x[kReservoir]); }
+  /// The reservoir's level in state `x`, and holding `volume_m3`.
+  double level_m(const ChainState& x) const { return level_m(x[kReservoir]); }
+  double level_m(double volume_m3) const { return geometry_.level_m(volume_m3); }
 
   /// The state and mode at the start of a run.
   ChainState initial_state() const;
