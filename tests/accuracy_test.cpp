@@ -24,6 +24,7 @@
 #include "gutterwatt/rain_input.hpp"
 #include "gutterwatt/scenario.hpp"
 #include "gutterwatt/simulation.hpp"
+#include "test_support.hpp"
 
 namespace gutterwatt::accuracy_test {
 namespace {
@@ -77,11 +78,6 @@ struct RunWithEpisodes : RunResult {
   std::vector<Episode> episodes;
 };
 
-struct EpisodeList : Observer {
-  std::vector<Episode> all;
-  void on_episode(const Episode& e) override { all.push_back(e); }
-};
-
 RunWithEpisodes run_on(const RainSeries& rain, const std::vector<std::string>& overrides,
                        double fixed_step_s) {
   // The demo design (invented), on the storm days instead of its own record.
@@ -91,10 +87,10 @@ RunWithEpisodes run_on(const RainSeries& rain, const std::vector<std::string>& o
   all.insert(all.end(), overrides.begin(), overrides.end());
   const Scenario sc =
       load_scenario(std::string(GUTTERWATT_SOURCE_DIR) + "/scenarios/demo.yaml", all);
-  EpisodeList episodes;
+  test_support::RecordingObserver records;
   RunOptions options;
   options.fixed_step_s = fixed_step_s;
-  RunWithEpisodes run{simulate(sc, rain, episodes, options), std::move(episodes.all)};
+  RunWithEpisodes run{simulate(sc, rain, records, options), std::move(records.episodes)};
   return run;
 }
 
@@ -221,6 +217,7 @@ TEST(Accuracy, TighterToleranceAgreesWithTheFixedStepReference) {
   EXPECT_EQ(run.cycles, reference.cycles);
   EXPECT_EQ(run.overflow_events, reference.overflow_events);
   EXPECT_LT(relative_difference(run.totals.electrical_J, reference.totals.electrical_J), 1e-5);
+  expect_peaks_close(run, reference, 1e-5);
 }
 
 // Every flow an episode follows rises with the reservoir's level, so where the level peaks inside

@@ -133,9 +133,11 @@ TEST(DormandPrince, DenseRateInsideAStep) {
   s.do_step(kDecay);
   const State2 start = s.current_deriv();
   s.do_step(kDecay);
-  EXPECT_NEAR(s.calc_rate(0.5, 0), start[0], 1e-15);
-  EXPECT_NEAR(s.calc_rate(1.0, 0), s.current_deriv()[0], 1e-15);
-  EXPECT_NEAR(s.calc_rate(1.0, 1), s.current_deriv()[1], 1e-15);
+  // At the very ends calc_rate hands back those stages as they are; a nanosecond inside, the
+  // extension's own weights must give them (they move by a few times 1e-9 over that time).
+  EXPECT_NEAR(s.calc_rate(0.5 + 1e-9, 0), start[0], 1e-7);
+  EXPECT_NEAR(s.calc_rate(1.0 - 1e-9, 0), s.current_deriv()[0], 1e-7);
+  EXPECT_NEAR(s.calc_rate(1.0 - 1e-9, 1), s.current_deriv()[1], 1e-7);
   for (double t : {0.6, 0.75, 0.9}) {
     EXPECT_NEAR(s.calc_rate(t, 0), -std::exp(-t), 2e-4) << t;
     EXPECT_NEAR(s.calc_rate(t, 0) + s.calc_rate(t, 1), 0.0, 1e-15) << t;
