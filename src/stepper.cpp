@@ -38,8 +38,9 @@ struct ScaledErrorChecker {
 
 using Dense = DormandPrince<kSlots, ScaledErrorChecker>;
 
-// Largest solver step while it rains: a switch that happens and un-happens within one step would
-// be missed, and rain can start and stop an overflow within minutes.
+// Largest solver step while it rains: a switch that happens and un-happens within one step is
+// looked for only where the reservoir's level turns, and rain can start and stop an overflow
+// within minutes.
 constexpr double kMaxWetStep_s = 120.0;
 // Without rain the flows decay or drain; the one exception, a release cycle still running, moves
 // on a time scale of a minute, which keeps the error-controlled steps far shorter than this.
@@ -52,35 +53,60 @@ constexpr long kMaxStepsPerSegment = 100000;
 // The first point of the trace's grid after `t` (absolute seconds).
 double next_trace_time(double t) { return (std::floor(t / kTraceStep_s) + 1.0) * kTraceStep_s; }
 
-// Where g, with g(lo) = g_lo >= 0 > g(hi) = g_hi, falls below zero: Illinois regula falsi
-// (Dowell & Jarratt 1971) to a bracket narrower than `width`, returning its upper end (a point
-// where g < 0). Bisection takes over when an interpolated point falls outside the bracket, and
-// after 60 tries.
+// A bracket [lo, hi] of a zero of g, with g(lo) = g_lo >= 0 > g(hi) = g_hi.
+struct Bracket {
+  double lo, hi, g_lo, g_hi;
+};
+
+// Where g falls below zero within `b`: Illinois regula falsi (Dowell & Jarratt 1971) to a bracket
+// narrower than `width`. Bisection takes over when an interpolated point falls outside the
+// bracket, and after 60 tries.
 template <class G>
-double first_below_zero(const G& g, double lo, double hi, double g_lo, double g_hi, double width) {
+Bracket narrow_to_zero(const G& g, Bracket b, double width) {
   int side = 0;
-  for (int iter = 0; hi - lo > width; ++iter) {
-    double mid = iter < 60 ? hi - g_hi * (hi - lo) / (g_hi - g_lo) : 0.5 * (lo + hi);
-    if (!(mid > lo && mid < hi)) mid = 0.5 * (lo + hi);
+  for (int iter = 0; b.hi - b.lo > width; ++iter) {
+    double mid =
+        iter < 60 ? b.hi - b.g_hi * (b.hi - b.lo) / (b.g_hi - b.g_lo) : 0.5 * (b.lo + b.hi);
+    if (!(mid > b.lo && mid < b.hi)) mid = 0.5 * (b.lo + b.hi);
     const double g_mid = g(mid);
     if (g_mid < 0.0) {
-      hi = mid;
-      g_hi = g_mid;
-      if (side == -1) g_lo *= 0.5;
+      b.hi = mid;
+      b.g_hi = g_mid;
+      if (side == -1) b.g_lo *= 0.5;
       side = -1;
     } else {
-      lo = mid;
-      g_lo = g_mid;
-      if (side == 1) g_hi *= 0.5;
+      b.lo = mid;
+      b.g_lo = g_mid;
+      if (side == 1) b.g_hi *= 0.5;
       side = 1;
     }
   }
-  return hi;
+  return b;
 }
 
-// How closely a peak of the reservoir's level inside a step is placed, as a share of the step:
-// the flows there are flat, so they are found to about the square of this.
+// How closely the reservoir's level turning inside a step is placed, as a share of the step, to
+// look at the guards there, and to take an episode's peak there. The level and the flows are flat
+// where it turns, so they are found to about the square of this.
+constexpr double kTurnScreening = 0.05;
 constexpr double kPeakPlacing = 1e-4;
+
+// How far beyond the step's ends the level goes where it turns inside the step (m3): the larger of
+// its rise over the start and over the end were the net inflow linear in time between its values
+// at the ends, `rise_start` and `rise_end` (m3/s, of opposite signs), over the step `dt`.
+double turn_reach_m3(double rise_start, double rise_end, double dt) {
+  const double at = rise_start / (rise_start - rise_end);  // where the line crosses zero
+  return 0.5 * dt * std::max(std::abs(rise_start) * at, std::abs(rise_end) * (1.0 - at));
+}
+
+// Whether a guard at `g_start` and `g_end` (both >= 0) where the reservoir holds `v_start` and
+// `v_end` may fall below zero where the level turns `reach_m3` beyond them: it may, were it a
+// function of the level changing at the rate it changed over the step, within kReachMargin times
+// that. A screen, not a bound: a guard that changes faster there, or with other slots, can pass it.
+constexpr double kReachMargin = 4.0;
+bool within_reach(double g_start, double g_end, double v_start, double v_end, double reach_m3) {
+  return std::min(g_start, g_end) * std::abs(v_end - v_start) <
+         kReachMargin * std::abs(g_end - g_start) * reach_m3;
+}
 
 }  // namespace
 
@@ -287,26 +313,79 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     Guards g_end;
     system_.guards(x_end, mode_, f, r, g_end);
 
-    // Earliest guard that crossed zero within the step, located on the dense output.
+    // Where the reservoir's level turns inside the step, where the dense output's net inflow (its
+    // rate of change, plus the roof's inflow) changes sign: its highest or lowest point, where a
+    // switch can happen and un-happen between the step's ends. The net inflow where the step
+    // starts is where the last one ended, unless the solver restarted.
+    const auto rise_at = [&](double tau) {
+      return stepper.calc_rate(tau, kReservoir) + roof.to_reservoir_m3_per_s(tau);
+    };
+    const double rise_end = rise_at(t_end);
+    const double rise_start = std::isnan(rise_before) ? rise_at(step.first) : rise_before;
+    rise_before = rise_end;
+    const bool peaks = rise_start > 0.0 && rise_end < 0.0;
+    const bool trough = rise_start < 0.0 && rise_end > 0.0;
+    // The guards are looked at where the level turns, located roughly (kTurnScreening), when one
+    // may fall below zero there; where it peaks while an episode's peak may still rise there, the
+    // turn is located closely (kPeakPlacing).
+    double turn = kUnknown;
+    Guards g_turn;
+    std::optional<ChainRates> r_peak;  // at the peak, `peak`
+    double peak = kUnknown;
+    if (peaks || trough) {
+      const double sign = peaks ? 1.0 : -1.0;
+      const auto net = [&](double tau) { return sign * rise_at(tau); };
+      const double width = t_end - step.first;
+      Bracket b{step.first, t_end, sign * rise_start, sign * rise_end};
+      const double reach_m3 = turn_reach_m3(rise_start, rise_end, width);
+      bool screen = false;
+      for (int k = 0; k < kGuardCount && !screen; ++k) {
+        screen = g_prev[k] >= 0.0 && g_end[k] >= 0.0 &&
+                 within_reach(g_prev[k], g_end[k], x_[kReservoir], x_end[kReservoir], reach_m3);
+      }
+      if (screen) {
+        b = narrow_to_zero(net, b, kTurnScreening * width);
+        turn = b.hi;
+        const ChainState& xs = read_state_at(turn);
+        system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), g_turn);
+      }
+      // The level inside the step is at most where it started plus what the roof hands it
+      // meanwhile (every outflow is >= 0); no higher than an episode's highest so far, its peak
+      // cannot rise.
+      if (peaks && ledger_.following_peaks() &&
+          ledger_.peak_may_rise(system_.level_m(x_[kReservoir] + roof.to_reservoir_m3(t_end) -
+                                                roof.to_reservoir_m3(step.first)))) {
+        peak = narrow_to_zero(net, b, kPeakPlacing * width).hi;
+        r_peak = system_.rates(read_state_at(peak), mode_, f);
+      }
+    }
+
+    // Earliest guard that crossed zero within the step, located on the dense output: one below
+    // zero at the step's end, or only where the level turned.
     int first = -1;
     double t_switch = t_end;
     for (int k = 0; k < kGuardCount; ++k) {
-      if (!(g_prev[k] >= 0.0 && g_end[k] < 0.0)) continue;
+      const bool dips = !std::isnan(turn) && g_turn[k] < 0.0;
+      if (!(g_prev[k] >= 0.0 && (g_end[k] < 0.0 || dips))) continue;
       const auto guard_at = [&](double tau) {
         const ChainState& xs = read_state_at(tau);
         Guards gs;
         system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), gs);
         return gs[k];
       };
-      double lo = step.first;
       double hi = t_switch;
-      double g_lo = g_prev[k];
-      // At the step's end the guard is known; before an earlier switch it must be looked up.
-      double g_hi = first < 0 ? g_end[k] : guard_at(hi);
+      double g_hi;
+      if (dips && turn < t_switch) {
+        hi = turn;
+        g_hi = g_turn[k];
+      } else {
+        // At the step's end the guard is known; before an earlier switch it must be looked up.
+        g_hi = hi == t_end ? g_end[k] : guard_at(hi);
+      }
       if (g_hi >= 0.0) continue;  // crosses only after an earlier switch
       // Placed on the dense output to 1e-10 s, not rounded to a step: the accounts it splits move
       // by less than 1e-9 of their size.
-      t_switch = first_below_zero(guard_at, lo, hi, g_lo, g_hi, 1e-10);
+      t_switch = narrow_to_zero(guard_at, {step.first, hi, g_prev[k], g_hi}, 1e-10).hi;
       first = k;
     }
     if (first >= 0) {
@@ -316,31 +395,10 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       r = system_.rates(x_end, mode_, f);
     }
     // Every flow an episode follows rises with the reservoir's level, so where the level peaks
-    // inside the step, so do they: the peak is placed where the dense output's net inflow changes
-    // sign, so that an episode's peak flow does not depend on where the steps fall. The net
-    // inflow where the step starts is where the last one ended, unless the solver restarted.
-    if (ledger_.following_peaks()) {
-      const auto rise_at = [&](double tau) {
-        return stepper.calc_rate(tau, kReservoir) + roof.to_reservoir_m3_per_s(tau);
-      };
-      const double falling = rise_at(t_end);
-      if (falling < 0.0) {
-        const double rising = std::isnan(rise_before) ? rise_at(step.first) : rise_before;
-        // The level inside the step is at most where it started plus what the roof hands it
-        // meanwhile (every outflow is >= 0); no higher than an episode's highest so far, its
-        // peak cannot rise.
-        if (rising > 0.0 &&
-            ledger_.peak_may_rise(system_.level_m(x_[kReservoir] + roof.to_reservoir_m3(t_end) -
-                                                  roof.to_reservoir_m3(step.first)))) {
-          const double top = first_below_zero(rise_at, step.first, t_end, rising, falling,
-                                              kPeakPlacing * (t_end - step.first));
-          ledger_.update_peaks(system_.rates(read_state_at(top), mode_, f));
-        }
-      }
-      rise_before = falling;
-    } else {
-      rise_before = kUnknown;
-    }
+    // inside the step, so do they: an episode's peak flow does not depend on where the steps fall.
+    // Before a switch the level rises up to it (it turns once in the step at most, as the search
+    // above assumes), and the step's end counts.
+    if (r_peak && peak < t_end) ledger_.update_peaks(*r_peak);
     if (ledger_.tracing()) {
       // The trace's grid points within the step, on the dense output; one at the step's end (a
       // segment's end, on a record of whole minutes) takes the rates worked out there.

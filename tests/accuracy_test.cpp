@@ -73,9 +73,11 @@ RainSeries storm_days(double (*rain_mm_per_h)(int) = intensity_mm_per_h) {
   return read_rain_series(in, "storm-days.csv", fmt);
 }
 
-// A run's results with its episodes, as a run's observer receives them.
+// A run's results with its episodes and the times of its switches, as a run's observer receives
+// them.
 struct RunWithEpisodes : RunResult {
   std::vector<Episode> episodes;
+  std::vector<double> switch_times;
 };
 
 RunWithEpisodes run_on(const RainSeries& rain, const std::vector<std::string>& overrides,
@@ -88,9 +90,11 @@ RunWithEpisodes run_on(const RainSeries& rain, const std::vector<std::string>& o
   const Scenario sc =
       load_scenario(std::string(GUTTERWATT_SOURCE_DIR) + "/scenarios/demo.yaml", all);
   test_support::RecordingObserver records;
+  records.record_trace = true;
   RunOptions options;
   options.fixed_step_s = fixed_step_s;
-  RunWithEpisodes run{simulate(sc, rain, records, options), std::move(records.episodes)};
+  RunWithEpisodes run{simulate(sc, rain, records, options), std::move(records.episodes),
+                      records.switch_times()};
   return run;
 }
 
@@ -230,6 +234,42 @@ TEST(Accuracy, PeakFlowsOnChoppyRainAgreeWithTheFixedStepReference) {
   const RunWithEpisodes reference = run_on(rain, {}, 0.05);
   EXPECT_GE(reference.dribble_episodes, 3);
   expect_peaks_close(run_on(rain, {}, 0.0), reference, 1e-4);
+}
+
+// Invented: an hour of steady rain that cycles the siphon, an hour and a half dry, then light rain
+// that rises over ten minutes and goes on for forty in whole hundredths of a millimetre a minute,
+// as a tipping logger records it (the pattern drawn once with a fixed seed).
+double light_after_dry_mm_per_h(int m) {
+  static constexpr char kHundredths[] = "4435543335543455444344344444443545544454";
+  double mm = 0.0;
+  if (m < 60) {
+    mm = 0.08;
+  } else if (m >= 150 && m < 160) {
+    mm = 0.01 * (1 + (m - 150) / 3);
+  } else if (m >= 160 && m < 200) {
+    mm = 0.01 * (kHundredths[m - 160] - '0');
+  }
+  return 60.0 * mm;
+}
+
+// Issue 16: a switch can happen and un-happen inside a step, where the reservoir's level turns
+// between the step's ends, so the guards are looked at there too. On this rain the dribble's level
+// peaks just over the head column's trickle limit inside a step: before, the run found the column
+// filling 1,093 s after the reference did (its steps' ends all fell below the limit, and the next
+// peak over it came later); after, within 0.1 s. The run stops before the dribble ends: that
+// switch's time is ill-conditioned (the level creeps to half the hold head, 5 um over the lip),
+// and is some seconds late at the default tolerance, converging with it.
+TEST(Accuracy, SwitchesWhereTheLevelTurnsInsideAStepAgreeWithTheFixedStepReference) {
+  const RainSeries rain = storm_days(light_after_dry_mm_per_h);
+  const std::vector<std::string> design = {"simulation.end=2025-06-01T05:00",
+                                           "reservoir.evaporation_mm_per_day=0"};
+  const RunWithEpisodes reference = run_on(rain, design, 0.05);
+  const RunWithEpisodes run = run_on(rain, design, 0.0);
+  EXPECT_GE(reference.cycles, 4);
+  ASSERT_EQ(run.switch_times.size(), reference.switch_times.size());
+  for (std::size_t k = 0; k < run.switch_times.size(); ++k) {
+    EXPECT_NEAR(run.switch_times[k], reference.switch_times[k], 1.0) << "switch " << k;
+  }
 }
 
 }  // namespace

@@ -133,12 +133,24 @@ inline RainSeries constant_inflow(const Scenario& scenario, double inflow_m3_per
                        inflow_m3_per_s / scenario.roof.area_m2);
 }
 
-/// Keeps every record of a run.
+/// Keeps every record of a run; the fine trace too when `record_trace` is set.
 class RecordingObserver : public Observer {
  public:
   void on_start(const Sample& s) override { start = s; }
   void on_sample(const Sample& s) override { samples.push_back(s); }
   void on_episode(const Episode& e) override { episodes.push_back(e); }
+  bool wants_trace() const override { return record_trace; }
+  void on_trace(const TracePoint& p) override { trace.push_back(p); }
+
+  /// The times of the mode switches: a switch is traced twice at one time, in the mode before it
+  /// and in the mode after.
+  std::vector<double> switch_times() const {
+    std::vector<double> out;
+    for (std::size_t k = 1; k < trace.size(); ++k) {
+      if (trace[k].time_s == trace[k - 1].time_s) out.push_back(trace[k].time_s);
+    }
+    return out;
+  }
 
   /// The episodes of one kind, in order.
   std::vector<Episode> of_kind(EpisodeKind kind) const {
@@ -157,9 +169,11 @@ class RecordingObserver : public Observer {
     return nullptr;
   }
 
+  bool record_trace = false;
   Sample start;
   std::vector<Sample> samples;
   std::vector<Episode> episodes;
+  std::vector<TracePoint> trace;
 };
 
 /// The whole message of the InputError that `f()` throws, or "no error".
