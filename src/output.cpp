@@ -183,6 +183,10 @@ std::span<const OutputColumn<EventRow>> events_columns() { return kEventsColumns
 
 std::span<const OutputColumn<TraceRow>> trace_columns() { return kTraceColumns; }
 
+// Trace points in a batch handed to the writing thread: about 450 kB, a few hours of a moving
+// chain's trace.
+constexpr std::size_t kTraceBatch = 8192;
+
 TraceWriter::TraceWriter(std::ostream& out, const Scenario& scenario, bool limited)
     : out_(out),
       scenario_(scenario),
@@ -190,7 +194,12 @@ TraceWriter::TraceWriter(std::ostream& out, const Scenario& scenario, bool limit
       units_(scenario.site.units),
       limited_(limited) {
   write_header(out_, trace_columns(), units_);
+  filling_.reserve(kTraceBatch);
+  handed_.reserve(kTraceBatch);
+  writer_ = std::thread([this] { write_batches(); });
 }
+
+TraceWriter::~TraceWriter() { finish(); }
 
 void TraceWriter::on_trace(const TracePoint& p) {
   if (limited_ && ++rows_ * kTraceRowBytes > kMaxTraceBytes) {
@@ -200,7 +209,44 @@ void TraceWriter::on_trace(const TracePoint& p) {
                          " rows); set simulation.trace: off, give a shorter period, or run "
                          "with --force");
   }
-  write_row(out_, trace_columns(), TraceRow{p, zone_}, units_, line_);
+  filling_.push_back(p);
+  if (filling_.size() == kTraceBatch) hand_over(false);
+}
+
+void TraceWriter::finish() {
+  if (!writer_.joinable()) return;
+  hand_over(true);
+  writer_.join();
+}
+
+void TraceWriter::hand_over(bool last) {
+  std::unique_lock lock(mutex_);
+  changed_.wait(lock, [this] { return !waiting_; });
+  std::swap(filling_, handed_);
+  filling_.clear();
+  waiting_ = true;
+  last_ = last;
+  changed_.notify_all();
+}
+
+void TraceWriter::write_batches() {
+  std::vector<TracePoint> batch;
+  batch.reserve(kTraceBatch);
+  std::string line;  // a row's text, its allocation kept from row to row
+  for (bool last = false; !last;) {
+    {
+      std::unique_lock lock(mutex_);
+      changed_.wait(lock, [this] { return waiting_; });
+      std::swap(batch, handed_);
+      waiting_ = false;
+      last = last_;
+      changed_.notify_all();
+    }
+    for (const TracePoint& p : batch) {
+      write_row(out_, trace_columns(), TraceRow{p, zone_}, units_, line);
+    }
+    batch.clear();
+  }
 }
 
 TimeseriesWriter::TimeseriesWriter(std::ostream& out, const Scenario& scenario, bool limited)

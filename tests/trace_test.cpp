@@ -148,5 +148,41 @@ TEST(TraceCsv, WritesTheColumnsOfTheOneTableInEitherUnits) {
             "2025-03-01T00:01:30,1,running,1,0,1,2.5\n");
 }
 
+// The rows are written on a thread of their own, in batches: every point comes out once, in the
+// order handed in, whether the writer is finished or only ended, and over several batches.
+TEST(TraceCsv, WritesEveryPointInOrderAcrossBatches) {
+  const Scenario s = box_run();
+  constexpr int kPoints = 20000;  // two batches and part of a third
+  const auto hand_in = [&](TraceWriter& w) {
+    TracePoint p;
+    for (int k = 0; k < kPoints; ++k) {
+      p.time_s = static_cast<double>(kStart) + k;
+      p.level_m = 1e-3 * k;
+      w.on_trace(p);
+    }
+  };
+  std::ostringstream finished;
+  TraceWriter w(finished, s, false);
+  hand_in(w);
+  w.finish();
+  std::ostringstream ended;
+  {
+    TraceWriter e(ended, s, false);
+    hand_in(e);
+  }
+  EXPECT_EQ(ended.str(), finished.str());
+  std::istringstream rows(finished.str());
+  std::string line;
+  std::getline(rows, line);  // the header
+  int k = 0;
+  for (; std::getline(rows, line); ++k) {
+    // The level in mm is the row's number: 1e-3 m a point.
+    const std::size_t first = line.find(',');
+    ASSERT_NE(first, std::string::npos) << k;
+    EXPECT_EQ(line.substr(first + 1, line.find(',', first + 1) - first - 1), std::to_string(k));
+  }
+  EXPECT_EQ(k, kPoints);
+}
+
 }  // namespace
 }  // namespace gutterwatt::trace_test

@@ -1,12 +1,15 @@
 #pragma once
 /// Writers of a run's records: timeseries.csv, events.csv, summary.json and the terminal table.
 
+#include <condition_variable>
 #include <functional>
+#include <mutex>
 #include <optional>
 #include <ostream>
 #include <span>
 #include <string>
 #include <string_view>
+#include <thread>
 #include <vector>
 
 #include "gutterwatt/realizations.hpp"
@@ -108,21 +111,40 @@ class TimeseriesWriter : public Observer {
 
 /// Writes one trace.csv row per trace point (see TracePoint), in the scenario's units; the time
 /// to the second. With `limited`, throws InputError naming `simulation.trace` once the rows pass
-/// kMaxTraceBytes (the run does not know in advance how long its chain moves).
+/// kMaxTraceBytes (the run does not know in advance how long its chain moves). The rows' text is
+/// made and written on a thread of its own, in batches of points handed over as they fill, so
+/// that the simulation does not wait on it; `out` holds the whole trace after finish() (or the
+/// writer's end), and nothing of it may be read before.
 class TraceWriter : public Observer {
  public:
   TraceWriter(std::ostream& out, const Scenario& scenario, bool limited);
+  ~TraceWriter() override;
+  TraceWriter(const TraceWriter&) = delete;
+  TraceWriter& operator=(const TraceWriter&) = delete;
   bool wants_trace() const override { return true; }
   void on_trace(const TracePoint& p) override;
+  /// Writes every point handed in so far and ends the writing thread.
+  void finish();
 
  private:
+  /// Hands the batch being filled to the writing thread, once it has taken the one before.
+  void hand_over(bool last);
+  /// The writing thread: writes each batch handed over until the last.
+  void write_batches();
+
   std::ostream& out_;
   const Scenario& scenario_;
   TimeZone zone_;
   UnitSystem units_;
   bool limited_;
   double rows_ = 0.0;
-  std::string line_;  // a row's text, its allocation kept from row to row
+  std::vector<TracePoint> filling_;  // the simulation's side
+  std::vector<TracePoint> handed_;   // under mutex_: the batch waiting to be written
+  bool waiting_ = false;             // under mutex_: handed_ holds a batch
+  bool last_ = false;                // under mutex_: no batch comes after handed_
+  std::mutex mutex_;
+  std::condition_variable changed_;
+  std::thread writer_;
 };
 
 /// Writes one events.csv row per siphon cycle, overflow, dribble and column-overflow episode.

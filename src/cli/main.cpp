@@ -144,6 +144,7 @@ int run_command(const RunArgs& args) {
     }
     observers.add(summary);
     result = simulate(sc, rain, observers, options);
+    if (trace) trace->finish();
     return result;
   };
   RunOptions options;
