@@ -98,14 +98,22 @@ double turn_reach_m3(double rise_start, double rise_end, double dt) {
   return 0.5 * dt * std::max(std::abs(rise_start) * at, std::abs(rise_end) * (1.0 - at));
 }
 
-// Whether a guard at `g_start` and `g_end` (both >= 0) where the reservoir holds `v_start` and
-// `v_end` may fall below zero where the level turns `reach_m3` beyond them: it may, were it a
-// function of the level changing at the rate it changed over the step, within kReachMargin times
-// that. A screen, not a bound: a guard that changes faster there, or with other slots, can pass it.
+// Whether a guard at or above zero at both ends of a step, `g_start` and `g_end`, where the
+// reservoir holds `v_start` and `v_end`, may fall below zero where the level turns `reach_m3`
+// beyond them: one may, were it a function of the level changing at the rate it changed over the
+// step, within kReachMargin times that. A screen, not a bound: a guard that changes faster there,
+// or with other slots, can pass it.
 constexpr double kReachMargin = 4.0;
-bool within_reach(double g_start, double g_end, double v_start, double v_end, double reach_m3) {
-  return std::min(g_start, g_end) * std::abs(v_end - v_start) <
-         kReachMargin * std::abs(g_end - g_start) * reach_m3;
+bool may_dip_at_turn(const Guards& g_start, const Guards& g_end, double v_start, double v_end,
+                     double reach_m3) {
+  for (int k = 0; k < kGuardCount; ++k) {
+    if (g_start[k] >= 0.0 && g_end[k] >= 0.0 &&
+        std::min(g_start[k], g_end[k]) * std::abs(v_end - v_start) <
+            kReachMargin * std::abs(g_end[k] - g_start[k]) * reach_m3) {
+      return true;
+    }
+  }
+  return false;
 }
 
 }  // namespace
@@ -337,13 +345,8 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       const auto net = [&](double tau) { return sign * rise_at(tau); };
       const double width = t_end - step.first;
       Bracket b{step.first, t_end, sign * rise_start, sign * rise_end};
-      const double reach_m3 = turn_reach_m3(rise_start, rise_end, width);
-      bool screen = false;
-      for (int k = 0; k < kGuardCount && !screen; ++k) {
-        screen = g_prev[k] >= 0.0 && g_end[k] >= 0.0 &&
-                 within_reach(g_prev[k], g_end[k], x_[kReservoir], x_end[kReservoir], reach_m3);
-      }
-      if (screen) {
+      if (may_dip_at_turn(g_prev, g_end, x_[kReservoir], x_end[kReservoir],
+                          turn_reach_m3(rise_start, rise_end, width))) {
         b = narrow_to_zero(net, b, kTurnScreening * width);
         turn = b.hi;
         const ChainState& xs = read_state_at(turn);
