@@ -7,18 +7,27 @@ namespace gutterwatt {
 namespace {
 
 // The dense output's X_i(theta) for k1, k3, k4, k5, k6 and k7 (Hairer, Norsett & Wanner I, II.6),
-// each linear in theta, in the order of operations of Boost.Odeint's dopri5.
+// each linear in theta: scale (at0 - per_theta theta) / over, in the order of operations of
+// Boost.Odeint's dopri5.
+struct DenseXTerm {
+  double scale, at0, per_theta, over;
+};
+constexpr std::array<DenseXTerm, 6> kDenseX = {{{5.0, 2558722523.0, 31403016.0, 11282082432.0},
+                                                {100.0, 882725551.0, 15701508.0, 32700410799.0},
+                                                {25.0, 443332067.0, 31403016.0, 1880347072.0},
+                                                {32805.0, 23143187.0, 3489224.0, 199316789632.0},
+                                                {55.0, 29972135.0, 7076736.0, 822651844.0},
+                                                {10.0, 7414447.0, 829305.0, 29380423.0}}};
+
 struct DenseX {
   double x1, x3, x4, x5, x6, x7;
 };
 
 DenseX dense_x(double theta) {
-  return {5.0 * (2558722523.0 - 31403016.0 * theta) / 11282082432.0,
-          100.0 * (882725551.0 - 15701508.0 * theta) / 32700410799.0,
-          25.0 * (443332067.0 - 31403016.0 * theta) / 1880347072.0,
-          32805.0 * (23143187.0 - 3489224.0 * theta) / 199316789632.0,
-          55.0 * (29972135.0 - 7076736.0 * theta) / 822651844.0,
-          10.0 * (7414447.0 - 829305.0 * theta) / 29380423.0};
+  const auto x = [theta](const DenseXTerm& k) {
+    return k.scale * (k.at0 - k.per_theta * theta) / k.over;
+  };
+  return {x(kDenseX[0]), x(kDenseX[1]), x(kDenseX[2]), x(kDenseX[3]), x(kDenseX[4]), x(kDenseX[5])};
 }
 
 // A polynomial in theta of degree 4 at most, lowest power first, worked out at compile time.
@@ -48,15 +57,11 @@ constexpr std::array<Poly, 6> rate_weights() {
   using namespace dopri5;
   const Poly da{0.0, 6.0, -6.0}, db{0.0, -2.0, 3.0}, c{0.0, 0.0, 1.0, -2.0, 1.0};
   const Poly dc{0.0, 2.0, -6.0, 4.0}, dd{1.0, -4.0, 3.0};
-  const auto x = [](double scale, double at0, double per_theta, double over) {
-    return Poly{scale * at0 / over, -scale * per_theta / over};
+  const auto x = [](const DenseXTerm& k) {
+    return Poly{k.scale * k.at0 / k.over, -k.scale * k.per_theta / k.over};
   };
-  const Poly x1 = x(5.0, 2558722523.0, 31403016.0, 11282082432.0);
-  const Poly x3 = x(100.0, 882725551.0, 15701508.0, 32700410799.0);
-  const Poly x4 = x(25.0, 443332067.0, 31403016.0, 1880347072.0);
-  const Poly x5 = x(32805.0, 23143187.0, 3489224.0, 199316789632.0);
-  const Poly x6 = x(55.0, 29972135.0, 7076736.0, 822651844.0);
-  const Poly x7 = x(10.0, 7414447.0, 829305.0, 29380423.0);
+  const Poly x1 = x(kDenseX[0]), x3 = x(kDenseX[1]), x4 = x(kDenseX[2]), x5 = x(kDenseX[3]),
+             x6 = x(kDenseX[4]), x7 = x(kDenseX[5]);
   const auto slope = [&c](const Poly& xi) { return xi[1] * c; };
   return {b1 * da + -1.0 * (dc * x1) + -1.0 * slope(x1) + dd, b3 * da + dc * x3 + slope(x3),
           b4 * da + -1.0 * (dc * x4) + -1.0 * slope(x4),      b5 * da + dc * x5 + slope(x5),
