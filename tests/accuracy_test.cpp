@@ -267,6 +267,9 @@ TEST(Accuracy, SwitchesWhereTheLevelTurnsInsideAStepAgreeWithTheFixedStepReferen
   const RunWithEpisodes reference = run_on(rain, design, 0.05);
   const RunWithEpisodes run = run_on(rain, design, 0.0);
   EXPECT_GE(reference.cycles, 4);
+  // The times traced twice are the switches, and no more, on this rain.
+  ASSERT_EQ(run.switch_times.size(), static_cast<std::size_t>(run.stats.switches));
+  ASSERT_EQ(reference.switch_times.size(), static_cast<std::size_t>(reference.stats.switches));
   ASSERT_EQ(run.switch_times.size(), reference.switch_times.size());
   for (std::size_t k = 0; k < run.switch_times.size(); ++k) {
     EXPECT_NEAR(run.switch_times[k], reference.switch_times[k], 1.0) << "switch " << k;

@@ -142,8 +142,9 @@ class RecordingObserver : public Observer {
   bool wants_trace() const override { return record_trace; }
   void on_trace(const TracePoint& p) override { trace.push_back(p); }
 
-  /// The times of the mode switches: a switch is traced twice at one time, in the mode before it
-  /// and in the mode after.
+  /// The times traced twice in a row: each mode switch (traced in the mode before it and in the
+  /// mode after), but also a point of the grid where the chain then comes to rest. A test that
+  /// takes these for the switches checks their count against the run's (SolverStats::switches).
   std::vector<double> switch_times() const {
     std::vector<double> out;
     for (std::size_t k = 1; k < trace.size(); ++k) {
