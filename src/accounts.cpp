@@ -50,14 +50,20 @@ bool ObserverList::wants_trace() const {
   return std::any_of(observers_.begin(), observers_.end(),
                      [](const Observer* o) { return o->wants_trace(); });
 }
+// The trace goes only to the observers that take it: for a point given by its state, the
+// default works the rates out.
 void ObserverList::on_trace(const TracePoint& p) {
-  for (Observer* o : observers_) o->on_trace(p);
+  for (Observer* o : observers_) {
+    if (o->wants_trace()) o->on_trace(p);
+  }
+}
+void ObserverList::on_trace_state(const TraceState& s, const ChainSystem& system) {
+  for (Observer* o : observers_) {
+    if (o->wants_trace()) o->on_trace_state(s, system);
+  }
 }
 
-Ledger::Ledger(const ChainSystem& system, Observer& observer)
-    : system_(system), observer_(observer), tracing_(observer.wants_trace()) {}
-
-void Ledger::trace(double t, const ChainMode& m, const ChainRates& r) const {
+TracePoint trace_point(double t, const ChainMode& m, const ChainRates& r) {
   TracePoint p;
   p.time_s = t;
   p.level_m = r.level_m;
@@ -66,7 +72,27 @@ void Ledger::trace(double t, const ChainMode& m, const ChainRates& r) const {
   p.overflow_m3_per_s = r.overflow + r.column_overflow;
   p.head_m = r.nozzle > 0.0 ? r.head_m : 0.0;
   p.power_W = r.electrical_W;
-  observer_.on_trace(p);
+  return p;
+}
+
+TracePoint trace_point(const TraceState& s, const ChainSystem& system) {
+  ChainState x{};
+  for (std::size_t i = 0; i < kReadSlots.size(); ++i) x[kReadSlots[i]] = s.read[i];
+  return trace_point(s.time_s, s.mode, system.rates(x, s.mode, s.forcing));
+}
+
+Ledger::Ledger(const ChainSystem& system, Observer& observer)
+    : system_(system), observer_(observer), tracing_(observer.wants_trace()) {}
+
+void Ledger::trace(double t, const ChainMode& m, const ChainRates& r) const {
+  observer_.on_trace(trace_point(t, m, r));
+}
+
+void Ledger::trace_state(double t, const ChainMode& m, const ChainState& x,
+                         const Forcing& f) const {
+  TraceState s{t, m, {}, f};
+  for (std::size_t i = 0; i < kReadSlots.size(); ++i) s.read[i] = x[kReadSlots[i]];
+  observer_.on_trace_state(s, system_);
 }
 
 void Ledger::start(const ChainState& x, const ChainMode& m, double t) {

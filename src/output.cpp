@@ -192,7 +192,8 @@ TraceWriter::TraceWriter(std::ostream& out, const Scenario& scenario, bool limit
       scenario_(scenario),
       zone_(scenario.site.zone),
       units_(scenario.site.units),
-      limited_(limited) {
+      limited_(limited),
+      system_(scenario) {
   write_header(out_, trace_columns(), units_);
   filling_.reserve(kTraceBatch);
   handed_.reserve(kTraceBatch);
@@ -202,6 +203,18 @@ TraceWriter::TraceWriter(std::ostream& out, const Scenario& scenario, bool limit
 TraceWriter::~TraceWriter() { finish(); }
 
 void TraceWriter::on_trace(const TracePoint& p) {
+  count_row();
+  filling_.emplace_back(p);
+  if (filling_.size() == kTraceBatch) hand_over(false);
+}
+
+void TraceWriter::on_trace_state(const TraceState& s, const ChainSystem&) {
+  count_row();
+  filling_.emplace_back(s);
+  if (filling_.size() == kTraceBatch) hand_over(false);
+}
+
+void TraceWriter::count_row() {
   if (limited_ && ++rows_ * kTraceRowBytes > kMaxTraceBytes) {
     throw InputError(scenario_.file.string(), 0, "simulation.trace",
                      "the run passed " + detail::fixed_trimmed(kMaxTraceBytes / 1e9, 1) +
@@ -209,8 +222,6 @@ void TraceWriter::on_trace(const TracePoint& p) {
                          " rows); set simulation.trace: off, give a shorter period, or run "
                          "with --force");
   }
-  filling_.push_back(p);
-  if (filling_.size() == kTraceBatch) hand_over(false);
 }
 
 void TraceWriter::finish() {
@@ -230,7 +241,7 @@ void TraceWriter::hand_over(bool last) {
 }
 
 void TraceWriter::write_batches() {
-  std::vector<TracePoint> batch;
+  std::vector<Entry> batch;
   batch.reserve(kTraceBatch);
   std::string line;  // a row's text, its allocation kept from row to row
   for (bool last = false; !last;) {
@@ -242,7 +253,10 @@ void TraceWriter::write_batches() {
       last = last_;
       changed_.notify_all();
     }
-    for (const TracePoint& p : batch) {
+    for (const Entry& e : batch) {
+      const TracePoint p = std::holds_alternative<TracePoint>(e)
+                               ? std::get<TracePoint>(e)
+                               : trace_point(std::get<TraceState>(e), system_);
       write_row(out_, trace_columns(), TraceRow{p, zone_}, units_, line);
     }
     batch.clear();

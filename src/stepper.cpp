@@ -202,7 +202,7 @@ void Stepper::coast(double t, double span, const Forcing& f) {
 }
 
 void Stepper::trace_now(const Forcing& f) const {
-  if (ledger_.tracing()) ledger_.trace(now_s_, mode_, system_.rates(x_, mode_, f));
+  if (ledger_.tracing()) ledger_.trace_state(now_s_, mode_, x_, f);
 }
 
 ChainState Stepper::to_solver(const ChainState& x, double t) const {
@@ -403,11 +403,15 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     // above assumes), and the step's end counts.
     if (r_peak && peak < t_end) ledger_.update_peaks(*r_peak);
     if (ledger_.tracing()) {
-      // The trace's grid points within the step, on the dense output; one at the step's end (a
-      // segment's end, on a record of whole minutes) takes the rates worked out there.
+      // The trace's grid points within the step, on the dense output, their rates left to the
+      // observer; one at the step's end (a segment's end, on a record of whole minutes) takes the
+      // rates worked out there.
       for (double g = next_trace_time(t0 + t); g <= t0 + t_end; g += kTraceStep_s) {
-        ledger_.trace(g, mode_,
-                      g == t0 + t_end ? r : system_.rates(read_state_at(g - t0), mode_, f));
+        if (g == t0 + t_end) {
+          ledger_.trace(g, mode_, r);
+        } else {
+          ledger_.trace_state(g, mode_, read_state_at(g - t0), f);
+        }
       }
     }
     accept_step(x_end, t_end - t, r, first, f, t0 + t_end);

@@ -4,6 +4,7 @@
 
 #include <gtest/gtest.h>
 
+#include <algorithm>
 #include <cmath>
 #include <sstream>
 #include <string>
@@ -182,6 +183,39 @@ TEST(TraceCsv, WritesEveryPointInOrderAcrossBatches) {
     EXPECT_EQ(line.substr(first + 1, line.find(',', first + 1) - first - 1), std::to_string(k));
   }
   EXPECT_EQ(k, kPoints);
+}
+
+// Points inside a step and where the chain comes to rest are handed over by their state, and
+// the writer works their rates out on its own thread: its rows are those of the points as the
+// simulation works them out (an observer that keeps the default), and an observer in the same
+// list that does not take the trace is handed none.
+TEST(TraceCsv, PointsGivenByTheirStateComeOutAsTheRunWorksThemOut) {
+  const Scenario s = box_run();
+  const RainSeries rain = one_hour_of_inflow(s);
+  std::ostringstream by_writer;
+  TraceRecorder by_run;
+  {
+    TraceWriter w(by_writer, s, false);
+    RecordingObserver without_trace;
+    ObserverList both;
+    both.add(w);
+    both.add(by_run);
+    both.add(without_trace);
+    simulate(s, rain, both);
+    w.finish();
+    EXPECT_TRUE(without_trace.trace.empty());
+  }
+  // Most points are the grid's, at whole minutes, inside steps.
+  const auto on_grid =
+      std::count_if(by_run.points.begin(), by_run.points.end(),
+                    [](const TracePoint& p) { return std::fmod(p.time_s, 60.0) == 0.0; });
+  EXPECT_GT(2 * on_grid, static_cast<long>(by_run.points.size())) << on_grid;
+  std::ostringstream from_points;
+  {
+    TraceWriter w(from_points, s, false);
+    for (const TracePoint& p : by_run.points) w.on_trace(p);
+  }
+  EXPECT_EQ(by_writer.str(), from_points.str());
 }
 
 }  // namespace

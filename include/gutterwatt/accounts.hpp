@@ -124,6 +124,21 @@ struct TracePoint {
   double power_W = 0.0;  ///< electrical, delivered
 };
 
+/// A trace point given by its state instead of its rates: the slots ChainSystem::rates reads
+/// (kReadSlots, in that order), the mode and the segment's forcing. An observer that takes the
+/// trace may work the rates out where it likes (TraceWriter: on its writing thread).
+struct TraceState {
+  double time_s = 0.0;
+  ChainMode mode;
+  std::array<double, kReadSlots.size()> read{};
+  Forcing forcing;
+};
+
+/// The trace point at `t` in mode `m` with the state's rates `r`.
+TracePoint trace_point(double t, const ChainMode& m, const ChainRates& r);
+/// The trace point of `s`, its rates worked out by `system`.
+TracePoint trace_point(const TraceState& s, const ChainSystem& system);
+
 /// The trace's grid: while anything moves, a point at every whole multiple of this many seconds
 /// since the epoch (so never more than this apart), besides the switches.
 inline constexpr double kTraceStep_s = 60.0;
@@ -139,6 +154,11 @@ class Observer {
   /// Whether this observer takes the fine trace (on_trace); the run makes none otherwise.
   virtual bool wants_trace() const { return false; }
   virtual void on_trace(const TracePoint&) {}
+  /// A trace point given by its state, from the run's `system`: by default its rates are worked
+  /// out here and the point handed to on_trace.
+  virtual void on_trace_state(const TraceState& s, const ChainSystem& system) {
+    on_trace(trace_point(s, system));
+  }
 };
 
 /// Forwards every record to several observers in order.
@@ -150,6 +170,7 @@ class ObserverList : public Observer {
   void on_episode(const Episode& e) override;
   bool wants_trace() const override;
   void on_trace(const TracePoint& p) override;
+  void on_trace_state(const TraceState& s, const ChainSystem& system) override;
 
  private:
   std::vector<Observer*> observers_;
@@ -227,6 +248,9 @@ class Ledger {
   bool tracing() const { return tracing_; }
   /// Hands the observer the trace point at `t` in mode `m` with the state's rates `r`.
   void trace(double t, const ChainMode& m, const ChainRates& r) const;
+  /// Hands the observer the trace point at `t` in mode `m` of state `x` under forcing `f`, whose
+  /// rates the observer works out (Observer::on_trace_state).
+  void trace_state(double t, const ChainMode& m, const ChainState& x, const Forcing& f) const;
   const EpisodeCounts& counts() const { return counts_; }
 
  private:

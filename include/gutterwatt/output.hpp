@@ -10,6 +10,7 @@
 #include <string>
 #include <string_view>
 #include <thread>
+#include <variant>
 #include <vector>
 
 #include "gutterwatt/realizations.hpp"
@@ -113,8 +114,10 @@ class TimeseriesWriter : public Observer {
 /// to the second. With `limited`, throws InputError naming `simulation.trace` once the rows pass
 /// kMaxTraceBytes (the run does not know in advance how long its chain moves). The rows' text is
 /// made and written on a thread of its own, in batches of points handed over as they fill, so
-/// that the simulation does not wait on it; `out` holds the whole trace after finish() (or the
-/// writer's end), and nothing of it may be read before.
+/// that the simulation does not wait on it; so are the rates of the points given by their state
+/// (on_trace_state), by a ChainSystem of the writer's own on `scenario`, which must be the
+/// scenario the run simulates. `out` holds the whole trace after finish() (or the writer's end),
+/// and nothing of it may be read before.
 class TraceWriter : public Observer {
  public:
   TraceWriter(std::ostream& out, const Scenario& scenario, bool limited);
@@ -123,10 +126,15 @@ class TraceWriter : public Observer {
   TraceWriter& operator=(const TraceWriter&) = delete;
   bool wants_trace() const override { return true; }
   void on_trace(const TracePoint& p) override;
+  void on_trace_state(const TraceState& s, const ChainSystem& system) override;
   /// Writes every point handed in so far and ends the writing thread.
   void finish();
 
  private:
+  /// A point as handed in: with its rates, or by its state.
+  using Entry = std::variant<TracePoint, TraceState>;
+  /// Counts a row against the size limit (see the class).
+  void count_row();
   /// Hands the batch being filled to the writing thread, once it has taken the one before.
   void hand_over(bool last);
   /// The writing thread: writes each batch handed over until the last.
@@ -137,11 +145,12 @@ class TraceWriter : public Observer {
   TimeZone zone_;
   UnitSystem units_;
   bool limited_;
+  ChainSystem system_;  // the writing thread's, for the points given by their state
   double rows_ = 0.0;
-  std::vector<TracePoint> filling_;  // the simulation's side
-  std::vector<TracePoint> handed_;   // under mutex_: the batch waiting to be written
-  bool waiting_ = false;             // under mutex_: handed_ holds a batch
-  bool last_ = false;                // under mutex_: no batch comes after handed_
+  std::vector<Entry> filling_;  // the simulation's side
+  std::vector<Entry> handed_;   // under mutex_: the batch waiting to be written
+  bool waiting_ = false;        // under mutex_: handed_ holds a batch
+  bool last_ = false;           // under mutex_: no batch comes after handed_
   std::mutex mutex_;
   std::condition_variable changed_;
   std::thread writer_;
