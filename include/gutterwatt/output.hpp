@@ -133,8 +133,8 @@ class TraceWriter : public Observer {
  private:
   /// A point as handed in: with its rates, or by its state.
   using Entry = std::variant<TracePoint, TraceState>;
-  /// Counts a row against the size limit (see the class).
-  void count_row();
+  /// Counts a row against the size limit (see the class) and adds it to the batch being filled.
+  void add(const Entry& e);
   /// Hands the batch being filled to the writing thread, once it has taken the one before.
   void hand_over(bool last);
   /// The writing thread: writes each batch handed over until the last.
