@@ -334,33 +334,19 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     const bool peaks = rise_start > 0.0 && rise_end < 0.0;
     const bool trough = rise_start < 0.0 && rise_end > 0.0;
     // The guards are looked at where the level turns, located roughly (kTurnScreening), when one
-    // may fall below zero there; where it peaks while an episode's peak may still rise there, the
-    // turn is located closely (kPeakPlacing).
+    // may fall below zero there. `turn_at` brackets the turn: the whole step, or narrowed so.
+    const double sign = peaks ? 1.0 : -1.0;
+    const auto net = [&](double tau) { return sign * rise_at(tau); };
+    const double width = t_end - step.first;
+    Bracket turn_at{step.first, t_end, sign * rise_start, sign * rise_end};
     double turn = kUnknown;
     Guards g_turn;
-    std::optional<ChainRates> r_peak;  // at the peak, `peak`
-    double peak = kUnknown;
-    if (peaks || trough) {
-      const double sign = peaks ? 1.0 : -1.0;
-      const auto net = [&](double tau) { return sign * rise_at(tau); };
-      const double width = t_end - step.first;
-      Bracket b{step.first, t_end, sign * rise_start, sign * rise_end};
-      if (may_dip_at_turn(g_prev, g_end, x_[kReservoir], x_end[kReservoir],
-                          turn_reach_m3(rise_start, rise_end, width))) {
-        b = narrow_to_zero(net, b, kTurnScreening * width);
-        turn = b.hi;
-        const ChainState& xs = read_state_at(turn);
-        system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), g_turn);
-      }
-      // The level inside the step is at most where it started plus what the roof hands it
-      // meanwhile (every outflow is >= 0); no higher than an episode's highest so far, its peak
-      // cannot rise.
-      if (peaks && ledger_.following_peaks() &&
-          ledger_.peak_may_rise(system_.level_m(x_[kReservoir] + roof.to_reservoir_m3(t_end) -
-                                                roof.to_reservoir_m3(step.first)))) {
-        peak = narrow_to_zero(net, b, kPeakPlacing * width).hi;
-        r_peak = system_.rates(read_state_at(peak), mode_, f);
-      }
+    if ((peaks || trough) && may_dip_at_turn(g_prev, g_end, x_[kReservoir], x_end[kReservoir],
+                                             turn_reach_m3(rise_start, rise_end, width))) {
+      turn_at = narrow_to_zero(net, turn_at, kTurnScreening * width);
+      turn = turn_at.hi;
+      const ChainState& xs = read_state_at(turn);
+      system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), g_turn);
     }
 
     // Earliest guard that crossed zero within the step, located on the dense output: one below
@@ -399,9 +385,17 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     }
     // Every flow an episode follows rises with the reservoir's level, so where the level peaks
     // inside the step, so do they: an episode's peak flow does not depend on where the steps fall.
-    // Before a switch the level rises up to it (it turns once in the step at most, as the search
-    // above assumes), and the step's end counts.
-    if (r_peak && peak < t_end) ledger_.update_peaks(*r_peak);
+    // The peak is placed closely (kPeakPlacing) while an episode's peak may still rise there: the
+    // level inside the step is at most where it started plus what the roof hands it meanwhile
+    // (every outflow is >= 0), and no higher than an episode's highest so far, its peak cannot
+    // rise. Before a switch the level rises up to it (it turns once in the step at most, as the
+    // search above assumes), and the step's end counts.
+    if (peaks && ledger_.following_peaks() &&
+        ledger_.peak_may_rise(system_.level_m(x_[kReservoir] + roof.to_reservoir_m3(t_end) -
+                                              roof.to_reservoir_m3(step.first)))) {
+      const double peak = narrow_to_zero(net, turn_at, kPeakPlacing * width).hi;
+      if (peak < t_end) ledger_.update_peaks(system_.rates(read_state_at(peak), mode_, f));
+    }
     if (ledger_.tracing()) {
       // The trace's grid points within the step, on the dense output, their rates left to the
       // observer; one at the step's end (a segment's end, on a record of whole minutes) takes the

@@ -24,11 +24,9 @@ using test_support::kStart;
 using test_support::make_scenario;
 using test_support::RecordingObserver;
 
-class TraceRecorder : public RecordingObserver {
- public:
-  bool wants_trace() const override { return true; }
-  void on_trace(const TracePoint& p) override { points.push_back(p); }
-  std::vector<TracePoint> points;
+// A recording observer that takes the fine trace.
+struct TraceRecorder : RecordingObserver {
+  TraceRecorder() { record_trace = true; }
 };
 
 // The default box (simulation_test's kBoxCycle, by hand from the published forms): from the
@@ -61,28 +59,28 @@ TEST(Trace, MarksEverySwitchInTheModesBeforeAndAfter) {
   // The first priming: a dribble point and a running point at its time, at the priming level.
   const double priming = static_cast<double>(kStart) + kPrimingAfter_s;
   std::size_t at = 0;
-  while (at < obs.points.size() && obs.points[at].time_s < priming - 1e-3) ++at;
-  ASSERT_LT(at + 1, obs.points.size());
-  EXPECT_NEAR(obs.points[at].time_s, priming, 2e-3);
-  EXPECT_EQ(obs.points[at].release, ReleaseState::dribble);
-  EXPECT_EQ(obs.points[at + 1].release, ReleaseState::running);
-  EXPECT_EQ(obs.points[at + 1].time_s, obs.points[at].time_s);
-  EXPECT_NEAR(obs.points[at].level_m, kPrimingLevel_m, 1e-6);
-  EXPECT_GT(obs.points[at + 1].release_m3_per_s, obs.points[at].release_m3_per_s);
-  EXPECT_GT(obs.points[at + 1].power_W, 0.0);
+  while (at < obs.trace.size() && obs.trace[at].time_s < priming - 1e-3) ++at;
+  ASSERT_LT(at + 1, obs.trace.size());
+  EXPECT_NEAR(obs.trace[at].time_s, priming, 2e-3);
+  EXPECT_EQ(obs.trace[at].release, ReleaseState::dribble);
+  EXPECT_EQ(obs.trace[at + 1].release, ReleaseState::running);
+  EXPECT_EQ(obs.trace[at + 1].time_s, obs.trace[at].time_s);
+  EXPECT_NEAR(obs.trace[at].level_m, kPrimingLevel_m, 1e-6);
+  EXPECT_GT(obs.trace[at + 1].release_m3_per_s, obs.trace[at].release_m3_per_s);
+  EXPECT_GT(obs.trace[at + 1].power_W, 0.0);
   // Every cycle's start and end are points of the trace; each end at the break level.
   for (const Episode& c : cycles) {
     for (const double t : {c.start_s, c.end_s}) {
-      const bool found = std::any_of(obs.points.begin(), obs.points.end(),
+      const bool found = std::any_of(obs.trace.begin(), obs.trace.end(),
                                      [&](const TracePoint& p) { return p.time_s == t; });
       EXPECT_TRUE(found) << t;
     }
   }
   for (std::size_t k = 0; k + 1 < cycles.size(); ++k) {
-    const auto end = std::find_if(obs.points.begin(), obs.points.end(), [&](const TracePoint& p) {
+    const auto end = std::find_if(obs.trace.begin(), obs.trace.end(), [&](const TracePoint& p) {
       return p.time_s == cycles[k].end_s && p.release == ReleaseState::idle;
     });
-    ASSERT_NE(end, obs.points.end()) << k;
+    ASSERT_NE(end, obs.trace.end()) << k;
     EXPECT_NEAR(end->level_m, kBreakLevel_m, 1e-6) << k;
   }
 }
@@ -91,10 +89,10 @@ TEST(Trace, AtLeastEveryMinuteWhileMovingAndNothingAtRest) {
   const Scenario s = box_run();
   TraceRecorder obs;
   simulate(s, one_hour_of_inflow(s), obs);
-  ASSERT_GT(obs.points.size(), 60u);
-  for (std::size_t i = 0; i + 1 < obs.points.size(); ++i) {
-    const TracePoint& a = obs.points[i];
-    const TracePoint& b = obs.points[i + 1];
+  ASSERT_GT(obs.trace.size(), 60u);
+  for (std::size_t i = 0; i + 1 < obs.trace.size(); ++i) {
+    const TracePoint& a = obs.trace[i];
+    const TracePoint& b = obs.trace[i + 1];
     EXPECT_LE(a.time_s, b.time_s) << i;
     if (b.time_s - a.time_s <= kTraceStep_s + 1e-9) continue;
     // A longer gap is a rest: nothing flows at its start and the level has not moved.
@@ -105,7 +103,7 @@ TEST(Trace, AtLeastEveryMinuteWhileMovingAndNothingAtRest) {
   // The chain comes to rest once the last cycle has broken and nothing more arrives: the dry
   // hours after it hold no point.
   const double last_cycle_end = obs.of_kind(EpisodeKind::cycle).back().end_s;
-  EXPECT_LE(obs.points.back().time_s, std::max(last_cycle_end, kStart + 3600.0) + 1e-6);
+  EXPECT_LE(obs.trace.back().time_s, std::max(last_cycle_end, kStart + 3600.0) + 1e-6);
 }
 
 TEST(Trace, TakingItChangesNothingInTheRun) {
@@ -207,13 +205,13 @@ TEST(TraceCsv, PointsGivenByTheirStateComeOutAsTheRunWorksThemOut) {
   }
   // Most points are the grid's, at whole minutes, inside steps.
   const auto on_grid =
-      std::count_if(by_run.points.begin(), by_run.points.end(),
+      std::count_if(by_run.trace.begin(), by_run.trace.end(),
                     [](const TracePoint& p) { return std::fmod(p.time_s, 60.0) == 0.0; });
-  EXPECT_GT(2 * on_grid, static_cast<long>(by_run.points.size())) << on_grid;
+  EXPECT_GT(2 * on_grid, static_cast<long>(by_run.trace.size())) << on_grid;
   std::ostringstream from_points;
   {
     TraceWriter w(from_points, s, false);
-    for (const TracePoint& p : by_run.points) w.on_trace(p);
+    for (const TracePoint& p : by_run.trace) w.on_trace(p);
   }
   EXPECT_EQ(by_writer.str(), from_points.str());
 }
