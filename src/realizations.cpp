@@ -106,13 +106,14 @@ std::vector<RealizationMetrics> run_realizations(const Scenario& scenario,
                       return simulate(scenario, rain, none, o);
                     });
 
-  const std::size_t jobs = worker_threads(options.jobs, n);
+  const std::size_t tasks = options.resample_calibration ? 2 * n : n;
+  const std::size_t jobs = worker_threads(options.jobs, tasks);
   // Workers take no more realizations once `halt` is set: for the user's stop and for any error.
   // A realization under way stops only for the user's stop.
   std::atomic<bool> halt{false};
   std::atomic<std::size_t> next{0};
-  std::vector<RealizationMetrics> metrics(n);
-  std::vector<std::exception_ptr> errors(n);
+  std::vector<RealizationMetrics> metrics(tasks);
+  std::vector<std::exception_ptr> errors(tasks);
   const auto user_stop = [&] { return options.stop != nullptr && options.stop->load(); };
   const auto worker = [&] {
     RunOptions run_options;
@@ -121,12 +122,11 @@ std::vector<RealizationMetrics> run_realizations(const Scenario& scenario,
       if (user_stop()) halt.store(true);
       if (halt.load()) return;
       const std::size_t k = next.fetch_add(1);
-      if (k >= n) return;
+      if (k >= tasks) return;
       try {
-        metrics[k] = realization_metrics(run(k,
-                                             realization_record(as_read, scenario.rain.disaggregate,
-                                                                k, options.resample_calibration),
-                                             run_options));
+        metrics[k] = realization_metrics(
+            run(k, realization_record(as_read, scenario.rain.disaggregate, k % n, k >= n),
+                run_options));
       } catch (...) {
         errors[k] = std::current_exception();
         halt.store(true);

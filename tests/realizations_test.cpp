@@ -4,6 +4,7 @@
 
 #include <algorithm>
 #include <atomic>
+#include <mutex>
 #include <thread>
 #include <utility>
 #include <vector>
@@ -168,18 +169,31 @@ TEST(Realizations, RecordOfRealizationKIsTheDisaggregationWithTheSeedPlusK) {
   EXPECT_EQ(plain.step_s, 3600);
 }
 
-TEST(Realizations, AResampledRealizationDrawsOnItsOwnResampleOfTheCalibration) {
-  // hourly_record's three hours spread by fragments of a hand library of half-hour steps: two
-  // one-hour spells, all in the first half and all in the second.
-  Scenario s = hourly_scenario();
-  Disaggregation& how = *s.rain.disaggregate;
-  how.method = DisaggregationMethod::fragments;
-  how.step_s = 1800;
+// A hand library of half-hour steps: two one-hour spells, all in the first half and all in the
+// second.
+FragmentLibrary half_hour_library() {
   FragmentLibrary library;
   library.length_s = 3600;
   library.intervals = {{4e-3, false, false, 0.0, {0.0, 1.0, 1.0}, 3600},
                        {4e-3, false, false, 0.0, {0.0, 0.0, 1.0}, 3600}};
-  how.fragments = {library};
+  return library;
+}
+
+// hourly_scenario with its record spread by fragments of half_hour_library.
+Scenario fragments_scenario() {
+  Scenario s = hourly_scenario();
+  Disaggregation& how = *s.rain.disaggregate;
+  how.method = DisaggregationMethod::fragments;
+  how.step_s = 1800;
+  how.fragments = {half_hour_library()};
+  return s;
+}
+
+TEST(Realizations, AResampledRealizationDrawsOnItsOwnResampleOfTheCalibration) {
+  // hourly_record's three hours spread by fragments of half_hour_library.
+  const Scenario s = fragments_scenario();
+  const Disaggregation& how = *s.rain.disaggregate;
+  const FragmentLibrary library = half_hour_library();
   EXPECT_TRUE(resamples_calibration(s.rain.disaggregate));
   EXPECT_FALSE(resamples_calibration(hourly_scenario().rain.disaggregate));  // cascade
   EXPECT_FALSE(resamples_calibration(std::nullopt));
@@ -210,6 +224,43 @@ TEST(Realizations, AResampledRealizationDrawsOnItsOwnResampleOfTheCalibration) {
   // The resample seeds differ from the draw seeds they come from, and from one another.
   EXPECT_NE(resample_seed(11), 11u);
   EXPECT_NE(resample_seed(11), resample_seed(12));
+}
+
+TEST(Realizations, RunTheResampledSetAfterTheDrawsInOnePool) {
+  // With resample_calibration, tasks n to 2n - 1 are realizations 0 to n - 1 on resamples of the
+  // calibration record, after the draws.
+  const Scenario s = fragments_scenario();
+  const RainSeries as_read = hourly_record();
+  constexpr std::size_t n = 3;
+  std::vector<RainSeries> records(2 * n);
+  std::mutex records_mutex;
+  RealizationOptions two;
+  two.jobs = 2;
+  two.resample_calibration = true;
+  two.run = [&](std::size_t k, const RainSeries& rain, const RunOptions&) {
+    const std::lock_guard<std::mutex> lock(records_mutex);
+    records.at(k) = rain;
+    return RunResult{};
+  };
+  ASSERT_EQ(run_realizations(s, as_read, n, two).size(), 2 * n);
+  for (std::size_t k = 0; k < 2 * n; ++k) {
+    const RainSeries expected = realization_record(as_read, s.rain.disaggregate, k % n, k >= n);
+    ASSERT_EQ(records[k].pulses.size(), expected.pulses.size()) << k;
+    for (std::size_t i = 0; i < expected.pulses.size(); ++i) {
+      EXPECT_EQ(records[k].pulses[i].start, expected.pulses[i].start) << k << ' ' << i;
+      EXPECT_EQ(records[k].pulses[i].depth_m, expected.pulses[i].depth_m) << k << ' ' << i;
+    }
+  }
+  // The metrics: the same on one thread as on two, in the same order.
+  RealizationOptions one;
+  one.jobs = 1;
+  one.resample_calibration = true;
+  two.run = nullptr;
+  const std::vector<RealizationMetrics> serial = run_realizations(s, as_read, n, one);
+  const std::vector<RealizationMetrics> parallel = run_realizations(s, as_read, n, two);
+  ASSERT_EQ(serial.size(), 2 * n);
+  ASSERT_EQ(parallel.size(), 2 * n);
+  for (std::size_t k = 0; k < 2 * n; ++k) expect_same(serial[k], parallel[k]);
 }
 
 TEST(Realizations, ThrowTheErrorOfAFailedRealization) {

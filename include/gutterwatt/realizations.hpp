@@ -120,8 +120,9 @@ inline constexpr RealizationColumn kRealizationColumns[] = {
 /// The spread of `runs` (at least one), realization k having used seed `first_seed + k`.
 RealizationSpread spread_of(const std::vector<RealizationMetrics>& runs, std::uint64_t first_seed);
 
-/// Runs realization `k` on its record; called from several threads at once, with `options`'
-/// stop flag in `run_options`.
+/// Runs task `k` on its record (run_realizations: realization k of the draws for k < n, and
+/// realization k - n on a resample of the calibration record for k >= n); called from several
+/// threads at once, with `options`' stop flag in `run_options`.
 using RealizationRun =
     std::function<RunResult(std::size_t k, const RainSeries& rain, const RunOptions& run_options)>;
 
@@ -136,18 +137,20 @@ struct RealizationOptions {
   /// What runs each realization (a seam for the command line's writers and for tests); empty:
   /// gutterwatt::simulate with no observer.
   RealizationRun run;
-  /// Each realization spreads the record by a resample of the calibration record
-  /// (realization_record); only where resamples_calibration.
+  /// Runs the n realizations again, each spreading the record by a resample of the
+  /// calibration record (realization_record); only where resamples_calibration.
   bool resample_calibration = false;
 };
 
 /// Runs realizations 0 to n - 1 (n >= 1) of `scenario`: realization k runs on
 /// disaggregate(as_read, how) with how = *scenario.rain.disaggregate and its seed
 /// realization_seed(how.seed, k) (a record used as read when there is no rain.disaggregate).
-/// Returns the metrics in realization order; each realization is the same whatever the number
-/// of threads. After an error no further realization starts; once the ones under way have
-/// finished, the error of the lowest-numbered failed realization is thrown. Throws Interrupted
-/// soon after `options.stop` is set.
+/// With `options.resample_calibration`, realizations n to 2n - 1 run realizations 0 to n - 1 again
+/// on resamples of the calibration record, from the same pool of workers, so that no core waits
+/// between the two sets. Returns the metrics in that order (the draws, then the resampled ones);
+/// each realization is the same whatever the number of threads. After an error no further
+/// realization starts; once the ones under way have finished, the error of the lowest-numbered
+/// failed realization is thrown. Throws Interrupted soon after `options.stop` is set.
 std::vector<RealizationMetrics> run_realizations(const Scenario& scenario,
                                                  const RainSeries& as_read, std::size_t n,
                                                  const RealizationOptions& options = {});

@@ -171,14 +171,15 @@ int run_command(const RunArgs& args) {
       rain = record;
       return run_written(record, o);
     };
-    spread = spread_of(run_realizations(sc, as_read, n, realization_options),
-                       sc.rain.disaggregate->seed);
-    if (resamples_calibration(sc.rain.disaggregate)) {
-      RealizationOptions resampling;
-      resampling.stop = &g_stop;
-      resampling.resample_calibration = true;
-      resampled =
-          spread_of(run_realizations(sc, as_read, n, resampling), sc.rain.disaggregate->seed);
+    // Where the calibration record can be resampled, as many runs again on its resamples, in
+    // the same pool of workers.
+    realization_options.resample_calibration = resamples_calibration(sc.rain.disaggregate);
+    const std::vector<RealizationMetrics> runs =
+        run_realizations(sc, as_read, n, realization_options);
+    const auto draws_end = runs.begin() + static_cast<std::ptrdiff_t>(n);
+    spread = spread_of({runs.begin(), draws_end}, sc.rain.disaggregate->seed);
+    if (realization_options.resample_calibration) {
+      resampled = spread_of({draws_end, runs.end()}, sc.rain.disaggregate->seed);
     }
   }
   RunWarnings warnings;
