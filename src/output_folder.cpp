@@ -245,7 +245,9 @@ void OutputFolder::commit() {
     // unlinkat without AT_REMOVEDIR removes a file or a link, never what a link points to, and
     // refuses a folder (EISDIR), which is left.
     for (const std::string& name : retired_) {
-      if (::unlinkat(dir_fd_, name.c_str(), 0) != 0 && errno != ENOENT && errno != EISDIR) {
+      if (::unlinkat(dir_fd_, name.c_str(), 0) == 0) {
+        removed_.push_back(name);
+      } else if (errno != ENOENT && errno != EISDIR) {
         const int error = errno;
         discard();
         throw Error((dir_ / name).string() + ": cannot remove this earlier file (" +

@@ -17,8 +17,15 @@ namespace fs = std::filesystem;
 
 std::string render_report(const fs::path& dir, std::optional<UnitSystem> units) {
   std::error_code ec;
-  if (fs::exists(dir / "timeseries.csv", ec)) return detail::render_run(dir, units);
-  if (fs::exists(dir / "sweep.csv", ec)) return detail::render_sweep(dir, units);
+  const bool run = fs::exists(dir / "timeseries.csv", ec);
+  const bool sweep = fs::exists(dir / "sweep.csv", ec);
+  if (run && sweep) {
+    throw InputError(dir.string(), 0, "",
+                     "holds both a run (timeseries.csv) and a sweep (sweep.csv); give each its "
+                     "own output folder (--out), or move one set away");
+  }
+  if (run) return detail::render_run(dir, units);
+  if (sweep) return detail::render_sweep(dir, units);
   if (!fs::exists(dir, ec)) throw InputError(dir.string(), 0, "", "no such directory");
   if (!fs::is_directory(dir, ec)) {
     throw InputError(dir.string(), 0, "", "is a file; give the output folder of a run or sweep");
@@ -34,9 +41,9 @@ fs::path write_report(const fs::path& dir, std::optional<UnitSystem> units) {
     page = render_report(dir, units);
   }
   OutputFolder folder(dir, "");
-  folder.open("report.html") << page;
+  folder.open(kReportFile) << page;
   folder.commit();
-  return dir / "report.html";
+  return dir / kReportFile;
 }
 
 }  // namespace gutterwatt

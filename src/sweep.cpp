@@ -16,6 +16,7 @@
 #include "detail.hpp"
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/output_folder.hpp"
+#include "gutterwatt/report.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
@@ -701,6 +702,8 @@ bool write_sweep_files(OutputFolder& folder, const SweepPlan& plan, const SweepR
   write_sweep_csv(folder.open("sweep.csv"), plan, result);
   write_skipped_csv(folder.open("skipped.csv"), plan, result);
   write_sweep_json(folder.open("sweep.json"), plan, result);
+  // An earlier report was drawn from the results these replace.
+  folder.retire(kReportFile);
   folder.commit();
   return true;
 }

@@ -48,6 +48,8 @@ class OutputFolder {
   /// never shows it beside this writer's set. A symbolic link of that name is removed, not
   /// followed; a folder of that name is left.
   void retire(const std::string& name);
+  /// The retired names that commit() found and removed, in the order retired.
+  const std::vector<std::string>& removed() const { return removed_; }
   /// Flushes and checks every file, then renames them all into the folder under its lock;
   /// throws Error on a write failure (earlier results kept).
   void commit();
@@ -64,6 +66,7 @@ class OutputFolder {
   int stage_fd_ = -1;
   std::vector<std::unique_ptr<File>> files_;
   std::vector<std::string> retired_;
+  std::vector<std::string> removed_;
   std::vector<std::filesystem::path> created_;  ///< folders made here, deepest first
   bool committed_ = false;
 };

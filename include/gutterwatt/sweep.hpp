@@ -274,8 +274,9 @@ void write_sweep_json(std::ostream& out, const SweepPlan& plan, const SweepResul
 void print_sweep_table(std::ostream& out, const SweepPlan& plan, const SweepResult& result,
                        std::size_t top = 10);
 
-/// Writes sweep.csv, skipped.csv and sweep.json into `folder` and commits them, unless no
-/// combination ran (earlier results are worth more than an empty table); returns whether it wrote.
+/// Writes sweep.csv, skipped.csv and sweep.json into `folder` and commits them, with an earlier
+/// report.html retired, unless no combination ran (earlier results are worth more than an empty
+/// table); returns whether it wrote.
 bool write_sweep_files(OutputFolder& folder, const SweepPlan& plan, const SweepResult& result);
 
 /// Runs the sweep and writes sweep.csv, skipped.csv and sweep.json into `dir` through an

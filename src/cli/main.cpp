@@ -142,6 +142,8 @@ int run_command(const RunArgs& args) {
       // An earlier run's trace would stand beside this run's files, and the report draw on it.
       folder->retire("trace.csv");
     }
+    // An earlier report was drawn from the results this run replaces.
+    folder->retire(kReportFile);
     observers.add(summary);
     result = simulate(sc, rain, observers, options);
     if (trace) trace->finish();
@@ -206,6 +208,7 @@ int run_command(const RunArgs& args) {
               << (dir / "events.csv").string() << ", ";
     if (sc.simulation.trace) std::cout << (dir / "trace.csv").string() << ", ";
     std::cout << (dir / "summary.json").string() << '\n';
+    print_retired_report(std::cout, *folder);
   }
   return kExitOk;
 }

@@ -1,10 +1,12 @@
 #include "output_file.hpp"
 
+#include <algorithm>
 #include <filesystem>
 #include <iostream>
 
 #include "gutterwatt/error.hpp"
 #include "gutterwatt/output_folder.hpp"
+#include "gutterwatt/report.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -38,6 +40,14 @@ void write_csv_to(const std::string& out, const std::function<void(std::ostream&
   OutputFolder folder(file.parent_path().empty() ? fs::path(".") : file.parent_path());
   write(folder.open(file.filename().string()));
   folder.commit();
+}
+
+void print_retired_report(std::ostream& out, const OutputFolder& folder) {
+  const auto& removed = folder.removed();
+  if (std::find(removed.begin(), removed.end(), kReportFile) == removed.end()) return;
+  out << "removed the earlier " << (folder.dir() / kReportFile).string()
+      << ", drawn from the results these replace; gutterwatt report " << folder.dir().string()
+      << " writes theirs\n";
 }
 
 }  // namespace gutterwatt

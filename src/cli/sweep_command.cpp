@@ -16,6 +16,7 @@
 #include "gutterwatt/realizations.hpp"
 #include "gutterwatt/sweep.hpp"
 #include "gutterwatt/sweep_shard.hpp"
+#include "output_file.hpp"
 
 namespace gutterwatt {
 namespace {
@@ -60,8 +61,9 @@ class ProgressBar {
 
 /// What a person should hear about a finished sweep (run whole or merged from shards): skipped
 /// and failed combinations and the warnings on stderr, the best rows on stdout. The exit status.
-int report_outcome(const SweepPlan& plan, const SweepResult& result, const fs::path& dir,
+int report_outcome(const SweepPlan& plan, const SweepResult& result, const OutputFolder& folder,
                    bool written, bool quiet) {
+  const fs::path& dir = folder.dir();
   const std::size_t total = result.rows.size();
   const SweepRow* first_failure = nullptr;
   for (const SweepRow& row : result.rows) {
@@ -88,6 +90,7 @@ int report_outcome(const SweepPlan& plan, const SweepResult& result, const fs::p
     print_sweep_table(std::cout, plan, result);
     std::cout << "wrote " << (dir / "sweep.csv").string() << ", " << (dir / "skipped.csv").string()
               << ", " << (dir / "sweep.json").string() << '\n';
+    print_retired_report(std::cout, folder);
   }
   return kExitOk;
 }
@@ -167,7 +170,7 @@ int sweep_command(const SweepArgs& args, const std::atomic<bool>& stop) {
     return kExitOk;
   }
   const bool written = write_sweep_files(folder, plan, result);
-  return report_outcome(plan, result, dir, written, args.quiet);
+  return report_outcome(plan, result, folder, written, args.quiet);
 }
 
 int merge_command(const MergeArgs& args) {
@@ -175,7 +178,7 @@ int merge_command(const MergeArgs& args) {
   OutputFolder folder(args.out, "");
   const MergedSweep merged = merge_shards(dirs);
   const bool written = write_sweep_files(folder, merged.plan, merged.result);
-  return report_outcome(merged.plan, merged.result, args.out, written, args.quiet);
+  return report_outcome(merged.plan, merged.result, folder, written, args.quiet);
 }
 
 }  // namespace gutterwatt
