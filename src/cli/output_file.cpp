@@ -45,9 +45,9 @@ void write_csv_to(const std::string& out, const std::function<void(std::ostream&
 void print_retired_report(std::ostream& out, const OutputFolder& folder) {
   const auto& removed = folder.removed();
   if (std::find(removed.begin(), removed.end(), kReportFile) == removed.end()) return;
-  out << "removed the earlier " << (folder.dir() / kReportFile).string()
-      << ", drawn from the results these replace; gutterwatt report " << folder.dir().string()
-      << " writes theirs\n";
+  out << "removed " << (folder.dir() / kReportFile).string()
+      << ", drawn from the earlier results; gutterwatt report " << folder.dir().string()
+      << " draws one from these\n";
 }
 
 }  // namespace gutterwatt

@@ -10,7 +10,7 @@
 namespace gutterwatt {
 
 /// After `folder`'s commit: the line saying that an earlier report.html went with the results it
-/// was drawn from, and how to write one of these, or nothing when there was none.
+/// was drawn from, and how to draw one from the new ones, or nothing when there was none.
 void print_retired_report(std::ostream& out, const OutputFolder& folder);
 
 /// Writes one file to standard output (`out` empty or "-") or, through a temporary renamed into
