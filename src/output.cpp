@@ -1,6 +1,7 @@
 #include "gutterwatt/output.hpp"
 
 #include <algorithm>
+#include <cassert>
 #include <cmath>
 #include <cstdio>
 #include <functional>
@@ -204,7 +205,12 @@ TraceWriter::~TraceWriter() { finish(); }
 
 void TraceWriter::on_trace(const TracePoint& p) { add(p); }
 
-void TraceWriter::on_trace_state(const TraceState& s, const ChainSystem&) { add(s); }
+void TraceWriter::on_trace_state(const TraceState& s, const ChainSystem& system) {
+  // The rates are worked out later by the writer's own system (the run's may be gone by then):
+  // it must be built on the scenario the run simulates.
+  assert(&system.scenario() == &scenario_);
+  add(s);
+}
 
 void TraceWriter::add(const Entry& e) {
   if (limited_ && ++rows_ * kTraceRowBytes > kMaxTraceBytes) {

@@ -20,11 +20,17 @@ using namespace gutterwatt::cli_support;
 
 namespace {
 
-// A scratch folder `name` with the demo's run in its out/.
+// A scratch folder `name` with the demo's run in its out/, and the commands run from it.
 struct DemoRun {
   explicit DemoRun(const std::string& name)
       : dir(scratch(name)), demo(source("scenarios/demo.yaml")), out(dir / "out") {
-    EXPECT_EQ(run("run " + demo + " --out " + out.string() + " --quiet", dir).status, 0);
+    EXPECT_EQ(command("run " + demo + " --out " + out.string() + " --quiet").status, 0);
+  }
+  Outcome command(const std::string& args) const { return run(args, dir); }
+  // A two-combination sweep of the demo into `folder`.
+  Outcome sweep(const fs::path& folder) const {
+    return command("sweep " + demo + " --vary roof.area_m2=20,30 --jobs 1 --out " +
+                   folder.string() + " --quiet");
   }
   fs::path dir;
   std::string demo;
@@ -35,12 +41,10 @@ struct DemoRun {
 
 TEST(EarlierTraceIsRetired, RunWithTheTraceOffRemovesTheEarlierTrace) {
   const DemoRun d("retire-trace-run");
-  const fs::path& dir = d.dir;
-  const std::string& demo = d.demo;
   const fs::path& out = d.out;
   ASSERT_TRUE(fs::exists(out / "trace.csv"));
   const auto off =
-      run("run " + demo + " --set simulation.trace=off --out " + out.string() + " --quiet", dir);
+      d.command("run " + d.demo + " --set simulation.trace=off --out " + out.string() + " --quiet");
   ASSERT_EQ(off.status, 0) << off.err;
   EXPECT_EQ(names_in(out), (std::set<std::string>{"events.csv", "summary.json", "timeseries.csv"}));
 }
@@ -78,12 +82,10 @@ TEST(EarlierTraceIsRetired, OnlyAtCommitAndNeverThroughALinkOrAFolder) {
 
 TEST(EarlierReportIsRetired, ARunRemovesTheEarlierPageAndSaysSo) {
   const DemoRun d("retire-report-run");
-  const fs::path& dir = d.dir;
-  const std::string& demo = d.demo;
   const fs::path& out = d.out;
-  ASSERT_EQ(run("report " + out.string(), dir).status, 0);
+  ASSERT_EQ(d.command("report " + out.string()).status, 0);
   ASSERT_TRUE(fs::exists(out / "report.html"));
-  const auto again = run("run " + demo + " --set roof.area_m2=20 --out " + out.string(), dir);
+  const auto again = d.command("run " + d.demo + " --set roof.area_m2=20 --out " + out.string());
   ASSERT_EQ(again.status, 0) << again.err;
   EXPECT_FALSE(fs::exists(out / "report.html"));
   EXPECT_NE(again.out.find("removed " + (out / "report.html").string() +
@@ -93,35 +95,27 @@ TEST(EarlierReportIsRetired, ARunRemovesTheEarlierPageAndSaysSo) {
   EXPECT_NE(again.out.find("gutterwatt report " + out.string() + " draws one from these"),
             std::string::npos);
   // With nothing to remove, nothing is said.
-  const auto third = run("run " + demo + " --out " + out.string(), dir);
+  const auto third = d.command("run " + d.demo + " --out " + out.string());
   ASSERT_EQ(third.status, 0) << third.err;
   EXPECT_EQ(third.out.find("report.html"), std::string::npos);
 }
 
 TEST(EarlierReportIsRetired, ASweepRemovesItAndAFolderOfBothGetsNoPage) {
   const DemoRun d("retire-report-sweep");
-  const fs::path& dir = d.dir;
-  const std::string& demo = d.demo;
   const fs::path& out = d.out;
-  ASSERT_EQ(run("report " + out.string(), dir).status, 0);
-  const auto sweep = run(
-      "sweep " + demo + " --vary roof.area_m2=20,30 --jobs 1 --out " + out.string() + " --quiet",
-      dir);
+  ASSERT_EQ(d.command("report " + out.string()).status, 0);
+  const auto sweep = d.sweep(out);
   ASSERT_EQ(sweep.status, 0) << sweep.err;
   EXPECT_FALSE(fs::exists(out / "report.html"));
-  const auto page = run("report " + out.string(), dir);
+  const auto page = d.command("report " + out.string());
   EXPECT_EQ(page.status, 2);
   EXPECT_NE(page.err.find("holds both a run (timeseries.csv) and a sweep (sweep.csv)"),
             std::string::npos)
       << page.err;
   EXPECT_FALSE(fs::exists(out / "report.html"));
   // The sweep's own folder gets its page as before.
-  const fs::path alone = dir / "alone";
-  ASSERT_EQ(run("sweep " + demo + " --vary roof.area_m2=20,30 --jobs 1 --out " + alone.string() +
-                    " --quiet",
-                dir)
-                .status,
-            0);
-  EXPECT_EQ(run("report " + alone.string(), dir).status, 0);
+  const fs::path alone = d.dir / "alone";
+  ASSERT_EQ(d.sweep(alone).status, 0);
+  EXPECT_EQ(d.command("report " + alone.string()).status, 0);
   EXPECT_TRUE(fs::exists(alone / "report.html"));
 }
