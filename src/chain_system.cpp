@@ -14,10 +14,29 @@ ChainSystem::ChainSystem(const Scenario& scenario)
       delivery_(gutter_delivery(scenario.reservoir)),
       plant_(plant_config(scenario)),
       release_(make_release(scenario.release)),
-      trickle_volume_m3_(plant_.column_area_m2() * kTrickleHead_m),
+      trickle_volume_m3_(plant_.has_column() ? plant_.column_area_m2() * trickle_head_m(plant_)
+                                             : 0.0),
       trickle_flow_m3_per_s_(plant_.column_nozzle_flow_m3_per_s(trickle_volume_m3_)),
       self_discharge_per_s_(self_discharge_rate_per_s(scenario.battery)),
       pipe_volume_m3_(circle_area_m2(scenario.drop_pipe.diameter_m) * scenario.drop_pipe.length_m) {
+}
+
+double trickle_head_m(const Plant& plant) {
+  const auto jet_W = [&](double head_m) {
+    const double volume_m3 = plant.column_area_m2() * head_m;
+    return plant.power(plant.column_nozzle_flow_m3_per_s(volume_m3), head_m).jet_W;
+  };
+  const double cut_in = plant.cut_in_W();
+  if (jet_W(kTrickleHeadMax_m) <= cut_in) return kTrickleHeadMax_m;
+  if (jet_W(kTrickleHeadMin_m) >= cut_in) return kTrickleHeadMin_m;
+  // The jet's power rises with the head: bisection to a micrometre.
+  double lo = kTrickleHeadMin_m;
+  double hi = kTrickleHeadMax_m;
+  while (hi - lo > 1e-6) {
+    const double mid = 0.5 * (lo + hi);
+    (jet_W(mid) <= cut_in ? lo : hi) = mid;
+  }
+  return lo;
 }
 
 namespace {

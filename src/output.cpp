@@ -205,7 +205,7 @@ TraceWriter::~TraceWriter() { finish(); }
 
 void TraceWriter::on_trace(const TracePoint& p) { add(p); }
 
-void TraceWriter::on_trace_state(const TraceState& s, const ChainSystem& system) {
+void TraceWriter::on_trace_state(const TraceState& s, [[maybe_unused]] const ChainSystem& system) {
   // The rates are worked out later by the writer's own system (the run's may be gone by then):
   // it must be built on the scenario the run simulates.
   assert(&system.scenario() == &scenario_);

@@ -52,7 +52,8 @@ using ChainState = std::array<double, kSlots>;
 inline constexpr std::array<std::size_t, 3> kReadSlots = {kReservoir, kColumn, kBattery};
 
 /// A head column fills and drains (partial), spills over its top (full), or, nearly empty under
-/// a trickle, passes what arrives straight to the nozzle holding its puddle (trickle).
+/// a trickle, passes what arrives straight to the nozzle while its water follows its own law
+/// beside the solver (trickle; column_trickle.hpp).
 enum class ColumnMode { trickle, partial, full };
 
 /// Discrete state: which branch of each piecewise law is in force.
@@ -106,10 +107,19 @@ enum GuardId {
 using Guards = std::array<double, kGuardCount>;
 
 /// Head-column water height below which, with a trickle of inflow, the column passes the inflow
-/// straight to the nozzle: its drain time constant 2 A H / Q is then under a minute, which would
-/// make the solver's steps stability-bound for hours of dribble, while the power at such heads is
-/// far below any generator's cut-in.
-inline constexpr double kTrickleHead_m = 0.05;
+/// straight to the nozzle, at the head that flow needs: its drain time constant 2 A H / Q is then
+/// seconds, which would make the solver's steps stability-bound for hours of dribble. Its water
+/// meanwhile follows its own law beside the solver (column_trickle.hpp). At most this high...
+inline constexpr double kTrickleHeadMax_m = 0.1;
+/// ...and lower where a jet at that head could run the generator (trickle_head_m), but not below
+/// this: with no cut-in at all the column is stepped down to this head.
+inline constexpr double kTrickleHeadMin_m = 0.005;
+/// The head below which `plant`'s column passes a trickle on: kTrickleHeadMax_m, or the head at
+/// which the nozzle's jet power reaches the generator's cut-in where that is lower (never below
+/// kTrickleHeadMin_m). The jet's power exceeds the generator's output, so below this head the
+/// generator stays off, as it would with the column stepped: the trickle's power is not worked
+/// out from the head that flow needs in its place.
+double trickle_head_m(const Plant& plant);
 /// A siphon or float valve on a long level gutter starts only while the depth at the outlet,
 /// with it running and the drop pipe's volume drawn, would stand this far above its break
 /// level: a project choice that keeps the start and the end apart where the gutter barely feeds
@@ -162,6 +172,8 @@ class ChainSystem {
   const Scenario& scenario() const { return sc_; }
   const Plant& plant() const { return plant_; }
   const Release& release() const { return *release_; }
+  /// The head column's water at trickle_head_m (0 without a column).
+  double trickle_volume_m3() const { return trickle_volume_m3_; }
 
  private:
   const Scenario& sc_;
@@ -169,7 +181,7 @@ class ChainSystem {
   std::optional<GutterDelivery> delivery_;  // a level gutter: what it delivers to its outlet
   Plant plant_;
   std::unique_ptr<Release> release_;
-  double trickle_volume_m3_;      // head column: volume at kTrickleHead_m
+  double trickle_volume_m3_;      // head column: volume at trickle_head_m
   double trickle_flow_m3_per_s_;  // the nozzle's flow from trickle_volume_m3_
   double self_discharge_per_s_;   // the battery's self-discharge rate constant
   double pipe_volume_m3_;         // the drop pipe's: a release runs full once it has filled

@@ -14,6 +14,7 @@
 #include "gutterwatt/accounts.hpp"
 #include "gutterwatt/calendar.hpp"
 #include "gutterwatt/chain_system.hpp"
+#include "gutterwatt/column_trickle.hpp"
 
 namespace gutterwatt {
 
@@ -60,8 +61,12 @@ class Stepper {
   void integrate(double t0, double t1, const Forcing& f);
   void integrate_fixed(double t0, double t1, const Forcing& f);
   bool coasted_to_end(double t, double span, const Forcing& f);
-  void accept_step(const ChainState& x_end, double dt, const ChainRates& r, int fired,
+  /// Makes `x_end` the engine's state, with the trickle's column water followed over the step;
+  /// true when that water moved (a slot the solver carries changed beside it).
+  bool accept_step(const ChainState& x_end, double dt, const ChainRates& r, int fired,
                    const Forcing& f, double t_abs);
+  /// Advances the column's water in `x` over `dt` while it trickles; true when it moved.
+  bool follow_trickle_water(ChainState& x, const StepInflow& inflow, double dt);
   void switch_mode(int k, const Forcing& f, const ChainRates& r);
   void coast(double t, double span, const Forcing& f);
   void evaporate_at_rest(double dt, const Forcing& f);
@@ -81,6 +86,8 @@ class Stepper {
   double now_s_ = 0.0;            // absolute, seconds since the epoch
   double last_step_s_ = 10.0;     // solver step carried from one segment into the next
   bool moving_ = false;           // stepped (not at rest) since the last trace point at rest
+  double trickle_inflow_m3_per_s_ = 0.0;  // the release where the step now starting starts
+  double trickle_substep_s_ = 0.0;        // the trickle water's substep carried on
   SolverStats stats_;
   ChainState error_scale_{};  // the error checker's absolute scale per slot
   /// The rates, derivative and guards at the end of the last step that ended without a switch,
