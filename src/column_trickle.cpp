@@ -12,19 +12,24 @@ namespace {
 // where the recurrence cancels, their series sum_j z^j / (j + k)!.
 std::array<double, 3> phi123(double z) {
   if (std::abs(z) < 0.5) {
+    // 1/n for n = 2 .. 15, so the terms need no division.
+    static constexpr std::array<double, 14> kInverse = {
+        1.0 / 2, 1.0 / 3,  1.0 / 4,  1.0 / 5,  1.0 / 6,  1.0 / 7,  1.0 / 8,
+        1.0 / 9, 1.0 / 10, 1.0 / 11, 1.0 / 12, 1.0 / 13, 1.0 / 14, 1.0 / 15};
     std::array<double, 3> sum{};
     std::array<double, 3> term = {1.0, 0.5, 1.0 / 6.0};
     for (int j = 0; j < 12; ++j) {  // the next term is below 0.5^12 / 13! = 4e-14
       for (int k = 0; k < 3; ++k) {
         sum[k] += term[k];
-        term[k] *= z / (j + k + 2);
+        term[k] *= z * kInverse[j + k];
       }
     }
     return sum;
   }
-  const double p1 = std::expm1(z) / z;
-  const double p2 = (p1 - 1.0) / z;
-  return {p1, p2, (p2 - 0.5) / z};
+  const double inverse = 1.0 / z;
+  const double p1 = std::expm1(z) * inverse;
+  const double p2 = (p1 - 1.0) * inverse;
+  return {p1, p2, (p2 - 0.5) * inverse};
 }
 
 // Substeps shorter than this are taken whatever their error estimate: the flows are then
@@ -45,9 +50,20 @@ TrickleWater trickle_water_after(const Plant& plant, double volume_m3, const Ste
   const double q0 = inflow.start_m3_per_s;
   const double b = 6.0 * (inflow.mean_m3_per_s - 0.5 * (q0 + inflow.end_m3_per_s));
   const double a = inflow.end_m3_per_s - q0 + b;
-  // The drain's slope: Qn / (2 V) on the orifice law, Qn / V on the linear one below the join.
+  // Below the join (kNozzleLinearHead_m) the drain is linear, Qn = k V; above it the orifice law,
+  // whose slope is Qn / (2 V).
   const double join_m3 = plant.column_area_m2() * kNozzleLinearHead_m;
   const double linear_rate_per_s = plant.column_nozzle_flow_m3_per_s(join_m3) / join_m3;
+  const auto drain_at = [&](double volume) {
+    return volume < join_m3 ? linear_rate_per_s * volume
+                            : plant.column_nozzle_flow_m3_per_s(volume);
+  };
+  // Step-size control for a local error of order h^3 (Hairer, Norsett & Wanner, Solving ODEs I,
+  // II.4), growing at most fivefold: the cube root is taken only where it is not capped.
+  constexpr double kMaxGrowth = 5.0;
+  constexpr double kSafety = 0.9;
+  constexpr double kCappedRatio =
+      (kMaxGrowth / kSafety) * (kMaxGrowth / kSafety) * (kMaxGrowth / kSafety);
   double t = 0.0;
   double v = std::max(0.0, volume_m3);
   double h = first_substep_s > 0.0 ? std::min(first_substep_s, dt_s) : dt_s;
@@ -63,24 +79,20 @@ TrickleWater trickle_water_after(const Plant& plant, double volume_m3, const Ste
     // stage solves the linear part exactly, Q's quadratic included (h^k phi_k weights); N, the
     // drain law's departure from its tangent, vanishes with its slope at V0, so it enters the
     // second stage as 2 h phi_3 N(U). The second stage's size is the first's error estimate.
-    const double drain = plant.column_nozzle_flow_m3_per_s(v);
-    const double lambda = v >= join_m3 ? drain / (2.0 * v) : linear_rate_per_s;
+    // Where V0 and the stage both lie below the join, N is nil: the stage is exact.
+    const double drain = drain_at(v);
+    const double lambda = v < join_m3 ? linear_rate_per_s : drain / (2.0 * v);
     const auto [p1, p2, p3] = phi123(-lambda * h);
     const double stage =
         std::max(0.0, v + h * p1 * (q - drain) + h * h * p2 * dq + 2.0 * h * h * h * p3 * c);
-    const double departure =
-        drain + lambda * (stage - v) - plant.column_nozzle_flow_m3_per_s(stage);
-    const double correction = 2.0 * h * p3 * departure;
+    const double correction = v < join_m3 && stage < join_m3
+                                  ? 0.0
+                                  : 2.0 * h * p3 * (drain + lambda * (stage - v) - drain_at(stage));
     const double error = std::abs(correction);
     const double tolerance = rtol * (scale_m3 + v);
-    // Step-size control for a local error of order h^3 (Hairer, Norsett & Wanner, Solving ODEs I,
-    // II.4), growing at most fivefold (the cube root is not taken where it would be capped).
-    constexpr double kMaxGrowth = 5.0;
-    constexpr double kSafety = 0.9;
-    const double ratio = tolerance / std::max(error, 1e-300);
-    const double factor = ratio >= std::pow(kMaxGrowth / kSafety, 3)
+    const double factor = error * kCappedRatio <= tolerance
                               ? kMaxGrowth
-                              : std::max(0.2, kSafety * std::cbrt(ratio));
+                              : std::max(0.2, kSafety * std::cbrt(tolerance / error));
     if (error <= tolerance || h <= kMinSubstep_s) {
       t += h;
       v = std::max(0.0, stage + correction);
