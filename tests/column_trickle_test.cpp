@@ -6,6 +6,7 @@
 #include <string>
 
 #include "gutterwatt/chain_system.hpp"
+#include "gutterwatt/hydraulics.hpp"
 #include "gutterwatt/scenario.hpp"
 #include "gutterwatt/units.hpp"
 
@@ -23,8 +24,6 @@ const Plant& demo_plant() {
 constexpr double kColumnDiameter_m = 0.120;
 constexpr double kNozzleDiameter_m = 0.006;
 constexpr double kCd = 0.95;
-
-double circle_m2(double d) { return 0.25 * 3.14159265358979 * d * d; }
 
 // The tank drain of REFERENCES.md section 5 (Torricelli's law; status C there): a tank of 0.5 m2
 // over a 20 mm orifice with Cd 0.61 falls from 1.0 m to a quarter of it in 589.1 s
@@ -46,9 +45,9 @@ TEST(ColumnTrickle, DrainsAsTheReferenceTankDoes) {
 // Under a steady inflow Q the column settles where the nozzle passes Q: the orifice equation
 // Q = Cd a sqrt(2 g H) solved for H, H = (Q / (Cd a))^2 / (2 g).
 TEST(ColumnTrickle, SettlesWhereTheNozzlePassesTheInflow) {
-  const double area = circle_m2(kColumnDiameter_m);
+  const double area = circle_area_m2(kColumnDiameter_m);
   const double q = 2.0 / 60'000.0;  // 2 L/min
-  const double h = std::pow(q / (kCd * circle_m2(kNozzleDiameter_m)), 2) / (2.0 * 9.80665);
+  const double h = std::pow(q / (kCd * circle_area_m2(kNozzleDiameter_m)), 2) / (2.0 * 9.80665);
   for (double start_m : {0.0, 0.3}) {
     const TrickleWater after = trickle_water_after(demo_plant(), area * start_m,
                                                    StepInflow{q, q, q}, 3600.0, 1e-6, 1e-4, 0.0);
@@ -60,8 +59,14 @@ TEST(ColumnTrickle, SettlesWhereTheNozzlePassesTheInflow) {
 // it exactly: from V0 with nothing arriving, V0 e^(-k t), in one substep.
 TEST(ColumnTrickle, SolvesTheLinearDrainExactlyInOneSubstep) {
   const Plant& plant = demo_plant();
-  const double join = circle_m2(kColumnDiameter_m) * kNozzleLinearHead_m;
-  const double k = plant.column_nozzle_flow_m3_per_s(join) / join;
+  // k = Qn(join) / V(join) = Cd a sqrt(2 g h) / (A h) at h = 10 mm; by hand, (6 / 120)^2 x 0.95
+  // x sqrt(2 x 9.80665 x 0.01) / 0.01 = 0.10518 /s.
+  const double area = circle_area_m2(kColumnDiameter_m);
+  const double h = kNozzleLinearHead_m;
+  const double k =
+      kCd * circle_area_m2(kNozzleDiameter_m) * std::sqrt(2.0 * 9.80665 * h) / (area * h);
+  EXPECT_NEAR(k, 0.10518, 1e-5);
+  const double join = area * h;
   const double v0 = 0.5 * join;
   const double t = 30.0;
   const TrickleWater after = trickle_water_after(plant, v0, StepInflow{}, t, 1e-6, join, 0.0);
@@ -75,7 +80,7 @@ TEST(ColumnTrickle, SolvesTheLinearDrainExactlyInOneSubstep) {
 // the tolerance asked, relative to the scale (measured: 0.2 to 0.45 of it).
 TEST(ColumnTrickle, AgreesWithAFineFixedStepIntegration) {
   const Plant& plant = demo_plant();
-  const double area = circle_m2(kColumnDiameter_m);
+  const double area = circle_area_m2(kColumnDiameter_m);
   const double scale = area * 0.1;
   const StepInflow rising{0.2 / 60'000.0, 2.0 / 60'000.0, 0.8 / 60'000.0};
   const double dt = 60.0;
@@ -111,7 +116,7 @@ TEST(ColumnTrickle, AgreesWithAFineFixedStepIntegration) {
 // The column cannot hold more than it held plus what arrived, nor less than nothing.
 TEST(ColumnTrickle, HoldsNoMoreThanArrivedAndNeverLessThanNothing) {
   const Plant& plant = demo_plant();
-  const double area = circle_m2(kColumnDiameter_m);
+  const double area = circle_area_m2(kColumnDiameter_m);
   const StepInflow q{1e-4, 1e-4, 1e-4};
   const TrickleWater filled = trickle_water_after(plant, 0.0, q, 5.0, 1e-3, area * 0.1, 0.0);
   EXPECT_LE(filled.volume_m3, 5.0 * 1e-4);
@@ -128,7 +133,7 @@ TEST(ColumnTrickle, HoldsNoMoreThanArrivedAndNeverLessThanNothing) {
 // 0.05 m; with none, the floor.
 TEST(ColumnTrickle, TrickleHeadStaysWhereTheJetCannotRunTheGenerator) {
   const double jet_coefficient = demo_plant().density_kg_per_m3() * 9.80665 * kCd * 0.97 * 0.97 *
-                                 circle_m2(kNozzleDiameter_m) * std::sqrt(2.0 * 9.80665);
+                                 circle_area_m2(kNozzleDiameter_m) * std::sqrt(2.0 * 9.80665);
   EXPECT_NEAR(jet_coefficient * std::pow(kTrickleHeadMax_m, 1.5), 0.035, 5e-4);
   EXPECT_DOUBLE_EQ(trickle_head_m(demo_plant()), kTrickleHeadMax_m);
   Scenario sc = load_scenario(std::string(GUTTERWATT_SOURCE_DIR) + "/scenarios/demo.yaml", {});

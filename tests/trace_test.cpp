@@ -7,6 +7,7 @@
 #include <algorithm>
 #include <cmath>
 #include <sstream>
+#include <stdexcept>
 #include <string>
 #include <vector>
 
@@ -214,6 +215,23 @@ TEST(TraceCsv, PointsGivenByTheirStateComeOutAsTheRunWorksThemOut) {
     for (const TracePoint& p : by_run.trace) w.on_trace(p);
   }
   EXPECT_EQ(by_writer.str(), from_points.str());
+}
+
+// The writer works a point's rates out with a system of its own on its scenario, so a point
+// handed by a run of another scenario (a copy, however alike) is refused at once; its own
+// scenario's run is taken.
+TEST(TraceCsv, RefusesAPointHandedByARunOfAnotherScenario) {
+  const Scenario s = box_run();
+  const Scenario copy = s;
+  const ChainSystem other(copy);
+  const ChainSystem own(s);
+  std::ostringstream out;
+  TraceWriter w(out, s, false);
+  EXPECT_THROW(w.on_trace_state(TraceState{}, other), std::logic_error);
+  EXPECT_NO_THROW(w.on_trace_state(TraceState{}, own));
+  w.finish();
+  const std::string text = out.str();
+  EXPECT_EQ(std::count(text.begin(), text.end(), '\n'), 2) << text;  // the header and the one row
 }
 
 }  // namespace
