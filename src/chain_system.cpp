@@ -3,19 +3,36 @@
 #include <algorithm>
 #include <cmath>
 #include <sstream>
+#include <stdexcept>
 
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
 
-ChainSystem::ChainSystem(const Scenario& scenario)
+namespace {
+
+// The trickle limit of `plant`'s column: trickle_head_m, or `asked_m` where that is > 0.
+double trickle_limit_for(const Plant& plant, double asked_m) {
+  const double natural_m = trickle_head_m(plant);
+  if (asked_m <= 0.0) return natural_m;
+  if (asked_m > natural_m) {
+    throw std::invalid_argument("trickle limit " + std::to_string(asked_m) +
+                                " m is above this column's " + std::to_string(natural_m) + " m");
+  }
+  return asked_m;
+}
+
+}  // namespace
+
+ChainSystem::ChainSystem(const Scenario& scenario, double trickle_limit_m)
     : sc_(scenario),
       geometry_(scenario.reservoir),
       delivery_(gutter_delivery(scenario.reservoir)),
       plant_(plant_config(scenario)),
       release_(make_release(scenario.release)),
-      trickle_volume_m3_(plant_.has_column() ? plant_.column_area_m2() * trickle_head_m(plant_)
-                                             : 0.0),
+      trickle_volume_m3_(plant_.has_column()
+                             ? plant_.column_area_m2() * trickle_limit_for(plant_, trickle_limit_m)
+                             : 0.0),
       trickle_flow_m3_per_s_(plant_.column_nozzle_flow_m3_per_s(trickle_volume_m3_)),
       self_discharge_per_s_(self_discharge_rate_per_s(scenario.battery)),
       pipe_volume_m3_(circle_area_m2(scenario.drop_pipe.diameter_m) * scenario.drop_pipe.length_m) {

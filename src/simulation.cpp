@@ -29,7 +29,7 @@ class Engine {
       : sc_(sc),
         rain_(rain),
         observer_(observer),
-        system_(sc),
+        system_(sc, options.trickle_head_m),
         ledger_(system_, observer),
         stepper_(system_, ledger_, options),
         options_(options) {}

@@ -3,6 +3,7 @@
 #include <gtest/gtest.h>
 
 #include <algorithm>
+#include <stdexcept>
 
 #include "test_support.hpp"
 
@@ -15,6 +16,18 @@ using test_support::make_scenario;
 // at 62 mm, a bell siphon's lip at 50 mm, a 40 m2 roof with C = 1 and no initial loss.
 constexpr double kPlan_m2 = 0.1 * 8.0;
 constexpr double kRain_m_per_s = 36e-3 / 3600.0;  // 36 mm/h
+
+// A trickle limit asked for in place of the column's own (RunOptions::trickle_head_m) is taken
+// below it, and refused above it, where the jet could run the generator while the column trickles.
+TEST(ChainSystem, TakesATrickleLimitBelowTheColumnsOwnAndRefusesOneAbove) {
+  Scenario sc = make_scenario();
+  sc.head_column = HeadColumnConfig{0.12, 3.0};
+  const ChainSystem own(sc);
+  const double own_m = trickle_head_m(own.plant());
+  const ChainSystem lower(sc, 0.5 * own_m);
+  EXPECT_NEAR(lower.trickle_volume_m3(), 0.5 * own.trickle_volume_m3(), 1e-15);
+  EXPECT_THROW(ChainSystem(sc, 1.01 * own_m), std::invalid_argument);
+}
 
 TEST(ChainSystem, ReservoirRateLeavesOutTheRoofAndTheRoofSlotsStayPut) {
   Scenario sc = make_scenario();

@@ -131,7 +131,9 @@ inline constexpr double kColumnDry_m3 = 1e-9;
 /// The rates and guards of one scenario's chain. Holds the scenario by reference.
 class ChainSystem {
  public:
-  explicit ChainSystem(const Scenario& scenario);
+  /// `trickle_limit_m`, when > 0, takes the place of trickle_head_m(plant) (RunOptions); a
+  /// higher one is refused (std::invalid_argument): the generator could then run in trickle.
+  explicit ChainSystem(const Scenario& scenario, double trickle_limit_m = 0.0);
 
   /// Fills `r` and the derivative `d` (every field and slot) for state `x` in mode `m`: the
   /// solver's hot path, which must not copy ChainRates. The reservoir's rate leaves out the

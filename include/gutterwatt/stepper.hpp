@@ -35,6 +35,9 @@ struct RunOptions {
   /// instead of the error-controlled Dormand-Prince steps, switches located by bisection on
   /// re-taken steps to 1e-10 s, and no step budget. Slow; for checking the default solver.
   double fixed_step_s = 0.0;
+  /// When > 0, the head column's trickle limit (m of head) in place of trickle_head_m(plant),
+  /// which it must not exceed: for checking that the results do not depend on it.
+  double trickle_head_m = 0.0;
 };
 
 /// Advances a run's state and mode through segments of constant forcing, handing every step and
