@@ -280,19 +280,25 @@ TEST(Accuracy, SwitchesWhereTheLevelTurnsInsideAStepAgreeWithTheFixedStepReferen
   }
 }
 
+// The demo scenario (invented) on its own nine months of invented 5-minute rain, run with
+// `options`.
+RunResult run_demo_scenario(const RunOptions& options) {
+  static const Scenario sc =
+      load_scenario(std::string(GUTTERWATT_SOURCE_DIR) + "/scenarios/demo.yaml", {});
+  static const RainSeries rain = load_rain(sc.rain);
+  Observer none;
+  return simulate(sc, rain, none, options);
+}
+
 // Issue 16: the demo scenario itself, nine months of its invented 5-minute record, against its
 // fixed-step reference, within issue 16's 1e-5. Before the guards were looked at where the level
 // turns inside a step, its energy was 3.4e-5 above the reference's: the head column's filling at
 // 2025-06-22 14:15:20 was passed over between two steps' ends. Now 1.6e-6.
 TEST(Accuracy, DemoScenarioAgreesWithItsFixedStepReference) {
-  const Scenario sc =
-      load_scenario(std::string(GUTTERWATT_SOURCE_DIR) + "/scenarios/demo.yaml", {});
-  const RainSeries rain = load_rain(sc.rain);
-  Observer none;
   RunOptions fixed;
   fixed.fixed_step_s = 0.05;
-  const RunResult reference = simulate(sc, rain, none, fixed);
-  const RunResult run = simulate(sc, rain, none, RunOptions{});
+  const RunResult reference = run_demo_scenario(fixed);
+  const RunResult run = run_demo_scenario(RunOptions{});
   EXPECT_EQ(run.cycles, reference.cycles);
   EXPECT_EQ(run.overflow_events, reference.overflow_events);
   EXPECT_LT(relative_difference(run.totals.electrical_J, reference.totals.electrical_J), 1e-5);
@@ -307,17 +313,13 @@ TEST(Accuracy, DemoScenarioAgreesWithItsFixedStepReference) {
 // With the column's water held still in trickle (the following switched off), the 0.05 m and
 // 0.1 m runs come out 5.1e-5 and 2.2e-4 below the 5 mm one, and this test fails.
 TEST(Accuracy, TheTrickleLimitDoesNotMoveTheDemoScenariosEnergy) {
-  const Scenario sc =
-      load_scenario(std::string(GUTTERWATT_SOURCE_DIR) + "/scenarios/demo.yaml", {});
-  const RainSeries rain = load_rain(sc.rain);
-  Observer none;
   RunOptions stepped;
   stepped.trickle_head_m = 0.005;
-  const RunResult nearly_dry = simulate(sc, rain, none, stepped);
+  const RunResult nearly_dry = run_demo_scenario(stepped);
   RunOptions halved;
   halved.trickle_head_m = 0.05;
   for (const RunOptions& options : {RunOptions{}, halved}) {
-    const RunResult run = simulate(sc, rain, none, options);
+    const RunResult run = run_demo_scenario(options);
     EXPECT_EQ(run.cycles, nearly_dry.cycles) << options.trickle_head_m;
     EXPECT_EQ(run.overflow_events, nearly_dry.overflow_events) << options.trickle_head_m;
     EXPECT_LT(relative_difference(run.totals.electrical_J, nearly_dry.totals.electrical_J), 2e-5)
