@@ -31,7 +31,7 @@ constexpr double kCd = 0.95;
 // plan area over a nozzle of that size and coefficient.
 TEST(ColumnTrickle, DrainsAsTheReferenceTankDoes) {
   Scenario sc = load_scenario(std::string(GUTTERWATT_SOURCE_DIR) + "/scenarios/demo.yaml", {});
-  sc.head_column->diameter_m = std::sqrt(4.0 * 0.5 / 3.14159265358979);
+  sc.head_column->diameter_m = std::sqrt(4.0 * 0.5 / kPi);
   sc.nozzle.diameter_m = 0.020;
   sc.nozzle.discharge_coefficient = 0.61;
   const Plant plant(plant_config(sc));
