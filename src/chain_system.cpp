@@ -183,12 +183,12 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
       case ColumnMode::trickle:
         g[kGuardColumn] = q_lin - r.release;
         break;
-      case ColumnMode::partial:
+      case ColumnMode::partial: {
         g[kGuardColumn] = plant_.column_capacity_m3() - x[kColumn];
-        // Back to trickle once both the puddle and the inflow are small (half the threshold).
-        g[kGuardTrickle] = std::max((x[kColumn] - 0.5 * trickle_volume_m3_) / trickle_volume_m3_,
-                                    (r.release - 0.5 * q_lin) / q_lin);
+        const std::array<double, 2> terms = trickle_guard_terms(x, r);
+        g[kGuardTrickle] = std::max(terms[0], terms[1]);
         break;
+      }
       case ColumnMode::full:
         g[kGuardColumn] = r.release - r.nozzle;
         break;
@@ -219,6 +219,14 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
       g[kGuardBattery] = reconnect_soc(bat) * bat.capacity_J - x[kBattery];
       break;
   }
+}
+
+std::array<double, 2> ChainSystem::trickle_guard_terms(const ChainState& x,
+                                                       const ChainRates& r) const {
+  // Back to trickle once both the puddle and the inflow are small (half the threshold).
+  const double q_lin = trickle_flow_m3_per_s_;
+  return {(x[kColumn] - 0.5 * trickle_volume_m3_) / trickle_volume_m3_,
+          (r.release - 0.5 * q_lin) / q_lin};
 }
 
 double ChainSystem::apply_switch(int k, ChainState& x, ChainMode& m, const Forcing& f,

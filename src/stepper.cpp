@@ -275,6 +275,8 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
   bool fresh = true;
   long segment_steps = 0;
   Guards g_prev{};
+  // The terms of the trickle guard where the step now starting starts (trickle_guard_terms).
+  std::array<double, 2> trickle_terms_prev{};
   // The reservoir's net inflow where the last step ended (NaN: not known).
   constexpr double kUnknown = std::numeric_limits<double>::quiet_NaN();
   double rise_before = kUnknown;
@@ -288,6 +290,9 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       rise_before = kUnknown;
       ChainState dxdt;
       last = settle(f, g_prev, dxdt);
+      if (mode_.column == ColumnMode::partial) {
+        trickle_terms_prev = system_.trickle_guard_terms(x_, last);
+      }
       ledger_.update_peaks(last);
       stepper.initialize(to_solver(x_, t), t, std::min(last_step_s_, span - t), &dxdt);
       fresh = false;
@@ -343,22 +348,53 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
     const auto net = [&](double tau) { return sign * rise_at(tau); };
     const double width = t_end - step.first;
     Bracket turn_at{step.first, t_end, sign * rise_start, sign * rise_end};
-    double turn = kUnknown;
-    Guards g_turn;
+    // A point inside the step where a guard at or above zero at both ends is below zero (NaN
+    // where none is known), and its value there.
+    std::array<double, kGuardCount> inside_t;
+    inside_t.fill(kUnknown);
+    Guards inside_g{};
     if ((peaks || trough) && may_dip_at_turn(g_prev, g_end, x_[kReservoir], x_end[kReservoir],
                                              turn_reach_m3(rise_start, rise_end, width))) {
       turn_at = narrow_to_zero(net, turn_at, kTurnScreening * width);
-      turn = turn_at.hi;
-      const ChainState& xs = read_state_at(turn);
-      system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), g_turn);
+      const ChainState& xs = read_state_at(turn_at.hi);
+      system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), inside_g);
+      for (int k = 0; k < kGuardCount; ++k) {
+        if (inside_g[k] < 0.0) inside_t[k] = turn_at.hi;
+      }
+    }
+    // The trickle guard is the larger of two terms, so it falls below zero and rises again
+    // between the step's ends where the term larger at the start falls below zero while the other
+    // has yet to rise above it (the column's puddle draining while a dribble grows): looked at
+    // just past where that term crosses zero, when the other starts below zero. Each term is
+    // taken to change one way within a step, as the level is where it does not turn.
+    const bool partial = mode_.column == ColumnMode::partial;
+    const std::array<double, 2> trickle_terms =
+        partial ? system_.trickle_guard_terms(x_end, r) : std::array<double, 2>{};
+    if (partial && g_prev[kGuardTrickle] >= 0.0 && g_end[kGuardTrickle] >= 0.0 &&
+        std::isnan(inside_t[kGuardTrickle])) {
+      const std::size_t lead = trickle_terms_prev[0] >= trickle_terms_prev[1] ? 0 : 1;
+      if (trickle_terms[lead] < 0.0 && trickle_terms_prev[1 - lead] < 0.0) {
+        const auto terms_at = [&](double tau) {
+          const ChainState& xs = read_state_at(tau);
+          return system_.trickle_guard_terms(xs, system_.rates(xs, mode_, f));
+        };
+        const Bracket crossed = narrow_to_zero(
+            [&](double tau) { return terms_at(tau)[lead]; },
+            {step.first, t_end, trickle_terms_prev[lead], trickle_terms[lead]}, 1e-10);
+        const std::array<double, 2> there = terms_at(crossed.hi);
+        if (there[1 - lead] < 0.0) {
+          inside_t[kGuardTrickle] = crossed.hi;
+          inside_g[kGuardTrickle] = std::max(there[0], there[1]);
+        }
+      }
     }
 
     // Earliest guard that crossed zero within the step, located on the dense output: one below
-    // zero at the step's end, or only where the level turned.
+    // zero at the step's end, or only inside the step.
     int first = -1;
     double t_switch = t_end;
     for (int k = 0; k < kGuardCount; ++k) {
-      const bool dips = !std::isnan(turn) && g_turn[k] < 0.0;
+      const bool dips = !std::isnan(inside_t[k]);
       if (!(g_prev[k] >= 0.0 && (g_end[k] < 0.0 || dips))) continue;
       const auto guard_at = [&](double tau) {
         const ChainState& xs = read_state_at(tau);
@@ -368,9 +404,9 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       };
       double hi = t_switch;
       double g_hi;
-      if (dips && turn < t_switch) {
-        hi = turn;
-        g_hi = g_turn[k];
+      if (dips && inside_t[k] < t_switch) {
+        hi = inside_t[k];
+        g_hi = inside_g[k];
       } else {
         // At the step's end the guard is known; before an earlier switch it must be looked up.
         g_hi = hi == t_end ? g_end[k] : guard_at(hi);
@@ -418,6 +454,7 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
       fresh = true;
     } else {
       g_prev = g_end;
+      trickle_terms_prev = trickle_terms;
       if (moved && step.second <= span) {
         // The column's water, which the solver carries unchanged while it trickles, was moved
         // beside it: the solver goes on from the engine's state, its step and derivative kept

@@ -144,6 +144,12 @@ class ChainSystem {
   /// Every guard's value (1 where a guard is not active in `m`); `r` from rates(x, m, f).
   void guards(const ChainState& x, const ChainMode& m, const Forcing& f, const ChainRates& r,
               Guards& g) const;
+  /// The two terms of the guard back to trickle (kGuardTrickle) of a head column filling and
+  /// draining (partial), the puddle's and the inflow's, each below zero once it is below half its
+  /// threshold: the guard is the larger, so it is below zero only while both are. It can fall
+  /// below zero and rise again between two instants at which it is above: the puddle falling while
+  /// the inflow rises. `r` from rates(x, m, f).
+  std::array<double, 2> trickle_guard_terms(const ChainState& x, const ChainRates& r) const;
   /// Takes the switch of guard `k` (which has just reached zero): changes the mode and, where
   /// the switch sets a store, the state. Returns the water that left the state at once (m3): the
   /// excess over a head column's brim as it becomes brim-full, else 0.
