@@ -299,7 +299,7 @@ double swelling_drizzle_mm_per_h(int m) {
 // its inflow's (ChainSystem::trickle_guard_terms), so it can fall below zero and rise again
 // between two steps' ends with neither end showing it. On this rain with a 1 s roof lag, a
 // dribble grows after a cycle while the column's puddle drains: the reference passes the column
-// to trickle for 32 s (02:12:15 to 02:12:47). Before the stepper looked where the term larger at
+// to trickle for 32 s (02:12:18 to 02:12:50). Before the stepper looked where the term larger at
 // a step's start crosses zero, the run passed over that spell: 27 switches against the
 // reference's 29.
 TEST(Accuracy, ATrickleSpellBetweenTwoStepsEndsAgreesWithTheFixedStepReference) {
