@@ -235,6 +235,55 @@ TEST(Accuracy, TighterToleranceAgreesWithTheFixedStepReference) {
   expect_episodes_close(run, reference, 1e-5);
 }
 
+// Issue 16: no valid design makes the solver give up. Each key of the demo design taken alone to
+// the ends users sweep it to (lags of 0 to an hour, roofs of 1 and 2,000 m2, gutters of 30 mm and
+// 0.2 m, columns of 10 to 500 mm, nozzles of 1 to 15 mm, set-points 1 mm apart, tolerances of
+// 1e-3 and 1e-10, priming flows of 0.1 and 20 L/min, no cut-in and 50 W, a 0.1 Wh battery, a 60 m
+// drop pipe, a 500 L diverter, an orifice): each runs the storm days to the end and closes its
+// water balance. On the bench record's first year the same designs all run too, the slowest in 0.37
+// s (docs/performance.md).
+TEST(Accuracy, DesignsAtTheEndsOfTheirKeysRunToTheEnd) {
+  const std::vector<std::vector<std::string>> designs = {
+      {"roof.lag_s=0"},
+      {"roof.lag_s=0.0001"},
+      {"roof.lag_s=3600"},
+      {"roof.area_m2=1"},
+      {"roof.area_m2=2000"},
+      {"roof.initial_loss_mm=0"},
+      {"reservoir.length_m=0.2"},
+      {"reservoir.width_mm=30", "reservoir.rim_mm=15", "release.trigger_level_mm=12",
+       "release.break_level_mm=2"},
+      {"head_column.diameter_mm=10"},
+      {"head_column.diameter_mm=500"},
+      {"nozzle.diameter_mm=1"},
+      {"nozzle.diameter_mm=15"},
+      {"release.priming_flow_L_per_min=0.1"},
+      {"release.priming_flow_L_per_min=20"},
+      {"release.trigger_level_mm=9"},
+      {"release.break_level_mm=49"},
+      {"simulation.rtol=1e-3"},
+      {"simulation.rtol=1e-10"},
+      {"generator.cut_in_W=0"},
+      {"generator.cut_in_W=50"},
+      {"battery.capacity_Wh=0.1"},
+      {"battery.load_W=5"},
+      {"drop_pipe.length_m=60", "drop_pipe.drop_m=50"},
+      {"reservoir.evaporation_mm_per_day=20"},
+      {"first_flush.volume_L=500"},
+      {"release.kind=orifice", "release.orifice_diameter_mm=5"}};
+  for (const std::vector<std::string>& design : designs) {
+    std::string keys;
+    for (const std::string& k : design) keys += k + " ";
+    try {
+      const RunWithEpisodes run = run_with(design);
+      EXPECT_LT(run.balance_relative_error, kMaxBalanceError) << keys;
+      EXPECT_GT(run.stats.steps, 0) << keys;
+    } catch (const std::exception& e) {
+      ADD_FAILURE() << keys << ": " << e.what();
+    }
+  }
+}
+
 // Every flow an episode follows rises with the reservoir's level, so where the level peaks inside
 // a step, so do they. An episode's peak flow is looked for there too, not only at the steps'
 // ends, which see every peak that falls between them too low: on this rain, before the level's
