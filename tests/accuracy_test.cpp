@@ -236,12 +236,12 @@ TEST(Accuracy, TighterToleranceAgreesWithTheFixedStepReference) {
 }
 
 // Issue 16: no valid design makes the solver give up. Each key of the demo design taken alone to
-// the ends users sweep it to (lags of 0 to an hour, roofs of 1 and 2,000 m2, gutters of 30 mm and
-// 0.2 m, columns of 10 to 500 mm, nozzles of 1 to 15 mm, set-points 1 mm apart, tolerances of
-// 1e-3 and 1e-10, priming flows of 0.1 and 20 L/min, no cut-in and 50 W, a 0.1 Wh battery, a 60 m
-// drop pipe, a 500 L diverter, an orifice): each runs the storm days to the end and closes its
-// water balance. On the bench record's first year the same designs all run too, the slowest in 0.37
-// s (docs/performance.md).
+// an extreme (lags of 0 to an hour, roofs of 1 and 2,000 m2, gutters of 30 mm and 0.2 m, columns
+// of 10 to 500 mm, nozzles of 1 to 15 mm, set-points 1 mm apart, priming flows of 0.1 and 20
+// L/min, tolerances of 1e-3 and 1e-10, no cut-in and 50 W, a 0.1 Wh battery, a 60 m drop pipe, a
+// 500 L diverter, an orifice): each runs the storm days to the end and closes its water balance.
+// On the bench record's first year the same designs ran to the end too, the slowest in 0.37 s
+// (docs/performance.md; the 20 L/min priming flow on 7a4f343, the others on 2b23f80).
 TEST(Accuracy, DesignsAtTheEndsOfTheirKeysRunToTheEnd) {
   const std::vector<std::vector<std::string>> designs = {
       {"roof.lag_s=0"},
