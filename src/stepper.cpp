@@ -116,6 +116,28 @@ bool may_dip_at_turn(const Guards& g_start, const Guards& g_end, double v_start,
   return false;
 }
 
+// Where a guard that is the larger of two terms, `start` and `end` at the ends of a step over
+// [t0, t1], falls below zero between them with both ends at or above zero: the term larger at the
+// start falls below zero while the other has yet to rise above it (a head column's puddle
+// draining while a dribble grows). Looked at just past where that term crosses zero, when the
+// other starts below zero; each term is taken to change one way within the step, as the level is
+// where it does not turn. `terms_at(t)` gives both terms at t. NaN where no dip is found.
+struct TermsDip {
+  double t = std::numeric_limits<double>::quiet_NaN();
+  double g = 0.0;  // the guard there, below zero
+};
+template <class TermsAt>
+TermsDip dip_of_larger_term(const TermsAt& terms_at, double t0, double t1,
+                            const std::array<double, 2>& start, const std::array<double, 2>& end) {
+  const std::size_t lead = start[0] >= start[1] ? 0 : 1;
+  if (!(end[lead] < 0.0 && start[1 - lead] < 0.0)) return {};
+  const Bracket crossed = narrow_to_zero([&](double t) { return terms_at(t)[lead]; },
+                                         {t0, t1, start[lead], end[lead]}, 1e-10);
+  const std::array<double, 2> there = terms_at(crossed.hi);
+  if (!(there[1 - lead] < 0.0)) return {};
+  return {crossed.hi, std::max(there[0], there[1])};
+}
+
 }  // namespace
 
 Stepper::Stepper(const ChainSystem& system, Ledger& ledger, const RunOptions& options)
@@ -362,31 +384,20 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
         if (inside_g[k] < 0.0) inside_t[k] = turn_at.hi;
       }
     }
-    // The trickle guard is the larger of two terms, so it falls below zero and rises again
-    // between the step's ends where the term larger at the start falls below zero while the other
-    // has yet to rise above it (the column's puddle draining while a dribble grows): looked at
-    // just past where that term crosses zero, when the other starts below zero. Each term is
-    // taken to change one way within a step, as the level is where it does not turn.
+    // The trickle guard, the larger of two terms, can dip with both ends above zero.
     const bool partial = mode_.column == ColumnMode::partial;
     const std::array<double, 2> trickle_terms =
         partial ? system_.trickle_guard_terms(x_end, r) : std::array<double, 2>{};
     if (partial && g_prev[kGuardTrickle] >= 0.0 && g_end[kGuardTrickle] >= 0.0 &&
         std::isnan(inside_t[kGuardTrickle])) {
-      const std::size_t lead = trickle_terms_prev[0] >= trickle_terms_prev[1] ? 0 : 1;
-      if (trickle_terms[lead] < 0.0 && trickle_terms_prev[1 - lead] < 0.0) {
-        const auto terms_at = [&](double tau) {
-          const ChainState& xs = read_state_at(tau);
-          return system_.trickle_guard_terms(xs, system_.rates(xs, mode_, f));
-        };
-        const Bracket crossed = narrow_to_zero(
-            [&](double tau) { return terms_at(tau)[lead]; },
-            {step.first, t_end, trickle_terms_prev[lead], trickle_terms[lead]}, 1e-10);
-        const std::array<double, 2> there = terms_at(crossed.hi);
-        if (there[1 - lead] < 0.0) {
-          inside_t[kGuardTrickle] = crossed.hi;
-          inside_g[kGuardTrickle] = std::max(there[0], there[1]);
-        }
-      }
+      const auto terms_at = [&](double tau) {
+        const ChainState& xs = read_state_at(tau);
+        return system_.trickle_guard_terms(xs, system_.rates(xs, mode_, f));
+      };
+      const TermsDip dip =
+          dip_of_larger_term(terms_at, step.first, t_end, trickle_terms_prev, trickle_terms);
+      inside_t[kGuardTrickle] = dip.t;
+      inside_g[kGuardTrickle] = dip.g;
     }
 
     // Earliest guard that crossed zero within the step, located on the dense output: one below
