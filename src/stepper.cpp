@@ -138,6 +138,38 @@ TermsDip dip_of_larger_term(const TermsAt& terms_at, double t0, double t1,
   return {crossed.hi, std::max(there[0], there[1])};
 }
 
+// The earliest guard that crosses zero within a step over [t0, t1], and where: one at or above
+// zero at the start (`g_start`) and below zero at the end (`g_end`) or at a point inside it
+// (`inside_t`, NaN where none is known, its value there `inside_g`). `guard_at(k, t)` is guard k
+// on the dense output at t. Placed to 1e-10 s, not rounded to a step: the accounts it splits move
+// by less than 1e-9 of their size. {-1, t1} where none crosses.
+template <class GuardAt>
+std::pair<int, double> earliest_switch(const Guards& g_start, const Guards& g_end,
+                                       const std::array<double, kGuardCount>& inside_t,
+                                       const Guards& inside_g, double t0, double t1,
+                                       const GuardAt& guard_at) {
+  int first = -1;
+  double t_switch = t1;
+  for (int k = 0; k < kGuardCount; ++k) {
+    const bool dips = !std::isnan(inside_t[k]);
+    if (!(g_start[k] >= 0.0 && (g_end[k] < 0.0 || dips))) continue;
+    const auto guard_k = [&](double t) { return guard_at(k, t); };
+    double hi = t_switch;
+    double g_hi;
+    if (dips && inside_t[k] < t_switch) {
+      hi = inside_t[k];
+      g_hi = inside_g[k];
+    } else {
+      // At the step's end the guard is known; before an earlier switch it must be looked up.
+      g_hi = hi == t1 ? g_end[k] : guard_k(hi);
+    }
+    if (g_hi >= 0.0) continue;  // crosses only after an earlier switch
+    t_switch = narrow_to_zero(guard_k, {t0, hi, g_start[k], g_hi}, 1e-10).hi;
+    first = k;
+  }
+  return {first, t_switch};
+}
+
 }  // namespace
 
 Stepper::Stepper(const ChainSystem& system, Ledger& ledger, const RunOptions& options)
@@ -402,32 +434,14 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
 
     // Earliest guard that crossed zero within the step, located on the dense output: one below
     // zero at the step's end, or only inside the step.
-    int first = -1;
-    double t_switch = t_end;
-    for (int k = 0; k < kGuardCount; ++k) {
-      const bool dips = !std::isnan(inside_t[k]);
-      if (!(g_prev[k] >= 0.0 && (g_end[k] < 0.0 || dips))) continue;
-      const auto guard_at = [&](double tau) {
-        const ChainState& xs = read_state_at(tau);
-        Guards gs;
-        system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), gs);
-        return gs[k];
-      };
-      double hi = t_switch;
-      double g_hi;
-      if (dips && inside_t[k] < t_switch) {
-        hi = inside_t[k];
-        g_hi = inside_g[k];
-      } else {
-        // At the step's end the guard is known; before an earlier switch it must be looked up.
-        g_hi = hi == t_end ? g_end[k] : guard_at(hi);
-      }
-      if (g_hi >= 0.0) continue;  // crosses only after an earlier switch
-      // Placed on the dense output to 1e-10 s, not rounded to a step: the accounts it splits move
-      // by less than 1e-9 of their size.
-      t_switch = narrow_to_zero(guard_at, {step.first, hi, g_prev[k], g_hi}, 1e-10).hi;
-      first = k;
-    }
+    const auto guard_at = [&](int k, double tau) {
+      const ChainState& xs = read_state_at(tau);
+      Guards gs;
+      system_.guards(xs, mode_, f, system_.rates(xs, mode_, f), gs);
+      return gs[k];
+    };
+    const auto [first, t_switch] =
+        earliest_switch(g_prev, g_end, inside_t, inside_g, step.first, t_end, guard_at);
     if (first >= 0) {
       t_end = t_switch;
       stepper.calc_state(t_end, w_end);
