@@ -170,6 +170,16 @@ std::pair<int, double> earliest_switch(const Guards& g_start, const Guards& g_en
   return {first, t_switch};
 }
 
+// The trickle's column water's substeps (follow_trickle_water) hold their error estimate, relative
+// to the trickle volume and the water, to 1,000 times the run's tolerance `rtol` but no looser
+// than 1e-4 (100 times the default's). A project choice: the water matters to the energy only
+// through what the column holds when it fills again. Held to the run's tolerance, to 100 times it
+// or to 1,000 times it, the first year's energy of the bench's demo-like, 30 mm column and rtol
+// 1e-8 designs is the same to 1e-7; at rtol 1e-8, 1,000 takes 4 % fewer instructions than 100. A
+// fixed 1e-4 would hold the energy at rtol 1e-10 to about 2e-7 of the fixed-step reference; tied
+// to the tolerance it converges with it.
+double trickle_water_tolerance(double rtol) { return std::min(1e-4, 1000.0 * rtol); }
+
 }  // namespace
 
 Stepper::Stepper(const ChainSystem& system, Ledger& ledger, const RunOptions& options)
@@ -177,7 +187,8 @@ Stepper::Stepper(const ChainSystem& system, Ledger& ledger, const RunOptions& op
       ledger_(ledger),
       options_(options),
       x_(system.initial_state()),
-      mode_(system.initial_mode(x_)) {
+      mode_(system.initial_mode(x_)),
+      trickle_rtol_(trickle_water_tolerance(system.scenario().simulation.rtol)) {
   error_scale_.fill(1e-3);  // m3 (1 L) for volumes, m (1 mm) for depth
   for (std::size_t i = kJet; i <= kSelfDischarge; ++i) error_scale_[i] = 1.0;  // J
   error_scale_[kBattery] = 1.0;
@@ -536,19 +547,12 @@ bool Stepper::accept_step(const ChainState& x_end, double dt, const ChainRates& 
 }
 
 // The trickle's column water (column_trickle.hpp) over `dt` under `inflow`, the water it gains or
-// loses taken from or given to the nozzle's account, so the balance holds. Each substep's error
-// estimate is held, relative to the trickle volume and the water, to 1,000 times the run's
-// tolerance but no looser than 1e-4 (100 times the default's). A project choice: the water
-// matters to the energy only through what the column holds when it fills again. Held to the run's
-// tolerance, to 100 times it or to 1,000 times it, the first year's energy of the bench's
-// demo-like, 30 mm column and rtol 1e-8 designs is the same to 1e-7; at rtol 1e-8, 1,000 takes
-// 4 % fewer instructions than 100. A fixed 1e-4 would hold the energy at rtol 1e-10 to about
-// 2e-7 of the fixed-step reference; tied to the tolerance it converges with it.
+// loses taken from or given to the nozzle's account, so the balance holds.
 bool Stepper::follow_trickle_water(ChainState& x, const StepInflow& inflow, double dt) {
   if (!system_.plant().has_column() || mode_.column != ColumnMode::trickle) return false;
-  const double tolerance = std::min(1e-4, 1000.0 * system_.scenario().simulation.rtol);
-  const TrickleWater after = trickle_water_after(system_.plant(), x[kColumn], inflow, dt, tolerance,
-                                                 system_.trickle_volume_m3(), trickle_substep_s_);
+  const TrickleWater after =
+      trickle_water_after(system_.plant(), x[kColumn], inflow, dt, trickle_rtol_,
+                          system_.trickle_volume_m3(), trickle_substep_s_);
   trickle_substep_s_ = after.substep_s;
   if (after.volume_m3 == x[kColumn]) return false;
   x[kNozzle] -= after.volume_m3 - x[kColumn];

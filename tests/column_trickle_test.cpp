@@ -47,7 +47,8 @@ TEST(ColumnTrickle, DrainsAsTheReferenceTankDoes) {
 TEST(ColumnTrickle, SettlesWhereTheNozzlePassesTheInflow) {
   const double area = circle_area_m2(kColumnDiameter_m);
   const double q = 2.0 / 60'000.0;  // 2 L/min
-  const double h = std::pow(q / (kCd * circle_area_m2(kNozzleDiameter_m)), 2) / (2.0 * 9.80665);
+  const double h =
+      std::pow(q / (kCd * circle_area_m2(kNozzleDiameter_m)), 2) / (2.0 * kGravity_m_per_s2);
   for (double start_m : {0.0, 0.3}) {
     const TrickleWater after = trickle_water_after(demo_plant(), area * start_m,
                                                    StepInflow{q, q, q}, 3600.0, 1e-6, 1e-4, 0.0);
@@ -64,7 +65,7 @@ TEST(ColumnTrickle, SolvesTheLinearDrainExactlyInOneSubstep) {
   const double area = circle_area_m2(kColumnDiameter_m);
   const double h = kNozzleLinearHead_m;
   const double k =
-      kCd * circle_area_m2(kNozzleDiameter_m) * std::sqrt(2.0 * 9.80665 * h) / (area * h);
+      kCd * circle_area_m2(kNozzleDiameter_m) * std::sqrt(2.0 * kGravity_m_per_s2 * h) / (area * h);
   EXPECT_NEAR(k, 0.10518, 1e-5);
   const double join = area * h;
   const double v0 = 0.5 * join;
@@ -132,8 +133,9 @@ TEST(ColumnTrickle, HoldsNoMoreThanArrivedAndNeverLessThanNothing) {
 // a sqrt(2 g) H^1.5) is far below its 0.3 W cut-in; at a cut-in of that jet's power at 0.05 m,
 // 0.05 m; with none, the floor.
 TEST(ColumnTrickle, TrickleHeadStaysWhereTheJetCannotRunTheGenerator) {
-  const double jet_coefficient = demo_plant().density_kg_per_m3() * 9.80665 * kCd * 0.97 * 0.97 *
-                                 circle_area_m2(kNozzleDiameter_m) * std::sqrt(2.0 * 9.80665);
+  const double jet_coefficient = demo_plant().density_kg_per_m3() * kGravity_m_per_s2 * kCd * 0.97 *
+                                 0.97 * circle_area_m2(kNozzleDiameter_m) *
+                                 std::sqrt(2.0 * kGravity_m_per_s2);
   EXPECT_NEAR(jet_coefficient * std::pow(kTrickleHeadMax_m, 1.5), 0.035, 5e-4);
   EXPECT_DOUBLE_EQ(trickle_head_m(demo_plant()), kTrickleHeadMax_m);
   Scenario sc = load_scenario(std::string(GUTTERWATT_SOURCE_DIR) + "/scenarios/demo.yaml", {});

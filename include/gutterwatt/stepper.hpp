@@ -91,6 +91,7 @@ class Stepper {
   bool moving_ = false;           // stepped (not at rest) since the last trace point at rest
   double trickle_inflow_m3_per_s_ = 0.0;  // the release where the step now starting starts
   double trickle_substep_s_ = 0.0;        // the trickle water's substep carried on
+  double trickle_rtol_;                   // the trickle water's tolerance, from the run's rtol
   SolverStats stats_;
   ChainState error_scale_{};  // the error checker's absolute scale per slot
   /// The rates, derivative and guards at the end of the last step that ended without a switch,
