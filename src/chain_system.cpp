@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 #include <sstream>
 #include <stdexcept>
 
@@ -150,6 +151,18 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
   d[kSelfDischarge] = r.battery.self_discharge_W;
 }
 
+double ChainSystem::start_shortfall_m(double volume_m3) const {
+  if (!delivery_ || sc_.release.kind == ReleaseKind::orifice) {
+    return -std::numeric_limits<double>::infinity();
+  }
+  const double filled_m3 = std::max(0.0, volume_m3 - pipe_volume_m3_);
+  const double filled_level_m = geometry_.level_m(filled_m3);
+  const double drawn = running_outflow_m3_per_s(*release_, filled_level_m,
+                                                plant_.full_flow_m3_per_s(filled_level_m));
+  const double outlet = delivery_->outlet_depth_m(filled_m3, filled_level_m, drawn);
+  return sc_.release.break_level_m + kStartMargin_m - outlet;
+}
+
 void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing& f,
                          const ChainRates& r, Guards& g) const {
   constexpr double kInactive = 1.0;
@@ -162,15 +175,9 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
     // pipe has filled, so the gutter must still feed it, its outlet kStartMargin_m above where
     // it would end, after giving the pipe's volume. Else it would end at once and start again
     // as soon as the (quasi-steady) profile refilled the outlet: thousands of empty burps.
-    const double filled_m3 = std::max(0.0, x[kReservoir] - pipe_volume_m3_);
-    const double filled_level_m = geometry_.level_m(filled_m3);
     for (int k = 0; k < n; ++k) {
       if (!release_->is_running(rel[k].next)) continue;
-      const double drawn = running_outflow_m3_per_s(*release_, filled_level_m,
-                                                    plant_.full_flow_m3_per_s(filled_level_m));
-      const double outlet = delivery_->outlet_depth_m(filled_m3, filled_level_m, drawn);
-      g[kGuardRelease0 + k] =
-          std::max(g[kGuardRelease0 + k], sc_.release.break_level_m + kStartMargin_m - outlet);
+      g[kGuardRelease0 + k] = std::max(g[kGuardRelease0 + k], start_shortfall_m(x[kReservoir]));
     }
   }
 

@@ -10,6 +10,7 @@
 #include <string>
 
 #include "detail.hpp"
+#include "gutterwatt/chain_system.hpp"
 #include "gutterwatt/disaggregation.hpp"
 #include "gutterwatt/fragments.hpp"
 #include "gutterwatt/gutter_flow.hpp"
@@ -23,6 +24,13 @@
 #include "report_format.hpp"
 
 namespace gutterwatt {
+namespace {
+
+// How far over the rim the level at which a release on a long level gutter can start is looked
+// for: 100 mm of head over an 8 m rim overflows some 10 L/s, beyond any roof's rain.
+constexpr double kStartSearch_m = 0.1;
+
+}  // namespace
 namespace {
 
 // A quantity given in SI (`si_unit` as in column names: L, mm_per_h) as a figure or a warning
@@ -229,6 +237,30 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
       }
       ends_m = hi;
       d.release_ends_level_m = ends_m;
+      // It starts where the gutter feeds it with the drop pipe's volume drawn, as the run's
+      // guard has it: at the level it starts at or, only there, higher, over the rim where
+      // rain heavy enough holds the level up by overflowing (up to kStartSearch_m over it).
+      const ChainSystem system(sc);
+      const auto feeds = [&](double h) {
+        return system.start_shortfall_m(geometry.volume_m3(h)) <= 0.0;
+      };
+      const double highest_m = geometry.rim_m() + kStartSearch_m;
+      if (feeds(top_m)) {
+        d.release_starts_level_m = top_m;
+      } else if (feeds(highest_m)) {
+        double below = top_m;
+        double above = highest_m;
+        for (int k = 0; k < 60 && above - below > 1e-9; ++k) {
+          const double mid = 0.5 * (below + above);
+          (feeds(mid) ? above : below) = mid;
+        }
+        d.release_starts_level_m = above;
+        if (above > geometry.rim_m()) {
+          // Q = C i A of the roof into the overflow over the rim at that level, steady.
+          d.release_start_intensity_m_per_s =
+              intensity_for_flow(sc, geometry.overflow_m3_per_s(above));
+        }
+      }
     }
   }
   d.running_flow_trigger_m3_per_s = release_flow(top_m);
@@ -312,7 +344,43 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
         "calibration record resampled, which `run` prints beside it; a longer calibration "
         "record, or one with more such rain, narrows it.");
   }
-  if (d.release_ends_level_m && *d.release_ends_level_m > bottom_m + 1e-3) {
+  const std::string feed_it =
+      " A shorter run to each outlet, a larger gutter, a tank, or a drop pipe that carries less "
+      "would feed it.";
+  if (d.release_ends_level_m && !d.release_starts_level_m) {
+    d.warnings.push_back(
+        "Even " + shown(units, kStartSearch_m / kMetresPerMm, "mm") +
+        " over its rim the gutter cannot deliver to its outlet what the release takes running "
+        "full while its drop pipe fills (" +
+        shown(units, drawn_flow(top_m) * kLitresPerMinutePerM3PerS, "L_per_min") +
+        " at the level it starts at): it never starts a cycle, and all the water dribbles or "
+        "overflows." +
+        feed_it);
+  } else if (d.release_starts_level_m && *d.release_starts_level_m > geometry.rim_m()) {
+    const double heavy = *d.release_start_intensity_m_per_s;
+    const std::string rarely = d.record && heavy > d.record->peak_intensity_m_per_s
+                                   ? ", more than the record's 2-year peak of " +
+                                         mmh(d.record->peak_intensity_m_per_s) +
+                                         ", so it will rarely if ever cycle"
+                                   : std::string();
+    d.warnings.push_back(
+        "Below its rim (" + shown(units, geometry.rim_m() / kMetresPerMm, "mm") +
+        ") the gutter cannot deliver to its outlet what the release takes running full while "
+        "its drop pipe fills: it starts a cycle only once the level stands at " +
+        shown(units, *d.release_starts_level_m / kMetresPerMm, "mm") +
+        ", which takes rain of about " + mmh(heavy) + " overflowing the rim" + rarely +
+        "; otherwise the water dribbles or overflows." + feed_it);
+  } else if (d.release_starts_level_m && *d.release_starts_level_m > top_m) {
+    d.warnings.push_back(
+        "The gutter feeds the release running full, its drop pipe filling, only once the level "
+        "reaches " +
+        shown(units, *d.release_starts_level_m / kMetresPerMm, "mm") +
+        ", above the level it starts at (" + shown(units, top_m / kMetresPerMm, "mm") +
+        "): it starts a cycle only where the rain raises the level that far, and dribbles "
+        "below." +
+        feed_it);
+  }
+  if (d.release_starts_level_m && *d.release_ends_level_m > bottom_m + 1e-3) {
     const double held_L = (geometry.volume_m3(ends_m) - geometry.volume_m3(bottom_m)) * 1e3;
     d.warnings.push_back(
         "Below " + shown(units, ends_m / kMetresPerMm, "mm") +
@@ -429,6 +497,10 @@ void write_design(std::ostream& out, const Scenario& sc, const DesignFigures& d)
   }
   if (d.release_ends_level_m) {
     figure("level at which the running release ends", *d.release_ends_level_m * 1e3, "mm");
+  }
+  if (d.release_starts_level_m && *d.release_starts_level_m > design_level_m(sc)) {
+    figure("level at which the gutter lets the release start", *d.release_starts_level_m * 1e3,
+           "mm");
   }
   if (d.cycle_drain_s)
     line("running time per cycle (no inflow)", detail::on_terminal(*d.cycle_drain_s), "s");

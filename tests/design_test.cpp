@@ -13,12 +13,16 @@
 
 #include "gutterwatt/fragments.hpp"
 #include "gutterwatt/hydraulics.hpp"
+#include "gutterwatt/simulation.hpp"
 #include "test_support.hpp"
 
 namespace gutterwatt::design_test {
 namespace {
 
 using test_support::make_scenario;
+
+// A drop pipe long enough that a gutter 8 m long cannot feed the siphon below its rim.
+constexpr double kLongDrop_m = 80.0;
 
 constexpr double kG = 9.80665;
 
@@ -374,6 +378,49 @@ TEST(Design, ALongLevelGutterPrintsItsDeliveryAndWarnsWhereItCannotFeedTheReleas
   const DesignFigures pool = evaluate_design(make_scenario(), nullptr);
   EXPECT_FALSE(pool.gutter_delivery_brim_m3_per_s.has_value());
   EXPECT_FALSE(pool.release_ends_level_m.has_value());
+}
+
+TEST(Design, ALevelGutterThatFeedsItsReleaseOnlyOverItsRimSaysWhatRainStartsIt) {
+  // The gutter of the test above with a drop pipe long enough that the siphon, running full and
+  // drawing the pipe's volume, takes more than the gutter delivers below its rim.
+  Scenario s = make_scenario();
+  s.reservoir.shape = ReservoirShape::half_round;
+  s.reservoir.width_m = 0.125;
+  s.reservoir.length_m = 8.0;
+  s.drop_pipe.length_m = kLongDrop_m;
+  s.drop_m = kLongDrop_m;
+  const DesignFigures d = evaluate_design(s, nullptr);
+  ASSERT_TRUE(d.release_starts_level_m.has_value());
+  ASSERT_TRUE(d.release_start_intensity_m_per_s.has_value());
+  EXPECT_GT(*d.release_starts_level_m, s.reservoir.rim_m);
+  EXPECT_TRUE(std::any_of(d.warnings.begin(), d.warnings.end(), [](const std::string& w) {
+    return w.rfind("Below its rim (62 mm) the gutter cannot deliver", 0) == 0;
+  }));
+  // The run takes its start from the same guard, and holds the level by the same overflow: six
+  // hours of steady rain a fifth below that intensity start no cycle, a fifth above start some.
+  const double starts = *d.release_start_intensity_m_per_s;
+  test_support::RecordingObserver below;
+  test_support::RecordingObserver above;
+  EXPECT_EQ(
+      simulate(s,
+               test_support::constant_rain(test_support::kStart, *s.simulation.end, 0.8 * starts),
+               below)
+          .cycles,
+      0);
+  EXPECT_GE(
+      simulate(s,
+               test_support::constant_rain(test_support::kStart, *s.simulation.end, 1.25 * starts),
+               above)
+          .cycles,
+      1);
+  // The gutter of the test above, with the usual drop pipe, feeds it where it starts.
+  Scenario fed = s;
+  fed.drop_pipe.length_m = make_scenario().drop_pipe.length_m;
+  fed.drop_m = make_scenario().drop_m;
+  const DesignFigures fed_d = evaluate_design(fed, nullptr);
+  ASSERT_TRUE(fed_d.release_starts_level_m.has_value());
+  EXPECT_LE(*fed_d.release_starts_level_m, fed.reservoir.rim_m);
+  EXPECT_FALSE(fed_d.release_start_intensity_m_per_s.has_value());
 }
 
 TEST(Design, PointsToTheBenchTestUntilThePrimingFlowIsMeasured) {

@@ -160,6 +160,11 @@ class ChainSystem {
   /// overflowing, the head column empty or passing a trickle: the chain is then linear), or a
   /// negative number when it is not at rest now whatever arrives.
   double rest_capacity_m3(const ChainState& x, const ChainMode& m) const;
+  /// On a long level gutter, with the reservoir holding `volume_m3`: how far the depth at the
+  /// outlet, with the release running and the drop pipe's volume drawn, would stand below
+  /// kStartMargin_m over the break level (m). A siphon or float valve starts only where this is
+  /// at or below zero. -infinity without a level gutter or for an orifice.
+  double start_shortfall_m(double volume_m3) const;
 
   /// Evaporation from the reservoir holding `volume_m3` under `f`, m3/s.
   double evaporation_m3_per_s(double volume_m3, const Forcing& f) const;

@@ -69,6 +69,12 @@ struct DesignFigures {
   /// at its outlet drawn down to the break level; the break level itself when the gutter feeds
   /// it down to there.
   std::optional<double> release_ends_level_m;
+  /// A level gutter: the lowest level at which the release can start, where the gutter feeds it
+  /// running full with its drop pipe filling (ChainSystem::start_shortfall_m): the level it
+  /// starts at, or above it up to the rim; none when it cannot start below the rim.
+  std::optional<double> release_starts_level_m;
+  /// ... when that is over the rim: the steady rain that holds the level there by overflowing.
+  std::optional<double> release_start_intensity_m_per_s;
   std::optional<double> cycle_drain_s;  ///< running time from the set-point to break, no inflow
   double design_head_m = 0.0;           ///< at the nozzle, release running at trigger
   double nozzle_flow_m3_per_s = 0.0;    ///< at the design head
