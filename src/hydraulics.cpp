@@ -298,11 +298,9 @@ double impulse_efficiency(double speed_ratio, double peak_efficiency) {
   return peak_efficiency * 4.0 * speed_ratio * (1.0 - speed_ratio);
 }
 
-double speed_ratio(double runner_diameter_m, double speed_rpm, double jet_velocity_m_per_s) {
-  if (!(jet_velocity_m_per_s > 0.0)) return 0.0;
+double bucket_speed_m_per_s(double runner_diameter_m, double speed_rpm) {
   // Bucket speed at the pitch circle, u = pi D N / 60.
-  const double bucket_speed = kPi * runner_diameter_m * speed_rpm / kSecondsPerMinute;
-  return bucket_speed / jet_velocity_m_per_s;
+  return kPi * runner_diameter_m * speed_rpm / kSecondsPerMinute;
 }
 
 }  // namespace gutterwatt

@@ -90,19 +90,14 @@ Plant::Plant(const PlantConfig& config)
   if (config.generator.volts_per_rpm > 0.0 && config.battery_voltage_V > 0.0) {
     conduction_speed_rpm_ = config.battery_voltage_V / config.generator.volts_per_rpm;
   }
+  held_bucket_m_per_s_ = bucket_speed_m_per_s(runner_diameter_m_, held_speed_rpm_);
+  conduction_bucket_m_per_s_ = bucket_speed_m_per_s(runner_diameter_m_, conduction_speed_rpm_);
 }
 
 double runner_speed_for_ratio_rpm(double runner_diameter_m, double speed_ratio,
                                   double jet_velocity_m_per_s) {
   // Inverse of the pitch-circle speed u = pi D N / 60.
   return speed_ratio * jet_velocity_m_per_s * kSecondsPerMinute / (kPi * runner_diameter_m);
-}
-
-double Plant::runner_speed_rpm(double jet_velocity_m_per_s) const {
-  const double speed = best_at_every_head_ ? runner_speed_for_ratio_rpm(runner_diameter_m_, 0.5,
-                                                                        jet_velocity_m_per_s)
-                                           : held_speed_rpm_;
-  return std::max(speed, conduction_speed_rpm_);
 }
 
 double Plant::full_flow_m3_per_s(double level_m) const {
@@ -150,9 +145,14 @@ PlantPower Plant::power(double flow_m3_per_s, double head_m) const {
   // The runner held at one speed works off its best ratio as the head varies. Below the
   // conduction speed the generator carries no load and the runner speeds up towards runaway
   // (x = 1, no torque); it reaches the conduction speed only when x there is below 1, and the
-  // efficiency at that x is what it delivers.
-  p.runner_speed_rpm = runner_speed_rpm(p.jet_velocity_m_per_s);
-  p.speed_ratio = speed_ratio(runner_diameter_m_, p.runner_speed_rpm, p.jet_velocity_m_per_s);
+  // efficiency at that x is what it delivers. Worked in the bucket's speed (half the jet's at the
+  // best speed), the ratio takes one division on the solver's path where the runner's took three.
+  const double bucket_m_per_s =
+      std::max(best_at_every_head_ ? 0.5 * p.jet_velocity_m_per_s : held_bucket_m_per_s_,
+               conduction_bucket_m_per_s_);
+  p.speed_ratio = p.jet_velocity_m_per_s > 0.0 ? bucket_m_per_s / p.jet_velocity_m_per_s : 0.0;
+  p.runner_speed_rpm =
+      runner_speed_for_ratio_rpm(runner_diameter_m_, p.speed_ratio, p.jet_velocity_m_per_s);
   p.shaft_W = impulse_efficiency(p.speed_ratio, peak_efficiency_) * p.jet_W;
   p.electrical_W = generator_efficiency_ * p.shaft_W;
   return p;

@@ -424,10 +424,9 @@ TEST(ImpulseTurbine, NoEfficiencyOutsideWorkingRange) {
   EXPECT_EQ(impulse_efficiency(1.3, 0.7), 0.0);
 }
 
-TEST(ImpulseTurbine, SpeedRatioUsesPitchCircleSpeed) {
-  // u = pi D N / 60: D 70 mm at 1000 rpm under a 10 m/s jet
-  EXPECT_DOUBLE_EQ(speed_ratio(0.07, 1000.0, 10.0), kPi * 0.07 * 1000.0 / 60.0 / 10.0);
-  EXPECT_EQ(speed_ratio(0.07, 1000.0, 0.0), 0.0);
+TEST(ImpulseTurbine, BucketSpeedIsThePitchCircleSpeed) {
+  // u = pi D N / 60: D 70 mm at 1000 rpm, 3.6652 m/s (by hand: 0.07 x 3.14159 x 1000 / 60)
+  EXPECT_NEAR(bucket_speed_m_per_s(0.07, 1000.0), 3.6652, 1e-4);
 }
 
 }  // namespace

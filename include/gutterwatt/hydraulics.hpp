@@ -79,9 +79,9 @@ double jet_power_W(double density_kg_per_m3, double flow_m3_per_s, double jet_ve
 /// 4 x (1 - x), peaking at x = 0.5, scaled to `peak_efficiency`; 0 outside 0 < x < 1.
 double impulse_efficiency(double speed_ratio, double peak_efficiency);
 
-/// Bucket-to-jet speed ratio of a runner of pitch diameter `runner_diameter_m` turning at
-/// `speed_rpm` under a jet of velocity `jet_velocity_m_per_s`; 0 when the jet velocity is 0.
-double speed_ratio(double runner_diameter_m, double speed_rpm, double jet_velocity_m_per_s);
+/// The bucket's speed at the pitch circle of a runner of pitch diameter `runner_diameter_m`
+/// turning at `speed_rpm`, m/s: over the jet's velocity, the speed ratio.
+double bucket_speed_m_per_s(double runner_diameter_m, double speed_rpm);
 
 namespace detail {
 

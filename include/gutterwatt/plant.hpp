@@ -114,9 +114,6 @@ class Plant {
   /// Speed below which the generator's open-circuit voltage does not reach the battery's (0 when
   /// volts per rpm or the battery's voltage is not given).
   double conduction_speed_rpm() const { return conduction_speed_rpm_; }
-  /// The runner's speed under a jet of `jet_velocity_m_per_s`: the held speed (or the best one),
-  /// but never below the conduction speed, where the generator begins to load the runner.
-  double runner_speed_rpm(double jet_velocity_m_per_s) const;
 
   /// Generator output below this is not delivered.
   double cut_in_W() const { return cut_in_W_; }
@@ -139,6 +136,9 @@ class Plant {
   double design_head_m_ = 0.0;
   double held_speed_rpm_ = 0.0;
   double conduction_speed_rpm_ = 0.0;
+  // The bucket's speeds at the held and the conduction speed (bucket_speed_m_per_s).
+  double held_bucket_m_per_s_ = 0.0;
+  double conduction_bucket_m_per_s_ = 0.0;
 };
 
 /// Runner speed at which the bucket moves at `speed_ratio` times the jet velocity:
