@@ -277,7 +277,8 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
   d.jet_velocity_m_per_s = p.jet_velocity_m_per_s;
   d.jet_power_W = p.jet_W;
   d.electrical_power_W = p.electrical_W;
-  d.runner_speed_rpm = p.runner_speed_rpm;
+  d.runner_speed_rpm = runner_speed_for_ratio_rpm(sc.turbine.runner_diameter_m, p.speed_ratio,
+                                                  p.jet_velocity_m_per_s);
   d.speed_ratio = p.speed_ratio;
 
   if (has_set_points && d.running_flow_break_m3_per_s > 0.0) {

@@ -151,8 +151,6 @@ PlantPower Plant::power(double flow_m3_per_s, double head_m) const {
       std::max(best_at_every_head_ ? 0.5 * p.jet_velocity_m_per_s : held_bucket_m_per_s_,
                conduction_bucket_m_per_s_);
   p.speed_ratio = p.jet_velocity_m_per_s > 0.0 ? bucket_m_per_s / p.jet_velocity_m_per_s : 0.0;
-  p.runner_speed_rpm =
-      runner_speed_for_ratio_rpm(runner_diameter_m_, p.speed_ratio, p.jet_velocity_m_per_s);
   p.shaft_W = impulse_efficiency(p.speed_ratio, peak_efficiency_) * p.jet_W;
   p.electrical_W = generator_efficiency_ * p.shaft_W;
   return p;

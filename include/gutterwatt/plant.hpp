@@ -68,8 +68,8 @@ struct PlantPower {
   double jet_W = 0.0;         ///< rho Q V^2 / 2
   double shaft_W = 0.0;       ///< after the runner's hydraulic efficiency
   double electrical_W = 0.0;  ///< after the generator, before the cut-in test
-  double runner_speed_rpm = 0.0;
-  double speed_ratio = 0.0;  ///< bucket speed over jet speed
+  double speed_ratio = 0.0;   ///< bucket speed over jet speed (the runner's speed from it:
+                              ///< runner_speed_for_ratio_rpm)
 };
 
 /// Column head below which the nozzle's flow is taken in proportion to head rather than to its
