@@ -70,7 +70,7 @@ TracePoint trace_point(double t, const ChainMode& m, const ChainRates& r) {
   p.release = m.release;
   p.release_m3_per_s = r.release;
   p.overflow_m3_per_s = r.overflow + r.column_overflow;
-  p.head_m = r.nozzle > 0.0 ? r.head_m : 0.0;
+  p.head_m = r.nozzle > 0.0 ? r.power.head_m : 0.0;
   p.power_W = r.electrical_W;
   return p;
 }
@@ -275,7 +275,7 @@ Sample Ledger::sample(Instant t, const ChainState& x, const ChainMode& m, bool o
   const ChainRates r = system_.rates(x, m, Forcing{});
   s.level_m = r.level_m;
   s.release = m.release;
-  s.head_m = r.nozzle > 0.0 ? r.head_m : 0.0;
+  s.head_m = r.nozzle > 0.0 ? r.power.head_m : 0.0;
   s.power_W = r.electrical_W;
   const double capacity_J = system_.scenario().battery.capacity_J;
   s.soc = capacity_J > 0.0 ? x[kBattery] / capacity_J : 0.0;

@@ -119,11 +119,11 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
     // The column's drain time constant at a few millimetres of head is seconds, against hours
     // for a dribble: integrating it would make the system stiff, so it passes the trickle on.
     r.nozzle = r.release;
-    r.head_m = plant_.nozzle_head_for_flow_m(r.nozzle);
+    r.power = plant_.power_for_flow(r.nozzle);
   } else if (plant_.has_column()) {
     const double volume = m.column == ColumnMode::full ? plant_.column_capacity_m3() : x[kColumn];
     r.nozzle = plant_.column_nozzle_flow_m3_per_s(volume);
-    r.head_m = plant_.column_head_m(volume);
+    r.power = plant_.power(r.nozzle, plant_.column_head_m(volume));
     if (m.column == ColumnMode::full) {
       r.column_overflow = std::max(0.0, r.release - r.nozzle);
     } else {
@@ -131,12 +131,11 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
     }
   } else {
     r.nozzle = r.release;
-    r.head_m = plant_.nozzle_head_for_flow_m(r.nozzle);
+    r.power = plant_.power_for_flow(r.nozzle);
   }
   d[kNozzle] = r.nozzle;
 
   // Turbine, generator, battery.
-  r.power = plant_.power(r.nozzle, r.head_m);
   r.electrical_W = m.generator_on ? r.power.electrical_W : 0.0;
   r.battery = battery_flows(m.battery, r.electrical_W, f.load_W, x[kBattery], sc_.battery,
                             self_discharge_per_s_);

@@ -62,7 +62,9 @@ Plant::Plant(const PlantConfig& config)
       generator_efficiency_(config.generator.efficiency),
       cut_in_W_(config.generator.cut_in_W),
       density_kg_per_m3_(water_density_kg_per_m3(config.temperature_C)),
-      kinematic_viscosity_m2_per_s_(water_kinematic_viscosity_m2_per_s(config.temperature_C)) {
+      kinematic_viscosity_m2_per_s_(water_kinematic_viscosity_m2_per_s(config.temperature_C)),
+      per_cd_area_(
+          1.0 / (config.nozzle.discharge_coefficient * circle_area_m2(config.nozzle.diameter_m))) {
   // The full flow is needed at every solver stage while the release runs; solving the friction
   // law there dominated the run time, so it is tabulated once over the levels a run can reach.
   // Built once per process for each pipe, nozzle, drop, column and water (shared_table).
@@ -71,9 +73,9 @@ Plant::Plant(const PlantConfig& config)
       "full flow at level",
       full_flow_figures(pipe_, nozzle_, drop_m_, column_, kinematic_viscosity_m2_per_s_), 0.0, top,
       1024, [this](double level) { return solve_full_flow_m3_per_s(level); });
-  design_head_m_ = column_
-                       ? column_->height_m
-                       : nozzle_head_for_flow_m(std::min(full_flow_m3_per_s(config.design_level_m),
+  design_head_m_ =
+      column_ ? column_->height_m
+              : nozzle_head_for_flow_m(nozzle_, std::min(full_flow_m3_per_s(config.design_level_m),
                                                          config.design_release_limit_m3_per_s));
   // The speed ratio x = u / V_j that maximises the impulse runner's hydraulic efficiency
   // 2x(1-x)(1 + k cos phi) is 0.5 for any bucket (Dixon and Hall, Fluid Mechanics and
@@ -132,15 +134,25 @@ double Plant::column_nozzle_flow_m3_per_s(double volume_m3) const {
          kNozzleLinearHead_m;
 }
 
-double Plant::nozzle_head_for_flow_m(double flow_m3_per_s) const {
-  return gutterwatt::nozzle_head_for_flow_m(nozzle_, flow_m3_per_s);
+PlantPower Plant::power(double flow_m3_per_s, double head_m) const {
+  return power_of_jet(flow_m3_per_s, head_m,
+                      jet_velocity_m_per_s(nozzle_.velocity_coefficient, head_m));
 }
 
-PlantPower Plant::power(double flow_m3_per_s, double head_m) const {
+PlantPower Plant::power_for_flow(double flow_m3_per_s) const {
+  // The orifice law Q = Cd a sqrt(2 g h) (hydraulics.hpp) gives the jet's ideal speed sqrt(2 g h)
+  // as Q / (Cd a), and the head as its square over 2 g: no square root on the solver's path.
+  const double ideal_m_per_s = flow_m3_per_s * per_cd_area_;
+  return power_of_jet(flow_m3_per_s, ideal_m_per_s * ideal_m_per_s / (2.0 * kGravity_m_per_s2),
+                      nozzle_.velocity_coefficient * ideal_m_per_s);
+}
+
+PlantPower Plant::power_of_jet(double flow_m3_per_s, double head_m,
+                               double jet_velocity_m_per_s) const {
   PlantPower p;
   if (flow_m3_per_s <= 0.0 || head_m <= 0.0) return p;
   p.head_m = head_m;
-  p.jet_velocity_m_per_s = jet_velocity_m_per_s(nozzle_.velocity_coefficient, head_m);
+  p.jet_velocity_m_per_s = jet_velocity_m_per_s;
   p.jet_W = jet_power_W(density_kg_per_m3_, flow_m3_per_s, p.jet_velocity_m_per_s);
   // The runner held at one speed works off its best ratio as the head varies. Below the
   // conduction speed the generator carries no load and the runner speeds up towards runaway

@@ -109,11 +109,16 @@ TEST(Plant, NoColumnMeansNoColumnVolume) {
 
 TEST(Plant, NozzleHeadInvertsTheOrificeLaw) {
   const Plant p(plant_config(make_scenario()));
-  const double head = p.nozzle_head_for_flow_m(1.2e-4);
-  EXPECT_NEAR(orifice_flow_m3_per_s(0.95, circle_area_m2(0.005), head), 1.2e-4, 1e-18);
+  const PlantPower w = p.power_for_flow(1.2e-4);
+  EXPECT_NEAR(orifice_flow_m3_per_s(0.95, circle_area_m2(0.005), w.head_m), 1.2e-4, 1e-18);
   // Hand computation, h = (Q / (Cd a))^2 / (2 g): 1.2e-4 / (0.95 x 1.963495e-5) = 6.433210 m/s,
-  // squared over 2 x 9.80665 = 2.110109 m.
-  EXPECT_NEAR(head, 2.110109, 1e-6);
+  // squared over 2 x 9.80665 = 2.110109 m; the jet Cv sqrt(2 g h) = 0.97 x 6.433210 = 6.240214
+  // m/s, as power() has it from that head.
+  EXPECT_NEAR(w.head_m, 2.110109, 1e-6);
+  EXPECT_NEAR(w.jet_velocity_m_per_s, 6.240214, 1e-6);
+  const PlantPower at_head = p.power(1.2e-4, w.head_m);
+  EXPECT_NEAR(w.jet_W, at_head.jet_W, 1e-12 * at_head.jet_W);
+  EXPECT_NEAR(w.electrical_W, at_head.electrical_W, 1e-12 * at_head.electrical_W);
 }
 
 TEST(Plant, JetPowerMatchesTheWorkedExample) {

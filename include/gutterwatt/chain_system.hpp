@@ -85,8 +85,7 @@ struct ChainRates {
   double evaporation = 0.0;  ///< m3/s from the reservoir's water surface
   double nozzle = 0.0;       ///< m3/s
   double column_overflow = 0.0;
-  double head_m = 0.0;
-  PlantPower power;
+  PlantPower power;  ///< with the head at the nozzle
   double electrical_W = 0.0;
   BatteryFlows battery;
 };

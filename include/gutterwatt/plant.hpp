@@ -99,12 +99,12 @@ class Plant {
   double column_nozzle_flow_m3_per_s(double volume_m3) const;
   double column_head_m(double volume_m3) const;
 
-  /// Head upstream of the nozzle while it passes `flow` with no column: the drop pipe backs up
-  /// until the nozzle passes what arrives (quasi-steady; the pipe's own storage is neglected).
-  double nozzle_head_for_flow_m(double flow_m3_per_s) const;
-
   /// Jet, shaft and electrical power for `flow` at nozzle head `head_m`.
   PlantPower power(double flow_m3_per_s, double head_m) const;
+  /// The same for `flow` with no column holding the head: the drop pipe backs up until the
+  /// nozzle passes what arrives (quasi-steady; the pipe's own storage is neglected), so the head
+  /// (PlantPower::head_m) is the orifice law's for that flow.
+  PlantPower power_for_flow(double flow_m3_per_s) const;
 
   /// Head at the nozzle with the release running full from the design level (the column's height
   /// with a head column).
@@ -139,6 +139,9 @@ class Plant {
   // The bucket's speeds at the held and the conduction speed (bucket_speed_m_per_s).
   double held_bucket_m_per_s_ = 0.0;
   double conduction_bucket_m_per_s_ = 0.0;
+  double per_cd_area_;  // 1 / (Cd a) of the nozzle: its flow to the ideal jet speed
+
+  PlantPower power_of_jet(double flow_m3_per_s, double head_m, double jet_velocity_m_per_s) const;
 };
 
 /// Runner speed at which the bucket moves at `speed_ratio` times the jet velocity:
