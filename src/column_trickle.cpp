@@ -52,12 +52,8 @@ TrickleWater trickle_water_after(const Plant& plant, double volume_m3, const Ste
   const double a = inflow.end_m3_per_s - q0 + b;
   // Below the join (kNozzleLinearHead_m) the drain is linear, Qn = k V; above it the orifice law,
   // whose slope is Qn / (2 V).
-  const double join_m3 = plant.column_area_m2() * kNozzleLinearHead_m;
-  const double linear_rate_per_s = plant.column_nozzle_flow_m3_per_s(join_m3) / join_m3;
-  const auto drain_at = [&](double volume) {
-    return volume < join_m3 ? linear_rate_per_s * volume
-                            : plant.column_nozzle_flow_m3_per_s(volume);
-  };
+  const double join_m3 = plant.column_join_m3();
+  const double linear_rate_per_s = plant.column_linear_drain_per_s();
   // Step-size control for a local error of order h^3 (Hairer, Norsett & Wanner, Solving ODEs I,
   // II.4), growing at most fivefold: the cube root is taken only where it is not capped.
   constexpr double kMaxGrowth = 5.0;
@@ -80,14 +76,16 @@ TrickleWater trickle_water_after(const Plant& plant, double volume_m3, const Ste
     // drain law's departure from its tangent, vanishes with its slope at V0, so it enters the
     // second stage as 2 h phi_3 N(U). The second stage's size is the first's error estimate.
     // Where V0 and the stage both lie below the join, N is nil: the stage is exact.
-    const double drain = drain_at(v);
+    const double drain = plant.column_nozzle_flow_m3_per_s(v);
     const double lambda = v < join_m3 ? linear_rate_per_s : drain / (2.0 * v);
     const auto [p1, p2, p3] = phi123(-lambda * h);
     const double stage =
         std::max(0.0, v + h * p1 * (q - drain) + h * h * p2 * dq + 2.0 * h * h * h * p3 * c);
-    const double correction = v < join_m3 && stage < join_m3
-                                  ? 0.0
-                                  : 2.0 * h * p3 * (drain + lambda * (stage - v) - drain_at(stage));
+    const double correction =
+        v < join_m3 && stage < join_m3
+            ? 0.0
+            : 2.0 * h * p3 *
+                  (drain + lambda * (stage - v) - plant.column_nozzle_flow_m3_per_s(stage));
     const double error = std::abs(correction);
     const double tolerance = rtol * (scale_m3 + v);
     const double factor = error * kCappedRatio <= tolerance

@@ -65,6 +65,15 @@ Plant::Plant(const PlantConfig& config)
       kinematic_viscosity_m2_per_s_(water_kinematic_viscosity_m2_per_s(config.temperature_C)),
       per_cd_area_(
           1.0 / (config.nozzle.discharge_coefficient * circle_area_m2(config.nozzle.diameter_m))) {
+  if (column_) {
+    column_area_m2_ = circle_area_m2(column_->diameter_m);
+    per_column_area_ = 1.0 / column_area_m2_;
+    column_join_m3_ = column_area_m2_ * kNozzleLinearHead_m;
+    column_linear_drain_per_s_ =
+        orifice_flow_m3_per_s(nozzle_.discharge_coefficient, circle_area_m2(nozzle_.diameter_m),
+                              kNozzleLinearHead_m) /
+        column_join_m3_;
+  }
   // The full flow is needed at every solver stage while the release runs; solving the friction
   // law there dominated the run time, so it is tabulated once over the levels a run can reach.
   // Built once per process for each pipe, nozzle, drop, column and water (shared_table).
@@ -112,26 +121,22 @@ double Plant::solve_full_flow_m3_per_s(double level_m) const {
   return full_flow(pipe_, nozzle_, drop_m_, column_, kinematic_viscosity_m2_per_s_, level_m);
 }
 
-double Plant::column_area_m2() const { return column_ ? circle_area_m2(column_->diameter_m) : 0.0; }
-
 double Plant::column_capacity_m3() const {
   return column_ ? column_area_m2() * column_->height_m : 0.0;
 }
 
 double Plant::column_head_m(double volume_m3) const {
-  return column_ ? std::max(0.0, volume_m3) / column_area_m2() : 0.0;
+  return std::max(0.0, volume_m3) * per_column_area_;
 }
 
 double Plant::column_nozzle_flow_m3_per_s(double volume_m3) const {
-  const double head = column_head_m(volume_m3);
-  const double area = circle_area_m2(nozzle_.diameter_m);
-  if (head >= kNozzleLinearHead_m) {
-    return orifice_flow_m3_per_s(nozzle_.discharge_coefficient, area, head);
+  if (volume_m3 >= column_join_m3_) {
+    return orifice_flow_m3_per_s(nozzle_.discharge_coefficient, circle_area_m2(nozzle_.diameter_m),
+                                 column_head_m(volume_m3));
   }
   // Below a few millimetres of head no jet forms; flow in proportion to head keeps the column's
   // drain law free of the square-root singularity at empty, which would make it stiff.
-  return orifice_flow_m3_per_s(nozzle_.discharge_coefficient, area, kNozzleLinearHead_m) * head /
-         kNozzleLinearHead_m;
+  return column_linear_drain_per_s_ * std::max(0.0, volume_m3);
 }
 
 PlantPower Plant::power(double flow_m3_per_s, double head_m) const {

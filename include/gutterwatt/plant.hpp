@@ -91,13 +91,17 @@ class Plant {
   double solve_full_flow_m3_per_s(double level_m) const;
 
   bool has_column() const { return column_.has_value(); }
-  double column_area_m2() const;
+  double column_area_m2() const { return column_area_m2_; }
   /// Volume of a brim-full head column (0 without one).
   double column_capacity_m3() const;
   /// Nozzle flow with the column holding `volume_m3` (head = volume / area); orifice flow above
   /// kNozzleLinearHead_m, linear in head below it.
   double column_nozzle_flow_m3_per_s(double volume_m3) const;
   double column_head_m(double volume_m3) const;
+  /// The column's water at kNozzleLinearHead_m, below which its drain is linear (0 without one),
+  /// and that drain's rate constant, Qn / V there (1/s).
+  double column_join_m3() const { return column_join_m3_; }
+  double column_linear_drain_per_s() const { return column_linear_drain_per_s_; }
 
   /// Jet, shaft and electrical power for `flow` at nozzle head `head_m`.
   PlantPower power(double flow_m3_per_s, double head_m) const;
@@ -140,6 +144,12 @@ class Plant {
   double held_bucket_m_per_s_ = 0.0;
   double conduction_bucket_m_per_s_ = 0.0;
   double per_cd_area_;  // 1 / (Cd a) of the nozzle: its flow to the ideal jet speed
+  // The column's plan area and its inverse, and the linear drain below the join: worked out at
+  // every solver stage otherwise.
+  double column_area_m2_ = 0.0;
+  double per_column_area_ = 0.0;
+  double column_join_m3_ = 0.0;
+  double column_linear_drain_per_s_ = 0.0;
 
   PlantPower power_of_jet(double flow_m3_per_s, double head_m, double jet_velocity_m_per_s) const;
 };
