@@ -87,9 +87,15 @@ void ChainSystem::rates(const ChainState& x, const ChainMode& m, const Forcing& 
   r.column_overflow = 0.0;
   // Reservoir, release and overflow; the roof's inflow is added by the stepper (RoofSpan).
   r.level_m = geometry_.level_m(x[kReservoir]);
-  const bool needs_full_flow = m.release != ReleaseState::idle && m.release != ReleaseState::closed;
-  const double full_flow = needs_full_flow ? plant_.full_flow_m3_per_s(r.level_m) : 0.0;
-  r.release = release_->outflow_m3_per_s(m.release, r.level_m, full_flow);
+  // The release's own law capped at the full flow (Release::outflow_m3_per_s): the full flow,
+  // a table lookup on the level, is asked for only where the cap may bite (above its floor),
+  // which a dribble hardly reaches.
+  r.release =
+      release_->outflow_m3_per_s(m.release, r.level_m, std::numeric_limits<double>::infinity());
+  if (r.release > plant_.full_flow_floor_m3_per_s()) {
+    r.release =
+        release_->outflow_m3_per_s(m.release, r.level_m, plant_.full_flow_m3_per_s(r.level_m));
+  }
   r.outlet_level_m = r.level_m;
   if (delivery_) {
     // A level gutter delivers no more than its water-surface profile allows (gutter_flow.hpp):

@@ -82,6 +82,7 @@ Plant::Plant(const PlantConfig& config)
       "full flow at level",
       full_flow_figures(pipe_, nozzle_, drop_m_, column_, kinematic_viscosity_m2_per_s_), 0.0, top,
       1024, [this](double level) { return solve_full_flow_m3_per_s(level); });
+  full_flow_floor_m3_per_s_ = 0.99 * full_flow_m3_per_s(0.0);
   design_head_m_ =
       column_ ? column_->height_m
               : nozzle_head_for_flow_m(nozzle_, std::min(full_flow_m3_per_s(config.design_level_m),

@@ -87,6 +87,9 @@ class Plant {
   /// the cells where the flow crosses the laminar-turbulent blend (Re 2000 to 4000) its error
   /// grows to about 1e-5.
   double full_flow_m3_per_s(double level_m) const;
+  /// A flow the full flow is not below at any level >= 0: it grows with the level, and this is
+  /// 0.99 of its value at 0 (the margin far above the table's interpolation error).
+  double full_flow_floor_m3_per_s() const { return full_flow_floor_m3_per_s_; }
   /// The same flow solved directly (Darcy-Weisbach with the chosen friction law).
   double solve_full_flow_m3_per_s(double level_m) const;
 
@@ -144,6 +147,7 @@ class Plant {
   double held_bucket_m_per_s_ = 0.0;
   double conduction_bucket_m_per_s_ = 0.0;
   double per_cd_area_;  // 1 / (Cd a) of the nozzle: its flow to the ideal jet speed
+  double full_flow_floor_m3_per_s_ = 0.0;
   // The column's plan area and its inverse, and the linear drain below the join: worked out at
   // every solver stage otherwise.
   double column_area_m2_ = 0.0;

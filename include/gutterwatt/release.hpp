@@ -47,7 +47,9 @@ class Release {
   /// State at the start of a run with the reservoir at `level_m`.
   virtual ReleaseState initial_state(double level_m) const = 0;
   /// Outflow into the drop pipe in `state` at `level_m`; `full_flow_m3_per_s` is what the
-  /// conveyance carries running full at that level.
+  /// conveyance carries running full at that level. It is the release's own law capped at the
+  /// full flow (or the full flow itself): called with infinity, a result at or below the full flow
+  /// is the result with it.
   virtual double outflow_m3_per_s(ReleaseState state, double level_m,
                                   double full_flow_m3_per_s) const = 0;
   /// Writes the guards active in `state` into `out` and returns how many (0..kMaxGuards).
