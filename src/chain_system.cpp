@@ -180,8 +180,10 @@ void ChainSystem::guards(const ChainState& x, const ChainMode& m, const Forcing&
     // pipe has filled, so the gutter must still feed it, its outlet kStartMargin_m above where
     // it would end, after giving the pipe's volume. Else it would end at once and start again
     // as soon as the (quasi-steady) profile refilled the outlet: thousands of empty burps.
+    // The guard is below zero only where both are, so the shortfall is worked out only where the
+    // release's own guard is not above zero (its sign, all a switch reads, is the same).
     for (int k = 0; k < n; ++k) {
-      if (!release_->is_running(rel[k].next)) continue;
+      if (!release_->is_running(rel[k].next) || g[kGuardRelease0 + k] > 0.0) continue;
       g[kGuardRelease0 + k] = std::max(g[kGuardRelease0 + k], start_shortfall_m(x[kReservoir]));
     }
   }
