@@ -208,8 +208,10 @@ class DormandPrince {
   // (after a step) or the try's end (during one).
   std::array<State, 2> x_{}, dxdt_{};
   int now_ = 0;
-  State stage_{};  // an intermediate stage: only the slots in read_ are ever set
-  State k2_{}, k3_{}, k4_{}, k5_{}, k6_{}, err_{};
+  // Scratch of a try, left uninitialized (a run constructs one solver per segment): every slot
+  // is written before it is read, and of stage_ only the slots in read_ are set or read.
+  State stage_;
+  State k2_, k3_, k4_, k5_, k6_, err_;
   double t_ = 0.0, t_old_ = 0.0, dt_ = 0.0;
   bool have_dxdt_ = false;
 };
