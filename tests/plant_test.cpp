@@ -58,6 +58,21 @@ TEST(Plant, FullFlowIsAFreeOutfallIntoTheColumnTop) {
   EXPECT_LT(relative_error(p.full_flow_m3_per_s(0.3), 0.373687e-3), 1e-3);
 }
 
+TEST(Plant, FullFlowNeverFallsBelowItsFloor) {
+  // The rates look the full flow up only above this floor (Release::outflow_m3_per_s caps its
+  // own law there): the flow grows with the level, in the table and beyond it, with and without
+  // a column, so it holds at every level from empty to well above the table's top.
+  Scenario column = make_scenario();
+  column.head_column = HeadColumnConfig{0.040, 3.5};
+  for (const Scenario& s : {make_scenario(), column}) {
+    const Plant p(plant_config(s));
+    EXPECT_GT(p.full_flow_floor_m3_per_s(), 0.0);
+    for (double level = 0.0; level < 1.0; level += 1e-4) {
+      EXPECT_GE(p.full_flow_m3_per_s(level), p.full_flow_floor_m3_per_s()) << level;
+    }
+  }
+}
+
 TEST(Plant, FullBoreSiphonMatchesTheWorkedExample) {
   // source: worked check of REFERENCES.md section 4 (Darcy-Weisbach with Colebrook): free outfall,
   // head 1.5 m, D 40 mm, L 3 m, K 0.5 + 2 x 0.3, 20 C, roughness 0.0015 mm -> Q 3.684 L/s (0.5 %).
