@@ -6,6 +6,7 @@
 #include <sstream>
 #include <stdexcept>
 
+#include "detail.hpp"
 #include "gutterwatt/units.hpp"
 
 namespace gutterwatt {
@@ -48,13 +49,9 @@ double trickle_head_m(const Plant& plant) {
   if (jet_W(kTrickleHeadMax_m) <= cut_in) return kTrickleHeadMax_m;
   if (jet_W(kTrickleHeadMin_m) >= cut_in) return kTrickleHeadMin_m;
   // The jet's power rises with the head: bisection to a micrometre.
-  double lo = kTrickleHeadMin_m;
-  double hi = kTrickleHeadMax_m;
-  while (hi - lo > 1e-6) {
-    const double mid = 0.5 * (lo + hi);
-    (jet_W(mid) <= cut_in ? lo : hi) = mid;
-  }
-  return lo;
+  return detail::narrow_to_onset([&](double head_m) { return jet_W(head_m) > cut_in; },
+                                 kTrickleHeadMin_m, kTrickleHeadMax_m, 1e-6)
+      .first;
 }
 
 namespace {

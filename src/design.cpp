@@ -30,9 +30,6 @@ namespace {
 // for: 100 mm of head over an 8 m rim overflows some 10 L/s, beyond any roof's rain.
 constexpr double kStartSearch_m = 0.1;
 
-}  // namespace
-namespace {
-
 // A quantity given in SI (`si_unit` as in column names: L, mm_per_h) as a figure or a warning
 // shows it, in `units`: `12.5 mm/h` or `0.492 in/h`.
 std::string shown(UnitSystem units, double in_si, std::string_view si_unit) {
@@ -228,14 +225,9 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
       const auto outlet_m = [&](double h) {
         return delivery->outlet_depth_m(geometry.volume_m3(h), h, drawn_flow(h));
       };
-      double lo = bottom_m;
-      double hi = top_m;
-      if (outlet_m(hi) <= bottom_m) lo = hi;
-      for (int k = 0; k < 60 && hi - lo > 1e-9; ++k) {
-        const double mid = 0.5 * (lo + hi);
-        (outlet_m(mid) > bottom_m ? hi : lo) = mid;
-      }
-      ends_m = hi;
+      ends_m = detail::narrow_to_onset([&](double h) { return outlet_m(h) > bottom_m; }, bottom_m,
+                                       top_m, 1e-9)
+                   .second;
       d.release_ends_level_m = ends_m;
       // It starts where the gutter feeds it with the drop pipe's volume drawn, as the run's
       // guard has it: at the level it starts at or, only there, higher, over the rim where
@@ -248,12 +240,7 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
       if (feeds(top_m)) {
         d.release_starts_level_m = top_m;
       } else if (feeds(highest_m)) {
-        double below = top_m;
-        double above = highest_m;
-        for (int k = 0; k < 60 && above - below > 1e-9; ++k) {
-          const double mid = 0.5 * (below + above);
-          (feeds(mid) ? above : below) = mid;
-        }
+        const double above = detail::narrow_to_onset(feeds, top_m, highest_m, 1e-9).second;
         d.release_starts_level_m = above;
         if (above > geometry.rim_m()) {
           // Q = C i A of the roof into the overflow over the rim at that level, steady.

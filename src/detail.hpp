@@ -1,9 +1,9 @@
 #pragma once
 // Small helpers the library and the command line share, written once: whitespace trimming,
 // plain comma-separated fields and data lines (past a UTF-8 byte-order mark), floor division,
-// a safeguarded root of an increasing function, whole-text number parsing, fixed-point text, whole
-// seconds of the calendar and the exit statuses. Internal (not installed, not public API); tests in
-// tests/detail_test.cpp.
+// a safeguarded root of an increasing function, the onset of a condition by bisection, whole-text
+// number parsing, fixed-point text, whole seconds of the calendar and the exit statuses. Internal
+// (not installed, not public API); tests in tests/detail_test.cpp.
 
 #include <algorithm>
 #include <charconv>
@@ -48,6 +48,19 @@ double solve_increasing(double target, F f, Slope slope, double lo, double hi, d
     h = next;
   }
   return h;
+}
+
+/// Where a condition that, once it holds, holds for every larger x starts within [lo, hi]: the
+/// bracket narrowed by bisection to `width` (60 halvings at most), the condition false at its
+/// first end and true at its second. A condition false at `hi` gives {hi, hi}.
+template <class Holds>
+std::pair<double, double> narrow_to_onset(Holds holds, double lo, double hi, double width) {
+  if (!holds(hi)) return {hi, hi};
+  for (int k = 0; k < 60 && hi - lo > width; ++k) {
+    const double mid = 0.5 * (lo + hi);
+    (holds(mid) ? hi : lo) = mid;
+  }
+  return {lo, hi};
 }
 
 /// Whole seconds, for calendar arithmetic on instants.

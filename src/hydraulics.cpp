@@ -262,9 +262,13 @@ double orifice_flow_m3_per_s(double discharge_coefficient, double area_m2, doubl
 
 double nozzle_head_for_flow_m(const Nozzle& nozzle, double flow_m3_per_s) {
   // Inverse of the orifice equation, h = (Q / (Cd A))^2 / (2 g).
-  const double velocity =
-      flow_m3_per_s / (nozzle.discharge_coefficient * circle_area_m2(nozzle.diameter_m));
-  return velocity * velocity / (2.0 * kGravity_m_per_s2);
+  return velocity_head_m(flow_m3_per_s /
+                         (nozzle.discharge_coefficient * circle_area_m2(nozzle.diameter_m)));
+}
+
+double velocity_head_m(double velocity_m_per_s) {
+  // Bernoulli's velocity head, e.g. White, Fluid Mechanics, ch. 3.
+  return velocity_m_per_s * velocity_m_per_s / (2.0 * kGravity_m_per_s2);
 }
 
 double weir_flow_m3_per_s(double coefficient_m05_per_s, double length_m, double head_m) {

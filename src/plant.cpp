@@ -149,7 +149,7 @@ PlantPower Plant::power_for_flow(double flow_m3_per_s) const {
   // The orifice law Q = Cd a sqrt(2 g h) (hydraulics.hpp) gives the jet's ideal speed sqrt(2 g h)
   // as Q / (Cd a), and the head as its square over 2 g: no square root on the solver's path.
   const double ideal_m_per_s = flow_m3_per_s * per_cd_area_;
-  return power_of_jet(flow_m3_per_s, ideal_m_per_s * ideal_m_per_s / (2.0 * kGravity_m_per_s2),
+  return power_of_jet(flow_m3_per_s, velocity_head_m(ideal_m_per_s),
                       nozzle_.velocity_coefficient * ideal_m_per_s);
 }
 

@@ -399,6 +399,10 @@ TEST(Design, ALevelGutterThatFeedsItsReleaseOnlyOverItsRimSaysWhatRainStartsIt) 
   // The run takes its start from the same guard, and holds the level by the same overflow: six
   // hours of steady rain a fifth below that intensity start no cycle, a fifth above start some.
   const double starts = *d.release_start_intensity_m_per_s;
+  // By hand: the rim's weir, Q = 1.7 x 8 m x (h - 62 mm)^1.5 (ISO 3846 form, the scenario's
+  // coefficient and length), is the steady rain on 40 m2 at runoff coefficient 1: i = Q / 40.
+  const double over_rim_m = *d.release_starts_level_m - 0.062;
+  EXPECT_NEAR(starts, 1.7 * 8.0 * over_rim_m * std::sqrt(over_rim_m) / 40.0, 1e-12);
   test_support::RecordingObserver below;
   test_support::RecordingObserver above;
   EXPECT_EQ(

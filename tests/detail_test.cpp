@@ -58,6 +58,20 @@ TEST(WeightedMedian, AgreesWithTheRunningWeightInSortedOrder) {
   }
 }
 
+TEST(NarrowToOnset, BracketsWhereAConditionStartsToHold) {
+  // x^2 >= 2 starts at sqrt(2) = 1.41421356237 (to eleven digits, a published constant).
+  const auto [lo, hi] = narrow_to_onset([](double x) { return x * x >= 2.0; }, 1.0, 2.0, 1e-9);
+  EXPECT_LE(hi - lo, 1e-9);
+  EXPECT_LT(lo * lo, 2.0);
+  EXPECT_GE(hi * hi, 2.0);
+  EXPECT_NEAR(hi, 1.41421356237, 2e-9);
+  // False even at the top: the bracket collapses there; true everywhere: it closes on the bottom.
+  const auto never = narrow_to_onset([](double) { return false; }, 1.0, 2.0, 1e-9);
+  EXPECT_EQ(never.first, 2.0);
+  EXPECT_EQ(never.second, 2.0);
+  EXPECT_NEAR(narrow_to_onset([](double) { return true; }, 1.0, 2.0, 1e-9).second, 1.0, 1e-9);
+}
+
 TEST(Trim, DropsBlanksAtEitherEndOnly) {
   EXPECT_EQ(trim("  a b\t"), "a b");
   EXPECT_EQ(trim(" \t "), "");

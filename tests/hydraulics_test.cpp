@@ -424,6 +424,12 @@ TEST(ImpulseTurbine, NoEfficiencyOutsideWorkingRange) {
   EXPECT_EQ(impulse_efficiency(1.3, 0.7), 0.0);
 }
 
+TEST(Hydraulics, VelocityHeadIsTheSpeedSquaredOverTwoG) {
+  // By hand: 3 m/s gives 9 / (2 x 9.80665) = 0.458872 m.
+  EXPECT_NEAR(velocity_head_m(3.0), 0.458872, 1e-6);
+  EXPECT_EQ(velocity_head_m(0.0), 0.0);
+}
+
 TEST(ImpulseTurbine, BucketSpeedIsThePitchCircleSpeed) {
   // u = pi D N / 60: D 70 mm at 1000 rpm, 3.6652 m/s (by hand: 0.07 x 3.14159 x 1000 / 60)
   EXPECT_NEAR(bucket_speed_m_per_s(0.07, 1000.0), 3.6652, 1e-4);

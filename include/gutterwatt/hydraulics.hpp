@@ -62,6 +62,8 @@ double orifice_flow_m3_per_s(double discharge_coefficient, double area_m2, doubl
 
 /// Head upstream of a nozzle passing `flow`: h = (Q / (Cd A))^2 / (2 g).
 double nozzle_head_for_flow_m(const Nozzle& nozzle, double flow_m3_per_s);
+/// The velocity head V^2 / (2 g), m, of a speed `velocity_m_per_s`.
+double velocity_head_m(double velocity_m_per_s);
 
 /// Weir flow Q = C L h^1.5 with C in m^0.5/s; 0 for h <= 0.
 double weir_flow_m3_per_s(double coefficient_m05_per_s, double length_m, double head_m);
