@@ -4,33 +4,10 @@
 #include <array>
 #include <cmath>
 
+#include "gutterwatt/phi_functions.hpp"
+
 namespace gutterwatt {
 namespace {
-
-// phi_1, phi_2, phi_3 of z <= 0: phi_0(z) = e^z, phi_{k+1}(z) = (phi_k(z) - 1/k!) / z (Hochbruck &
-// Ostermann 2010, Acta Numerica 19, "Exponential integrators", section 2; from memory). Near 0,
-// where the recurrence cancels, their series sum_j z^j / (j + k)!.
-std::array<double, 3> phi123(double z) {
-  if (std::abs(z) < 0.5) {
-    // 1/n for n = 2 .. 15, so the terms need no division.
-    static constexpr std::array<double, 14> kInverse = {
-        1.0 / 2, 1.0 / 3,  1.0 / 4,  1.0 / 5,  1.0 / 6,  1.0 / 7,  1.0 / 8,
-        1.0 / 9, 1.0 / 10, 1.0 / 11, 1.0 / 12, 1.0 / 13, 1.0 / 14, 1.0 / 15};
-    std::array<double, 3> sum{};
-    std::array<double, 3> term = {1.0, 0.5, 1.0 / 6.0};
-    for (int j = 0; j < 12; ++j) {  // the next term is below 0.5^12 / 13! = 4e-14
-      for (int k = 0; k < 3; ++k) {
-        sum[k] += term[k];
-        term[k] *= z * kInverse[j + k];
-      }
-    }
-    return sum;
-  }
-  const double inverse = 1.0 / z;
-  const double p1 = std::expm1(z) * inverse;
-  const double p2 = (p1 - 1.0) * inverse;
-  return {p1, p2, (p2 - 0.5) * inverse};
-}
 
 // Substeps shorter than this are taken whatever their error estimate: the flows are then
 // constant to rounding over them.
@@ -78,7 +55,7 @@ TrickleWater trickle_water_after(const Plant& plant, double volume_m3, const Ste
     // Where V0 and the stage both lie below the join, N is nil: the stage is exact.
     const double drain = plant.column_nozzle_flow_m3_per_s(v);
     const double lambda = v < join_m3 ? linear_rate_per_s : drain / (2.0 * v);
-    const auto [p1, p2, p3] = phi123(-lambda * h);
+    const auto [p1, p2, p3] = phi_functions<3>(-lambda * h);
     const double stage =
         std::max(0.0, v + h * p1 * (q - drain) + h * h * p2 * dq + 2.0 * h * h * h * p3 * c);
     const double correction =

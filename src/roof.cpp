@@ -79,6 +79,11 @@ double RoofSpan::to_reservoir_m3_per_s(double t_s) const {
   return roof_m3(t_s) / roof_.lag_s;
 }
 
+std::array<double, 2> RoofSpan::inflow_trend(double t_s) const {
+  if (roof_.lag_s <= 0.0 || runoff_m3(t_s) < room_m3_) return {to_reservoir_m3_per_s(t_s), 0.0};
+  return {t_s < full_at_s_ ? 0.0 : effective_m3_s_, 1.0 / roof_.lag_s};
+}
+
 RoofFlows RoofSpan::flows(double t_s) const {
   RoofFlows f;
   const double rain_m3_s = rain_m_per_s_ * roof_.area_m2;

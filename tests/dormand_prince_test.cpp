@@ -3,7 +3,9 @@
 #include <gtest/gtest.h>
 
 #include <array>
+#include <boost/numeric/odeint.hpp>
 #include <cmath>
+#include <vector>
 
 namespace gutterwatt::dormand_prince_test {
 namespace {
@@ -211,6 +213,80 @@ TEST(DormandPrince, KnownDerivativeIsNotEvaluatedAgain) {
   calls = 0;
   s.do_step(counted);
   EXPECT_EQ(calls, 7);
+}
+
+// The linear reference's departure y and its integral s against Boost.Odeint's Dormand-Prince at
+// a tolerance of 1e-13 on y' = E' + D e^(-beta t) + mu y, s' = y: the storage draining fast or
+// slowly, the roof's lag slower and faster than the storage, the two rates nearly and exactly
+// equal (the divided differences' near branch), no drain, a constant inflow.
+TEST(LinearReference, AgreesWithAnIndependentIntegration) {
+  namespace odeint = boost::numeric::odeint;
+  struct Case {
+    double mu, constant, decaying, beta, tau;
+  };
+  const std::vector<Case> cases = {
+      {-0.16, 2e-5, -1e-5, 1.0 / 60.0, 40.0}, {-0.011, 2e-5, 3e-6, 1.0 / 60.0, 60.0},
+      {-2.0, -1e-4, 5e-5, 0.1, 7.0},          {-0.05, 1e-5, 1e-5, 0.05 + 1e-9, 30.0},
+      {-0.05, 1e-5, 1e-5, 0.05, 30.0},        {0.0, 1e-5, -4e-6, 1.0 / 30.0, 90.0},
+      {-0.3, 1e-5, 0.0, 0.0, 15.0},           {-1e-9, 1e-5, 2e-6, 1.0, 0.01}};
+  for (const Case& c : cases) {
+    std::vector<double> ys = {0.0, 0.0};
+    const auto rhs = [&](const std::vector<double>& x, std::vector<double>& d, double t) {
+      d[0] = c.constant + c.decaying * std::exp(-c.beta * t) + c.mu * x[0];
+      d[1] = x[0];
+    };
+    odeint::integrate_adaptive(
+        odeint::make_controlled(1e-13, 1e-13, odeint::runge_kutta_dopri5<std::vector<double>>()),
+        rhs, ys, 0.0, c.tau, c.tau / 100.0);
+    const ReferenceAt ref = linear_reference_at(c.tau, c.mu, c.constant, c.decaying, c.beta);
+    const double y_scale = (std::abs(c.constant) + std::abs(c.decaying)) * c.tau;
+    EXPECT_NEAR(ref.y, ys[0], 1e-10 * y_scale) << "mu " << c.mu << " beta " << c.beta;
+    EXPECT_NEAR(ref.s, ys[1], 1e-10 * y_scale * c.tau) << "mu " << c.mu << " beta " << c.beta;
+  }
+}
+
+// A storage of water w (the solver's slot, less what has flowed in) drains linearly, out = k V with
+// V = w + I(t), under an inflow that tends to E at rate beta, I(t) = E t + D (1 - e^(-beta t)) /
+// beta; slot 1 counts the outflow. On the linear reference the second step on takes the secant's
+// slope, which is -k exactly: the pair has nothing left to integrate, its steps grow to the
+// largest, and the end agrees with the exact solution of the linear equation worked by hand,
+// V = V0 e^(-k t) + E (1 - e^(-k t)) / k + D (e^(-beta t) - e^(-k t)) / (k - beta).
+TEST(LinearReference, TakesALinearStorageExactlyAndClosesItsBalance) {
+  constexpr double k = 0.5, e = 2e-5, d = -1.5e-5, beta = 1.0 / 60.0, v0 = 1e-3, t_end = 600.0;
+  const auto inflowed = [&](double t) { return e * t + d * (1.0 - std::exp(-beta * t)) / beta; };
+  const auto system = [&](const State2& w, State2& dxdt, double t) {
+    const double out = k * (w[0] + inflowed(t));
+    dxdt[0] = -out;
+    dxdt[1] = out;
+  };
+  State2 slopes{};
+  constexpr std::array<std::size_t, 1> kOut = {1};
+  using Solver = DormandPrince<2, Relative>;
+  Solver s(kFirst, Relative{1e-8, 1e-14}, 100.0, Solver::Reference{0, kOut, {}, &slopes});
+  s.initialize({v0, 0.0}, 0.0, 0.5);
+  long steps = 0;
+  while (s.current_time() < t_end) {
+    const double t = s.current_time();
+    if (t + s.current_time_step() > t_end) {
+      const State2 x = s.current_state();
+      const State2 dxdt = s.current_deriv();
+      s.initialize(x, t, t_end - t, &dxdt);
+    }
+    s.set_inflow(e + d * std::exp(-beta * t), e, beta);
+    s.do_step(system);
+    ++steps;
+  }
+  const double v = s.current_state()[0] + inflowed(t_end);
+  const double exact = v0 * std::exp(-k * t_end) + e * (1.0 - std::exp(-k * t_end)) / k +
+                       d * (std::exp(-beta * t_end) - std::exp(-k * t_end)) / (k - beta);
+  EXPECT_NEAR(v, exact, 1e-12);
+  // The secant's two states differ by about the local error: its slope to about 1e-8.
+  EXPECT_NEAR(slopes[0], -k, 1e-7);
+  EXPECT_NEAR(slopes[1], k, 1e-7);
+  // What flowed in is what is held plus what flowed out, to rounding.
+  EXPECT_NEAR(v + s.current_state()[1], v0 + inflowed(t_end), 1e-15);
+  // The plain pair holds k h under its stability limit (about 3.3): at least 90 steps.
+  EXPECT_LT(steps, 20);
 }
 
 }  // namespace

@@ -15,6 +15,22 @@
 /// What it adds: the slots that no right-hand side reads (running integrals of flows) are left
 /// out of the intermediate stages. Their stage values would be computed and never used; they
 /// enter the step's result, its error and the dense output as before.
+///
+/// And, optionally (DormandPrince::Reference), a linear reference that each step takes exactly,
+/// so that the pair integrates only what the reference leaves: a change of variables, as the
+/// exponential integrators of Hochbruck & Ostermann (2010, Acta Numerica 19, "Exponential
+/// integrators"; from memory) take a linear part exactly. One storage's outflow is taken as
+/// linear in its water, with the slope mu of the step before (its last two evaluations are at one
+/// time and two states: a secant), and its inflow as the law set_inflow gives, q(tau) = E +
+/// (q0 - E) e^(-beta tau). The storage's water then departs from where it starts by y(tau), with
+/// y' = q(tau) + r + mu y, y(0) = 0 (r the storage's rate at the step's start), solved exactly
+/// through phi_1 and phi_2; its integral is s(tau). Every slot i carries its rate at the start r_i
+/// plus its slope lambda_i times y: the reference r_i tau + lambda_i s(tau), the pair integrating
+/// dx_i/dt - r_i - lambda_i y. The error estimate is the pair's on that departure. A storage that
+/// drains fast and follows a changing inflow, whose steps the pair would otherwise hold to the
+/// decay of each change (however smooth the water), is then stepped by the curvature of its law
+/// alone. Linear balances among the slots hold as the slopes respect them: the outflows' slopes
+/// (by the same secant) sum to the storage's, and `alike` gives a slot another's slope.
 
 #include <array>
 #include <cstddef>
@@ -63,6 +79,15 @@ std::array<double, 6> dopri5_dense_rate_weights(double theta);
 double dopri5_shrink(double dt, double err, double max_step);
 double dopri5_grow(double dt, double err, double max_step);
 
+/// The departure y(tau) of the reference's storage from where a step starts, and its integral
+/// s(tau), for y' = q(tau) + r + mu y with y(0) = 0 and q(tau) = E + (q0 - E) e^(-beta tau):
+/// `constant` is E + r, `decaying` q0 - E (0 where beta is 0).
+struct ReferenceAt {
+  double y = 0.0, s = 0.0;
+};
+ReferenceAt linear_reference_at(double tau, double mu, double constant, double decaying,
+                                double beta);
+
 /// Rejected tries in a row after which a step counts as impossible.
 inline constexpr int kMaxRejectedTries = 500;
 
@@ -75,8 +100,28 @@ class DormandPrince {
  public:
   using State = std::array<double, N>;
 
-  DormandPrince(std::span<const std::size_t> read, Error error, double max_step)
-      : read_(read), error_(std::move(error)), max_step_(max_step) {}
+  /// A linear reference (see the head of this file): off while `slopes` is null.
+  struct Reference {
+    std::size_t storage = 0;  ///< the slot whose outflow is taken as linear in its water
+    /// Slots whose rates are flows out of the storage: sloped by the same secant.
+    std::span<const std::size_t> outflows;
+    /// {slot, from}: the slot takes from's slope (the same flow counted twice).
+    std::span<const std::array<std::size_t, 2>> alike;
+    /// The slopes, kept by the caller from one step (and solver) to the next; the other slots' 0.
+    State* slopes = nullptr;
+  };
+
+  DormandPrince(std::span<const std::size_t> read, Error error, double max_step,
+                Reference reference = {})
+      : read_(read), error_(std::move(error)), max_step_(max_step), ref_(reference) {}
+
+  /// The reference's inflow over the steps that follow: q0 at the next step's start, tending to
+  /// `equilibrium` at `rate` (1/s; 0: constant).
+  void set_inflow(double q0, double equilibrium, double rate) {
+    q0_ = q0;
+    equilibrium_ = equilibrium;
+    beta_ = rate;
+  }
 
   /// Starts from `x0` at `t0` with a first try of `dt0`; `dxdt0`, when given, is the derivative
   /// there (else the first step evaluates it).
@@ -115,12 +160,24 @@ class DormandPrince {
   /// of `x` (its other slots are left as they are): what the system needs to be evaluated there.
   void calc_read_state(double t, State& x) const { dense(t, x, read_); }
 
+  /// The dense output of the last step at `t` in slot `i` alone.
+  double calc_slot(double t, std::size_t i) const {
+    State x;
+    const std::array<std::size_t, 1> slot = {i};
+    dense(t, x, slot);
+    return x[i];
+  }
+
   /// The dense output's rate of change in slot `i` at `t` within the last step: k1 at its start
   /// and the last stage at its end (the extension is continuously differentiable).
   double calc_rate(double t, std::size_t i) const {
     if (t == t_) return dxdt_[now_][i];
     if (t == t_old_) return dxdt_[1 - now_][i];
     const std::array<double, 6> w = dopri5_dense_rate_weights((t - t_old_) / (t_ - t_old_));
+    if (ref_.slopes) {
+      return dxdt_[1 - now_][i] + lambda_[i] * reference_at(t - t_old_).y + w[1] * k3_[i] +
+             w[2] * k4_[i] + w[3] * k5_[i] + w[4] * k6_[i] + w[5] * k7_left_[i];
+    }
     return w[0] * dxdt_[1 - now_][i] + w[1] * k3_[i] + w[2] * k4_[i] + w[3] * k5_[i] +
            w[4] * k6_[i] + w[5] * dxdt_[now_][i];
   }
@@ -141,22 +198,49 @@ class DormandPrince {
     const std::array<double, 6> w = dopri5_dense_weights((t - t_old_) / dt);
     const double w1 = dt * w[0], w3 = dt * w[1], w4 = dt * w[2], w5 = dt * w[3], w6 = dt * w[4],
                  w7 = dt * w[5];
+    if (ref_.slopes) {
+      const double tau = t - t_old_;
+      const double s = reference_at(tau).s;
+      for (std::size_t i : slots) {
+        x[i] = x0[i] + k1[i] * tau + lambda_[i] * s + w3 * k3_[i] + w4 * k4_[i] + w5 * k5_[i] +
+               w6 * k6_[i] + w7 * k7_left_[i];
+      }
+      return;
+    }
     for (std::size_t i : slots) {
       x[i] = 1.0 * x0[i] + w1 * k1[i] + w3 * k3_[i] + w4 * k4_[i] + w5 * k5_[i] + w6 * k6_[i] +
              w7 * k7[i];
     }
   }
 
+  ReferenceAt reference_at(double tau) const {
+    return linear_reference_at(tau, lambda_[ref_.storage], constant_, decaying_, beta_);
+  }
+
   // One try from the current point at t_ with dt_, into the other buffers: on success t_ has
   // moved (do_step then makes them current); dt_ is the next try's step.
   template <class System>
   bool try_step(System& f) {
-    using namespace dopri5;
     const double dt = dt_;
     if (dt - max_step_ > std::numeric_limits<double>::epsilon()) {
       dt_ = max_step_;
       return false;
     }
+    const double err = ref_.slopes ? try_on_reference(f, dt) : try_plain(f, dt);
+    if (err > 1.0) {
+      dt_ = dopri5_shrink(dt, err, max_step_);
+      return false;
+    }
+    if (ref_.slopes) update_slopes(x_[1 - now_]);
+    t_ += dt;
+    dt_ = dopri5_grow(dt, err, max_step_);
+    return true;
+  }
+
+  // The pair's stages, end and error over `dt`; returns the error relative to the tolerance.
+  template <class System>
+  double try_plain(System& f, double dt) {
+    using namespace dopri5;
     const State& x = x_[now_];
     const State& k1 = dxdt_[now_];
     State& out = x_[1 - now_];
@@ -191,19 +275,91 @@ class DormandPrince {
       err_[i] = dt * e1 * k1[i] + dt * e3 * k3_[i] + dt * e4 * k4_[i] + dt * e5 * k5_[i] +
                 dt * e6 * k6_[i] + dt * e7 * k7[i];
     }
-    const double err = error_(x, k1, err_, dt);
-    if (err > 1.0) {
-      dt_ = dopri5_shrink(dt, err, max_step_);
-      return false;
-    }
-    t_ += dt;
-    dt_ = dopri5_grow(dt, err, max_step_);
-    return true;
+    return error_(x, k1, err_, dt);
   }
+
+  // try_plain on the departure from the linear reference: k2 .. k6 and k7_left_ are the rates
+  // less the reference's (k1's is 0), the state's end k7 as it is (the next step's start).
+  template <class System>
+  double try_on_reference(System& f, double dt) {
+    using namespace dopri5;
+    const State& x = x_[now_];
+    const State& r = dxdt_[now_];
+    State& out = x_[1 - now_];
+    State& k7 = dxdt_[1 - now_];
+    lambda_ = *ref_.slopes;
+    constant_ = equilibrium_ + r[ref_.storage];
+    decaying_ = beta_ > 0.0 ? q0_ - equilibrium_ : 0.0;
+    if (beta_ <= 0.0) constant_ += q0_ - equilibrium_;
+    // The read slots at `tau` into the step, given the pair's part; returns the reference's y.
+    const auto stage = [&](double tau, const auto& pair) {
+      const ReferenceAt ref = reference_at(tau);
+      for (std::size_t i : read_) stage_[i] = x[i] + r[i] * tau + lambda_[i] * ref.s + pair(i);
+      return ref.y;
+    };
+    const auto leave = [&](State& k, double y) {
+      for (std::size_t i = 0; i < N; ++i) k[i] -= r[i] + lambda_[i] * y;
+    };
+    double y = stage(dt * c2, [](std::size_t) { return 0.0; });
+    f(stage_, k2_, t_ + dt * c2);
+    leave(k2_, y);
+    y = stage(dt * c3, [&](std::size_t i) { return dt * a32 * k2_[i]; });
+    f(stage_, k3_, t_ + dt * c3);
+    leave(k3_, y);
+    y = stage(dt * c4, [&](std::size_t i) { return dt * a42 * k2_[i] + dt * a43 * k3_[i]; });
+    f(stage_, k4_, t_ + dt * c4);
+    leave(k4_, y);
+    y = stage(dt * c5, [&](std::size_t i) {
+      return dt * a52 * k2_[i] + dt * a53 * k3_[i] + dt * a54 * k4_[i];
+    });
+    f(stage_, k5_, t_ + dt * c5);
+    leave(k5_, y);
+    const ReferenceAt end = reference_at(dt);
+    stage(dt, [&](std::size_t i) {
+      return dt * a62 * k2_[i] + dt * a63 * k3_[i] + dt * a64 * k4_[i] + dt * a65 * k5_[i];
+    });
+    f(stage_, k6_, t_ + dt);
+    leave(k6_, end.y);
+    for (std::size_t i = 0; i < N; ++i) {
+      out[i] = x[i] + r[i] * dt + lambda_[i] * end.s + dt * b3 * k3_[i] + dt * b4 * k4_[i] +
+               dt * b5 * k5_[i] + dt * b6 * k6_[i];
+    }
+    f(out, k7, t_ + dt);
+    for (std::size_t i = 0; i < N; ++i) {
+      k7_left_[i] = k7[i] - r[i] - lambda_[i] * end.y;
+      err_[i] = dt * e3 * k3_[i] + dt * e4 * k4_[i] + dt * e5 * k5_[i] + dt * e6 * k6_[i] +
+                dt * e7 * k7_left_[i];
+    }
+    return error_(x, r, err_, dt);
+  }
+
+  // The slopes for the next step, by the secant between the last two evaluations (stage 6 and the
+  // step's end, at one time): the storage's, and its outflows' where the storage drains (mu < 0);
+  // all 0 where it does not. Kept where the storage barely moved between them (the secant would
+  // be rounding).
+  void update_slopes(const State& out) {
+    const std::size_t v = ref_.storage;
+    const double moved = out[v] - stage_[v];
+    if (!(std::abs(moved) > kSecantFloor * (std::abs(out[v]) + kSecantScale))) return;
+    State& slopes = *ref_.slopes;
+    const double mu = (k7_left_[v] - k6_[v]) / moved;
+    slopes.fill(0.0);
+    if (!(mu < 0.0)) return;
+    slopes[v] = mu;
+    for (std::size_t i : ref_.outflows) slopes[i] = (k7_left_[i] - k6_[i]) / moved;
+    for (const auto& [to, from] : ref_.alike) slopes[to] = slopes[from];
+  }
+  static constexpr double kSecantFloor = 1e-12;
+  static constexpr double kSecantScale = 1e-6;
 
   std::span<const std::size_t> read_;
   Error error_;
   double max_step_;
+  Reference ref_;
+  // The step's slopes (kept for its dense output), its rates' end less the reference's, and the
+  // reference's inflow law and terms.
+  State lambda_{}, k7_left_{};
+  double q0_ = 0.0, equilibrium_ = 0.0, beta_ = 0.0, constant_ = 0.0, decaying_ = 0.0;
   // Two points and their derivatives: [now_] the current one, [1 - now_] the last step's start
   // (after a step) or the try's end (during one).
   std::array<State, 2> x_{}, dxdt_{};

@@ -5,6 +5,7 @@
 /// start. The reservoir downstream takes the roof's inflow as a known function of time; a lag of
 /// 0 and a lag of a millisecond are then one path, neither stiff.
 
+#include <array>
 #include <limits>
 
 #include "gutterwatt/units.hpp"
@@ -56,6 +57,10 @@ class RoofSpan {
   double to_reservoir_m3(double t_s) const;
   /// The rate of to_reservoir_m3 at `t_s`, m3/s (from the right at a kink).
   double to_reservoir_m3_per_s(double t_s) const;
+  /// What to_reservoir_m3_per_s tends to from `t_s` on and at what rate (1/s; 0: it stays as it
+  /// is), were the law in force at `t_s` to hold: the roof's linear reservoir draining toward its
+  /// equilibrium (C i A once the initial loss is full, else 0); nothing while the diverter fills.
+  std::array<double, 2> inflow_trend(double t_s) const;
   /// The flows over [0, t_s].
   RoofFlows flows(double t_s) const;
 

@@ -8,6 +8,7 @@
 /// enters exactly and sets no step.
 
 #include <atomic>
+#include <functional>
 #include <optional>
 #include <string>
 
@@ -64,10 +65,22 @@ class Stepper {
   void integrate(double t0, double t1, const Forcing& f);
   void integrate_fixed(double t0, double t1, const Forcing& f);
   bool coasted_to_end(double t, double span, const Forcing& f);
-  /// Makes `x_end` the engine's state, with the trickle's column water followed over the step;
-  /// true when that water moved (a slot the solver carries changed beside it).
+  /// The release over the step being accepted, on the solver's dense output: at a time within
+  /// the segment, its flow (m3/s) and its account (m3).
+  struct ReleaseAlong {
+    double step_start;
+    std::function<std::array<double, 2>(double)> at;
+  };
+  /// Makes `x_end` the engine's state, with the trickle's column water followed over the step
+  /// (on `along` where given, else the release's quadratic through the step's ends with its
+  /// mean); true when that water moved (a slot the solver carries changed beside it).
   bool accept_step(const ChainState& x_end, double dt, const ChainRates& r, int fired,
-                   const Forcing& f, double t_abs);
+                   const Forcing& f, double t_abs, const ReleaseAlong* along = nullptr);
+  /// follow_trickle_water over [a, a + dt] of the step on `along`, halved where the release is not
+  /// quadratic to the trickle's tolerance; `start` and `end` the release's flow and account.
+  bool follow_trickle_along(ChainState& x, const ReleaseAlong& along, int depth,
+                            std::array<double, 2> start, std::array<double, 2> end, double dt,
+                            double a = 0.0);
   /// Advances the column's water in `x` over `dt` while it trickles; true when it moved.
   bool follow_trickle_water(ChainState& x, const StepInflow& inflow, double dt);
   void switch_mode(int k, const Forcing& f, const ChainRates& r);
@@ -88,7 +101,10 @@ class Stepper {
   std::optional<RoofSpan> roof_;  // the roof stage over the current segment
   double now_s_ = 0.0;            // absolute, seconds since the epoch
   double last_step_s_ = 10.0;     // solver step carried from one segment into the next
-  bool moving_ = false;           // stepped (not at rest) since the last trace point at rest
+  ChainState slopes_{};
+  std::function<std::pair<double, double>(double)>
+      trickle_release_;  // the solver's linear reference's slopes, carried likewise
+  bool moving_ = false;  // stepped (not at rest) since the last trace point at rest
   double trickle_inflow_m3_per_s_ = 0.0;  // the release where the step now starting starts
   double trickle_substep_s_ = 0.0;        // the trickle water's substep carried on
   double trickle_rtol_;                   // the trickle water's tolerance, from the run's rtol

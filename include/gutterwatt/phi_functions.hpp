@@ -1,0 +1,16 @@
+#pragma once
+/// The functions of exponential integrators, phi_0(z) = e^z and phi_{k+1}(z) = (phi_k(z) - 1/k!) /
+/// z (Hochbruck & Ostermann 2010, Acta Numerica 19, "Exponential integrators", section 2; from
+/// memory): phi_k(h lambda) h^k weighs the k-th power of time in the exact solution of
+/// y' = lambda y + a polynomial forcing over a step h.
+
+#include <array>
+
+namespace gutterwatt {
+
+/// phi_1(z) .. phi_K(z) for K = 2 or 3. Near 0, where the recurrence cancels, their series
+/// sum_j z^j / (j + k)!; elsewhere the recurrence from expm1.
+template <int K>
+std::array<double, K> phi_functions(double z);
+
+}  // namespace gutterwatt
