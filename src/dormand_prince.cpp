@@ -75,7 +75,7 @@ constexpr std::array<Poly, 6> kRateWeights = rate_weights();
 }  // namespace
 
 ReferenceAt linear_reference_at(double tau, double mu, double constant, double decaying,
-                                double beta) {
+                                double beta, bool integral) {
   if (tau == 0.0) return {};
   // With a = mu tau and b = -beta tau: y = E' tau phi_1(a) + D tau (e^a - e^b) / (a - b) and
   // s = E' tau^2 phi_2(a) + D tau^2 (phi_1(a) - phi_1(b)) / (a - b), E' the constant forcing and
@@ -83,7 +83,7 @@ ReferenceAt linear_reference_at(double tau, double mu, double constant, double d
   // z phi_1(z).
   const double a = mu * tau;
   const std::array<double, 2> pa = phi_functions<2>(a);
-  ReferenceAt ref{constant * tau * pa[0], constant * tau * tau * pa[1]};
+  ReferenceAt ref{constant * tau * pa[0], integral ? constant * tau * tau * pa[1] : 0.0};
   if (decaying == 0.0) return ref;
   const double b = -beta * tau;
   const double gap = a - b;
@@ -94,15 +94,16 @@ ReferenceAt linear_reference_at(double tau, double mu, double constant, double d
   // at this gap.
   constexpr double kMeet = 1e-5;
   if (std::abs(gap) > kMeet) {
-    const std::array<double, 2> pb = phi_functions<2>(b);
-    ref.y += decaying * tau * (a * pa[0] - b * pb[0]) / gap;
-    ref.s += decaying * tau * tau * (pa[0] - pb[0]) / gap;
+    const double pb = phi_functions<1>(b)[0];
+    ref.y += decaying * tau * (a * pa[0] - b * pb) / gap;
+    if (integral) ref.s += decaying * tau * tau * (pa[0] - pb) / gap;
   } else {
     const std::array<double, 3> pb = phi_functions<3>(b);
-    const double first = pb[0] - pb[1];
-    const double second = pb[0] - 2.0 * pb[1] + 2.0 * pb[2];
     ref.y += decaying * tau * (1.0 + b * pb[0]) * (1.0 + gap * (0.5 + gap / 6.0));
-    ref.s += decaying * tau * tau * (first + 0.5 * gap * second);
+    if (integral) {
+      ref.s +=
+          decaying * tau * tau * (pb[0] - pb[1] + 0.5 * gap * (pb[0] - 2.0 * pb[1] + 2.0 * pb[2]));
+    }
   }
   return ref;
 }

@@ -506,10 +506,8 @@ void Stepper::integrate(double t0, double t1, const Forcing& f) {
         }
       }
     }
-    ReleaseAlong along{t, [&](double tau) {
-                         return std::array<double, 2>{stepper.calc_rate(tau, kRelease),
-                                                      stepper.calc_slot(tau, kRelease)};
-                       }};
+    const ReleaseAlong along{t, [&](double tau) { return stepper.calc_rate(tau, kRelease); },
+                             [&](double tau) { return stepper.calc_slot(tau, kRelease); }};
     const bool moved = accept_step(x_end, t_end - t, r, first, f, t0 + t_end, &along);
     t = t_end;
     if (first >= 0) {
@@ -592,12 +590,16 @@ bool Stepper::follow_trickle_along(ChainState& x, const ReleaseAlong& along, int
   if (depth < kMaxHalvings) {
     const double b = 6.0 * (inflow.mean_m3_per_s - 0.5 * (start[0] + end[0]));
     const double slope = end[0] - start[0] + b;
-    for (double u : {0.25, 0.75}) {
+    // A cubic departure is opposite at a quarter and three quarters, a quartic alike: one of
+    // them is looked at.
+    {
+      constexpr double u = 0.25;
       const double quadratic = start[0] + (slope - b * u) * u;
-      const double dense = along.at(along.step_start + a + u * dt)[0];
+      const double dense = along.flow(along.step_start + a + u * dt);
       if (std::abs(quadratic - dense) >
           kTrickleInflowFit * trickle_rtol_ * (std::abs(inflow.mean_m3_per_s) + std::abs(dense))) {
-        const std::array<double, 2> mid = along.at(along.step_start + a + 0.5 * dt);
+        const double t_mid = along.step_start + a + 0.5 * dt;
+        const std::array<double, 2> mid = {along.flow(t_mid), along.passed(t_mid)};
         const bool first = follow_trickle_along(x, along, depth + 1, start, mid, 0.5 * dt, a);
         const bool second =
             follow_trickle_along(x, along, depth + 1, mid, end, 0.5 * dt, a + 0.5 * dt);

@@ -85,8 +85,9 @@ double dopri5_grow(double dt, double err, double max_step);
 struct ReferenceAt {
   double y = 0.0, s = 0.0;
 };
+/// Without `integral`, y alone (s left 0).
 ReferenceAt linear_reference_at(double tau, double mu, double constant, double decaying,
-                                double beta);
+                                double beta, bool integral = true);
 
 /// Rejected tries in a row after which a step counts as impossible.
 inline constexpr int kMaxRejectedTries = 500;
@@ -175,7 +176,7 @@ class DormandPrince {
     if (t == t_old_) return dxdt_[1 - now_][i];
     const std::array<double, 6> w = dopri5_dense_rate_weights((t - t_old_) / (t_ - t_old_));
     if (ref_.slopes) {
-      return dxdt_[1 - now_][i] + lambda_[i] * reference_at(t - t_old_).y + w[1] * k3_[i] +
+      return dxdt_[1 - now_][i] + lambda_[i] * reference_at(t - t_old_, false).y + w[1] * k3_[i] +
              w[2] * k4_[i] + w[3] * k5_[i] + w[4] * k6_[i] + w[5] * k7_left_[i];
     }
     return w[0] * dxdt_[1 - now_][i] + w[1] * k3_[i] + w[2] * k4_[i] + w[3] * k5_[i] +
@@ -213,8 +214,8 @@ class DormandPrince {
     }
   }
 
-  ReferenceAt reference_at(double tau) const {
-    return linear_reference_at(tau, lambda_[ref_.storage], constant_, decaying_, beta_);
+  ReferenceAt reference_at(double tau, bool integral = true) const {
+    return linear_reference_at(tau, lambda_[ref_.storage], constant_, decaying_, beta_, integral);
   }
 
   // One try from the current point at t_ with dt_, into the other buffers: on success t_ has
@@ -291,31 +292,30 @@ class DormandPrince {
     constant_ = equilibrium_ + r[ref_.storage];
     decaying_ = beta_ > 0.0 ? q0_ - equilibrium_ : 0.0;
     if (beta_ <= 0.0) constant_ += q0_ - equilibrium_;
-    // The read slots at `tau` into the step, given the pair's part; returns the reference's y.
+    // The read slots at `tau` into the step, given the pair's part; returns the reference there.
     const auto stage = [&](double tau, const auto& pair) {
       const ReferenceAt ref = reference_at(tau);
       for (std::size_t i : read_) stage_[i] = x[i] + r[i] * tau + lambda_[i] * ref.s + pair(i);
-      return ref.y;
+      return ref;
     };
     const auto leave = [&](State& k, double y) {
       for (std::size_t i = 0; i < N; ++i) k[i] -= r[i] + lambda_[i] * y;
     };
-    double y = stage(dt * c2, [](std::size_t) { return 0.0; });
+    double y = stage(dt * c2, [](std::size_t) { return 0.0; }).y;
     f(stage_, k2_, t_ + dt * c2);
     leave(k2_, y);
-    y = stage(dt * c3, [&](std::size_t i) { return dt * a32 * k2_[i]; });
+    y = stage(dt * c3, [&](std::size_t i) { return dt * a32 * k2_[i]; }).y;
     f(stage_, k3_, t_ + dt * c3);
     leave(k3_, y);
-    y = stage(dt * c4, [&](std::size_t i) { return dt * a42 * k2_[i] + dt * a43 * k3_[i]; });
+    y = stage(dt * c4, [&](std::size_t i) { return dt * a42 * k2_[i] + dt * a43 * k3_[i]; }).y;
     f(stage_, k4_, t_ + dt * c4);
     leave(k4_, y);
     y = stage(dt * c5, [&](std::size_t i) {
-      return dt * a52 * k2_[i] + dt * a53 * k3_[i] + dt * a54 * k4_[i];
-    });
+          return dt * a52 * k2_[i] + dt * a53 * k3_[i] + dt * a54 * k4_[i];
+        }).y;
     f(stage_, k5_, t_ + dt * c5);
     leave(k5_, y);
-    const ReferenceAt end = reference_at(dt);
-    stage(dt, [&](std::size_t i) {
+    const ReferenceAt end = stage(dt, [&](std::size_t i) {
       return dt * a62 * k2_[i] + dt * a63 * k3_[i] + dt * a64 * k4_[i] + dt * a65 * k5_[i];
     });
     f(stage_, k6_, t_ + dt);

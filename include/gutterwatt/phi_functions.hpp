@@ -8,7 +8,7 @@
 
 namespace gutterwatt {
 
-/// phi_1(z) .. phi_K(z) for K = 2 or 3. Near 0, where the recurrence cancels, their series
+/// phi_1(z) .. phi_K(z) for K = 1, 2 or 3. Near 0, where the recurrence cancels, their series
 /// sum_j z^j / (j + k)!; elsewhere the recurrence from expm1.
 template <int K>
 std::array<double, K> phi_functions(double z);

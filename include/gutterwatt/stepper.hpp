@@ -66,10 +66,11 @@ class Stepper {
   void integrate_fixed(double t0, double t1, const Forcing& f);
   bool coasted_to_end(double t, double span, const Forcing& f);
   /// The release over the step being accepted, on the solver's dense output: at a time within
-  /// the segment, its flow (m3/s) and its account (m3).
+  /// the segment, its flow (m3/s) and what has passed (its account, m3).
   struct ReleaseAlong {
     double step_start;
-    std::function<std::array<double, 2>(double)> at;
+    std::function<double(double)> flow;
+    std::function<double(double)> passed;
   };
   /// Makes `x_end` the engine's state, with the trickle's column water followed over the step
   /// (on `along` where given, else the release's quadratic through the step's ends with its
