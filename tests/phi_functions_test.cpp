@@ -33,7 +33,9 @@ TEST(PhiFunctions, AgreeWithTheClosedFormsOnBothSidesOfTheSeries) {
     const auto phi = phi_functions<3>(z);
     for (int k = 1; k <= 3; ++k) {
       const double expected = static_cast<double>(closed(k, z));
-      EXPECT_NEAR(phi[k - 1], expected, 4e-15 * std::abs(expected)) << "z " << z << " k " << k;
+      // Within the series' truncation at the edge of its range, 0.25^10 / 11! = 2.4e-14 of phi_1
+      // (the linear reference and the trickle water need nothing like it).
+      EXPECT_NEAR(phi[k - 1], expected, 3e-14 * std::abs(expected)) << "z " << z << " k " << k;
     }
     const auto two = phi_functions<2>(z);
     EXPECT_EQ(two[0], phi[0]);
