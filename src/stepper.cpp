@@ -587,7 +587,8 @@ bool Stepper::follow_trickle_along(ChainState& x, const ReleaseAlong& along, int
   }
   const StepInflow inflow{start[0], end[0], (end[1] - start[1]) / dt};
   constexpr int kMaxHalvings = 8;
-  if (depth < kMaxHalvings) {
+  const bool none = start[0] <= 0.0 && end[0] <= 0.0 && inflow.mean_m3_per_s <= 0.0;
+  if (depth < kMaxHalvings && !none) {
     const double b = 6.0 * (inflow.mean_m3_per_s - 0.5 * (start[0] + end[0]));
     const double slope = end[0] - start[0] + b;
     // A cubic departure is opposite at a quarter and three quarters, a quartic alike: one of

@@ -88,6 +88,10 @@ struct ReferenceAt {
 /// Without `integral`, y alone (s left 0).
 ReferenceAt linear_reference_at(double tau, double mu, double constant, double decaying,
                                 double beta, bool integral = true);
+/// linear_reference_at at the pair's nodes c2, c3, c4, c5 and 1 of a step `dt` (the same
+/// numbers to rounding, with fewer exponentials).
+std::array<ReferenceAt, 5> linear_reference_at_nodes(double dt, double mu, double constant,
+                                                     double decaying, double beta);
 
 /// Rejected tries in a row after which a step counts as impossible.
 inline constexpr int kMaxRejectedTries = 500;
@@ -292,30 +296,33 @@ class DormandPrince {
     constant_ = equilibrium_ + r[ref_.storage];
     decaying_ = beta_ > 0.0 ? q0_ - equilibrium_ : 0.0;
     if (beta_ <= 0.0) constant_ += q0_ - equilibrium_;
-    // The read slots at `tau` into the step, given the pair's part; returns the reference there.
-    const auto stage = [&](double tau, const auto& pair) {
-      const ReferenceAt ref = reference_at(tau);
-      for (std::size_t i : read_) stage_[i] = x[i] + r[i] * tau + lambda_[i] * ref.s + pair(i);
+    const std::array<ReferenceAt, 5> refs =
+        linear_reference_at_nodes(dt, lambda_[ref_.storage], constant_, decaying_, beta_);
+    // The read slots at node `n` (c2, c3, c4, c5, 1) of the step, given the pair's part; returns
+    // the reference there.
+    const auto stage = [&](int n, double c, const auto& pair) {
+      const ReferenceAt& ref = refs[n];
+      for (std::size_t i : read_) stage_[i] = x[i] + r[i] * c * dt + lambda_[i] * ref.s + pair(i);
       return ref;
     };
     const auto leave = [&](State& k, double y) {
       for (std::size_t i = 0; i < N; ++i) k[i] -= r[i] + lambda_[i] * y;
     };
-    double y = stage(dt * c2, [](std::size_t) { return 0.0; }).y;
+    double y = stage(0, c2, [](std::size_t) { return 0.0; }).y;
     f(stage_, k2_, t_ + dt * c2);
     leave(k2_, y);
-    y = stage(dt * c3, [&](std::size_t i) { return dt * a32 * k2_[i]; }).y;
+    y = stage(1, c3, [&](std::size_t i) { return dt * a32 * k2_[i]; }).y;
     f(stage_, k3_, t_ + dt * c3);
     leave(k3_, y);
-    y = stage(dt * c4, [&](std::size_t i) { return dt * a42 * k2_[i] + dt * a43 * k3_[i]; }).y;
+    y = stage(2, c4, [&](std::size_t i) { return dt * a42 * k2_[i] + dt * a43 * k3_[i]; }).y;
     f(stage_, k4_, t_ + dt * c4);
     leave(k4_, y);
-    y = stage(dt * c5, [&](std::size_t i) {
+    y = stage(3, c5, [&](std::size_t i) {
           return dt * a52 * k2_[i] + dt * a53 * k3_[i] + dt * a54 * k4_[i];
         }).y;
     f(stage_, k5_, t_ + dt * c5);
     leave(k5_, y);
-    const ReferenceAt end = stage(dt, [&](std::size_t i) {
+    const ReferenceAt end = stage(4, 1.0, [&](std::size_t i) {
       return dt * a62 * k2_[i] + dt * a63 * k3_[i] + dt * a64 * k4_[i] + dt * a65 * k5_[i];
     });
     f(stage_, k6_, t_ + dt);

@@ -8,9 +8,15 @@
 
 namespace gutterwatt {
 
+/// Below this |z| the series is summed; from it on, the recurrence from e^z.
+inline constexpr double kPhiSeriesBelow = 0.25;
+
 /// phi_1(z) .. phi_K(z) for K = 1, 2 or 3. Near 0, where the recurrence cancels, their series
-/// sum_j z^j / (j + k)!; elsewhere the recurrence from expm1.
+/// sum_j z^j / (j + k)!; elsewhere the recurrence from e^z.
 template <int K>
 std::array<double, K> phi_functions(double z);
+/// The same with e^z known (read only where |z| >= kPhiSeriesBelow).
+template <int K>
+std::array<double, K> phi_functions(double z, double exp_z);
 
 }  // namespace gutterwatt
