@@ -397,7 +397,8 @@ RunResult run_demo_scenario(const RunOptions& options) {
 // Issue 16: the demo scenario itself, nine months of its invented 5-minute record, against its
 // fixed-step reference, within issue 16's 1e-5. Before the guards were looked at where the level
 // turns inside a step, its energy was 3.4e-5 above the reference's: the head column's filling at
-// 2025-06-22 14:15:20 was passed over between two steps' ends. Now 1.6e-6.
+// 2025-06-22 14:15:20 was passed over between two steps' ends. Then 1.6e-6; since the solver's
+// linear reference (d1fab0a to b18377e), 1.3e-6 (jet energy 1.0e-6).
 TEST(Accuracy, DemoScenarioAgreesWithItsFixedStepReference) {
   RunOptions fixed;
   fixed.fixed_step_s = 0.05;
@@ -413,7 +414,8 @@ TEST(Accuracy, DemoScenarioAgreesWithItsFixedStepReference) {
 // while its water follows its own law beside the solver (column_trickle.hpp), so where the limit
 // sits is a matter of the solver's steps, not of the answer. The demo scenario's nine months with
 // the limit at the demo's own 0.1 m, at 0.05 m, and at 5 mm (the column stepped nearly dry): the
-// same cycles and overflows, and the electrical energy within 2e-5 (measured: 1.8e-6 and 3.3e-6).
+// same cycles and overflows, and the electrical energy within 2e-5 (measured: 1.8e-6 and 3.3e-6;
+// since the solver's linear reference, 2.5e-7 and 6.4e-8).
 // With the column's water held still in trickle (the following switched off), the 0.05 m and
 // 0.1 m runs come out 5.1e-5 and 2.2e-4 below the 5 mm one, and this test fails.
 TEST(Accuracy, TheTrickleLimitDoesNotMoveTheDemoScenariosEnergy) {
