@@ -356,6 +356,8 @@ class DormandPrince {
     for (std::size_t i : ref_.outflows) slopes[i] = (k7_left_[i] - k6_[i]) / moved;
     for (const auto& [to, from] : ref_.alike) slopes[to] = slopes[from];
   }
+  // The secant is taken where the storage moved by more than this share of its water plus the
+  // scale (in the storage's unit; for the run's reservoir, 1 mL): about 1e4 roundings.
   static constexpr double kSecantFloor = 1e-12;
   static constexpr double kSecantScale = 1e-6;
 
