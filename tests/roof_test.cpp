@@ -87,6 +87,39 @@ TEST(RoofSpan, DiverterTakesTheFirstRunoffUntilFull) {
   EXPECT_NEAR(span.flows(60.0).diverted_m3, 8e-3, 1e-15);
 }
 
+// The law the solver's linear reference takes for the inflow over a step: what the inflow tends
+// to and at what rate. Worked by hand for the invented roof: with the loss full, C i A = 0.9 x
+// 4e-4 = 3.6e-4 m3/s at 1/60 per second, and the inflow a later time on follows it, E + (q - E)
+// e^(-t / k); while the loss fills the roof only drains (toward 0); with no lag, or while the
+// diverter takes the runoff, the inflow stays as it is.
+TEST(RoofSpan, InflowTrendIsTheLawInForce) {
+  RoofStores wet;
+  wet.loss_filled_m = 0.5e-3;
+  wet.roof_m3 = 6e-3;  // 1e-4 m3/s out at a 60 s lag
+  const RoofSpan lagged(roof(0.9, 0.5e-3, 60.0), kNoDiverter, kRain_m_per_s, wet);
+  const auto trend = lagged.inflow_trend(10.0);
+  EXPECT_NEAR(trend[0], 3.6e-4, 1e-18);
+  EXPECT_DOUBLE_EQ(trend[1], 1.0 / 60.0);
+  const double q = lagged.to_reservoir_m3_per_s(10.0);
+  EXPECT_NEAR(lagged.to_reservoir_m3_per_s(40.0), 3.6e-4 + (q - 3.6e-4) * std::exp(-30.0 / 60.0),
+              1e-17);
+
+  const RoofSpan filling(roof(0.9, 0.5e-3, 60.0), kNoDiverter, kRain_m_per_s, RoofStores{});
+  EXPECT_EQ(filling.inflow_trend(10.0)[0], 0.0);  // 0.5 mm fills in 50 s
+  EXPECT_DOUBLE_EQ(filling.inflow_trend(10.0)[1], 1.0 / 60.0);
+  EXPECT_NEAR(filling.inflow_trend(60.0)[0], 3.6e-4, 1e-18);
+
+  const RoofSpan direct(roof(0.9, 0.0, 0.0), kNoDiverter, kRain_m_per_s, RoofStores{});
+  EXPECT_NEAR(direct.inflow_trend(5.0)[0], 3.6e-4, 1e-18);
+  EXPECT_EQ(direct.inflow_trend(5.0)[1], 0.0);
+
+  FirstFlushConfig diverter;
+  diverter.volume_m3 = 0.05;
+  const RoofSpan diverting(roof(0.9, 0.0, 60.0), diverter, kRain_m_per_s, RoofStores{});
+  EXPECT_EQ(diverting.inflow_trend(30.0)[0], 0.0);  // the diverter still takes it all
+  EXPECT_EQ(diverting.inflow_trend(30.0)[1], 0.0);
+}
+
 TEST(RoofSpan, WaterBalanceCloses) {
   FirstFlushConfig flush;
   flush.volume_m3 = 10e-3;
