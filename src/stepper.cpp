@@ -557,12 +557,14 @@ bool Stepper::accept_step(const ChainState& x_end, double dt, const ChainRates& 
     }
   }
   ChainState x1 = x_end;
-  const StepInflow inflow{trickle_inflow_m3_per_s_, r.release,
-                          dt > 0.0 ? (x_end[kRelease] - x_[kRelease]) / dt : r.release};
   const bool moved =
       along ? follow_trickle_along(x1, *along, 0, {trickle_inflow_m3_per_s_, x_[kRelease]},
                                    {r.release, x_end[kRelease]}, dt)
-            : follow_trickle_water(x1, inflow, dt);
+            : follow_trickle_water(
+                  x1,
+                  StepInflow{trickle_inflow_m3_per_s_, r.release,
+                             dt > 0.0 ? (x_end[kRelease] - x_[kRelease]) / dt : r.release},
+                  dt);
   ledger_.tally_step(x_, x1, dt, mode_);
   x_ = x1;
   now_s_ = t_abs;

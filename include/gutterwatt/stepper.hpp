@@ -102,10 +102,8 @@ class Stepper {
   std::optional<RoofSpan> roof_;  // the roof stage over the current segment
   double now_s_ = 0.0;            // absolute, seconds since the epoch
   double last_step_s_ = 10.0;     // solver step carried from one segment into the next
-  ChainState slopes_{};
-  std::function<std::pair<double, double>(double)>
-      trickle_release_;  // the solver's linear reference's slopes, carried likewise
-  bool moving_ = false;  // stepped (not at rest) since the last trace point at rest
+  ChainState slopes_{};           // the solver's linear reference's slopes, carried likewise
+  bool moving_ = false;           // stepped (not at rest) since the last trace point at rest
   double trickle_inflow_m3_per_s_ = 0.0;  // the release where the step now starting starts
   double trickle_substep_s_ = 0.0;        // the trickle water's substep carried on
   double trickle_rtol_;                   // the trickle water's tolerance, from the run's rtol
