@@ -368,6 +368,8 @@ DesignFigures evaluate_design(const Scenario& sc, const RainSeries* rain,
         "below." +
         feed_it);
   }
+  // Where the release can start at all (release_starts_level_m is set only beside
+  // release_ends_level_m), what the gutter holds below where each cycle ends.
   if (d.release_starts_level_m && *d.release_ends_level_m > bottom_m + 1e-3) {
     const double held_L = (geometry.volume_m3(ends_m) - geometry.volume_m3(bottom_m)) * 1e3;
     d.warnings.push_back(

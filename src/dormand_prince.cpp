@@ -135,13 +135,12 @@ ReferenceAt linear_reference_at(double tau, double mu, double constant, double d
 std::array<ReferenceAt, 5> linear_reference_at_nodes(double dt, double mu, double constant,
                                                      double decaying, double beta) {
   using namespace dopri5;
-  constexpr std::array<double, 5> kNodes = {c2, c3, c4, c5, 1.0};
   const std::array<double, 5> exp_a = exp_at_nodes(mu * dt);
   const std::array<double, 5> exp_b =
       decaying == 0.0 ? std::array<double, 5>{} : exp_at_nodes(-beta * dt);
   std::array<ReferenceAt, 5> refs;
-  for (std::size_t i = 0; i < kNodes.size(); ++i) {
-    const double tau = kNodes[i] * dt;
+  for (std::size_t i = 0; i < nodes.size(); ++i) {
+    const double tau = nodes[i] * dt;
     refs[i] =
         reference_from(tau, mu * tau, exp_a[i], -beta * tau, exp_b[i], constant, decaying, true);
   }

@@ -63,15 +63,14 @@ Plant::Plant(const PlantConfig& config)
       cut_in_W_(config.generator.cut_in_W),
       density_kg_per_m3_(water_density_kg_per_m3(config.temperature_C)),
       kinematic_viscosity_m2_per_s_(water_kinematic_viscosity_m2_per_s(config.temperature_C)),
-      per_cd_area_(
-          1.0 / (config.nozzle.discharge_coefficient * circle_area_m2(config.nozzle.diameter_m))) {
+      nozzle_area_m2_(circle_area_m2(config.nozzle.diameter_m)),
+      per_cd_area_(1.0 / (config.nozzle.discharge_coefficient * nozzle_area_m2_)) {
   if (column_) {
     column_area_m2_ = circle_area_m2(column_->diameter_m);
     per_column_area_ = 1.0 / column_area_m2_;
     column_join_m3_ = column_area_m2_ * kNozzleLinearHead_m;
     column_linear_drain_per_s_ =
-        orifice_flow_m3_per_s(nozzle_.discharge_coefficient, circle_area_m2(nozzle_.diameter_m),
-                              kNozzleLinearHead_m) /
+        orifice_flow_m3_per_s(nozzle_.discharge_coefficient, nozzle_area_m2_, kNozzleLinearHead_m) /
         column_join_m3_;
   }
   // The full flow is needed at every solver stage while the release runs; solving the friction
@@ -132,7 +131,7 @@ double Plant::column_head_m(double volume_m3) const {
 
 double Plant::column_nozzle_flow_m3_per_s(double volume_m3) const {
   if (volume_m3 >= column_join_m3_) {
-    return orifice_flow_m3_per_s(nozzle_.discharge_coefficient, circle_area_m2(nozzle_.diameter_m),
+    return orifice_flow_m3_per_s(nozzle_.discharge_coefficient, nozzle_area_m2_,
                                  column_head_m(volume_m3));
   }
   // Below a few millimetres of head no jet forms; flow in proportion to head keeps the column's

@@ -248,15 +248,14 @@ TEST(LinearReference, AgreesWithAnIndependentIntegration) {
 // At the pair's nodes the reference from powers of one exponential agrees with the reference
 // worked at each node alone, on both sides of the series' range.
 TEST(LinearReference, AtTheNodesAgreesWithEachNodeAlone) {
-  using namespace dopri5;
   for (const double dt : {0.5, 7.0, 60.0, 120.0}) {
-    const std::array<ReferenceAt, 5> nodes =
+    const std::array<ReferenceAt, 5> at_nodes =
         linear_reference_at_nodes(dt, -0.16, 2e-5, -1e-5, 1.0 / 60.0);
-    const std::array<double, 5> c = {c2, c3, c4, c5, 1.0};
-    for (std::size_t i = 0; i < c.size(); ++i) {
-      const ReferenceAt one = linear_reference_at(c[i] * dt, -0.16, 2e-5, -1e-5, 1.0 / 60.0);
-      EXPECT_NEAR(nodes[i].y, one.y, 1e-13 * std::abs(one.y)) << "dt " << dt << " node " << i;
-      EXPECT_NEAR(nodes[i].s, one.s, 1e-13 * std::abs(one.s)) << "dt " << dt << " node " << i;
+    for (std::size_t i = 0; i < at_nodes.size(); ++i) {
+      const ReferenceAt one =
+          linear_reference_at(dopri5::nodes[i] * dt, -0.16, 2e-5, -1e-5, 1.0 / 60.0);
+      EXPECT_NEAR(at_nodes[i].y, one.y, 1e-13 * std::abs(one.y)) << "dt " << dt << " node " << i;
+      EXPECT_NEAR(at_nodes[i].s, one.s, 1e-13 * std::abs(one.s)) << "dt " << dt << " node " << i;
     }
   }
 }

@@ -52,6 +52,9 @@ class StepSizeError : public std::runtime_error {
 /// The coefficients of the pair (Dormand & Prince 1980, table 2).
 namespace dopri5 {
 inline constexpr double c2 = 1.0 / 5.0, c3 = 3.0 / 10.0, c4 = 4.0 / 5.0, c5 = 8.0 / 9.0;
+/// The times of the stages after the first, as shares of the step (the sixth and seventh at its
+/// end).
+inline constexpr std::array<double, 5> nodes = {c2, c3, c4, c5, 1.0};
 inline constexpr double a21 = 1.0 / 5.0;
 inline constexpr double a31 = 3.0 / 40.0, a32 = 9.0 / 40.0;
 inline constexpr double a41 = 44.0 / 45.0, a42 = -56.0 / 15.0, a43 = 32.0 / 9.0;
@@ -298,31 +301,33 @@ class DormandPrince {
     if (beta_ <= 0.0) constant_ += q0_ - equilibrium_;
     const std::array<ReferenceAt, 5> refs =
         linear_reference_at_nodes(dt, lambda_[ref_.storage], constant_, decaying_, beta_);
-    // The read slots at node `n` (c2, c3, c4, c5, 1) of the step, given the pair's part; returns
-    // the reference there.
-    const auto stage = [&](int n, double c, const auto& pair) {
+    // The read slots at node `n` (dopri5::nodes) of the step, given the pair's part; returns the
+    // reference there.
+    const auto stage = [&](std::size_t n, const auto& pair) {
       const ReferenceAt& ref = refs[n];
-      for (std::size_t i : read_) stage_[i] = x[i] + r[i] * c * dt + lambda_[i] * ref.s + pair(i);
+      for (std::size_t i : read_) {
+        stage_[i] = x[i] + r[i] * nodes[n] * dt + lambda_[i] * ref.s + pair(i);
+      }
       return ref;
     };
     const auto leave = [&](State& k, double y) {
       for (std::size_t i = 0; i < N; ++i) k[i] -= r[i] + lambda_[i] * y;
     };
-    double y = stage(0, c2, [](std::size_t) { return 0.0; }).y;
+    double y = stage(0, [](std::size_t) { return 0.0; }).y;
     f(stage_, k2_, t_ + dt * c2);
     leave(k2_, y);
-    y = stage(1, c3, [&](std::size_t i) { return dt * a32 * k2_[i]; }).y;
+    y = stage(1, [&](std::size_t i) { return dt * a32 * k2_[i]; }).y;
     f(stage_, k3_, t_ + dt * c3);
     leave(k3_, y);
-    y = stage(2, c4, [&](std::size_t i) { return dt * a42 * k2_[i] + dt * a43 * k3_[i]; }).y;
+    y = stage(2, [&](std::size_t i) { return dt * a42 * k2_[i] + dt * a43 * k3_[i]; }).y;
     f(stage_, k4_, t_ + dt * c4);
     leave(k4_, y);
-    y = stage(3, c5, [&](std::size_t i) {
+    y = stage(3, [&](std::size_t i) {
           return dt * a52 * k2_[i] + dt * a53 * k3_[i] + dt * a54 * k4_[i];
         }).y;
     f(stage_, k5_, t_ + dt * c5);
     leave(k5_, y);
-    const ReferenceAt end = stage(4, 1.0, [&](std::size_t i) {
+    const ReferenceAt end = stage(4, [&](std::size_t i) {
       return dt * a62 * k2_[i] + dt * a63 * k3_[i] + dt * a64 * k4_[i] + dt * a65 * k5_[i];
     });
     f(stage_, k6_, t_ + dt);

@@ -146,7 +146,8 @@ class Plant {
   // The bucket's speeds at the held and the conduction speed (bucket_speed_m_per_s).
   double held_bucket_m_per_s_ = 0.0;
   double conduction_bucket_m_per_s_ = 0.0;
-  double per_cd_area_;  // 1 / (Cd a) of the nozzle: its flow to the ideal jet speed
+  double nozzle_area_m2_;  // the nozzle's bore area, a
+  double per_cd_area_;     // 1 / (Cd a) of the nozzle: its flow to the ideal jet speed
   double full_flow_floor_m3_per_s_ = 0.0;
   // The column's plan area and its inverse, and the linear drain below the join: worked out at
   // every solver stage otherwise.
